@@ -1,0 +1,104 @@
+import { StyleSheet, View } from 'react-native';
+import { useRouter } from 'expo-router';
+import { BrandMark } from '../components/brand-mark';
+import { Button } from '../components/ui/button';
+import { Center, Content, Screen, useIsWide } from '../components/ui/layout';
+import { Text } from '../components/ui/text';
+import { CautionNote } from '../components/caution-note';
+import { ServiceStatus } from '../components/service-status';
+import { color, radius, space } from '../components/theme';
+
+const steps = [
+  { title: 'Record', body: 'Pressures, transit times and drug doses, entered at the table on a phone or a workstation.' },
+  { title: 'Compute', body: 'FFR, resting Pd/Pa, CFR, IMR, RRR and the endotype, with quality checks beside each number.' },
+  { title: 'Report and sign', body: 'A narrative drafted from the structured data, signed and kept as an unchangeable version.' },
+  { title: 'Code and deliver', body: 'Suggested procedure and diagnosis codes for the coder; the signed report sent to the EHR.' },
+];
+
+/** Signed-out start page. */
+export default function StartPage() {
+  const router = useRouter();
+  const wide = useIsWide();
+  return (
+    <Screen testID="start-page">
+      <Content style={styles.content}>
+        <Center style={[styles.columns, wide && styles.columnsWide]}>
+          <View style={[styles.intro, wide && styles.introWide]}>
+            <View style={styles.brandRow}>
+              <BrandMark size={wide ? 56 : 44} />
+              <Text variant={wide ? 'display' : 'headline'} weight="bold" role="heading" aria-level={1} tone="brand">
+                Isobar
+              </Text>
+            </View>
+            <Text variant="lead" tone="muted" style={styles.tagline}>
+              Coronary physiology, from the wire to the signed report.
+            </Text>
+            <Text tone="muted" style={styles.body}>
+              For the catheterization lab team, the reading cardiologist, the coders and the department chief.
+            </Text>
+            <Button
+              testID="sign-in-button"
+              label="Sign in"
+              accessibilityLabel="Sign in with your hospital account"
+              onPress={() => router.push('/sign-in')}
+              style={styles.signIn}
+            />
+            <ServiceStatus />
+          </View>
+          <View style={[styles.steps, wide && styles.stepsWide]} accessibilityLabel="What Isobar does">
+            {steps.map((step, i) => (
+              <View key={step.title} style={styles.step}>
+                <View style={styles.stepNumber}>
+                  <Text weight="bold" tone="onBrand" variant="caption">
+                    {i + 1}
+                  </Text>
+                </View>
+                <View style={styles.stepText}>
+                  <Text weight="semibold">{step.title}</Text>
+                  <Text variant="caption" tone="muted">
+                    {step.body}
+                  </Text>
+                </View>
+              </View>
+            ))}
+          </View>
+        </Center>
+        <Center>
+          <CautionNote />
+        </Center>
+      </Content>
+    </Screen>
+  );
+}
+
+const styles = StyleSheet.create({
+  content: { justifyContent: 'space-between', gap: space.xxl },
+  columns: { gap: space.xxl, paddingTop: space.xl },
+  columnsWide: { flexDirection: 'row', alignItems: 'center', paddingTop: space.xxxl * 2, gap: space.xxxl * 1.5 },
+  intro: { gap: space.md },
+  introWide: { flex: 1.1 },
+  brandRow: { flexDirection: 'row', alignItems: 'center', gap: space.md },
+  tagline: { marginTop: space.sm },
+  body: { maxWidth: 480 },
+  signIn: { alignSelf: 'stretch', marginTop: space.lg, maxWidth: 360 },
+  steps: {
+    backgroundColor: color.surface,
+    borderRadius: radius.lg,
+    borderWidth: 1,
+    borderColor: color.line,
+    padding: space.lg,
+    gap: space.lg,
+  },
+  stepsWide: { flex: 1, padding: space.xl },
+  step: { flexDirection: 'row', gap: space.md, alignItems: 'flex-start' },
+  stepNumber: {
+    width: 26,
+    height: 26,
+    borderRadius: radius.pill,
+    backgroundColor: color.brand,
+    alignItems: 'center',
+    justifyContent: 'center',
+    marginTop: 1,
+  },
+  stepText: { flex: 1, gap: space.xxs },
+});

@@ -1,0 +1,4 @@
+export default function (api) {
+  api.cache(true);
+  return { presets: ['babel-preset-expo'] };
+}

@@ -1,0 +1,47 @@
+/** A problem+json answer from the server, kept whole so forms can place field errors. */
+export interface ApiProblem {
+  type: string;
+  title: string;
+  status: number;
+  detail?: string;
+  errors?: { pointer: string; detail: string }[];
+}
+
+export class ApiError extends Error {
+  constructor(public readonly problem: ApiProblem) {
+    super(problem.detail ?? problem.title);
+    this.name = 'ApiError';
+  }
+  get status(): number {
+    return this.problem.status;
+  }
+}
+
+/** Fetches JSON from the Isobar API on the same origin; non-2xx answers become an ApiError. */
+export async function apiFetch<T>(path: string, init: RequestInit = {}): Promise<T> {
+  let response: Response;
+  try {
+    response = await fetch(`/api${path}`, {
+      credentials: 'same-origin',
+      ...init,
+      headers: { Accept: 'application/json', ...(init.body ? { 'Content-Type': 'application/json' } : {}), ...init.headers },
+    });
+  } catch {
+    throw new ApiError({ type: 'about:blank', title: 'Network unavailable', status: 0, detail: 'The server could not be reached. Check the connection.' });
+  }
+  const text = await response.text();
+  const body = text ? safeJson(text) : undefined;
+  if (!response.ok) {
+    const problem = (body && typeof body === 'object' && 'title' in body ? body : undefined) as ApiProblem | undefined;
+    throw new ApiError(problem ?? { type: 'about:blank', title: response.statusText || 'Request failed', status: response.status });
+  }
+  return body as T;
+}
+
+function safeJson(text: string): unknown {
+  try {
+    return JSON.parse(text);
+  } catch {
+    return undefined;
+  }
+}

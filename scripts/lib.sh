@@ -1,0 +1,132 @@
+#!/usr/bin/env bash
+# Setup shared by `npm start` and `npm test`: dependencies, PostgreSQL, chromium, web build.
+# Everything is installed by these functions on a fresh machine and reused when already there.
+set -euo pipefail
+
+ROOT=$(cd "$(dirname "${BASH_SOURCE[0]}")/.." && pwd)
+DATA_DIR=${ISOBAR_DATA_DIR:-$ROOT/.data}
+mkdir -p "$DATA_DIR"
+
+log() { printf '[isobar] %s\n' "$*"; }
+fail() { printf '[isobar] error: %s\n' "$*" >&2; exit 1; }
+
+# Installing system packages needs root; CI and the development machines run as root.
+apt_install() {
+  [[ $(id -u) -eq 0 ]] || fail "installing $* needs root: run 'sudo apt-get install -y $*' once, then try again"
+  if [[ -z ${ISOBAR_APT_UPDATED:-} ]]; then
+    log "refreshing Debian's package lists"
+    apt-get update -qq
+    ISOBAR_APT_UPDATED=1
+  fi
+  log "installing $* from Debian's packages"
+  DEBIAN_FRONTEND=noninteractive apt-get install -y -qq --no-install-recommends "$@" >/dev/null
+}
+
+# npm ci whenever the lock file changed since the last install.
+ensure_node_modules() {
+  local stamp="$ROOT/node_modules/.isobar-lock-sha" want
+  want=$(sha1sum "$ROOT/package-lock.json" | cut -d' ' -f1)
+  if [[ ! -f $stamp || $(cat "$stamp") != "$want" ]]; then
+    log "installing dependencies (npm ci)"
+    (cd "$ROOT" && npm ci --no-audit --no-fund --loglevel=error)
+    echo "$want" >"$stamp"
+  fi
+}
+
+pg_bin_dir() { ls -d /usr/lib/postgresql/*/bin 2>/dev/null | sort -V | tail -n 1; }
+
+ensure_postgres_installed() {
+  if [[ -z $(pg_bin_dir) || ! -x "$(pg_bin_dir)/initdb" ]]; then
+    apt_install postgresql
+  fi
+  PG_BIN=$(pg_bin_dir)
+}
+
+ensure_chromium() {
+  command -v chromium >/dev/null 2>&1 || apt_install chromium
+}
+
+# PostgreSQL refuses to run as root: run its programs as the `postgres` user when we are root.
+as_pg() {
+  if [[ $(id -u) -eq 0 ]]; then runuser -u postgres -- "$@"; else "$@"; fi
+}
+
+# The private cluster lives under the project (.data/, ignored by git). When the postgres user
+# cannot reach the project folder (e.g. a clone inside a 0700 temporary folder), it lives in
+# /var/tmp under a name derived from the project path instead.
+cluster_base() {
+  if [[ $(id -u) -ne 0 ]] || runuser -u postgres -- test -x "$DATA_DIR" 2>/dev/null; then
+    echo "$DATA_DIR"
+  else
+    local dir="/var/tmp/isobar-$(echo "$ROOT" | sha1sum | cut -c1-12)"
+    mkdir -p "$dir" && chmod 755 "$dir"
+    echo "$dir"
+  fi
+}
+
+# start_cluster NAME PORT: sets PG_DIR and PG_STARTED (1 when this script started it).
+start_cluster() {
+  local name=$1 port=$2 base
+  base=$(cluster_base)
+  PG_DIR="$base/$name"
+  PG_STARTED=0
+  if [[ ! -f $PG_DIR/PG_VERSION ]]; then
+    log "creating a PostgreSQL cluster in $PG_DIR"
+    mkdir -p "$PG_DIR"
+    [[ $(id -u) -eq 0 ]] && chown postgres:postgres "$PG_DIR"
+    chmod 700 "$PG_DIR"
+    as_pg "$PG_BIN/initdb" -D "$PG_DIR" -U postgres --auth=trust --encoding=UTF8 --locale=C.UTF-8 >/dev/null
+  fi
+  if as_pg "$PG_BIN/pg_ctl" -D "$PG_DIR" status >/dev/null 2>&1; then
+    log "PostgreSQL already running on 127.0.0.1:$port (reused)"
+    return
+  fi
+  # Listens on loopback only; the socket stays inside the cluster folder.
+  as_pg "$PG_BIN/pg_ctl" -D "$PG_DIR" -l "$PG_DIR/server.log" -w -t 30 \
+    -o "-c listen_addresses=127.0.0.1 -p $port -k $PG_DIR -c fsync=${PG_FSYNC:-on}" start >/dev/null \
+    || { tail -n 20 "$PG_DIR/server.log" >&2; fail "PostgreSQL did not start (port $port in use?)"; }
+  PG_STARTED=1
+  log "PostgreSQL started on 127.0.0.1:$port"
+}
+
+stop_cluster() {
+  if [[ ${PG_STARTED:-0} -eq 1 && -n ${PG_DIR:-} ]]; then
+    as_pg "$PG_BIN/pg_ctl" -D "$PG_DIR" -m fast -w stop >/dev/null 2>&1 || true
+    PG_STARTED=0
+    log "PostgreSQL stopped"
+  fi
+}
+
+psql_admin() { # PORT SQL
+  "$PG_BIN/psql" -h 127.0.0.1 -p "$1" -U postgres -d postgres -v ON_ERROR_STOP=1 -qtAc "$2"
+}
+
+# ensure_database PORT NAME [fresh]: the `isobar` role owns the database; `fresh` drops it first.
+ensure_database() {
+  local port=$1 name=$2 fresh=${3:-}
+  if [[ -z $(psql_admin "$port" "SELECT 1 FROM pg_roles WHERE rolname = 'isobar'") ]]; then
+    psql_admin "$port" "CREATE ROLE isobar LOGIN"
+  fi
+  if [[ $fresh == fresh ]]; then
+    psql_admin "$port" "DROP DATABASE IF EXISTS $name WITH (FORCE)"
+  fi
+  if [[ -z $(psql_admin "$port" "SELECT 1 FROM pg_database WHERE datname = '$name'") ]]; then
+    psql_admin "$port" "CREATE DATABASE $name OWNER isobar"
+    log "database $name created"
+  fi
+}
+
+# Rebuild the web app only when its sources changed since the last export.
+ensure_web_build() {
+  local want
+  want=$(cd "$ROOT" && find app components shared assets app.json babel.config.js tsconfig.json package-lock.json \
+    -type f -not -path '*/node_modules/*' -print0 2>/dev/null | sort -z | xargs -0 sha1sum | sha1sum | cut -c1-40)
+  if [[ -f $ROOT/dist/.build-hash && $(cat "$ROOT/dist/.build-hash") == "$want" ]]; then
+    return
+  fi
+  log "building the web app (expo export)"
+  rm -rf "$ROOT/dist"
+  (cd "$ROOT" && CI=1 EXPO_NO_TELEMETRY=1 node_modules/.bin/expo export --platform web --output-dir dist >"$DATA_DIR/web-build.log" 2>&1) \
+    || { tail -n 40 "$DATA_DIR/web-build.log" >&2; fail "the web build failed (full log: .data/web-build.log)"; }
+  echo "$want" >"$ROOT/dist/.build-hash"
+}

@@ -1,0 +1,79 @@
+import fs from 'node:fs';
+import path from 'node:path';
+import express, { type Express } from 'express';
+import helmet from 'helmet';
+import type { DataSource } from 'typeorm';
+import type { Config } from './config';
+import { apiNotFound, problemHandler } from './http/problem';
+import { healthRouter } from './routes/health';
+
+export interface AppDeps {
+  config: Config;
+  dataSource: DataSource;
+  log?: (message: string, error?: unknown) => void;
+}
+
+/**
+ * Builds the Express app without listening, so tests can drive it with supertest.
+ * `/api` answers JSON (errors as problem+json); everything else is the web app.
+ */
+export function createApp({ config, dataSource, log = console.error }: AppDeps): Express {
+  const app = express();
+  app.disable('x-powered-by');
+  app.set('trust proxy', 'loopback');
+
+  app.use(
+    helmet({
+      contentSecurityPolicy: {
+        useDefaults: true,
+        directives: {
+          // react-native-web writes its styles into <style> tags at run time.
+          'style-src': ["'self'", "'unsafe-inline'"],
+          'img-src': ["'self'", 'data:', 'blob:'],
+          'font-src': ["'self'", 'data:'],
+          'connect-src': ["'self'"],
+          'upgrade-insecure-requests': config.publicUrl.startsWith('https:') ? [] : null,
+        },
+      },
+      strictTransportSecurity: config.publicUrl.startsWith('https:'),
+    }),
+  );
+
+  const api = express.Router();
+  api.use(express.json({ limit: config.jsonBodyLimit }));
+  api.use((_req, res, next) => {
+    res.set('Cache-Control', 'no-store');
+    next();
+  });
+  api.use(healthRouter(dataSource));
+  api.use(apiNotFound);
+  app.use('/api', api);
+
+  serveWebApp(app, path.resolve(config.webDist));
+
+  app.use(problemHandler(log));
+  return app;
+}
+
+/** The exported web build: hashed bundles cached for a year, the page itself never cached. */
+function serveWebApp(app: Express, distDir: string): void {
+  const indexFile = path.join(distDir, 'index.html');
+  app.use(
+    express.static(distDir, {
+      index: false,
+      setHeaders(res, filePath) {
+        if (filePath.includes(`${path.sep}_expo${path.sep}`) || filePath.includes(`${path.sep}assets${path.sep}`)) {
+          res.set('Cache-Control', 'public, max-age=31536000, immutable');
+        }
+      },
+    }),
+  );
+  // Single-page app: any other GET is a client-side route.
+  app.get('/{*splat}', (_req, res) => {
+    if (!fs.existsSync(indexFile)) {
+      res.status(503).type('text/plain').send('The web app has not been built yet. Run `npm start`.');
+      return;
+    }
+    res.set('Cache-Control', 'no-cache').sendFile(indexFile);
+  });
+}

@@ -1,0 +1,28 @@
+import { loadConfig } from '../config';
+import { createDataSource } from '../db/data-source';
+import { seedDemo } from '../demo/seed';
+
+/**
+ * Brings the database to the current schema; with `--demo`, loads the demo scenario as well.
+ * Safe to run on every start.
+ */
+async function main(): Promise<void> {
+  const config = loadConfig();
+  const dataSource = createDataSource(config.databaseUrl, 2);
+  await dataSource.initialize();
+  try {
+    const ran = await dataSource.runMigrations({ transaction: 'each' });
+    console.log(ran.length ? `migrations run: ${ran.map((m) => m.name).join(', ')}` : 'schema is up to date');
+    if (process.argv.includes('--demo')) {
+      await seedDemo(dataSource, process.env.DEMO_ISSUER ?? 'demo');
+      console.log('demo scenario loaded');
+    }
+  } finally {
+    await dataSource.destroy();
+  }
+}
+
+main().catch((error) => {
+  console.error(error instanceof Error ? error.message : error);
+  process.exit(1);
+});

@@ -1,0 +1,41 @@
+import 'reflect-metadata';
+import { DataSource } from 'typeorm';
+import { User } from './entities/user.entity';
+import { Patient } from './entities/patient.entity';
+import { Study } from './entities/study.entity';
+import { InitialSchema1764633600000 } from './migrations/1764633600000-initial-schema';
+
+/** Entities and migrations are listed, not globbed, so tsx, vitest and a bundler all see the same set. */
+export const entities = [User, Patient, Study];
+export const migrations = [InitialSchema1764633600000];
+
+export function createDataSource(databaseUrl: string, poolSize = 10): DataSource {
+  return new DataSource({
+    type: 'postgres',
+    url: databaseUrl,
+    entities,
+    migrations,
+    migrationsTableName: 'schema_migration',
+    synchronize: false,
+    migrationsRun: false,
+    logging: ['error'],
+    extra: { max: poolSize, connectionTimeoutMillis: 3000 },
+  });
+}
+
+/** True when the database answers a trivial query within the time limit. */
+export async function databaseAnswers(dataSource: DataSource, timeoutMs = 2000): Promise<boolean> {
+  if (!dataSource.isInitialized) return false;
+  let timer: ReturnType<typeof setTimeout> | undefined;
+  try {
+    const timeout = new Promise<never>((_, reject) => {
+      timer = setTimeout(() => reject(new Error('database timeout')), timeoutMs);
+    });
+    await Promise.race([dataSource.query('SELECT 1'), timeout]);
+    return true;
+  } catch {
+    return false;
+  } finally {
+    clearTimeout(timer);
+  }
+}

@@ -1,0 +1,54 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { DataSource } from 'typeorm';
+import { launchBrowser, screenshotPath, viewports } from '../support/browser';
+import { openTestDatabase, startTestServer } from '../support/app';
+
+let db: DataSource;
+let server: Awaited<ReturnType<typeof startTestServer>>;
+let browser: Awaited<ReturnType<typeof launchBrowser>>;
+
+beforeAll(async () => {
+  db = await openTestDatabase();
+  server = await startTestServer(db);
+  browser = await launchBrowser();
+});
+afterAll(async () => {
+  await browser?.close();
+  await server?.close();
+  await db?.destroy();
+});
+
+describe.each(Object.entries(viewports))('start page at %s width', (name, viewport) => {
+  it('shows the product, a sign-in button, the live service state and the caution', async () => {
+    const page = await browser.context.newPage();
+    await page.setViewportSize(viewport);
+    await page.goto(server.url + '/');
+    await page.getByRole('heading', { level: 1, name: 'Isobar' }).waitFor({ state: 'visible' });
+    const signIn = page.getByRole('button', { name: 'Sign in with your hospital account' });
+    await signIn.waitFor();
+    const box = await signIn.boundingBox();
+    expect(box!.height).toBeGreaterThanOrEqual(44);
+    await page.getByTestId('service-status-up').waitFor();
+    await expect(page.getByTestId('caution-note').innerText()).resolves.toMatch(/Decision support only/);
+    // Bundled fonts, not a system fallback.
+    const family = await page.getByRole('heading', { level: 1 }).evaluate((el) => getComputedStyle(el).fontFamily);
+    expect(family).toContain('PublicSans_700Bold');
+    expect(await page.evaluate(() => document.fonts.check('16px PublicSans_400Regular'))).toBe(true);
+    // Nothing wider than the viewport.
+    expect(await page.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(viewport.width);
+    await page.screenshot({ path: screenshotPath(`start-page-${name}`), fullPage: true });
+    await page.close();
+  });
+});
+
+describe('not-found route', () => {
+  it('shows a clear page with a way back', async () => {
+    const page = await browser.context.newPage();
+    await page.goto(server.url + '/no/such/page');
+    await page.getByTestId('not-found-page').waitFor();
+    await expect(page.getByRole('heading', { level: 1 }).innerText()).resolves.toBe('This page does not exist');
+    await page.getByTestId('not-found-home-link').click();
+    await page.getByTestId('start-page').waitFor();
+    await page.close();
+  });
+});
