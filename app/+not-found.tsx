@@ -16,7 +16,7 @@ export default function NotFoundPage() {
           <Text tone="muted">The address may be mistyped, or the page may have moved.</Text>
           <View style={styles.link}>
             <Link href="/" style={styles.linkText} testID="not-found-home-link">
-              Go to the start page
+              Go to Isobar
             </Link>
           </View>
         </Center>

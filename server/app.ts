@@ -5,19 +5,32 @@ import helmet from 'helmet';
 import type { DataSource } from 'typeorm';
 import type { Config } from './config';
 import { apiNotFound, problemHandler } from './http/problem';
-import { healthRouter } from './routes/health';
+import { routerFrom, type ApiRoute } from './http/routes';
+import { identityProvider, type IdentityProvider } from './auth/oidc';
+import { sessionMiddleware } from './auth/session';
+import { enforceSessionLimit, requireSameOrigin } from './auth/request-guards';
+import { healthRoutes } from './routes/health';
+import { authRoutes } from './routes/auth';
+import { recordRoutes } from './routes/records';
 
 export interface AppDeps {
   config: Config;
   dataSource: DataSource;
   log?: (message: string, error?: unknown) => void;
+  /** The identity provider; defaults to the one in the config (tests may pass their own). */
+  idp?: IdentityProvider;
+}
+
+/** Every `/api` route with the access it needs: the router is built from this list alone. */
+export function apiRoutes(deps: Required<Pick<AppDeps, 'config' | 'dataSource' | 'idp'>>): ApiRoute[] {
+  return [...healthRoutes(deps), ...authRoutes(deps), ...recordRoutes(deps)];
 }
 
 /**
  * Builds the Express app without listening, so tests can drive it with supertest.
  * `/api` answers JSON (errors as problem+json); everything else is the web app.
  */
-export function createApp({ config, dataSource, log = console.error }: AppDeps): Express {
+export function createApp({ config, dataSource, log = console.error, idp = identityProvider(config.oidc) }: AppDeps): Express {
   const app = express();
   app.disable('x-powered-by');
   app.set('trust proxy', 'loopback');
@@ -40,12 +53,16 @@ export function createApp({ config, dataSource, log = console.error }: AppDeps):
   );
 
   const api = express.Router();
-  api.use(express.json({ limit: config.jsonBodyLimit }));
   api.use((_req, res, next) => {
+    // Patient data must never sit in a browser or proxy cache (nor come back with the back button).
     res.set('Cache-Control', 'no-store');
     next();
   });
-  api.use(healthRouter(dataSource));
+  api.use(requireSameOrigin(config));
+  api.use(express.json({ limit: config.jsonBodyLimit }));
+  api.use(sessionMiddleware(config, dataSource));
+  api.use(enforceSessionLimit(config));
+  api.use(routerFrom(apiRoutes({ config, dataSource, idp }), dataSource));
   api.use(apiNotFound);
   app.use('/api', api);
 
@@ -74,6 +91,6 @@ function serveWebApp(app: Express, distDir: string): void {
       res.status(503).type('text/plain').send('The web app has not been built yet. Run `npm start`.');
       return;
     }
-    res.set('Cache-Control', 'no-cache').sendFile(indexFile);
+    res.set('Cache-Control', 'no-store').sendFile(indexFile);
   });
 }

@@ -1,9 +1,22 @@
 import { z } from 'zod';
+import { isRole, type Role } from '../shared/auth/permissions';
 
 /**
  * Every setting the server reads, with a working default for local use.
  * Read once at start-up; a bad value stops the process with a message naming the variable.
  */
+/**
+ * Provider groups → Isobar roles, in order of precedence: a person in several mapped groups
+ * gets the first role listed. A real hospital supplies its own table in ROLE_MAP.
+ */
+export const defaultRoleMap: Record<string, Role> = {
+  'cardiology-physicians': 'physician',
+  'cath-lab-staff': 'staff',
+  'him-coding': 'coder',
+  'cardiology-chiefs': 'chief',
+  'isobar-administrators': 'admin',
+};
+
 const port = z.coerce.number().int().min(1).max(65535);
 
 const configSchema = z
@@ -20,6 +33,34 @@ const configSchema = z
     SESSION_SECRET: z.string().min(32, 'must be at least 32 characters').default('local-development-secret-change-me-0123456789'),
     WEB_DIST: z.string().min(1).default('dist'),
     JSON_BODY_LIMIT: z.string().regex(/^\d+(b|kb|mb)$/i, 'must look like 100kb or 1mb').default('1mb'),
+    OIDC_ISSUER: z.url().default('http://127.0.0.1:8471'),
+    OIDC_CLIENT_ID: z.string().min(1).default('isobar'),
+    OIDC_CLIENT_SECRET: z.string().min(1).default('local-development-client-secret'),
+    OIDC_SCOPE: z.string().min(1).default('openid profile email roles'),
+    ROLE_CLAIM: z.string().min(1).default('roles'),
+    ROLE_MAP: z
+      .string()
+      .default(JSON.stringify(defaultRoleMap))
+      .transform((text, ctx) => {
+        try {
+          const map = JSON.parse(text) as unknown;
+          if (!map || typeof map !== 'object' || Array.isArray(map)) throw new Error();
+          for (const [group, role] of Object.entries(map)) {
+            if (!isRole(role)) {
+              ctx.addIssue({ code: 'custom', message: `"${group}" maps to "${String(role)}", which is not a role` });
+              return z.NEVER;
+            }
+          }
+          return map as Record<string, Role>;
+        } catch {
+          ctx.addIssue({ code: 'custom', message: 'must be a JSON object of provider group → Isobar role' });
+          return z.NEVER;
+        }
+      }),
+    SESSION_IDLE_MINUTES: z.coerce.number().int().min(1).max(24 * 60).default(30),
+    SESSION_MAX_HOURS: z.coerce.number().min(0.1).max(72).default(12),
+    SIGN_IN_RATE_LIMIT: z.coerce.number().int().min(1).max(10_000).default(30),
+    ALLOWED_ORIGINS: z.string().default(''),
   })
   .superRefine((value, ctx) => {
     if (value.NODE_ENV === 'production' && value.SESSION_SECRET.startsWith('local-development-secret')) {
@@ -37,6 +78,11 @@ export interface Config {
   sessionSecret: string;
   webDist: string;
   jsonBodyLimit: string;
+  oidc: { issuer: string; clientId: string; clientSecret: string; scope: string; roleClaim: string; roleMap: Record<string, Role> };
+  session: { idleMinutes: number; maxHours: number; secure: boolean };
+  signInRateLimit: number;
+  /** Origins allowed to send state-changing requests: the public URL's, plus any listed. */
+  allowedOrigins: string[];
 }
 
 export class ConfigError extends Error {
@@ -54,15 +100,27 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
     throw new ConfigError(parsed.error.issues.map((i) => `${i.path.join('.')}: ${i.message}`));
   }
   const v = parsed.data;
+  const publicUrl = (v.PUBLIC_URL ?? `http://${v.HOST}:${v.PORT}`).replace(/\/$/, '');
   return {
     env: v.NODE_ENV,
     host: v.HOST,
     port: v.PORT,
-    publicUrl: (v.PUBLIC_URL ?? `http://${v.HOST}:${v.PORT}`).replace(/\/$/, ''),
+    publicUrl,
     databaseUrl: v.DATABASE_URL,
     databasePoolSize: v.DATABASE_POOL_SIZE,
     sessionSecret: v.SESSION_SECRET,
     webDist: v.WEB_DIST,
     jsonBodyLimit: v.JSON_BODY_LIMIT,
+    oidc: {
+      issuer: v.OIDC_ISSUER.replace(/\/$/, ''),
+      clientId: v.OIDC_CLIENT_ID,
+      clientSecret: v.OIDC_CLIENT_SECRET,
+      scope: v.OIDC_SCOPE,
+      roleClaim: v.ROLE_CLAIM,
+      roleMap: v.ROLE_MAP,
+    },
+    session: { idleMinutes: v.SESSION_IDLE_MINUTES, maxHours: v.SESSION_MAX_HOURS, secure: publicUrl.startsWith('https:') },
+    signInRateLimit: v.SIGN_IN_RATE_LIMIT,
+    allowedOrigins: [new URL(publicUrl).origin, ...v.ALLOWED_ORIGINS.split(',').map((o) => o.trim()).filter(Boolean)],
   };
 }

@@ -14,7 +14,7 @@ async function main(): Promise<void> {
     const ran = await dataSource.runMigrations({ transaction: 'each' });
     console.log(ran.length ? `migrations run: ${ran.map((m) => m.name).join(', ')}` : 'schema is up to date');
     if (process.argv.includes('--demo')) {
-      await seedDemo(dataSource, process.env.DEMO_ISSUER ?? 'demo');
+      await seedDemo(dataSource, config.oidc.issuer);
       console.log('demo scenario loaded');
     }
   } finally {

@@ -8,12 +8,12 @@ export const demoHospital = {
 };
 
 export const demoUsers = [
-  { subject: 'demo-staff', email: 'ines.varga@saltmarsh.example', displayName: 'Ines Varga, RN', role: 'staff' },
-  { subject: 'demo-physician', email: 'dr.oduya@saltmarsh.example', displayName: 'Dr. Kofi Oduya', role: 'physician' },
-  { subject: 'demo-coder', email: 'mara.linde@saltmarsh.example', displayName: 'Mara Linde, CCS', role: 'coder' },
-  { subject: 'demo-chief', email: 'dr.halvorsen@saltmarsh.example', displayName: 'Dr. Sigrid Halvorsen', role: 'chief' },
-  { subject: 'demo-admin', email: 'teo.brandt@saltmarsh.example', displayName: 'Teo Brandt', role: 'admin' },
-  { subject: 'demo-norole', email: 'visitor@saltmarsh.example', displayName: 'Pat Visitor', role: null },
+  { subject: 'demo-staff', username: 'ivarga', email: 'ines.varga@saltmarsh.example', displayName: 'Ines Varga, RN', role: 'staff', groups: ['cath-lab-staff'] },
+  { subject: 'demo-physician', username: 'koduya', email: 'dr.oduya@saltmarsh.example', displayName: 'Dr. Kofi Oduya', role: 'physician', groups: ['cardiology-physicians'] },
+  { subject: 'demo-coder', username: 'mlinde', email: 'mara.linde@saltmarsh.example', displayName: 'Mara Linde, CCS', role: 'coder', groups: ['him-coding'] },
+  { subject: 'demo-chief', username: 'shalvorsen', email: 'dr.halvorsen@saltmarsh.example', displayName: 'Dr. Sigrid Halvorsen', role: 'chief', groups: ['cardiology-chiefs'] },
+  { subject: 'demo-admin', username: 'tbrandt', email: 'teo.brandt@saltmarsh.example', displayName: 'Teo Brandt', role: 'admin', groups: ['isobar-administrators'] },
+  { subject: 'demo-norole', username: 'pvisitor', email: 'visitor@saltmarsh.example', displayName: 'Pat Visitor', role: null, groups: ['facilities'] },
 ] as const;
 
 export const demoPatients = [

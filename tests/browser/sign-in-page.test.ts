@@ -18,11 +18,13 @@ afterAll(async () => {
   await db?.destroy();
 });
 
-describe.each(Object.entries(viewports))('start page at %s width', (name, viewport) => {
+describe.each(Object.entries(viewports))('signed-out start page at %s width', (name, viewport) => {
   it('shows the product, a sign-in button, the live service state and the caution', async () => {
     const page = await browser.context.newPage();
     await page.setViewportSize(viewport);
+    // Signed out, the app's root sends the browser to the sign-in page.
     await page.goto(server.url + '/');
+    await page.waitForURL(/\/sign-in$/);
     await page.getByRole('heading', { level: 1, name: 'Isobar' }).waitFor({ state: 'visible' });
     const signIn = page.getByRole('button', { name: 'Sign in with your hospital account' });
     await signIn.waitFor();
@@ -36,7 +38,7 @@ describe.each(Object.entries(viewports))('start page at %s width', (name, viewpo
     expect(await page.evaluate(() => document.fonts.check('16px PublicSans_400Regular'))).toBe(true);
     // Nothing wider than the viewport.
     expect(await page.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(viewport.width);
-    await page.screenshot({ path: screenshotPath(`start-page-${name}`), fullPage: true });
+    await page.screenshot({ path: screenshotPath(`sign-in-page-${name}`), fullPage: true });
     await page.close();
   });
 });
@@ -48,7 +50,7 @@ describe('not-found route', () => {
     await page.getByTestId('not-found-page').waitFor();
     await expect(page.getByRole('heading', { level: 1 }).innerText()).resolves.toBe('This page does not exist');
     await page.getByTestId('not-found-home-link').click();
-    await page.getByTestId('start-page').waitFor();
+    await page.getByTestId('sign-in-page').waitFor();
     await page.close();
   });
 });

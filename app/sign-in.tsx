@@ -1,5 +1,5 @@
 import { StyleSheet, View } from 'react-native';
-import { useRouter } from 'expo-router';
+import { Redirect, useLocalSearchParams } from 'expo-router';
 import { BrandMark } from '../components/brand-mark';
 import { Button } from '../components/ui/button';
 import { Center, Content, Screen, useIsWide } from '../components/ui/layout';
@@ -7,6 +7,15 @@ import { Text } from '../components/ui/text';
 import { CautionNote } from '../components/caution-note';
 import { ServiceStatus } from '../components/service-status';
 import { color, radius, space } from '../components/theme';
+import { startSignIn, useMeQuery } from '../components/data/me-query';
+
+/** What went wrong, in words, for each reason the server may send back here. */
+const signInErrors: Record<string, string> = {
+  expired: 'The sign-in took too long or was started in another tab. Please sign in again.',
+  failed: 'The hospital sign-in could not be completed. Please try again.',
+  'provider-refused': 'The hospital sign-in service declined the request. Please try again.',
+  'provider-unavailable': 'The hospital sign-in service is not answering. Try again in a moment, or call the service desk.',
+};
 
 const steps = [
   { title: 'Record', body: 'Pressures, transit times and drug doses, entered at the table on a phone or a workstation.' },
@@ -15,12 +24,17 @@ const steps = [
   { title: 'Code and deliver', body: 'Suggested procedure and diagnosis codes for the coder; the signed report sent to the EHR.' },
 ];
 
-/** Signed-out start page. */
-export default function StartPage() {
-  const router = useRouter();
+/** Signed-out start page: the product, the sign-in button, the service state. */
+export default function SignInPage() {
   const wide = useIsWide();
+  const params = useLocalSearchParams<{ error?: string; signedOut?: string; returnTo?: string }>();
+  const me = useMeQuery();
+  if (me.data) {
+    return <Redirect href={(params.returnTo?.startsWith('/') && !params.returnTo.startsWith('//') ? params.returnTo : (me.data.home ?? '/')) as '/'} />;
+  }
+  const message = params.error ? (signInErrors[params.error] ?? signInErrors.failed) : null;
   return (
-    <Screen testID="start-page">
+    <Screen testID="sign-in-page">
       <Content style={styles.content}>
         <Center style={[styles.columns, wide && styles.columnsWide]}>
           <View style={[styles.intro, wide && styles.introWide]}>
@@ -36,11 +50,22 @@ export default function StartPage() {
             <Text tone="muted" style={styles.body}>
               For the catheterization lab team, the reading cardiologist, the coders and the department chief.
             </Text>
+            {message ? (
+              <View style={styles.alert} role="alert" testID="sign-in-error">
+                <Text tone="abnormal" weight="medium">
+                  {message}
+                </Text>
+              </View>
+            ) : params.signedOut ? (
+              <View style={styles.notice} role="status" testID="signed-out-notice">
+                <Text weight="medium">You have signed out.</Text>
+              </View>
+            ) : null}
             <Button
               testID="sign-in-button"
               label="Sign in"
               accessibilityLabel="Sign in with your hospital account"
-              onPress={() => router.push('/sign-in')}
+              onPress={() => startSignIn(params.returnTo)}
               style={styles.signIn}
             />
             <ServiceStatus />
@@ -81,6 +106,8 @@ const styles = StyleSheet.create({
   tagline: { marginTop: space.sm },
   body: { maxWidth: 480 },
   signIn: { alignSelf: 'stretch', marginTop: space.lg, maxWidth: 360 },
+  alert: { backgroundColor: color.abnormalSoft, borderRadius: radius.md, padding: space.md, maxWidth: 480, marginTop: space.sm },
+  notice: { backgroundColor: color.normalSoft, borderRadius: radius.md, padding: space.md, maxWidth: 480, marginTop: space.sm },
   steps: {
     backgroundColor: color.surface,
     borderRadius: radius.lg,

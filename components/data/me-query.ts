@@ -1,0 +1,43 @@
+import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
+import type { Permission, Role } from '../../shared/auth/permissions';
+import { apiFetch, ApiError } from './api';
+
+export interface Me {
+  id: string;
+  displayName: string;
+  email: string;
+  role: Role | null;
+  permissions: Permission[];
+  home: string | null;
+  sessionExpiresAt: string;
+}
+
+export const meKeys = { all: ['me'] as const };
+
+/** The signed-in user; a 401 means signed out (not an error worth retrying). */
+export function useMeQuery() {
+  return useQuery({
+    queryKey: meKeys.all,
+    queryFn: () => apiFetch<Me>('/me'),
+    retry: (count, error) => !(error instanceof ApiError && (error.status === 401 || error.status === 403)) && count < 2,
+    staleTime: 60_000,
+  });
+}
+
+/** Ends the session at Isobar, forgets every cached record, then lets the provider end its session. */
+export function useSignOut() {
+  const queryClient = useQueryClient();
+  return useMutation({
+    mutationFn: () => apiFetch<{ redirect: string }>('/auth/sign-out', { method: 'POST' }),
+    onSuccess: ({ redirect }) => {
+      queryClient.clear();
+      if (typeof window !== 'undefined') window.location.replace(redirect);
+    },
+  });
+}
+
+/** Full-page navigation to the server's sign-in route (it redirects to the identity provider). */
+export function startSignIn(returnTo?: string) {
+  const query = returnTo && returnTo !== '/' ? `?returnTo=${encodeURIComponent(returnTo)}` : '';
+  if (typeof window !== 'undefined') window.location.assign(`/api/auth/sign-in${query}`);
+}

@@ -1,0 +1,65 @@
+import { useQuery } from '@tanstack/react-query';
+import { apiFetch } from './api';
+
+export interface StudySummary {
+  id: string;
+  accession: string;
+  state: 'draft' | 'awaiting-signature' | 'signed' | 'amended';
+  procedureEndedAt: string | null;
+  indication: string | null;
+  operatorName: string | null;
+  version: number;
+  patient: { mrn: string; familyName: string; givenName: string; birthDate: string; sex: string };
+}
+
+export interface WaitingStudy extends StudySummary {
+  hoursWaiting: number;
+  overdue: boolean;
+}
+
+export interface UserSummary {
+  id: string;
+  displayName: string;
+  email: string;
+  role: string | null;
+  lastSignInAt: string | null;
+}
+
+export const recordKeys = {
+  worklist: ['studies', 'list'] as const,
+  codingQueue: ['coding', 'queue'] as const,
+  awaitingSignature: ['turnaround', 'awaiting-signature'] as const,
+  users: ['admin', 'users'] as const,
+  audit: ['audit-events'] as const,
+};
+
+export const useWorklistQuery = () =>
+  useQuery({ queryKey: recordKeys.worklist, queryFn: () => apiFetch<{ items: StudySummary[] }>('/studies') });
+
+export const useCodingQueueQuery = () =>
+  useQuery({ queryKey: recordKeys.codingQueue, queryFn: () => apiFetch<{ items: StudySummary[] }>('/coding/queue') });
+
+export const useAwaitingSignatureQuery = () =>
+  useQuery({
+    queryKey: recordKeys.awaitingSignature,
+    queryFn: () => apiFetch<{ targetHours: number; items: WaitingStudy[] }>('/turnaround/awaiting-signature'),
+  });
+
+export const useUsersQuery = () => useQuery({ queryKey: recordKeys.users, queryFn: () => apiFetch<{ items: UserSummary[] }>('/admin/users') });
+
+export interface AuditEventResource {
+  id: string;
+  recorded: string;
+  action: string;
+  outcome: string;
+  outcomeDesc?: string;
+  type: { display?: string };
+  agent: { who?: { display?: string }; role?: { text?: string }[]; network?: { address?: string } }[];
+  entity?: { what?: { display?: string; identifier?: { value?: string } } }[];
+}
+
+export const useAuditEventsQuery = () =>
+  useQuery({
+    queryKey: recordKeys.audit,
+    queryFn: () => apiFetch<{ entry?: { resource: AuditEventResource }[] }>('/audit-events?limit=100'),
+  });

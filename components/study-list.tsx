@@ -1,0 +1,57 @@
+import type { ReactNode } from 'react';
+import { StyleSheet, View } from 'react-native';
+import { Text } from './ui/text';
+import { useIsWide } from './ui/layout';
+import { StudyStateChip } from './study-state-chip';
+import { formatDateTime, patientName } from './format';
+import { color, radius, space } from './theme';
+import type { StudySummary } from './data/records-query';
+
+/** Studies as rows: patient first (what the team looks for), then accession, state and time. */
+export function StudyList<T extends StudySummary>({ studies, aside, testID }: { studies: T[]; aside?: (s: T) => ReactNode; testID: string }) {
+  const wide = useIsWide();
+  return (
+    <View style={styles.list} testID={testID} role="list">
+      {studies.map((s, i) => (
+        <View key={s.id} role="listitem" testID={`study-row-${s.accession}`} style={[styles.row, wide && styles.rowWide, i > 0 && styles.divider]}>
+          <View style={[styles.who, wide && styles.whoWide]}>
+            <Text weight="semibold">{patientName(s.patient)}</Text>
+            <Text variant="caption" tone="muted">
+              MRN {s.patient.mrn} · born {s.patient.birthDate}
+            </Text>
+          </View>
+          <View style={[styles.what, wide && styles.whatWide]}>
+            <Text variant="caption" weight="medium">
+              {s.accession}
+            </Text>
+            <Text variant="caption" tone="muted" numberOfLines={wide ? 1 : 2}>
+              {s.indication ?? 'No indication recorded'}
+            </Text>
+          </View>
+          <View style={[styles.when, wide && styles.whenWide]}>
+            <StudyStateChip state={s.state} />
+            <Text variant="caption" tone="muted">
+              Ended {formatDateTime(s.procedureEndedAt)}
+              {s.operatorName ? ` · ${s.operatorName}` : ''}
+            </Text>
+          </View>
+          {aside ? <View style={styles.aside}>{aside(s)}</View> : null}
+        </View>
+      ))}
+    </View>
+  );
+}
+
+const styles = StyleSheet.create({
+  list: { backgroundColor: color.surface, borderRadius: radius.lg, borderWidth: 1, borderColor: color.line, overflow: 'hidden' },
+  row: { padding: space.lg, gap: space.sm },
+  rowWide: { flexDirection: 'row', alignItems: 'center', gap: space.xl },
+  divider: { borderTopWidth: 1, borderTopColor: color.line },
+  who: { gap: space.xxs },
+  whoWide: { flex: 1.2 },
+  what: { gap: space.xxs },
+  whatWide: { flex: 1.6 },
+  when: { gap: space.xs },
+  whenWide: { flex: 1.2 },
+  aside: { alignItems: 'flex-start' },
+});

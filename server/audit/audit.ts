@@ -1,0 +1,73 @@
+import type { Request } from 'express';
+import type { DataSource, EntityManager } from 'typeorm';
+
+export type AuditOutcome = 'success' | 'failure' | 'denied';
+
+/** What happened; kebab-case verbs naming the act, not the route. */
+export type AuditAction =
+  | 'sign-in'
+  | 'sign-in-failed'
+  | 'sign-out'
+  | 'access-denied'
+  | 'read'
+  | 'search'
+  | 'create'
+  | 'update'
+  | 'delete'
+  | 'export';
+
+export interface AuditEntry {
+  actorUserId?: string | null;
+  actorName?: string | null;
+  actorRole?: string | null;
+  action: AuditAction;
+  entityType?: string | null;
+  entityId?: string | null;
+  clientAddress?: string | null;
+  outcome: AuditOutcome;
+  detail?: Record<string, unknown> | null;
+}
+
+export interface AuditRow {
+  id: string;
+  recorded_at: Date;
+  actor_user_id: string | null;
+  actor_name: string | null;
+  actor_role: string | null;
+  action: AuditAction;
+  entity_type: string | null;
+  entity_id: string | null;
+  client_address: string | null;
+  outcome: AuditOutcome;
+  detail: Record<string, unknown> | null;
+}
+
+/** Appends one event. Pass the transaction's manager when the event belongs to a change. */
+export async function recordAudit(db: DataSource | EntityManager, entry: AuditEntry): Promise<void> {
+  await db.query(
+    `INSERT INTO audit_event (actor_user_id, actor_name, actor_role, action, entity_type, entity_id, client_address, outcome, detail)
+     VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9)`,
+    [
+      entry.actorUserId ?? null,
+      entry.actorName ?? null,
+      entry.actorRole ?? null,
+      entry.action,
+      entry.entityType ?? null,
+      entry.entityId ?? null,
+      entry.clientAddress ?? null,
+      entry.outcome,
+      entry.detail ? JSON.stringify(entry.detail) : null,
+    ],
+  );
+}
+
+/** The actor and address of the current request, for an audit entry. */
+export function auditContext(req: Request): Pick<AuditEntry, 'actorUserId' | 'actorName' | 'actorRole' | 'clientAddress'> {
+  const auth = req.session?.auth;
+  return {
+    actorUserId: auth?.userId ?? null,
+    actorName: auth?.displayName ?? null,
+    actorRole: auth?.role ?? null,
+    clientAddress: req.ip ?? null,
+  };
+}

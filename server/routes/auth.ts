@@ -1,0 +1,163 @@
+import rateLimit from 'express-rate-limit';
+import type { Request, RequestHandler } from 'express';
+import type { DataSource } from 'typeorm';
+import type { Config } from '../config';
+import { homeOf, permissionsOf } from '../../shared/auth/permissions';
+import { auditContext, recordAudit } from '../audit/audit';
+import { mapRole, pkce, type IdentityProvider } from '../auth/oidc';
+import { destroySession, regenerateSession, saveSession, sessionCookieName } from '../auth/session';
+import type { ApiRoute } from '../http/routes';
+import { HttpError } from '../http/problem';
+
+/** Only same-site paths may be returned to after sign-in (no open redirects). */
+export function safeReturnPath(value: unknown): string | null {
+  if (typeof value !== 'string' || !value.startsWith('/') || value.startsWith('//') || value.startsWith('/\\')) return null;
+  if (value.startsWith('/api/')) return null;
+  return value.slice(0, 500);
+}
+
+const pendingTtlMs = 10 * 60_000;
+
+export function authRoutes(deps: { config: Config; dataSource: DataSource; idp: IdentityProvider }): ApiRoute[] {
+  const { config, dataSource, idp } = deps;
+  const callbackUrl = `${config.publicUrl}/api/auth/callback`;
+  const limiter: RequestHandler = rateLimit({
+    windowMs: 60_000,
+    limit: config.signInRateLimit,
+    standardHeaders: 'draft-8',
+    legacyHeaders: false,
+    handler: (_req, _res, next) =>
+      next(new HttpError(429, 'too-many-sign-in-attempts', 'Too many sign-in attempts', 'Wait a minute, then try again.')),
+  });
+
+  const failSignIn = async (req: Request, reason: string, detail?: Record<string, unknown>) => {
+    await recordAudit(dataSource, { ...auditContext(req), action: 'sign-in-failed', outcome: 'failure', detail: { reason, ...detail } });
+  };
+
+  return [
+    {
+      method: 'get',
+      path: '/auth/sign-in',
+      access: 'public',
+      summary: 'Start the authorization code flow with PKCE at the identity provider',
+      handlers: [
+        limiter,
+        async (req, res) => {
+          const codeVerifier = pkce.verifier();
+          const pending = {
+            state: pkce.state(),
+            nonce: pkce.nonce(),
+            codeVerifier,
+            returnTo: safeReturnPath(req.query.returnTo),
+            startedAt: Date.now(),
+          };
+          let url: URL;
+          try {
+            url = await idp.authorizationUrl({
+              redirectUri: callbackUrl,
+              state: pending.state,
+              nonce: pending.nonce,
+              codeChallenge: await pkce.challenge(codeVerifier),
+            });
+          } catch {
+            res.redirect(303, '/sign-in?error=provider-unavailable');
+            return;
+          }
+          req.session.pending = pending;
+          await saveSession(req.session);
+          res.redirect(303, url.href);
+        },
+      ],
+    },
+    {
+      method: 'get',
+      path: '/auth/callback',
+      access: 'public',
+      summary: 'Finish sign-in: exchange the code, provision the user, rotate the session',
+      handlers: [
+        limiter,
+        async (req, res) => {
+          const pending = req.session.pending;
+          if (typeof req.query.error === 'string') {
+            await failSignIn(req, 'provider-error', { error: req.query.error });
+            res.redirect(303, '/sign-in?error=provider-refused');
+            return;
+          }
+          if (!pending || Date.now() - pending.startedAt > pendingTtlMs) {
+            await failSignIn(req, 'no-pending-sign-in');
+            res.redirect(303, '/sign-in?error=expired');
+            return;
+          }
+          let claims: Record<string, unknown>;
+          let idToken: string | undefined;
+          try {
+            ({ claims, idToken } = await idp.exchange(new URL(req.originalUrl, config.publicUrl), pending));
+          } catch (error) {
+            await failSignIn(req, 'token-exchange-failed', { message: error instanceof Error ? error.message : String(error) });
+            res.redirect(303, '/sign-in?error=failed');
+            return;
+          }
+          const subject = String(claims.sub);
+          const role = mapRole(claims[config.oidc.roleClaim], config.oidc.roleMap);
+          const email = typeof claims.email === 'string' ? claims.email : '';
+          const displayName = typeof claims.name === 'string' && claims.name ? claims.name : email || subject;
+          const [user] = await dataSource.query(
+            `INSERT INTO app_user (issuer, subject, email, display_name, role, last_sign_in_at)
+             VALUES ($1, $2, $3, $4, $5, now())
+             ON CONFLICT (issuer, subject) DO UPDATE
+               SET email = EXCLUDED.email, display_name = EXCLUDED.display_name, role = EXCLUDED.role,
+                   last_sign_in_at = now(), updated_at = now()
+             RETURNING id`,
+            [idp.issuer, subject, email, displayName, role],
+          );
+          // A new session id at sign-in: an id planted before sign-in is worth nothing after it.
+          await regenerateSession(req.session);
+          req.session.auth = { userId: user.id, subject, displayName, email, role, idToken, signedInAt: Date.now() };
+          await saveSession(req.session);
+          await recordAudit(dataSource, { ...auditContext(req), action: 'sign-in', entityType: 'user', entityId: user.id, outcome: 'success' });
+          res.redirect(303, pending.returnTo ?? (role ? homeOf[role] : '/'));
+        },
+      ],
+    },
+    {
+      method: 'post',
+      path: '/auth/sign-out',
+      access: 'public',
+      summary: 'End the session here, and tell the client where to end it at the provider',
+      handlers: [
+        async (req, res) => {
+          const auth = req.session?.auth;
+          let redirect = '/sign-in?signedOut=1';
+          if (auth) {
+            await recordAudit(dataSource, { ...auditContext(req), action: 'sign-out', entityType: 'user', entityId: auth.userId, outcome: 'success' });
+            const end = await idp.endSessionUrl({ idToken: auth.idToken, postLogoutRedirectUri: `${config.publicUrl}/sign-in?signedOut=1` });
+            if (end) redirect = end.href;
+          }
+          if (req.session) await destroySession(req.session);
+          res.clearCookie(sessionCookieName, { path: '/', httpOnly: true, sameSite: 'lax', secure: config.session.secure });
+          res.json({ redirect });
+        },
+      ],
+    },
+    {
+      method: 'get',
+      path: '/me',
+      access: 'signed-in',
+      summary: 'The signed-in user, their role and what it permits',
+      handlers: [
+        (req, res) => {
+          const auth = req.session.auth!;
+          res.json({
+            id: auth.userId,
+            displayName: auth.displayName,
+            email: auth.email,
+            role: auth.role,
+            permissions: permissionsOf(auth.role),
+            home: auth.role ? homeOf[auth.role] : null,
+            sessionExpiresAt: new Date(auth.signedInAt + config.session.maxHours * 3_600_000).toISOString(),
+          });
+        },
+      ],
+    },
+  ];
+}

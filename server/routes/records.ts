@@ -1,0 +1,170 @@
+import type { DataSource } from 'typeorm';
+import { toFhirAuditEvent } from '../../fhir/audit-event';
+import { auditContext, recordAudit, type AuditRow } from '../audit/audit';
+import { NotFoundError } from '../http/problem';
+import type { ApiRoute } from '../http/routes';
+import { defaultSignatureTargetHours, waitingSince } from '../../shared/turnaround/overdue';
+
+const uuidPattern = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
+
+interface StudyRow {
+  id: string;
+  accession: string;
+  state: string;
+  procedure_ended_at: Date | null;
+  indication: string | null;
+  version: number;
+  mrn: string;
+  family_name: string;
+  given_name: string;
+  birth_date: string;
+  sex: string;
+  operator_name: string | null;
+}
+
+const studySelect = `
+  SELECT s.id, s.accession, s.state, s.procedure_ended_at, s.indication, s.version,
+         p.mrn, p.family_name, p.given_name, to_char(p.birth_date, 'YYYY-MM-DD') AS birth_date, p.sex,
+         u.display_name AS operator_name
+  FROM study s JOIN patient p ON p.id = s.patient_id LEFT JOIN app_user u ON u.id = s.operator_id`;
+
+function studySummary(row: StudyRow) {
+  return {
+    id: row.id,
+    accession: row.accession,
+    state: row.state,
+    procedureEndedAt: row.procedure_ended_at?.toISOString() ?? null,
+    indication: row.indication,
+    operatorName: row.operator_name,
+    version: row.version,
+    patient: { mrn: row.mrn, familyName: row.family_name, givenName: row.given_name, birthDate: row.birth_date, sex: row.sex },
+  };
+}
+
+/** Reads of studies, the coding queue, overdue studies, users and the audit trail. Every read is audited. */
+export function recordRoutes({ dataSource }: { dataSource: DataSource }): ApiRoute[] {
+  return [
+    {
+      method: 'get',
+      path: '/studies',
+      access: 'study:read',
+      summary: 'Worklist: recent studies, newest procedure first',
+      handlers: [
+        async (req, res) => {
+          const rows: StudyRow[] = await dataSource.query(`${studySelect} ORDER BY s.procedure_ended_at DESC NULLS FIRST, s.id LIMIT 50`);
+          await recordAudit(dataSource, { ...auditContext(req), action: 'search', entityType: 'study', outcome: 'success', detail: { returned: rows.length } });
+          res.json({ items: rows.map(studySummary), nextCursor: null });
+        },
+      ],
+    },
+    {
+      method: 'get',
+      path: '/studies/:id',
+      access: 'study:read',
+      summary: 'One study with its patient',
+      handlers: [
+        async (req, res) => {
+          const id = String(req.params.id);
+          const [row]: StudyRow[] = uuidPattern.test(id) ? await dataSource.query(`${studySelect} WHERE s.id = $1`, [id]) : [];
+          if (!row) throw new NotFoundError('No study has this id.');
+          await recordAudit(dataSource, { ...auditContext(req), action: 'read', entityType: 'study', entityId: row.id, outcome: 'success' });
+          res.json(studySummary(row));
+        },
+      ],
+    },
+    {
+      method: 'get',
+      path: '/coding/queue',
+      access: 'coding:read',
+      summary: 'Signed studies waiting for code review, oldest first',
+      handlers: [
+        async (req, res) => {
+          const rows: StudyRow[] = await dataSource.query(
+            `${studySelect} WHERE s.state IN ('signed', 'amended') ORDER BY s.procedure_ended_at ASC NULLS LAST, s.id LIMIT 100`,
+          );
+          await recordAudit(dataSource, { ...auditContext(req), action: 'search', entityType: 'study', outcome: 'success', detail: { queue: 'coding', returned: rows.length } });
+          res.json({ items: rows.map(studySummary) });
+        },
+      ],
+    },
+    {
+      method: 'get',
+      path: '/turnaround/awaiting-signature',
+      access: 'turnaround:read',
+      summary: 'Studies not yet signed, with hours since the procedure ended against the target',
+      handlers: [
+        async (req, res) => {
+          const now = new Date();
+          const rows: StudyRow[] = await dataSource.query(
+            `${studySelect} WHERE s.state IN ('draft', 'awaiting-signature') AND s.procedure_ended_at IS NOT NULL
+             ORDER BY s.procedure_ended_at ASC, s.id LIMIT 200`,
+          );
+          await recordAudit(dataSource, { ...auditContext(req), action: 'search', entityType: 'study', outcome: 'success', detail: { view: 'awaiting-signature', returned: rows.length } });
+          res.json({
+            targetHours: defaultSignatureTargetHours,
+            items: rows.map((row) => ({ ...studySummary(row), ...waitingSince(row.procedure_ended_at!, now) })),
+          });
+        },
+      ],
+    },
+    {
+      method: 'get',
+      path: '/admin/users',
+      access: 'admin:manage',
+      summary: 'Everyone who has an account, with their role',
+      handlers: [
+        async (req, res) => {
+          const rows = await dataSource.query(
+            `SELECT id, display_name, email, role, last_sign_in_at FROM app_user ORDER BY display_name, id`,
+          );
+          await recordAudit(dataSource, { ...auditContext(req), action: 'search', entityType: 'user', outcome: 'success', detail: { returned: rows.length } });
+          res.json({
+            items: rows.map((u: { id: string; display_name: string; email: string; role: string | null; last_sign_in_at: Date | null }) => ({
+              id: u.id,
+              displayName: u.display_name,
+              email: u.email,
+              role: u.role,
+              lastSignInAt: u.last_sign_in_at?.toISOString() ?? null,
+            })),
+          });
+        },
+      ],
+    },
+    {
+      method: 'get',
+      path: '/audit-events',
+      access: 'audit:read',
+      summary: 'The newest audit events as FHIR R4 AuditEvent resources (a searchset Bundle)',
+      handlers: [
+        async (req, res) => {
+          const limit = Math.min(500, Math.max(1, Number(req.query.limit) || 100));
+          const rows: AuditRow[] = await dataSource.query(
+            `SELECT id::text, recorded_at, actor_user_id, actor_name, actor_role, action, entity_type, entity_id, client_address, outcome, detail
+             FROM audit_event ORDER BY id DESC LIMIT $1`,
+            [limit],
+          );
+          await recordAudit(dataSource, { ...auditContext(req), action: 'export', entityType: 'audit-event', outcome: 'success', detail: { returned: rows.length } });
+          res.json({
+            resourceType: 'Bundle',
+            type: 'searchset',
+            total: rows.length,
+            entry: rows.map((r) => ({
+              resource: toFhirAuditEvent({
+                id: r.id,
+                recordedAt: r.recorded_at,
+                actorUserId: r.actor_user_id,
+                actorName: r.actor_name,
+                actorRole: r.actor_role,
+                action: r.action,
+                entityType: r.entity_type,
+                entityId: r.entity_id,
+                clientAddress: r.client_address,
+                outcome: r.outcome,
+              }),
+            })),
+          });
+        },
+      ],
+    },
+  ];
+}

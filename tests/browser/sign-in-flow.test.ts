@@ -1,0 +1,98 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { Page } from 'playwright-core';
+import type { DataSource } from 'typeorm';
+import { homeOf, roleLabel, type Role } from '../../shared/auth/permissions';
+import { demoUsers } from '../../server/demo/scenario';
+import { launchBrowser, screenshotPath, viewports } from '../support/browser';
+import { openTestDatabase } from '../support/app';
+import { createStudy } from '../support/factories';
+import { startStack, usernameOf, type TestStack } from '../support/stack';
+
+let db: DataSource;
+let stack: TestStack;
+let browser: Awaited<ReturnType<typeof launchBrowser>>;
+let study: Awaited<ReturnType<typeof createStudy>>;
+
+beforeAll(async () => {
+  db = await openTestDatabase();
+  stack = await startStack(db);
+  browser = await launchBrowser();
+  study = await createStudy(db, { state: 'awaiting-signature', endedHoursAgo: 30 });
+});
+afterAll(async () => {
+  await browser?.close();
+  await stack?.close();
+  await db?.destroy();
+});
+
+async function signInThroughBrowser(page: Page, username: string) {
+  await page.goto(stack.url + '/');
+  await page.waitForURL(/\/sign-in/);
+  await page.getByRole('button', { name: 'Sign in with your hospital account' }).click();
+  await page.waitForURL((url) => url.href.startsWith(stack.idp.issuer));
+  await page.getByTestId('idp-username').fill(username);
+  await page.getByTestId('idp-password').fill('demo');
+  await page.getByTestId('idp-submit').click();
+  await page.waitForURL((url) => url.href.startsWith(stack.url) && !url.pathname.startsWith('/sign-in') && !url.pathname.startsWith('/api'));
+}
+
+const pageOf: Record<Role, string> = { staff: 'Worklist', physician: 'Worklist', coder: 'Coding queue', chief: 'Turnaround', admin: 'Administration' };
+
+describe('signing in from the browser', () => {
+  it.each(Object.keys(pageOf) as Role[])('lands the %s user on their own page', async (role) => {
+    const context = await browser.context.browser()!.newContext();
+    const page = await context.newPage();
+    await page.setViewportSize(viewports.phone);
+    try {
+      await signInThroughBrowser(page, usernameOf(role));
+      expect(new URL(page.url()).pathname).toBe(homeOf[role]);
+      await page.getByRole('heading', { level: 1, name: pageOf[role] }).waitFor();
+      await expect(page.getByTestId('signed-in-role').last().innerText()).resolves.toBe(roleLabel[role]);
+      await page.screenshot({ path: screenshotPath(`home-${role}-phone`) });
+    } finally {
+      await context.close();
+    }
+  });
+
+  it('shows the no-access page to a user with no role', async () => {
+    const context = await browser.context.browser()!.newContext();
+    const page = await context.newPage();
+    try {
+      await signInThroughBrowser(page, usernameOf(null));
+      await page.getByTestId('no-access-page').waitFor();
+      await expect(page.getByRole('heading', { level: 1 }).innerText()).resolves.toBe('No access to Isobar yet');
+      await expect(page.getByTestId('no-access-page').innerText()).resolves.toContain(demoUsers.find((u) => u.role === null)!.displayName);
+      await page.screenshot({ path: screenshotPath('no-access-phone') });
+    } finally {
+      await context.close();
+    }
+  });
+
+  it('signs out, and the back button shows no patient data afterwards', async () => {
+    const context = await browser.context.browser()!.newContext();
+    const page = await context.newPage();
+    await page.setViewportSize(viewports.desktop);
+    try {
+      await signInThroughBrowser(page, usernameOf('staff'));
+      const row = page.getByTestId(`study-row-${study.accession}`);
+      await row.waitFor();
+      await expect(row.innerText()).resolves.toContain(study.patient.mrn);
+      await page.screenshot({ path: screenshotPath('worklist-staff-desktop') });
+      await page.getByTestId('sign-out-button').click();
+      await page.waitForURL((url) => url.href.startsWith(stack.url) && url.pathname === '/sign-in');
+      await page.getByTestId('signed-out-notice').waitFor();
+      await page.goBack();
+      await page.waitForLoadState('load');
+      await page.goBack().catch(() => undefined);
+      await page.waitForLoadState('load');
+      await page.waitForTimeout(500);
+      const text = await page.evaluate(() => document.body.innerText);
+      expect(text).not.toContain(study.patient.mrn);
+      // And the session is gone at the server as well.
+      const me = await page.evaluate(async () => (await fetch('/api/me')).status).catch(() => 401);
+      expect(me).toBe(401);
+    } finally {
+      await context.close();
+    }
+  });
+});
