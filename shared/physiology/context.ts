@@ -1,0 +1,85 @@
+import { cutPlain, cutRatio } from './format';
+import { cite, defaultThresholds, resolveThresholds, type ThresholdKey, type Thresholds } from './thresholds';
+
+/**
+ * The thresholds of one analysis with the fixed parts of the reason sentences (cut-off and source),
+ * built once per set of thresholds rather than once per vessel.
+ */
+export interface Ctx {
+  t: Thresholds;
+  /** Sentence tails, each following a vessel label and a value. */
+  ffrAbnormal: string;
+  ffrGreyZone: string;
+  ffrCut: string;
+  restAbnormal: Record<'restingPdPa' | 'nhprWholeCycle' | 'nhprDiastolic' | 'nhprFullCycleMinimum', string>;
+  imrAbnormal: string;
+  imrAbnormalObstructed: string;
+  cfrAbnormal: string;
+  cfrAbnormalObstructed: string;
+  cfrBorderline: string;
+  rrrAbnormal: string;
+  mrrAbnormal: string;
+}
+
+const OBSTRUCTED = ' — in a vessel with an obstructive stenosis, so not used for the microvascular finding.';
+
+function build(t: Thresholds): Ctx {
+  const rest = (key: ThresholdKey) =>
+    ` is at or below the ${cutRatio(t[key])} cut-off (${cite(t, key)}) with no FFR measured — a haemodynamically significant stenosis.`;
+  const imr = ` is at or above the ${cutPlain(t.imr)} cut-off (${cite(t, 'imr')})`;
+  const cfr = ` is below the ${cutRatio(t.cfr)} cut-off (${cite(t, 'cfr')})`;
+  return {
+    t,
+    ffrAbnormal: ` is at or below the ${cutRatio(t.ffr)} cut-off (${cite(t, 'ffr')}) — a haemodynamically significant stenosis.`,
+    ffrGreyZone: ` lies in the ${cutRatio(t.ffrGreyZoneLow)}–${cutRatio(t.ffr)} grey zone (${cite(t, 'ffrGreyZoneLow')}); the flag stays abnormal — weigh it with the clinical picture.`,
+    ffrCut: cutRatio(t.ffr),
+    restAbnormal: {
+      restingPdPa: rest('restingPdPa'),
+      nhprWholeCycle: rest('nhprWholeCycle'),
+      nhprDiastolic: rest('nhprDiastolic'),
+      nhprFullCycleMinimum: rest('nhprFullCycleMinimum'),
+    },
+    imrAbnormal: `${imr} — raised microvascular resistance (structural microvascular dysfunction).`,
+    imrAbnormalObstructed: imr + OBSTRUCTED,
+    cfrAbnormal: `${cfr} — impaired coronary flow reserve.`,
+    cfrAbnormalObstructed: cfr + OBSTRUCTED,
+    cfrBorderline: ` is in the borderline band ${cutRatio(t.cfr)}–${cutRatio(t.cfrBorderline)} (${cite(t, 'cfr')} uses ${cutRatio(t.cfr)}, ${cite(t, 'cfrBorderline')} uses ${cutRatio(t.cfrBorderline)}) — not enough on its own for microvascular dysfunction.`,
+    rrrAbnormal: ` is below the ${cutRatio(t.rrr)} cut-off (${cite(t, 'rrr')}) — reduced resistive reserve.`,
+    mrrAbnormal: ` is below the ${cutRatio(t.mrr)} cut-off (${cite(t, 'mrr')}) — reduced microvascular resistance reserve.`,
+  };
+}
+
+let defaultCtx: Ctx | undefined;
+let lastPartial: Partial<Thresholds> | undefined;
+let lastCtx: Ctx | undefined;
+
+function sameSettings(a: Partial<Thresholds>, b: Partial<Thresholds>): boolean {
+  let na = 0;
+  for (const k in a) {
+    if (a[k as ThresholdKey] !== b[k as ThresholdKey]) return false;
+    na++;
+  }
+  let nb = 0;
+  for (const _ in b) nb++;
+  return na === nb;
+}
+
+/** The context for the lab's (validated) partial settings; cached for the defaults and the last settings. */
+export function contextFor(partial: Partial<Thresholds> | undefined): Ctx {
+  let empty = true;
+  if (partial !== undefined) {
+    for (const k in partial) {
+      if (partial[k as ThresholdKey] !== undefined && partial[k as ThresholdKey] !== defaultThresholds[k as ThresholdKey]) {
+        empty = false;
+        break;
+      }
+    }
+  }
+  if (empty) return (defaultCtx ??= build(defaultThresholds as Thresholds));
+  const p = partial as Partial<Thresholds>;
+  if (lastPartial !== undefined && lastCtx !== undefined && sameSettings(lastPartial, p)) return lastCtx;
+  const ctx = build(resolveThresholds(p));
+  lastPartial = { ...p };
+  lastCtx = ctx;
+  return ctx;
+}

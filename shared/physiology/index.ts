@@ -1,0 +1,38 @@
+import { isCertainlyValid } from './fastpath';
+import { physiologyInputSchema, type PhysiologyInput } from './schema';
+import { analyzeValidated } from './study';
+import type { PhysiologyResult } from './types';
+
+export { physiologyInputSchema, vesselCodes, nhprKinds } from './schema';
+export type { PhysiologyInput, PhysiologyOutput, VesselCode, NhprKind, VesselInput, DoseInput } from './schema';
+export {
+  defaultThresholds,
+  thresholdSources,
+  thresholdCitations,
+  thresholdsSchema,
+  resolveThresholds,
+} from './thresholds';
+export type { Thresholds, ThresholdKey } from './thresholds';
+export type {
+  Flag,
+  PhysiologyResult,
+  VesselResult,
+  VasoreactivityResult,
+  VasoreactivityOutcome,
+  PhysiologyWarning,
+  Findings,
+  Endotype,
+  ImrMethod,
+} from './types';
+export { classifyDose } from './vasoreactivity';
+
+/**
+ * Analyse a physiology study: per-vessel indices, flags and quality warnings; the acetylcholine
+ * result; study findings and endotype, with one reason sentence per rule that fired.
+ * Throws the `ZodError` from `physiologyInputSchema.parse` on bad input.
+ */
+export function analyzeStudy(input: PhysiologyInput): PhysiologyResult {
+  // Well-formed input skips the schema's copying parse; anything else is decided by the schema.
+  const data = isCertainlyValid(input) ? input : physiologyInputSchema.parse(input);
+  return analyzeValidated(data);
+}

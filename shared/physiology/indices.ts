@@ -1,0 +1,190 @@
+import { above, atOrAbove, atOrBelow, below } from './compare';
+import type { VesselInput } from './schema';
+import type { Thresholds } from './thresholds';
+import type { Flag, PhysiologyWarning, VesselResult } from './types';
+import { ratio } from './format';
+import {
+  checkDrift,
+  checkImplausible,
+  checkInjections,
+  checkMissingSide,
+  checkPdAbovePa,
+} from './quality';
+
+/** Entered FFR and pressure-derived FFR may differ by this much before a warning. [practice] */
+export const FFR_MISMATCH_TOLERANCE = 0.02;
+
+/** Yong correction: IMR = Pa × Tmn × (1.35 × Pd/Pa − 0.32). */
+const YONG_SLOPE = 1.35;
+const YONG_INTERCEPT = 0.32;
+
+const nhprKindName = {
+  'whole-cycle': 'whole-cycle resting ratio',
+  diastolic: 'diastolic resting ratio',
+  'full-cycle-minimum': 'full-cycle minimum resting ratio',
+} as const;
+
+export function nhprName(kind: keyof typeof nhprKindName): string {
+  return nhprKindName[kind];
+}
+
+export function nhprCutoffKey(kind: keyof typeof nhprKindName) {
+  return kind === 'diastolic'
+    ? ('nhprDiastolic' as const)
+    : kind === 'full-cycle-minimum'
+      ? ('nhprFullCycleMinimum' as const)
+      : ('nhprWholeCycle' as const);
+}
+
+function mean(xs: readonly number[]): number {
+  let s = 0;
+  for (let i = 0; i < xs.length; i++) s += xs[i];
+  return s / xs.length;
+}
+
+const lowIsAbnormal = (v: number, cut: number): Flag => (atOrBelow(v, cut) ? 'abnormal' : 'normal');
+
+/** Compute every index, flag and quality warning for one vessel. `label` names the vessel in messages. */
+export function analyzeVessel(v: VesselInput, t: Thresholds, label: string): VesselResult {
+  const warnings: PhysiologyWarning[] = [];
+  const out: VesselResult = { id: v.id, vessel: v.vessel, warnings };
+  const rest = v.rest;
+  const hyp = v.hyperemia;
+
+  // FFR: pressures win over the entered value.
+  let ffr: number | undefined;
+  if (hyp !== undefined) {
+    ffr = hyp.pd / hyp.pa;
+    out.ffrSource = 'pressures';
+    if (v.ffr !== undefined && above(Math.abs(v.ffr - ffr), FFR_MISMATCH_TOLERANCE)) {
+      warnings.push({
+        code: 'ffr-mismatch',
+        message: `${label}: the entered FFR ${ratio(v.ffr)} differs from hyperaemic Pd/Pa ${ratio(ffr)} by more than ${FFR_MISMATCH_TOLERANCE.toFixed(2)}; the value from the pressures is used.`,
+      });
+    }
+  } else if (v.ffr !== undefined) {
+    ffr = v.ffr;
+    out.ffrSource = 'entered';
+  }
+  if (ffr !== undefined) {
+    out.ffr = ffr;
+    const flag = lowIsAbnormal(ffr, t.ffr);
+    out.ffrFlag = flag;
+    if (flag === 'abnormal' && atOrAbove(ffr, t.ffrGreyZoneLow)) out.ffrGreyZone = true;
+  }
+
+  let restingPdPa: number | undefined;
+  if (rest !== undefined) {
+    restingPdPa = rest.pd / rest.pa;
+    out.restingPdPa = restingPdPa;
+    out.restingPdPaFlag = lowIsAbnormal(restingPdPa, t.restingPdPa);
+  }
+
+  const nhpr = v.nhpr;
+  if (nhpr !== undefined) {
+    out.nhpr = nhpr.value;
+    out.nhprKind = nhpr.kind;
+    out.nhprFlag = lowIsAbnormal(nhpr.value, t[nhprCutoffKey(nhpr.kind)]);
+  }
+
+  // Thermodilution.
+  const tmnR = rest?.tmn !== undefined && rest.tmn.length > 0 ? rest.tmn : undefined;
+  const tmnH = hyp?.tmn !== undefined && hyp.tmn.length > 0 ? hyp.tmn : undefined;
+  let tr: number | undefined;
+  let th: number | undefined;
+  if (tmnR !== undefined) {
+    tr = mean(tmnR);
+    out.tmnRest = tr;
+    checkInjections(tmnR, 'rest', t, label, warnings);
+  }
+  if (tmnH !== undefined) {
+    th = mean(tmnH);
+    out.tmnHyperemia = th;
+    checkInjections(tmnH, 'hyperaemia', t, label, warnings);
+  }
+
+  let cfr: number | undefined;
+  if (tr !== undefined && th !== undefined) {
+    cfr = tr / th;
+    out.cfr = cfr;
+    out.cfrFlag = below(cfr, t.cfr)
+      ? 'abnormal'
+      : below(cfr, Math.max(t.cfr, t.cfrBorderline))
+        ? 'borderline'
+        : 'normal';
+  }
+
+  // IMR (needs hyperaemic pressures and transit time; both present when tmnH is).
+  if (hyp !== undefined && th !== undefined) {
+    const pa = hyp.pa;
+    const pd = hyp.pd;
+    const uncorrected = pd * th;
+    out.imrUncorrected = uncorrected;
+    let imr: number | undefined;
+    const pw = v.wedgePressure;
+    if (pw !== undefined) {
+      if (pw < pd && pw < pa) {
+        imr = (pa * th * (pd - pw)) / (pa - pw);
+        out.imrMethod = 'wedge';
+      } else {
+        warnings.push({
+          code: 'wedge-invalid',
+          message: `${label}: wedge pressure ${pw} mmHg is not below hyperaemic Pd ${pd} mmHg and Pa ${pa} mmHg, so it was not used to correct IMR.`,
+        });
+      }
+    }
+    let correctionImpossible = false;
+    if (imr === undefined && out.ffrFlag === 'abnormal') {
+      const factor = (YONG_SLOPE * pd) / pa - YONG_INTERCEPT;
+      if (factor > 0) {
+        imr = pa * th * factor;
+        out.imrMethod = 'yong';
+      } else {
+        // Below Pd/Pa ≈ 0.24 the correction gives no positive value: report no IMR rather than a wrong one.
+        correctionImpossible = true;
+        warnings.push({
+          code: 'imr-correction-invalid',
+          message: `${label}: hyperaemic Pd/Pa ${ratio(pd / pa)} is too low for the IMR correction without wedge pressure, so no IMR is reported (Pd × Tmn ${uncorrected.toFixed(1)} U overestimates it); measure the wedge pressure to correct it.`,
+        });
+      }
+    }
+    if (imr === undefined && !correctionImpossible) {
+      imr = uncorrected;
+      out.imrMethod = 'pd-tmn';
+    }
+    if (imr !== undefined) {
+      out.imr = imr;
+      out.imrFlag = atOrAbove(imr, t.imr) ? 'abnormal' : 'normal';
+    }
+  }
+
+  if (cfr !== undefined && rest !== undefined && hyp !== undefined) {
+    const rrr = (cfr * rest.pd) / hyp.pd;
+    out.rrr = rrr;
+    out.rrrFlag = below(rrr, t.rrr) ? 'abnormal' : 'normal';
+    if (ffr !== undefined) {
+      const mrr = (cfr / ffr) * (rest.pa / hyp.pa);
+      out.mrr = mrr;
+      out.mrrFlag = below(mrr, t.mrr) ? 'abnormal' : 'normal';
+    }
+  }
+
+  // Quality checks.
+  checkMissingSide(tmnR !== undefined, tmnH !== undefined, label, warnings);
+  if (v.driftPdPa !== undefined) checkDrift(v.driftPdPa, t, label, warnings);
+  if (rest !== undefined) checkPdAbovePa(rest.pd, rest.pa, 'rest', label, warnings);
+  if (hyp !== undefined) checkPdAbovePa(hyp.pd, hyp.pa, 'hyperaemia', label, warnings);
+  if (restingPdPa !== undefined && hyp !== undefined && above(hyp.pd / hyp.pa, restingPdPa)) {
+    warnings.push({
+      code: 'hyperemic-above-resting',
+      message: `${label}: hyperaemic Pd/Pa ${ratio(hyp.pd / hyp.pa)} is higher than resting Pd/Pa ${ratio(restingPdPa)}, which is physiologically unexpected; check hyperaemia and equalization.`,
+    });
+  }
+  const max = t.pdPaMaxPlausible;
+  if (restingPdPa !== undefined) checkImplausible(restingPdPa, 'resting Pd/Pa', max, label, warnings);
+  if (hyp !== undefined) checkImplausible(hyp.pd / hyp.pa, 'hyperaemic Pd/Pa (FFR)', max, label, warnings);
+  if (v.ffr !== undefined) checkImplausible(v.ffr, 'entered FFR', max, label, warnings);
+  if (nhpr !== undefined) checkImplausible(nhpr.value, `entered ${nhprName(nhpr.kind)}`, max, label, warnings);
+
+  return out;
+}

@@ -1,0 +1,181 @@
+import { z } from 'zod';
+
+/** The lab's cut-offs. Every default below carries its source in `thresholdSources`. */
+export interface Thresholds {
+  /** FFR abnormal when ≤ value. */
+  ffr: number;
+  /** Whole-cycle Pd/Pa at rest (computed from resting pressures), abnormal when ≤ value. */
+  restingPdPa: number;
+  /** Entered whole-cycle resting ratio, abnormal when ≤ value. */
+  nhprWholeCycle: number;
+  /** Entered diastolic resting ratio, abnormal when ≤ value. */
+  nhprDiastolic: number;
+  /** Entered full-cycle minimum resting ratio, abnormal when ≤ value. */
+  nhprFullCycleMinimum: number;
+  /** CFR abnormal when < value. */
+  cfr: number;
+  /** CFR borderline when cfr ≤ value < max(cfr, cfrBorderline); set equal to `cfr` to disable the band. */
+  cfrBorderline: number;
+  /** IMR abnormal when ≥ value (U, mmHg·s). */
+  imr: number;
+  /** RRR abnormal when < value. */
+  rrr: number;
+  /** MRR abnormal when < value. */
+  mrr: number;
+  /** Lower edge of the FFR grey zone (FFR from this value up to the FFR cut-off): a note only. */
+  ffrGreyZoneLow: number;
+  /** Drift check: Pd/Pa at the guide tip after pull-back should lie in [driftLow, driftHigh]. */
+  driftLow: number;
+  driftHigh: number;
+  /** An injection straying from the mean of the other injections by more than this fraction. */
+  injectionSpread: number;
+  /** Injections expected per thermodilution set. */
+  minInjections: number;
+  /** Epicardial spasm needs constriction ≥ this percentage (with symptoms and ischaemic ECG). */
+  spasmConstrictionPct: number;
+  /** Constriction ≥ this percentage that is not spasm counts as endothelial dysfunction. */
+  endothelialDysfunctionPct: number;
+  /** Acetylcholine bolus above this (µg) is accepted with a warning. */
+  achMaxMicrograms: number;
+  /** Any Pd/Pa, FFR or resting ratio above this is accepted with a warning. */
+  pdPaMaxPlausible: number;
+}
+
+export type ThresholdKey = keyof Thresholds;
+
+export const defaultThresholds: Readonly<Thresholds> = Object.freeze({
+  ffr: 0.8,
+  restingPdPa: 0.91,
+  nhprWholeCycle: 0.91,
+  nhprDiastolic: 0.89,
+  nhprFullCycleMinimum: 0.89,
+  cfr: 2.0,
+  cfrBorderline: 2.5,
+  imr: 25,
+  rrr: 2.0,
+  mrr: 2.7,
+  ffrGreyZoneLow: 0.76,
+  driftLow: 0.98,
+  driftHigh: 1.02,
+  injectionSpread: 0.3,
+  minInjections: 3,
+  spasmConstrictionPct: 90,
+  endothelialDysfunctionPct: 20,
+  achMaxMicrograms: 200,
+  pdPaMaxPlausible: 1.05,
+});
+
+/** Where each default comes from ([memory] = recalled, not confirmed; [practice] = common practice). */
+export const thresholdSources: Readonly<Record<ThresholdKey, string>> = Object.freeze({
+  ffr: 'ESC 2024 chronic coronary syndromes guideline; EAPCI 2020 consensus on INOCA; FAME',
+  restingPdPa: 'CONTRAST (0.91); RESOLVE (0.92)',
+  nhprWholeCycle: 'CONTRAST (0.91); RESOLVE (0.92)',
+  nhprDiastolic:
+    'DEFINE-FLAIR and the SWEDEHEART-based randomised trial, both 2017; EAPCI 2020 applies ≤ 0.89 to NHPRs as a class',
+  nhprFullCycleMinimum:
+    'validation studies summarised in an Open Heart review; EAPCI 2020 applies ≤ 0.89 to NHPRs as a class',
+  cfr: 'EAPCI 2020 (2.0 for thermodilution); COVADIS ≤ 2.0–2.5',
+  cfrBorderline: 'ESC 2024 chronic coronary syndromes guideline (< 2.5); COVADIS ≤ 2.0–2.5',
+  imr: 'ESC 2024; EAPCI 2020; COVADIS writes > 25',
+  rrr: '[memory: CorMicA] cut-off; formula from Lee et al., JAHA 2020',
+  mrr: 'ESC 2024 (cut-off); De Bruyne et al. 2021 (formula)',
+  ffrGreyZoneLow: 'DEFER/FAME history, Interv Cardiol Rev 2016',
+  driftLow:
+    '[memory] 0.98–1.02 window; drift > 2 mmHg means repeat (interventional cardiology textbook; Cook et al., Circ Cardiovasc Interv 2016)',
+  driftHigh:
+    '[memory] 0.98–1.02 window; drift > 2 mmHg means repeat (interventional cardiology textbook; Cook et al., Circ Cardiovasc Interv 2016)',
+  injectionSpread: '[memory] repeat an injection whose transit time differs from the others by more than ~30%',
+  minInjections: '[memory] three injections at rest and three at hyperaemia',
+  spasmConstrictionPct: 'COVADIS (Beltrame et al., EHJ 2017; Ong et al., IJC 2018); ESC 2024',
+  endothelialDysfunctionPct: '[memory] constriction of 20% or more without spasm criteria',
+  achMaxMicrograms: 'ESC 2024 protocol figure (2, 20, 100, 200 µg into the left coronary)',
+  pdPaMaxPlausible: '[practice] Pd/Pa reads 1.00 after equalizing; well above 1 suggests drift or a pressure error',
+});
+
+/** Short citations used inside reason sentences. */
+export const thresholdCitations: Readonly<Record<ThresholdKey, string>> = Object.freeze({
+  ffr: 'ESC 2024',
+  restingPdPa: 'CONTRAST',
+  nhprWholeCycle: 'CONTRAST',
+  nhprDiastolic: 'DEFINE-FLAIR; EAPCI 2020',
+  nhprFullCycleMinimum: 'Open Heart review; EAPCI 2020',
+  cfr: 'EAPCI 2020',
+  cfrBorderline: 'ESC 2024',
+  imr: 'ESC 2024; EAPCI 2020',
+  rrr: 'from memory: CorMicA',
+  mrr: 'ESC 2024',
+  ffrGreyZoneLow: 'DEFER/FAME',
+  driftLow: 'from memory',
+  driftHigh: 'from memory',
+  injectionSpread: 'from memory',
+  minInjections: 'from memory',
+  spasmConstrictionPct: 'COVADIS; ESC 2024',
+  endothelialDysfunctionPct: 'from memory',
+  achMaxMicrograms: 'ESC 2024 protocol',
+  pdPaMaxPlausible: 'common practice',
+});
+
+const thresholdLabels: Record<ThresholdKey, [label: string, unit: string]> = {
+  ffr: ['FFR cut-off', '(ratio)'],
+  restingPdPa: ['Resting whole-cycle Pd/Pa cut-off', '(ratio)'],
+  nhprWholeCycle: ['Whole-cycle resting ratio cut-off', '(ratio)'],
+  nhprDiastolic: ['Diastolic resting ratio cut-off', '(ratio)'],
+  nhprFullCycleMinimum: ['Full-cycle minimum resting ratio cut-off', '(ratio)'],
+  cfr: ['CFR cut-off', '(ratio)'],
+  cfrBorderline: ['CFR borderline upper limit', '(ratio)'],
+  imr: ['IMR cut-off', 'U (mmHg·s)'],
+  rrr: ['RRR cut-off', '(ratio)'],
+  mrr: ['MRR cut-off', '(ratio)'],
+  ffrGreyZoneLow: ['FFR grey-zone lower limit', '(ratio)'],
+  driftLow: ['Drift lower limit', '(ratio)'],
+  driftHigh: ['Drift upper limit', '(ratio)'],
+  injectionSpread: ['Injection spread', '(fraction, e.g. 0.30)'],
+  minInjections: ['Minimum injections', '(count)'],
+  spasmConstrictionPct: ['Spasm constriction', '%'],
+  endothelialDysfunctionPct: ['Endothelial dysfunction constriction', '%'],
+  achMaxMicrograms: ['Acetylcholine maximum dose', 'µg'],
+  pdPaMaxPlausible: ['Maximum plausible Pd/Pa', '(ratio)'],
+};
+
+function thresholdValue(key: ThresholdKey) {
+  const [label, unit] = thresholdLabels[key];
+  let s = z
+    .number({ error: `${label} must be a finite number ${unit}.` })
+    .gt(0, { error: `${label} must be greater than 0 ${unit}.` });
+  if (key === 'minInjections') s = s.int({ error: `${label} must be a whole number ${unit}.` });
+  if (key === 'spasmConstrictionPct' || key === 'endothelialDysfunctionPct') {
+    s = s.lte(100, { error: `${label} must be at most 100 %.` });
+  }
+  return s.optional();
+}
+
+const keys = Object.keys(defaultThresholds) as ThresholdKey[];
+
+export const thresholdsSchema = z.strictObject(
+  Object.fromEntries(keys.map((k) => [k, thresholdValue(k)])) as Record<
+    ThresholdKey,
+    ReturnType<typeof thresholdValue>
+  >,
+  {
+    error: (iss) =>
+      iss.code === 'unrecognized_keys'
+        ? `Unknown threshold setting(s): ${(iss.keys as string[]).join(', ')}.`
+        : 'Thresholds must be an object of numeric settings.',
+  },
+);
+
+/** Merge the lab's partial settings over the defaults (input already validated). */
+export function resolveThresholds(partial: Partial<Thresholds> | undefined): Thresholds {
+  if (partial === undefined) return defaultThresholds as Thresholds;
+  const out = { ...defaultThresholds };
+  for (const k of keys) {
+    const v = partial[k];
+    if (v !== undefined) out[k] = v;
+  }
+  return out;
+}
+
+/** Citation for a reason sentence: the source when the default is in use, else the lab's setting. */
+export function cite(t: Thresholds, key: ThresholdKey): string {
+  return t[key] === defaultThresholds[key] ? thresholdCitations[key] : 'lab setting';
+}

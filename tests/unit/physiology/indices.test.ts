@@ -1,0 +1,347 @@
+import { describe, expect, it } from 'vitest';
+import {
+  analyzeStudy,
+  defaultThresholds,
+  thresholdSources,
+  type PhysiologyInput,
+  type VesselResult,
+} from '../../../shared/physiology';
+
+type VesselIn = PhysiologyInput['vessels'][number];
+
+const SRC = {
+  caseA: 'hand-computed from the formulas in the domain brief §1 (check case A; not from a paper)',
+  ffr: 'ESC 2024 chronic coronary syndromes guideline; EAPCI 2020; FAME (FFR ≤ 0.80)',
+  grey: 'DEFER/FAME history, Interv Cardiol Rev 2016 (grey zone 0.76–0.80)',
+  restPdPa: 'CONTRAST (whole-cycle resting Pd/Pa ≤ 0.91)',
+  diastolic: 'DEFINE-FLAIR and the SWEDEHEART-based trial, 2017; EAPCI 2020 (≤ 0.89)',
+  fullCycle: 'validation studies summarised in an Open Heart review; EAPCI 2020 (≤ 0.89)',
+  cfr: 'EAPCI 2020 (thermodilution CFR < 2.0)',
+  cfrBand: 'ESC 2024 (< 2.5) and EAPCI 2020 (< 2.0): the borderline band between them',
+  imr: 'ESC 2024; EAPCI 2020 (IMR ≥ 25)',
+  imrFormula: 'hand-computed from the formula IMR = Pd × Tmn (ESC 2024; EAPCI 2020)',
+  wedge: 'hand-computed from the formula in Layland et al., Heart 2012',
+  yong: 'hand-computed from the formula of Yong et al. (interventional cardiology textbook chapter on microvascular assessment)',
+  rrr: 'hand-computed from the formula in Lee et al., JAHA 2020; cut-off 2.0 from memory (CorMicA)',
+  mrr: 'hand-computed from the formula in De Bruyne et al. 2021; cut-off 2.7 from ESC 2024',
+  cfrFormula: 'hand-computed from the formula CFR = Tmn rest / Tmn hyperaemia (EAPCI 2020)',
+  practice: 'common practice',
+};
+
+const three = (x: number) => [x, x, x];
+
+function one(v: Partial<VesselIn>, extra: Partial<PhysiologyInput> = {}): VesselResult {
+  return analyzeStudy({ vessels: [{ id: 'v1', vessel: 'LAD', ...v }], ...extra }).vessels[0];
+}
+
+describe('check case A', () => {
+  // Source: hand-computed from the formulas in the domain brief §1 (check case A; not from a paper).
+  const r = analyzeStudy({
+    vessels: [
+      {
+        id: 'a',
+        vessel: 'LAD',
+        rest: { pa: 100, pd: 95, tmn: three(0.9) },
+        hyperemia: { pa: 90, pd: 72, tmn: three(0.3) },
+      },
+    ],
+  });
+  const v = r.vessels[0];
+
+  it.each([
+    ['ffr', 0.8],
+    ['restingPdPa', 0.95],
+    ['tmnRest', 0.9],
+    ['tmnHyperemia', 0.3],
+    ['cfr', 3.0],
+    ['imr', 20.52],
+    ['imrUncorrected', 21.6],
+    ['rrr', 3.958333333333333],
+    ['mrr', 4.166666666666667],
+  ] as const)(`%s = %s — ${SRC.caseA}`, (key, expected) => {
+    expect(v[key]).toBeCloseTo(expected, 10);
+  });
+
+  it(`flags and method — ${SRC.caseA}`, () => {
+    expect(v.ffrFlag).toBe('abnormal');
+    expect(v.ffrSource).toBe('pressures');
+    expect(v.restingPdPaFlag).toBe('normal');
+    expect(v.cfrFlag).toBe('normal');
+    expect(v.imrMethod).toBe('yong');
+    expect(v.imrFlag).toBe('normal');
+    expect(v.rrrFlag).toBe('normal');
+    expect(v.mrrFlag).toBe('normal');
+    expect(v.warnings).toEqual([]);
+    expect(r.findings).toEqual({ obstructive: true, microvascular: null, vasospasm: null });
+    expect(r.endotype).toBe('obstructive');
+  });
+
+  it(`reason sentence cites value, cut-off and source — ${SRC.caseA}; ${SRC.ffr}`, () => {
+    expect(r.reasons).toContain(
+      'LAD: FFR 0.80 is at or below the 0.80 cut-off (ESC 2024) — a haemodynamically significant stenosis.',
+    );
+    expect(r.reasons.at(-1)).toMatch(/^Endotype: obstructive/);
+  });
+});
+
+describe('FFR boundaries', () => {
+  it.each([
+    { pd: 80, ffr: 0.8, flag: 'abnormal', grey: true, source: SRC.ffr },
+    { pd: 79, ffr: 0.79, flag: 'abnormal', grey: true, source: SRC.ffr },
+    { pd: 81, ffr: 0.81, flag: 'normal', grey: undefined, source: SRC.ffr },
+    { pd: 76, ffr: 0.76, flag: 'abnormal', grey: true, source: SRC.grey },
+    { pd: 75, ffr: 0.75, flag: 'abnormal', grey: undefined, source: SRC.grey },
+  ])('hyperaemic Pd $pd / Pa 100 → FFR $ffr $flag — $source', ({ pd, ffr, flag, grey }) => {
+    const v = one({ hyperemia: { pa: 100, pd } });
+    expect(v.ffr).toBeCloseTo(ffr, 12);
+    expect(v.ffrFlag).toBe(flag);
+    expect(v.ffrGreyZone).toBe(grey);
+  });
+
+  it.each([
+    { ffr: 0.8, flag: 'abnormal', source: SRC.ffr },
+    { ffr: 0.79, flag: 'abnormal', source: SRC.ffr },
+    { ffr: 0.81, flag: 'normal', source: SRC.ffr },
+  ])('entered console FFR $ffr → $flag — $source', ({ ffr, flag }) => {
+    const v = one({ ffr });
+    expect(v.ffr).toBe(ffr);
+    expect(v.ffrSource).toBe('entered');
+    expect(v.ffrFlag).toBe(flag);
+  });
+
+  it(`grey zone adds a reason but keeps the flag abnormal — ${SRC.grey}`, () => {
+    const r = analyzeStudy({ vessels: [{ id: 'v', vessel: 'LAD', hyperemia: { pa: 100, pd: 78 } }] });
+    expect(r.vessels[0].ffrFlag).toBe('abnormal');
+    expect(r.reasons.some((s) => s.includes('0.76–0.80 grey zone'))).toBe(true);
+  });
+
+  it(`pressures win over an entered FFR within 0.02 — ${SRC.practice}`, () => {
+    const v = one({ ffr: 0.81, hyperemia: { pa: 100, pd: 80 } });
+    expect(v.ffr).toBeCloseTo(0.8, 12);
+    expect(v.ffrSource).toBe('pressures');
+    expect(v.warnings).toEqual([]);
+  });
+});
+
+describe('resting indices', () => {
+  it.each([
+    { pd: 91, value: 0.91, flag: 'abnormal' },
+    { pd: 90, value: 0.9, flag: 'abnormal' },
+    { pd: 92, value: 0.92, flag: 'normal' },
+  ])(`resting whole-cycle Pd/Pa: Pd $pd / Pa 100 → $flag — ${SRC.restPdPa}`, ({ pd, value, flag }) => {
+    const v = one({ rest: { pa: 100, pd } });
+    expect(v.restingPdPa).toBeCloseTo(value, 12);
+    expect(v.restingPdPaFlag).toBe(flag);
+  });
+
+  it.each([
+    { kind: 'whole-cycle', value: 0.91, flag: 'abnormal', source: SRC.restPdPa },
+    { kind: 'whole-cycle', value: 0.9, flag: 'abnormal', source: SRC.restPdPa },
+    { kind: 'whole-cycle', value: 0.92, flag: 'normal', source: SRC.restPdPa },
+    { kind: 'diastolic', value: 0.89, flag: 'abnormal', source: SRC.diastolic },
+    { kind: 'diastolic', value: 0.88, flag: 'abnormal', source: SRC.diastolic },
+    { kind: 'diastolic', value: 0.9, flag: 'normal', source: SRC.diastolic },
+    { kind: 'full-cycle-minimum', value: 0.89, flag: 'abnormal', source: SRC.fullCycle },
+    { kind: 'full-cycle-minimum', value: 0.88, flag: 'abnormal', source: SRC.fullCycle },
+    { kind: 'full-cycle-minimum', value: 0.9, flag: 'normal', source: SRC.fullCycle },
+  ] as const)('$kind resting ratio $value → $flag — $source', ({ kind, value, flag }) => {
+    const v = one({ nhpr: { kind, value } });
+    expect(v.nhpr).toBe(value);
+    expect(v.nhprKind).toBe(kind);
+    expect(v.nhprFlag).toBe(flag);
+  });
+});
+
+describe('CFR', () => {
+  it.each([
+    { rest: 0.995, cfr: 1.99, flag: 'abnormal', source: SRC.cfr },
+    { rest: 1.0, cfr: 2.0, flag: 'borderline', source: SRC.cfrBand },
+    { rest: 1.245, cfr: 2.49, flag: 'borderline', source: SRC.cfrBand },
+    { rest: 1.25, cfr: 2.5, flag: 'normal', source: SRC.cfrBand },
+    { rest: 1.255, cfr: 2.51, flag: 'normal', source: SRC.cfrBand },
+  ])('Tmn rest $rest s / hyperaemia 0.5 s → CFR $cfr $flag — $source', ({ rest, cfr, flag }) => {
+    const v = one({ rest: { pa: 100, pd: 95, tmn: three(rest) }, hyperemia: { pa: 100, pd: 90, tmn: three(0.5) } });
+    expect(v.cfr).toBeCloseTo(cfr, 10);
+    expect(v.cfrFlag).toBe(flag);
+  });
+
+  it(`a mean of three 0.6 s over three 0.3 s is CFR 2.0, not below it — ${SRC.cfrFormula}`, () => {
+    // 0.6 + 0.6 + 0.6 is 1.7999999999999998 in binary floating point.
+    const v = one({ rest: { pa: 100, pd: 95, tmn: three(0.6) }, hyperemia: { pa: 100, pd: 90, tmn: three(0.3) } });
+    expect(v.cfr).toBeCloseTo(2.0, 12);
+    expect(v.cfrFlag).toBe('borderline');
+  });
+
+  it(`means of unequal injections — ${SRC.cfrFormula}`, () => {
+    const v = one({
+      rest: { pa: 100, pd: 95, tmn: [0.8, 0.9, 1.0] },
+      hyperemia: { pa: 100, pd: 90, tmn: [0.25, 0.3, 0.35] },
+    });
+    expect(v.tmnRest).toBeCloseTo(0.9, 12);
+    expect(v.tmnHyperemia).toBeCloseTo(0.3, 12);
+    expect(v.cfr).toBeCloseTo(3.0, 10);
+  });
+
+  it(`equal CFR cut-off and borderline limit disable the band — ${SRC.cfrBand}`, () => {
+    const v = one(
+      { rest: { pa: 100, pd: 95, tmn: three(1.15) }, hyperemia: { pa: 100, pd: 90, tmn: three(0.5) } },
+      { thresholds: { cfr: 2.0, cfrBorderline: 2.0 } },
+    );
+    expect(v.cfr).toBeCloseTo(2.3, 10);
+    expect(v.cfrFlag).toBe('normal');
+  });
+});
+
+describe('IMR', () => {
+  // Pa 110 keeps FFR normal (> 0.80), so IMR = Pd × Tmn.
+  it.each([
+    { pd: 99.6, imr: 24.9, flag: 'normal' },
+    { pd: 100, imr: 25, flag: 'abnormal' },
+    { pd: 100.4, imr: 25.1, flag: 'abnormal' },
+  ])(`Pd $pd × Tmn 0.25 → IMR $imr $flag (pd-tmn) — ${SRC.imrFormula}; ${SRC.imr}`, ({ pd, imr, flag }) => {
+    const v = one({ hyperemia: { pa: 110, pd, tmn: three(0.25) } });
+    expect(v.imrMethod).toBe('pd-tmn');
+    expect(v.imr).toBeCloseTo(imr, 10);
+    expect(v.imrUncorrected).toBeCloseTo(imr, 10);
+    expect(v.imrFlag).toBe(flag);
+  });
+
+  it(`Pd 83 × Tmn 0.3 = 24.9 is normal, with the mean of three 0.3 s injections — ${SRC.imrFormula}`, () => {
+    const v = one({ hyperemia: { pa: 100, pd: 83, tmn: three(0.3) } });
+    expect(v.imr).toBeCloseTo(24.9, 10);
+    expect(v.imrFlag).toBe('normal');
+  });
+
+  it(`wedge-corrected: Pa 100, Pd 70, Pw 20, Tmn 0.3 → 100 × 0.3 × 50/80 = 18.75 — ${SRC.wedge}`, () => {
+    const v = one({ hyperemia: { pa: 100, pd: 70, tmn: three(0.3) }, wedgePressure: 20 });
+    expect(v.imrMethod).toBe('wedge');
+    expect(v.imr).toBeCloseTo(18.75, 10);
+    expect(v.imrUncorrected).toBeCloseTo(21, 10);
+    expect(v.imrFlag).toBe('normal');
+  });
+
+  it(`wedge-corrected is used even when FFR is normal: Pa 100, Pd 90, Pw 10, Tmn 0.4 → 40 × 80/90 — ${SRC.wedge}`, () => {
+    const v = one({ hyperemia: { pa: 100, pd: 90, tmn: three(0.4) }, wedgePressure: 10 });
+    expect(v.imrMethod).toBe('wedge');
+    expect(v.imr).toBeCloseTo((100 * 0.4 * 80) / 90, 10);
+    expect(v.imrFlag).toBe('abnormal');
+  });
+
+  it(`wedge pressure 0 reduces to Pd × Tmn — ${SRC.wedge}`, () => {
+    const v = one({ hyperemia: { pa: 100, pd: 90, tmn: three(0.3) }, wedgePressure: 0 });
+    expect(v.imrMethod).toBe('wedge');
+    expect(v.imr).toBeCloseTo(27, 10);
+  });
+
+  it(`corrected without wedge when FFR ≤ 0.80: Pa 100, Pd 60, Tmn 0.5 → 50 × (0.81 − 0.32) = 24.5 — ${SRC.yong}`, () => {
+    const v = one({ hyperemia: { pa: 100, pd: 60, tmn: three(0.5) } });
+    expect(v.ffrFlag).toBe('abnormal');
+    expect(v.imrMethod).toBe('yong');
+    expect(v.imr).toBeCloseTo(24.5, 10);
+    expect(v.imrFlag).toBe('normal');
+    expect(v.imrUncorrected).toBeCloseTo(30, 10);
+  });
+
+  it(`FFR exactly 0.80 takes the correction; 0.81 does not — ${SRC.yong}; ${SRC.ffr}`, () => {
+    expect(one({ hyperemia: { pa: 100, pd: 80, tmn: three(0.4) } }).imrMethod).toBe('yong');
+    expect(one({ hyperemia: { pa: 100, pd: 81, tmn: three(0.4) } }).imrMethod).toBe('pd-tmn');
+  });
+
+  it(`no IMR without hyperaemic transit times — ${SRC.imrFormula}`, () => {
+    const v = one({ hyperemia: { pa: 100, pd: 90 } });
+    expect(v.imr).toBeUndefined();
+    expect(v.imrUncorrected).toBeUndefined();
+    expect(v.imrMethod).toBeUndefined();
+    expect(v.imrFlag).toBeUndefined();
+  });
+});
+
+describe('RRR and MRR', () => {
+  // CFR 2.0 (Tmn 1.0 / 0.5); RRR = CFR × Pd rest / Pd hyp.
+  it.each([
+    { restPd: 89.55, rrr: 1.99, flag: 'abnormal' },
+    { restPd: 90, rrr: 2.0, flag: 'normal' },
+    { restPd: 90.45, rrr: 2.01, flag: 'normal' },
+  ])(`RRR: CFR 2.0 × Pd $restPd / 90 = $rrr → $flag — ${SRC.rrr}`, ({ restPd, rrr, flag }) => {
+    const v = one({
+      rest: { pa: 100, pd: restPd, tmn: three(1.0) },
+      hyperemia: { pa: 100, pd: 90, tmn: three(0.5) },
+    });
+    expect(v.rrr).toBeCloseTo(rrr, 10);
+    expect(v.rrrFlag).toBe(flag);
+  });
+
+  // CFR 2.0, FFR 0.80 → CFR/FFR 2.5; MRR = 2.5 × Pa rest / Pa hyp (Pa hyp 100).
+  it.each([
+    { restPa: 107.6, mrr: 2.69, flag: 'abnormal' },
+    { restPa: 108, mrr: 2.7, flag: 'normal' },
+    { restPa: 108.4, mrr: 2.71, flag: 'normal' },
+  ])(`MRR: (2.0 / 0.80) × Pa $restPa / 100 = $mrr → $flag — ${SRC.mrr}`, ({ restPa, mrr, flag }) => {
+    const v = one({
+      rest: { pa: restPa, pd: 100, tmn: three(1.0) },
+      hyperemia: { pa: 100, pd: 80, tmn: three(0.5) },
+    });
+    expect(v.mrr).toBeCloseTo(mrr, 10);
+    expect(v.mrrFlag).toBe(flag);
+  });
+
+  it(`MRR uses the entered FFR only through the pressures; none without hyperaemic pressures — ${SRC.mrr}`, () => {
+    const v = one({ ffr: 0.8, rest: { pa: 100, pd: 95, tmn: three(0.9) } });
+    expect(v.mrr).toBeUndefined();
+    expect(v.rrr).toBeUndefined();
+  });
+});
+
+describe('thresholds', () => {
+  it(`every default carries a source, marked [memory]/[practice] where the brief does — ${SRC.practice}`, () => {
+    for (const k of Object.keys(defaultThresholds) as Array<keyof typeof defaultThresholds>) {
+      expect(thresholdSources[k], k).toMatch(/\S/);
+    }
+    expect(thresholdSources.rrr).toContain('[memory');
+    expect(thresholdSources.driftLow).toContain('[memory]');
+    expect(thresholdSources.injectionSpread).toContain('[memory]');
+    expect(thresholdSources.endothelialDysfunctionPct).toContain('[memory]');
+    expect(thresholdSources.pdPaMaxPlausible).toContain('[practice]');
+    expect(thresholdSources.ffr).toContain('ESC 2024');
+  });
+
+  it.each([
+    { name: 'ffr', value: 0.75, input: { hyperemia: { pa: 100, pd: 78 } }, key: 'ffrFlag', expected: 'normal' },
+    { name: 'imr', value: 40, input: { hyperemia: { pa: 100, pd: 90, tmn: three(0.4) } }, key: 'imrFlag', expected: 'normal' },
+    { name: 'restingPdPa', value: 0.92, input: { rest: { pa: 100, pd: 92 } }, key: 'restingPdPaFlag', expected: 'abnormal' },
+    { name: 'nhprDiastolic', value: 0.9, input: { nhpr: { kind: 'diastolic', value: 0.9 } }, key: 'nhprFlag', expected: 'abnormal' },
+    {
+      name: 'cfr',
+      value: 2.5,
+      input: { rest: { pa: 100, pd: 95, tmn: three(1.2) }, hyperemia: { pa: 100, pd: 90, tmn: three(0.5) } },
+      key: 'cfrFlag',
+      expected: 'abnormal',
+    },
+  ] as const)(`per-call override $name = $value — ${SRC.practice} (the lab's settings)`, ({ name, value, input, key, expected }) => {
+    const withOverride = one(input as Partial<VesselIn>, { thresholds: { [name]: value } });
+    expect(withOverride[key]).toBe(expected);
+    const withDefaults = one(input as Partial<VesselIn>);
+    expect(withDefaults[key]).not.toBe(expected);
+  });
+
+  it(`an overridden cut-off is cited as the lab setting — ${SRC.practice}`, () => {
+    const r = analyzeStudy({
+      vessels: [{ id: 'v', vessel: 'RCA', hyperemia: { pa: 100, pd: 74 } }],
+      thresholds: { ffr: 0.75 },
+    });
+    expect(r.reasons[0]).toBe(
+      'RCA: FFR 0.74 is at or below the 0.75 cut-off (lab setting) — a haemodynamically significant stenosis.',
+    );
+  });
+
+  it(`a value that would print as the cut-off without being it gets one more decimal — ${SRC.practice}`, () => {
+    const r = analyzeStudy({
+      vessels: [{ id: 'v', vessel: 'LAD', rest: { pa: 100, pd: 95, tmn: three(0.998) }, hyperemia: { pa: 100, pd: 90, tmn: three(0.5) } }],
+    });
+    expect(r.reasons).toContain('LAD: CFR 1.996 is below the 2.00 cut-off (EAPCI 2020) — impaired coronary flow reserve.');
+    const r2 = analyzeStudy({ vessels: [{ id: 'v', vessel: 'LAD', hyperemia: { pa: 100, pd: 79.6 } }] });
+    expect(r2.reasons[0]).toMatch(/^LAD: FFR 0\.796 is at or below the 0\.80 cut-off/);
+    const r3 = analyzeStudy({ vessels: [{ id: 'v', vessel: 'LAD', hyperemia: { pa: 100, pd: 80 } }] });
+    expect(r3.reasons[0]).toMatch(/^LAD: FFR 0\.80 is at or below/);
+  });
+});

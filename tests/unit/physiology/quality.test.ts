@@ -1,0 +1,241 @@
+import { describe, expect, it } from 'vitest';
+import { analyzeStudy, type PhysiologyInput, type VesselResult } from '../../../shared/physiology';
+
+type VesselIn = PhysiologyInput['vessels'][number];
+
+const SRC = {
+  drift:
+    'drift window 0.98–1.02 from memory; repeat when drift > 2 mmHg (interventional cardiology textbook; Cook et al., Circ Cardiovasc Interv 2016)',
+  spread: 'from memory: repeat an injection differing from the others by more than ~30%',
+  injections: 'from memory: three injections at rest and three at hyperaemia',
+  practice: 'common practice',
+  equalize: 'common practice: Pd/Pa reads 1.00 after equalizing',
+  wedge: 'Layland et al., Heart 2012 (wedge correction needs Pw below Pd and Pa)',
+  yong: 'Yong et al. via an interventional cardiology textbook chapter (correction formula)',
+  cfr: 'EAPCI 2020 (CFR needs thermodilution at rest and at hyperaemia)',
+  ach: 'ESC 2024 protocol figure (2, 20, 100, 200 µg)',
+};
+
+const three = (x: number) => [x, x, x];
+const good = {
+  rest: { pa: 100, pd: 95, tmn: three(0.9) },
+  hyperemia: { pa: 95, pd: 80, tmn: three(0.3) },
+};
+
+function one(v: Partial<VesselIn>, extra: Partial<PhysiologyInput> = {}): VesselResult {
+  return analyzeStudy({ vessels: [{ id: 'v1', vessel: 'LAD', ...good, ...v }], ...extra }).vessels[0];
+}
+const codes = (v: VesselResult) => v.warnings.map((w) => w.code);
+
+describe('a clean measurement has no warnings', () => {
+  it(`— ${SRC.practice}`, () => {
+    expect(one({ driftPdPa: 1.0 }).warnings).toEqual([]);
+  });
+});
+
+describe('drift-out-of-range', () => {
+  it.each([
+    { drift: 0.97, warn: true },
+    { drift: 0.98, warn: false },
+    { drift: 1.0, warn: false },
+    { drift: 1.02, warn: false },
+    { drift: 1.03, warn: true },
+  ])(`drift Pd/Pa $drift → warn $warn — ${SRC.drift}`, ({ drift, warn }) => {
+    const v = one({ driftPdPa: drift });
+    expect(codes(v).includes('drift-out-of-range')).toBe(warn);
+    if (warn) {
+      const w = v.warnings.find((x) => x.code === 'drift-out-of-range');
+      expect(w?.message).toContain('LAD');
+      expect(w?.message).toContain(drift.toFixed(2));
+    }
+  });
+
+  it(`the window follows the lab's thresholds — ${SRC.drift}`, () => {
+    expect(codes(one({ driftPdPa: 0.97 }, { thresholds: { driftLow: 0.97 } }))).not.toContain('drift-out-of-range');
+  });
+});
+
+describe('injection-spread', () => {
+  it(`an injection 67% above the mean of the other two is named with its set and number — ${SRC.spread}`, () => {
+    const v = one({ hyperemia: { pa: 95, pd: 80, tmn: [0.3, 0.3, 0.5] } });
+    const w = v.warnings.filter((x) => x.code === 'injection-spread');
+    expect(w).toHaveLength(1);
+    expect(w[0].message).toContain('hyperaemia injection 3');
+    expect(w[0].message).toContain('LAD');
+  });
+
+  it.each([
+    { tmn: [1.0, 1.0, 1.3], warn: false, note: 'exactly 30% above the others' },
+    { tmn: [1.0, 1.0, 1.31], warn: true, note: '31% above the others' },
+    { tmn: [1.0, 1.0, 0.7], warn: false, note: 'exactly 30% below the others' },
+    { tmn: [1.0, 1.0, 0.69], warn: true, note: '31% below the others' },
+  ])(`resting Tmn $tmn ($note) → warn $warn — ${SRC.spread}`, ({ tmn, warn }) => {
+    const v = one({ rest: { pa: 100, pd: 95, tmn } });
+    const w = v.warnings.filter((x) => x.code === 'injection-spread');
+    expect(w.length > 0).toBe(warn);
+    if (warn) expect(w[0].message).toContain('rest injection 3');
+  });
+});
+
+describe('few-injections', () => {
+  it.each([
+    { n: 1, warn: true },
+    { n: 2, warn: true },
+    { n: 3, warn: false },
+    { n: 4, warn: false },
+  ])(`$n hyperaemic injections → warn $warn — ${SRC.injections}`, ({ n, warn }) => {
+    const v = one({ hyperemia: { pa: 95, pd: 80, tmn: Array(n).fill(0.3) } });
+    expect(codes(v).includes('few-injections')).toBe(warn);
+  });
+
+  it(`minInjections follows the lab's thresholds — ${SRC.injections}`, () => {
+    const v = one({ rest: { pa: 100, pd: 95, tmn: [0.9, 0.9] } }, { thresholds: { minInjections: 2 } });
+    expect(codes(v)).not.toContain('few-injections');
+  });
+});
+
+describe('pd-above-pa', () => {
+  it.each([
+    { phase: 'rest', v: { rest: { pa: 100, pd: 101 } }, text: 'resting Pd 101 mmHg is above Pa 100 mmHg' },
+    { phase: 'hyperaemia', v: { hyperemia: { pa: 90, pd: 92 } }, text: 'hyperaemic Pd 92 mmHg is above Pa 90 mmHg' },
+  ])(`Pd above Pa at $phase — ${SRC.equalize}`, ({ v, text }) => {
+    const r = one(v as Partial<VesselIn>);
+    const w = r.warnings.find((x) => x.code === 'pd-above-pa');
+    expect(w?.message).toContain(text);
+  });
+
+  it(`Pd equal to Pa is not a warning — ${SRC.equalize}`, () => {
+    expect(codes(one({ rest: { pa: 100, pd: 100 } }))).not.toContain('pd-above-pa');
+  });
+});
+
+describe('hyperemic-above-resting', () => {
+  it.each([
+    { hypPd: 95, warn: true },
+    { hypPd: 90, warn: false },
+    { hypPd: 85, warn: false },
+  ])(`resting Pd/Pa 0.90, hyperaemic Pd $hypPd / 100 → warn $warn — ${SRC.practice}`, ({ hypPd, warn }) => {
+    const v = one({ rest: { pa: 100, pd: 90 }, hyperemia: { pa: 100, pd: hypPd } });
+    expect(codes(v).includes('hyperemic-above-resting')).toBe(warn);
+  });
+});
+
+describe('missing-rest / missing-hyperemia', () => {
+  it(`hyperaemic Tmn without resting Tmn → no CFR, RRR, MRR; IMR still computed — ${SRC.cfr}`, () => {
+    const v = one({ rest: { pa: 100, pd: 95 } });
+    expect(codes(v)).toContain('missing-rest');
+    expect(v.cfr).toBeUndefined();
+    expect(v.rrr).toBeUndefined();
+    expect(v.mrr).toBeUndefined();
+    expect(v.imr).toBeDefined();
+  });
+
+  it(`hyperaemic Tmn with no resting data at all → missing-rest — ${SRC.cfr}`, () => {
+    const r = analyzeStudy({ vessels: [{ id: 'v', vessel: 'LCX', hyperemia: { pa: 95, pd: 80, tmn: three(0.3) } }] });
+    expect(codes(r.vessels[0])).toContain('missing-rest');
+  });
+
+  it(`resting Tmn without hyperaemic Tmn → missing-hyperemia, no CFR or IMR — ${SRC.cfr}`, () => {
+    const v = one({ hyperemia: { pa: 95, pd: 80 } });
+    expect(codes(v)).toContain('missing-hyperemia');
+    expect(v.cfr).toBeUndefined();
+    expect(v.imr).toBeUndefined();
+  });
+
+  it(`a resting-only study (pressures, no Tmn) is not missing anything — ${SRC.practice}`, () => {
+    const r = analyzeStudy({ vessels: [{ id: 'v', vessel: 'LAD', rest: { pa: 100, pd: 95 } }] });
+    expect(r.vessels[0].warnings).toEqual([]);
+  });
+
+  it(`an empty Tmn list counts as not measured — ${SRC.practice}`, () => {
+    const v = one({ rest: { pa: 100, pd: 95, tmn: [] }, hyperemia: { pa: 95, pd: 80, tmn: [] } });
+    expect(v.tmnRest).toBeUndefined();
+    expect(v.cfr).toBeUndefined();
+    expect(v.warnings).toEqual([]);
+  });
+});
+
+describe('pd-pa-implausible (accepted with a warning)', () => {
+  it.each([
+    { what: 'resting Pd/Pa', v: { rest: { pa: 100, pd: 106 } } },
+    { what: 'hyperaemic Pd/Pa', v: { rest: undefined, hyperemia: { pa: 100, pd: 106 } } },
+    { what: 'entered FFR', v: { rest: undefined, hyperemia: undefined, ffr: 1.06 } },
+    { what: 'entered diastolic resting ratio', v: { nhpr: { kind: 'diastolic', value: 1.1 } } },
+  ])(`$what above 1.05 → warning, value kept — ${SRC.equalize}`, ({ what, v }) => {
+    const r = one(v as Partial<VesselIn>);
+    const w = r.warnings.find((x) => x.code === 'pd-pa-implausible');
+    expect(w?.message).toContain(what);
+  });
+
+  it(`1.05 itself is accepted without this warning — ${SRC.equalize}`, () => {
+    const v = one({ rest: undefined, hyperemia: undefined, ffr: 1.05 });
+    expect(codes(v)).not.toContain('pd-pa-implausible');
+    expect(v.ffr).toBe(1.05);
+  });
+});
+
+describe('wedge-invalid', () => {
+  it(`wedge pressure at or above Pd → not used; falls through to the correction without wedge — ${SRC.wedge}`, () => {
+    const v = one({ hyperemia: { pa: 100, pd: 70, tmn: three(0.3) }, wedgePressure: 70 });
+    expect(codes(v)).toContain('wedge-invalid');
+    expect(v.imrMethod).toBe('yong');
+  });
+
+  it(`wedge pressure above Pd with normal FFR falls through to Pd × Tmn — ${SRC.wedge}`, () => {
+    const v = one({ hyperemia: { pa: 100, pd: 90, tmn: three(0.3) }, wedgePressure: 95 });
+    expect(codes(v)).toContain('wedge-invalid');
+    expect(v.imrMethod).toBe('pd-tmn');
+    expect(v.imr).toBeCloseTo(27, 10);
+  });
+});
+
+describe('ffr-mismatch', () => {
+  it.each([
+    { entered: 0.85, warn: true },
+    { entered: 0.83, warn: true },
+    { entered: 0.82, warn: false },
+    { entered: 0.78, warn: false },
+    { entered: 0.77, warn: true },
+  ])(`entered FFR $entered vs Pd/Pa 0.80 → warn $warn — ${SRC.practice}`, ({ entered, warn }) => {
+    const v = one({ rest: undefined, hyperemia: { pa: 100, pd: 80 }, ffr: entered });
+    expect(codes(v).includes('ffr-mismatch')).toBe(warn);
+    expect(v.ffr).toBeCloseTo(0.8, 12);
+  });
+});
+
+describe('imr-correction-invalid', () => {
+  it(`Pd/Pa 0.20 gives no positive correction → no IMR reported, uncorrected kept — ${SRC.yong}`, () => {
+    const v = one({ rest: undefined, hyperemia: { pa: 100, pd: 20, tmn: three(0.5) } });
+    expect(codes(v)).toContain('imr-correction-invalid');
+    expect(v.imr).toBeUndefined();
+    expect(v.imrFlag).toBeUndefined();
+    expect(v.imrMethod).toBeUndefined();
+    expect(v.imrUncorrected).toBeCloseTo(10, 10);
+  });
+});
+
+describe('warnings in a multi-vessel study name the vessel', () => {
+  it(`two diagonals are told apart by id — ${SRC.practice}`, () => {
+    const r = analyzeStudy({
+      vessels: [
+        { id: 'd1', vessel: 'DIAGONAL', driftPdPa: 0.9 },
+        { id: 'd2', vessel: 'DIAGONAL', driftPdPa: 1.0 },
+      ],
+    });
+    expect(r.vessels[0].warnings[0].message).toMatch(/^Diagonal \(d1\): /);
+    expect(r.vessels[1].warnings).toEqual([]);
+  });
+});
+
+describe('ach-dose-high (vasoreactivity warnings)', () => {
+  it.each([
+    { micrograms: 200, warn: false },
+    { micrograms: 250, warn: true },
+  ])(`acetylcholine $micrograms µg → warn $warn — ${SRC.ach}`, ({ micrograms, warn }) => {
+    const r = analyzeStudy({
+      vessels: [],
+      vasoreactivity: { doses: [{ vessel: 'LAD', micrograms, constrictionPct: 10, symptoms: false, ischemicEcg: false }] },
+    });
+    expect(r.vasoreactivity?.warnings.some((w) => w.code === 'ach-dose-high')).toBe(warn);
+  });
+});
