@@ -12,6 +12,8 @@ import { enforceSessionLimit, requireSameOrigin } from './auth/request-guards';
 import { healthRoutes } from './routes/health';
 import { authRoutes } from './routes/auth';
 import { recordRoutes } from './routes/records';
+import { studyRoutes } from './routes/studies';
+import { diskStorage, type AttachmentStorage } from './attachments/storage';
 
 export interface AppDeps {
   config: Config;
@@ -19,18 +21,26 @@ export interface AppDeps {
   log?: (message: string, error?: unknown) => void;
   /** The identity provider; defaults to the one in the config (tests may pass their own). */
   idp?: IdentityProvider;
+  /** Where attachments are kept; defaults to the folder in the config. */
+  storage?: AttachmentStorage;
 }
 
 /** Every `/api` route with the access it needs: the router is built from this list alone. */
-export function apiRoutes(deps: Required<Pick<AppDeps, 'config' | 'dataSource' | 'idp'>>): ApiRoute[] {
-  return [...healthRoutes(deps), ...authRoutes(deps), ...recordRoutes(deps)];
+export function apiRoutes(deps: Required<Pick<AppDeps, 'config' | 'dataSource' | 'idp' | 'storage'>>): ApiRoute[] {
+  return [...healthRoutes(deps), ...authRoutes(deps), ...studyRoutes(deps), ...recordRoutes(deps)];
 }
 
 /**
  * Builds the Express app without listening, so tests can drive it with supertest.
  * `/api` answers JSON (errors as problem+json); everything else is the web app.
  */
-export function createApp({ config, dataSource, log = console.error, idp = identityProvider(config.oidc) }: AppDeps): Express {
+export function createApp({
+  config,
+  dataSource,
+  log = console.error,
+  idp = identityProvider(config.oidc),
+  storage = diskStorage(path.resolve(config.attachments.dir)),
+}: AppDeps): Express {
   const app = express();
   app.disable('x-powered-by');
   app.set('trust proxy', 'loopback');
@@ -62,7 +72,7 @@ export function createApp({ config, dataSource, log = console.error, idp = ident
   api.use(express.json({ limit: config.jsonBodyLimit }));
   api.use(sessionMiddleware(config, dataSource));
   api.use(enforceSessionLimit(config));
-  api.use(routerFrom(apiRoutes({ config, dataSource, idp }), dataSource));
+  api.use(routerFrom(apiRoutes({ config, dataSource, idp, storage }), dataSource));
   api.use(apiNotFound);
   app.use('/api', api);
 

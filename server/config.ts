@@ -61,6 +61,8 @@ const configSchema = z
     SESSION_MAX_HOURS: z.coerce.number().min(0.1).max(72).default(12),
     SIGN_IN_RATE_LIMIT: z.coerce.number().int().min(1).max(10_000).default(30),
     ALLOWED_ORIGINS: z.string().default(''),
+    ATTACHMENT_DIR: z.string().min(1).default('storage/attachments'),
+    ATTACHMENT_MAX_MB: z.coerce.number().min(0.01).max(500).default(20),
   })
   .superRefine((value, ctx) => {
     if (value.NODE_ENV === 'production' && value.SESSION_SECRET.startsWith('local-development-secret')) {
@@ -83,6 +85,7 @@ export interface Config {
   signInRateLimit: number;
   /** Origins allowed to send state-changing requests: the public URL's, plus any listed. */
   allowedOrigins: string[];
+  attachments: { dir: string; maxBytes: number };
 }
 
 export class ConfigError extends Error {
@@ -122,5 +125,6 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
     session: { idleMinutes: v.SESSION_IDLE_MINUTES, maxHours: v.SESSION_MAX_HOURS, secure: publicUrl.startsWith('https:') },
     signInRateLimit: v.SIGN_IN_RATE_LIMIT,
     allowedOrigins: [new URL(publicUrl).origin, ...v.ALLOWED_ORIGINS.split(',').map((o) => o.trim()).filter(Boolean)],
+    attachments: { dir: v.ATTACHMENT_DIR, maxBytes: Math.round(v.ATTACHMENT_MAX_MB * 1024 * 1024) },
   };
 }

@@ -1,11 +1,8 @@
 import type { DataSource } from 'typeorm';
 import { toFhirAuditEvent } from '../../fhir/audit-event';
 import { auditContext, recordAudit, type AuditRow } from '../audit/audit';
-import { NotFoundError } from '../http/problem';
 import type { ApiRoute } from '../http/routes';
 import { defaultSignatureTargetHours, waitingSince } from '../../shared/turnaround/overdue';
-
-const uuidPattern = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 
 interface StudyRow {
   id: string;
@@ -41,37 +38,9 @@ function studySummary(row: StudyRow) {
   };
 }
 
-/** Reads of studies, the coding queue, overdue studies, users and the audit trail. Every read is audited. */
+/** Reads of the coding queue, overdue studies, users and the audit trail. Every read is audited. */
 export function recordRoutes({ dataSource }: { dataSource: DataSource }): ApiRoute[] {
   return [
-    {
-      method: 'get',
-      path: '/studies',
-      access: 'study:read',
-      summary: 'Worklist: recent studies, newest procedure first',
-      handlers: [
-        async (req, res) => {
-          const rows: StudyRow[] = await dataSource.query(`${studySelect} ORDER BY s.procedure_ended_at DESC NULLS FIRST, s.id LIMIT 50`);
-          await recordAudit(dataSource, { ...auditContext(req), action: 'search', entityType: 'study', outcome: 'success', detail: { returned: rows.length } });
-          res.json({ items: rows.map(studySummary), nextCursor: null });
-        },
-      ],
-    },
-    {
-      method: 'get',
-      path: '/studies/:id',
-      access: 'study:read',
-      summary: 'One study with its patient',
-      handlers: [
-        async (req, res) => {
-          const id = String(req.params.id);
-          const [row]: StudyRow[] = uuidPattern.test(id) ? await dataSource.query(`${studySelect} WHERE s.id = $1`, [id]) : [];
-          if (!row) throw new NotFoundError('No study has this id.');
-          await recordAudit(dataSource, { ...auditContext(req), action: 'read', entityType: 'study', entityId: row.id, outcome: 'success' });
-          res.json(studySummary(row));
-        },
-      ],
-    },
     {
       method: 'get',
       path: '/coding/queue',

@@ -4,6 +4,7 @@ import type { DataSource } from 'typeorm';
 import { apiRoutes } from '../../server/app';
 import { routerFrom } from '../../server/http/routes';
 import { identityProvider } from '../../server/auth/oidc';
+import { diskStorage } from '../../server/attachments/storage';
 import { can, roles, type Role } from '../../shared/auth/permissions';
 import { openTestDatabase } from '../support/app';
 import { signIn, startStack, usernameOf, type TestStack } from '../support/stack';
@@ -22,7 +23,7 @@ afterAll(async () => {
   await db.destroy();
 });
 
-const routes = () => apiRoutes({ config: stack.config, dataSource: db, idp: identityProvider(stack.config.oidc) });
+const routes = () => apiRoutes({ config: stack.config, dataSource: db, idp: identityProvider(stack.config.oidc), storage: diskStorage(stack.config.attachments.dir) });
 const concrete = (path: string) => path.replace(/:id\b/g, '00000000-0000-4000-8000-000000000000');
 
 describe('every /api route declares its access, and the server enforces it', () => {

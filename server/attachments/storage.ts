@@ -1,0 +1,31 @@
+import { createHash, randomUUID } from 'node:crypto';
+import fs from 'node:fs/promises';
+import path from 'node:path';
+
+/** Where attachment bytes live. The disk store is local; an object store can implement the same. */
+export interface AttachmentStorage {
+  put(bytes: Buffer): Promise<{ key: string; sha256: string }>;
+  get(key: string): Promise<Buffer>;
+  delete(key: string): Promise<void>;
+}
+
+/** Files under one folder, named by a random key, two-level fan-out so no folder grows huge. */
+export function diskStorage(root: string): AttachmentStorage {
+  const fileOf = (key: string) => {
+    if (!/^[0-9a-f-]{36}$/.test(key)) throw new Error('invalid storage key');
+    return path.join(root, key.slice(0, 2), key);
+  };
+  return {
+    async put(bytes) {
+      const key = randomUUID();
+      const file = fileOf(key);
+      await fs.mkdir(path.dirname(file), { recursive: true });
+      await fs.writeFile(file, bytes, { flag: 'wx', mode: 0o600 });
+      return { key, sha256: createHash('sha256').update(bytes).digest('hex') };
+    },
+    get: (key) => fs.readFile(fileOf(key)),
+    async delete(key) {
+      await fs.rm(fileOf(key), { force: true });
+    },
+  };
+}

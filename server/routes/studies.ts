@@ -1,0 +1,232 @@
+import multer from 'multer';
+import type { Request, RequestHandler } from 'express';
+import type { DataSource } from 'typeorm';
+import { analyzeStudy } from '../../shared/physiology';
+import { createStudySchema, patchStudySchema } from '../../shared/study/schema';
+import { toPhysiologyInput } from '../../shared/study/to-physiology';
+import { worklistQuerySchema } from '../../shared/study/worklist';
+import { auditContext, recordAudit } from '../audit/audit';
+import { cleanFileName, detectMediaType } from '../attachments/content-type';
+import type { AttachmentStorage } from '../attachments/storage';
+import type { Config } from '../config';
+import { HttpError, NotFoundError } from '../http/problem';
+import type { ApiRoute } from '../http/routes';
+import { parseOrThrow } from '../http/validate';
+import { createStudy, loadStudy, patchStudy, StaleVersionError } from '../studies/repository';
+import { listStudies } from '../studies/worklist';
+
+const uuidPattern = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
+const idOf = (req: Request) => {
+  const id = String(req.params.id);
+  if (!uuidPattern.test(id)) throw new NotFoundError('No record has this id.');
+  return id;
+};
+
+class StudyLockedError extends HttpError {
+  constructor(state: string) {
+    super(409, 'study-signed', 'The study is signed', `A ${state} study cannot be edited; changes to it are made as an addendum.`);
+  }
+}
+
+/** pg's unique-violation code: a client reused a row id that belongs elsewhere. */
+const isUniqueViolation = (e: unknown) => (e as { code?: string })?.code === '23505';
+
+export function studyRoutes({ config, dataSource, storage }: { config: Config; dataSource: DataSource; storage: AttachmentStorage }): ApiRoute[] {
+  const upload: RequestHandler = multer({
+    storage: multer.memoryStorage(),
+    limits: { fileSize: config.attachments.maxBytes, files: 1, fields: 5 },
+  }).single('file');
+
+  const acceptUpload: RequestHandler = (req, res, next) =>
+    upload(req, res, (err: unknown) => {
+      if (!err) return next();
+      const code = (err as { code?: string }).code;
+      if (code === 'LIMIT_FILE_SIZE') {
+        return next(new HttpError(413, 'file-too-large', 'File too large', `Attachments may be at most ${Math.round(config.attachments.maxBytes / 1048576)} MB.`));
+      }
+      next(new HttpError(400, 'bad-upload', 'The upload could not be read', 'Send one file in the form field "file".'));
+    });
+
+  return [
+    {
+      method: 'get',
+      path: '/studies',
+      access: 'study:read',
+      summary: 'Worklist: filters (state, search, operator, dates) and keyset pages',
+      handlers: [
+        async (req, res) => {
+          const query = parseOrThrow(worklistQuerySchema, req.query, 'The worklist query');
+          const page = await listStudies(dataSource, query);
+          await recordAudit(dataSource, { ...auditContext(req), action: 'search', entityType: 'study', outcome: 'success', detail: { ...query, returned: page.items.length } });
+          res.json(page);
+        },
+      ],
+    },
+    {
+      method: 'post',
+      path: '/studies',
+      access: 'study:write',
+      summary: 'Open a new study for a patient',
+      handlers: [
+        async (req, res) => {
+          const input = parseOrThrow(createStudySchema, req.body, 'The new study');
+          const id = await createStudy(dataSource, input, req.session.auth!.userId);
+          await recordAudit(dataSource, { ...auditContext(req), action: 'create', entityType: 'study', entityId: id, outcome: 'success', detail: { mrn: input.patient.mrn } });
+          res.status(201).location(`/api/studies/${id}`).json(await loadStudy(dataSource, id));
+        },
+      ],
+    },
+    {
+      method: 'get',
+      path: '/studies/:id',
+      access: 'study:read',
+      summary: 'One study: every section, its attachments and its version',
+      handlers: [
+        async (req, res) => {
+          const study = await loadStudy(dataSource, idOf(req));
+          if (!study) throw new NotFoundError('No study has this id.');
+          await recordAudit(dataSource, { ...auditContext(req), action: 'read', entityType: 'study', entityId: study.id, outcome: 'success' });
+          res.json(study);
+        },
+      ],
+    },
+    {
+      method: 'patch',
+      path: '/studies/:id',
+      access: 'study:write',
+      summary: 'Replace whole sections of a draft, naming the version it was read at (stale → 409)',
+      handlers: [
+        async (req, res) => {
+          const id = idOf(req);
+          const patch = parseOrThrow(patchStudySchema, req.body, 'The change');
+          const before = await loadStudy(dataSource, id);
+          if (!before) throw new NotFoundError('No study has this id.');
+          if (before.state === 'signed' || before.state === 'amended') throw new StudyLockedError(before.state);
+          try {
+            const { changed } = await patchStudy(dataSource, id, patch);
+            await recordAudit(dataSource, { ...auditContext(req), action: 'update', entityType: 'study', entityId: id, outcome: 'success', detail: { sections: changed, fromVersion: patch.version } });
+          } catch (error) {
+            if (error instanceof StaleVersionError) {
+              await recordAudit(dataSource, { ...auditContext(req), action: 'update', entityType: 'study', entityId: id, outcome: 'failure', detail: { reason: 'stale-version', fromVersion: patch.version, current: error.current.version } });
+              res.status(409).type('application/problem+json').send(
+                JSON.stringify({
+                  type: 'https://isobar.example/problems/stale-version',
+                  title: error.title,
+                  status: 409,
+                  detail: error.message,
+                  instance: req.originalUrl,
+                  currentVersion: error.current.version,
+                  current: error.current,
+                }),
+              );
+              return;
+            }
+            if (isUniqueViolation(error)) throw new HttpError(409, 'duplicate-row-id', 'Row id already used', 'A vessel or dose row id belongs to another study. Reload the study.');
+            throw error;
+          }
+          res.json(await loadStudy(dataSource, id));
+        },
+      ],
+    },
+    {
+      method: 'get',
+      path: '/studies/:id/analysis',
+      access: 'study:read',
+      summary: 'The authoritative indices, flags, warnings and endotype of the stored measurements',
+      handlers: [
+        async (req, res) => {
+          const study = await loadStudy(dataSource, idOf(req));
+          if (!study) throw new NotFoundError('No study has this id.');
+          await recordAudit(dataSource, { ...auditContext(req), action: 'read', entityType: 'study', entityId: study.id, outcome: 'success', detail: { view: 'analysis' } });
+          res.json({ version: study.version, analysis: analyzeStudy(toPhysiologyInput(study)) });
+        },
+      ],
+    },
+    {
+      method: 'get',
+      path: '/operators',
+      access: 'study:read',
+      summary: 'Physicians who can be named as operator',
+      handlers: [
+        async (_req, res) => {
+          const rows = await dataSource.query(`SELECT id, display_name FROM app_user WHERE role = 'physician' ORDER BY display_name, id`);
+          res.json({ items: rows.map((r: { id: string; display_name: string }) => ({ id: r.id, displayName: r.display_name })) });
+        },
+      ],
+    },
+    {
+      method: 'post',
+      path: '/studies/:id/attachments',
+      access: 'study:write',
+      summary: 'Attach a console printout or export (PDF, PNG, JPEG, CSV; type checked from the content)',
+      handlers: [
+        acceptUpload,
+        async (req, res) => {
+          const id = idOf(req);
+          const [study] = await dataSource.query(`SELECT id FROM study WHERE id = $1`, [id]);
+          if (!study) throw new NotFoundError('No study has this id.');
+          const file = req.file;
+          if (!file || file.size === 0) throw new HttpError(400, 'no-file', 'No file', 'Choose a file to attach.');
+          const mediaType = await detectMediaType(file.buffer);
+          const fileName = cleanFileName(file.originalname);
+          if (!mediaType) {
+            await recordAudit(dataSource, { ...auditContext(req), action: 'create', entityType: 'attachment', outcome: 'failure', detail: { studyId: id, fileName, reason: 'unsupported-type' } });
+            throw new HttpError(415, 'unsupported-file-type', 'File type not accepted', `"${fileName}" is not a PDF, PNG, JPEG or CSV file (judged from its content, not its name).`);
+          }
+          const stored = await storage.put(file.buffer);
+          const [row] = await dataSource.query(
+            `INSERT INTO attachment (study_id, file_name, media_type, size_bytes, sha256, storage_key, uploaded_by)
+             VALUES ($1, $2, $3, $4, $5, $6, $7) RETURNING id, uploaded_at`,
+            [id, fileName, mediaType, file.size, stored.sha256, stored.key, req.session.auth!.userId],
+          );
+          await recordAudit(dataSource, { ...auditContext(req), action: 'create', entityType: 'attachment', entityId: row.id, outcome: 'success', detail: { studyId: id, fileName, sha256: stored.sha256 } });
+          res.status(201).json({
+            id: row.id,
+            fileName,
+            mediaType,
+            sizeBytes: file.size,
+            sha256: stored.sha256,
+            uploadedAt: (row.uploaded_at as Date).toISOString(),
+            uploadedBy: req.session.auth!.displayName,
+          });
+        },
+      ],
+    },
+    {
+      method: 'get',
+      path: '/attachments/:id/content',
+      access: 'study:read',
+      summary: 'Download an attachment',
+      handlers: [
+        async (req, res) => {
+          const [row] = await dataSource.query(`SELECT id, study_id, file_name, media_type, storage_key FROM attachment WHERE id = $1`, [idOf(req)]);
+          if (!row) throw new NotFoundError('No attachment has this id.');
+          const bytes = await storage.get(row.storage_key);
+          await recordAudit(dataSource, { ...auditContext(req), action: 'read', entityType: 'attachment', entityId: row.id, outcome: 'success', detail: { studyId: row.study_id } });
+          res
+            .type(row.media_type)
+            .set('Content-Disposition', `attachment; filename="${row.file_name.replace(/[^\x20-\x7E]/g, '_')}"; filename*=UTF-8''${encodeURIComponent(row.file_name)}`)
+            .set('X-Content-Type-Options', 'nosniff')
+            .send(bytes);
+        },
+      ],
+    },
+    {
+      method: 'delete',
+      path: '/attachments/:id',
+      access: 'study:write',
+      summary: 'Remove an attachment (recorded in the audit trail with its name and checksum)',
+      handlers: [
+        async (req, res) => {
+          const result = await dataSource.query(`DELETE FROM attachment WHERE id = $1 RETURNING id, study_id, file_name, sha256, storage_key`, [idOf(req)]);
+          // TypeORM answers DELETE … RETURNING with [rows, count].
+          const [row] = Array.isArray(result[0]) ? result[0] : result;
+          if (!row) throw new NotFoundError('No attachment has this id.');
+          await storage.delete(row.storage_key);
+          await recordAudit(dataSource, { ...auditContext(req), action: 'delete', entityType: 'attachment', entityId: row.id, outcome: 'success', detail: { studyId: row.study_id, fileName: row.file_name, sha256: row.sha256 } });
+          res.status(204).end();
+        },
+      ],
+    },
+  ];
+}

@@ -1,0 +1,60 @@
+import type { Details, Findings, Setup } from '../../shared/study/schema';
+
+/** Section field → study column. Numbers are read back as float8 so they arrive as numbers. */
+type Column<T> = { field: keyof T; column: string; kind?: 'number' | 'timestamp' };
+
+export const detailsColumns: Column<Details>[] = [
+  { field: 'encounter', column: 'encounter' },
+  { field: 'procedureStartedAt', column: 'procedure_started_at', kind: 'timestamp' },
+  { field: 'procedureEndedAt', column: 'procedure_ended_at', kind: 'timestamp' },
+  { field: 'operatorId', column: 'operator_id' },
+  { field: 'referringName', column: 'referring_name' },
+  { field: 'referringEmail', column: 'referring_email' },
+  { field: 'indication', column: 'indication' },
+  { field: 'clinicalQuestion', column: 'clinical_question' },
+  { field: 'accessSite', column: 'access_site' },
+  { field: 'guideFrench', column: 'guide_french', kind: 'number' },
+];
+
+export const setupColumns: Column<Setup>[] = [
+  { field: 'transducerZeroed', column: 'transducer_zeroed' },
+  { field: 'nitratesGiven', column: 'nitrates_given' },
+  { field: 'nitrateDoseMicrograms', column: 'nitrate_dose_ug', kind: 'number' },
+  { field: 'equalizedInAorta', column: 'equalized_in_aorta' },
+  { field: 'introducerRemoved', column: 'introducer_removed' },
+  { field: 'wirePosition', column: 'wire_position' },
+  { field: 'hyperemicAgent', column: 'hyperemic_agent' },
+  { field: 'hyperemicRoute', column: 'hyperemic_route' },
+  { field: 'hyperemicDose', column: 'hyperemic_dose', kind: 'number' },
+  { field: 'hyperemicDoseUnit', column: 'hyperemic_dose_unit' },
+  { field: 'heparinUnits', column: 'heparin_units', kind: 'number' },
+];
+
+export const findingsColumns: Column<Findings>[] = [
+  { field: 'complications', column: 'complications' },
+  { field: 'contrastMl', column: 'contrast_ml', kind: 'number' },
+  { field: 'fluoroscopyMinutes', column: 'fluoroscopy_minutes', kind: 'number' },
+  { field: 'impression', column: 'impression' },
+  { field: 'plan', column: 'plan' },
+];
+
+export function selectList<T>(columns: Column<T>[], alias: string, prefix: string): string {
+  return columns
+    .map((c) => `${alias}.${c.column}${c.kind === 'number' ? '::float8' : ''} AS "${prefix}.${String(c.field)}"`)
+    .join(', ');
+}
+
+export function readSection<T>(columns: Column<T>[], row: Record<string, unknown>, prefix: string): T {
+  const out: Record<string, unknown> = {};
+  for (const c of columns) {
+    const v = row[`${prefix}.${String(c.field)}`];
+    out[c.field as string] = v instanceof Date ? v.toISOString() : (v ?? null);
+  }
+  return out as T;
+}
+
+/** `SET col = $n, …` for a section, with its values, numbering from `start`. */
+export function assignments<T>(columns: Column<T>[], section: T, start: number): { sql: string; values: unknown[] } {
+  const values = columns.map((c) => (section as Record<string, unknown>)[c.field as string] ?? null);
+  return { sql: columns.map((c, i) => `${c.column} = $${start + i}`).join(', '), values };
+}

@@ -1,0 +1,77 @@
+import type { DataSource } from 'typeorm';
+import type { WorklistItem, WorklistPage, WorklistQuery } from '../../shared/study/worklist';
+import { BadRequestError } from '../http/problem';
+
+/** The cursor is the last row's sort key (text, so microseconds survive) and id. */
+function encodeCursor(sortKey: string, id: string): string {
+  return Buffer.from(JSON.stringify([sortKey, id])).toString('base64url');
+}
+
+function decodeCursor(cursor: string): [string, string] {
+  try {
+    const value = JSON.parse(Buffer.from(cursor, 'base64url').toString('utf8'));
+    if (Array.isArray(value) && value.length === 2 && typeof value[0] === 'string' && /^[0-9a-f-]{36}$/.test(value[1])) {
+      return value as [string, string];
+    }
+  } catch {
+    /* fall through */
+  }
+  throw new BadRequestError('The page cursor is not valid: start again from the first page.', [{ pointer: '/cursor', detail: 'Not a cursor this server issued.' }]);
+}
+
+const escapeLike = (s: string) => s.replace(/[\\%_]/g, (c) => `\\${c}`);
+
+/**
+ * Studies newest first (procedure start, or when the record was opened), filtered, one page at a
+ * time by keyset: `(sort_at, id) < cursor` rides the worklist indexes however deep the page.
+ */
+export async function listStudies(db: DataSource, query: WorklistQuery): Promise<WorklistPage> {
+  const where: string[] = [];
+  const values: unknown[] = [];
+  const param = (v: unknown) => {
+    values.push(v);
+    return `$${values.length}`;
+  };
+  if (query.state) where.push(`s.state = ${param(query.state)}`);
+  if (query.operatorId) where.push(`s.operator_id = ${param(query.operatorId)}`);
+  if (query.from) where.push(`s.sort_at >= ${param(query.from)}::date`);
+  if (query.to) where.push(`s.sort_at < (${param(query.to)}::date + 1)`);
+  if (query.q) {
+    const exact = param(query.q);
+    const prefix = param(`${escapeLike(query.q.toLowerCase())}%`);
+    where.push(`(p.mrn = ${exact} OR s.accession = upper(${exact}) OR lower(p.family_name) LIKE ${prefix} OR lower(p.given_name) LIKE ${prefix})`);
+  }
+  if (query.cursor) {
+    const [sortKey, id] = decodeCursor(query.cursor);
+    where.push(`(s.sort_at, s.id) < (${param(sortKey)}::timestamptz, ${param(id)}::uuid)`);
+  }
+  const rows = await db.query(
+    `SELECT s.id, s.accession, s.state, s.procedure_started_at, s.procedure_ended_at, s.indication, s.version,
+            s.sort_at::text AS sort_key,
+            p.mrn, p.family_name, p.given_name, to_char(p.birth_date, 'YYYY-MM-DD') AS birth_date, p.sex,
+            u.display_name AS operator_name
+     FROM study s JOIN patient p ON p.id = s.patient_id LEFT JOIN app_user u ON u.id = s.operator_id
+     ${where.length ? `WHERE ${where.join(' AND ')}` : ''}
+     ORDER BY s.sort_at DESC, s.id DESC
+     LIMIT ${param(query.limit + 1)}`,
+    values,
+  );
+  const page = rows.slice(0, query.limit);
+  const last = page[page.length - 1];
+  return {
+    items: page.map(
+      (r: Record<string, never>): WorklistItem => ({
+        id: r.id,
+        accession: r.accession,
+        state: r.state,
+        procedureStartedAt: (r.procedure_started_at as Date | null)?.toISOString() ?? null,
+        procedureEndedAt: (r.procedure_ended_at as Date | null)?.toISOString() ?? null,
+        indication: r.indication,
+        operatorName: r.operator_name,
+        version: r.version,
+        patient: { mrn: r.mrn, familyName: r.family_name, givenName: r.given_name, birthDate: r.birth_date, sex: r.sex },
+      }),
+    ),
+    nextCursor: rows.length > query.limit && last ? encodeCursor(last.sort_key, last.id) : null,
+  };
+}

@@ -1,0 +1,31 @@
+import { z } from 'zod';
+import { studyStates } from './vocabulary';
+
+/** GET /api/studies query: filters and a keyset cursor (opaque to the client). */
+export const worklistQuerySchema = z.object({
+  state: z.enum(studyStates, { error: 'state must be one of draft, awaiting-signature, signed, amended.' }).optional(),
+  q: z.string().trim().min(1).max(100, { error: 'Search text is too long.' }).optional(),
+  operatorId: z.uuid({ error: 'operatorId must be a user id.' }).optional(),
+  from: z.iso.date({ error: 'from must be a date (YYYY-MM-DD).' }).optional(),
+  to: z.iso.date({ error: 'to must be a date (YYYY-MM-DD).' }).optional(),
+  cursor: z.string().max(200).optional(),
+  limit: z.coerce.number().int().min(1).max(100, { error: 'limit must be at most 100.' }).default(25),
+});
+export type WorklistQuery = z.infer<typeof worklistQuerySchema>;
+
+export interface WorklistItem {
+  id: string;
+  accession: string;
+  state: (typeof studyStates)[number];
+  procedureStartedAt: string | null;
+  procedureEndedAt: string | null;
+  indication: string | null;
+  operatorName: string | null;
+  version: number;
+  patient: { mrn: string; familyName: string; givenName: string; birthDate: string; sex: string };
+}
+
+export interface WorklistPage {
+  items: WorklistItem[];
+  nextCursor: string | null;
+}

@@ -1,0 +1,200 @@
+import { randomUUID } from 'node:crypto';
+import request from 'supertest';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { DataSource } from 'typeorm';
+import { emptyVessel, type StudyRecord } from '../../shared/study/schema';
+import { openTestDatabase } from '../support/app';
+import { signIn, startStack, usernameOf, type TestStack } from '../support/stack';
+
+let db: DataSource;
+let stack: TestStack;
+let staff: string;
+let physician: string;
+let coder: string;
+
+beforeAll(async () => {
+  db = await openTestDatabase();
+  stack = await startStack(db, { attachments: { dir: '.data/test-attachments', maxBytes: 64 * 1024 } });
+  staff = (await signIn(stack, usernameOf('staff'))).cookie;
+  physician = (await signIn(stack, usernameOf('physician'))).cookie;
+  coder = (await signIn(stack, usernameOf('coder'))).cookie;
+});
+afterAll(async () => {
+  await stack.close();
+  await db.destroy();
+});
+
+const api = () => request(stack.url);
+const newPatient = () => ({ mrn: `M-${randomUUID().slice(0, 8)}`, familyName: 'Lindqvist', givenName: 'Oona', birthDate: '1966-08-09', sex: 'female' });
+
+async function create(cookie = staff, extra: Record<string, unknown> = {}): Promise<StudyRecord> {
+  const res = await api().post('/api/studies').set('Cookie', cookie).set('Origin', stack.url).send({ patient: newPatient(), ...extra }).expect(201);
+  return res.body;
+}
+
+describe('POST /api/studies', () => {
+  it('opens a draft for a new patient and records it', async () => {
+    const res = await api()
+      .post('/api/studies')
+      .set('Cookie', staff)
+      .set('Origin', stack.url)
+      .send({ patient: newPatient(), details: { indication: 'Intermediate LAD lesion', clinicalQuestion: 'intermediate-lesion', guideFrench: 6 } })
+      .expect(201);
+    expect(res.headers.location).toBe(`/api/studies/${res.body.id}`);
+    expect(res.body).toMatchObject({ state: 'draft', version: 1, details: { indication: 'Intermediate LAD lesion', guideFrench: 6, referringEmail: null }, vessels: [] });
+    expect(res.body.accession).toMatch(/^ISB-\d{8}-\d{4}-[A-Z0-9]{4}$/);
+    const [row] = await db.query(`SELECT action, outcome FROM audit_event WHERE entity_id = $1 AND action = 'create'`, [res.body.id]);
+    expect(row).toMatchObject({ action: 'create', outcome: 'success' });
+  });
+
+  it('answers a bad body with field errors located by JSON pointers', async () => {
+    const res = await api()
+      .post('/api/studies')
+      .set('Cookie', staff)
+      .set('Origin', stack.url)
+      .send({ patient: { ...newPatient(), birthDate: '1966-13-45', mrn: '' }, details: { guideFrench: 11, referringEmail: 'not-an-email' } })
+      .expect(400);
+    expect(res.headers['content-type']).toMatch(/problem\+json/);
+    const pointers = res.body.errors.map((e: { pointer: string }) => e.pointer);
+    expect(pointers).toEqual(expect.arrayContaining(['/patient/mrn', '/patient/birthDate', '/details/guideFrench', '/details/referringEmail']));
+    expect(res.body.errors.find((e: { pointer: string }) => e.pointer === '/details/guideFrench').detail).toBe('Guide catheter size must be at most 8 French.');
+  });
+
+  it('is refused to a coder (403) and to no session (401)', async () => {
+    await api().post('/api/studies').set('Cookie', coder).set('Origin', stack.url).send({ patient: newPatient() }).expect(403);
+    await api().post('/api/studies').set('Origin', stack.url).send({ patient: newPatient() }).expect(401);
+  });
+});
+
+describe('PATCH /api/studies/:id', () => {
+  it('stores vessels with their injections in their own tables and raises the version', async () => {
+    const study = await create();
+    const vessel = { ...emptyVessel(randomUUID(), 'LAD'), segment: 6, restPa: 100, restPd: 95, hyperemiaPa: 90, hyperemiaPd: 72, restTransit: [0.9, 0.88, 0.92], hyperemiaTransit: [0.3, 0.31, 0.29] };
+    const res = await api().patch(`/api/studies/${study.id}`).set('Cookie', staff).set('Origin', stack.url).send({ version: 1, vessels: [vessel] }).expect(200);
+    expect(res.body.version).toBe(2);
+    expect(res.body.vessels[0]).toMatchObject({ vessel: 'LAD', segment: 6, restPa: 100, hyperemiaTransit: [0.3, 0.31, 0.29] });
+    const [{ n }] = await db.query(`SELECT count(*)::int AS n FROM thermodilution_injection WHERE vessel_assessment_id = $1`, [vessel.id]);
+    expect(n).toBe(6);
+    const analysis = await api().get(`/api/studies/${study.id}/analysis`).set('Cookie', physician).expect(200);
+    // Case A of the domain brief, hand-computed from its formulas: FFR 72/90 = 0.80 (abnormal at ≤ 0.80, ESC 2024).
+    expect(analysis.body.analysis.vessels[0].ffr).toBeCloseTo(0.8, 10);
+    expect(analysis.body.analysis.vessels[0].ffrFlag).toBe('abnormal');
+    expect(analysis.body.analysis.vessels[0].cfr).toBeCloseTo(0.9 / 0.3, 2);
+  });
+
+  it('refuses a stale version with 409 and the current record, and keeps the newer data', async () => {
+    const study = await create();
+    await api().patch(`/api/studies/${study.id}`).set('Cookie', staff).set('Origin', stack.url).send({ version: 1, findings: { complications: 'None', contrastMl: 80, fluoroscopyMinutes: 6.5, impression: null, plan: null } }).expect(200);
+    const stale = await api().patch(`/api/studies/${study.id}`).set('Cookie', physician).set('Origin', stack.url).send({ version: 1, findings: { complications: 'Overwritten?', contrastMl: 1, fluoroscopyMinutes: 1, impression: null, plan: null } }).expect(409);
+    expect(stale.headers['content-type']).toMatch(/problem\+json/);
+    expect(stale.body).toMatchObject({ status: 409, currentVersion: 2, current: { findings: { complications: 'None', contrastMl: 80 } } });
+    const now = await api().get(`/api/studies/${study.id}`).set('Cookie', staff).expect(200);
+    expect(now.body.findings.complications).toBe('None');
+    expect(now.body.version).toBe(2);
+  });
+
+  it.each([
+    ['a negative pressure', { vessels: [{ ...emptyVessel('7d5b6f1e-0a4c-4d3f-9b1e-2c3d4e5f6a7b', 'LAD'), restPa: -4 }] }, '/vessels/0/restPa'],
+    ['a transit time above 10 s', { vessels: [{ ...emptyVessel('7d5b6f1e-0a4c-4d3f-9b1e-2c3d4e5f6a7b', 'RCA'), restTransit: [0.8, 12] }] }, '/vessels/0/restTransit/1'],
+    ['an unknown vessel', { vessels: [{ ...emptyVessel('7d5b6f1e-0a4c-4d3f-9b1e-2c3d4e5f6a7b', 'LAD'), vessel: 'XYZ' }] }, '/vessels/0/vessel'],
+    ['a constriction above 100%', { vasoreactivity: { nitrateReversal: null, doses: [{ id: '6c1d2e3f-4a5b-4c6d-8e7f-9a0b1c2d3e4f', vessel: 'LAD', micrograms: 20, constrictionPct: 140, symptoms: false, ischemicEcg: false }] } }, '/vasoreactivity/doses/0/constrictionPct'],
+    ['no version', { version: undefined }, '/version'],
+  ])('refuses %s with a field error at its pointer', async (_what, body, pointer) => {
+    const study = await create();
+    const res = await api().patch(`/api/studies/${study.id}`).set('Cookie', staff).set('Origin', stack.url).send({ version: 1, ...body }).expect(400);
+    expect(res.body.errors.map((e: { pointer: string }) => e.pointer)).toContain(pointer);
+  });
+
+  it('refuses edits to a signed study', async () => {
+    const study = await create();
+    await db.query(`UPDATE study SET state = 'signed' WHERE id = $1`, [study.id]);
+    const res = await api().patch(`/api/studies/${study.id}`).set('Cookie', physician).set('Origin', stack.url).send({ version: 1, findings: { complications: null, contrastMl: null, fluoroscopyMinutes: null, impression: 'x', plan: null } }).expect(409);
+    expect(res.body.title).toBe('The study is signed');
+  });
+
+  it('answers 404 for an unknown or malformed id', async () => {
+    await api().get('/api/studies/00000000-0000-4000-8000-000000000000').set('Cookie', staff).expect(404);
+    await api().get('/api/studies/not-a-uuid').set('Cookie', staff).expect(404);
+  });
+});
+
+describe('GET /api/studies (worklist)', () => {
+  it('pages by keyset without gaps or repeats, and filters by state and search', async () => {
+    const family = `Zed${randomUUID().slice(0, 6)}`;
+    const made: string[] = [];
+    for (let i = 0; i < 7; i++) {
+      const res = await api().post('/api/studies').set('Cookie', staff).set('Origin', stack.url).send({ patient: { ...newPatient(), familyName: family } }).expect(201);
+      made.push(res.body.id);
+    }
+    const seen: string[] = [];
+    let cursor: string | null = null;
+    do {
+      const res: { body: { items: { id: string }[]; nextCursor: string | null } } = await api().get("/api/studies").query({ q: family.toLowerCase().slice(0, 6), limit: 3, ...(cursor ? { cursor } : {}) }).set('Cookie', staff).expect(200);
+      seen.push(...res.body.items.map((s: { id: string }) => s.id));
+      cursor = res.body.nextCursor;
+    } while (cursor);
+    expect(new Set(seen).size).toBe(seen.length);
+    expect(seen.sort()).toEqual([...made].sort());
+    const signed = await api().get('/api/studies').query({ state: 'signed', q: family }).set('Cookie', staff).expect(200);
+    expect(signed.body.items).toEqual([]);
+  });
+
+  it('refuses a forged cursor and a bad filter with a clear problem', async () => {
+    const bad = await api().get('/api/studies').query({ cursor: 'bm9wZQ' }).set('Cookie', staff).expect(400);
+    expect(bad.body.errors[0].pointer).toBe('/cursor');
+    const state = await api().get('/api/studies').query({ state: 'finished' }).set('Cookie', staff).expect(400);
+    expect(state.body.errors[0].pointer).toBe('/state');
+  });
+});
+
+describe('attachments', () => {
+  const pdf = Buffer.from('%PDF-1.4\n1 0 obj << /Type /Catalog >> endobj\ntrailer << /Root 1 0 R >>\n%%EOF\n');
+  const png = Buffer.from('89504e470d0a1a0a0000000d4948445200000001000000010806000000', 'hex');
+  const csv = Buffer.from('time_s,pa_mmHg,pd_mmHg\n0.00,92,88\n0.01,93,88\n');
+  const elf = Buffer.concat([Buffer.from([0x7f, 0x45, 0x4c, 0x46, 2, 1, 1, 0]), Buffer.alloc(120, 1)]);
+
+  it.each([
+    ['printout.pdf', pdf, 'application/pdf'],
+    ['trace.png', png, 'image/png'],
+    ['pullback.csv', csv, 'text/csv'],
+  ])('accepts %s, stores its SHA-256 and serves it back', async (name, bytes, type) => {
+    const study = await create();
+    const res = await api().post(`/api/studies/${study.id}/attachments`).set('Cookie', staff).set('Origin', stack.url).attach('file', bytes, name).expect(201);
+    expect(res.body).toMatchObject({ fileName: name, mediaType: type, sizeBytes: bytes.length });
+    expect(res.body.sha256).toBe((await import('node:crypto')).createHash('sha256').update(bytes).digest('hex'));
+    const back = await api().get(`/api/attachments/${res.body.id}/content`).set('Cookie', physician).buffer(true).parse((r, cb) => {
+      const chunks: Buffer[] = [];
+      r.on('data', (c: Buffer) => chunks.push(c));
+      r.on('end', () => cb(null, Buffer.concat(chunks)));
+    }).expect(200);
+    expect(Buffer.compare(back.body as Buffer, bytes)).toBe(0);
+    expect(back.headers['content-disposition']).toContain(name);
+    const record = await api().get(`/api/studies/${study.id}`).set('Cookie', staff).expect(200);
+    expect(record.body.attachments.map((a: { id: string }) => a.id)).toEqual([res.body.id]);
+  });
+
+  it('refuses an executable renamed to .pdf with 415, judged by content', async () => {
+    const study = await create();
+    const res = await api().post(`/api/studies/${study.id}/attachments`).set('Cookie', staff).set('Origin', stack.url).attach('file', elf, { filename: 'report.pdf', contentType: 'application/pdf' }).expect(415);
+    expect(res.body.title).toBe('File type not accepted');
+    const [{ n }] = await db.query(`SELECT count(*)::int AS n FROM attachment WHERE study_id = $1`, [study.id]);
+    expect(n).toBe(0);
+  });
+
+  it('refuses a file over the size limit with 413', async () => {
+    const study = await create();
+    const big = Buffer.concat([pdf, Buffer.alloc(70 * 1024, 0x20)]);
+    const res = await api().post(`/api/studies/${study.id}/attachments`).set('Cookie', staff).set('Origin', stack.url).attach('file', big, 'big.pdf').expect(413);
+    expect(res.body.title).toBe('File too large');
+  });
+
+  it('lets staff delete an attachment (audited) but not a coder', async () => {
+    const study = await create();
+    const up = await api().post(`/api/studies/${study.id}/attachments`).set('Cookie', staff).set('Origin', stack.url).attach('file', pdf, 'a.pdf').expect(201);
+    await api().delete(`/api/attachments/${up.body.id}`).set('Cookie', coder).set('Origin', stack.url).expect(403);
+    await api().delete(`/api/attachments/${up.body.id}`).set('Cookie', physician).set('Origin', stack.url).expect(204);
+    await api().get(`/api/attachments/${up.body.id}/content`).set('Cookie', staff).expect(404);
+    const [row] = await db.query(`SELECT actor_role, detail FROM audit_event WHERE action = 'delete' AND entity_id = $1`, [up.body.id]);
+    expect(row).toMatchObject({ actor_role: 'physician', detail: { fileName: 'a.pdf', sha256: up.body.sha256 } });
+  });
+});
