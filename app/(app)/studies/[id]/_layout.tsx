@@ -1,0 +1,155 @@
+import { useState, type ReactNode } from 'react';
+import { ScrollView, StyleSheet, View } from 'react-native';
+import { Slot, useLocalSearchParams } from 'expo-router';
+import { FormProvider, useForm } from 'react-hook-form';
+import { zodResolver } from '@hookform/resolvers/zod';
+import { studySectionsSchema, type StudyRecord, type StudySections } from '../../../../shared/study/schema';
+import { ApiError } from '../../../../components/data/api';
+import { useStudy } from '../../../../components/data/study-query';
+import { ErrorState, LoadingState } from '../../../../components/ui/async-states';
+import { Center, useIsWide } from '../../../../components/ui/layout';
+import { Text } from '../../../../components/ui/text';
+import { StudyStateChip } from '../../../../components/study-state-chip';
+import { patientName } from '../../../../components/format';
+import { SectionNav } from '../../../../components/study/section-nav';
+import { ConflictBanner, SaveStatus } from '../../../../components/study/save-status';
+import { StudyResults } from '../../../../components/study/live-results';
+import { StudyContext } from '../../../../components/study/study-context';
+import { readDraft } from '../../../../components/study/draft-store';
+import { sectionsOf, useAutosave } from '../../../../components/study/use-autosave';
+import { color, space } from '../../../../components/theme';
+
+/** One study: loads it once, owns its form and autosave; sections are child routes. */
+export default function StudyLayout() {
+  const { id } = useLocalSearchParams<{ id: string }>();
+  const study = useStudy(id);
+  if (study.isPending) {
+    return (
+      <Center style={styles.pad}>
+        <LoadingState label="Opening the study…" testID="study-loading" />
+      </Center>
+    );
+  }
+  if (study.isError) {
+    const missing = study.error instanceof ApiError && study.error.status === 404;
+    return (
+      <Center style={styles.pad}>
+        <ErrorState
+          title={missing ? 'No such study' : 'The study could not be opened'}
+          detail={missing ? 'The link may be wrong, or the study was removed.' : study.error.message}
+          onRetry={missing ? undefined : () => study.refetch()}
+        />
+      </Center>
+    );
+  }
+  return <StudyEditor key={study.data.id} study={study.data} />;
+}
+
+function StudyEditor({ study }: { study: StudyRecord }) {
+  const wide = useIsWide();
+  const locked = study.state === 'signed' || study.state === 'amended';
+  // Unsent edits kept on this device win over the server copy at load; their base version decides
+  // whether they can be sent as they are or need the user's choice (conflict).
+  const [initial] = useState(() => {
+    const draft = locked ? null : readDraft(study.id);
+    const server = sectionsOf(study);
+    if (draft && JSON.stringify(draft.sections) !== JSON.stringify(server)) return { values: draft.sections, baseVersion: draft.baseVersion };
+    return { values: server, baseVersion: study.version };
+  });
+  const form = useForm<StudySections>({ defaultValues: initial.values, resolver: zodResolver(studySectionsSchema), mode: 'onChange' });
+  const save = useAutosave(study, form, initial.baseVersion, locked);
+  const current = save.state.kind === 'conflict' ? save.state.current : null;
+
+  const header = (
+    <View style={[styles.header, wide && styles.headerWide]}>
+      <View style={styles.headerText}>
+        <Text variant={wide ? 'headline' : 'title'} weight="bold" role="heading" aria-level={1} testID="study-patient-name" numberOfLines={1}>
+          {patientName(form.watch('patient'))}
+        </Text>
+        <Text variant="caption" tone="muted">
+          MRN {form.watch('patient.mrn')} · {study.accession}
+        </Text>
+      </View>
+      <View style={styles.headerState}>
+        <StudyStateChip state={study.state} />
+        {locked ? (
+          <Text variant="caption" weight="semibold" tone="muted">
+            Signed — read only; changes are made as an addendum
+          </Text>
+        ) : (
+          <SaveStatus state={save.state} />
+        )}
+      </View>
+    </View>
+  );
+
+  return (
+    <StudyContext.Provider value={{ study, locked, save }}>
+      <FormProvider {...form}>
+        <View style={styles.root} testID="study-editor">
+          {header}
+          {current ? (
+            <View style={styles.bannerWrap}>
+              <ConflictBanner state={save.state} onLoadSaved={() => save.loadSaved(current)} onKeepMine={() => save.keepMine(current)} />
+            </View>
+          ) : null}
+          {wide ? (
+            <View style={styles.panes}>
+              <SectionNav studyId={study.id} vertical />
+              <ScrollView style={styles.formPane} contentContainerStyle={styles.formContent} keyboardShouldPersistTaps="handled">
+                <Locked locked={locked}>
+                  <Slot />
+                </Locked>
+              </ScrollView>
+              <ScrollView style={styles.resultsPane} contentContainerStyle={styles.resultsContent}>
+                <StudyResults />
+              </ScrollView>
+            </View>
+          ) : (
+            <>
+              <SectionNav studyId={study.id} vertical={false} />
+              <ScrollView style={styles.formPane} contentContainerStyle={styles.formContentPhone} keyboardShouldPersistTaps="handled">
+                <Locked locked={locked}>
+                  <Slot />
+                </Locked>
+                <StudyResults />
+              </ScrollView>
+            </>
+          )}
+        </View>
+      </FormProvider>
+    </StudyContext.Provider>
+  );
+}
+
+/**
+ * A signed study is read only: a native fieldset disables its inputs at once (web), and pointer
+ * events are off for the choice chips. Autosave is off too, and the server refuses edits.
+ */
+function Locked({ locked, children }: { locked: boolean; children: ReactNode }) {
+  if (!locked) return <>{children}</>;
+  return (
+    <View pointerEvents="none" aria-disabled>
+      <fieldset disabled style={fieldsetReset}>
+        {children}
+      </fieldset>
+    </View>
+  );
+}
+const fieldsetReset = { border: 0, margin: 0, padding: 0, minWidth: 0, display: 'flex', flexDirection: 'column', gap: space.xl } as const;
+
+const styles = StyleSheet.create({
+  pad: { padding: space.xl },
+  root: { flex: 1 },
+  header: { flexDirection: 'row', flexWrap: 'wrap', justifyContent: 'space-between', alignItems: 'center', gap: space.sm, paddingHorizontal: space.lg, paddingVertical: space.md, backgroundColor: color.surface, borderBottomWidth: 1, borderBottomColor: color.line },
+  headerWide: { paddingHorizontal: space.xxl, paddingVertical: space.lg },
+  headerText: { flexShrink: 1, gap: 2 },
+  headerState: { alignItems: 'flex-end', gap: space.xs, flexShrink: 1 },
+  bannerWrap: { padding: space.md },
+  panes: { flex: 1, flexDirection: 'row', gap: space.xl, paddingLeft: space.xl, paddingTop: space.xl },
+  formPane: { flex: 1 },
+  formContent: { paddingBottom: space.xxxl, paddingRight: space.xs, gap: space.xl, maxWidth: 760 },
+  formContentPhone: { padding: space.lg, gap: space.xl, paddingBottom: space.xxxl },
+  resultsPane: { width: 380, flexGrow: 0, paddingRight: space.xl },
+  resultsContent: { paddingBottom: space.xxxl },
+});

@@ -1,0 +1,121 @@
+import { useState } from 'react';
+import { Pressable, StyleSheet, View } from 'react-native';
+import { useFieldArray, useFormContext, useWatch } from 'react-hook-form';
+import { ChoiceField, NumberField, TransitTimesField } from '../../../../components/form/fields';
+import { optionsOf } from '../../../../components/form/options';
+import { newId } from '../../../../components/form/new-id';
+import { FieldRow, SectionCard } from '../../../../components/study/section-card';
+import { useLiveAnalysis, VesselResults } from '../../../../components/study/live-results';
+import { Button } from '../../../../components/ui/button';
+import { EmptyState } from '../../../../components/ui/async-states';
+import { Text } from '../../../../components/ui/text';
+import { color, radius, space, touchTarget } from '../../../../components/theme';
+import { vesselCodes, nhprKinds, type VesselCode, type VesselResult } from '../../../../shared/physiology';
+import { emptyVessel, type StudySections } from '../../../../shared/study/schema';
+import { coronarySegments, decisionLabel, pullbackPatternLabel, segmentModelName, vesselLabel } from '../../../../shared/study/vocabulary';
+
+const nhprKindLabel = { 'whole-cycle': 'Whole-cycle Pd/Pa', diastolic: 'Diastolic ratio', 'full-cycle-minimum': 'Full-cycle minimum ratio' } as const;
+
+/** Vessels: one card per vessel studied, with its pressures, transit times and live indices. */
+export default function VesselsSection() {
+  const { control } = useFormContext<StudySections>();
+  const { fields, append, remove } = useFieldArray({ control, name: 'vessels', keyName: 'key' });
+  const { result } = useLiveAnalysis();
+  const [picking, setPicking] = useState(false);
+  return (
+    <>
+      {fields.length === 0 ? <EmptyState title="No vessel yet" detail="Add the first vessel you measured." testID="vessels-empty" /> : null}
+      {fields.map((f, i) => (
+        <VesselCard key={f.key} index={i} onRemove={() => remove(i)} result={result?.vessels.find((v) => v.id === f.id)} />
+      ))}
+      {picking ? (
+        <SectionCard title="Which vessel?" testID="vessel-picker">
+          <View style={styles.pick} role="radiogroup" aria-label="Vessel to add">
+            {vesselCodes.map((code) => (
+              <Pressable
+                key={code}
+                testID={`add-vessel-${code}`}
+                role="button"
+                accessibilityLabel={`Add ${vesselLabel[code]}`}
+                onPress={() => {
+                  append(emptyVessel(newId(), code));
+                  setPicking(false);
+                }}
+                style={styles.pickItem}
+              >
+                <Text weight="semibold">{code}</Text>
+                <Text variant="caption" tone="muted">
+                  {vesselLabel[code]}
+                </Text>
+              </Pressable>
+            ))}
+          </View>
+          <Button kind="secondary" label="Cancel" testID="add-vessel-cancel" onPress={() => setPicking(false)} />
+        </SectionCard>
+      ) : (
+        <Button testID="add-vessel" label={fields.length ? 'Add another vessel' : 'Add a vessel'} onPress={() => setPicking(true)} />
+      )}
+    </>
+  );
+}
+
+function VesselCard({ index, onRemove, result }: { index: number; onRemove: () => void; result: VesselResult | undefined }) {
+  const { control } = useFormContext<StudySections>();
+  const vessel = useWatch({ control, name: `vessels.${index}.vessel` }) as VesselCode;
+  const p = `vessels.${index}`;
+  const t = `vessel-${index}`;
+  const segments = coronarySegments.filter((s) => s.vessel === vessel);
+  return (
+    <SectionCard
+      title={`${vessel} · ${vesselLabel[vessel]}`}
+      testID={`vessel-card-${index}`}
+      aside={
+        <Pressable testID={`${t}-remove`} role="button" accessibilityLabel={`Remove ${vesselLabel[vessel]}`} onPress={onRemove} style={styles.remove}>
+          <Text variant="caption" weight="semibold" tone="abnormal">
+            Remove
+          </Text>
+        </Pressable>
+      }
+    >
+      <VesselResults result={result} testID={`${t}-results`} />
+      <FieldRow>
+        <ChoiceField
+          name={`${p}.segment`}
+          label={`Segment (${segmentModelName})`}
+          testID={`${t}-segment`}
+          options={(segments.length ? segments : coronarySegments).map((s) => ({ value: s.n, label: `${s.n} ${s.label}` }))}
+        />
+        <NumberField name={`${p}.visualStenosisPct`} label="Visual stenosis" unit="%" testID={`${t}-stenosis`} />
+      </FieldRow>
+      <Text weight="semibold">At rest</Text>
+      <FieldRow>
+        <NumberField name={`${p}.restPa`} label="Pa" unit="mmHg" testID={`${t}-rest-pa`} />
+        <NumberField name={`${p}.restPd`} label="Pd" unit="mmHg" testID={`${t}-rest-pd`} />
+      </FieldRow>
+      <TransitTimesField name={`${p}.restTransit`} label="Transit time at rest" testID={`${t}-rest-tmn`} />
+      <FieldRow>
+        <ChoiceField name={`${p}.nhprKind`} label="Resting ratio from the console" testID={`${t}-nhpr-kind`} options={nhprKinds.map((k) => ({ value: k, label: nhprKindLabel[k] }))} />
+        <NumberField name={`${p}.nhprValue`} label="Resting ratio value" testID={`${t}-nhpr-value`} />
+      </FieldRow>
+      <Text weight="semibold">At hyperaemia</Text>
+      <FieldRow>
+        <NumberField name={`${p}.hyperemiaPa`} label="Pa" unit="mmHg" testID={`${t}-hyp-pa`} />
+        <NumberField name={`${p}.hyperemiaPd`} label="Pd" unit="mmHg" testID={`${t}-hyp-pd`} />
+        <NumberField name={`${p}.consoleFfr`} label="FFR from the console" hint="Only when pressures were not entered" testID={`${t}-console-ffr`} />
+      </FieldRow>
+      <TransitTimesField name={`${p}.hyperemiaTransit`} label="Transit time at hyperaemia" testID={`${t}-hyp-tmn`} />
+      <FieldRow>
+        <NumberField name={`${p}.wedgePressure`} label="Coronary wedge pressure" unit="mmHg" hint="During balloon occlusion, if measured" testID={`${t}-wedge`} />
+        <NumberField name={`${p}.driftPdPa`} label="Drift check at pull-back (Pd/Pa)" hint="Sensor at the guide tip after the run" testID={`${t}-drift`} />
+      </FieldRow>
+      <ChoiceField name={`${p}.pullbackPattern`} label="Pull-back pattern" testID={`${t}-pullback`} options={optionsOf(pullbackPatternLabel)} />
+      <ChoiceField name={`${p}.decision`} label="Decision" testID={`${t}-decision`} options={optionsOf(decisionLabel)} />
+    </SectionCard>
+  );
+}
+
+const styles = StyleSheet.create({
+  pick: { flexDirection: 'row', flexWrap: 'wrap', gap: space.sm },
+  pickItem: { minHeight: touchTarget, minWidth: 128, padding: space.sm, borderWidth: 1, borderColor: color.line, borderRadius: radius.md, backgroundColor: color.surface },
+  remove: { minHeight: touchTarget, justifyContent: 'center', paddingHorizontal: space.md },
+});

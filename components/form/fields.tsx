@@ -1,0 +1,255 @@
+import { useEffect, useState, type ReactNode } from 'react';
+import { Pressable, StyleSheet, TextInput, View } from 'react-native';
+import { useController, useFormContext } from 'react-hook-form';
+import { Text } from '../ui/text';
+import { color, font, radius, space, touchTarget, type } from '../theme';
+import { parseNumberText } from './parse-number';
+
+interface FieldProps {
+  name: string;
+  label: string;
+  testID: string;
+  hint?: string;
+}
+
+/** Label above, the control, then a hint or the error — the error is announced and tied to the field. */
+export function FieldShell({ label, error, hint, children, labelID }: { label: string; error?: string; hint?: string; children: ReactNode; labelID?: string }) {
+  return (
+    <View style={styles.field}>
+      <Text weight="medium" variant="caption" nativeID={labelID}>
+        {label}
+      </Text>
+      {children}
+      {error ? (
+        <Text variant="caption" tone="abnormal" role="alert" weight="medium">
+          ▲ {error}
+        </Text>
+      ) : hint ? (
+        <Text variant="caption" tone="faint">
+          {hint}
+        </Text>
+      ) : null}
+    </View>
+  );
+}
+
+/** A number with its unit beside it and the numeric keyboard; empty means "not recorded". */
+export function NumberField({ name, label, unit, testID, hint, integer = false }: FieldProps & { unit?: string; integer?: boolean }) {
+  const { control, setError, clearErrors } = useFormContext();
+  const { field, fieldState } = useController({ name, control });
+  const [text, setText] = useState(field.value == null ? '' : String(field.value));
+  const [badText, setBadText] = useState(false);
+
+  // Follow the value when it changes from outside (a reload or a merge), not while typing.
+  useEffect(() => {
+    const parsed = parseNumberText(text);
+    if (!parsed.ok || parsed.value !== field.value) setText(field.value == null ? '' : String(field.value));
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+  }, [field.value]);
+
+  const error = badText ? `${label}: enter a number${unit ? ` in ${unit}` : ''}.` : fieldState.error?.message;
+  return (
+    <FieldShell label={label} error={error} hint={hint}>
+      <View style={[styles.inputRow, error ? styles.inputError : null]}>
+        <TextInput
+          testID={testID}
+          accessibilityLabel={unit ? `${label} in ${unit}` : label}
+          aria-invalid={!!error}
+          value={text}
+          inputMode={integer ? 'numeric' : 'decimal'}
+          keyboardType={integer ? 'number-pad' : 'decimal-pad'}
+          onChangeText={(t) => {
+            setText(t);
+            const parsed = parseNumberText(t);
+            if (!parsed.ok) {
+              setBadText(true);
+              setError(name, { type: 'format', message: `${label}: enter a number.` });
+              return;
+            }
+            setBadText(false);
+            clearErrors(name);
+            field.onChange(parsed.value);
+          }}
+          onBlur={field.onBlur}
+          style={styles.input}
+        />
+        {unit ? (
+          <Text tone="muted" style={styles.unit} aria-hidden>
+            {unit}
+          </Text>
+        ) : null}
+      </View>
+    </FieldShell>
+  );
+}
+
+export function TextField({ name, label, testID, hint, multiline = false, keyboard }: FieldProps & { multiline?: boolean; keyboard?: 'email' | 'text' }) {
+  const { control } = useFormContext();
+  const { field, fieldState } = useController({ name, control });
+  return (
+    <FieldShell label={label} error={fieldState.error?.message} hint={hint}>
+      <TextInput
+        testID={testID}
+        accessibilityLabel={label}
+        aria-invalid={!!fieldState.error}
+        value={field.value ?? ''}
+        onChangeText={(t) => field.onChange(t === '' ? null : t)}
+        onBlur={field.onBlur}
+        multiline={multiline}
+        numberOfLines={multiline ? 4 : 1}
+        inputMode={keyboard === 'email' ? 'email' : 'text'}
+        autoCapitalize={keyboard === 'email' ? 'none' : 'sentences'}
+        style={[styles.input, styles.textInput, multiline && styles.multiline, fieldState.error ? styles.inputError : null]}
+      />
+    </FieldShell>
+  );
+}
+
+export interface Option<T> {
+  value: T;
+  label: string;
+}
+
+/** One choice from a short list, as large radio chips; "Not recorded" clears it when allowed. */
+export function ChoiceField<T extends string | number | boolean>({ name, label, testID, hint, options, allowClear = true }: FieldProps & { options: Option<T>[]; allowClear?: boolean }) {
+  const { control } = useFormContext();
+  const { field, fieldState } = useController({ name, control });
+  const all: Option<T | null>[] = allowClear ? [...options, { value: null, label: 'Not recorded' }] : options;
+  return (
+    <FieldShell label={label} error={fieldState.error?.message} hint={hint} labelID={`${testID}-label`}>
+      <View style={styles.chips} role="radiogroup" aria-labelledby={`${testID}-label`}>
+        {all.map((o) => {
+          const selected = field.value === o.value || (o.value === null && field.value == null);
+          return (
+            <Pressable
+              key={String(o.value)}
+              testID={`${testID}-${String(o.value)}`}
+              role="radio"
+              aria-checked={selected}
+              accessibilityLabel={o.label}
+              onPress={() => field.onChange(o.value)}
+              style={[styles.chip, selected && styles.chipSelected, o.value === null && !selected && styles.chipQuiet]}
+            >
+              <Text variant="caption" weight={selected ? 'semibold' : 'regular'} tone={selected ? 'onBrand' : 'ink'}>
+                {selected ? '✓ ' : ''}
+                {o.label}
+              </Text>
+            </Pressable>
+          );
+        })}
+      </View>
+    </FieldShell>
+  );
+}
+
+export function YesNoField(props: FieldProps) {
+  return (
+    <ChoiceField
+      {...props}
+      options={[
+        { value: true, label: 'Yes' },
+        { value: false, label: 'No' },
+      ]}
+    />
+  );
+}
+
+/** A set of thermodilution injections: one box per injection; the value is the list of entered times. */
+export function TransitTimesField({ name, label, testID, slots = 3 }: FieldProps & { slots?: number }) {
+  const { control } = useFormContext();
+  const { field, fieldState } = useController({ name, control });
+  const values: number[] = field.value ?? [];
+  const [texts, setTexts] = useState<string[]>(() => padTo(values.map(String), Math.max(slots, values.length)));
+  const [bad, setBad] = useState<number[]>([]);
+
+  useEffect(() => {
+    const entered = texts.map((t) => parseNumberText(t)).flatMap((p) => (p.ok && p.value !== null ? [p.value] : []));
+    if (JSON.stringify(entered) !== JSON.stringify(values)) setTexts(padTo(values.map(String), Math.max(slots, values.length)));
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+  }, [JSON.stringify(values)]);
+
+  const update = (i: number, t: string) => {
+    const next = [...texts];
+    next[i] = t;
+    setTexts(next);
+    const parsed = next.map((x) => parseNumberText(x));
+    setBad(parsed.flatMap((p, j) => (p.ok ? [] : [j])));
+    field.onChange(parsed.flatMap((p) => (p.ok && p.value !== null ? [p.value] : [])));
+  };
+  const error = bad.length ? `Injection ${bad.map((b) => b + 1).join(', ')}: enter a number in s.` : fieldState.error?.message ?? firstItemError(fieldState.error);
+  return (
+    <FieldShell label={label} error={error} hint="One box per saline injection, in seconds; three is usual.">
+      <View style={styles.injections}>
+        {texts.map((t, i) => (
+          <View key={i} style={[styles.inputRow, styles.injection, bad.includes(i) && styles.inputError]}>
+            <TextInput
+              testID={`${testID}-${i}`}
+              accessibilityLabel={`${label}, injection ${i + 1}, in seconds`}
+              value={t}
+              inputMode="decimal"
+              keyboardType="decimal-pad"
+              onChangeText={(x) => update(i, x)}
+              style={styles.input}
+            />
+            <Text tone="muted" style={styles.unit} aria-hidden>
+              s
+            </Text>
+          </View>
+        ))}
+        {texts.length < 6 ? (
+          <Pressable testID={`${testID}-add`} role="button" accessibilityLabel={`Add an injection to ${label}`} onPress={() => setTexts([...texts, ''])} style={styles.addInjection}>
+            <Text variant="caption" weight="semibold" tone="brand">
+              + injection
+            </Text>
+          </Pressable>
+        ) : null}
+      </View>
+    </FieldShell>
+  );
+}
+
+function padTo(list: string[], n: number): string[] {
+  return [...list, ...Array(Math.max(0, n - list.length)).fill('')];
+}
+
+function firstItemError(error: unknown): string | undefined {
+  if (!error || typeof error !== 'object') return undefined;
+  for (const v of Object.values(error as Record<string, unknown>)) {
+    if (v && typeof v === 'object' && 'message' in v) return String((v as { message: unknown }).message);
+  }
+  return undefined;
+}
+
+const styles = StyleSheet.create({
+  field: { gap: space.xs },
+  inputRow: {
+    flexDirection: 'row',
+    alignItems: 'center',
+    minHeight: touchTarget,
+    borderWidth: 1,
+    borderColor: color.inkFaint,
+    borderRadius: radius.md,
+    backgroundColor: color.surface,
+    paddingHorizontal: space.md,
+  },
+  inputError: { borderColor: color.abnormal, borderWidth: 2 },
+  input: { flex: 1, minWidth: 0, minHeight: touchTarget - 2, fontFamily: font.regular, fontSize: type.body.fontSize, color: color.ink },
+  textInput: { borderWidth: 1, borderColor: color.inkFaint, borderRadius: radius.md, backgroundColor: color.surface, paddingHorizontal: space.md },
+  multiline: { minHeight: 96, paddingVertical: space.sm, textAlignVertical: 'top' },
+  unit: { marginLeft: space.xs },
+  chips: { flexDirection: 'row', flexWrap: 'wrap', gap: space.sm },
+  chip: {
+    minHeight: touchTarget,
+    justifyContent: 'center',
+    paddingHorizontal: space.md,
+    borderRadius: radius.md,
+    borderWidth: 1,
+    borderColor: color.line,
+    backgroundColor: color.surface,
+  },
+  chipSelected: { backgroundColor: color.brand, borderColor: color.brand },
+  chipQuiet: { borderStyle: 'dashed' },
+  injections: { flexDirection: 'row', flexWrap: 'wrap', gap: space.sm, alignItems: 'center' },
+  injection: { width: 96 },
+  addInjection: { minHeight: touchTarget, justifyContent: 'center', paddingHorizontal: space.sm },
+});

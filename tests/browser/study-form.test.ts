@@ -1,0 +1,129 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { Page } from 'playwright-core';
+import type { DataSource } from 'typeorm';
+import { launchBrowser, screenshotPath, viewports } from '../support/browser';
+import { openTestDatabase } from '../support/app';
+import { startStack, usernameOf, type TestStack } from '../support/stack';
+
+let db: DataSource;
+let stack: TestStack;
+let browser: Awaited<ReturnType<typeof launchBrowser>>;
+
+beforeAll(async () => {
+  db = await openTestDatabase();
+  stack = await startStack(db);
+  browser = await launchBrowser();
+});
+afterAll(async () => {
+  await browser?.close();
+  await stack?.close();
+  await db?.destroy();
+});
+
+async function signInAs(page: Page, role: 'staff' | 'physician') {
+  await page.goto(stack.url + '/sign-in');
+  await page.getByRole('button', { name: 'Sign in with your hospital account' }).click();
+  await page.getByTestId('idp-username').fill(usernameOf(role));
+  await page.getByTestId('idp-password').fill('demo');
+  await page.getByTestId('idp-submit').click();
+  await page.waitForURL((url) => url.href.startsWith(stack.url) && url.pathname === '/');
+}
+
+const mrn = `BR-${Date.now().toString(36).toUpperCase()}`;
+const visible = (page: Page, testID: string) => page.locator(`[data-testid="${testID}"]:visible`);
+
+describe('the structured study form on a phone', () => {
+  it('creates a study, enters a vessel with pressures and injections, shows CFR and IMR, and keeps everything over a reload', async () => {
+    const context = await browser.context.browser()!.newContext({ viewport: viewports.phone });
+    const page = await context.newPage();
+    try {
+      await signInAs(page, 'staff');
+      await visible(page, 'new-study').click();
+      await page.waitForURL(/\/studies\/new$/);
+      await visible(page, 'new-mrn').fill(mrn);
+      await visible(page, 'new-birth-date').fill('1971-05-30');
+      await visible(page, 'new-family-name').fill('Okafor-Brandt');
+      await visible(page, 'new-given-name').fill('Renata');
+      await visible(page, 'new-sex-female').click();
+      await visible(page, 'new-indication').fill('Angina with no obstructive disease on CT');
+      await visible(page, 'new-question-angina-no-obstruction').click();
+      await visible(page, 'new-study-submit').click();
+      await page.waitForURL(/\/studies\/[0-9a-f-]{36}\/setup$/);
+      const studyUrl = page.url().replace(/\/setup$/, '');
+
+      // Numbers get the numeric keyboard and carry their unit.
+      await visible(page, 'drift-check').waitFor();
+      await visible(page, 'section-vessels').click();
+      await page.waitForURL(/\/vessels$/);
+      await visible(page, 'add-vessel').click();
+      await visible(page, 'add-vessel-LAD').click();
+      const restPa = visible(page, 'vessel-0-rest-pa');
+      expect(await restPa.getAttribute('inputmode')).toBe('decimal');
+      expect(await restPa.getAttribute('aria-label')).toBe('Pa in mmHg');
+      // Case A of the domain brief (hand-computed from its formulas): CFR 0.90 / 0.30 = 3.00, IMR 72 × 0.30 = 21.6,
+      // corrected without wedge 20.52 because FFR 72/90 = 0.80 is abnormal (≤ 0.80, ESC 2024).
+      await restPa.fill('100');
+      await visible(page, 'vessel-0-rest-pd').fill('95');
+      for (const [i, t] of ['0.9', '0.9', '0.9'].entries()) await visible(page, `vessel-0-rest-tmn-${i}`).fill(t);
+      await visible(page, 'vessel-0-hyp-pa').fill('90');
+      await visible(page, 'vessel-0-hyp-pd').fill('72');
+      for (const [i, t] of ['0.3', '0.3', '0.3'].entries()) await visible(page, `vessel-0-hyp-tmn-${i}`).fill(t);
+      await visible(page, 'vessel-0-drift').fill('1.00');
+
+      await expect(visible(page, 'vessel-0-results-cfr-value').innerText()).resolves.toBe('3.00');
+      await expect(visible(page, 'vessel-0-results-imr-value').innerText()).resolves.toMatch(/^20\.5/);
+      await expect(visible(page, 'vessel-0-results-ffr-flag').innerText()).resolves.toBe('▲ Abnormal');
+      await expect(visible(page, 'vessel-0-results-cfr-flag').innerText()).resolves.toBe('✓ Normal');
+      await expect(visible(page, 'study-results-caution').innerText()).resolves.toMatch(/Decision support only/);
+
+      // Autosave, no button: wait for the saved state, then reload.
+      await visible(page, 'save-status-saved').waitFor({ timeout: 10_000 });
+      await page.screenshot({ path: screenshotPath('study-vessels-phone'), fullPage: false });
+      await page.reload();
+      await visible(page, 'vessel-0-rest-pa').waitFor();
+      expect(await visible(page, 'vessel-0-rest-pa').inputValue()).toBe('100');
+      expect(await visible(page, 'vessel-0-hyp-tmn-2').inputValue()).toBe('0.3');
+      await expect(visible(page, 'vessel-0-results-cfr-value').innerText()).resolves.toBe('3.00');
+      const [row] = await db.query(
+        `SELECT count(*)::int AS n FROM thermodilution_injection i JOIN vessel_assessment v ON v.id = i.vessel_assessment_id JOIN study s ON s.id = v.study_id JOIN patient p ON p.id = s.patient_id WHERE p.mrn = $1`,
+        [mrn],
+      );
+      expect(row.n).toBe(6);
+
+      // The same study on a wide screen: side navigation and the live result beside the form.
+      await page.setViewportSize(viewports.desktop);
+      await page.goto(studyUrl + '/vessels');
+      await visible(page, 'vessel-0-results-cfr-value').waitFor();
+      await visible(page, 'study-results-endotype').waitFor();
+      await page.screenshot({ path: screenshotPath('study-vessels-desktop') });
+      await page.goto(studyUrl + '/setup');
+      await visible(page, 'drift-check').waitFor();
+      await page.screenshot({ path: screenshotPath('study-setup-desktop') });
+    } finally {
+      await context.close();
+    }
+  });
+
+  it('keeps edits typed while offline and sends them when the network returns', async () => {
+    const context = await browser.context.browser()!.newContext({ viewport: viewports.phone });
+    const page = await context.newPage();
+    try {
+      await signInAs(page, 'staff');
+      await visible(page, 'worklist-search').fill(mrn);
+      await visible(page, `worklist`).waitFor();
+      await page.locator('[data-testid^="open-"]:visible').first().click();
+      await page.waitForURL(/\/studies\/[0-9a-f-]{36}$/);
+      await visible(page, 'section-findings').click();
+      await context.setOffline(true);
+      await visible(page, 'findings-complications').fill('None');
+      await visible(page, 'save-status-offline').waitFor({ timeout: 10_000 });
+      await page.screenshot({ path: screenshotPath('study-offline-phone') });
+      await context.setOffline(false);
+      await visible(page, 'save-status-saved').waitFor({ timeout: 15_000 });
+      const [row] = await db.query(`SELECT s.complications FROM study s JOIN patient p ON p.id = s.patient_id WHERE p.mrn = $1`, [mrn]);
+      expect(row.complications).toBe('None');
+    } finally {
+      await context.close();
+    }
+  });
+});
