@@ -120,6 +120,8 @@ export function ChoiceField<T extends string | number | boolean>({ name, label, 
       <View style={styles.chips} role="radiogroup" aria-labelledby={`${testID}-label`}>
         {all.map((o) => {
           const selected = field.value === o.value || (o.value === null && field.value == null);
+          // "Not recorded" is the resting state of a field: shown as chosen, but quietly.
+          const quietSelected = selected && o.value === null;
           return (
             <Pressable
               key={String(o.value)}
@@ -128,9 +130,9 @@ export function ChoiceField<T extends string | number | boolean>({ name, label, 
               aria-checked={selected}
               accessibilityLabel={o.label}
               onPress={() => field.onChange(o.value)}
-              style={[styles.chip, selected && styles.chipSelected, o.value === null && !selected && styles.chipQuiet]}
+              style={[styles.chip, selected && (quietSelected ? styles.chipQuietSelected : styles.chipSelected), o.value === null && !selected && styles.chipQuiet]}
             >
-              <Text variant="caption" weight={selected ? 'semibold' : 'regular'} tone={selected ? 'onBrand' : 'ink'}>
+              <Text variant="caption" weight={selected ? 'semibold' : 'regular'} tone={selected && !quietSelected ? 'onBrand' : quietSelected ? 'muted' : 'ink'}>
                 {selected ? '✓ ' : ''}
                 {o.label}
               </Text>
@@ -249,6 +251,7 @@ const styles = StyleSheet.create({
   },
   chipSelected: { backgroundColor: color.brand, borderColor: color.brand },
   chipQuiet: { borderStyle: 'dashed' },
+  chipQuietSelected: { backgroundColor: color.surfaceSunken, borderColor: color.inkFaint, borderStyle: 'dashed' },
   injections: { flexDirection: 'row', flexWrap: 'wrap', gap: space.sm, alignItems: 'center' },
   injection: { width: 96 },
   addInjection: { minHeight: touchTarget, justifyContent: 'center', paddingHorizontal: space.sm },
