@@ -126,4 +126,68 @@ describe('the structured study form on a phone', () => {
       await context.close();
     }
   });
+
+  it('records an angina-without-obstruction work-up with acetylcholine doses and shows the endotype', async () => {
+    const context = await browser.context.browser()!.newContext({ viewport: viewports.phone });
+    const page = await context.newPage();
+    try {
+      await signInAs(page, 'physician');
+      await visible(page, 'new-study').click();
+      await visible(page, 'new-mrn').fill(`${mrn}-CFT`);
+      await visible(page, 'new-birth-date').fill('1969-02-11');
+      await visible(page, 'new-family-name').fill('Varsamis');
+      await visible(page, 'new-given-name').fill('Thea');
+      await visible(page, 'new-sex-female').click();
+      await visible(page, 'new-study-submit').click();
+      await page.waitForURL(/\/setup$/);
+      await visible(page, 'section-vessels').click();
+      await visible(page, 'add-vessel').click();
+      await visible(page, 'add-vessel-LAD').click();
+      // Hand-computed from the formulas in the domain brief: FFR 80/90 = 0.89 (normal, > 0.80, ESC 2024);
+      // CFR 0.80 / 0.50 = 1.60 (abnormal, < 2.0, EAPCI 2020); IMR 80 × 0.50 = 40 (abnormal, ≥ 25, ESC 2024).
+      const fill = async (id: string, v: string) => visible(page, id).fill(v);
+      await fill('vessel-0-rest-pa', '95');
+      await fill('vessel-0-rest-pd', '90');
+      for (const i of [0, 1, 2]) await fill(`vessel-0-rest-tmn-${i}`, '0.8');
+      await fill('vessel-0-hyp-pa', '90');
+      await fill('vessel-0-hyp-pd', '80');
+      for (const i of [0, 1, 2]) await fill(`vessel-0-hyp-tmn-${i}`, '0.5');
+      await fill('vessel-0-drift', '0.99');
+      await expect(visible(page, 'vessel-0-results-imr-value').innerText()).resolves.toMatch(/^40\.0/);
+      await expect(visible(page, 'study-results-endotype').innerText()).resolves.toBe('Microvascular angina');
+
+      await visible(page, 'section-vasoreactivity').click();
+      await page.waitForURL(/\/vasoreactivity$/);
+      // The protocol's doses are offered in order (ESC 2024 protocol: 2, 20, 100, 200 µg).
+      await visible(page, 'add-dose').click();
+      expect(await visible(page, 'dose-0-micrograms').inputValue()).toBe('2');
+      await fill('dose-0-constriction', '10');
+      await visible(page, 'dose-0-symptoms-false').click();
+      await visible(page, 'dose-0-ecg-false').click();
+      await visible(page, 'add-dose').click();
+      expect(await visible(page, 'dose-1-micrograms').inputValue()).toBe('20');
+      await visible(page, 'add-dose').click();
+      expect(await visible(page, 'dose-2-micrograms').inputValue()).toBe('100');
+      // Epicardial spasm (COVADIS): ≥ 90% constriction with the usual symptoms and ischaemic ECG changes.
+      await fill('dose-2-constriction', '95');
+      await visible(page, 'dose-2-symptoms-true').click();
+      await visible(page, 'dose-2-ecg-true').click();
+      await visible(page, 'dose-1-remove').click();
+      await expect(visible(page, 'dose-1-result').innerText()).resolves.toBe('Response: epicardial spasm');
+      await expect(visible(page, 'study-results-endotype').innerText()).resolves.toBe('Microvascular and vasospastic angina');
+      await visible(page, 'dose-nitrate-reversal-true').click();
+      await visible(page, 'save-status-saved').waitFor({ timeout: 10_000 });
+      await page.screenshot({ path: screenshotPath('study-vasoreactivity-phone') });
+      const doses = await db.query(
+        `SELECT d.micrograms::float8 AS ug, d.constriction_pct::float8 AS pct FROM acetylcholine_dose d JOIN study s ON s.id = d.study_id JOIN patient p ON p.id = s.patient_id WHERE p.mrn = $1 ORDER BY d.position`,
+        [`${mrn}-CFT`],
+      );
+      expect(doses).toEqual([
+        { ug: 2, pct: 10 },
+        { ug: 100, pct: 95 },
+      ]);
+    } finally {
+      await context.close();
+    }
+  });
 });
