@@ -99,10 +99,12 @@ export default function WorklistPage() {
   );
 }
 
+/** Local midnight `offset` days from today, as an instant: the lab's day, whatever the server's zone. */
 function isoDay(offset: number): string {
   const d = new Date();
+  d.setHours(0, 0, 0, 0);
   d.setDate(d.getDate() + offset);
-  return `${d.getFullYear()}-${String(d.getMonth() + 1).padStart(2, '0')}-${String(d.getDate()).padStart(2, '0')}`;
+  return d.toISOString();
 }
 
 function FilterChips({ label, options, value, onPick, testID }: { label: string; options: { value: string; label: string }[]; value?: string; onPick: (v: string) => void; testID: string }) {

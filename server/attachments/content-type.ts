@@ -16,6 +16,10 @@ export async function detectMediaType(bytes: Buffer): Promise<AcceptedMediaType 
   return looksLikeCsv(bytes) ? 'text/csv' : null;
 }
 
+/**
+ * Exported traces: UTF-8 text without control characters or markup, whose first lines (up to 20)
+ * split into the same number of fields, at least two, on one delimiter. Quoted delimiters are honoured.
+ */
 function looksLikeCsv(bytes: Buffer): boolean {
   if (bytes.length === 0) return false;
   let text: string;
@@ -26,8 +30,38 @@ function looksLikeCsv(bytes: Buffer): boolean {
   }
   // eslint-disable-next-line no-control-regex
   if (/[\u0000-\u0008\u000B\u000C\u000E-\u001F\u007F]/.test(text)) return false;
-  const firstLine = text.replace(/^\uFEFF/, '').split(/\r?\n/, 1)[0];
-  return /[,;\t]/.test(firstLine);
+  text = text.replace(/^\uFEFF/, '');
+  if (/^\s*</.test(text) || /<\s*(script|html|body|iframe|svg)\b/i.test(text)) return false;
+  const lines = text.split(/\r?\n/).filter((l) => l.trim() !== '').slice(0, 20);
+  if (lines.length < 2) return false;
+  return [',', ';', '\t'].some((d) => {
+    const counts = lines.map((l) => fieldCount(l, d));
+    return counts[0] >= 2 && counts.every((c) => c === counts[0]);
+  });
+}
+
+function fieldCount(line: string, delimiter: string): number {
+  let fields = 1;
+  let quoted = false;
+  for (const ch of line) {
+    if (ch === '"') quoted = !quoted;
+    else if (ch === delimiter && !quoted) fields++;
+  }
+  return fields;
+}
+
+const extensionsOf: Record<AcceptedMediaType, string[]> = {
+  'application/pdf': ['pdf'],
+  'image/png': ['png'],
+  'image/jpeg': ['jpg', 'jpeg'],
+  'text/csv': ['csv', 'txt', 'tsv'],
+};
+
+/** True when the name claims a known type other than the content's (e.g. text renamed to .pdf). */
+export function nameDisagreesWith(fileName: string, mediaType: AcceptedMediaType): boolean {
+  const ext = fileName.includes('.') ? fileName.split('.').pop()!.toLowerCase() : '';
+  const known = Object.values(extensionsOf).flat();
+  return known.includes(ext) && !extensionsOf[mediaType].includes(ext);
 }
 
 /** A file name safe to store and to send back in Content-Disposition. */

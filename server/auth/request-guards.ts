@@ -43,7 +43,8 @@ export function enforceSessionLimit(config: Config): RequestHandler {
     const auth = req.session?.auth;
     if (auth && Date.now() - auth.signedInAt > maxMs) {
       req.sessionEnded = true;
-      req.session.destroy(() => next());
+      // A fresh, empty session rather than none, so a sign-in can start on this very request.
+      req.session.regenerate((error) => next(error));
       return;
     }
     next();

@@ -6,13 +6,13 @@ import { createStudySchema, patchStudySchema } from '../../shared/study/schema';
 import { toPhysiologyInput } from '../../shared/study/to-physiology';
 import { worklistQuerySchema } from '../../shared/study/worklist';
 import { auditContext, recordAudit } from '../audit/audit';
-import { cleanFileName, detectMediaType } from '../attachments/content-type';
+import { cleanFileName, detectMediaType, nameDisagreesWith } from '../attachments/content-type';
 import type { AttachmentStorage } from '../attachments/storage';
 import type { Config } from '../config';
 import { HttpError, NotFoundError } from '../http/problem';
 import type { ApiRoute } from '../http/routes';
 import { parseOrThrow } from '../http/validate';
-import { createStudy, loadStudy, patchStudy, StaleVersionError } from '../studies/repository';
+import { createStudy, loadStudy, lockEditableStudy, patchStudy, StaleVersionError } from '../studies/repository';
 import { listStudies } from '../studies/worklist';
 
 const uuidPattern = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
@@ -21,12 +21,6 @@ const idOf = (req: Request) => {
   if (!uuidPattern.test(id)) throw new NotFoundError('No record has this id.');
   return id;
 };
-
-class StudyLockedError extends HttpError {
-  constructor(state: string) {
-    super(409, 'study-signed', 'The study is signed', `A ${state} study cannot be edited; changes to it are made as an addendum.`);
-  }
-}
 
 /** pg's unique-violation code: a client reused a row id that belongs elsewhere. */
 const isUniqueViolation = (e: unknown) => (e as { code?: string })?.code === '23505';
@@ -70,8 +64,7 @@ export function studyRoutes({ config, dataSource, storage }: { config: Config; d
       handlers: [
         async (req, res) => {
           const input = parseOrThrow(createStudySchema, req.body, 'The new study');
-          const id = await createStudy(dataSource, input, req.session.auth!.userId);
-          await recordAudit(dataSource, { ...auditContext(req), action: 'create', entityType: 'study', entityId: id, outcome: 'success', detail: { mrn: input.patient.mrn } });
+          const id = await createStudy(dataSource, input, req.session.auth!.userId, auditContext(req));
           res.status(201).location(`/api/studies/${id}`).json(await loadStudy(dataSource, id));
         },
       ],
@@ -99,12 +92,9 @@ export function studyRoutes({ config, dataSource, storage }: { config: Config; d
         async (req, res) => {
           const id = idOf(req);
           const patch = parseOrThrow(patchStudySchema, req.body, 'The change');
-          const before = await loadStudy(dataSource, id);
-          if (!before) throw new NotFoundError('No study has this id.');
-          if (before.state === 'signed' || before.state === 'amended') throw new StudyLockedError(before.state);
           try {
-            const { changed } = await patchStudy(dataSource, id, patch);
-            await recordAudit(dataSource, { ...auditContext(req), action: 'update', entityType: 'study', entityId: id, outcome: 'success', detail: { sections: changed, fromVersion: patch.version } });
+            const { record } = await patchStudy(dataSource, id, patch, auditContext(req));
+            res.json(record);
           } catch (error) {
             if (error instanceof StaleVersionError) {
               await recordAudit(dataSource, { ...auditContext(req), action: 'update', entityType: 'study', entityId: id, outcome: 'failure', detail: { reason: 'stale-version', fromVersion: patch.version, current: error.current.version } });
@@ -124,7 +114,6 @@ export function studyRoutes({ config, dataSource, storage }: { config: Config; d
             if (isUniqueViolation(error)) throw new HttpError(409, 'duplicate-row-id', 'Row id already used', 'A vessel or dose row id belongs to another study. Reload the study.');
             throw error;
           }
-          res.json(await loadStudy(dataSource, id));
         },
       ],
     },
@@ -163,32 +152,45 @@ export function studyRoutes({ config, dataSource, storage }: { config: Config; d
         acceptUpload,
         async (req, res) => {
           const id = idOf(req);
-          const [study] = await dataSource.query(`SELECT id FROM study WHERE id = $1`, [id]);
-          if (!study) throw new NotFoundError('No study has this id.');
           const file = req.file;
           if (!file || file.size === 0) throw new HttpError(400, 'no-file', 'No file', 'Choose a file to attach.');
-          const mediaType = await detectMediaType(file.buffer);
           const fileName = cleanFileName(file.originalname);
-          if (!mediaType) {
-            await recordAudit(dataSource, { ...auditContext(req), action: 'create', entityType: 'attachment', outcome: 'failure', detail: { studyId: id, fileName, reason: 'unsupported-type' } });
-            throw new HttpError(415, 'unsupported-file-type', 'File type not accepted', `"${fileName}" is not a PDF, PNG, JPEG or CSV file (judged from its content, not its name).`);
+          const mediaType = await detectMediaType(file.buffer);
+          const refused = !mediaType
+            ? `"${fileName}" is not a PDF, PNG, JPEG or CSV file (judged from its content, not its name).`
+            : nameDisagreesWith(fileName, mediaType)
+              ? `"${fileName}" is named as another kind of file than its content (${mediaType}). Rename it or attach the right file.`
+              : null;
+          if (refused || !mediaType) {
+            await recordAudit(dataSource, { ...auditContext(req), action: 'create', entityType: 'attachment', outcome: 'failure', detail: { studyId: id, fileName, reason: 'unsupported-type', detected: mediaType } });
+            throw new HttpError(415, 'unsupported-file-type', 'File type not accepted', refused ?? undefined);
           }
           const stored = await storage.put(file.buffer);
-          const [row] = await dataSource.query(
-            `INSERT INTO attachment (study_id, file_name, media_type, size_bytes, sha256, storage_key, uploaded_by)
-             VALUES ($1, $2, $3, $4, $5, $6, $7) RETURNING id, uploaded_at`,
-            [id, fileName, mediaType, file.size, stored.sha256, stored.key, req.session.auth!.userId],
-          );
-          await recordAudit(dataSource, { ...auditContext(req), action: 'create', entityType: 'attachment', entityId: row.id, outcome: 'success', detail: { studyId: id, fileName, sha256: stored.sha256 } });
-          res.status(201).json({
-            id: row.id,
-            fileName,
-            mediaType,
-            sizeBytes: file.size,
-            sha256: stored.sha256,
-            uploadedAt: (row.uploaded_at as Date).toISOString(),
-            uploadedBy: req.session.auth!.displayName,
-          });
+          try {
+            const saved = await dataSource.transaction(async (db) => {
+              await lockEditableStudy(db, id);
+              const [row] = await db.query(
+                `INSERT INTO attachment (study_id, file_name, media_type, size_bytes, sha256, storage_key, uploaded_by)
+                 VALUES ($1, $2, $3, $4, $5, $6, $7) RETURNING id, uploaded_at`,
+                [id, fileName, mediaType, file.size, stored.sha256, stored.key, req.session.auth!.userId],
+              );
+              await recordAudit(db, { ...auditContext(req), action: 'create', entityType: 'attachment', entityId: row.id, outcome: 'success', detail: { studyId: id, fileName, sha256: stored.sha256 } });
+              return row as { id: string; uploaded_at: Date };
+            });
+            res.status(201).json({
+              id: saved.id,
+              fileName,
+              mediaType,
+              sizeBytes: file.size,
+              sha256: stored.sha256,
+              uploadedAt: saved.uploaded_at.toISOString(),
+              uploadedBy: req.session.auth!.displayName,
+            });
+          } catch (error) {
+            // Nothing refers to the bytes when the row was not written.
+            await storage.delete(stored.key).catch(() => undefined);
+            throw error;
+          }
         },
       ],
     },
@@ -218,12 +220,17 @@ export function studyRoutes({ config, dataSource, storage }: { config: Config; d
       summary: 'Remove an attachment (recorded in the audit trail with its name and checksum)',
       handlers: [
         async (req, res) => {
-          const result = await dataSource.query(`DELETE FROM attachment WHERE id = $1 RETURNING id, study_id, file_name, sha256, storage_key`, [idOf(req)]);
-          // TypeORM answers DELETE … RETURNING with [rows, count].
-          const [row] = Array.isArray(result[0]) ? result[0] : result;
-          if (!row) throw new NotFoundError('No attachment has this id.');
-          await storage.delete(row.storage_key);
-          await recordAudit(dataSource, { ...auditContext(req), action: 'delete', entityType: 'attachment', entityId: row.id, outcome: 'success', detail: { studyId: row.study_id, fileName: row.file_name, sha256: row.sha256 } });
+          const attachmentId = idOf(req);
+          const removed = await dataSource.transaction(async (db) => {
+            const [row] = await db.query(`SELECT id, study_id, file_name, sha256, storage_key FROM attachment WHERE id = $1`, [attachmentId]);
+            if (!row) throw new NotFoundError('No attachment has this id.');
+            await lockEditableStudy(db, row.study_id);
+            await db.query(`DELETE FROM attachment WHERE id = $1`, [row.id]);
+            await recordAudit(db, { ...auditContext(req), action: 'delete', entityType: 'attachment', entityId: row.id, outcome: 'success', detail: { studyId: row.study_id, fileName: row.file_name, sha256: row.sha256 } });
+            return row as { storage_key: string };
+          });
+          // The bytes go after the row is gone for good; a failure here leaves only an unreferenced file.
+          await storage.delete(removed.storage_key).catch(() => undefined);
           res.status(204).end();
         },
       ],

@@ -11,6 +11,7 @@ import type {
 import { emptyDetails, emptyFindings, emptySetup } from '../../shared/study/schema';
 import type { StudyState } from '../../shared/study/vocabulary';
 import { HttpError, NotFoundError } from '../http/problem';
+import { recordAudit, type AuditEntry } from '../audit/audit';
 import { assignments, detailsColumns, findingsColumns, readSection, selectList, setupColumns } from './columns';
 
 /** A write based on an older version than the stored one. Carries the current record for a merge. */
@@ -110,16 +111,92 @@ export async function loadStudy(db: Db, id: string): Promise<StudyRecord | null>
   };
 }
 
-async function upsertPatient(db: EntityManager, patient: StudySections['patient']): Promise<string> {
-  const [row] = await db.query(
-    `INSERT INTO patient (mrn, family_name, given_name, birth_date, sex) VALUES ($1, $2, $3, $4, $5)
-     ON CONFLICT (mrn) DO UPDATE SET family_name = EXCLUDED.family_name, given_name = EXCLUDED.given_name,
-       birth_date = EXCLUDED.birth_date, sex = EXCLUDED.sex, updated_at = now()
-     RETURNING id`,
-    [patient.mrn, patient.familyName, patient.givenName, patient.birthDate, patient.sex],
+/** The MRN belongs to someone else: the study is not moved to them, and nobody is renamed. */
+export class PatientMismatchError extends HttpError {
+  constructor(mrn: string) {
+    super(409, 'patient-mismatch', 'The MRN belongs to another patient', `MRN ${mrn} is already on file with a different name, birth date or sex.`, [
+      { pointer: '/patient/mrn', detail: `MRN ${mrn} is on file for another patient (different name, birth date or sex). Check the MRN.` },
+    ]);
+  }
+}
+
+/** The patient's demographics are shared by all their studies: a study may not rewrite them. */
+export class PatientSharedError extends HttpError {
+  constructor() {
+    super(409, 'patient-shared', 'The patient has other studies', 'This patient has other studies; correct the name, birth date or sex in the hospital record.', [
+      { pointer: '/patient/familyName', detail: 'This patient has other studies: their details cannot be changed from one study.' },
+    ]);
+  }
+}
+
+const norm = (s: string) => s.trim().toLowerCase();
+const sameDemographics = (row: { family_name: string; given_name: string; birth_date: string; sex: string }, p: StudySections['patient']) =>
+  norm(row.family_name) === norm(p.familyName) && norm(row.given_name) === norm(p.givenName) && row.birth_date === p.birthDate && row.sex === p.sex;
+
+/**
+ * Which patient a study belongs to, never renaming anyone else:
+ * - the MRN is on file → that patient, if the demographics agree (else 409);
+ * - a new MRN on a study whose patient has no other study → that patient row is corrected in place
+ *   (so a half-typed MRN never leaves stray patients behind);
+ * - otherwise a new patient.
+ */
+async function resolvePatient(db: EntityManager, patient: StudySections['patient'], studyId: string | null, currentPatientId: string | null): Promise<string> {
+  const [onFile] = await db.query(
+    `SELECT id, family_name, given_name, to_char(birth_date, 'YYYY-MM-DD') AS birth_date, sex FROM patient WHERE mrn = $1 FOR UPDATE`,
+    [patient.mrn],
   );
+  const othersOf = async (patientId: string) =>
+    (await db.query(`SELECT count(*)::int AS n FROM study WHERE patient_id = $1 AND id IS DISTINCT FROM $2`, [patientId, studyId]))[0].n as number;
+  const correct = async (patientId: string) =>
+    db.query(`UPDATE patient SET mrn = $2, family_name = $3, given_name = $4, birth_date = $5, sex = $6, updated_at = now() WHERE id = $1`, [
+      patientId,
+      patient.mrn,
+      patient.familyName,
+      patient.givenName,
+      patient.birthDate,
+      patient.sex,
+    ]);
+  if (onFile) {
+    if (sameDemographics(onFile, patient)) return onFile.id;
+    if (onFile.id === currentPatientId && (await othersOf(onFile.id)) === 0) {
+      await correct(onFile.id);
+      return onFile.id;
+    }
+    if (onFile.id === currentPatientId) throw new PatientSharedError();
+    throw new PatientMismatchError(patient.mrn);
+  }
+  if (currentPatientId && (await othersOf(currentPatientId)) === 0) {
+    await correct(currentPatientId);
+    return currentPatientId;
+  }
+  const [row] = await db.query(`INSERT INTO patient (mrn, family_name, given_name, birth_date, sex) VALUES ($1, $2, $3, $4, $5) RETURNING id`, [
+    patient.mrn,
+    patient.familyName,
+    patient.givenName,
+    patient.birthDate,
+    patient.sex,
+  ]);
   return row.id;
 }
+
+export class StudyLockedError extends HttpError {
+  constructor(state: string) {
+    super(409, 'study-signed', 'The study is signed', `A ${state} study cannot be edited; changes to it are made as an addendum.`);
+  }
+}
+
+export const editableStates = ['draft', 'awaiting-signature'] as const;
+
+/** Locks the study row for the rest of the transaction and refuses when it is signed. */
+export async function lockEditableStudy(db: EntityManager, id: string): Promise<{ patientId: string; version: number }> {
+  const [row] = await db.query(`SELECT patient_id, version, state FROM study WHERE id = $1 FOR UPDATE`, [id]);
+  if (!row) throw new NotFoundError('No study has this id.');
+  if (!(editableStates as readonly string[]).includes(row.state)) throw new StudyLockedError(row.state);
+  return { patientId: row.patient_id, version: row.version };
+}
+
+/** Who did it, for the audit row written inside the change's transaction. */
+export type AuditActor = Pick<AuditEntry, 'actorUserId' | 'actorName' | 'actorRole' | 'clientAddress'>;
 
 /** A readable, unique accession when the hospital's system has not supplied one. */
 async function nextAccession(db: EntityManager, at: Date): Promise<string> {
@@ -128,9 +205,9 @@ async function nextAccession(db: EntityManager, at: Date): Promise<string> {
   return `ISB-${day}-${String(n).padStart(4, '0')}-${Math.random().toString(36).slice(2, 6).toUpperCase()}`;
 }
 
-export async function createStudy(dataSource: DataSource, input: CreateStudy, createdBy: string | null): Promise<string> {
+export async function createStudy(dataSource: DataSource, input: CreateStudy, createdBy: string | null, actor?: AuditActor): Promise<string> {
   return dataSource.transaction(async (db) => {
-    const patientId = await upsertPatient(db, input.patient);
+    const patientId = await resolvePatient(db, input.patient, null, null);
     const details = { ...emptyDetails(), ...input.details };
     const set = assignments(detailsColumns, details, 1);
     const accession = await nextAccession(db, new Date());
@@ -140,13 +217,20 @@ export async function createStudy(dataSource: DataSource, input: CreateStudy, cr
        RETURNING id`,
       [...set.values, accession, patientId, createdBy],
     );
+    if (actor) await recordAudit(db, { ...actor, action: 'create', entityType: 'study', entityId: row.id, outcome: 'success', detail: { mrn: input.patient.mrn } });
     return row.id as string;
   });
 }
 
-/** Replaces the sections the patch carries, in one transaction, if the version still matches. */
-export async function patchStudy(dataSource: DataSource, id: string, patch: PatchStudy): Promise<{ changed: string[] }> {
+/**
+ * Replaces the sections the patch carries, in one transaction: the row is locked, the version and
+ * the state checked, the sections written, the audit row added, and the result read back — all
+ * before commit, so the version returned is exactly the one written.
+ */
+export async function patchStudy(dataSource: DataSource, id: string, patch: PatchStudy, actor?: AuditActor): Promise<{ changed: string[]; record: StudyRecord }> {
   return dataSource.transaction(async (db) => {
+    const current = await lockEditableStudy(db, id);
+    if (current.version !== patch.version) throw new StaleVersionError((await loadStudy(db, id))!);
     const sets: string[] = [];
     const values: unknown[] = [];
     const add = (a: { sql: string; values: unknown[] }) => {
@@ -155,28 +239,19 @@ export async function patchStudy(dataSource: DataSource, id: string, patch: Patc
       values.push(...a.values);
     };
     if (patch.patient) {
-      const patientId = await upsertPatient(db, patch.patient);
+      const patientId = await resolvePatient(db, patch.patient, id, current.patientId);
       add({ sql: `patient_id = $${values.length + 1}`, values: [patientId] });
     }
     if (patch.details) add(assignments(detailsColumns, patch.details, values.length + 1));
     if (patch.setup) add(assignments(setupColumns, patch.setup, values.length + 1));
     if (patch.findings) add(assignments(findingsColumns, patch.findings, values.length + 1));
     if (patch.vasoreactivity) add({ sql: `nitrate_reversal = $${values.length + 1}`, values: [patch.vasoreactivity.nitrateReversal] });
-    const updated = await db.query(
-      `UPDATE study SET ${[...sets, 'version = version + 1', 'updated_at = now()'].join(', ')}
-       WHERE id = $${values.length + 1} AND version = $${values.length + 2} RETURNING version`,
-      [...values, id, patch.version],
-    );
-    // TypeORM answers an UPDATE … RETURNING with [rows, count]; older drivers with the rows alone.
-    const rows: unknown[] = Array.isArray(updated[0]) ? updated[0] : updated;
-    if (rows.length === 0) {
-      const current = await loadStudy(db, id);
-      if (!current) throw new NotFoundError('No study has this id.');
-      throw new StaleVersionError(current);
-    }
+    await db.query(`UPDATE study SET ${[...sets, 'version = version + 1', 'updated_at = now()'].join(', ')} WHERE id = $${values.length + 1}`, [...values, id]);
     if (patch.vessels) await replaceVessels(db, id, patch.vessels);
     if (patch.vasoreactivity) await replaceDoses(db, id, patch.vasoreactivity.doses);
-    return { changed: Object.keys(patch).filter((k) => k !== 'version') };
+    const changed = Object.keys(patch).filter((k) => k !== 'version');
+    if (actor) await recordAudit(db, { ...actor, action: 'update', entityType: 'study', entityId: id, outcome: 'success', detail: { sections: changed, fromVersion: patch.version } });
+    return { changed, record: (await loadStudy(db, id))! };
   });
 }
 

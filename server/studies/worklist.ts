@@ -10,7 +10,14 @@ function encodeCursor(sortKey: string, id: string): string {
 function decodeCursor(cursor: string): [string, string] {
   try {
     const value = JSON.parse(Buffer.from(cursor, 'base64url').toString('utf8'));
-    if (Array.isArray(value) && value.length === 2 && typeof value[0] === 'string' && /^[0-9a-f-]{36}$/.test(value[1])) {
+    if (
+      Array.isArray(value) &&
+      value.length === 2 &&
+      typeof value[0] === 'string' &&
+      /^\d{4}-\d{2}-\d{2} \d{2}:\d{2}:\d{2}(\.\d{1,6})?[+-]\d{2}(:?\d{2})?$/.test(value[0]) &&
+      typeof value[1] === 'string' &&
+      /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/.test(value[1])
+    ) {
       return value as [string, string];
     }
   } catch {
@@ -34,8 +41,8 @@ export async function listStudies(db: DataSource, query: WorklistQuery): Promise
   };
   if (query.state) where.push(`s.state = ${param(query.state)}`);
   if (query.operatorId) where.push(`s.operator_id = ${param(query.operatorId)}`);
-  if (query.from) where.push(`s.sort_at >= ${param(query.from)}::date`);
-  if (query.to) where.push(`s.sort_at < (${param(query.to)}::date + 1)`);
+  if (query.from) where.push(`s.sort_at >= ${param(query.from)}::timestamptz`);
+  if (query.to) where.push(`s.sort_at < ${param(query.to)}::timestamptz`);
   if (query.q) {
     const exact = param(query.q);
     const prefix = param(`${escapeLike(query.q.toLowerCase())}%`);

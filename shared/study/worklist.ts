@@ -6,8 +6,9 @@ export const worklistQuerySchema = z.object({
   state: z.enum(studyStates, { error: 'state must be one of draft, awaiting-signature, signed, amended.' }).optional(),
   q: z.string().trim().min(1).max(100, { error: 'Search text is too long.' }).optional(),
   operatorId: z.uuid({ error: 'operatorId must be a user id.' }).optional(),
-  from: z.iso.date({ error: 'from must be a date (YYYY-MM-DD).' }).optional(),
-  to: z.iso.date({ error: 'to must be a date (YYYY-MM-DD).' }).optional(),
+  /** Instants, so "today" is the lab's day, not the server's: from inclusive, to exclusive. */
+  from: z.iso.datetime({ offset: true, error: 'from must be a date and time with its offset (ISO 8601).' }).optional(),
+  to: z.iso.datetime({ offset: true, error: 'to must be a date and time with its offset (ISO 8601).' }).optional(),
   cursor: z.string().max(200).optional(),
   limit: z.coerce.number().int().min(1).max(100, { error: 'limit must be at most 100.' }).default(25),
 });

@@ -139,6 +139,17 @@ describe('session time limits', () => {
     expect(res.body.detail).toBe('Your session has ended. Sign in again.');
   });
 
+  it('lets a sign-in start on the very request that finds the session expired', async () => {
+    const session = await signIn(stack, usernameOf('coder'));
+    const past = Date.now() - (stack.config.session.maxHours + 1) * 3_600_000;
+    await db.query(
+      `UPDATE http_session SET sess = jsonb_set(sess::jsonb, '{auth,signedInAt}', to_jsonb($1::bigint))::json WHERE sess::jsonb #>> '{auth,role}' = 'coder'`,
+      [past],
+    );
+    const res = await request(stack.url).get('/api/auth/sign-in').set('Cookie', session.cookie).expect(303);
+    expect(res.headers.location).toContain(`${stack.idp.issuer}/auth?`);
+  });
+
   it('keeps idle sessions for the configured minutes only (store expiry follows the cookie)', async () => {
     const session = await signIn(stack, usernameOf('admin'));
     const sid = decodeURIComponent(session.jar.get(stack.url, 'isobar.sid')!).slice(2).split('.')[0];

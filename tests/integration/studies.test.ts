@@ -198,3 +198,93 @@ describe('attachments', () => {
     expect(row).toMatchObject({ actor_role: 'physician', detail: { fileName: 'a.pdf', sha256: up.body.sha256 } });
   });
 });
+
+describe('patient identity is never rewritten from a study', () => {
+  it('links a new study to the patient on file when the demographics agree, and refuses when they do not', async () => {
+    const first = await create();
+    const again = await api().post('/api/studies').set('Cookie', staff).set('Origin', stack.url).send({ patient: { ...first.patient, familyName: first.patient.familyName.toUpperCase() } }).expect(201);
+    const [{ n }] = await db.query(`SELECT count(*)::int AS n FROM patient WHERE mrn = $1`, [first.patient.mrn]);
+    expect(n).toBe(1);
+    expect(again.body.patient.familyName).toBe(first.patient.familyName);
+    const clash = await api().post('/api/studies').set('Cookie', staff).set('Origin', stack.url).send({ patient: { ...first.patient, givenName: 'Someone Else' } }).expect(409);
+    expect(clash.body.errors[0].pointer).toBe('/patient/mrn');
+    const [row] = await db.query(`SELECT given_name FROM patient WHERE mrn = $1`, [first.patient.mrn]);
+    expect(row.given_name).toBe(first.patient.givenName);
+  });
+
+  it('corrects a mistyped MRN in place (no stray patients), and never moves a study onto another patient', async () => {
+    const other = await create();
+    const study = await create();
+    let version = study.version;
+    // Autosave sends each pause in typing: 'X', 'X9', … — each corrects the same patient row.
+    for (const mrn of ['Q', 'Q9', 'Q98', `Q987-${randomUUID().slice(0, 4)}`]) {
+      const res = await api().patch(`/api/studies/${study.id}`).set('Cookie', staff).set('Origin', stack.url).send({ version, patient: { ...study.patient, mrn } }).expect(200);
+      version = res.body.version;
+    }
+    const [{ n }] = await db.query(`SELECT count(*)::int AS n FROM patient WHERE mrn IN ('Q', 'Q9', 'Q98') OR mrn = $1`, [study.patient.mrn]);
+    expect(n).toBe(0);
+    // Typing someone else's MRN with this patient's name is refused as a field error.
+    const clash = await api().patch(`/api/studies/${study.id}`).set('Cookie', staff).set('Origin', stack.url).send({ version, patient: { ...study.patient, mrn: other.patient.mrn, givenName: 'Different' } }).expect(409);
+    expect(clash.body).toMatchObject({ title: 'The MRN belongs to another patient', errors: [{ pointer: '/patient/mrn' }] });
+    const [otherRow] = await db.query(`SELECT given_name FROM patient WHERE mrn = $1`, [other.patient.mrn]);
+    expect(otherRow.given_name).toBe(other.patient.givenName);
+  });
+
+  it('refuses to rename a patient who has other studies', async () => {
+    const first = await create();
+    const second = await api().post('/api/studies').set('Cookie', staff).set('Origin', stack.url).send({ patient: first.patient }).expect(201);
+    const res = await api().patch(`/api/studies/${second.body.id}`).set('Cookie', staff).set('Origin', stack.url).send({ version: 1, patient: { ...first.patient, familyName: 'Renamed' } }).expect(409);
+    expect(res.body.title).toBe('The patient has other studies');
+  });
+});
+
+describe('write integrity', () => {
+  it('returns exactly the version it wrote', async () => {
+    const study = await create();
+    const res = await api().patch(`/api/studies/${study.id}`).set('Cookie', staff).set('Origin', stack.url).send({ version: 1, setup: { ...study.setup, heparinUnits: 5000 } }).expect(200);
+    expect(res.body.version).toBe(2);
+    expect(res.body.setup.heparinUnits).toBe(5000);
+  });
+
+  it('lets exactly one of two concurrent writes at the same version through', async () => {
+    const study = await create();
+    const send = (contrastMl: number) =>
+      api().patch(`/api/studies/${study.id}`).set('Cookie', staff).set('Origin', stack.url).send({ version: 1, findings: { ...study.findings, contrastMl } });
+    const results = await Promise.all([send(10), send(20), send(30)]);
+    expect(results.map((r) => r.status).sort()).toEqual([200, 409, 409]);
+    const [row] = await db.query(`SELECT version, contrast_ml::float8 AS c FROM study WHERE id = $1`, [study.id]);
+    expect(row.version).toBe(2);
+    expect(results.find((r) => r.status === 200)!.body.findings.contrastMl).toBe(row.c);
+  });
+
+  it('refuses attachments to be added or removed on a signed study', async () => {
+    const study = await create();
+    const up = await api().post(`/api/studies/${study.id}/attachments`).set('Cookie', staff).set('Origin', stack.url).attach('file', Buffer.from('%PDF-1.4\n%%EOF\n'), 'x.pdf').expect(201);
+    await db.query(`UPDATE study SET state = 'signed' WHERE id = $1`, [study.id]);
+    await api().post(`/api/studies/${study.id}/attachments`).set('Cookie', staff).set('Origin', stack.url).attach('file', Buffer.from('%PDF-1.4\n%%EOF\n'), 'y.pdf').expect(409);
+    await api().delete(`/api/attachments/${up.body.id}`).set('Cookie', staff).set('Origin', stack.url).expect(409);
+    const [{ n }] = await db.query(`SELECT count(*)::int AS n FROM attachment WHERE study_id = $1`, [study.id]);
+    expect(n).toBe(1);
+  });
+
+  it('refuses text renamed to .pdf (content and name disagree)', async () => {
+    const study = await create();
+    const res = await api().post(`/api/studies/${study.id}/attachments`).set('Cookie', staff).set('Origin', stack.url).attach('file', Buffer.from('a,b\n1,2\n3,4\n'), 'report.pdf').expect(415);
+    expect(res.body.detail).toMatch(/named as another kind of file/);
+  });
+});
+
+describe('worklist edge cases', () => {
+  it('answers a cursor with a forged timestamp with 400, not a server error', async () => {
+    const forged = Buffer.from(JSON.stringify(['yesterday', '00000000-0000-4000-8000-000000000000'])).toString('base64url');
+    await api().get('/api/studies').query({ cursor: forged }).set('Cookie', staff).expect(400);
+  });
+
+  it('filters by instants, so the lab decides where its day starts', async () => {
+    const study = await create(staff, { details: { procedureStartedAt: '2026-03-04T23:30:00.000Z' } });
+    const inDay = await api().get('/api/studies').query({ from: '2026-03-04T23:00:00.000Z', to: '2026-03-05T23:00:00.000Z', q: study.patient.mrn }).set('Cookie', staff).expect(200);
+    expect(inDay.body.items.map((s: { id: string }) => s.id)).toEqual([study.id]);
+    const dayBefore = await api().get('/api/studies').query({ from: '2026-03-03T23:00:00.000Z', to: '2026-03-04T23:00:00.000Z', q: study.patient.mrn }).set('Cookie', staff).expect(200);
+    expect(dayBefore.body.items).toEqual([]);
+  });
+});

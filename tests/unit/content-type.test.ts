@@ -1,0 +1,50 @@
+import { describe, expect, it } from 'vitest';
+import { cleanFileName, detectMediaType, nameDisagreesWith } from '../../server/attachments/content-type';
+
+// File signatures: PDF "%PDF-" (ISO 32000-1 §7.5.2), PNG 89 50 4E 47 0D 0A 1A 0A (PNG specification §5.2),
+// JPEG SOI FF D8 FF (ITU T.81 / JFIF); CSV by its structure (RFC 4180).
+describe('detectMediaType judges by content', () => {
+  it.each([
+    ['PDF', Buffer.from('%PDF-1.7\n%%EOF\n'), 'application/pdf'],
+    ['PNG', Buffer.from('89504e470d0a1a0a0000000d49484452', 'hex'), 'image/png'],
+    ['JPEG', Buffer.from('ffd8ffe000104a46494600010100000100010000', 'hex'), 'image/jpeg'],
+    ['CSV with a header', Buffer.from('time_s,pa,pd\n0.00,92,88\n0.01,93,"88"\n'), 'text/csv'],
+    ['semicolon CSV with a BOM', Buffer.from('\uFEFFt;pa;pd\n0;92;88\n'), 'text/csv'],
+    ['quoted delimiters', Buffer.from('note,value\n"a, b",1\n"c",2\n'), 'text/csv'],
+  ])('accepts %s', async (_n, bytes, type) => {
+    await expect(detectMediaType(bytes)).resolves.toBe(type);
+  });
+
+  it.each([
+    ['an executable (ELF)', Buffer.concat([Buffer.from([0x7f, 0x45, 0x4c, 0x46, 2, 1, 1, 0]), Buffer.alloc(64)])],
+    ['a Windows executable', Buffer.concat([Buffer.from('MZ'), Buffer.alloc(64, 1)])],
+    ['a ZIP archive', Buffer.from('504b0304140000000800', 'hex')],
+    ['HTML', Buffer.from('<html><body>a,b\n1,2</body></html>')],
+    ['a script with commas', Buffer.from('a,b\n<script>alert(1)</script>,x\n')],
+    ['one line of prose', Buffer.from('Hello, world')],
+    ['ragged lines', Buffer.from('a,b,c\n1,2\n3\n')],
+    ['not UTF-8', Buffer.from([0x61, 0x2c, 0x62, 0x0a, 0xff, 0xfe, 0x2c, 0x31])],
+    ['empty', Buffer.alloc(0)],
+  ])('refuses %s', async (_n, bytes) => {
+    await expect(detectMediaType(bytes)).resolves.toBeNull();
+  });
+});
+
+describe('file names', () => {
+  it.each([
+    ['report.pdf', 'text/csv', true],
+    ['trace.csv', 'text/csv', false],
+    ['photo.JPG', 'image/jpeg', false],
+    ['scan.png', 'application/pdf', true],
+    ['export', 'text/csv', false],
+    ['export.dat', 'text/csv', false],
+  ] as const)('%s with %s content disagrees: %s', (name, type, disagrees) => {
+    expect(nameDisagreesWith(name, type)).toBe(disagrees);
+  });
+
+  it('keeps only a plain base name', () => {
+    expect(cleanFileName('../../etc/passwd')).toBe('passwd');
+    expect(cleanFileName('C:\\Users\\lab\\trace "1".csv')).toBe('trace 1.csv');
+    expect(cleanFileName('')).toBe('attachment');
+  });
+});
