@@ -1,6 +1,7 @@
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import type { Permission, Role } from '../../shared/auth/permissions';
 import { apiFetch, ApiError } from './api';
+import { clearAllDrafts, unsentStudies } from '../study/draft-store';
 
 export interface Me {
   id: string;
@@ -24,16 +25,32 @@ export function useMeQuery() {
   });
 }
 
-/** Ends the session at Isobar, forgets every cached record, then lets the provider end its session. */
+/**
+ * Ends the session at Isobar, forgets every cached record and every unsent draft on this device (a lab
+ * workstation is shared), then lets the provider end its session. Unsent edits are named first.
+ */
 export function useSignOut() {
   const queryClient = useQueryClient();
-  return useMutation({
+  const mutation = useMutation({
     mutationFn: () => apiFetch<{ redirect: string }>('/auth/sign-out', { method: 'POST' }),
     onSuccess: ({ redirect }) => {
       queryClient.clear();
+      clearAllDrafts();
       if (typeof window !== 'undefined') window.location.replace(redirect);
     },
   });
+  const signOut = () => {
+    const me = queryClient.getQueryData<Me>(meKeys.all);
+    const unsent = me ? unsentStudies(me.id).length : 0;
+    if (unsent && typeof window !== 'undefined' && typeof window.confirm === 'function') {
+      const ok = window.confirm(
+        `${unsent === 1 ? 'One study has' : `${unsent} studies have`} changes on this device that the server has not received yet. Sign out anyway and discard them?`,
+      );
+      if (!ok) return;
+    }
+    mutation.mutate();
+  };
+  return { ...mutation, mutate: signOut };
 }
 
 /** Full-page navigation to the server's sign-in route (it redirects to the identity provider). */

@@ -65,8 +65,8 @@ export function useCreateStudy() {
 }
 
 /** PATCH whole sections at a version; the caller handles 409 (stale) and offline. */
-export function patchStudyRequest(id: string, body: Record<string, unknown>) {
-  return apiFetch<StudyRecord>(`/studies/${id}`, { method: 'PATCH', body: JSON.stringify(body) });
+export function patchStudyRequest(id: string, body: Record<string, unknown>, { keepalive = false } = {}) {
+  return apiFetch<StudyRecord>(`/studies/${id}`, { method: 'PATCH', body: JSON.stringify(body), keepalive });
 }
 
 /** Upload with progress (fetch has no upload progress on the web, XMLHttpRequest does). */

@@ -1,7 +1,7 @@
 import { useEffect, useState } from 'react';
 import { StyleSheet, TextInput } from 'react-native';
 import { useController, useFormContext } from 'react-hook-form';
-import { FieldShell } from './fields';
+import { FieldShell, fieldIds } from './fields';
 import { color, font, radius, space, touchTarget, type } from '../theme';
 
 const pad = (n: number) => String(n).padStart(2, '0');
@@ -32,13 +32,17 @@ export function DateTimeField({ name, label, testID }: { name: string; label: st
     // eslint-disable-next-line react-hooks/exhaustive-deps
   }, [field.value]);
   return (
-    <FieldShell label={label} error={fieldState.error?.message} hint="YYYY-MM-DD HH:MM, local time">
+    <FieldShell label={label} error={fieldState.error?.message} hint="YYYY-MM-DD HH:MM, local time" testID={testID}>
       <TextInput
         testID={testID}
         accessibilityLabel={`${label}, as year-month-day hours:minutes`}
+        aria-invalid={!!fieldState.error}
+        aria-describedby={fieldIds(testID).help}
         value={text}
         placeholder="2026-12-01 14:30"
-        inputMode="numeric"
+        // Plain text keyboard: phone number pads lack "-", ":" and the space the format needs.
+        inputMode="text"
+        autoCapitalize="none"
         onChangeText={(t) => {
           setText(t);
           const p = parseLocalDateTime(t);

@@ -12,20 +12,24 @@ interface FieldProps {
   hint?: string;
 }
 
+/** Ids tying a control to its label and to its hint or error (aria-labelledby / aria-describedby). */
+export const fieldIds = (testID: string) => ({ label: `${testID}-label`, help: `${testID}-help` });
+
 /** Label above, the control, then a hint or the error — the error is announced and tied to the field. */
-export function FieldShell({ label, error, hint, children, labelID }: { label: string; error?: string; hint?: string; children: ReactNode; labelID?: string }) {
+export function FieldShell({ label, error, hint, children, testID }: { label: string; error?: string; hint?: string; children: ReactNode; testID: string }) {
+  const ids = fieldIds(testID);
   return (
     <View style={styles.field}>
-      <Text weight="medium" variant="caption" nativeID={labelID}>
+      <Text weight="medium" variant="caption" nativeID={ids.label}>
         {label}
       </Text>
       {children}
       {error ? (
-        <Text variant="caption" tone="abnormal" role="alert" weight="medium">
+        <Text variant="caption" tone="abnormal" role="alert" weight="medium" nativeID={ids.help} testID={`${testID}-error`}>
           ▲ {error}
         </Text>
       ) : hint ? (
-        <Text variant="caption" tone="faint">
+        <Text variant="caption" tone="faint" nativeID={ids.help}>
           {hint}
         </Text>
       ) : null}
@@ -42,19 +46,24 @@ export function NumberField({ name, label, unit, testID, hint, integer = false }
 
   // Follow the value when it changes from outside (a reload or a merge), not while typing.
   useEffect(() => {
+    if (typeof field.value === 'number' && Number.isNaN(field.value)) return; // our own placeholder for bad text
     const parsed = parseNumberText(text);
-    if (!parsed.ok || parsed.value !== field.value) setText(field.value == null ? '' : String(field.value));
+    if (!parsed.ok || parsed.value !== field.value) {
+      setText(field.value == null ? '' : String(field.value));
+      setBadText(false);
+    }
     // eslint-disable-next-line react-hooks/exhaustive-deps
   }, [field.value]);
 
   const error = badText ? `${label}: enter a number${unit ? ` in ${unit}` : ''}.` : fieldState.error?.message;
   return (
-    <FieldShell label={label} error={error} hint={hint}>
+    <FieldShell label={label} error={error} hint={hint} testID={testID}>
       <View style={[styles.inputRow, error ? styles.inputError : null]}>
         <TextInput
           testID={testID}
           accessibilityLabel={unit ? `${label} in ${unit}` : label}
           aria-invalid={!!error}
+          aria-describedby={error || hint ? fieldIds(testID).help : undefined}
           value={text}
           inputMode={integer ? 'numeric' : 'decimal'}
           keyboardType={integer ? 'number-pad' : 'decimal-pad'}
@@ -63,6 +72,9 @@ export function NumberField({ name, label, unit, testID, hint, integer = false }
             const parsed = parseNumberText(t);
             if (!parsed.ok) {
               setBadText(true);
+              // NaN fails the schema, so autosave holds this section and the live result ignores it,
+              // rather than keeping the last good number as if it were still meant.
+              field.onChange(Number.NaN);
               setError(name, { type: 'format', message: `${label}: enter a number.` });
               return;
             }
@@ -87,11 +99,12 @@ export function TextField({ name, label, testID, hint, multiline = false, keyboa
   const { control } = useFormContext();
   const { field, fieldState } = useController({ name, control });
   return (
-    <FieldShell label={label} error={fieldState.error?.message} hint={hint}>
+    <FieldShell label={label} error={fieldState.error?.message} hint={hint} testID={testID}>
       <TextInput
         testID={testID}
         accessibilityLabel={label}
         aria-invalid={!!fieldState.error}
+        aria-describedby={fieldState.error || hint ? fieldIds(testID).help : undefined}
         value={field.value ?? ''}
         onChangeText={(t) => field.onChange(t === '' ? null : t)}
         onBlur={field.onBlur}
@@ -116,8 +129,8 @@ export function ChoiceField<T extends string | number | boolean>({ name, label, 
   const { field, fieldState } = useController({ name, control });
   const all: Option<T | null>[] = allowClear ? [...options, { value: null, label: 'Not recorded' }] : options;
   return (
-    <FieldShell label={label} error={fieldState.error?.message} hint={hint} labelID={`${testID}-label`}>
-      <View style={styles.chips} role="radiogroup" aria-labelledby={`${testID}-label`}>
+    <FieldShell label={label} error={fieldState.error?.message} hint={hint} testID={testID}>
+      <View style={styles.chips} role="radiogroup" aria-labelledby={fieldIds(testID).label} aria-describedby={fieldState.error || hint ? fieldIds(testID).help : undefined}>
         {all.map((o) => {
           const selected = field.value === o.value || (o.value === null && field.value == null);
           // "Not recorded" is the resting state of a field: shown as chosen, but quietly.
@@ -165,8 +178,11 @@ export function TransitTimesField({ name, label, testID, slots = 3 }: FieldProps
   const [bad, setBad] = useState<number[]>([]);
 
   useEffect(() => {
-    const entered = texts.map((t) => parseNumberText(t)).flatMap((p) => (p.ok && p.value !== null ? [p.value] : []));
-    if (JSON.stringify(entered) !== JSON.stringify(values)) setTexts(padTo(values.map(String), Math.max(slots, values.length)));
+    const entered = texts.map((t) => parseNumberText(t)).flatMap((p) => (!p.ok ? [Number.NaN] : p.value !== null ? [p.value] : []));
+    if (JSON.stringify(entered) !== JSON.stringify(values)) {
+      setTexts(padTo(values.map(String), Math.max(slots, values.length)));
+      setBad([]);
+    }
     // eslint-disable-next-line react-hooks/exhaustive-deps
   }, [JSON.stringify(values)]);
 
@@ -176,17 +192,20 @@ export function TransitTimesField({ name, label, testID, slots = 3 }: FieldProps
     setTexts(next);
     const parsed = next.map((x) => parseNumberText(x));
     setBad(parsed.flatMap((p, j) => (p.ok ? [] : [j])));
-    field.onChange(parsed.flatMap((p) => (p.ok && p.value !== null ? [p.value] : [])));
+    // A box with text that is not a number holds the section back (NaN fails the schema).
+    field.onChange(parsed.flatMap((p) => (!p.ok ? [Number.NaN] : p.value !== null ? [p.value] : [])));
   };
   const error = bad.length ? `Injection ${bad.map((b) => b + 1).join(', ')}: enter a number in s.` : fieldState.error?.message ?? firstItemError(fieldState.error);
   return (
-    <FieldShell label={label} error={error} hint="One box per saline injection, in seconds; three is usual.">
+    <FieldShell label={label} error={error} hint="One box per saline injection, in seconds; three is usual." testID={testID}>
       <View style={styles.injections}>
         {texts.map((t, i) => (
           <View key={i} style={[styles.inputRow, styles.injection, bad.includes(i) && styles.inputError]}>
             <TextInput
               testID={`${testID}-${i}`}
               accessibilityLabel={`${label}, injection ${i + 1}, in seconds`}
+              aria-invalid={bad.includes(i)}
+              aria-describedby={fieldIds(testID).help}
               value={t}
               inputMode="decimal"
               keyboardType="decimal-pad"

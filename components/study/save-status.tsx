@@ -13,13 +13,13 @@ const describe = (s: SaveState): { text: string; tone: 'muted' | 'abnormal' | 'i
     case 'saving':
       return { text: '↻ Saving…', tone: 'ink' };
     case 'offline':
-      return { text: '⚠ Offline — changes kept on this device, sent when the connection returns', tone: 'abnormal' };
+      return { text: '⚠ Not reaching the server — changes kept on this device, sent when the connection returns', tone: 'abnormal' };
     case 'invalid':
       return { text: '▲ Not saved yet — correct the highlighted fields', tone: 'abnormal' };
     case 'conflict':
       return { text: '▲ Someone else saved this study meanwhile', tone: 'abnormal' };
-    case 'error':
-      return { text: `▲ Not saved: ${s.message} Retrying…`, tone: 'abnormal' };
+    case 'stopped':
+      return { text: `▲ Not saved: ${s.message}`, tone: 'abnormal' };
   }
 };
 

@@ -4,7 +4,7 @@ import { useQueryClient } from '@tanstack/react-query';
 import { sectionNames, studySectionsSchema, type SectionName, type StudyRecord, type StudySections } from '../../shared/study/schema';
 import { ApiError } from '../data/api';
 import { patchStudyRequest, studyKeys } from '../data/study-query';
-import { clearDraft, writeDraft } from './draft-store';
+import { clearDraft, heartbeat, tabId, writeDraft } from './draft-store';
 
 export type SaveState =
   | { kind: 'saved'; at: Date | null }
@@ -13,7 +13,8 @@ export type SaveState =
   | { kind: 'offline' }
   | { kind: 'invalid'; sections: SectionName[] }
   | { kind: 'conflict'; current: StudyRecord }
-  | { kind: 'error'; message: string };
+  /** Stops retrying: the user must act (sign in again, or the study was signed meanwhile). */
+  | { kind: 'stopped'; reason: 'signed-out' | 'signed' | 'refused' | 'gone'; message: string };
 
 export const sectionsOf = (s: StudySections): StudySections => ({
   patient: s.patient,
@@ -25,111 +26,166 @@ export const sectionsOf = (s: StudySections): StudySections => ({
 });
 
 const same = (a: unknown, b: unknown) => JSON.stringify(a) === JSON.stringify(b);
-const clone = <T,>(v: T): T => JSON.parse(JSON.stringify(v)) as T;
+// structuredClone keeps NaN (the mark of text in a number box), which a JSON round trip would turn into null.
+const clone = <T,>(v: T): T => structuredClone(v);
 const fieldOfPointer = (pointer: string) => pointer.split('/').slice(1).map((p) => p.replaceAll('~1', '/').replaceAll('~0', '~')).join('.');
+const validSection = (n: SectionName, value: unknown) => studySectionsSchema.shape[n].safeParse(value).success;
 
 const debounceMs = 700;
 const retryMs = 5000;
 
+export interface AutosaveStart {
+  /** The version and server copy the form's values were based on (a restored draft's, or the study's). */
+  baseVersion: number;
+  base: StudySections;
+  userId: string;
+}
+
 /**
- * Saves a study without a save button. Every change is kept locally at once; after a pause the
- * changed sections are sent with the version they were based on. Offline: retried when the
- * network returns. Stale: the user chooses to load the saved version or to put theirs on top.
+ * Saves a study without a save button. Every change is kept on the device at once, with the server
+ * copy it was based on; after a pause the changed sections are sent with that version. Offline: retried
+ * when the network returns. Stale: the user chooses to load the saved version or to put theirs on top,
+ * section by section. Leaving the study or hiding the tab sends what is pending straight away.
  */
-export function useAutosave(study: StudyRecord, form: UseFormReturn<StudySections>, initialBaseVersion: number, locked = false) {
+export function useAutosave(study: StudyRecord, form: UseFormReturn<StudySections>, start: AutosaveStart, locked = false) {
   const queryClient = useQueryClient();
-  const version = useRef(initialBaseVersion);
-  const server = useRef<StudySections>(clone(sectionsOf(study)));
+  const version = useRef(start.baseVersion);
+  const server = useRef<StudySections>(clone(start.base));
   const timer = useRef<ReturnType<typeof setTimeout> | null>(null);
   const inFlight = useRef(false);
   const again = useRef(false);
+  const stopped = useRef(false);
   const [state, setState] = useState<SaveState>({ kind: 'saved', at: null });
 
-  const dirtySections = useCallback(
-    (values: StudySections) => sectionNames.filter((n) => !same(values[n], server.current[n])),
-    [],
-  );
+  const dirtySections = useCallback((values: StudySections) => sectionNames.filter((n) => !same(values[n], server.current[n])), []);
 
-  const flush = useCallback(async () => {
-    if (timer.current) clearTimeout(timer.current);
-    timer.current = null;
-    if (inFlight.current) {
-      again.current = true;
-      return;
-    }
+  const keepLocally = useCallback(() => {
     const values = clone(form.getValues());
-    const dirty = dirtySections(values);
-    if (dirty.length === 0) {
-      clearDraft(study.id);
-      setState((s) => (s.kind === 'conflict' ? s : { kind: 'saved', at: s.kind === 'saved' ? s.at : new Date() }));
-      return;
-    }
-    const ready = dirty.filter((n) => studySectionsSchema.shape[n].safeParse(values[n]).success);
-    const invalid = dirty.filter((n) => !ready.includes(n));
-    if (ready.length === 0) {
-      setState({ kind: 'invalid', sections: invalid });
-      return;
-    }
-    inFlight.current = true;
-    setState({ kind: 'saving' });
-    try {
-      const body: Record<string, unknown> = { version: version.current };
-      for (const n of ready) body[n] = values[n];
-      const saved = await patchStudyRequest(study.id, body);
-      version.current = saved.version;
-      for (const n of ready) (server.current as Record<SectionName, unknown>)[n] = values[n];
-      queryClient.setQueryData(studyKeys.detail(study.id), saved);
-      void queryClient.invalidateQueries({ queryKey: studyKeys.lists() });
-      const still = dirtySections(form.getValues());
-      if (still.length === 0) {
-        clearDraft(study.id);
-        setState({ kind: 'saved', at: new Date() });
-      } else if (invalid.length && still.every((n) => invalid.includes(n))) {
-        setState({ kind: 'invalid', sections: invalid });
-      } else {
-        setState({ kind: 'pending' });
+    if (dirtySections(values).length === 0) return clearDraft(study.id);
+    writeDraft({ studyId: study.id, userId: start.userId, tabId: tabId(), baseVersion: version.current, base: server.current, sections: values, savedAt: Date.now() });
+  }, [dirtySections, form, start.userId, study.id]);
+
+  const flush = useCallback(
+    async ({ keepalive = false } = {}) => {
+      if (timer.current) clearTimeout(timer.current);
+      timer.current = null;
+      if (stopped.current) return;
+      if (inFlight.current) {
         again.current = true;
+        return;
       }
-    } catch (error) {
-      if (error instanceof ApiError && error.status === 0) {
-        setState({ kind: 'offline' });
-        timer.current = setTimeout(() => void flush(), retryMs);
-      } else if (error instanceof ApiError && error.status === 409 && (error.problem as { current?: StudyRecord }).current) {
-        setState({ kind: 'conflict', current: (error.problem as unknown as { current: StudyRecord }).current });
-      } else if (error instanceof ApiError && error.status === 400 && error.problem.errors) {
-        for (const e of error.problem.errors) form.setError(fieldOfPointer(e.pointer) as never, { type: 'server', message: e.detail });
-        setState({ kind: 'invalid', sections: ready });
-      } else {
-        setState({ kind: 'error', message: error instanceof Error ? error.message : 'The change could not be saved.' });
-        timer.current = setTimeout(() => void flush(), retryMs * 2);
+      const values = clone(form.getValues());
+      // Sections with an entry that cannot be saved (e.g. text in a number box) wait for a correction.
+      const invalid = sectionNames.filter((n) => !validSection(n, values[n]));
+      const ready = dirtySections(values).filter((n) => !invalid.includes(n));
+      if (ready.length === 0) {
+        if (invalid.length) setState({ kind: 'invalid', sections: invalid });
+        else {
+          clearDraft(study.id);
+          setState((s) => (s.kind === 'conflict' ? s : { kind: 'saved', at: s.kind === 'saved' ? s.at : new Date() }));
+        }
+        return;
       }
-    } finally {
-      inFlight.current = false;
-      if (again.current) {
-        again.current = false;
-        timer.current = setTimeout(() => void flush(), debounceMs);
+      inFlight.current = true;
+      setState({ kind: 'saving' });
+      try {
+        const body: Record<string, unknown> = { version: version.current };
+        for (const n of ready) body[n] = values[n];
+        const saved = await patchStudyRequest(study.id, body, { keepalive });
+        version.current = saved.version;
+        for (const n of ready) (server.current as Record<SectionName, unknown>)[n] = values[n];
+        queryClient.setQueryData(studyKeys.detail(study.id), saved);
+        void queryClient.invalidateQueries({ queryKey: studyKeys.lists() });
+        keepLocally();
+        const now = clone(form.getValues());
+        const stillInvalid = sectionNames.filter((n) => !validSection(n, now[n]));
+        const stillDirty = dirtySections(now).filter((n) => !stillInvalid.includes(n));
+        if (stillDirty.length) {
+          setState({ kind: 'pending' });
+          again.current = true;
+        } else if (stillInvalid.length) setState({ kind: 'invalid', sections: stillInvalid });
+        else setState({ kind: 'saved', at: new Date() });
+      } catch (error) {
+        const status = error instanceof ApiError ? error.status : -1;
+        const problem = error instanceof ApiError ? (error.problem as ApiError['problem'] & { current?: StudyRecord }) : undefined;
+        const stop = (reason: 'signed-out' | 'signed' | 'refused' | 'gone', message: string) => {
+          stopped.current = true;
+          setState({ kind: 'stopped', reason, message });
+        };
+        if (status === 0) {
+          setState({ kind: 'offline' });
+          timer.current = setTimeout(() => void flush(), retryMs);
+        } else if (status === 409 && problem?.current) {
+          const theirs = sectionsOf(problem.current);
+          const mine = clone(form.getValues());
+          if (sectionNames.every((n) => same(mine[n], theirs[n]))) {
+            // The newer version holds exactly what this tab has: our own save whose answer was lost
+            // (a save sent as the page was hidden or reloaded). Nothing to choose between.
+            version.current = problem.current.version;
+            server.current = clone(theirs);
+            queryClient.setQueryData(studyKeys.detail(study.id), problem.current);
+            keepLocally();
+            setState({ kind: 'saved', at: new Date() });
+          } else {
+            setState({ kind: 'conflict', current: problem.current });
+          }
+        } else if ((status === 400 || status === 409 || status === 422) && problem?.errors?.length) {
+          for (const e of problem.errors) form.setError(fieldOfPointer(e.pointer) as never, { type: 'server', message: e.detail });
+          setState({ kind: 'invalid', sections: ready });
+        } else if (status === 401) {
+          stop('signed-out', 'Your session has ended. Your edits are kept on this device: sign in again to send them.');
+        } else if (status === 409) {
+          stop('signed', 'The study was signed meanwhile, so these edits cannot be saved to it. They stay on this device; add them as an addendum.');
+        } else if (status === 403) {
+          stop('refused', 'Your role may not change this study.');
+        } else if (status === 404) {
+          stop('gone', 'This study no longer exists.');
+        } else {
+          setState({ kind: 'offline' });
+          timer.current = setTimeout(() => void flush(), retryMs * 2);
+        }
+      } finally {
+        inFlight.current = false;
+        if (again.current && !stopped.current) {
+          again.current = false;
+          timer.current = setTimeout(() => void flush(), debounceMs);
+        }
       }
-    }
-  }, [dirtySections, form, queryClient, study.id]);
+    },
+    [dirtySections, form, keepLocally, queryClient, study.id],
+  );
 
   useEffect(() => {
     if (locked) return;
+    heartbeat();
+    const beat = setInterval(heartbeat, 5000);
     const subscription = form.watch(() => {
-      writeDraft(study.id, { baseVersion: version.current, sections: clone(form.getValues()), savedAt: Date.now() });
-      setState((s) => (s.kind === 'conflict' || s.kind === 'offline' ? s : { kind: 'pending' }));
+      keepLocally();
+      setState((s) => (s.kind === 'conflict' || s.kind === 'offline' || s.kind === 'stopped' ? s : { kind: 'pending' }));
       if (timer.current) clearTimeout(timer.current);
       timer.current = setTimeout(() => void flush(), debounceMs);
     });
     const online = () => void flush();
+    // Leaving or hiding the page sends what is pending now (keepalive lets it finish after unload).
+    const hidden = () => {
+      if (globalThis.document?.visibilityState === 'hidden') void flush({ keepalive: true });
+    };
+    const pagehide = () => void flush({ keepalive: true });
     globalThis.addEventListener?.('online', online);
+    globalThis.addEventListener?.('pagehide', pagehide);
+    globalThis.document?.addEventListener?.('visibilitychange', hidden);
     // A draft restored from this device at load time goes out straight away.
     if (dirtySections(form.getValues()).length) timer.current = setTimeout(() => void flush(), 50);
     return () => {
       subscription.unsubscribe();
+      clearInterval(beat);
       globalThis.removeEventListener?.('online', online);
-      if (timer.current) clearTimeout(timer.current);
+      globalThis.removeEventListener?.('pagehide', pagehide);
+      globalThis.document?.removeEventListener?.('visibilitychange', hidden);
+      // Leaving the study (back to the worklist): what waits for the debounce is sent now.
+      if (timer.current) void flush({ keepalive: true });
     };
-  }, [dirtySections, flush, form, locked, study.id]);
+  }, [dirtySections, flush, form, keepLocally, locked]);
 
   /** Conflict: take the saved version and drop local edits. */
   const loadSaved = useCallback(
@@ -144,7 +200,7 @@ export function useAutosave(study: StudyRecord, form: UseFormReturn<StudySection
     [form, queryClient, study.id],
   );
 
-  /** Conflict: take the other person's sections where this device changed nothing; send ours on top. */
+  /** Conflict: take the other writer's sections where this tab changed nothing since its base; send ours on top. */
   const keepMine = useCallback(
     (current: StudyRecord) => {
       const base = server.current;

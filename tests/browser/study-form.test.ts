@@ -32,6 +32,15 @@ async function signInAs(page: Page, role: 'staff' | 'physician') {
 const mrn = `BR-${Date.now().toString(36).toUpperCase()}`;
 const visible = (page: Page, testID: string) => page.locator(`[data-testid="${testID}"]:visible`);
 
+/** Opens the study of this exact MRN from the worklist search (the search runs after a pause). */
+async function openByMrn(page: Page, which: string) {
+  await visible(page, 'worklist-search').fill(which);
+  const row = page.locator('[data-testid^="study-row-"]:visible', { hasText: `MRN ${which} ·` });
+  await row.first().waitFor();
+  await row.first().locator('[data-testid^="open-"]').click();
+  await page.waitForURL(/\/studies\/[0-9a-f-]{36}$/);
+}
+
 describe('the structured study form on a phone', () => {
   it('creates a study, enters a vessel with pressures and injections, shows CFR and IMR, and keeps everything over a reload', async () => {
     const context = await browser.context.browser()!.newContext({ viewport: viewports.phone });
@@ -109,10 +118,7 @@ describe('the structured study form on a phone', () => {
     const page = await context.newPage();
     try {
       await signInAs(page, 'staff');
-      await visible(page, 'worklist-search').fill(mrn);
-      await visible(page, `worklist`).waitFor();
-      await page.locator('[data-testid^="open-"]:visible').first().click();
-      await page.waitForURL(/\/studies\/[0-9a-f-]{36}$/);
+      await openByMrn(page, mrn);
       await visible(page, 'section-findings').click();
       await context.setOffline(true);
       await visible(page, 'findings-complications').fill('None');
@@ -173,6 +179,7 @@ describe('the structured study form on a phone', () => {
       await visible(page, 'dose-2-symptoms-true').click();
       await visible(page, 'dose-2-ecg-true').click();
       await visible(page, 'dose-1-remove').click();
+      await visible(page, 'dose-1-remove-confirm').click();
       await expect(visible(page, 'dose-1-result').innerText()).resolves.toBe('Response: epicardial spasm');
       await expect(visible(page, 'study-results-endotype').innerText()).resolves.toBe('Microvascular and vasospastic angina');
       await visible(page, 'dose-nitrate-reversal-true').click();
@@ -186,6 +193,61 @@ describe('the structured study form on a phone', () => {
         { ug: 2, pct: 10 },
         { ug: 100, pct: 95 },
       ]);
+    } finally {
+      await context.close();
+    }
+  });
+
+  it('restores edits that never reached the server after a reload, sends them, and clears drafts at sign-out', async () => {
+    const context = await browser.context.browser()!.newContext({ viewport: viewports.phone });
+    const page = await context.newPage();
+    try {
+      await signInAs(page, 'staff');
+      await openByMrn(page, mrn);
+      const studyUrl = page.url();
+      await visible(page, 'section-findings').click();
+      // Saves fail (the server cannot be reached) while the page itself still loads.
+      await page.route('**/api/studies/*', (route) => (route.request().method() === 'PATCH' ? route.abort('internetdisconnected') : route.continue()));
+      await visible(page, 'findings-plan').fill('Repeat testing in 6 months');
+      await visible(page, 'save-status-offline').waitFor({ timeout: 10_000 });
+      await page.reload();
+      await visible(page, 'findings-plan').waitFor();
+      expect(await visible(page, 'findings-plan').inputValue()).toBe('Repeat testing in 6 months');
+      const stored = await page.evaluate(() => Object.keys(localStorage).filter((k) => k.startsWith('isobar.draft.')).length);
+      expect(stored).toBe(1);
+      await page.unroute('**/api/studies/*');
+      await visible(page, 'save-status-saved').waitFor({ timeout: 15_000 });
+      const [row] = await db.query(`SELECT s.plan FROM study s JOIN patient p ON p.id = s.patient_id WHERE p.mrn = $1`, [mrn]);
+      expect(row.plan).toBe('Repeat testing in 6 months');
+      await page.goto(studyUrl + '/findings');
+      await visible(page, 'findings-plan').waitFor();
+      await visible(page, 'sign-out-button').click();
+      await page.waitForURL((url) => url.pathname === '/sign-in');
+      const left = await page.evaluate(() => Object.keys(localStorage).filter((k) => k.startsWith('isobar.')).length);
+      expect(left).toBe(0);
+    } finally {
+      await context.close();
+    }
+  });
+
+  it('holds back a section with text in a number box instead of saving the last good number', async () => {
+    const context = await browser.context.browser()!.newContext({ viewport: viewports.phone });
+    const page = await context.newPage();
+    try {
+      await signInAs(page, 'staff');
+      await openByMrn(page, mrn);
+      await visible(page, 'section-findings').click();
+      await visible(page, 'findings-contrast').fill('120');
+      await visible(page, 'save-status-saved').waitFor({ timeout: 10_000 });
+      await visible(page, 'findings-contrast').fill('12O');
+      await visible(page, 'findings-contrast-error').waitFor();
+      await visible(page, 'save-status-invalid').waitFor({ timeout: 10_000 });
+      expect(await visible(page, 'findings-contrast').getAttribute('aria-invalid')).toBe('true');
+      expect(await visible(page, 'findings-contrast').getAttribute('aria-describedby')).toBe('findings-contrast-help');
+      const [row] = await db.query(`SELECT s.contrast_ml::float8 AS c FROM study s JOIN patient p ON p.id = s.patient_id WHERE p.mrn = $1`, [mrn]);
+      expect(row.c).toBe(120);
+      await visible(page, 'findings-contrast').fill('125');
+      await visible(page, 'save-status-saved').waitFor({ timeout: 10_000 });
     } finally {
       await context.close();
     }

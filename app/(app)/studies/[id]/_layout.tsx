@@ -15,7 +15,8 @@ import { SectionNav } from '../../../../components/study/section-nav';
 import { ConflictBanner, SaveStatus } from '../../../../components/study/save-status';
 import { StudyResults } from '../../../../components/study/live-results';
 import { StudyContext } from '../../../../components/study/study-context';
-import { readDraft } from '../../../../components/study/draft-store';
+import { takeDraft } from '../../../../components/study/draft-store';
+import { useMeQuery } from '../../../../components/data/me-query';
 import { sectionsOf, useAutosave } from '../../../../components/study/use-autosave';
 import { color, space } from '../../../../components/theme';
 
@@ -23,7 +24,8 @@ import { color, space } from '../../../../components/theme';
 export default function StudyLayout() {
   const { id } = useLocalSearchParams<{ id: string }>();
   const study = useStudy(id);
-  if (study.isPending) {
+  const me = useMeQuery();
+  if (study.isPending || !me.data) {
     return (
       <Center style={styles.pad}>
         <LoadingState label="Opening the study…" testID="study-loading" />
@@ -42,22 +44,27 @@ export default function StudyLayout() {
       </Center>
     );
   }
-  return <StudyEditor key={study.data.id} study={study.data} />;
+  return <StudyEditor key={study.data.id} study={study.data} userId={me.data!.id} />;
 }
 
-function StudyEditor({ study }: { study: StudyRecord }) {
+function StudyEditor({ study, userId }: { study: StudyRecord; userId: string }) {
   const wide = useIsWide();
   const locked = study.state === 'signed' || study.state === 'amended';
-  // Unsent edits kept on this device win over the server copy at load; their base version decides
-  // whether they can be sent as they are or need the user's choice (conflict).
+  // Unsent edits kept on this device win over the server copy at load. Sections the draft did not
+  // change since its base are taken from the server, which may be newer; the base version then
+  // decides whether the edits go as they are or need the user's choice (conflict).
   const [initial] = useState(() => {
-    const draft = locked ? null : readDraft(study.id);
     const server = sectionsOf(study);
-    if (draft && JSON.stringify(draft.sections) !== JSON.stringify(server)) return { values: draft.sections, baseVersion: draft.baseVersion };
-    return { values: server, baseVersion: study.version };
+    const draft = locked ? null : takeDraft(study.id, userId);
+    if (!draft) return { values: server, base: server, baseVersion: study.version };
+    const values = { ...draft.sections } as Record<keyof StudySections, unknown>;
+    for (const n of Object.keys(server) as (keyof StudySections)[]) {
+      if (JSON.stringify(draft.sections[n]) === JSON.stringify(draft.base[n])) values[n] = server[n];
+    }
+    return { values: values as StudySections, base: draft.base, baseVersion: draft.baseVersion };
   });
   const form = useForm<StudySections>({ defaultValues: initial.values, resolver: zodResolver(studySectionsSchema), mode: 'onChange' });
-  const save = useAutosave(study, form, initial.baseVersion, locked);
+  const save = useAutosave(study, form, { baseVersion: initial.baseVersion, base: initial.base, userId }, locked);
   const current = save.state.kind === 'conflict' ? save.state.current : null;
 
   const header = (

@@ -1,10 +1,11 @@
 import { useState } from 'react';
-import { Pressable, StyleSheet, View } from 'react-native';
+import { StyleSheet, View } from 'react-native';
 import * as DocumentPicker from 'expo-document-picker';
 import { useQueryClient } from '@tanstack/react-query';
 import { SectionCard } from '../../../../components/study/section-card';
 import { useStudyContext } from '../../../../components/study/study-context';
 import { Button } from '../../../../components/ui/button';
+import { ConfirmRemove } from '../../../../components/ui/confirm-remove';
 import { EmptyState } from '../../../../components/ui/async-states';
 import { Text } from '../../../../components/ui/text';
 import { color, radius, space, touchTarget } from '../../../../components/theme';
@@ -81,13 +82,7 @@ export default function AttachmentsSection() {
               <a href={`/api/attachments/${a.id}/content`} download={a.fileName} style={linkStyle} data-testid={`attachment-${a.fileName}-download`}>
                 Download
               </a>
-              {!locked ? (
-                <Pressable role="button" accessibilityLabel={`Remove ${a.fileName}`} testID={`attachment-${a.fileName}-remove`} onPress={() => void remove(a)} style={styles.action}>
-                  <Text variant="caption" weight="semibold" tone="abnormal">
-                    Remove
-                  </Text>
-                </Pressable>
-              ) : null}
+              {!locked ? <ConfirmRemove what={a.fileName} onConfirm={() => void remove(a)} testID={`attachment-${a.fileName}-remove`} /> : null}
             </View>
           </View>
         ))}
@@ -120,7 +115,6 @@ const styles = StyleSheet.create({
   item: { flexDirection: 'row', flexWrap: 'wrap', justifyContent: 'space-between', gap: space.sm, padding: space.md, borderRadius: radius.md, backgroundColor: color.surfaceSunken },
   itemText: { flexShrink: 1, gap: 2 },
   itemActions: { flexDirection: 'row', alignItems: 'center' },
-  action: { minHeight: touchTarget, justifyContent: 'center', paddingHorizontal: space.md },
   bar: { height: 6, borderRadius: 3, backgroundColor: color.surfaceSunken, overflow: 'hidden', marginTop: space.xs },
   barFill: { height: 6, backgroundColor: color.brand },
 });

@@ -1,13 +1,12 @@
-import { Pressable, StyleSheet } from 'react-native';
 import { useFieldArray, useFormContext } from 'react-hook-form';
 import { ChoiceField, NumberField, YesNoField } from '../../../../components/form/fields';
 import { newId } from '../../../../components/form/new-id';
 import { FieldRow, SectionCard } from '../../../../components/study/section-card';
 import { useLiveAnalysis } from '../../../../components/study/live-results';
 import { Button } from '../../../../components/ui/button';
+import { ConfirmRemove } from '../../../../components/ui/confirm-remove';
 import { EmptyState } from '../../../../components/ui/async-states';
 import { Text } from '../../../../components/ui/text';
-import { space, touchTarget } from '../../../../components/theme';
 import { vesselCodes } from '../../../../shared/physiology';
 import { emptyDose, type StudySections } from '../../../../shared/study/schema';
 
@@ -41,13 +40,7 @@ export default function VasoreactivitySection() {
               key={f.key}
               title={`Dose ${i + 1}`}
               testID={`dose-card-${i}`}
-              aside={
-                <Pressable testID={`dose-${i}-remove`} role="button" accessibilityLabel={`Remove dose ${i + 1}`} onPress={() => remove(i)} style={styles.remove}>
-                  <Text variant="caption" weight="semibold" tone="abnormal">
-                    Remove
-                  </Text>
-                </Pressable>
-              }
+              aside={<ConfirmRemove what={`dose ${i + 1}`} onConfirm={() => remove(i)} testID={`dose-${i}-remove`} />}
             >
               <ChoiceField name={`${p}.vessel`} label="Into" testID={`dose-${i}-vessel`} options={vesselCodes.map((v) => ({ value: v, label: v }))} allowClear={false} />
               <FieldRow>
@@ -79,7 +72,3 @@ export default function VasoreactivitySection() {
     </>
   );
 }
-
-const styles = StyleSheet.create({
-  remove: { minHeight: touchTarget, justifyContent: 'center', paddingHorizontal: space.md },
-});

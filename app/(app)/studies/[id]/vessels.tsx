@@ -7,6 +7,7 @@ import { newId } from '../../../../components/form/new-id';
 import { FieldRow, SectionCard } from '../../../../components/study/section-card';
 import { useLiveAnalysis, VesselResults } from '../../../../components/study/live-results';
 import { Button } from '../../../../components/ui/button';
+import { ConfirmRemove } from '../../../../components/ui/confirm-remove';
 import { EmptyState } from '../../../../components/ui/async-states';
 import { Text } from '../../../../components/ui/text';
 import { color, radius, space, touchTarget } from '../../../../components/theme';
@@ -69,13 +70,7 @@ function VesselCard({ index, onRemove, result }: { index: number; onRemove: () =
     <SectionCard
       title={`${vessel} · ${vesselLabel[vessel]}`}
       testID={`vessel-card-${index}`}
-      aside={
-        <Pressable testID={`${t}-remove`} role="button" accessibilityLabel={`Remove ${vesselLabel[vessel]}`} onPress={onRemove} style={styles.remove}>
-          <Text variant="caption" weight="semibold" tone="abnormal">
-            Remove
-          </Text>
-        </Pressable>
-      }
+      aside={<ConfirmRemove what={`the ${vesselLabel[vessel]} and its measurements`} onConfirm={onRemove} testID={`${t}-remove`} />}
     >
       <VesselResults result={result} testID={`${t}-results`} />
       <FieldRow>
@@ -117,5 +112,4 @@ function VesselCard({ index, onRemove, result }: { index: number; onRemove: () =
 const styles = StyleSheet.create({
   pick: { flexDirection: 'row', flexWrap: 'wrap', gap: space.sm },
   pickItem: { minHeight: touchTarget, minWidth: 128, padding: space.sm, borderWidth: 1, borderColor: color.line, borderRadius: radius.md, backgroundColor: color.surface },
-  remove: { minHeight: touchTarget, justifyContent: 'center', paddingHorizontal: space.md },
 });
