@@ -28,6 +28,9 @@ function decodeCursor(cursor: string): [string, string] {
 
 const escapeLike = (s: string) => s.replace(/[\\%_]/g, (c) => `\\${c}`);
 
+/** Up to this many matching patients, search goes patient-first (see listStudies). */
+const patientLookupCap = 200;
+
 /**
  * Studies newest first (procedure start, or when the record was opened), filtered, one page at a
  * time by keyset: `(sort_at, id) < cursor` rides the worklist indexes however deep the page.
@@ -44,9 +47,22 @@ export async function listStudies(db: DataSource, query: WorklistQuery): Promise
   if (query.from) where.push(`s.sort_at >= ${param(query.from)}::timestamptz`);
   if (query.to) where.push(`s.sort_at < ${param(query.to)}::timestamptz`);
   if (query.q) {
+    // Patients first, through their own indexes (MRN, family and given name prefixes); then the
+    // studies of those patients. Mixing patient and study columns in one OR would force a walk of
+    // the whole worklist for a rare name. A very common prefix falls back to that walk, which is
+    // fast exactly when matches are dense.
+    const prefix = `${escapeLike(query.q.toLowerCase())}%`;
+    const patients: { id: string }[] = await db.query(
+      `SELECT id FROM patient WHERE mrn = $1 OR lower(family_name) LIKE $2 OR lower(given_name) LIKE $2 LIMIT ${patientLookupCap + 1}`,
+      [query.q, prefix],
+    );
     const exact = param(query.q);
-    const prefix = param(`${escapeLike(query.q.toLowerCase())}%`);
-    where.push(`(p.mrn = ${exact} OR s.accession = upper(${exact}) OR lower(p.family_name) LIKE ${prefix} OR lower(p.given_name) LIKE ${prefix})`);
+    if (patients.length <= patientLookupCap) {
+      where.push(`(s.patient_id = ANY(${param(patients.map((p) => p.id))}::uuid[]) OR s.accession = upper(${exact}))`);
+    } else {
+      const like = param(prefix);
+      where.push(`(p.mrn = ${exact} OR s.accession = upper(${exact}) OR lower(p.family_name) LIKE ${like} OR lower(p.given_name) LIKE ${like})`);
+    }
   }
   if (query.cursor) {
     const [sortKey, id] = decodeCursor(query.cursor);
