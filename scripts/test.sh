@@ -8,7 +8,12 @@ export NODE_ENV=test
 export DATABASE_URL=postgres://isobar@127.0.0.1:$PG_PORT/isobar_test
 export ATTACHMENT_DIR="$DATA_DIR/test-attachments"
 
-trap stop_cluster EXIT
+# The test cluster holds nothing worth keeping: one that had to live outside the project is removed.
+finish() {
+  stop_cluster
+  if [[ ${PG_DIR:-} == /var/tmp/isobar-*/postgres-test ]]; then rm -rf "$PG_DIR"; fi
+}
+trap finish EXIT
 trap 'exit 130' INT TERM
 
 began=$(date +%s)
