@@ -6,6 +6,7 @@ import { User } from './user.entity';
 /**
  * One physiology study of one patient in one catheterization session.
  * `version` guards concurrent edits: a write names the version it read, a stale one is refused.
+ * Numeric measurements come back from pg as strings; the repository reads them as float8.
  */
 @Entity({ name: 'study' })
 export class Study extends Timestamped {
@@ -44,6 +45,39 @@ export class Study extends Timestamped {
 
   @Column('text', { name: 'clinical_question', nullable: true })
   clinicalQuestion!: string | null;
+
+  @Column('text', { nullable: true }) encounter!: string | null;
+  @Column('text', { name: 'referring_name', nullable: true }) referringName!: string | null;
+  @Column('text', { name: 'referring_email', nullable: true }) referringEmail!: string | null;
+  @Column('text', { name: 'access_site', nullable: true }) accessSite!: string | null;
+  @Column('smallint', { name: 'guide_french', nullable: true }) guideFrench!: number | null;
+
+  // Setup and quality steps.
+  @Column('boolean', { name: 'transducer_zeroed', nullable: true }) transducerZeroed!: boolean | null;
+  @Column('boolean', { name: 'nitrates_given', nullable: true }) nitratesGiven!: boolean | null;
+  @Column('numeric', { name: 'nitrate_dose_ug', nullable: true }) nitrateDoseMicrograms!: string | null;
+  @Column('boolean', { name: 'equalized_in_aorta', nullable: true }) equalizedInAorta!: boolean | null;
+  @Column('boolean', { name: 'introducer_removed', nullable: true }) introducerRemoved!: boolean | null;
+  @Column('text', { name: 'wire_position', nullable: true }) wirePosition!: string | null;
+  @Column('text', { name: 'hyperemic_agent', nullable: true }) hyperemicAgent!: string | null;
+  @Column('text', { name: 'hyperemic_route', nullable: true }) hyperemicRoute!: string | null;
+  @Column('numeric', { name: 'hyperemic_dose', nullable: true }) hyperemicDose!: string | null;
+  @Column('text', { name: 'hyperemic_dose_unit', nullable: true }) hyperemicDoseUnit!: string | null;
+  @Column('numeric', { name: 'heparin_units', nullable: true }) heparinUnits!: string | null;
+  @Column('boolean', { name: 'nitrate_reversal', nullable: true }) nitrateReversal!: boolean | null;
+
+  // Findings and plan.
+  @Column('text', { nullable: true }) complications!: string | null;
+  @Column('numeric', { name: 'contrast_ml', nullable: true }) contrastMl!: string | null;
+  @Column('numeric', { name: 'fluoroscopy_minutes', nullable: true }) fluoroscopyMinutes!: string | null;
+  @Column('text', { nullable: true }) impression!: string | null;
+  @Column('text', { nullable: true }) plan!: string | null;
+
+  @Column('uuid', { name: 'created_by', nullable: true }) createdBy!: string | null;
+
+  /** Worklist order, computed by the database (procedure start, else when the record was opened). */
+  @Column({ type: 'timestamptz', name: 'sort_at', nullable: true, insert: false, update: false, generatedType: 'STORED', asExpression: 'COALESCE(procedure_started_at, created_at)' })
+  sortAt!: Date | null;
 
   @VersionColumn({ type: 'integer' })
   version!: number;
