@@ -66,6 +66,8 @@ describe('the structured study form on a phone', () => {
       await page.waitForURL(/\/vessels$/);
       await visible(page, 'add-vessel').click();
       await visible(page, 'add-vessel-LAD').click();
+      // Until the pull-back check is entered, every section's header says so (common practice: repeat when drift is out of range).
+      await expect(visible(page, 'drift-alert').innerText()).resolves.toMatch(/Drift check missing for LAD/);
       const restPa = visible(page, 'vessel-0-rest-pa');
       expect(await restPa.getAttribute('inputmode')).toBe('decimal');
       expect(await restPa.getAttribute('aria-label')).toBe('Pa in mmHg');
@@ -77,7 +79,10 @@ describe('the structured study form on a phone', () => {
       await visible(page, 'vessel-0-hyp-pa').fill('90');
       await visible(page, 'vessel-0-hyp-pd').fill('72');
       for (const [i, t] of ['0.3', '0.3', '0.3'].entries()) await visible(page, `vessel-0-hyp-tmn-${i}`).fill(t);
+      await visible(page, 'vessel-0-drift').fill('1.03');
+      await expect(visible(page, 'drift-alert').innerText()).resolves.toMatch(/outside 0\.98–1\.02 for LAD/);
       await visible(page, 'vessel-0-drift').fill('1.00');
+      await expect.poll(() => visible(page, 'drift-alert').count()).toBe(0);
 
       await expect(visible(page, 'vessel-0-results-cfr-value').innerText()).resolves.toBe('3.00');
       await expect(visible(page, 'vessel-0-results-imr-value').innerText()).resolves.toMatch(/^20\.5/);

@@ -14,6 +14,7 @@ import { patientName } from '../../../../components/format';
 import { SectionNav } from '../../../../components/study/section-nav';
 import { ConflictBanner, SaveStatus } from '../../../../components/study/save-status';
 import { StudyResults } from '../../../../components/study/live-results';
+import { DriftAlert } from '../../../../components/study/quality-alert';
 import { StudyContext } from '../../../../components/study/study-context';
 import { takeDraft } from '../../../../components/study/draft-store';
 import { useMeQuery } from '../../../../components/data/me-query';
@@ -77,6 +78,7 @@ function StudyEditor({ study, userId }: { study: StudyRecord; userId: string }) 
           MRN {form.watch('patient.mrn')} · {study.accession}
         </Text>
       </View>
+      <DriftAlert studyId={study.id} />
       <View style={styles.headerState}>
         <StudyStateChip state={study.state} />
         {locked ? (
