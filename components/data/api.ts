@@ -17,17 +17,25 @@ export class ApiError extends Error {
   }
 }
 
+/** A request that has had no answer for this long counts as unreachable (a pulled cable never fails fast). */
+const requestTimeoutMs = 15_000;
+
 /** Fetches JSON from the Isobar API on the same origin; non-2xx answers become an ApiError. */
 export async function apiFetch<T>(path: string, init: RequestInit = {}): Promise<T> {
   let response: Response;
+  const abort = new AbortController();
+  const timer = setTimeout(() => abort.abort(), requestTimeoutMs);
   try {
     response = await fetch(`/api${path}`, {
       credentials: 'same-origin',
+      signal: abort.signal,
       ...init,
       headers: { Accept: 'application/json', ...(init.body ? { 'Content-Type': 'application/json' } : {}), ...init.headers },
     });
   } catch {
     throw new ApiError({ type: 'about:blank', title: 'Network unavailable', status: 0, detail: 'The server could not be reached. Check the connection.' });
+  } finally {
+    clearTimeout(timer);
   }
   const text = await response.text();
   const body = text ? safeJson(text) : undefined;

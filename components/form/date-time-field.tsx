@@ -5,8 +5,10 @@ import { FieldShell, fieldIds } from './fields';
 import { color, font, radius, space, touchTarget, type } from '../theme';
 
 const pad = (n: number) => String(n).padStart(2, '0');
+const isInstant = (v: string) => /^\d{4}-\d{2}-\d{2}T/.test(v) && !Number.isNaN(new Date(v).getTime());
 const toLocalText = (iso: string | null) => {
   if (!iso) return '';
+  if (!isInstant(iso)) return iso; // text the user has not corrected yet
   const d = new Date(iso);
   return `${d.getFullYear()}-${pad(d.getMonth() + 1)}-${pad(d.getDate())} ${pad(d.getHours())}:${pad(d.getMinutes())}`;
 };
@@ -46,7 +48,12 @@ export function DateTimeField({ name, label, testID }: { name: string; label: st
         onChangeText={(t) => {
           setText(t);
           const p = parseLocalDateTime(t);
-          if (!p.ok) return setError(name, { type: 'format', message: `${label}: write it as YYYY-MM-DD HH:MM.` });
+          if (!p.ok) {
+            // The typed text itself fails the schema, so autosave holds the section instead of keeping
+            // the last good time as if it were still meant.
+            field.onChange(t);
+            return setError(name, { type: 'format', message: `${label}: write it as YYYY-MM-DD HH:MM.` });
+          }
           clearErrors(name);
           field.onChange(p.value);
         }}

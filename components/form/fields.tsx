@@ -41,8 +41,10 @@ export function FieldShell({ label, error, hint, children, testID }: { label: st
 export function NumberField({ name, label, unit, testID, hint, integer = false }: FieldProps & { unit?: string; integer?: boolean }) {
   const { control, setError, clearErrors } = useFormContext();
   const { field, fieldState } = useController({ name, control });
-  const [text, setText] = useState(field.value == null ? '' : String(field.value));
-  const [badText, setBadText] = useState(false);
+  const isBad = (v: unknown) => typeof v === 'number' && Number.isNaN(v);
+  // NaN comes back from a draft when the text typed was not a number: shown empty, with its error.
+  const [text, setText] = useState(field.value == null || isBad(field.value) ? '' : String(field.value));
+  const [badText, setBadText] = useState(isBad(field.value));
 
   // Follow the value when it changes from outside (a reload or a merge), not while typing.
   useEffect(() => {
@@ -174,14 +176,15 @@ export function TransitTimesField({ name, label, testID, slots = 3 }: FieldProps
   const { control } = useFormContext();
   const { field, fieldState } = useController({ name, control });
   const values: number[] = field.value ?? [];
-  const [texts, setTexts] = useState<string[]>(() => padTo(values.map(String), Math.max(slots, values.length)));
-  const [bad, setBad] = useState<number[]>([]);
+  const shown = (list: number[]) => list.map((v) => (Number.isNaN(v) ? '' : String(v)));
+  const [texts, setTexts] = useState<string[]>(() => padTo(shown(values), Math.max(slots, values.length)));
+  const [bad, setBad] = useState<number[]>(() => values.flatMap((v, i) => (Number.isNaN(v) ? [i] : [])));
 
   useEffect(() => {
     const entered = texts.map((t) => parseNumberText(t)).flatMap((p) => (!p.ok ? [Number.NaN] : p.value !== null ? [p.value] : []));
-    if (JSON.stringify(entered) !== JSON.stringify(values)) {
-      setTexts(padTo(values.map(String), Math.max(slots, values.length)));
-      setBad([]);
+    if (entered.length !== values.length || entered.some((v, i) => !Object.is(v, values[i]))) {
+      setTexts(padTo(shown(values), Math.max(slots, values.length)));
+      setBad(values.flatMap((v, i) => (Number.isNaN(v) ? [i] : [])));
     }
     // eslint-disable-next-line react-hooks/exhaustive-deps
   }, [JSON.stringify(values)]);

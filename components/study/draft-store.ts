@@ -15,6 +15,15 @@ export interface LocalDraft {
   savedAt: number;
 }
 
+/**
+ * JSON that keeps NaN — the mark of text in a number box that the user has not corrected yet — so a
+ * reload shows the field as still wrong instead of quietly empty.
+ */
+const nanMark = '__isobar_nan__';
+export const toStableJson = (v: unknown) => JSON.stringify(v, (_k, x) => (typeof x === 'number' && Number.isNaN(x) ? { [nanMark]: 1 } : x));
+export const fromStableJson = <T,>(text: string): T =>
+  JSON.parse(text, (_k, x) => (x && typeof x === 'object' && !Array.isArray(x) && x[nanMark] === 1 && Object.keys(x).length === 1 ? Number.NaN : x)) as T;
+
 const prefix = 'isobar.draft.';
 const alivePrefix = 'isobar.tab-alive.';
 /** A tab that has not said it is alive for this long is gone; its drafts may be taken over. */
@@ -28,16 +37,41 @@ const store = () => {
   }
 };
 
-/** This tab's id: kept in sessionStorage, so it survives a reload of the tab but not a new tab. */
+const randomId = () => Math.random().toString(36).slice(2, 10) + Date.now().toString(36);
+/** Tells this page load apart from another tab that copied our sessionStorage (a duplicated tab). */
+const loadNonce = randomId();
+let cachedTabId: string | null = null;
+
+/**
+ * This tab's id, kept in sessionStorage so it survives a reload of the tab. A duplicated tab copies
+ * it; when another live page already beats under the id, this page takes a new one.
+ */
 export function tabId(): string {
+  if (cachedTabId) return cachedTabId;
   try {
-    const existing = globalThis.sessionStorage?.getItem('isobar.tab');
-    if (existing) return existing;
-    const id = Math.random().toString(36).slice(2, 10) + Date.now().toString(36);
-    globalThis.sessionStorage?.setItem('isobar.tab', id);
+    let id = globalThis.sessionStorage?.getItem('isobar.tab') ?? null;
+    if (id) {
+      const mark = readAlive(id);
+      if (mark && mark.nonce !== loadNonce && Date.now() - mark.at < tabGoneAfterMs) id = null;
+    }
+    if (!id) {
+      id = randomId();
+      globalThis.sessionStorage?.setItem('isobar.tab', id);
+    }
+    cachedTabId = id;
     return id;
   } catch {
-    return 'tab';
+    cachedTabId = 'tab';
+    return cachedTabId;
+  }
+}
+
+function readAlive(tab: string): { nonce: string; at: number } | null {
+  try {
+    const text = store()?.getItem(alivePrefix + tab);
+    return text ? (JSON.parse(text) as { nonce: string; at: number }) : null;
+  } catch {
+    return null;
   }
 }
 
@@ -51,7 +85,7 @@ function allDrafts(): { key: string; draft: LocalDraft }[] {
     const key = s.key(i);
     if (!key?.startsWith(prefix)) continue;
     try {
-      out.push({ key, draft: JSON.parse(s.getItem(key)!) as LocalDraft });
+      out.push({ key, draft: fromStableJson<LocalDraft>(s.getItem(key)!) });
     } catch {
       /* unreadable: ignore */
     }
@@ -61,12 +95,18 @@ function allDrafts(): { key: string; draft: LocalDraft }[] {
 
 /** Says this tab is alive (called while a study is open). */
 export function heartbeat(): void {
-  store()?.setItem(alivePrefix + tabId(), String(Date.now()));
+  store()?.setItem(alivePrefix + tabId(), JSON.stringify({ nonce: loadNonce, at: Date.now() }));
+}
+
+/** The tab is closing or reloading: its drafts may be taken over at once. */
+export function farewell(): void {
+  const mark = readAlive(tabId());
+  if (mark?.nonce === loadNonce) store()?.removeItem(alivePrefix + tabId());
 }
 
 function tabIsGone(tab: string): boolean {
-  const seen = Number(store()?.getItem(alivePrefix + tab) ?? 0);
-  return Date.now() - seen > tabGoneAfterMs;
+  const mark = readAlive(tab);
+  return !mark || Date.now() - mark.at > tabGoneAfterMs;
 }
 
 /**
@@ -88,7 +128,7 @@ export function takeDraft(studyId: string, userId: string): LocalDraft | null {
 
 export function writeDraft(draft: LocalDraft): void {
   try {
-    store()?.setItem(keyOf(draft.studyId, draft.tabId), JSON.stringify(draft));
+    store()?.setItem(keyOf(draft.studyId, draft.tabId), toStableJson(draft));
   } catch {
     /* storage full or disabled: the server copy is still there */
   }

@@ -4,7 +4,7 @@ import { useQueryClient } from '@tanstack/react-query';
 import { sectionNames, studySectionsSchema, type SectionName, type StudyRecord, type StudySections } from '../../shared/study/schema';
 import { ApiError } from '../data/api';
 import { patchStudyRequest, studyKeys } from '../data/study-query';
-import { clearDraft, heartbeat, tabId, writeDraft } from './draft-store';
+import { clearDraft, farewell, heartbeat, tabId, toStableJson, writeDraft } from './draft-store';
 
 export type SaveState =
   | { kind: 'saved'; at: Date | null }
@@ -25,7 +25,8 @@ export const sectionsOf = (s: StudySections): StudySections => ({
   findings: s.findings,
 });
 
-const same = (a: unknown, b: unknown) => JSON.stringify(a) === JSON.stringify(b);
+/** Equality that tells NaN (uncorrected text in a number box) from an empty field. */
+const same = (a: unknown, b: unknown) => toStableJson(a) === toStableJson(b);
 // structuredClone keeps NaN (the mark of text in a number box), which a JSON round trip would turn into null.
 const clone = <T,>(v: T): T => structuredClone(v);
 const fieldOfPointer = (pointer: string) => pointer.split('/').slice(1).map((p) => p.replaceAll('~1', '/').replaceAll('~0', '~')).join('.');
@@ -55,11 +56,19 @@ export function useAutosave(study: StudyRecord, form: UseFormReturn<StudySection
   const inFlight = useRef(false);
   const again = useRef(false);
   const stopped = useRef(false);
-  const [state, setState] = useState<SaveState>({ kind: 'saved', at: null });
+  const unmounted = useRef(false);
+  /** Sections the server refused as they stand (e.g. an MRN of another patient): not resent until they change. */
+  const heldBack = useRef(new Map<SectionName, string>());
+  const [state, setStateNow] = useState<SaveState>({ kind: 'saved', at: null });
+  // After the editor is gone, a last send may still finish: it must not touch state, timers or drafts.
+  const setState: typeof setStateNow = (v) => {
+    if (!unmounted.current) setStateNow(v);
+  };
 
   const dirtySections = useCallback((values: StudySections) => sectionNames.filter((n) => !same(values[n], server.current[n])), []);
 
   const keepLocally = useCallback(() => {
+    if (unmounted.current) return;
     const values = clone(form.getValues());
     if (dirtySections(values).length === 0) return clearDraft(study.id);
     writeDraft({ studyId: study.id, userId: start.userId, tabId: tabId(), baseVersion: version.current, base: server.current, sections: values, savedAt: Date.now() });
@@ -75,8 +84,10 @@ export function useAutosave(study: StudyRecord, form: UseFormReturn<StudySection
         return;
       }
       const values = clone(form.getValues());
-      // Sections with an entry that cannot be saved (e.g. text in a number box) wait for a correction.
-      const invalid = sectionNames.filter((n) => !validSection(n, values[n]));
+      for (const [n, held] of heldBack.current) if (held !== toStableJson(values[n])) heldBack.current.delete(n);
+      // Sections with an entry that cannot be saved (e.g. text in a number box) wait for a correction,
+      // and so do sections the server refused as they stand; the other sections still go.
+      const invalid = sectionNames.filter((n) => !validSection(n, values[n]) || heldBack.current.has(n));
       const ready = dirtySections(values).filter((n) => !invalid.includes(n));
       if (ready.length === 0) {
         if (invalid.length) setState({ kind: 'invalid', sections: invalid });
@@ -88,6 +99,9 @@ export function useAutosave(study: StudyRecord, form: UseFormReturn<StudySection
       }
       inFlight.current = true;
       setState({ kind: 'saving' });
+      const schedule = (ms: number) => {
+        if (!unmounted.current) timer.current = setTimeout(() => void flush(), ms);
+      };
       try {
         const body: Record<string, unknown> = { version: version.current };
         for (const n of ready) body[n] = values[n];
@@ -98,7 +112,7 @@ export function useAutosave(study: StudyRecord, form: UseFormReturn<StudySection
         void queryClient.invalidateQueries({ queryKey: studyKeys.lists() });
         keepLocally();
         const now = clone(form.getValues());
-        const stillInvalid = sectionNames.filter((n) => !validSection(n, now[n]));
+        const stillInvalid = sectionNames.filter((n) => !validSection(n, now[n]) || heldBack.current.has(n));
         const stillDirty = dirtySections(now).filter((n) => !stillInvalid.includes(n));
         if (stillDirty.length) {
           setState({ kind: 'pending' });
@@ -112,10 +126,11 @@ export function useAutosave(study: StudyRecord, form: UseFormReturn<StudySection
           stopped.current = true;
           setState({ kind: 'stopped', reason, message });
         };
+        const type = problem?.type?.split('/').pop();
         if (status === 0) {
           setState({ kind: 'offline' });
-          timer.current = setTimeout(() => void flush(), retryMs);
-        } else if (status === 409 && problem?.current) {
+          schedule(retryMs);
+        } else if (status === 409 && type === 'stale-version' && problem?.current) {
           const theirs = sectionsOf(problem.current);
           const mine = clone(form.getValues());
           if (sectionNames.every((n) => same(mine[n], theirs[n]))) {
@@ -130,25 +145,36 @@ export function useAutosave(study: StudyRecord, form: UseFormReturn<StudySection
             setState({ kind: 'conflict', current: problem.current });
           }
         } else if ((status === 400 || status === 409 || status === 422) && problem?.errors?.length) {
-          for (const e of problem.errors) form.setError(fieldOfPointer(e.pointer) as never, { type: 'server', message: e.detail });
-          setState({ kind: 'invalid', sections: ready });
+          const refused = new Set<SectionName>();
+          for (const e of problem.errors) {
+            form.setError(fieldOfPointer(e.pointer) as never, { type: 'server', message: e.detail });
+            const section = e.pointer.split('/')[1] as SectionName;
+            if (sectionNames.includes(section)) refused.add(section);
+          }
+          for (const n of refused) heldBack.current.set(n, toStableJson(values[n]));
+          setState({ kind: 'invalid', sections: [...refused] });
+          // The sections the server did not object to go out on their own.
+          if (ready.some((n) => !refused.has(n))) again.current = true;
         } else if (status === 401) {
           stop('signed-out', 'Your session has ended. Your edits are kept on this device: sign in again to send them.');
-        } else if (status === 409) {
+        } else if (status === 409 && type === 'study-signed') {
           stop('signed', 'The study was signed meanwhile, so these edits cannot be saved to it. They stay on this device; add them as an addendum.');
+        } else if (status === 409) {
+          stop('refused', `${problem?.detail ?? 'The change was refused.'} Reload the study.`);
         } else if (status === 403) {
           stop('refused', 'Your role may not change this study.');
         } else if (status === 404) {
           stop('gone', 'This study no longer exists.');
         } else {
           setState({ kind: 'offline' });
-          timer.current = setTimeout(() => void flush(), retryMs * 2);
+          schedule(retryMs * 2);
         }
       } finally {
         inFlight.current = false;
         if (again.current && !stopped.current) {
           again.current = false;
-          timer.current = setTimeout(() => void flush(), debounceMs);
+          if (unmounted.current) void flush({ keepalive: true });
+          else schedule(debounceMs);
         }
       }
     },
@@ -157,6 +183,7 @@ export function useAutosave(study: StudyRecord, form: UseFormReturn<StudySection
 
   useEffect(() => {
     if (locked) return;
+    unmounted.current = false;
     heartbeat();
     const beat = setInterval(heartbeat, 5000);
     const subscription = form.watch(() => {
@@ -170,7 +197,10 @@ export function useAutosave(study: StudyRecord, form: UseFormReturn<StudySection
     const hidden = () => {
       if (globalThis.document?.visibilityState === 'hidden') void flush({ keepalive: true });
     };
-    const pagehide = () => void flush({ keepalive: true });
+    const pagehide = () => {
+      farewell();
+      void flush({ keepalive: true });
+    };
     globalThis.addEventListener?.('online', online);
     globalThis.addEventListener?.('pagehide', pagehide);
     globalThis.document?.addEventListener?.('visibilitychange', hidden);
@@ -182,8 +212,11 @@ export function useAutosave(study: StudyRecord, form: UseFormReturn<StudySection
       globalThis.removeEventListener?.('online', online);
       globalThis.removeEventListener?.('pagehide', pagehide);
       globalThis.document?.removeEventListener?.('visibilitychange', hidden);
-      // Leaving the study (back to the worklist): what waits for the debounce is sent now.
-      if (timer.current) void flush({ keepalive: true });
+      // Leaving the study (back to the worklist): what waits for the debounce is sent now, once;
+      // after that this editor schedules nothing and leaves the drafts to the next one.
+      const pending = timer.current !== null;
+      unmounted.current = true;
+      if (pending) void flush({ keepalive: true });
     };
   }, [dirtySections, flush, form, keepLocally, locked]);
 

@@ -166,8 +166,9 @@ export function studyRoutes({ config, dataSource, storage }: { config: Config; d
             throw new HttpError(415, 'unsupported-file-type', 'File type not accepted', refused ?? undefined);
           }
           const stored = await storage.put(file.buffer);
+          let saved: { id: string; uploaded_at: Date };
           try {
-            const saved = await dataSource.transaction(async (db) => {
+            saved = await dataSource.transaction(async (db) => {
               await lockEditableStudy(db, id);
               const [row] = await db.query(
                 `INSERT INTO attachment (study_id, file_name, media_type, size_bytes, sha256, storage_key, uploaded_by)
@@ -177,20 +178,20 @@ export function studyRoutes({ config, dataSource, storage }: { config: Config; d
               await recordAudit(db, { ...auditContext(req), action: 'create', entityType: 'attachment', entityId: row.id, outcome: 'success', detail: { studyId: id, fileName, sha256: stored.sha256 } });
               return row as { id: string; uploaded_at: Date };
             });
-            res.status(201).json({
-              id: saved.id,
-              fileName,
-              mediaType,
-              sizeBytes: file.size,
-              sha256: stored.sha256,
-              uploadedAt: saved.uploaded_at.toISOString(),
-              uploadedBy: req.session.auth!.displayName,
-            });
           } catch (error) {
             // Nothing refers to the bytes when the row was not written.
             await storage.delete(stored.key).catch(() => undefined);
             throw error;
           }
+          res.status(201).json({
+            id: saved.id,
+            fileName,
+            mediaType,
+            sizeBytes: file.size,
+            sha256: stored.sha256,
+            uploadedAt: saved.uploaded_at.toISOString(),
+            uploadedBy: req.session.auth!.displayName,
+          });
         },
       ],
     },

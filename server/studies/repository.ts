@@ -111,43 +111,56 @@ export async function loadStudy(db: Db, id: string): Promise<StudyRecord | null>
   };
 }
 
+type PatientRow = { id: string; family_name: string; given_name: string; birth_date: string; sex: string };
+const demographicFields = [
+  ['familyName', 'family_name'],
+  ['givenName', 'given_name'],
+  ['birthDate', 'birth_date'],
+  ['sex', 'sex'],
+] as const;
+const norm = (s: string) => s.trim().toLowerCase();
+/** Which demographics differ (ignoring case and surrounding spaces of names). */
+const differences = (row: PatientRow, p: StudySections['patient']) => demographicFields.filter(([f, c]) => norm(String(p[f])) !== norm(String(row[c]))).map(([f]) => f);
+const exactlySame = (row: PatientRow, p: StudySections['patient']) => demographicFields.every(([f, c]) => String(p[f]) === String(row[c]));
+
 /** The MRN belongs to someone else: the study is not moved to them, and nobody is renamed. */
 export class PatientMismatchError extends HttpError {
-  constructor(mrn: string) {
-    super(409, 'patient-mismatch', 'The MRN belongs to another patient', `MRN ${mrn} is already on file with a different name, birth date or sex.`, [
-      { pointer: '/patient/mrn', detail: `MRN ${mrn} is on file for another patient (different name, birth date or sex). Check the MRN.` },
+  constructor(mrn: string, fields: string[]) {
+    super(409, 'patient-mismatch', 'The MRN belongs to another patient', `MRN ${mrn} is already on file with a different ${fields.join(', ')}.`, [
+      { pointer: '/patient/mrn', detail: `MRN ${mrn} is on file for another patient (different ${fields.map(label).join(', ')}). Check the MRN.` },
     ]);
   }
 }
 
 /** The patient's demographics are shared by all their studies: a study may not rewrite them. */
 export class PatientSharedError extends HttpError {
-  constructor() {
-    super(409, 'patient-shared', 'The patient has other studies', 'This patient has other studies; correct the name, birth date or sex in the hospital record.', [
-      { pointer: '/patient/familyName', detail: 'This patient has other studies: their details cannot be changed from one study.' },
-    ]);
+  constructor(fields: string[]) {
+    super(
+      409,
+      'patient-shared',
+      'The patient has other studies',
+      'This patient has other studies; correct the name, birth date or sex in the hospital record.',
+      fields.map((f) => ({ pointer: `/patient/${f}`, detail: `This patient has other studies: their ${label(f)} cannot be changed from one study.` })),
+    );
   }
 }
 
-const norm = (s: string) => s.trim().toLowerCase();
-const sameDemographics = (row: { family_name: string; given_name: string; birth_date: string; sex: string }, p: StudySections['patient']) =>
-  norm(row.family_name) === norm(p.familyName) && norm(row.given_name) === norm(p.givenName) && row.birth_date === p.birthDate && row.sex === p.sex;
+function label(field: string): string {
+  return ({ familyName: 'family name', givenName: 'given name', birthDate: 'birth date', sex: 'sex' } as Record<string, string>)[field] ?? field;
+}
 
 /**
  * Which patient a study belongs to, never renaming anyone else:
- * - the MRN is on file → that patient, if the demographics agree (else 409);
- * - a new MRN on a study whose patient has no other study → that patient row is corrected in place
- *   (so a half-typed MRN never leaves stray patients behind);
- * - otherwise a new patient.
+ * - the MRN is on file → that patient, if the demographics agree (else 409, naming what differs);
+ * - the study's own patient with no other study → corrected in place, exactly as typed (so a
+ *   half-typed MRN never leaves stray patients behind);
+ * - otherwise a new patient; a patient the study leaves behind with no study is removed.
+ * Rows are locked in a fixed order (study first, then patients) so concurrent writers queue.
  */
-async function resolvePatient(db: EntityManager, patient: StudySections['patient'], studyId: string | null, currentPatientId: string | null): Promise<string> {
-  const [onFile] = await db.query(
-    `SELECT id, family_name, given_name, to_char(birth_date, 'YYYY-MM-DD') AS birth_date, sex FROM patient WHERE mrn = $1 FOR UPDATE`,
-    [patient.mrn],
-  );
+async function resolvePatient(db: EntityManager, patient: StudySections['patient'], studyId: string | null, currentPatientId: string | null): Promise<{ patientId: string; leftBehind: string | null }> {
   const othersOf = async (patientId: string) =>
     (await db.query(`SELECT count(*)::int AS n FROM study WHERE patient_id = $1 AND id IS DISTINCT FROM $2`, [patientId, studyId]))[0].n as number;
-  const correct = async (patientId: string) =>
+  const correct = (patientId: string) =>
     db.query(`UPDATE patient SET mrn = $2, family_name = $3, given_name = $4, birth_date = $5, sex = $6, updated_at = now() WHERE id = $1`, [
       patientId,
       patient.mrn,
@@ -156,27 +169,56 @@ async function resolvePatient(db: EntityManager, patient: StudySections['patient
       patient.birthDate,
       patient.sex,
     ]);
-  if (onFile) {
-    if (sameDemographics(onFile, patient)) return onFile.id;
-    if (onFile.id === currentPatientId && (await othersOf(onFile.id)) === 0) {
-      await correct(onFile.id);
-      return onFile.id;
+  const onFileRow = async (): Promise<PatientRow | undefined> =>
+    (
+      await db.query(`SELECT id, family_name, given_name, to_char(birth_date, 'YYYY-MM-DD') AS birth_date, sex FROM patient WHERE mrn = $1 FOR UPDATE`, [
+        patient.mrn,
+      ])
+    )[0];
+  const linkTo = (row: PatientRow) => {
+    const diff = differences(row, patient);
+    if (diff.length) throw new PatientMismatchError(patient.mrn, diff);
+    return row.id;
+  };
+
+  // The study's own patient, locked so nobody adds a study to it while it is being corrected.
+  const current: PatientRow | undefined = currentPatientId
+    ? (await db.query(`SELECT id, family_name, given_name, to_char(birth_date, 'YYYY-MM-DD') AS birth_date, sex FROM patient WHERE id = $1 FOR UPDATE`, [currentPatientId]))[0]
+    : undefined;
+  const soleStudy = current ? (await othersOf(current.id)) === 0 : false;
+
+  let chosen: string;
+  const onFile = await onFileRow();
+  const stay = { patientId: current?.id ?? '', leftBehind: null };
+  if (onFile && current && onFile.id === current.id) {
+    if (exactlySame(onFile, patient)) return stay;
+    if (soleStudy) {
+      await correct(current.id);
+      return stay;
     }
-    if (onFile.id === currentPatientId) throw new PatientSharedError();
-    throw new PatientMismatchError(patient.mrn);
+    const diff = differences(onFile, patient);
+    if (diff.length) throw new PatientSharedError(diff);
+    return stay; // only case or spacing differs: the record on file stays as it is
+  } else if (onFile) {
+    chosen = linkTo(onFile);
+  } else if (current && soleStudy) {
+    await correct(current.id);
+    return stay;
+  } else {
+    // Two writers may bring the same new MRN at once: the second links to the first's row.
+    const [inserted] = await db.query(
+      `INSERT INTO patient (mrn, family_name, given_name, birth_date, sex) VALUES ($1, $2, $3, $4, $5) ON CONFLICT (mrn) DO NOTHING RETURNING id`,
+      [patient.mrn, patient.familyName, patient.givenName, patient.birthDate, patient.sex],
+    );
+    chosen = inserted ? inserted.id : linkTo((await onFileRow())!);
   }
-  if (currentPatientId && (await othersOf(currentPatientId)) === 0) {
-    await correct(currentPatientId);
-    return currentPatientId;
-  }
-  const [row] = await db.query(`INSERT INTO patient (mrn, family_name, given_name, birth_date, sex) VALUES ($1, $2, $3, $4, $5) RETURNING id`, [
-    patient.mrn,
-    patient.familyName,
-    patient.givenName,
-    patient.birthDate,
-    patient.sex,
-  ]);
-  return row.id;
+  // A patient the study moves away from, with no other study, is removed once the study points elsewhere.
+  return { patientId: chosen, leftBehind: current && soleStudy && chosen !== current.id ? current.id : null };
+}
+
+async function removeIfUnused(db: EntityManager, patientId: string | null): Promise<void> {
+  if (!patientId) return;
+  await db.query(`DELETE FROM patient p WHERE p.id = $1 AND NOT EXISTS (SELECT 1 FROM study s WHERE s.patient_id = p.id)`, [patientId]);
 }
 
 export class StudyLockedError extends HttpError {
@@ -207,7 +249,7 @@ async function nextAccession(db: EntityManager, at: Date): Promise<string> {
 
 export async function createStudy(dataSource: DataSource, input: CreateStudy, createdBy: string | null, actor?: AuditActor): Promise<string> {
   return dataSource.transaction(async (db) => {
-    const patientId = await resolvePatient(db, input.patient, null, null);
+    const { patientId } = await resolvePatient(db, input.patient, null, null);
     const details = { ...emptyDetails(), ...input.details };
     const set = assignments(detailsColumns, details, 1);
     const accession = await nextAccession(db, new Date());
@@ -238,15 +280,18 @@ export async function patchStudy(dataSource: DataSource, id: string, patch: Patc
       sets.push(a.sql);
       values.push(...a.values);
     };
+    let leftBehind: string | null = null;
     if (patch.patient) {
-      const patientId = await resolvePatient(db, patch.patient, id, current.patientId);
-      add({ sql: `patient_id = $${values.length + 1}`, values: [patientId] });
+      const resolved = await resolvePatient(db, patch.patient, id, current.patientId);
+      leftBehind = resolved.leftBehind;
+      add({ sql: `patient_id = $${values.length + 1}`, values: [resolved.patientId] });
     }
     if (patch.details) add(assignments(detailsColumns, patch.details, values.length + 1));
     if (patch.setup) add(assignments(setupColumns, patch.setup, values.length + 1));
     if (patch.findings) add(assignments(findingsColumns, patch.findings, values.length + 1));
     if (patch.vasoreactivity) add({ sql: `nitrate_reversal = $${values.length + 1}`, values: [patch.vasoreactivity.nitrateReversal] });
     await db.query(`UPDATE study SET ${[...sets, 'version = version + 1', 'updated_at = now()'].join(', ')} WHERE id = $${values.length + 1}`, [...values, id]);
+    await removeIfUnused(db, leftBehind);
     if (patch.vessels) await replaceVessels(db, id, patch.vessels);
     if (patch.vasoreactivity) await replaceDoses(db, id, patch.vasoreactivity.doses);
     const changed = Object.keys(patch).filter((k) => k !== 'version');

@@ -13,11 +13,15 @@ const present = (v: number | null | undefined): v is number => typeof v === 'num
 export function toPhysiologyInput(record: Pick<StudySections, 'vessels' | 'vasoreactivity'>): PhysiologyInput {
   const vessels = record.vessels.map((v): PhysiologyVessel => {
     const out: PhysiologyVessel = { id: v.id, vessel: v.vessel };
+    // A transit box still holding text (NaN in the form) is left out, so one bad box does not stop
+    // every vessel's live result; the injection count then says what is missing.
+    const restTmn = v.restTransit.filter(present);
+    const hypTmn = v.hyperemiaTransit.filter(present);
     if (present(v.restPa) && present(v.restPd)) {
-      out.rest = { pa: v.restPa, pd: v.restPd, ...(v.restTransit.length ? { tmn: v.restTransit } : {}) };
+      out.rest = { pa: v.restPa, pd: v.restPd, ...(restTmn.length ? { tmn: restTmn } : {}) };
     }
     if (present(v.hyperemiaPa) && present(v.hyperemiaPd)) {
-      out.hyperemia = { pa: v.hyperemiaPa, pd: v.hyperemiaPd, ...(v.hyperemiaTransit.length ? { tmn: v.hyperemiaTransit } : {}) };
+      out.hyperemia = { pa: v.hyperemiaPa, pd: v.hyperemiaPd, ...(hypTmn.length ? { tmn: hypTmn } : {}) };
     }
     if (present(v.consoleFfr)) out.ffr = v.consoleFfr;
     if (v.nhprKind && present(v.nhprValue)) out.nhpr = { kind: v.nhprKind, value: v.nhprValue };
@@ -31,9 +35,4 @@ export function toPhysiologyInput(record: Pick<StudySections, 'vessels' | 'vasor
       : [],
   );
   return { vessels, ...(doses.length ? { vasoreactivity: { doses } } : {}) };
-}
-
-/** Transit times a wire set holds, without the empty slots of a half-filled form. */
-export function injectionsEntered(times: (number | null)[]): number[] {
-  return times.filter(present);
 }

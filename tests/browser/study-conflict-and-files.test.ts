@@ -86,6 +86,28 @@ describe('the same study open in two tabs', () => {
   });
 });
 
+describe('a section the server refuses', () => {
+  it('is held back with its field error, while the other sections keep saving', async () => {
+    const first = await createStudy(db);
+    const [second] = await db.query(
+      `INSERT INTO study (accession, patient_id, state) SELECT 'HB-' || substr(md5(random()::text), 1, 8), patient_id, 'draft' FROM study WHERE id = $1 RETURNING id`,
+      [first.id],
+    );
+    const page = await context.newPage();
+    await page.goto(`${stack.url}/studies/${second.id}`);
+    await visible(page, 'patient-given-name').fill('Adelheid');
+    // The patient has another study: their name is not changed from this one.
+    await expect(visible(page, 'patient-given-name-error').innerText()).resolves.toMatch(/other studies/);
+    await visible(page, 'section-findings').click();
+    await visible(page, 'findings-impression').fill('Normal coronary function');
+    await expect.poll(async () => (await db.query(`SELECT impression FROM study WHERE id = $1`, [second.id]))[0].impression, { timeout: 10_000 }).toBe('Normal coronary function');
+    await visible(page, 'save-status-invalid').waitFor();
+    const [patient] = await db.query(`SELECT given_name FROM patient p JOIN study s ON s.patient_id = p.id WHERE s.id = $1`, [first.id]);
+    expect(patient.given_name).toBe('Ada');
+    await page.close();
+  });
+});
+
 describe('attachments from the browser', () => {
   it('uploads a PDF, and refuses a file renamed to .pdf that is not one', async () => {
     const study = await createStudy(db);

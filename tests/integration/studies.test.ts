@@ -288,3 +288,38 @@ describe('worklist edge cases', () => {
     expect(dayBefore.body.items).toEqual([]);
   });
 });
+
+describe('patient identity under concurrency and corrections', () => {
+  it('stores a case-only name correction exactly, for a patient with only this study', async () => {
+    const study = await create();
+    await api().patch(`/api/studies/${study.id}`).set('Cookie', staff).set('Origin', stack.url).send({ version: 1, patient: { ...study.patient, familyName: study.patient.familyName.toUpperCase() } }).expect(200);
+    const [row] = await db.query(`SELECT family_name FROM patient WHERE mrn = $1`, [study.patient.mrn]);
+    expect(row.family_name).toBe(study.patient.familyName.toUpperCase());
+  });
+
+  it('opens every study when several arrive at once for the same new MRN, under one patient', async () => {
+    const patient = newPatient();
+    const results = await Promise.all([1, 2, 3].map(() => api().post('/api/studies').set('Cookie', staff).set('Origin', stack.url).send({ patient })));
+    expect(results.map((r) => r.status)).toEqual([201, 201, 201]);
+    const [{ n }] = await db.query(`SELECT count(*)::int AS n FROM patient WHERE mrn = $1`, [patient.mrn]);
+    expect(n).toBe(1);
+  });
+
+  it('removes the patient a study leaves behind when it had no other study', async () => {
+    const target = await create();
+    const study = await create();
+    const [{ id: leftId }] = await db.query(`SELECT patient_id AS id FROM study WHERE id = $1`, [study.id]);
+    await api().patch(`/api/studies/${study.id}`).set('Cookie', staff).set('Origin', stack.url).send({ version: 1, patient: target.patient }).expect(200);
+    const rows = await db.query(`SELECT id FROM patient WHERE id = $1`, [leftId]);
+    expect(rows).toEqual([]);
+    const [moved] = await db.query(`SELECT p.mrn FROM study s JOIN patient p ON p.id = s.patient_id WHERE s.id = $1`, [study.id]);
+    expect(moved.mrn).toBe(target.patient.mrn);
+  });
+
+  it('names the field that differs when a shared patient would be renamed', async () => {
+    const first = await create();
+    const second = await api().post('/api/studies').set('Cookie', staff).set('Origin', stack.url).send({ patient: first.patient }).expect(201);
+    const res = await api().patch(`/api/studies/${second.body.id}`).set('Cookie', staff).set('Origin', stack.url).send({ version: 1, patient: { ...first.patient, birthDate: '1966-08-10' } }).expect(409);
+    expect(res.body.errors).toEqual([{ pointer: '/patient/birthDate', detail: expect.stringContaining('birth date') }]);
+  });
+});

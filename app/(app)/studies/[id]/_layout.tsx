@@ -1,5 +1,5 @@
 import { useState, type ReactNode } from 'react';
-import { ScrollView, StyleSheet, View } from 'react-native';
+import { Pressable, ScrollView, StyleSheet, View } from 'react-native';
 import { Slot, useLocalSearchParams } from 'expo-router';
 import { FormProvider, useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
@@ -16,7 +16,7 @@ import { ConflictBanner, SaveStatus } from '../../../../components/study/save-st
 import { StudyResults } from '../../../../components/study/live-results';
 import { DriftAlert } from '../../../../components/study/quality-alert';
 import { StudyContext } from '../../../../components/study/study-context';
-import { takeDraft } from '../../../../components/study/draft-store';
+import { clearDraft, takeDraft, toStableJson } from '../../../../components/study/draft-store';
 import { useMeQuery } from '../../../../components/data/me-query';
 import { sectionsOf, useAutosave } from '../../../../components/study/use-autosave';
 import { color, space } from '../../../../components/theme';
@@ -59,11 +59,16 @@ function StudyEditor({ study, userId }: { study: StudyRecord; userId: string }) 
     const draft = locked ? null : takeDraft(study.id, userId);
     if (!draft) return { values: server, base: server, baseVersion: study.version };
     const values = { ...draft.sections } as Record<keyof StudySections, unknown>;
+    const base = { ...draft.base } as Record<keyof StudySections, unknown>;
     for (const n of Object.keys(server) as (keyof StudySections)[]) {
-      if (JSON.stringify(draft.sections[n]) === JSON.stringify(draft.base[n])) values[n] = server[n];
+      // Untouched by the draft: show the server's copy, and count it as the base too, so a later
+      // merge never mistakes it for an edit of this tab.
+      if (toStableJson(draft.sections[n]) === toStableJson(draft.base[n])) values[n] = base[n] = server[n];
     }
-    return { values: values as StudySections, base: draft.base, baseVersion: draft.baseVersion };
+    return { values: values as StudySections, base: base as StudySections, baseVersion: draft.baseVersion };
   });
+  // Edits kept on this device for a study that has been signed since: say so, and let them go.
+  const [leftover, setLeftover] = useState(() => (locked ? takeDraft(study.id, userId) : null));
   const form = useForm<StudySections>({ defaultValues: initial.values, resolver: zodResolver(studySectionsSchema), mode: 'onChange' });
   const save = useAutosave(study, form, { baseVersion: initial.baseVersion, base: initial.base, userId }, locked);
   const current = save.state.kind === 'conflict' ? save.state.current : null;
@@ -97,6 +102,30 @@ function StudyEditor({ study, userId }: { study: StudyRecord; userId: string }) 
       <FormProvider {...form}>
         <View style={styles.root} testID="study-editor">
           {header}
+          {leftover ? (
+            <View style={[styles.bannerWrap]} role="alert" testID="leftover-draft">
+              <Text weight="semibold" tone="abnormal">
+                ▲ Edits made on this device were never saved, and the study has been signed since.
+              </Text>
+              <Text variant="caption" tone="muted">
+                They cannot be added to a signed study; record what matters as an addendum.
+              </Text>
+              <Pressable
+                role="button"
+                testID="leftover-discard"
+                accessibilityLabel="Discard the unsaved edits from this device"
+                onPress={() => {
+                  clearDraft(study.id);
+                  setLeftover(null);
+                }}
+                style={styles.discard}
+              >
+                <Text variant="caption" weight="semibold" tone="brand">
+                  Discard them
+                </Text>
+              </Pressable>
+            </View>
+          ) : null}
           {current ? (
             <View style={styles.bannerWrap}>
               <ConflictBanner state={save.state} onLoadSaved={() => save.loadSaved(current)} onKeepMine={() => save.keepMine(current)} />
@@ -154,7 +183,8 @@ const styles = StyleSheet.create({
   headerWide: { paddingHorizontal: space.xxl, paddingVertical: space.lg },
   headerText: { flexShrink: 1, gap: 2 },
   headerState: { alignItems: 'flex-end', gap: space.xs, flexShrink: 1 },
-  bannerWrap: { padding: space.md },
+  bannerWrap: { padding: space.md, gap: space.xs },
+  discard: { minHeight: 44, justifyContent: 'center', alignSelf: 'flex-start' },
   panes: { flex: 1, flexDirection: 'row', gap: space.xl, paddingLeft: space.xl, paddingTop: space.xl },
   formPane: { flex: 1 },
   formContent: { paddingBottom: space.xxxl, paddingRight: space.xs, gap: space.xl, maxWidth: 760 },
