@@ -39,7 +39,9 @@ async function loadPage(session: MemoryStorage) {
   return import('../../components/study/draft-store');
 }
 
-const sections = (contrastMl: number | null) => ({ findings: { complications: null, contrastMl, fluoroscopyMinutes: null, impression: null, plan: null } }) as never;
+import type { StudySections } from '../../shared/study/schema';
+
+const sections = (contrastMl: number | null) => ({ findings: { complications: null, contrastMl, fluoroscopyMinutes: null, impression: null, plan: null } }) as unknown as StudySections;
 
 describe('the draft store', () => {
   it('keeps NaN (uncorrected text in a number box) across a reload, apart from an empty field', async () => {
@@ -50,7 +52,7 @@ describe('the draft store', () => {
     const again = await loadPage(globalThis.sessionStorage as unknown as MemoryStorage);
     const draft = again.takeDraft('s1', 'u1');
     expect(draft?.baseVersion).toBe(3);
-    expect((draft?.sections as unknown as ReturnType<typeof sections>).findings.contrastMl).toBeNaN();
+    expect(draft?.sections.findings.contrastMl).toBeNaN();
   });
 
   it('never gives one user the drafts of another', async () => {

@@ -84,7 +84,7 @@ function StudyEditor({ study, userId }: { study: StudyRecord; userId: string }) 
         </Text>
       </View>
       <DriftAlert studyId={study.id} />
-      <View style={styles.headerState}>
+      <View style={[styles.headerState, !wide && styles.headerStatePhone]}>
         <StudyStateChip state={study.state} />
         {locked ? (
           <Text variant="caption" weight="semibold" tone="muted">
@@ -183,6 +183,7 @@ const styles = StyleSheet.create({
   headerWide: { paddingHorizontal: space.xxl, paddingVertical: space.lg },
   headerText: { flexShrink: 1, gap: 2 },
   headerState: { alignItems: 'flex-end', gap: space.xs, flexShrink: 1 },
+  headerStatePhone: { flexDirection: 'row', flexWrap: 'wrap', alignItems: 'center', gap: space.sm },
   bannerWrap: { padding: space.md, gap: space.xs },
   discard: { minHeight: 44, justifyContent: 'center', alignSelf: 'flex-start' },
   panes: { flex: 1, flexDirection: 'row', gap: space.xl, paddingLeft: space.xl, paddingTop: space.xl },
