@@ -11,7 +11,7 @@ export ATTACHMENT_DIR="$DATA_DIR/test-attachments"
 # The test cluster holds nothing worth keeping: one that had to live outside the project is removed.
 finish() {
   stop_cluster
-  if [[ ${PG_DIR:-} == /var/tmp/isobar-*/postgres-test ]]; then rm -rf "$PG_DIR"; fi
+  if [[ ${PG_DIR:-} == /var/tmp/isobar-*/postgres-test ]]; then rm -rf "$PG_DIR"; rmdir "$(dirname "$PG_DIR")" 2>/dev/null || true; fi
 }
 trap finish EXIT
 trap 'exit 130' INT TERM
