@@ -1,7 +1,7 @@
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import type { Permission, Role } from '../../shared/auth/permissions';
 import { apiFetch, ApiError } from './api';
-import { clearAllDrafts, unsentStudies } from '../study/draft-store';
+import { announceSignOut, clearAllDrafts, unsentStudies } from '../study/draft-store';
 
 export interface Me {
   id: string;
@@ -36,6 +36,7 @@ export function useSignOut() {
     onSuccess: ({ redirect }) => {
       queryClient.clear();
       clearAllDrafts();
+      announceSignOut();
       if (typeof window !== 'undefined') window.location.replace(redirect);
     },
   });

@@ -144,6 +144,14 @@ export function unsentStudies(userId: string): string[] {
   return [...new Set(allDrafts().filter((d) => d.draft.userId === userId).map((d) => d.draft.studyId))];
 }
 
+/** Written at sign-out so the other open tabs follow (they listen for it). */
+export const signedOutKey = 'isobar.signed-out';
+
+/** Tells the other tabs of this browser that the session has ended. */
+export function announceSignOut(): void {
+  store()?.setItem(signedOutKey, String(Date.now()));
+}
+
 /** At sign-out: no patient data stays behind on a shared workstation. */
 export function clearAllDrafts(): void {
   const s = store();

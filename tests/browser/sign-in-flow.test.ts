@@ -95,4 +95,21 @@ describe('signing in from the browser', () => {
       await context.close();
     }
   });
+
+  it('signs out every open tab when one tab signs out', async () => {
+    const context = await browser.context.browser()!.newContext({ viewport: viewports.desktop });
+    try {
+      const a = await context.newPage();
+      await signInThroughBrowser(a, usernameOf('staff'));
+      const b = await context.newPage();
+      await b.goto(stack.url + '/');
+      await b.getByTestId(`study-row-${study.accession}`).waitFor();
+      await a.getByTestId('sign-out-button').click();
+      await b.waitForURL((url) => url.pathname === '/sign-in', { timeout: 10_000 });
+      await b.getByTestId('signed-out-notice').waitFor();
+      expect(await b.evaluate(() => document.body.innerText)).not.toContain(study.patient.mrn);
+    } finally {
+      await context.close();
+    }
+  });
 });

@@ -43,6 +43,24 @@ describe.each(Object.entries(viewports))('signed-out start page at %s width', (n
   });
 });
 
+describe('keyboard use', () => {
+  it('reaches the sign-in button with Tab and shows a visible focus ring on it', async () => {
+    const page = await browser.context.newPage();
+    await page.goto(server.url + '/sign-in');
+    await page.getByTestId('sign-in-button').waitFor();
+    for (let i = 0; i < 10; i++) {
+      await page.keyboard.press('Tab');
+      if (await page.getByTestId('sign-in-button').evaluate((el) => el === document.activeElement)) break;
+    }
+    const ring = await page.getByTestId('sign-in-button').evaluate((el) => {
+      const s = getComputedStyle(el);
+      return { focused: el === document.activeElement, style: s.outlineStyle, width: s.outlineWidth };
+    });
+    expect(ring).toEqual({ focused: true, style: 'solid', width: '3px' });
+    await page.close();
+  });
+});
+
 describe('not-found route', () => {
   it('shows a clear page with a way back', async () => {
     const page = await browser.context.newPage();
