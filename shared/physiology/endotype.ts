@@ -55,6 +55,8 @@ export function classifyStudy(
   let structural = false;
   let functional = false;
   let borderlineCfr = false;
+  let lowRrr = false;
+  let lowMrr = false;
   let epicardialAssessed = false;
   let microAssessed = false;
   let imrMeasuredInFunctional = true;
@@ -122,9 +124,11 @@ export function classifyStudy(
       }
     }
     if (v.rrr !== undefined && v.rrrFlag === 'abnormal') {
+      if (!vesselObstructive) lowRrr = true;
       reasons.push(label + ': RRR ' + ratio(v.rrr, t.rrr) + ctx.rrrAbnormal);
     }
     if (v.mrr !== undefined && v.mrrFlag === 'abnormal') {
+      if (!vesselObstructive) lowMrr = true;
       reasons.push(label + ': MRR ' + ratio(v.mrr, t.mrr) + ctx.mrrAbnormal);
     }
   }
@@ -174,12 +178,14 @@ export function classifyStudy(
     if (vaso === undefined) missing.push('acetylcholine testing');
     const notes: string[] = [];
     if (borderlineCfr) notes.push('a borderline CFR');
+    if (lowRrr) notes.push('a low RRR');
+    if (lowMrr) notes.push('a low MRR');
     if (vr === 'endothelial-dysfunction') notes.push('endothelial dysfunction');
     const noted = notes.length > 0 ? `; ${notes.join(' and ')} ${notes.length > 1 ? 'were' : 'was'} noted but ${notes.length > 1 ? 'do' : 'does'} not define an endotype` : '';
     if (missing.length === 0) {
       endotype = 'no-abnormality';
       reasons.push(
-        `Endotype: no coronary abnormality — epicardial pressure, microvascular function and acetylcholine testing were all within the lab's thresholds${noted} (EAPCI 2020).`,
+        `Endotype: no coronary abnormality — no obstructive stenosis, CFR and IMR within the lab's thresholds and no spasm on acetylcholine testing${noted} (EAPCI 2020).`,
       );
     } else {
       endotype = 'inconclusive';

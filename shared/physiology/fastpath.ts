@@ -79,8 +79,7 @@ function okVessel(x: unknown): boolean {
   if (x.hyperemia !== undefined && !okPressureSet(x.hyperemia)) return false;
   if (x.ffr !== undefined && !inRange(x.ffr, MAX_RATIO)) return false;
   if (x.driftPdPa !== undefined && !inRange(x.driftPdPa, MAX_RATIO)) return false;
-  const w = x.wedgePressure;
-  if (w !== undefined && !(typeof w === 'number' && w >= 0 && w <= MAX_PRESSURE)) return false;
+  if (x.wedgePressure !== undefined && !inRange(x.wedgePressure, MAX_PRESSURE)) return false;
   const nhpr = x.nhpr;
   if (nhpr !== undefined) {
     if (!isPlainObject(nhpr)) return false;

@@ -18,6 +18,7 @@ export type {
   PhysiologyResult,
   VesselResult,
   VasoreactivityResult,
+  DoseResult,
   VasoreactivityOutcome,
   PhysiologyWarning,
   Findings,

@@ -90,6 +90,9 @@ export function analyzeVessel(v: VesselInput, t: Thresholds, label: string): Ves
   // Thermodilution.
   const tmnR = rest?.tmn !== undefined && rest.tmn.length > 0 ? rest.tmn : undefined;
   const tmnH = hyp?.tmn !== undefined && hyp.tmn.length > 0 ? hyp.tmn : undefined;
+  // An empty list says thermodilution was meant but no injection was recorded: fewer than expected.
+  if (rest?.tmn !== undefined && rest.tmn.length === 0) checkInjections(rest.tmn, 'rest', t, label, warnings);
+  if (hyp?.tmn !== undefined && hyp.tmn.length === 0) checkInjections(hyp.tmn, 'hyperaemia', t, label, warnings);
   let tr: number | undefined;
   let th: number | undefined;
   if (tmnR !== undefined) {

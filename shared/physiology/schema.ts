@@ -89,7 +89,7 @@ export const vesselInputSchema = z.strictObject(
     hyperemia: pressureSet('Hyperaemic').optional(),
     ffr: bounded('FFR', '', 'positive', MAX_RATIO).optional(),
     nhpr: nhprSchema.optional(),
-    wedgePressure: bounded('Coronary wedge pressure (Pw)', 'mmHg', 'non-negative', MAX_PRESSURE).optional(),
+    wedgePressure: bounded('Coronary wedge pressure (Pw)', 'mmHg', 'positive', MAX_PRESSURE).optional(),
     driftPdPa: bounded('Drift Pd/Pa at the guide tip', '', 'positive', MAX_RATIO).optional(),
   },
   { error: strictMessage('a vessel') },

@@ -3,7 +3,7 @@ import { classifyStudy } from './endotype';
 import { vesselName } from './format';
 import { analyzeVessel } from './indices';
 import type { PhysiologyOutput, VesselCode } from './schema';
-import type { PhysiologyResult, VasoreactivityResult, VesselResult } from './types';
+import type { DoseResult, PhysiologyResult, PhysiologyWarning, VasoreactivityResult, VesselResult } from './types';
 import { analyzeVasoreactivity } from './vasoreactivity';
 
 /** The analysis of an input that has already passed validation. */
@@ -28,11 +28,21 @@ export function analyzeValidated(data: PhysiologyOutput): PhysiologyResult {
 
   const vasoReasons: string[] = [];
   let vasoreactivity: VasoreactivityResult | undefined;
+  let doseResults: DoseResult[] | undefined;
+  let warnings: PhysiologyWarning[] = [];
   const doses = data.vasoreactivity?.doses;
-  if (doses !== undefined && doses.length > 0) vasoreactivity = analyzeVasoreactivity(doses, t, vasoReasons);
+  if (doses !== undefined && doses.length > 0) {
+    const analysed = analyzeVasoreactivity(doses, t, vasoReasons);
+    vasoreactivity = { result: analysed.result };
+    doseResults = analysed.doses;
+    warnings = analysed.warnings;
+  }
 
   const { findings, endotype, reasons } = classifyStudy(vessels, labels, vasoreactivity, vasoReasons, ctx);
-  const result: PhysiologyResult = { vessels, findings, endotype, reasons };
-  if (vasoreactivity !== undefined) result.vasoreactivity = vasoreactivity;
+  const result: PhysiologyResult = { vessels, findings, endotype, reasons, warnings };
+  if (vasoreactivity !== undefined) {
+    result.vasoreactivity = vasoreactivity;
+    result.doseResults = doseResults;
+  }
   return result;
 }

@@ -14,7 +14,10 @@ export interface Thresholds {
   nhprFullCycleMinimum: number;
   /** CFR abnormal when < value. */
   cfr: number;
-  /** CFR borderline when cfr ≤ value < max(cfr, cfrBorderline); set equal to `cfr` to disable the band. */
+  /**
+   * CFR borderline when cfr ≤ value < max(cfr, cfrBorderline). Off by default (equal to `cfr`); a lab
+   * that wants 2.0–2.5 flagged (ESC 2024 uses < 2.5) sets it to 2.5.
+   */
   cfrBorderline: number;
   /** IMR abnormal when ≥ value (U, mmHg·s). */
   imr: number;
@@ -50,7 +53,7 @@ export const defaultThresholds: Readonly<Thresholds> = Object.freeze({
   nhprDiastolic: 0.89,
   nhprFullCycleMinimum: 0.89,
   cfr: 2.0,
-  cfrBorderline: 2.5,
+  cfrBorderline: 2.0,
   imr: 25,
   rrr: 2.0,
   mrr: 2.7,
@@ -75,7 +78,7 @@ export const thresholdSources: Readonly<Record<ThresholdKey, string>> = Object.f
   nhprFullCycleMinimum:
     'validation studies summarised in an Open Heart review; EAPCI 2020 applies ≤ 0.89 to NHPRs as a class',
   cfr: 'EAPCI 2020 (2.0 for thermodilution); COVADIS ≤ 2.0–2.5',
-  cfrBorderline: 'ESC 2024 chronic coronary syndromes guideline (< 2.5); COVADIS ≤ 2.0–2.5',
+  cfrBorderline: 'off by default (same as the CFR cut-off); a lab may raise it to 2.5 — ESC 2024 chronic coronary syndromes guideline (< 2.5); COVADIS ≤ 2.0–2.5',
   imr: 'ESC 2024; EAPCI 2020; COVADIS writes > 25',
   rrr: '[memory: CorMicA] cut-off; formula from Lee et al., JAHA 2020',
   mrr: 'ESC 2024 (cut-off); De Bruyne et al. 2021 (formula)',

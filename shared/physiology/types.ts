@@ -45,11 +45,16 @@ export type VasoreactivityOutcome =
   | 'endothelial-dysfunction'
   | 'negative';
 
+/** The contract's vasoreactivity result: exactly the study's outcome. */
 export interface VasoreactivityResult {
   result: VasoreactivityOutcome;
-  /** Classification of each dose, in input order. */
-  doses: Array<{ vessel: VesselCode; micrograms: number; result: VasoreactivityOutcome }>;
-  warnings: PhysiologyWarning[];
+}
+
+/** Classification of one acetylcholine dose. */
+export interface DoseResult {
+  vessel: VesselCode;
+  micrograms: number;
+  result: VasoreactivityOutcome;
 }
 
 export type Endotype =
@@ -69,6 +74,10 @@ export interface Findings {
 export interface PhysiologyResult {
   vessels: VesselResult[];
   vasoreactivity?: VasoreactivityResult;
+  /** Each acetylcholine dose's classification, in input order (present with vasoreactivity). */
+  doseResults?: DoseResult[];
+  /** Warnings about the study as a whole (acetylcholine doses); vessel warnings stay on each vessel. */
+  warnings: PhysiologyWarning[];
   findings: Findings;
   endotype: Endotype;
   reasons: string[];

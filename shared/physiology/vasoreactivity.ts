@@ -2,7 +2,14 @@ import { above, atOrAbove } from './compare';
 import { cutPlain, vesselName } from './format';
 import type { DoseInput } from './schema';
 import { cite, type Thresholds } from './thresholds';
-import type { PhysiologyWarning, VasoreactivityOutcome, VasoreactivityResult } from './types';
+import type { DoseResult, PhysiologyWarning, VasoreactivityOutcome } from './types';
+
+/** The study's outcome, each dose's, and the warnings about the doses. */
+export interface VasoreactivityAnalysis {
+  result: VasoreactivityOutcome;
+  doses: DoseResult[];
+  warnings: PhysiologyWarning[];
+}
 
 const severity: Record<VasoreactivityOutcome, number> = {
   negative: 0,
@@ -30,9 +37,9 @@ export function analyzeVasoreactivity(
   doses: readonly DoseInput[],
   t: Thresholds,
   reasons: string[],
-): VasoreactivityResult {
+): VasoreactivityAnalysis {
   const warnings: PhysiologyWarning[] = [];
-  const out: VasoreactivityResult['doses'] = [];
+  const out: DoseResult[] = [];
   let worst: VasoreactivityOutcome = 'negative';
   let worstIdx = -1;
   let maxPct = 0;

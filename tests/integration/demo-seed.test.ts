@@ -171,7 +171,7 @@ describe('the demo studies come out of the physiology core as intended', () => {
     const d100 = r.vasoreactivity.doses.find((d) => d.micrograms === 100)!;
     expect(d100).toMatchObject({ vessel: 'LAD', symptoms: true, ischemicEcg: true });
     expect(d100.constrictionPct).toBeGreaterThanOrEqual(90);
-    expect(a.vasoreactivity?.doses.find((d) => d.micrograms === 100)?.result).toBe('epicardial-spasm');
+    expect(a.doseResults?.find((d) => d.micrograms === 100)?.result).toBe('epicardial-spasm');
     expect(a.endotype).toBe('vasospastic-angina');
     expect(a.findings).toEqual({ obstructive: false, microvascular: null, vasospasm: 'epicardial' });
     expect(r.vasoreactivity.nitrateReversal).toBe(true);
@@ -221,7 +221,7 @@ describe('measurement quality', () => {
       const a = analyses.get(accession)!;
       return [
         ...a.vessels.flatMap((v) => v.warnings.map((w) => ({ accession, vessel: v.vessel, code: w.code }))),
-        ...(a.vasoreactivity?.warnings ?? []).map((w) => ({ accession, vessel: null, code: w.code })),
+        ...a.warnings.map((w) => ({ accession, vessel: null, code: w.code })),
       ];
     });
     // Drift Pd/Pa at the guide tip 1.03, outside 0.98–1.02 (from memory; Cook et al. 2016 for > 2 mmHg).

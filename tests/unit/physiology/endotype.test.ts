@@ -34,8 +34,8 @@ const epicardialSpasm: Dose[] = [{ vessel: 'LAD', micrograms: 100, constrictionP
 const microSpasm: Dose[] = [{ vessel: 'LAD', micrograms: 100, constrictionPct: 40, symptoms: true, ischemicEcg: true }];
 const endothelial: Dose[] = [{ vessel: 'LAD', micrograms: 100, constrictionPct: 50, symptoms: false, ischemicEcg: false }];
 
-function study(vessels: VesselIn[], doses?: Dose[]) {
-  return analyzeStudy({ vessels, ...(doses ? { vasoreactivity: { doses } } : {}) });
+function study(vessels: VesselIn[], doses?: Dose[], thresholds?: PhysiologyInput['thresholds']) {
+  return analyzeStudy({ vessels, ...(doses ? { vasoreactivity: { doses } } : {}), ...(thresholds ? { thresholds } : {}) });
 }
 
 describe('endotypes', () => {
@@ -214,8 +214,8 @@ describe('findings rules', () => {
     expect(r.findings.microvascular).toBe('structural');
   });
 
-  it(`borderline CFR adds a reason sentence — ${SRC.cfr}`, () => {
-    const r = study([vessel('lad', { cfr: 2.2 })], negativeAch);
+  it(`borderline CFR (a lab's band up to 2.5) adds a reason sentence — ${SRC.cfr}`, () => {
+    const r = study([vessel('lad', { cfr: 2.2 })], negativeAch, { cfrBorderline: 2.5 });
     expect(r.reasons.some((s) => s.startsWith('LAD: CFR 2.20 is in the borderline band 2.00–2.50'))).toBe(true);
     expect(r.reasons.at(-1)).toContain('borderline CFR');
   });

@@ -26,7 +26,7 @@ const vesselArb = fc.record(
     hyperemia: pressureSet,
     ffr: ratio,
     nhpr: fc.record({ kind: fc.constantFrom('whole-cycle', 'diastolic', 'full-cycle-minimum'), value: ratio }),
-    wedgePressure: fc.double({ min: 0, max: 300, noNaN: true }),
+    wedgePressure: fc.double({ min: 0.001, max: 300, noNaN: true }),
     driftPdPa: ratio,
   },
   { requiredKeys: ['vessel'] },

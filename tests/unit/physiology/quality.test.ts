@@ -147,11 +147,12 @@ describe('missing-rest / missing-hyperemia', () => {
     expect(r.vessels[0].warnings).toEqual([]);
   });
 
-  it(`an empty Tmn list counts as not measured — ${SRC.practice}`, () => {
+  it(`an empty Tmn list is a set with no injection: nothing computed, and fewer than three is said — ${SRC.injections}`, () => {
     const v = one({ rest: { pa: 100, pd: 95, tmn: [] }, hyperemia: { pa: 95, pd: 80, tmn: [] } });
     expect(v.tmnRest).toBeUndefined();
     expect(v.cfr).toBeUndefined();
-    expect(v.warnings).toEqual([]);
+    expect(codes(v)).toEqual(['few-injections', 'few-injections']);
+    expect(v.warnings[0].message).toContain('only 0 resting injections');
   });
 });
 
@@ -236,6 +237,6 @@ describe('ach-dose-high (vasoreactivity warnings)', () => {
       vessels: [],
       vasoreactivity: { doses: [{ vessel: 'LAD', micrograms, constrictionPct: 10, symptoms: false, ischemicEcg: false }] },
     });
-    expect(r.vasoreactivity?.warnings.some((w) => w.code === 'ach-dose-high')).toBe(warn);
+    expect(r.warnings.some((w) => w.code === 'ach-dose-high')).toBe(warn);
   });
 });

@@ -57,7 +57,6 @@ describe('valid input is accepted', () => {
   it.each([
     { name: 'pressure exactly 300 mmHg', fn: (x: Mutable) => (x.vessels[0].rest.pa = 300), source: SRC.pressure },
     { name: 'transit time exactly 10 s', fn: (x: Mutable) => (x.vessels[0].rest.tmn = [10, 10, 10]), source: SRC.transit },
-    { name: 'wedge pressure 0 mmHg', fn: (x: Mutable) => (x.vessels[0].wedgePressure = 0), source: SRC.wedge },
     { name: 'FFR 1.5', fn: (x: Mutable) => (x.vessels[0].ffr = 1.5), source: SRC.ratio },
     { name: 'constriction 0% and 100%', fn: (x: Mutable) => (x.vasoreactivity.doses.push({ ...x.vasoreactivity.doses[0], constrictionPct: 100 }), (x.vasoreactivity.doses[0].constrictionPct = 0)), source: SRC.ach },
     { name: 'acetylcholine 1000 µg (with a warning)', fn: (x: Mutable) => (x.vasoreactivity.doses[0].micrograms = 1000), source: SRC.ach },
@@ -92,6 +91,7 @@ describe('rejections: a ZodError whose issue path names the field', () => {
     { name: 'rest.pa missing', fn: (x) => delete x.vessels[0].rest.pa, path: [...v0, 'rest', 'pa'], source: SRC.contract },
     // Wedge
     { name: 'wedge negative', fn: (x) => (x.vessels[0].wedgePressure = -1), path: [...v0, 'wedgePressure'], unit: 'mmHg', source: SRC.wedge },
+    { name: 'wedge zero', fn: (x) => (x.vessels[0].wedgePressure = 0), path: [...v0, 'wedgePressure'], unit: 'mmHg', source: SRC.wedge },
     { name: 'wedge above 300', fn: (x) => (x.vessels[0].wedgePressure = 301), path: [...v0, 'wedgePressure'], unit: 'mmHg', source: SRC.pressure },
     { name: 'wedge NaN', fn: (x) => (x.vessels[0].wedgePressure = Number.NaN), path: [...v0, 'wedgePressure'], unit: 'mmHg', source: SRC.pressure },
     // Transit times

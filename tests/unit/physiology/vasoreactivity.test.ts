@@ -38,15 +38,15 @@ describe('one dose', () => {
   ] as const)('$pct% constriction, symptoms $s, ischaemic ECG $e → $result — $source', ({ pct, s, e, result }) => {
     const r = run([dose(pct, s, e)]);
     expect(r.vasoreactivity?.result).toBe(result);
-    expect(r.vasoreactivity?.doses[0].result).toBe(result);
+    expect(r.doseResults?.[0].result).toBe(result);
   });
 
   it(`≥ 90% without symptoms and ECG change warns that it is not COVADIS epicardial spasm — ${SRC.covadis}`, () => {
     const r = run([dose(95, true, false)]);
-    const w = r.vasoreactivity?.warnings.find((x) => x.code === 'spasm-criteria-not-met');
+    const w = r.warnings.find((x) => x.code === 'spasm-criteria-not-met');
     expect(w?.message).toContain('COVADIS');
     expect(w?.message).toContain('95%');
-    expect(run([dose(95, true, true)]).vasoreactivity?.warnings).toEqual([]);
+    expect(run([dose(95, true, true)]).warnings).toEqual([]);
   });
 });
 
@@ -63,7 +63,9 @@ describe('several doses: the most severe wins', () => {
 
   it(`per-dose results are listed in input order — ${SRC.covadis}`, () => {
     const r = run([dose(10, false, false, 20), dose(92, true, true, 100)]);
-    expect(r.vasoreactivity?.doses.map((d) => d.result)).toEqual(['negative', 'epicardial-spasm']);
+    expect(r.doseResults?.map((d) => d.result)).toEqual(['negative', 'epicardial-spasm']);
+    // The contract's vasoreactivity field holds exactly the outcome.
+    expect(r.vasoreactivity).toEqual({ result: 'epicardial-spasm' });
   });
 });
 

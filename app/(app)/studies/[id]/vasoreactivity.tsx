@@ -34,7 +34,7 @@ export default function VasoreactivitySection() {
         {fields.length === 0 ? <EmptyState title="No dose recorded" detail="Add the first dose when it is given." testID="doses-empty" /> : null}
         {fields.map((f, i) => {
           const p = `vasoreactivity.doses.${i}`;
-          const outcome = result?.vasoreactivity?.doses?.[i]?.result;
+          const outcome = result?.doseResults?.[i]?.result;
           return (
             <SectionCard
               key={f.key}
@@ -63,7 +63,7 @@ export default function VasoreactivitySection() {
       </SectionCard>
       <SectionCard title="After the doses" testID="card-reversal">
         <YesNoField name="vasoreactivity.nitrateReversal" label="Spasm reversed with nitrates" testID="dose-nitrate-reversal" />
-        {(result?.vasoreactivity?.warnings ?? []).map((w) => (
+        {(result?.warnings ?? []).map((w) => (
           <Text key={w.message} variant="caption" tone="abnormal">
             ⚠ {w.message}
           </Text>
