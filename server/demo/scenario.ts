@@ -1,4 +1,4 @@
-import type { AcetylcholineDose, Findings, Setup, VesselAssessment } from '../../shared/study/schema';
+import { emptyVessel, type AcetylcholineDose, type Findings, type Setup, type VesselAssessment } from '../../shared/study/schema';
 import type { StudyState } from '../../shared/study/vocabulary';
 
 /**
@@ -57,24 +57,11 @@ export interface DemoStudy {
   findings: Findings;
 }
 
-const vessel = (fields: Partial<DemoVessel> & Pick<DemoVessel, 'vessel'>): DemoVessel => ({
-  segment: null,
-  visualStenosisPct: null,
-  restPa: null,
-  restPd: null,
-  hyperemiaPa: null,
-  hyperemiaPd: null,
-  consoleFfr: null,
-  nhprKind: null,
-  nhprValue: null,
-  wedgePressure: null,
-  driftPdPa: null,
-  restTransit: [],
-  hyperemiaTransit: [],
-  pullbackPattern: null,
-  decision: null,
-  ...fields,
-});
+/** A vessel row: the shared empty vessel (ids are given when seeding) with the fields that were measured. */
+const vessel = (fields: Partial<DemoVessel> & Pick<DemoVessel, 'vessel'>): DemoVessel => {
+  const { id: _id, ...empty } = emptyVessel('', fields.vessel);
+  return { ...empty, ...fields };
+};
 
 /** Acetylcholine into the left coronary: dose (µg), diameter reduction (%), symptoms, ischaemic ECG. */
 const doses = (rows: [number, number, boolean, boolean][]): DemoDose[] =>
