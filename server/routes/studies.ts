@@ -41,6 +41,14 @@ export function studyRoutes({ config, dataSource, storage }: { config: Config; d
       next(new HttpError(400, 'bad-upload', 'The upload could not be read', 'Send one file in the form field "file".'));
     });
 
+  /** A study read by the signed-in user, recorded in the audit trail; 404 when there is none. */
+  const readStudy = async (req: Request, view?: string) => {
+    const study = await loadStudy(dataSource, idOf(req));
+    if (!study) throw new NotFoundError('No study has this id.');
+    await recordAudit(dataSource, { ...auditContext(req), action: 'read', entityType: 'study', entityId: study.id, outcome: 'success', ...(view ? { detail: { view } } : {}) });
+    return study;
+  };
+
   return [
     {
       method: 'get',
@@ -76,10 +84,7 @@ export function studyRoutes({ config, dataSource, storage }: { config: Config; d
       summary: 'One study: every section, its attachments and its version',
       handlers: [
         async (req, res) => {
-          const study = await loadStudy(dataSource, idOf(req));
-          if (!study) throw new NotFoundError('No study has this id.');
-          await recordAudit(dataSource, { ...auditContext(req), action: 'read', entityType: 'study', entityId: study.id, outcome: 'success' });
-          res.json(study);
+          res.json(await readStudy(req));
         },
       ],
     },
@@ -124,9 +129,7 @@ export function studyRoutes({ config, dataSource, storage }: { config: Config; d
       summary: 'The authoritative indices, flags, warnings and endotype of the stored measurements',
       handlers: [
         async (req, res) => {
-          const study = await loadStudy(dataSource, idOf(req));
-          if (!study) throw new NotFoundError('No study has this id.');
-          await recordAudit(dataSource, { ...auditContext(req), action: 'read', entityType: 'study', entityId: study.id, outcome: 'success', detail: { view: 'analysis' } });
+          const study = await readStudy(req, 'analysis');
           res.json({ version: study.version, analysis: analyzeStudy(toPhysiologyInput(study)) });
         },
       ],
