@@ -92,6 +92,10 @@ export async function signIn(stack: TestStack, username: string, options: { pass
     const response = await fetch(url, { ...init, redirect: 'manual', headers: { ...(init.headers ?? {}), cookie: jar.header(url) } });
     jar.store(url, response);
     init = {};
+    // Read the whole answer, as a browser does: the session middleware sends the headers first and
+    // holds the last byte until the session is stored, so a step taken on the headers alone could
+    // race that write (e.g. a sign-out undone by the callback's late save).
+    const body = await response.text();
     const location = response.headers.get('location');
     if (response.status >= 300 && response.status < 400 && location) {
       const next = new URL(location, url).href;
@@ -101,7 +105,6 @@ export async function signIn(stack: TestStack, username: string, options: { pass
       url = next;
       continue;
     }
-    const body = await response.text();
     const form = body.match(/action="(\/interaction\/[^"]+\/login)"/);
     if (response.status === 200 && form) {
       url = new URL(form[1], url).href;
