@@ -36,6 +36,54 @@ declare module 'express-session' {
 
 export const sessionCookieName = 'isobar.sid';
 
+type Callback = (err?: unknown) => void;
+type PgStoreClass = ReturnType<typeof connectPgSimple>;
+
+/**
+ * connect-pg-simple's store, made safe against a save that lands after a sign-out: express-session
+ * sends a response's headers before its end-of-request save finishes, and that save is an upsert.
+ * Ending a session leaves its id in `http_session_ended` (in the same statement as the delete), and
+ * a save never writes an id found there, so a late save cannot bring an ended session back.
+ */
+function endedSessionAwareStore(Base: PgStoreClass, pool: Pool, maxAgeMs: number) {
+  return class EndedSessionAwareStore extends Base {
+    override set(sid: string, sess: session.SessionData, fn?: Callback): void {
+      const expires = sess.cookie?.expires ? new Date(sess.cookie.expires).getTime() : Date.now() + maxAgeMs;
+      pool
+        .query(
+          `INSERT INTO http_session (sess, expire, sid)
+           SELECT $1::json, to_timestamp($2), $3::varchar WHERE NOT EXISTS (SELECT 1 FROM http_session_ended WHERE sid = $3::varchar)
+           ON CONFLICT (sid) DO UPDATE SET sess = $1::json, expire = to_timestamp($2)`,
+          [sess, expires / 1000, sid],
+        )
+        .then(() => fn?.(), (err) => fn?.(err));
+    }
+
+    override destroy(sid: string, fn?: Callback): void {
+      pool
+        .query(
+          `WITH gone AS (DELETE FROM http_session WHERE sid = $1)
+           INSERT INTO http_session_ended (sid) VALUES ($1) ON CONFLICT (sid) DO NOTHING`,
+          [sid],
+        )
+        .then(() => fn?.(), (err) => fn?.(err));
+    }
+
+    /** Expired sessions (the base store's job), then ended ids older than any session could live. */
+    override pruneSessions(fn?: (err: Error) => void): void {
+      super.pruneSessions((err?: Error) => {
+        if (err) return fn?.(err);
+        pool
+          .query(`DELETE FROM http_session_ended WHERE ended_at < now() - make_interval(secs => $1)`, [(2 * maxAgeMs) / 1000])
+          .then(
+            () => fn?.(undefined as unknown as Error),
+            (e: Error) => fn?.(e),
+          );
+      });
+    }
+  };
+}
+
 /** The pg pool TypeORM already holds, so sessions need no second pool. */
 function poolOf(dataSource: DataSource): Pool {
   return (dataSource.driver as unknown as { master: Pool }).master;
@@ -45,18 +93,23 @@ function poolOf(dataSource: DataSource): Pool {
  * Sessions in PostgreSQL: HttpOnly, SameSite=Lax cookie (Lax, not Strict, so the provider's redirect
  * back to the callback carries it), Secure over HTTPS, idle timeout renewed on each request.
  */
+export function createSessionStore(config: Config, dataSource: DataSource): session.Store {
+  const pool = poolOf(dataSource);
+  const Store = endedSessionAwareStore(connectPgSimple(session), pool, config.session.maxHours * 3_600_000);
+  return new Store({
+    pool,
+    tableName: 'http_session',
+    createTableIfMissing: false,
+    pruneSessionInterval: config.env === 'test' ? false : 15 * 60,
+  });
+}
+
 export function sessionMiddleware(config: Config, dataSource: DataSource): RequestHandler {
-  const PgStore = connectPgSimple(session);
   const idleMs = config.session.idleMinutes * 60_000;
   return session({
     name: sessionCookieName,
     secret: config.sessionSecret,
-    store: new PgStore({
-      pool: poolOf(dataSource),
-      tableName: 'http_session',
-      createTableIfMissing: false,
-      pruneSessionInterval: config.env === 'test' ? false : 15 * 60,
-    }),
+    store: createSessionStore(config, dataSource),
     resave: false,
     saveUninitialized: false,
     rolling: true,

@@ -4,6 +4,7 @@ import type { DataSource } from 'typeorm';
 import { homeOf, permissionsOf, type Role } from '../../shared/auth/permissions';
 import { openTestDatabase } from '../support/app';
 import { signIn, startStack, usernameOf, CookieJar, type TestStack } from '../support/stack';
+import { createSessionStore } from '../../server/auth/session';
 
 let db: DataSource;
 let stack: TestStack;
@@ -171,5 +172,31 @@ describe('rate limiting', () => {
     } finally {
       await limited.close();
     }
+  });
+});
+
+describe('an ended session stays ended', () => {
+  it('is not brought back by a save that lands after the sign-out', async () => {
+    const session = await signIn(stack, usernameOf('staff'));
+    const sid = decodeURIComponent(session.jar.get(stack.url, 'isobar.sid')!).slice(2).split('.')[0];
+    const [{ sess }] = await db.query(`SELECT sess FROM http_session WHERE sid = $1`, [sid]);
+    await request(stack.url).post('/api/auth/sign-out').set('Cookie', session.cookie).set('Origin', stack.url).expect(200);
+    // A late end-of-request save of the sign-in callback, through the store the app uses.
+    const store = createSessionStore(stack.config, db);
+    await new Promise<void>((resolve, reject) => store.set(sid, sess, (err) => (err ? reject(err) : resolve())));
+    await request(stack.url).get('/api/me').set('Cookie', session.cookie).expect(401);
+    const [{ n }] = await db.query(`SELECT count(*)::int AS n FROM http_session_ended WHERE sid = $1`, [sid]);
+    expect(n).toBe(1);
+  });
+
+  it('also retires the pre-sign-in id when the session is rotated at sign-in', async () => {
+    const jar = new CookieJar();
+    const start = await fetch(`${stack.url}/api/auth/sign-in`, { redirect: 'manual' });
+    await start.text();
+    jar.store(stack.url, start);
+    const before = decodeURIComponent(jar.get(stack.url, 'isobar.sid')!).slice(2).split('.')[0];
+    await signIn(stack, usernameOf('staff'), { jar });
+    const [{ n }] = await db.query(`SELECT count(*)::int AS n FROM http_session_ended WHERE sid = $1`, [before]);
+    expect(n).toBe(1);
   });
 });
