@@ -14,3 +14,14 @@ export function formatHours(hours: number): string {
 export function patientName(p: { familyName: string; givenName: string }): string {
   return `${p.familyName.toUpperCase()}, ${p.givenName}`;
 }
+
+/** The local day a study belongs to, for day headings: "Today", "Yesterday", else the date. */
+export function dayLabel(iso: string | null, now = new Date()): string {
+  if (!iso) return 'Time not recorded';
+  const d = new Date(iso);
+  const start = (x: Date) => new Date(x.getFullYear(), x.getMonth(), x.getDate()).getTime();
+  const days = Math.round((start(now) - start(d)) / 86_400_000);
+  if (days === 0) return 'Today';
+  if (days === 1) return 'Yesterday';
+  return d.toLocaleDateString('en-GB', { weekday: 'short', day: 'numeric', month: 'short', year: 'numeric' });
+}

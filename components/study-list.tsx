@@ -3,17 +3,29 @@ import { StyleSheet, View } from 'react-native';
 import { Text } from './ui/text';
 import { useIsWide } from './ui/layout';
 import { StudyStateChip } from './study-state-chip';
-import { formatDateTime, patientName } from './format';
+import { dayLabel, formatDateTime, patientName } from './format';
 import { color, radius, space } from './theme';
 import type { StudySummary } from './data/records-query';
 
-/** Studies as rows: patient first (what the team looks for), then accession, state and time. */
-export function StudyList<T extends StudySummary>({ studies, aside, testID }: { studies: T[]; aside?: (s: T) => ReactNode; testID: string }) {
+/**
+ * Studies as rows: patient first (what the team looks for), then accession, state and time.
+ * With `dayOf`, rows are headed by their day, so "today first" can be seen at a glance.
+ */
+export function StudyList<T extends StudySummary>({ studies, aside, testID, dayOf }: { studies: T[]; aside?: (s: T) => ReactNode; testID: string; dayOf?: (s: T) => string | null }) {
   const wide = useIsWide();
+  const now = new Date();
   return (
     <View style={styles.list} testID={testID} role="list">
       {studies.map((s, i) => (
-        <View key={s.id} role="listitem" testID={`study-row-${s.accession}`} style={[styles.row, wide && styles.rowWide, i > 0 && styles.divider]}>
+        <View key={s.id} role="listitem">
+          {dayOf && (i === 0 || dayLabel(dayOf(studies[i - 1]), now) !== dayLabel(dayOf(s), now)) ? (
+            <View style={[styles.day, i > 0 && styles.divider]} testID={`${testID}-day-${dayLabel(dayOf(s), now)}`}>
+              <Text variant="caption" weight="semibold" tone="muted" role="heading" aria-level={2}>
+                {dayLabel(dayOf(s), now)}
+              </Text>
+            </View>
+          ) : null}
+        <View testID={`study-row-${s.accession}`} style={[styles.row, wide && styles.rowWide, (i > 0 || dayOf) && styles.divider]}>
           <View style={[styles.who, wide && styles.whoWide]}>
             <Text weight="semibold">{patientName(s.patient)}</Text>
             <Text variant="caption" tone="muted">
@@ -37,6 +49,7 @@ export function StudyList<T extends StudySummary>({ studies, aside, testID }: { 
           </View>
           {aside ? <View style={styles.aside}>{aside(s)}</View> : null}
         </View>
+        </View>
       ))}
     </View>
   );
@@ -47,6 +60,7 @@ const styles = StyleSheet.create({
   row: { padding: space.lg, gap: space.sm },
   rowWide: { flexDirection: 'row', alignItems: 'center', gap: space.xl },
   divider: { borderTopWidth: 1, borderTopColor: color.line },
+  day: { paddingHorizontal: space.lg, paddingVertical: space.sm, backgroundColor: color.surfaceSunken },
   who: { gap: space.xxs },
   whoWide: { flex: 1.2 },
   what: { gap: space.xxs },

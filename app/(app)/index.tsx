@@ -78,6 +78,7 @@ export default function WorklistPage() {
             <StudyList
               studies={items}
               testID="worklist"
+              dayOf={(s) => s.sortAt}
               aside={(s) => (
                 <Link href={`/studies/${s.id}`} asChild>
                   <Pressable testID={`open-${s.accession}`} role="link" accessibilityLabel={`Open study ${s.accession}`} style={styles.open}>

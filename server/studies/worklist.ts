@@ -70,7 +70,7 @@ export async function listStudies(db: DataSource, query: WorklistQuery): Promise
   }
   const rows = await db.query(
     `SELECT s.id, s.accession, s.state, s.procedure_started_at, s.procedure_ended_at, s.indication, s.version,
-            s.sort_at::text AS sort_key,
+            s.sort_at::text AS sort_key, s.sort_at,
             p.mrn, p.family_name, p.given_name, to_char(p.birth_date, 'YYYY-MM-DD') AS birth_date, p.sex,
             u.display_name AS operator_name
      FROM study s JOIN patient p ON p.id = s.patient_id LEFT JOIN app_user u ON u.id = s.operator_id
@@ -89,6 +89,7 @@ export async function listStudies(db: DataSource, query: WorklistQuery): Promise
         state: r.state,
         procedureStartedAt: (r.procedure_started_at as Date | null)?.toISOString() ?? null,
         procedureEndedAt: (r.procedure_ended_at as Date | null)?.toISOString() ?? null,
+        sortAt: (r.sort_at as Date).toISOString(),
         indication: r.indication,
         operatorName: r.operator_name,
         version: r.version,

@@ -20,6 +20,8 @@ export interface WorklistItem {
   state: (typeof studyStates)[number];
   procedureStartedAt: string | null;
   procedureEndedAt: string | null;
+  /** The worklist's order: procedure start, or when the record was opened if not yet known. */
+  sortAt: string;
   indication: string | null;
   operatorName: string | null;
   version: number;

@@ -323,3 +323,14 @@ describe('patient identity under concurrency and corrections', () => {
     expect(res.body.errors).toEqual([{ pointer: '/patient/birthDate', detail: expect.stringContaining('birth date') }]);
   });
 });
+
+describe('worklist order', () => {
+  it('gives each item the key it is ordered by: procedure start, else when the record was opened', async () => {
+    const scheduled = await create(staff, { details: { procedureStartedAt: '2026-02-03T08:00:00.000Z' } });
+    const unscheduled = await create();
+    const page = await api().get('/api/studies').query({ q: scheduled.patient.mrn }).set('Cookie', staff).expect(200);
+    expect(page.body.items[0].sortAt).toBe('2026-02-03T08:00:00.000Z');
+    const other = await api().get('/api/studies').query({ q: unscheduled.patient.mrn }).set('Cookie', staff).expect(200);
+    expect(other.body.items[0].sortAt).toBe(unscheduled.createdAt);
+  });
+});
