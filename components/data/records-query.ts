@@ -1,16 +1,9 @@
 import { useQuery } from '@tanstack/react-query';
 import { apiFetch } from './api';
+import type { WorklistItem } from '../../shared/study/worklist';
 
-export interface StudySummary {
-  id: string;
-  accession: string;
-  state: 'draft' | 'awaiting-signature' | 'signed' | 'amended';
-  procedureEndedAt: string | null;
-  indication: string | null;
-  operatorName: string | null;
-  version: number;
-  patient: { mrn: string; familyName: string; givenName: string; birthDate: string; sex: string };
-}
+/** A study as lists show it: the same shape for the worklist, the coding queue and turnaround. */
+export type StudySummary = WorklistItem;
 
 export interface WaitingStudy extends StudySummary {
   hoursWaiting: number;

@@ -3,40 +3,7 @@ import { toFhirAuditEvent } from '../../fhir/audit-event';
 import { auditContext, recordAudit, type AuditRow } from '../audit/audit';
 import type { ApiRoute } from '../http/routes';
 import { defaultSignatureTargetHours, waitingSince } from '../../shared/turnaround/overdue';
-
-interface StudyRow {
-  id: string;
-  accession: string;
-  state: string;
-  procedure_ended_at: Date | null;
-  indication: string | null;
-  version: number;
-  mrn: string;
-  family_name: string;
-  given_name: string;
-  birth_date: string;
-  sex: string;
-  operator_name: string | null;
-}
-
-const studySelect = `
-  SELECT s.id, s.accession, s.state, s.procedure_ended_at, s.indication, s.version,
-         p.mrn, p.family_name, p.given_name, to_char(p.birth_date, 'YYYY-MM-DD') AS birth_date, p.sex,
-         u.display_name AS operator_name
-  FROM study s JOIN patient p ON p.id = s.patient_id LEFT JOIN app_user u ON u.id = s.operator_id`;
-
-function studySummary(row: StudyRow) {
-  return {
-    id: row.id,
-    accession: row.accession,
-    state: row.state,
-    procedureEndedAt: row.procedure_ended_at?.toISOString() ?? null,
-    indication: row.indication,
-    operatorName: row.operator_name,
-    version: row.version,
-    patient: { mrn: row.mrn, familyName: row.family_name, givenName: row.given_name, birthDate: row.birth_date, sex: row.sex },
-  };
-}
+import { summarySelect, toSummary } from '../studies/worklist';
 
 /** Reads of the coding queue, overdue studies, users and the audit trail. Every read is audited. */
 export function recordRoutes({ dataSource }: { dataSource: DataSource }): ApiRoute[] {
@@ -48,11 +15,11 @@ export function recordRoutes({ dataSource }: { dataSource: DataSource }): ApiRou
       summary: 'Signed studies waiting for code review, oldest first',
       handlers: [
         async (req, res) => {
-          const rows: StudyRow[] = await dataSource.query(
-            `${studySelect} WHERE s.state IN ('signed', 'amended') ORDER BY s.procedure_ended_at ASC NULLS LAST, s.id LIMIT 100`,
+          const rows: Record<string, never>[] = await dataSource.query(
+            `${summarySelect} WHERE s.state IN ('signed', 'amended') ORDER BY s.procedure_ended_at ASC NULLS LAST, s.id LIMIT 100`,
           );
           await recordAudit(dataSource, { ...auditContext(req), action: 'search', entityType: 'study', outcome: 'success', detail: { queue: 'coding', returned: rows.length } });
-          res.json({ items: rows.map(studySummary) });
+          res.json({ items: rows.map(toSummary) });
         },
       ],
     },
@@ -64,14 +31,14 @@ export function recordRoutes({ dataSource }: { dataSource: DataSource }): ApiRou
       handlers: [
         async (req, res) => {
           const now = new Date();
-          const rows: StudyRow[] = await dataSource.query(
-            `${studySelect} WHERE s.state IN ('draft', 'awaiting-signature') AND s.procedure_ended_at IS NOT NULL
+          const rows: Record<string, never>[] = await dataSource.query(
+            `${summarySelect} WHERE s.state IN ('draft', 'awaiting-signature') AND s.procedure_ended_at IS NOT NULL
              ORDER BY s.procedure_ended_at ASC, s.id LIMIT 200`,
           );
           await recordAudit(dataSource, { ...auditContext(req), action: 'search', entityType: 'study', outcome: 'success', detail: { view: 'awaiting-signature', returned: rows.length } });
           res.json({
             targetHours: defaultSignatureTargetHours,
-            items: rows.map((row) => ({ ...studySummary(row), ...waitingSince(row.procedure_ended_at!, now) })),
+            items: rows.map((row) => ({ ...toSummary(row), ...waitingSince(row.procedure_ended_at as Date, now) })),
           });
         },
       ],

@@ -2,6 +2,32 @@ import type { DataSource } from 'typeorm';
 import type { WorklistItem, WorklistPage, WorklistQuery } from '../../shared/study/worklist';
 import { BadRequestError } from '../http/problem';
 
+/**
+ * One study as lists show it (worklist, coding queue, turnaround): `SELECT … FROM` a study with its
+ * patient and operator; callers add WHERE and ORDER BY. `sort_key` is the sort key as text (for cursors).
+ */
+export const summarySelect = `
+  SELECT s.id, s.accession, s.state, s.procedure_started_at, s.procedure_ended_at, s.indication, s.version,
+         s.sort_at::text AS sort_key, s.sort_at,
+         p.mrn, p.family_name, p.given_name, to_char(p.birth_date, 'YYYY-MM-DD') AS birth_date, p.sex,
+         u.display_name AS operator_name
+  FROM study s JOIN patient p ON p.id = s.patient_id LEFT JOIN app_user u ON u.id = s.operator_id`;
+
+export function toSummary(r: Record<string, never>): WorklistItem {
+  return {
+    id: r.id,
+    accession: r.accession,
+    state: r.state,
+    procedureStartedAt: (r.procedure_started_at as Date | null)?.toISOString() ?? null,
+    procedureEndedAt: (r.procedure_ended_at as Date | null)?.toISOString() ?? null,
+    sortAt: (r.sort_at as Date).toISOString(),
+    indication: r.indication,
+    operatorName: r.operator_name,
+    version: r.version,
+    patient: { mrn: r.mrn, familyName: r.family_name, givenName: r.given_name, birthDate: r.birth_date, sex: r.sex },
+  };
+}
+
 /** The cursor is the last row's sort key (text, so microseconds survive) and id. */
 function encodeCursor(sortKey: string, id: string): string {
   return Buffer.from(JSON.stringify([sortKey, id])).toString('base64url');
@@ -69,11 +95,7 @@ export async function listStudies(db: DataSource, query: WorklistQuery): Promise
     where.push(`(s.sort_at, s.id) < (${param(sortKey)}::timestamptz, ${param(id)}::uuid)`);
   }
   const rows = await db.query(
-    `SELECT s.id, s.accession, s.state, s.procedure_started_at, s.procedure_ended_at, s.indication, s.version,
-            s.sort_at::text AS sort_key, s.sort_at,
-            p.mrn, p.family_name, p.given_name, to_char(p.birth_date, 'YYYY-MM-DD') AS birth_date, p.sex,
-            u.display_name AS operator_name
-     FROM study s JOIN patient p ON p.id = s.patient_id LEFT JOIN app_user u ON u.id = s.operator_id
+    `${summarySelect}
      ${where.length ? `WHERE ${where.join(' AND ')}` : ''}
      ORDER BY s.sort_at DESC, s.id DESC
      LIMIT ${param(query.limit + 1)}`,
@@ -82,20 +104,7 @@ export async function listStudies(db: DataSource, query: WorklistQuery): Promise
   const page = rows.slice(0, query.limit);
   const last = page[page.length - 1];
   return {
-    items: page.map(
-      (r: Record<string, never>): WorklistItem => ({
-        id: r.id,
-        accession: r.accession,
-        state: r.state,
-        procedureStartedAt: (r.procedure_started_at as Date | null)?.toISOString() ?? null,
-        procedureEndedAt: (r.procedure_ended_at as Date | null)?.toISOString() ?? null,
-        sortAt: (r.sort_at as Date).toISOString(),
-        indication: r.indication,
-        operatorName: r.operator_name,
-        version: r.version,
-        patient: { mrn: r.mrn, familyName: r.family_name, givenName: r.given_name, birthDate: r.birth_date, sex: r.sex },
-      }),
-    ),
+    items: page.map(toSummary),
     nextCursor: rows.length > query.limit && last ? encodeCursor(last.sort_key, last.id) : null,
   };
 }
