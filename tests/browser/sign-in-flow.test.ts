@@ -3,7 +3,7 @@ import type { Page } from 'playwright-core';
 import type { DataSource } from 'typeorm';
 import { homeOf, roleLabel, type Role } from '../../shared/auth/permissions';
 import { demoUsers } from '../../server/demo/scenario';
-import { launchBrowser, screenshotPath, viewports } from '../support/browser';
+import { launchBrowser, screenshotPath, signInInBrowser, viewports } from '../support/browser';
 import { openTestDatabase } from '../support/app';
 import { createStudy } from '../support/factories';
 import { startStack, usernameOf, type TestStack } from '../support/stack';
@@ -25,16 +25,6 @@ afterAll(async () => {
   await db?.destroy();
 });
 
-async function signInThroughBrowser(page: Page, username: string) {
-  await page.goto(stack.url + '/');
-  await page.waitForURL(/\/sign-in/);
-  await page.getByRole('button', { name: 'Sign in with your hospital account' }).click();
-  await page.waitForURL((url) => url.href.startsWith(stack.idp.issuer));
-  await page.getByTestId('idp-username').fill(username);
-  await page.getByTestId('idp-password').fill('demo');
-  await page.getByTestId('idp-submit').click();
-  await page.waitForURL((url) => url.href.startsWith(stack.url) && !url.pathname.startsWith('/sign-in') && !url.pathname.startsWith('/api'));
-}
 
 const pageOf: Record<Role, string> = { staff: 'Worklist', physician: 'Worklist', coder: 'Coding queue', chief: 'Turnaround', admin: 'Administration' };
 
@@ -44,7 +34,7 @@ describe('signing in from the browser', () => {
     const page = await context.newPage();
     await page.setViewportSize(viewports.phone);
     try {
-      await signInThroughBrowser(page, usernameOf(role));
+      await signInInBrowser(page, stack, usernameOf(role));
       expect(new URL(page.url()).pathname).toBe(homeOf[role]);
       await page.getByRole('heading', { level: 1, name: pageOf[role] }).waitFor();
       await expect(page.getByTestId('signed-in-role').last().innerText()).resolves.toBe(roleLabel[role]);
@@ -58,7 +48,7 @@ describe('signing in from the browser', () => {
     const context = await browser.context.browser()!.newContext();
     const page = await context.newPage();
     try {
-      await signInThroughBrowser(page, usernameOf(null));
+      await signInInBrowser(page, stack, usernameOf(null));
       await page.getByTestId('no-access-page').waitFor();
       await expect(page.getByRole('heading', { level: 1 }).innerText()).resolves.toBe('No access to Isobar yet');
       await expect(page.getByTestId('no-access-page').innerText()).resolves.toContain(demoUsers.find((u) => u.role === null)!.displayName);
@@ -73,7 +63,7 @@ describe('signing in from the browser', () => {
     const page = await context.newPage();
     await page.setViewportSize(viewports.desktop);
     try {
-      await signInThroughBrowser(page, usernameOf('staff'));
+      await signInInBrowser(page, stack, usernameOf('staff'));
       const row = page.getByTestId(`study-row-${study.accession}`);
       await row.waitFor();
       await expect(row.innerText()).resolves.toContain(study.patient.mrn);
@@ -100,7 +90,7 @@ describe('signing in from the browser', () => {
     const context = await browser.context.browser()!.newContext({ viewport: viewports.desktop });
     try {
       const a = await context.newPage();
-      await signInThroughBrowser(a, usernameOf('staff'));
+      await signInInBrowser(a, stack, usernameOf('staff'));
       const b = await context.newPage();
       await b.goto(stack.url + '/');
       await b.getByTestId(`study-row-${study.accession}`).waitFor();

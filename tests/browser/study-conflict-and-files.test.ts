@@ -4,7 +4,7 @@ import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { BrowserContext, Page } from 'playwright-core';
 import type { DataSource } from 'typeorm';
-import { launchBrowser, screenshotPath, viewports } from '../support/browser';
+import { launchBrowser, screenshotPath, signInInBrowser, viewports, visible } from '../support/browser';
 import { openTestDatabase } from '../support/app';
 import { createStudy } from '../support/factories';
 import { startStack, usernameOf, type TestStack } from '../support/stack';
@@ -21,12 +21,7 @@ beforeAll(async () => {
   browser = await launchBrowser();
   context = await browser.context.browser()!.newContext({ viewport: viewports.desktop });
   const page = await context.newPage();
-  await page.goto(stack.url + '/sign-in');
-  await page.getByRole('button', { name: 'Sign in with your hospital account' }).click();
-  await page.getByTestId('idp-username').fill(usernameOf('physician'));
-  await page.getByTestId('idp-password').fill('demo');
-  await page.getByTestId('idp-submit').click();
-  await page.waitForURL((url) => url.href.startsWith(stack.url) && url.pathname === '/');
+  await signInInBrowser(page, stack, usernameOf('physician'));
   await page.close();
 });
 afterAll(async () => {
@@ -37,7 +32,6 @@ afterAll(async () => {
   fs.rmSync(tmp, { recursive: true, force: true });
 });
 
-const visible = (page: Page, testID: string) => page.locator(`[data-testid="${testID}"]:visible`);
 
 describe('the same study open in two tabs', () => {
   it('never overwrites silently: the stale tab chooses, and keeping its edits keeps the other tab\'s sections too', async () => {

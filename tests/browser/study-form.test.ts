@@ -1,7 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Page } from 'playwright-core';
 import type { DataSource } from 'typeorm';
-import { launchBrowser, screenshotPath, viewports } from '../support/browser';
+import { launchBrowser, screenshotPath, signInInBrowser, viewports, visible } from '../support/browser';
 import { openTestDatabase } from '../support/app';
 import { startStack, usernameOf, type TestStack } from '../support/stack';
 
@@ -20,17 +20,9 @@ afterAll(async () => {
   await db?.destroy();
 });
 
-async function signInAs(page: Page, role: 'staff' | 'physician') {
-  await page.goto(stack.url + '/sign-in');
-  await page.getByRole('button', { name: 'Sign in with your hospital account' }).click();
-  await page.getByTestId('idp-username').fill(usernameOf(role));
-  await page.getByTestId('idp-password').fill('demo');
-  await page.getByTestId('idp-submit').click();
-  await page.waitForURL((url) => url.href.startsWith(stack.url) && url.pathname === '/');
-}
+const signInAs = (page: Page, role: 'staff' | 'physician') => signInInBrowser(page, stack, usernameOf(role));
 
 const mrn = `BR-${Date.now().toString(36).toUpperCase()}`;
-const visible = (page: Page, testID: string) => page.locator(`[data-testid="${testID}"]:visible`);
 
 /** Opens the study of this exact MRN from the worklist search (the search runs after a pause). */
 async function openByMrn(page: Page, which: string) {
