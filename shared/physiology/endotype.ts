@@ -194,7 +194,7 @@ export function classifyStudy(
       );
     }
   }
-  return { findings: { obstructive, microvascular, vasospasm }, endotype, reasons };
+  return { findings: { obstructive, microvascular, endothelialDysfunction: vr === 'endothelial-dysfunction', vasospasm }, endotype, reasons };
 }
 
 function joinAnd(xs: string[]): string {

@@ -68,6 +68,7 @@ function okVessel(x: unknown): boolean {
       case 'nhpr':
       case 'wedgePressure':
       case 'driftPdPa':
+      case 'visualStenosisPct':
         if (x[k] === undefined) return false;
         break;
       default:
@@ -80,6 +81,8 @@ function okVessel(x: unknown): boolean {
   if (x.ffr !== undefined && !inRange(x.ffr, MAX_RATIO)) return false;
   if (x.driftPdPa !== undefined && !inRange(x.driftPdPa, MAX_RATIO)) return false;
   if (x.wedgePressure !== undefined && !inRange(x.wedgePressure, MAX_PRESSURE)) return false;
+  const stenosis = x.visualStenosisPct;
+  if (stenosis !== undefined && !(typeof stenosis === 'number' && stenosis >= 0 && stenosis <= 100)) return false;
   const nhpr = x.nhpr;
   if (nhpr !== undefined) {
     if (!isPlainObject(nhpr)) return false;

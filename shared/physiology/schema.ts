@@ -91,6 +91,7 @@ export const vesselInputSchema = z.strictObject(
     nhpr: nhprSchema.optional(),
     wedgePressure: bounded('Coronary wedge pressure (Pw)', 'mmHg', 'positive', MAX_PRESSURE).optional(),
     driftPdPa: bounded('Drift Pd/Pa at the guide tip', '', 'positive', MAX_RATIO).optional(),
+    visualStenosisPct: bounded('Visual stenosis', '%', 'non-negative', 100).optional(),
   },
   { error: strictMessage('a vessel') },
 );

@@ -39,7 +39,7 @@ export function analyzeValidated(data: PhysiologyOutput): PhysiologyResult {
   }
 
   const { findings, endotype, reasons } = classifyStudy(vessels, labels, vasoreactivity, vasoReasons, ctx);
-  const result: PhysiologyResult = { vessels, findings, endotype, reasons, warnings };
+  const result: PhysiologyResult = { vessels, findings, endotype, headline: endotype, reasons, warnings };
   if (vasoreactivity !== undefined) {
     result.vasoreactivity = vasoreactivity;
     result.doseResults = doseResults;

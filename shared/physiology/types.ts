@@ -36,6 +36,13 @@ export interface VesselResult {
   rrrFlag?: Flag;
   mrr?: number;
   mrrFlag?: Flag;
+  /** MRR comes from bolus thermodilution here; its cut-offs were set with continuous thermodilution. */
+  mrrMethod?: 'bolus-thermodilution';
+  /** The entered angiographic diameter stenosis, echoed. */
+  visualStenosisPct?: number;
+  /** Whether the vessel is obstructive, and by what it was judged; absent when nothing judges it. */
+  obstructive?: boolean;
+  judgedBy?: 'ffr' | 'nhpr' | 'resting-pd-pa' | 'visual-stenosis';
   warnings: PhysiologyWarning[];
 }
 
@@ -43,6 +50,7 @@ export type VasoreactivityOutcome =
   | 'epicardial-spasm'
   | 'microvascular-spasm'
   | 'endothelial-dysfunction'
+  | 'equivocal'
   | 'negative';
 
 /** The contract's vasoreactivity result: exactly the study's outcome. */
@@ -66,8 +74,15 @@ export type Endotype =
   | 'inconclusive';
 
 export interface Findings {
+  /** Any vessel obstructive: judged by its pressure index, else by ≥ 50% visual stenosis (COVADIS). */
   obstructive: boolean;
-  microvascular: null | 'structural' | 'functional';
+  /**
+   * Microvascular dysfunction in a non-obstructed vessel: structural (low CFR and high IMR),
+   * functional (low CFR, IMR not high), raised-imr (high IMR with CFR not low).
+   */
+  microvascular: null | 'structural' | 'functional' | 'raised-imr';
+  /** Acetylcholine constriction without spasm (the study's acetylcholine result). */
+  endothelialDysfunction: boolean;
   vasospasm: null | 'epicardial' | 'microvascular';
 }
 
@@ -80,5 +95,7 @@ export interface PhysiologyResult {
   warnings: PhysiologyWarning[];
   findings: Findings;
   endotype: Endotype;
+  /** One line for the result panel and the report: the endotype, or every coexisting finding. */
+  headline: string;
   reasons: string[];
 }

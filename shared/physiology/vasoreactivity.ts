@@ -14,8 +14,9 @@ export interface VasoreactivityAnalysis {
 const severity: Record<VasoreactivityOutcome, number> = {
   negative: 0,
   'endothelial-dysfunction': 1,
-  'microvascular-spasm': 2,
-  'epicardial-spasm': 3,
+  equivocal: 2,
+  'microvascular-spasm': 3,
+  'epicardial-spasm': 4,
 };
 
 /** COVADIS classification of one acetylcholine dose. */
