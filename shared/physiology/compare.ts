@@ -1,22 +1,26 @@
+import { roundForDisplay, type QuantityKind } from './precision';
+
 /**
- * Cut-off comparisons with a tiny relative tolerance, so that a value mathematically equal to the
- * cut-off (e.g. a mean of three 0.3 s injections) is classified as "at the cut-off" despite
- * floating-point noise. The tolerance (1e-9) is far below any clinically displayed digit.
+ * Cut-off comparisons made on the value as displayed (see precision.ts), so a flag never contradicts
+ * the number printed beside it: FFR 0.804 shows 0.80 and is judged 0.80. A tiny relative tolerance
+ * (1e-9) absorbs binary noise in the cut-off itself.
  */
 const EPS = 1e-9;
+/** `raw` compares an entered value as entered (a constriction of 89.6% is not 90%). */
+const shown = (v: number, kind: QuantityKind | 'raw') => (kind === 'raw' ? v : roundForDisplay(v, kind));
 
-export function atOrBelow(v: number, cut: number): boolean {
-  return v <= cut + EPS * Math.abs(cut);
+export function atOrBelow(v: number, cut: number, kind: QuantityKind | 'raw'): boolean {
+  return shown(v, kind) <= cut + EPS * Math.abs(cut);
 }
 
-export function below(v: number, cut: number): boolean {
-  return v < cut - EPS * Math.abs(cut);
+export function below(v: number, cut: number, kind: QuantityKind | 'raw'): boolean {
+  return shown(v, kind) < cut - EPS * Math.abs(cut);
 }
 
-export function atOrAbove(v: number, cut: number): boolean {
-  return v >= cut - EPS * Math.abs(cut);
+export function atOrAbove(v: number, cut: number, kind: QuantityKind | 'raw'): boolean {
+  return shown(v, kind) >= cut - EPS * Math.abs(cut);
 }
 
-export function above(v: number, cut: number): boolean {
-  return v > cut + EPS * Math.abs(cut);
+export function above(v: number, cut: number, kind: QuantityKind | 'raw'): boolean {
+  return shown(v, kind) > cut + EPS * Math.abs(cut);
 }

@@ -13,21 +13,21 @@ export interface Ctx {
   ffrCut: string;
   restAbnormal: Record<'restingPdPa' | 'nhprWholeCycle' | 'nhprDiastolic' | 'nhprFullCycleMinimum', string>;
   imrAbnormal: string;
-  imrAbnormalObstructed: string;
   cfrAbnormal: string;
-  cfrAbnormalObstructed: string;
+  obstructedTail: string;
   cfrBorderline: string;
   rrrAbnormal: string;
   mrrAbnormal: string;
+  mrrBorderline: string;
+  stenosisObstructive: string;
+  stenosisCut: string;
 }
-
-const OBSTRUCTED = ' — in a vessel with an obstructive stenosis, so not used for the microvascular finding.';
 
 function build(t: Thresholds): Ctx {
   const rest = (key: ThresholdKey) =>
     ` is at or below the ${cutRatio(t[key])} cut-off (${cite(t, key)}) with no FFR measured — a haemodynamically significant stenosis.`;
-  const imr = ` is at or above the ${cutPlain(t.imr)} cut-off (${cite(t, 'imr')})`;
-  const cfr = ` is below the ${cutRatio(t.cfr)} cut-off (${cite(t, 'cfr')})`;
+  const mrrMethod =
+    `MRR here comes from bolus thermodilution, while its cut-offs were set with continuous thermodilution (${cite(t, 'mrr')}); the bolus cut-off is not settled`;
   return {
     t,
     ffrAbnormal: ` is at or below the ${cutRatio(t.ffr)} cut-off (${cite(t, 'ffr')}) — a haemodynamically significant stenosis.`,
@@ -39,13 +39,15 @@ function build(t: Thresholds): Ctx {
       nhprDiastolic: rest('nhprDiastolic'),
       nhprFullCycleMinimum: rest('nhprFullCycleMinimum'),
     },
-    imrAbnormal: `${imr} — raised microvascular resistance (structural microvascular dysfunction).`,
-    imrAbnormalObstructed: imr + OBSTRUCTED,
-    cfrAbnormal: `${cfr} — impaired coronary flow reserve.`,
-    cfrAbnormalObstructed: cfr + OBSTRUCTED,
+    imrAbnormal: ` is at or above the ${cutPlain(t.imr)} cut-off (${cite(t, 'imr')}) — raised microvascular resistance`,
+    cfrAbnormal: ` is below the ${cutRatio(t.cfr)} cut-off (${cite(t, 'cfr')}) — impaired coronary flow reserve`,
+    obstructedTail: ' — in a vessel with an obstructive stenosis, so not used for the microvascular finding.',
     cfrBorderline: ` is in the borderline band ${cutRatio(t.cfr)}–${cutRatio(t.cfrBorderline)} (${cite(t, 'cfr')} uses ${cutRatio(t.cfr)}, ${cite(t, 'cfrBorderline')} uses ${cutRatio(t.cfrBorderline)}) — not enough on its own for microvascular dysfunction.`,
     rrrAbnormal: ` is below the ${cutRatio(t.rrr)} cut-off (${cite(t, 'rrr')}) — reduced resistive reserve.`,
-    mrrAbnormal: ` is below the ${cutRatio(t.mrr)} cut-off (${cite(t, 'mrr')}) — reduced microvascular resistance reserve.`,
+    mrrAbnormal: ` is below the ${cutRatio(t.mrr)} cut-off — reduced microvascular resistance reserve; ${mrrMethod}.`,
+    mrrBorderline: ` is in the ${cutRatio(t.mrr)}–${cutRatio(t.mrrBorderline)} borderline band — ${mrrMethod}.`,
+    stenosisObstructive: ` with no pressure index is at or above ${cutPlain(t.obstructiveStenosisPct)}% (${cite(t, 'obstructiveStenosisPct')}) — obstructive by angiography.`,
+    stenosisCut: cutPlain(t.obstructiveStenosisPct),
   };
 }
 

@@ -1,5 +1,5 @@
 import type { Ctx } from './context';
-import { cutPlain, cutRatio, fmt, ratio } from './format';
+import { cutPlain, cutRatio, imrText, joinAnd, ratio } from './format';
 import { nhprCutoffKey, nhprName } from './indices';
 import { cite, type Thresholds } from './thresholds';
 import type { Endotype, Findings, Flag, VasoreactivityResult, VesselResult } from './types';
@@ -38,9 +38,36 @@ const imrMethodName = {
   yong: ' (corrected without wedge)',
 } as const;
 
+/** Quality warnings that make a judged value doubtful enough to qualify the headline. */
+const doubtfulQuality: Record<string, string> = {
+  'drift-out-of-range': 'drift outside the accepted window',
+  'pd-above-pa': 'Pd above Pa',
+  'hyperemic-above-resting': 'hyperaemic Pd/Pa above resting',
+  'hyperemia-inadequate': 'hyperaemia possibly inadequate',
+  'cfr-below-one': 'CFR below 1',
+  'ffr-mismatch': 'entered FFR disagrees with the pressures',
+};
+
+const microWords: Record<NonNullable<Findings['microvascular']>, string> = {
+  structural: 'structural coronary microvascular dysfunction (low CFR, raised IMR)',
+  functional: 'functional coronary microvascular dysfunction (low CFR, IMR not raised)',
+  'raised-imr': 'raised microvascular resistance with preserved CFR',
+};
+const spasmWords = { epicardial: 'epicardial coronary spasm', microvascular: 'microvascular spasm' } as const;
+
+const microRank = { structural: 3, functional: 2, 'raised-imr': 1 } as const;
+
+export interface Classification {
+  findings: Findings;
+  endotype: Endotype;
+  headline: string;
+  reasons: string[];
+}
+
 /**
- * Study findings and endotype from the analysed vessels and the acetylcholine result.
- * Reasons: one sentence per rule that fired — per vessel, then acetylcholine, then the endotype.
+ * Study findings, endotype and headline from the analysed vessels and the acetylcholine result.
+ * Sets each vessel's `obstructive` and `judgedBy`. Reasons: one sentence per rule that fired — per
+ * vessel, then acetylcholine, then quality caveats, then the endotype.
  */
 export function classifyStudy(
   vessels: readonly VesselResult[],
@@ -48,108 +75,155 @@ export function classifyStudy(
   vaso: VasoreactivityResult | undefined,
   vasoReasons: readonly string[],
   ctx: Ctx,
-): { findings: Findings; endotype: Endotype; reasons: string[] } {
+): Classification {
   const t = ctx.t;
-  let obstructive = false;
   const obstructiveLabels: string[] = [];
-  let structural = false;
-  let functional = false;
+  const clearLabels: string[] = [];
+  let microvascular: Findings['microvascular'] = null;
   let borderlineCfr = false;
   let lowRrr = false;
   let lowMrr = false;
   let epicardialAssessed = false;
-  let microAssessed = false;
-  let imrMeasuredInFunctional = true;
+  let cfrMeasured = false;
+  let imrMeasured = false;
+  let functionalWithoutImr = false;
+  const caveats: string[] = [];
 
   const reasons: string[] = [];
   for (let i = 0; i < vessels.length; i++) {
     const v = vessels[i];
     const label = labels[i];
-    let vesselObstructive = false;
 
+    // Obstruction (COVADIS): a pressure index decides; without one, the visual stenosis.
+    const rest = restingIndex(v, t);
     if (v.ffr !== undefined && v.ffrFlag !== undefined) {
-      epicardialAssessed = true;
-      if (v.ffrFlag === 'abnormal') {
-        vesselObstructive = true;
-        reasons.push(label + ': FFR ' + ratio(v.ffr, t.ffr) + ctx.ffrAbnormal);
-        if (v.ffrGreyZone) reasons.push(label + ': FFR ' + ratio(v.ffr, t.ffr) + ctx.ffrGreyZone);
+      v.judgedBy = 'ffr';
+      v.obstructive = v.ffrFlag === 'abnormal';
+      if (v.obstructive) {
+        reasons.push(label + ': FFR ' + ratio(v.ffr) + ctx.ffrAbnormal);
+        if (v.ffrGreyZone) reasons.push(label + ': FFR ' + ratio(v.ffr) + ctx.ffrGreyZone);
       }
       // An entered resting ratio that disagrees with FFR: FFR decides.
-      if (v.nhprFlag !== undefined && v.nhprFlag !== v.ffrFlag) {
-        const rest = restingIndex(v, t) as RestingIndex;
+      if (v.nhprFlag !== undefined && v.nhprFlag !== v.ffrFlag && rest !== undefined) {
         const restSide = rest.flag === 'abnormal' ? 'at or below' : 'above';
         const ffrSide = v.ffrFlag === 'abnormal' ? 'at or below' : 'above';
         reasons.push(
-          `${label}: the ${rest.name} ${ratio(rest.value, rest.cut)} (${restSide} ${cutRatio(rest.cut)}, ${rest.src}) and FFR ${ratio(v.ffr, t.ffr)} (${ffrSide} ${ctx.ffrCut}) disagree; FFR decides the obstructive finding.`,
+          `${label}: the ${rest.name} ${ratio(rest.value)} (${restSide} ${cutRatio(rest.cut)}, ${rest.src}) and FFR ${ratio(v.ffr)} (${ffrSide} ${ctx.ffrCut}) disagree; FFR decides the obstructive finding.`,
         );
       }
-    } else {
-      const rest = restingIndex(v, t);
-      if (rest !== undefined) {
-        epicardialAssessed = true;
-        if (rest.flag === 'abnormal') {
-          vesselObstructive = true;
-          reasons.push(label + ': ' + rest.name + ' ' + ratio(rest.value, rest.cut) + ctx.restAbnormal[rest.key]);
-        }
-      }
+    } else if (rest !== undefined) {
+      v.judgedBy = rest.key === 'restingPdPa' ? 'resting-pd-pa' : 'nhpr';
+      v.obstructive = rest.flag === 'abnormal';
+      if (v.obstructive) reasons.push(label + ': ' + rest.name + ' ' + ratio(rest.value) + ctx.restAbnormal[rest.key]);
+    } else if (v.visualStenosisPct !== undefined) {
+      v.judgedBy = 'visual-stenosis';
+      v.obstructive = v.visualStenosisPct >= t.obstructiveStenosisPct;
+      if (v.obstructive) reasons.push(`${label}: visual stenosis ${cutPlain(v.visualStenosisPct)}%${ctx.stenosisObstructive}`);
     }
-    if (vesselObstructive) {
-      obstructive = true;
-      obstructiveLabels.push(label);
+    if (v.judgedBy !== undefined && v.judgedBy !== 'visual-stenosis') epicardialAssessed = true;
+    if (
+      v.judgedBy !== undefined &&
+      v.judgedBy !== 'visual-stenosis' &&
+      !v.obstructive &&
+      v.visualStenosisPct !== undefined &&
+      v.visualStenosisPct >= t.obstructiveStenosisPct
+    ) {
+      reasons.push(
+        `${label}: visual stenosis ${cutPlain(v.visualStenosisPct)}% is at or above ${ctx.stenosisCut}%, but the pressure index is above its cut-off; the pressure index decides (COVADIS), so the vessel is not obstructive.`,
+      );
     }
+    if (v.obstructive) obstructiveLabels.push(label);
+    else if (v.judgedBy !== undefined) clearLabels.push(label);
+    const obstructed = v.obstructive === true;
 
-    if (v.imr !== undefined || v.cfr !== undefined) microAssessed = true;
-    if (v.imr !== undefined && v.imrFlag === 'abnormal') {
-      if (!vesselObstructive) structural = true;
+    // Microvascular function, in vessels without an obstructive stenosis.
+    const cfrLow = v.cfrFlag === 'abnormal';
+    const imrHigh = v.imrFlag === 'abnormal';
+    if (!obstructed) {
+      if (v.cfr !== undefined) cfrMeasured = true;
+      if (v.imr !== undefined) imrMeasured = true;
+      const kind: Findings['microvascular'] = cfrLow && imrHigh ? 'structural' : cfrLow ? 'functional' : imrHigh ? 'raised-imr' : null;
+      if (kind !== null && (microvascular === null || microRank[kind] > microRank[microvascular])) microvascular = kind;
+      if (kind === 'functional' && v.imr === undefined) functionalWithoutImr = true;
+    }
+    if (v.imr !== undefined && imrHigh) {
       reasons.push(
         label +
           ': IMR ' +
-          fmt(v.imr, 1, t.imr) +
+          imrText(v.imr) +
+          ' U' +
           imrMethodName[v.imrMethod ?? 'pd-tmn'] +
-          (vesselObstructive ? ctx.imrAbnormalObstructed : ctx.imrAbnormal),
+          ctx.imrAbnormal +
+          (obstructed ? ctx.obstructedTail : cfrLow ? ' with impaired CFR (structural microvascular dysfunction).' : v.cfr !== undefined ? ' with CFR preserved — not structural dysfunction, which needs a low CFR as well.' : ' (CFR not measured).'),
       );
     }
     if (v.cfr !== undefined) {
-      if (v.cfrFlag === 'abnormal') {
-        if (!vesselObstructive) {
-          functional = true;
-          if (v.imr === undefined) imrMeasuredInFunctional = false;
-        }
+      if (cfrLow) {
         reasons.push(
-          label + ': CFR ' + ratio(v.cfr, t.cfr) + (vesselObstructive ? ctx.cfrAbnormalObstructed : ctx.cfrAbnormal),
+          label +
+            ': CFR ' +
+            ratio(v.cfr) +
+            ctx.cfrAbnormal +
+            (obstructed ? ctx.obstructedTail : imrHigh ? '.' : v.imr !== undefined ? ' with IMR not raised (functional microvascular dysfunction).' : '; IMR was not measured, so structural dysfunction cannot be told apart.'),
         );
       } else if (v.cfrFlag === 'borderline') {
-        if (!vesselObstructive) borderlineCfr = true;
+        if (!obstructed) borderlineCfr = true;
         reasons.push(label + ': CFR ' + ratio(v.cfr) + ctx.cfrBorderline);
       }
     }
     if (v.rrr !== undefined && v.rrrFlag === 'abnormal') {
-      if (!vesselObstructive) lowRrr = true;
-      reasons.push(label + ': RRR ' + ratio(v.rrr, t.rrr) + ctx.rrrAbnormal);
+      if (!obstructed) lowRrr = true;
+      reasons.push(label + ': RRR ' + ratio(v.rrr) + ctx.rrrAbnormal);
     }
     if (v.mrr !== undefined && v.mrrFlag === 'abnormal') {
-      if (!vesselObstructive) lowMrr = true;
-      reasons.push(label + ': MRR ' + ratio(v.mrr, t.mrr) + ctx.mrrAbnormal);
+      if (!obstructed) lowMrr = true;
+      reasons.push(label + ': MRR ' + ratio(v.mrr) + ctx.mrrAbnormal);
+    } else if (v.mrr !== undefined && v.mrrFlag === 'borderline') {
+      reasons.push(label + ': MRR ' + ratio(v.mrr) + ctx.mrrBorderline);
+    }
+
+    // A judged value that failed a quality check qualifies what is said about it.
+    const judged = v.judgedBy !== undefined || v.cfr !== undefined || v.imr !== undefined;
+    if (judged) {
+      const doubts = v.warnings.filter((w) => doubtfulQuality[w.code] !== undefined).map((w) => doubtfulQuality[w.code]);
+      if (doubts.length > 0) caveats.push(`${label} (${joinAnd([...new Set(doubts)])})`);
     }
   }
   for (let i = 0; i < vasoReasons.length; i++) reasons.push(vasoReasons[i]);
+  if (caveats.length > 0) {
+    reasons.push(
+      `Caution: ${joinAnd(caveats)} failed a quality check; the values and the findings drawn from them may be wrong — repeat the measurement or interpret with care.`,
+    );
+  }
 
-  const microvascular: Findings['microvascular'] = structural ? 'structural' : functional ? 'functional' : null;
+  const obstructive = obstructiveLabels.length > 0;
   const vr = vaso?.result;
   const vasospasm: Findings['vasospasm'] =
     vr === 'epicardial-spasm' ? 'epicardial' : vr === 'microvascular-spasm' ? 'microvascular' : null;
+  const endothelialDysfunction = vr === 'endothelial-dysfunction';
+
+  const coexisting: string[] = [];
+  if (microvascular !== null) coexisting.push(microWords[microvascular]);
+  if (vasospasm !== null) coexisting.push(spasmWords[vasospasm]);
+  if (endothelialDysfunction) coexisting.push('endothelial dysfunction');
+  if (vr === 'equivocal') coexisting.push('an equivocal acetylcholine test');
 
   let endotype: Endotype;
+  let headline: string;
   const cmdText =
     microvascular === 'structural'
-      ? `structural microvascular dysfunction, IMR at or above ${cutPlain(t.imr)}`
+      ? `structural microvascular dysfunction: CFR below ${cutRatio(t.cfr)} with IMR at or above ${cutPlain(t.imr)}`
       : microvascular === 'functional'
-        ? `functional microvascular dysfunction, CFR below ${cutRatio(t.cfr)} with IMR ${imrMeasuredInFunctional ? 'below the cut-off' : 'not measured'}`
-        : '';
+        ? `functional microvascular dysfunction: CFR below ${cutRatio(t.cfr)} with IMR ${functionalWithoutImr ? 'not measured' : 'below the cut-off'}`
+        : microvascular === 'raised-imr'
+          ? `raised microvascular resistance: IMR at or above ${cutPlain(t.imr)} with CFR not below ${cutRatio(t.cfr)}`
+          : '';
+  const withEd = endothelialDysfunction ? '; endothelial dysfunction on acetylcholine testing' : '';
   if (obstructive) {
     endotype = 'obstructive';
+    headline = `Obstructive coronary disease (${obstructiveLabels.join(', ')})${coexisting.length ? `, with ${joinAnd(coexisting)}` : ''}`;
     reasons.push(
-      `Endotype: obstructive — abnormal FFR or resting ratio in ${obstructiveLabels.join(', ')}; obstructive disease takes precedence over microvascular and vasospastic findings (EAPCI 2020).`,
+      `Endotype: obstructive — abnormal pressure index or obstructive stenosis in ${obstructiveLabels.join(', ')}${coexisting.length ? `; coexisting ${joinAnd(coexisting)} ${coexisting.length > 1 ? 'are' : 'is'} reported as well (ESC 2024)` : ''}.`,
     );
   } else if (microvascular !== null || vasospasm === 'microvascular') {
     const parts: string[] = [];
@@ -157,47 +231,64 @@ export function classifyStudy(
     if (vasospasm === 'microvascular') parts.push('microvascular spasm');
     if (vasospasm === 'epicardial') {
       endotype = 'mixed';
+      headline = `Microvascular and vasospastic angina: ${joinAnd([...(microvascular ? [microWords[microvascular]] : []), spasmWords.epicardial])}${withEd}`;
       reasons.push(
         `Endotype: mixed — microvascular angina (${parts.join('; ')}) together with epicardial spasm, with no obstructive stenosis (COVADIS; EAPCI 2020).`,
       );
     } else {
       endotype = 'microvascular-angina';
-      reasons.push(
-        `Endotype: microvascular angina (${parts.join('; ')}) with no obstructive stenosis (COVADIS; EAPCI 2020).`,
-      );
+      headline = `Microvascular angina: ${joinAnd([...(microvascular ? [microWords[microvascular]] : []), ...(vasospasm === 'microvascular' ? [spasmWords.microvascular] : [])])}${withEd}`;
+      reasons.push(`Endotype: microvascular angina (${parts.join('; ')}) with no obstructive stenosis (COVADIS; EAPCI 2020).`);
     }
   } else if (vasospasm === 'epicardial') {
     endotype = 'vasospastic-angina';
+    headline = `Vasospastic angina: epicardial coronary spasm${withEd}`;
     reasons.push(
       'Endotype: vasospastic angina — epicardial spasm with no obstructive stenosis and no microvascular dysfunction found (COVADIS; EAPCI 2020).',
     );
   } else {
     const missing: string[] = [];
     if (!epicardialAssessed) missing.push('an epicardial pressure index (FFR or a resting ratio)');
-    if (!microAssessed) missing.push('a microvascular index (CFR or IMR)');
+    if (!cfrMeasured) missing.push('CFR');
+    if (!imrMeasured) missing.push('IMR');
     if (vaso === undefined) missing.push('acetylcholine testing');
     const notes: string[] = [];
     if (borderlineCfr) notes.push('a borderline CFR');
     if (lowRrr) notes.push('a low RRR');
     if (lowMrr) notes.push('a low MRR');
-    if (vr === 'endothelial-dysfunction') notes.push('endothelial dysfunction');
-    const noted = notes.length > 0 ? `; ${notes.join(' and ')} ${notes.length > 1 ? 'were' : 'was'} noted but ${notes.length > 1 ? 'do' : 'does'} not define an endotype` : '';
-    if (missing.length === 0) {
+    const noted = notes.length > 0 ? `; ${joinAnd(notes)} ${notes.length > 1 ? 'were' : 'was'} noted but ${notes.length > 1 ? 'do' : 'does'} not define an endotype` : '';
+    if (missing.length === 0 && vr !== 'equivocal') {
       endotype = 'no-abnormality';
-      reasons.push(
-        `Endotype: no coronary abnormality — no obstructive stenosis, CFR and IMR within the lab's thresholds and no spasm on acetylcholine testing${noted} (EAPCI 2020).`,
-      );
+      if (endothelialDysfunction) {
+        headline = 'No obstructive disease, microvascular dysfunction or spasm; endothelial dysfunction on acetylcholine testing';
+        reasons.push(
+          `Endotype: no obstructive stenosis, CFR and IMR within the lab's thresholds and no spasm on acetylcholine testing, but endothelial dysfunction was found — reported as a finding, not spasm${noted} (EAPCI 2020; COVADIS).`,
+        );
+      } else {
+        headline = 'No coronary abnormality found';
+        reasons.push(
+          `Endotype: no coronary abnormality — no obstructive stenosis, CFR and IMR within the lab's thresholds and no spasm on acetylcholine testing${noted} (EAPCI 2020).`,
+        );
+      }
     } else {
       endotype = 'inconclusive';
-      reasons.push(
-        `Endotype: inconclusive — nothing abnormal was found, but ${joinAnd(missing)} ${missing.length > 1 ? 'were' : 'was'} not assessed${noted}.`,
-      );
+      const coronaryFunctionTested = cfrMeasured || imrMeasured || vaso !== undefined;
+      const why = [
+        ...(missing.length > 0 ? [`${joinAnd(missing)} ${missing.length > 1 ? 'were' : 'was'} not assessed`] : []),
+        ...(vr === 'equivocal' ? ['the acetylcholine test was equivocal'] : []),
+      ];
+      if (!coronaryFunctionTested) {
+        // A pressure-wire study of a lesion: speak of the lesions, not of an endotype.
+        headline =
+          clearLabels.length > 0
+            ? `No obstructive stenosis (${clearLabels.join(', ')})`
+            : 'Nothing to judge yet';
+      } else {
+        headline = `Endotype not determined: ${joinAnd(why)}${withEd}`;
+      }
+      reasons.push(`Endotype: inconclusive — nothing abnormal was found, but ${joinAnd(why)}${noted}.`);
     }
   }
-  return { findings: { obstructive, microvascular, endothelialDysfunction: vr === 'endothelial-dysfunction', vasospasm }, endotype, reasons };
-}
-
-function joinAnd(xs: string[]): string {
-  if (xs.length <= 1) return xs.join('');
-  return `${xs.slice(0, -1).join(', ')} and ${xs[xs.length - 1]}`;
+  if (caveats.length > 0) headline += ` — caution: quality check failed in ${caveats.map((c) => c.slice(0, c.indexOf(' ('))).join(', ')}`;
+  return { findings: { obstructive, microvascular, endothelialDysfunction, vasospasm }, endotype, headline, reasons };
 }

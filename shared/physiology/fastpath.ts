@@ -47,13 +47,15 @@ function okPressureSet(x: unknown): boolean {
     if (k !== 'pa' && k !== 'pd' && k !== 'tmn') return false;
     n++;
   }
-  if (!inRange(x.pa, MAX_PRESSURE) || !inRange(x.pd, MAX_PRESSURE)) return false;
+  // Explicit `undefined` members are left to the schema.
+  const hasPressures = x.pa !== undefined || x.pd !== undefined;
+  if (hasPressures && (!inRange(x.pa, MAX_PRESSURE) || !inRange(x.pd, MAX_PRESSURE))) return false;
   const tmn = x.tmn;
   if (tmn !== undefined) {
     if (!Array.isArray(tmn)) return false;
     for (let i = 0; i < tmn.length; i++) if (!inRange(tmn[i], MAX_TRANSIT)) return false;
-  } else if (n > 2) return false; // explicit `tmn: undefined` — leave it to the schema
-  return true;
+  }
+  return n === (hasPressures ? 2 : 0) + (tmn !== undefined ? 1 : 0);
 }
 
 function okVessel(x: unknown): boolean {
@@ -118,9 +120,26 @@ function okThresholds(x: unknown): boolean {
   for (const k in x) {
     if (!hasOwn.call(defaultThresholds, k)) return false;
     const v = x[k];
+    // A tolerance of 0 is valid but unusual: left to the schema, like anything else doubtful.
     if (typeof v !== 'number' || !(v > 0) || v === Infinity) return false;
     if (k === 'minInjections' && !Number.isInteger(v)) return false;
-    if ((k === 'spasmConstrictionPct' || k === 'endothelialDysfunctionPct') && v > 100) return false;
+    if ((k === 'spasmConstrictionPct' || k === 'endothelialDysfunctionPct' || k === 'obstructiveStenosisPct') && v > 100) return false;
+    if ((k === 'pdAbovePaToleranceMmHg' || k === 'hyperemicAboveRestingTolerance') && v > 20) return false;
+  }
+  return true;
+}
+
+function okProcedure(x: unknown): boolean {
+  if (!isPlainObject(x)) return false;
+  for (const k in x) {
+    const v = x[k];
+    if (k === 'hyperemicAgent') {
+      if (v !== 'adenosine' && v !== 'papaverine' && v !== 'other' && v !== 'none') return false;
+    } else if (k === 'hyperemicRoute') {
+      if (v !== 'intravenous' && v !== 'intracoronary') return false;
+    } else if (k === 'nitratesBeforeAcetylcholine') {
+      if (typeof v !== 'boolean') return false;
+    } else return false;
   }
   return true;
 }
@@ -148,7 +167,7 @@ function uniqueIds(vessels: readonly unknown[]): boolean {
 export function isCertainlyValid(x: unknown): x is PhysiologyOutput {
   if (!isPlainObject(x)) return false;
   for (const k in x) {
-    if (k !== 'vessels' && k !== 'vasoreactivity' && k !== 'thresholds') return false;
+    if (k !== 'vessels' && k !== 'vasoreactivity' && k !== 'thresholds' && k !== 'procedure') return false;
     if (x[k] === undefined) return false;
   }
   const vessels = x.vessels;
@@ -164,5 +183,6 @@ export function isCertainlyValid(x: unknown): x is PhysiologyOutput {
     for (let i = 0; i < doses.length; i++) if (!okDose(doses[i])) return false;
   }
   if (x.thresholds !== undefined && !okThresholds(x.thresholds)) return false;
+  if (x.procedure !== undefined && !okProcedure(x.procedure)) return false;
   return true;
 }

@@ -4,7 +4,10 @@ import { analyzeValidated } from './study';
 import type { PhysiologyResult } from './types';
 
 export { physiologyInputSchema, vesselCodes, nhprKinds } from './schema';
-export type { PhysiologyInput, PhysiologyOutput, VesselCode, NhprKind, VesselInput, DoseInput } from './schema';
+export type { PhysiologyInput, PhysiologyOutput, VesselCode, NhprKind, VesselInput, DoseInput, ProcedureInput } from './schema';
+export { hyperemicAgents, drugRoutes } from './schema';
+export { vesselShortName, vesselLongName, rightCoronaryVessels } from './vessels';
+export { roundForDisplay, formatQuantity, formatWithUnit, displayDecimals, displayUnit, type QuantityKind } from './precision';
 export {
   defaultThresholds,
   thresholdSources,

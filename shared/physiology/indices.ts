@@ -1,10 +1,12 @@
 import { above, atOrAbove, atOrBelow, below } from './compare';
-import type { VesselInput } from './schema';
+import { imrText, ratio } from './format';
+import type { ProcedureInput, VesselInput } from './schema';
 import type { Thresholds } from './thresholds';
 import type { Flag, PhysiologyWarning, VesselResult } from './types';
-import { ratio } from './format';
 import {
+  checkCfrBelowOne,
   checkDrift,
+  checkHyperemia,
   checkImplausible,
   checkInjections,
   checkMissingSide,
@@ -42,21 +44,29 @@ function mean(xs: readonly number[]): number {
   return s / xs.length;
 }
 
-const lowIsAbnormal = (v: number, cut: number): Flag => (atOrBelow(v, cut) ? 'abnormal' : 'normal');
+/** A ratio at or below its cut-off is abnormal, judged at the displayed precision. */
+const lowIsAbnormal = (v: number, cut: number): Flag => (atOrBelow(v, cut, 'ratio') ? 'abnormal' : 'normal');
 
 /** Compute every index, flag and quality warning for one vessel. `label` names the vessel in messages. */
-export function analyzeVessel(v: VesselInput, t: Thresholds, label: string): VesselResult {
+export function analyzeVessel(v: VesselInput, t: Thresholds, label: string, procedure?: ProcedureInput): VesselResult {
   const warnings: PhysiologyWarning[] = [];
   const out: VesselResult = { id: v.id, vessel: v.vessel, warnings };
   const rest = v.rest;
   const hyp = v.hyperemia;
+  const restPa = rest?.pa;
+  const restPd = rest?.pd;
+  const hypPa = hyp?.pa;
+  const hypPd = hyp?.pd;
+  const max = t.pdPaMaxPlausible;
+  /** A value above the plausible maximum gets a warning and no verdict (its flag is left out). */
+  const plausible = (value: number) => !above(value, max, 'ratio');
 
   // FFR: pressures win over the entered value.
   let ffr: number | undefined;
-  if (hyp !== undefined) {
-    ffr = hyp.pd / hyp.pa;
+  if (hypPa !== undefined && hypPd !== undefined) {
+    ffr = hypPd / hypPa;
     out.ffrSource = 'pressures';
-    if (v.ffr !== undefined && above(Math.abs(v.ffr - ffr), FFR_MISMATCH_TOLERANCE)) {
+    if (v.ffr !== undefined && Math.abs(v.ffr - ffr) > FFR_MISMATCH_TOLERANCE + 1e-9) {
       warnings.push({
         code: 'ffr-mismatch',
         message: `${label}: the entered FFR ${ratio(v.ffr)} differs from hyperaemic Pd/Pa ${ratio(ffr)} by more than ${FFR_MISMATCH_TOLERANCE.toFixed(2)}; the value from the pressures is used.`,
@@ -68,26 +78,30 @@ export function analyzeVessel(v: VesselInput, t: Thresholds, label: string): Ves
   }
   if (ffr !== undefined) {
     out.ffr = ffr;
-    const flag = lowIsAbnormal(ffr, t.ffr);
-    out.ffrFlag = flag;
-    if (flag === 'abnormal' && atOrAbove(ffr, t.ffrGreyZoneLow)) out.ffrGreyZone = true;
+    if (plausible(ffr)) {
+      const flag = lowIsAbnormal(ffr, t.ffr);
+      out.ffrFlag = flag;
+      if (flag === 'abnormal' && atOrAbove(ffr, t.ffrGreyZoneLow, 'ratio')) out.ffrGreyZone = true;
+    }
   }
 
   let restingPdPa: number | undefined;
-  if (rest !== undefined) {
-    restingPdPa = rest.pd / rest.pa;
+  if (restPa !== undefined && restPd !== undefined) {
+    restingPdPa = restPd / restPa;
     out.restingPdPa = restingPdPa;
-    out.restingPdPaFlag = lowIsAbnormal(restingPdPa, t.restingPdPa);
+    if (plausible(restingPdPa)) out.restingPdPaFlag = lowIsAbnormal(restingPdPa, t.restingPdPa);
   }
 
   const nhpr = v.nhpr;
   if (nhpr !== undefined) {
     out.nhpr = nhpr.value;
     out.nhprKind = nhpr.kind;
-    out.nhprFlag = lowIsAbnormal(nhpr.value, t[nhprCutoffKey(nhpr.kind)]);
+    if (plausible(nhpr.value)) out.nhprFlag = lowIsAbnormal(nhpr.value, t[nhprCutoffKey(nhpr.kind)]);
   }
 
-  // Thermodilution.
+  if (v.visualStenosisPct !== undefined) out.visualStenosisPct = v.visualStenosisPct;
+
+  // Thermodilution: transit times count whether or not pressures were entered in the same state.
   const tmnR = rest?.tmn !== undefined && rest.tmn.length > 0 ? rest.tmn : undefined;
   const tmnH = hyp?.tmn !== undefined && hyp.tmn.length > 0 ? hyp.tmn : undefined;
   // An empty list says thermodilution was meant but no injection was recorded: fewer than expected.
@@ -110,17 +124,18 @@ export function analyzeVessel(v: VesselInput, t: Thresholds, label: string): Ves
   if (tr !== undefined && th !== undefined) {
     cfr = tr / th;
     out.cfr = cfr;
-    out.cfrFlag = below(cfr, t.cfr)
+    out.cfrFlag = below(cfr, t.cfr, 'ratio')
       ? 'abnormal'
-      : below(cfr, Math.max(t.cfr, t.cfrBorderline))
+      : below(cfr, Math.max(t.cfr, t.cfrBorderline), 'ratio')
         ? 'borderline'
         : 'normal';
+    checkCfrBelowOne(cfr, label, warnings);
   }
 
-  // IMR (needs hyperaemic pressures and transit time; both present when tmnH is).
-  if (hyp !== undefined && th !== undefined) {
-    const pa = hyp.pa;
-    const pd = hyp.pd;
+  // IMR needs hyperaemic pressures and transit times.
+  if (hypPa !== undefined && hypPd !== undefined && th !== undefined) {
+    const pa = hypPa;
+    const pd = hypPd;
     const uncorrected = pd * th;
     out.imrUncorrected = uncorrected;
     let imr: number | undefined;
@@ -147,7 +162,7 @@ export function analyzeVessel(v: VesselInput, t: Thresholds, label: string): Ves
         correctionImpossible = true;
         warnings.push({
           code: 'imr-correction-invalid',
-          message: `${label}: hyperaemic Pd/Pa ${ratio(pd / pa)} is too low for the IMR correction without wedge pressure, so no IMR is reported (Pd × Tmn ${uncorrected.toFixed(1)} U overestimates it); measure the wedge pressure to correct it.`,
+          message: `${label}: hyperaemic Pd/Pa ${ratio(pd / pa)} is too low for the IMR correction without wedge pressure, so no IMR is reported (Pd × Tmn ${imrText(uncorrected)} U overestimates it); measure the wedge pressure to correct it.`,
         });
       }
     }
@@ -157,35 +172,43 @@ export function analyzeVessel(v: VesselInput, t: Thresholds, label: string): Ves
     }
     if (imr !== undefined) {
       out.imr = imr;
-      out.imrFlag = atOrAbove(imr, t.imr) ? 'abnormal' : 'normal';
+      out.imrFlag = atOrAbove(imr, t.imr, 'imr') ? 'abnormal' : 'normal';
     }
   }
 
-  if (cfr !== undefined && rest !== undefined && hyp !== undefined) {
-    const rrr = (cfr * rest.pd) / hyp.pd;
+  if (cfr !== undefined && restPd !== undefined && hypPd !== undefined) {
+    const rrr = (cfr * restPd) / hypPd;
     out.rrr = rrr;
-    out.rrrFlag = below(rrr, t.rrr) ? 'abnormal' : 'normal';
-    if (ffr !== undefined) {
-      const mrr = (cfr / ffr) * (rest.pa / hyp.pa);
-      out.mrr = mrr;
-      out.mrrFlag = below(mrr, t.mrr) ? 'abnormal' : 'normal';
-    }
+    out.rrrFlag = below(rrr, t.rrr, 'ratio') ? 'abnormal' : 'normal';
+  }
+  if (cfr !== undefined && ffr !== undefined && restPa !== undefined && hypPa !== undefined) {
+    const mrr = (cfr / ffr) * (restPa / hypPa);
+    out.mrr = mrr;
+    out.mrrMethod = 'bolus-thermodilution';
+    out.mrrFlag = below(mrr, t.mrr, 'ratio')
+      ? 'abnormal'
+      : atOrBelow(mrr, Math.max(t.mrr, t.mrrBorderline), 'ratio') && t.mrrBorderline > t.mrr
+        ? 'borderline'
+        : 'normal';
   }
 
   // Quality checks.
   checkMissingSide(tmnR !== undefined, tmnH !== undefined, label, warnings);
   if (v.driftPdPa !== undefined) checkDrift(v.driftPdPa, t, label, warnings);
-  if (rest !== undefined) checkPdAbovePa(rest.pd, rest.pa, 'rest', label, warnings);
-  if (hyp !== undefined) checkPdAbovePa(hyp.pd, hyp.pa, 'hyperaemia', label, warnings);
-  if (restingPdPa !== undefined && hyp !== undefined && above(hyp.pd / hyp.pa, restingPdPa)) {
-    warnings.push({
-      code: 'hyperemic-above-resting',
-      message: `${label}: hyperaemic Pd/Pa ${ratio(hyp.pd / hyp.pa)} is higher than resting Pd/Pa ${ratio(restingPdPa)}, which is physiologically unexpected; check hyperaemia and equalization.`,
-    });
+  if (restPa !== undefined && restPd !== undefined) checkPdAbovePa(restPd, restPa, 'rest', t, label, warnings);
+  if (hypPa !== undefined && hypPd !== undefined) checkPdAbovePa(hypPd, hypPa, 'hyperaemia', t, label, warnings);
+  if (restingPdPa !== undefined && hypPa !== undefined && hypPd !== undefined) {
+    const hypRatio = hypPd / hypPa;
+    if (hypRatio - restingPdPa > t.hyperemicAboveRestingTolerance + 1e-9) {
+      warnings.push({
+        code: 'hyperemic-above-resting',
+        message: `${label}: hyperaemic Pd/Pa ${ratio(hypRatio)} is higher than resting Pd/Pa ${ratio(restingPdPa)} by more than ${t.hyperemicAboveRestingTolerance.toFixed(2)}, which is physiologically unexpected; check hyperaemia and equalization.`,
+      });
+    }
   }
-  const max = t.pdPaMaxPlausible;
+  if (restPa !== undefined && hypPa !== undefined) checkHyperemia(restPa, hypPa, procedure, label, warnings);
   if (restingPdPa !== undefined) checkImplausible(restingPdPa, 'resting Pd/Pa', max, label, warnings);
-  if (hyp !== undefined) checkImplausible(hyp.pd / hyp.pa, 'hyperaemic Pd/Pa (FFR)', max, label, warnings);
+  if (hypPa !== undefined && hypPd !== undefined) checkImplausible(hypPd / hypPa, 'hyperaemic Pd/Pa (FFR)', max, label, warnings);
   if (v.ffr !== undefined) checkImplausible(v.ffr, 'entered FFR', max, label, warnings);
   if (nhpr !== undefined) checkImplausible(nhpr.value, `entered ${nhprName(nhpr.kind)}`, max, label, warnings);
 

@@ -1,6 +1,7 @@
 import { above, below } from './compare';
 import { cutRatio, ratio } from './format';
 import { cite, type Thresholds } from './thresholds';
+import type { ProcedureInput } from './schema';
 import type { PhysiologyWarning } from './types';
 
 type Phase = 'rest' | 'hyperaemia';
@@ -27,7 +28,7 @@ export function checkInjections(
   for (let i = 0; i < n; i++) {
     const x = tmn[i];
     const others = (sum - x) / (n - 1);
-    if (above(Math.abs(x - others), spread * others)) {
+    if (above(Math.abs(x - others), spread * others, 'raw')) {
       const pct = Math.round((Math.abs(x - others) / others) * 100);
       warnings.push({
         code: 'injection-spread',
@@ -56,8 +57,9 @@ export function checkMissingSide(
   }
 }
 
+/** The drift Pd/Pa is judged at its displayed precision, like every ratio. */
 export function checkDrift(drift: number, t: Thresholds, label: string, warnings: PhysiologyWarning[]): void {
-  if (below(drift, t.driftLow) || above(drift, t.driftHigh)) {
+  if (below(drift, t.driftLow, 'ratio') || above(drift, t.driftHigh, 'ratio')) {
     warnings.push({
       code: 'drift-out-of-range',
       message: `${label}: Pd/Pa at the guide tip after pull-back was ${ratio(drift)}, outside ${cutRatio(t.driftLow)}–${cutRatio(t.driftHigh)} (${cite(t, 'driftLow')}); sensor drift may have shifted the values — repeat the measurement.`,
@@ -65,17 +67,19 @@ export function checkDrift(drift: number, t: Thresholds, label: string, warnings
   }
 }
 
+/** Pd above Pa only beyond a tolerance (about the size of acceptable drift), so the warning stays meaningful. */
 export function checkPdAbovePa(
   pd: number,
   pa: number,
   phase: Phase,
+  t: Thresholds,
   label: string,
   warnings: PhysiologyWarning[],
 ): void {
-  if (pd > pa) {
+  if (pd - pa > t.pdAbovePaToleranceMmHg + 1e-9) {
     warnings.push({
       code: 'pd-above-pa',
-      message: `${label}: ${phase === 'rest' ? 'resting' : 'hyperaemic'} Pd ${pd} mmHg is above Pa ${pa} mmHg; check equalization, drift and the transducer height.`,
+      message: `${label}: ${phase === 'rest' ? 'resting' : 'hyperaemic'} Pd ${pd} mmHg is above Pa ${pa} mmHg by more than ${t.pdAbovePaToleranceMmHg} mmHg; check equalization, drift and the transducer height.`,
     });
   }
 }
@@ -87,10 +91,40 @@ export function checkImplausible(
   label: string,
   warnings: PhysiologyWarning[],
 ): void {
-  if (above(value, max)) {
+  if (above(value, max, 'ratio')) {
     warnings.push({
       code: 'pd-pa-implausible',
-      message: `${label}: ${what} ${ratio(value)} is above ${cutRatio(max)}, which is implausible; the value was accepted — check equalization and drift.`,
+      message: `${label}: ${what} ${ratio(value)} is above ${cutRatio(max)}, which is implausible, so it is given no verdict — check equalization and drift.`,
+    });
+  }
+}
+
+/** A hyperaemic transit time longer than the resting one (CFR below 1): most often the two sets were swapped. */
+export function checkCfrBelowOne(cfr: number, label: string, warnings: PhysiologyWarning[]): void {
+  if (below(cfr, 1, 'ratio')) {
+    warnings.push({
+      code: 'cfr-below-one',
+      message: `${label}: CFR ${ratio(cfr)} is below 1 — the hyperaemic transit times are longer than the resting ones; check that the two sets were not swapped.`,
+    });
+  }
+}
+
+/**
+ * Intravenous adenosine lowers the aortic pressure a little; no fall at all suggests the infusion did
+ * not reach hyperaemia (common practice).
+ */
+export function checkHyperemia(
+  restPa: number,
+  hypPa: number,
+  procedure: ProcedureInput | undefined,
+  label: string,
+  warnings: PhysiologyWarning[],
+): void {
+  if (procedure?.hyperemicAgent !== 'adenosine' || procedure.hyperemicRoute !== 'intravenous') return;
+  if (hypPa >= restPa) {
+    warnings.push({
+      code: 'hyperemia-inadequate',
+      message: `${label}: aortic pressure did not fall on intravenous adenosine (Pa ${restPa} mmHg at rest, ${hypPa} mmHg at hyperaemia); hyperaemia may have been inadequate, which would overestimate FFR and underestimate CFR.`,
     });
   }
 }

@@ -50,20 +50,53 @@ export const MAX_TRANSIT = 10; // s
 export const MAX_RATIO = 1.5; // Pd/Pa, FFR, resting ratios, drift
 export const MAX_MICROGRAMS = 1000; // acetylcholine bolus
 
+/**
+ * Mean pressures and transit times in one state. Pa and Pd go together (a ratio needs both); transit
+ * times stand on their own, since CFR needs only the transit times of both states.
+ */
 function pressureSet(phase: 'Resting' | 'Hyperaemic') {
-  return z.strictObject(
-    {
-      pa: bounded(`${phase} aortic pressure (Pa)`, 'mmHg', 'positive', MAX_PRESSURE),
-      pd: bounded(`${phase} distal coronary pressure (Pd)`, 'mmHg', 'positive', MAX_PRESSURE),
-      tmn: z
-        .array(bounded(`${phase} transit time (Tmn)`, 's', 'positive', MAX_TRANSIT), {
-          error: `${phase} transit times (Tmn) must be a list of numbers in seconds.`,
-        })
-        .optional(),
-    },
-    { error: strictMessage(`${phase.toLowerCase()} measurements`) },
-  );
+  return z
+    .strictObject(
+      {
+        pa: bounded(`${phase} aortic pressure (Pa)`, 'mmHg', 'positive', MAX_PRESSURE).optional(),
+        pd: bounded(`${phase} distal coronary pressure (Pd)`, 'mmHg', 'positive', MAX_PRESSURE).optional(),
+        tmn: z
+          .array(bounded(`${phase} transit time (Tmn)`, 's', 'positive', MAX_TRANSIT), {
+            error: `${phase} transit times (Tmn) must be a list of numbers in seconds.`,
+          })
+          .optional(),
+      },
+      { error: strictMessage(`${phase.toLowerCase()} measurements`) },
+    )
+    .superRefine((set, ctx) => {
+      if ((set.pa === undefined) !== (set.pd === undefined)) {
+        const missing = set.pa === undefined ? 'pa' : 'pd';
+        ctx.addIssue({
+          code: 'custom',
+          path: [missing],
+          message: `${phase} ${missing === 'pa' ? 'Pa' : 'Pd'} is missing: Pa and Pd are entered together.`,
+          input: set,
+        });
+      }
+    });
 }
+
+export const hyperemicAgents = ['adenosine', 'papaverine', 'other', 'none'] as const;
+export const drugRoutes = ['intravenous', 'intracoronary'] as const;
+
+/**
+ * Facts of the procedure that some quality checks need and the measurements do not carry: the
+ * hyperaemic agent and route (no fall in aortic pressure on intravenous adenosine suggests inadequate
+ * hyperaemia) and whether nitrates were given before acetylcholine (which can make it falsely negative).
+ */
+const procedureSchema = z.strictObject(
+  {
+    hyperemicAgent: z.enum(hyperemicAgents, { error: `Hyperaemic agent must be one of ${hyperemicAgents.join(', ')}.` }).optional(),
+    hyperemicRoute: z.enum(drugRoutes, { error: `Hyperaemic route must be one of ${drugRoutes.join(', ')}.` }).optional(),
+    nitratesBeforeAcetylcholine: z.boolean({ error: 'Nitrates before acetylcholine must be true or false.' }).optional(),
+  },
+  { error: strictMessage('the procedure') },
+);
 
 const nhprSchema = z.strictObject(
   {
@@ -118,6 +151,7 @@ export const physiologyInputSchema = z
         )
         .optional(),
       thresholds: thresholdsSchema.optional(),
+      procedure: procedureSchema.optional(),
     },
     { error: strictMessage('the physiology input') },
   )
@@ -142,3 +176,4 @@ export type PhysiologyInput = z.input<typeof physiologyInputSchema>;
 export type PhysiologyOutput = z.output<typeof physiologyInputSchema>;
 export type VesselInput = z.output<typeof vesselInputSchema>;
 export type DoseInput = z.output<typeof doseSchema>;
+export type ProcedureInput = z.output<typeof procedureSchema>;

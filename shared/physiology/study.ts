@@ -23,7 +23,7 @@ export function analyzeValidated(data: PhysiologyOutput): PhysiologyResult {
     const name = vesselName(v.vessel);
     const label = counts.get(v.vessel) === 1 ? name : `${name} (${v.id})`;
     labels.push(label);
-    vessels.push(analyzeVessel(v, t, label));
+    vessels.push(analyzeVessel(v, t, label, data.procedure));
   }
 
   const vasoReasons: string[] = [];
@@ -32,14 +32,14 @@ export function analyzeValidated(data: PhysiologyOutput): PhysiologyResult {
   let warnings: PhysiologyWarning[] = [];
   const doses = data.vasoreactivity?.doses;
   if (doses !== undefined && doses.length > 0) {
-    const analysed = analyzeVasoreactivity(doses, t, vasoReasons);
+    const analysed = analyzeVasoreactivity(doses, t, vasoReasons, data.procedure);
     vasoreactivity = { result: analysed.result };
     doseResults = analysed.doses;
     warnings = analysed.warnings;
   }
 
-  const { findings, endotype, reasons } = classifyStudy(vessels, labels, vasoreactivity, vasoReasons, ctx);
-  const result: PhysiologyResult = { vessels, findings, endotype, headline: endotype, reasons, warnings };
+  const { findings, endotype, headline, reasons } = classifyStudy(vessels, labels, vasoreactivity, vasoReasons, ctx);
+  const result: PhysiologyResult = { vessels, findings, endotype, headline, reasons, warnings };
   if (vasoreactivity !== undefined) {
     result.vasoreactivity = vasoreactivity;
     result.doseResults = doseResults;

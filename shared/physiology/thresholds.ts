@@ -25,6 +25,8 @@ export interface Thresholds {
   rrr: number;
   /** MRR abnormal when < value. */
   mrr: number;
+  /** MRR borderline when mrr ≥ the MRR cut-off and ≤ value (normal above it). */
+  mrrBorderline: number;
   /** Lower edge of the FFR grey zone (FFR from this value up to the FFR cut-off): a note only. */
   ffrGreyZoneLow: number;
   /** Drift check: Pd/Pa at the guide tip after pull-back should lie in [driftLow, driftHigh]. */
@@ -38,8 +40,16 @@ export interface Thresholds {
   spasmConstrictionPct: number;
   /** Constriction ≥ this percentage that is not spasm counts as endothelial dysfunction. */
   endothelialDysfunctionPct: number;
-  /** Acetylcholine bolus above this (µg) is accepted with a warning. */
+  /** Acetylcholine bolus into the left coronary above this (µg) is accepted with a warning. */
   achMaxMicrograms: number;
+  /** Acetylcholine bolus into the right coronary (RCA, PDA, PLB) above this (µg) is accepted with a warning. */
+  achMaxMicrogramsRight: number;
+  /** A vessel without a pressure index is obstructive at a visual diameter stenosis ≥ this (%). */
+  obstructiveStenosisPct: number;
+  /** Pd above Pa by more than this (mmHg) is warned about. */
+  pdAbovePaToleranceMmHg: number;
+  /** Hyperaemic Pd/Pa above resting Pd/Pa by more than this is warned about. */
+  hyperemicAboveRestingTolerance: number;
   /** Any Pd/Pa, FFR or resting ratio above this is accepted with a warning. */
   pdPaMaxPlausible: number;
 }
@@ -56,7 +66,8 @@ export const defaultThresholds: Readonly<Thresholds> = Object.freeze({
   cfrBorderline: 2.0,
   imr: 25,
   rrr: 2.0,
-  mrr: 2.7,
+  mrr: 2.1,
+  mrrBorderline: 2.7,
   ffrGreyZoneLow: 0.76,
   driftLow: 0.98,
   driftHigh: 1.02,
@@ -65,6 +76,10 @@ export const defaultThresholds: Readonly<Thresholds> = Object.freeze({
   spasmConstrictionPct: 90,
   endothelialDysfunctionPct: 20,
   achMaxMicrograms: 200,
+  achMaxMicrogramsRight: 50,
+  obstructiveStenosisPct: 50,
+  pdAbovePaToleranceMmHg: 2,
+  hyperemicAboveRestingTolerance: 0.02,
   pdPaMaxPlausible: 1.05,
 });
 
@@ -81,7 +96,9 @@ export const thresholdSources: Readonly<Record<ThresholdKey, string>> = Object.f
   cfrBorderline: 'off by default (same as the CFR cut-off); a lab may raise it to 2.5 — ESC 2024 chronic coronary syndromes guideline (< 2.5); COVADIS ≤ 2.0–2.5',
   imr: 'ESC 2024; EAPCI 2020; COVADIS writes > 25',
   rrr: '[memory: CorMicA] cut-off; formula from Lee et al., JAHA 2020',
-  mrr: 'ESC 2024 (cut-off); De Bruyne et al. 2021 (formula)',
+  mrr: 'de Vos et al., JACC Cardiovasc Imaging 2023 (continuous thermodilution: < 2.1 rules in); De Bruyne et al. 2021 (formula)',
+  mrrBorderline:
+    'de Vos et al., JACC Cardiovasc Imaging 2023 (continuous thermodilution: > 2.7 rules out); the cut-off for bolus thermodilution is not settled (ILIAS, EHJ 2023, found 3.0)',
   ffrGreyZoneLow: 'DEFER/FAME history, Interv Cardiol Rev 2016',
   driftLow:
     '[memory] 0.98–1.02 window; drift > 2 mmHg means repeat (interventional cardiology textbook; Cook et al., Circ Cardiovasc Interv 2016)',
@@ -90,8 +107,12 @@ export const thresholdSources: Readonly<Record<ThresholdKey, string>> = Object.f
   injectionSpread: '[memory] repeat an injection whose transit time differs from the others by more than ~30%',
   minInjections: '[memory] three injections at rest and three at hyperaemia',
   spasmConstrictionPct: 'COVADIS (Beltrame et al., EHJ 2017; Ong et al., IJC 2018); ESC 2024',
-  endothelialDysfunctionPct: '[memory] constriction of 20% or more without spasm criteria',
+  endothelialDysfunctionPct: 'COVADIS classification of acetylcholine responses (Beltrame et al., EHJ 2017; Ong et al., IJC 2018) as the lab applies it; the 20% figure [memory]',
   achMaxMicrograms: 'ESC 2024 protocol figure (2, 20, 100, 200 µg into the left coronary)',
+  achMaxMicrogramsRight: 'Japanese Circulation Society 2016 (20, 50 µg into the right coronary); ESC 2024',
+  obstructiveStenosisPct: 'COVADIS (Ong et al., Int J Cardiol 2018): non-obstructive is < 50% diameter stenosis or FFR > 0.80',
+  pdAbovePaToleranceMmHg: '[practice] about 2 mmHg, the usual drift allowance',
+  hyperemicAboveRestingTolerance: '[practice] resting ratios by different methods differ by 0.01–0.02',
   pdPaMaxPlausible: '[practice] Pd/Pa reads 1.00 after equalizing; well above 1 suggests drift or a pressure error',
 });
 
@@ -105,17 +126,22 @@ export const thresholdCitations: Readonly<Record<ThresholdKey, string>> = Object
   cfr: 'EAPCI 2020',
   cfrBorderline: 'ESC 2024',
   imr: 'ESC 2024; EAPCI 2020',
-  rrr: 'from memory: CorMicA',
-  mrr: 'ESC 2024',
+  rrr: 'lab setting',
+  mrr: 'de Vos 2023',
+  mrrBorderline: 'de Vos 2023',
   ffrGreyZoneLow: 'DEFER/FAME',
-  driftLow: 'from memory',
-  driftHigh: 'from memory',
-  injectionSpread: 'from memory',
-  minInjections: 'from memory',
+  driftLow: 'lab setting',
+  driftHigh: 'lab setting',
+  injectionSpread: 'lab setting',
+  minInjections: 'lab setting',
   spasmConstrictionPct: 'COVADIS; ESC 2024',
-  endothelialDysfunctionPct: 'from memory',
+  endothelialDysfunctionPct: 'lab setting',
   achMaxMicrograms: 'ESC 2024 protocol',
-  pdPaMaxPlausible: 'common practice',
+  achMaxMicrogramsRight: 'JCS 2016',
+  obstructiveStenosisPct: 'COVADIS',
+  pdAbovePaToleranceMmHg: 'lab setting',
+  hyperemicAboveRestingTolerance: 'lab setting',
+  pdPaMaxPlausible: 'lab setting',
 });
 
 const thresholdLabels: Record<ThresholdKey, [label: string, unit: string]> = {
@@ -129,6 +155,7 @@ const thresholdLabels: Record<ThresholdKey, [label: string, unit: string]> = {
   imr: ['IMR cut-off', 'U (mmHg·s)'],
   rrr: ['RRR cut-off', '(ratio)'],
   mrr: ['MRR cut-off', '(ratio)'],
+  mrrBorderline: ['MRR borderline upper limit', '(ratio)'],
   ffrGreyZoneLow: ['FFR grey-zone lower limit', '(ratio)'],
   driftLow: ['Drift lower limit', '(ratio)'],
   driftHigh: ['Drift upper limit', '(ratio)'],
@@ -136,17 +163,23 @@ const thresholdLabels: Record<ThresholdKey, [label: string, unit: string]> = {
   minInjections: ['Minimum injections', '(count)'],
   spasmConstrictionPct: ['Spasm constriction', '%'],
   endothelialDysfunctionPct: ['Endothelial dysfunction constriction', '%'],
-  achMaxMicrograms: ['Acetylcholine maximum dose', 'µg'],
+  achMaxMicrograms: ['Acetylcholine maximum dose, left coronary', 'µg'],
+  achMaxMicrogramsRight: ['Acetylcholine maximum dose, right coronary', 'µg'],
+  obstructiveStenosisPct: ['Obstructive visual stenosis', '%'],
+  pdAbovePaToleranceMmHg: ['Pd above Pa tolerance', 'mmHg'],
+  hyperemicAboveRestingTolerance: ['Hyperaemic above resting tolerance', '(ratio)'],
   pdPaMaxPlausible: ['Maximum plausible Pd/Pa', '(ratio)'],
 };
 
 function thresholdValue(key: ThresholdKey) {
   const [label, unit] = thresholdLabels[key];
-  let s = z
-    .number({ error: `${label} must be a finite number ${unit}.` })
-    .gt(0, { error: `${label} must be greater than 0 ${unit}.` });
+  const tolerance = key === 'pdAbovePaToleranceMmHg' || key === 'hyperemicAboveRestingTolerance';
+  const finite = z.number({ error: `${label} must be a finite number ${unit}.` });
+  let s = tolerance
+    ? finite.gte(0, { error: `${label} must be 0 ${unit} or more.` }).lte(20, { error: `${label} must be at most 20 ${unit}.` })
+    : finite.gt(0, { error: `${label} must be greater than 0 ${unit}.` });
   if (key === 'minInjections') s = s.int({ error: `${label} must be a whole number ${unit}.` });
-  if (key === 'spasmConstrictionPct' || key === 'endothelialDysfunctionPct') {
+  if (key === 'spasmConstrictionPct' || key === 'endothelialDysfunctionPct' || key === 'obstructiveStenosisPct') {
     s = s.lte(100, { error: `${label} must be at most 100 %.` });
   }
   return s.optional();

@@ -1,8 +1,9 @@
 import { above, atOrAbove } from './compare';
-import { cutPlain, vesselName } from './format';
-import type { DoseInput } from './schema';
+import { cutPlain } from './format';
+import type { DoseInput, ProcedureInput } from './schema';
 import { cite, type Thresholds } from './thresholds';
 import type { DoseResult, PhysiologyWarning, VasoreactivityOutcome } from './types';
+import { rightCoronaryVessels, vesselShortName } from './vessels';
 
 /** The study's outcome, each dose's, and the warnings about the doses. */
 export interface VasoreactivityAnalysis {
@@ -11,6 +12,7 @@ export interface VasoreactivityAnalysis {
   warnings: PhysiologyWarning[];
 }
 
+/** The study's result is its most severe dose; a suspected (equivocal) spasm outranks endothelial dysfunction. */
 const severity: Record<VasoreactivityOutcome, number> = {
   negative: 0,
   'endothelial-dysfunction': 1,
@@ -19,18 +21,32 @@ const severity: Record<VasoreactivityOutcome, number> = {
   'epicardial-spasm': 4,
 };
 
-/** COVADIS classification of one acetylcholine dose. */
+/**
+ * COVADIS classification of one acetylcholine dose (Beltrame et al., EHJ 2017; Ong et al., IJC 2018):
+ *
+ * | constriction            | symptoms + ischaemic ECG | one of the two | neither                 |
+ * |-------------------------|--------------------------|----------------|-------------------------|
+ * | ≥ spasm cut-off (90%)   | epicardial spasm         | equivocal      | equivocal               |
+ * | ≥ endothelial (20%)     | microvascular spasm      | equivocal      | endothelial dysfunction |
+ * | below                   | microvascular spasm      | equivocal      | negative                |
+ */
 export function classifyDose(d: DoseInput, t: Thresholds): VasoreactivityOutcome {
-  const severe = atOrAbove(d.constrictionPct, t.spasmConstrictionPct);
+  const severe = atOrAbove(d.constrictionPct, t.spasmConstrictionPct, 'raw');
   const both = d.symptoms && d.ischemicEcg;
-  if (severe && both) return 'epicardial-spasm';
-  if (both) return 'microvascular-spasm';
-  if (severe || atOrAbove(d.constrictionPct, t.endothelialDysfunctionPct)) return 'endothelial-dysfunction';
-  return 'negative';
+  const one = d.symptoms !== d.ischemicEcg;
+  if (both) return severe ? 'epicardial-spasm' : 'microvascular-spasm';
+  if (one || severe) return 'equivocal';
+  return atOrAbove(d.constrictionPct, t.endothelialDysfunctionPct, 'raw') ? 'endothelial-dysfunction' : 'negative';
 }
 
 function doseName(d: DoseInput): string {
-  return `${cutPlain(d.micrograms)} µg into the ${vesselName(d.vessel)}`;
+  return `${cutPlain(d.micrograms)} µg into the ${vesselShortName[d.vessel]}`;
+}
+
+function criteriaSeen(d: DoseInput): string {
+  if (d.symptoms && !d.ischemicEcg) return 'reproduced symptoms without ischaemic ECG changes';
+  if (!d.symptoms && d.ischemicEcg) return 'ischaemic ECG changes without reproduced symptoms';
+  return 'neither reproduced symptoms nor ischaemic ECG changes';
 }
 
 /** Classify every dose; the study result is the most severe. `reasons` receives one sentence. */
@@ -38,6 +54,7 @@ export function analyzeVasoreactivity(
   doses: readonly DoseInput[],
   t: Thresholds,
   reasons: string[],
+  procedure?: ProcedureInput,
 ): VasoreactivityAnalysis {
   const warnings: PhysiologyWarning[] = [];
   const out: DoseResult[] = [];
@@ -53,24 +70,35 @@ export function analyzeVasoreactivity(
       worstIdx = i;
     }
     if (d.constrictionPct > maxPct) maxPct = d.constrictionPct;
-    if (above(d.micrograms, t.achMaxMicrograms)) {
+    const right = rightCoronaryVessels.has(d.vessel);
+    const ceiling = right ? t.achMaxMicrogramsRight : t.achMaxMicrograms;
+    if (above(d.micrograms, ceiling, 'raw')) {
       warnings.push({
         code: 'ach-dose-high',
-        message: `Acetylcholine dose ${i + 1} (${doseName(d)}) is above the usual maximum of ${cutPlain(t.achMaxMicrograms)} µg (${cite(t, 'achMaxMicrograms')}); accepted — check the entry.`,
+        message: right
+          ? `Acetylcholine dose ${i + 1} (${doseName(d)}) is above the usual ceiling of ${cutPlain(ceiling)} µg for the right coronary (${cite(t, 'achMaxMicrogramsRight')}; ESC 2024 warns of bradycardia); accepted — check the entry.`
+          : `Acetylcholine dose ${i + 1} (${doseName(d)}) is above the usual maximum of ${cutPlain(ceiling)} µg (${cite(t, 'achMaxMicrograms')}); accepted — check the entry.`,
       });
     }
-    if (outcome === 'endothelial-dysfunction' && atOrAbove(d.constrictionPct, t.spasmConstrictionPct)) {
-      const missing = !d.symptoms && !d.ischemicEcg ? 'symptoms and ischaemic ECG changes' : !d.symptoms ? 'reproduction of symptoms' : 'ischaemic ECG changes';
+    if (outcome === 'equivocal') {
       warnings.push({
         code: 'spasm-criteria-not-met',
-        message: `Acetylcholine dose ${i + 1} (${doseName(d)}): ${cutPlain(d.constrictionPct)}% constriction without ${missing} does not meet the COVADIS criteria for epicardial spasm; classed as endothelial dysfunction.`,
+        message: `Acetylcholine dose ${i + 1} (${doseName(d)}): ${cutPlain(d.constrictionPct)}% constriction with ${criteriaSeen(d)} meets only part of the COVADIS criteria for spasm — equivocal (suspected, not proven).`,
       });
     }
+  }
+  if (procedure?.nitratesBeforeAcetylcholine === true && doses.length > 0) {
+    warnings.push({
+      code: 'nitrates-before-acetylcholine',
+      message:
+        'Nitrates were given before the acetylcholine test; they relieve spasm and can make the test falsely negative (ESC 2024 protocol: nitroglycerin after acetylcholine, nitrates stopped 24 h before).',
+    });
   }
 
   const d = doses[worstIdx];
   const src = cite(t, 'spasmConstrictionPct');
   const spasmPct = cutPlain(t.spasmConstrictionPct);
+  const edPct = cutPlain(t.endothelialDysfunctionPct);
   switch (worst) {
     case 'epicardial-spasm':
       reasons.push(
@@ -82,14 +110,19 @@ export function analyzeVasoreactivity(
         `Acetylcholine ${doseName(d)}: reproduced symptoms and ischaemic ECG changes with ${cutPlain(d.constrictionPct)}% constriction (below ${spasmPct}%) — microvascular spasm (${src}).`,
       );
       break;
+    case 'equivocal':
+      reasons.push(
+        `Acetylcholine ${doseName(d)}: ${cutPlain(d.constrictionPct)}% constriction with ${criteriaSeen(d)} — equivocal: part of the criteria for spasm, not all (${src}).`,
+      );
+      break;
     case 'endothelial-dysfunction':
       reasons.push(
-        `Acetylcholine ${doseName(d)}: ${cutPlain(d.constrictionPct)}% constriction without the criteria for spasm is at or above ${cutPlain(t.endothelialDysfunctionPct)}% (${cite(t, 'endothelialDysfunctionPct')}) — endothelial dysfunction, not spasm (${src}).`,
+        `Acetylcholine ${doseName(d)}: ${cutPlain(d.constrictionPct)}% constriction without symptoms or ischaemic ECG changes, at or above ${edPct}% (${cite(t, 'endothelialDysfunctionPct')}) — endothelial dysfunction, not spasm (${src}).`,
       );
       break;
     default:
       reasons.push(
-        `Acetylcholine testing was negative: maximum constriction ${cutPlain(maxPct)}% (below ${cutPlain(t.endothelialDysfunctionPct)}%, ${cite(t, 'endothelialDysfunctionPct')}) and no dose reproduced symptoms together with ischaemic ECG changes (${src}).`,
+        `Acetylcholine testing was negative: maximum constriction ${cutPlain(maxPct)}% (below ${edPct}%, ${cite(t, 'endothelialDysfunctionPct')}) and no dose reproduced symptoms or ischaemic ECG changes (${src}).`,
       );
   }
   return { result: worst, doses: out, warnings };

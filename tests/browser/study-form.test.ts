@@ -63,7 +63,7 @@ describe('the structured study form on a phone', () => {
       const restPa = visible(page, 'vessel-0-rest-pa');
       expect(await restPa.getAttribute('inputmode')).toBe('decimal');
       expect(await restPa.getAttribute('aria-label')).toBe('Pa in mmHg');
-      // Case A of the domain brief (hand-computed from its formulas): CFR 0.90 / 0.30 = 3.00, IMR 72 × 0.30 = 21.6,
+      // Hand-computed from the published formulas (CFR = Tmn rest / Tmn hyp, EAPCI 2020; IMR = Pd × Tmn, Yong et al.): CFR 0.90 / 0.30 = 3.00, IMR 72 × 0.30 = 21.6,
       // corrected without wedge 20.52 because FFR 72/90 = 0.80 is abnormal (≤ 0.80, ESC 2024).
       await restPa.fill('100');
       await visible(page, 'vessel-0-rest-pd').fill('95');
@@ -146,7 +146,7 @@ describe('the structured study form on a phone', () => {
       await visible(page, 'section-vessels').click();
       await visible(page, 'add-vessel').click();
       await visible(page, 'add-vessel-LAD').click();
-      // Hand-computed from the formulas in the domain brief: FFR 80/90 = 0.89 (normal, > 0.80, ESC 2024);
+      // Hand-computed from the published formulas: FFR 80/90 = 0.89 (normal, > 0.80, ESC 2024);
       // CFR 0.80 / 0.50 = 1.60 (abnormal, < 2.0, EAPCI 2020); IMR 80 × 0.50 = 40 (abnormal, ≥ 25, ESC 2024).
       const fill = async (id: string, v: string) => visible(page, id).fill(v);
       await fill('vessel-0-rest-pa', '95');

@@ -76,7 +76,7 @@ describe('PATCH /api/studies/:id', () => {
     const [{ n }] = await db.query(`SELECT count(*)::int AS n FROM thermodilution_injection WHERE vessel_assessment_id = $1`, [vessel.id]);
     expect(n).toBe(6);
     const analysis = await api().get(`/api/studies/${study.id}/analysis`).set('Cookie', physician).expect(200);
-    // Case A of the domain brief, hand-computed from its formulas: FFR 72/90 = 0.80 (abnormal at ≤ 0.80, ESC 2024).
+    // Hand-computed from the published formula (FFR = Pd/Pa at hyperaemia, Pijls et al., NEJM 1996): FFR 72/90 = 0.80 (abnormal at ≤ 0.80, ESC 2024).
     expect(analysis.body.analysis.vessels[0].ffr).toBeCloseTo(0.8, 10);
     expect(analysis.body.analysis.vessels[0].ffrFlag).toBe('abnormal');
     expect(analysis.body.analysis.vessels[0].cfr).toBeCloseTo(0.9 / 0.3, 2);

@@ -16,7 +16,7 @@ const SRC = {
 
 const three = (x: number) => [x, x, x];
 
-// Building blocks (values hand-computed from the brief's formulas).
+// Building blocks (values hand-computed from the published formulas: CFR = Tmn rest / Tmn hyp, IMR = Pd × Tmn — EAPCI 2020).
 /** FFR 0.90, CFR 3.0, IMR 27 × 0.3 … chosen per case below. */
 function vessel(id: string, opts: { ffrPd?: number; cfr?: number; imrTmn?: number; vessel?: VesselIn['vessel'] } = {}): VesselIn {
   const hypTmn = opts.imrTmn ?? 0.2; // IMR = 90 × Tmn (FFR 0.90 → Pd × Tmn): 0.2 → 18 (normal), 0.4 → 36 (abnormal)

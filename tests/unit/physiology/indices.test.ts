@@ -10,14 +10,15 @@ import {
 type VesselIn = PhysiologyInput['vessels'][number];
 
 const SRC = {
-  caseA: 'hand-computed from the formulas in the domain brief §1 (check case A; not from a paper)',
+  precision: 'common practice: an index is judged at the precision it is displayed and reported (ratios 2 decimals, IMR whole number)',
+  caseA: 'hand-computed from the published formulas (FFR = Pd/Pa, Pijls et al., NEJM 1996; CFR = Tmn rest / Tmn hyp, EAPCI 2020; IMR with the Yong correction, Yong et al.; RRR, Lee et al., JAHA 2020; MRR, De Bruyne et al. 2021) — not a worked example from a paper',
   ffr: 'ESC 2024 chronic coronary syndromes guideline; EAPCI 2020; FAME (FFR ≤ 0.80)',
   grey: 'DEFER/FAME history, Interv Cardiol Rev 2016 (grey zone 0.76–0.80)',
   restPdPa: 'CONTRAST (whole-cycle resting Pd/Pa ≤ 0.91)',
   diastolic: 'DEFINE-FLAIR and the SWEDEHEART-based trial, 2017; EAPCI 2020 (≤ 0.89)',
   fullCycle: 'validation studies summarised in an Open Heart review; EAPCI 2020 (≤ 0.89)',
   cfr: 'EAPCI 2020 (thermodilution CFR < 2.0)',
-  cfrBand: 'EAPCI 2020 (< 2.0 for thermodilution); the brief lets a lab set the cut-off within 2.0–2.5 (ESC 2024 uses < 2.5)',
+  cfrBand: 'EAPCI 2020 (< 2.0 for thermodilution); COVADIS allows ≤ 2.0–2.5, so a lab may set the cut-off within that range (ESC 2024 uses < 2.5)',
   imr: 'ESC 2024; EAPCI 2020 (IMR ≥ 25)',
   imrFormula: 'hand-computed from the formula IMR = Pd × Tmn (ESC 2024; EAPCI 2020)',
   wedge: 'hand-computed from the formula in Layland et al., Heart 2012',
@@ -35,7 +36,7 @@ function one(v: Partial<VesselIn>, extra: Partial<PhysiologyInput> = {}): Vessel
 }
 
 describe('check case A', () => {
-  // Source: hand-computed from the formulas in the domain brief §1 (check case A; not from a paper).
+  // Source: hand-computed from the published formulas (FFR = Pd/Pa, Pijls et al., NEJM 1996; CFR = Tmn rest / Tmn hyp, EAPCI 2020; IMR with the Yong correction, Yong et al.; RRR, Lee et al., JAHA 2020; MRR, De Bruyne et al. 2021) — not a worked example from a paper.
   const r = analyzeStudy({
     vessels: [
       {
@@ -72,7 +73,7 @@ describe('check case A', () => {
     expect(v.rrrFlag).toBe('normal');
     expect(v.mrrFlag).toBe('normal');
     expect(v.warnings).toEqual([]);
-    expect(r.findings).toEqual({ obstructive: true, microvascular: null, vasospasm: null });
+    expect(r.findings).toEqual({ obstructive: true, microvascular: null, endothelialDysfunction: false, vasospasm: null });
     expect(r.endotype).toBe('obstructive');
   });
 
@@ -214,9 +215,12 @@ describe('CFR', () => {
 });
 
 describe('IMR', () => {
-  // Pa 110 keeps FFR normal (> 0.80), so IMR = Pd × Tmn.
+  // Pa 110 keeps FFR normal (> 0.80), so IMR = Pd × Tmn. IMR is judged as the whole number it is
+  // reported as (common practice: a flag never contradicts the printed value): 24.49 → 24, 24.9 → 25.
   it.each([
-    { pd: 99.6, imr: 24.9, flag: 'normal' },
+    { pd: 97.96, imr: 24.49, flag: 'normal' },
+    { pd: 98, imr: 24.5, flag: 'abnormal' },
+    { pd: 99.6, imr: 24.9, flag: 'abnormal' },
     { pd: 100, imr: 25, flag: 'abnormal' },
     { pd: 100.4, imr: 25.1, flag: 'abnormal' },
   ])(`Pd $pd × Tmn 0.25 → IMR $imr $flag (pd-tmn) — ${SRC.imrFormula}; ${SRC.imr}`, ({ pd, imr, flag }) => {
@@ -227,9 +231,9 @@ describe('IMR', () => {
     expect(v.imrFlag).toBe(flag);
   });
 
-  it(`Pd 83 × Tmn 0.3 = 24.9 is normal, with the mean of three 0.3 s injections — ${SRC.imrFormula}`, () => {
-    const v = one({ hyperemia: { pa: 100, pd: 83, tmn: three(0.3) } });
-    expect(v.imr).toBeCloseTo(24.9, 10);
+  it(`Pd 81 × Tmn 0.3 = 24.3 is normal, with the mean of three 0.3 s injections — ${SRC.imrFormula}`, () => {
+    const v = one({ hyperemia: { pa: 100, pd: 81, tmn: three(0.3) } });
+    expect(v.imr).toBeCloseTo(24.3, 10);
     expect(v.imrFlag).toBe('normal');
   });
 
@@ -254,13 +258,16 @@ describe('IMR', () => {
     expect(v.imr).toBeCloseTo(27, 3);
   });
 
-  it(`corrected without wedge when FFR ≤ 0.80: Pa 100, Pd 60, Tmn 0.5 → 50 × (0.81 − 0.32) = 24.5 — ${SRC.yong}`, () => {
+  it(`corrected without wedge when FFR ≤ 0.80: Pa 100, Pd 60, Tmn 0.5 → 50 × (0.81 − 0.32) = 24.5, reported 25 — ${SRC.yong}`, () => {
     const v = one({ hyperemia: { pa: 100, pd: 60, tmn: three(0.5) } });
     expect(v.ffrFlag).toBe('abnormal');
     expect(v.imrMethod).toBe('yong');
     expect(v.imr).toBeCloseTo(24.5, 10);
-    expect(v.imrFlag).toBe('normal');
+    expect(v.imrFlag).toBe('abnormal');
     expect(v.imrUncorrected).toBeCloseTo(30, 10);
+    const lower = one({ hyperemia: { pa: 100, pd: 60, tmn: three(0.4) } }); // 40 × 0.49 = 19.6 → 20
+    expect(lower.imr).toBeCloseTo(19.6, 10);
+    expect(lower.imrFlag).toBe('normal');
   });
 
   it(`FFR exactly 0.80 takes the correction; 0.81 does not — ${SRC.yong}; ${SRC.ffr}`, () => {
@@ -292,10 +299,14 @@ describe('RRR and MRR', () => {
     expect(v.rrrFlag).toBe(flag);
   });
 
-  // CFR 2.0, FFR 0.80 → CFR/FFR 2.5; MRR = 2.5 × Pa rest / Pa hyp (Pa hyp 100).
+  // CFR 2.0, FFR 0.80 → CFR/FFR 2.5; MRR = 2.5 × Pa rest / Pa hyp (Pa hyp 100). Cut-offs from continuous
+  // thermodilution (de Vos et al., JACC Cardiovasc Imaging 2023): < 2.1 rules in, > 2.7 rules out, between
+  // is borderline (the bolus cut-off is not settled).
   it.each([
-    { restPa: 107.6, mrr: 2.69, flag: 'abnormal' },
-    { restPa: 108, mrr: 2.7, flag: 'normal' },
+    { restPa: 83.6, mrr: 2.09, flag: 'abnormal' },
+    { restPa: 84, mrr: 2.1, flag: 'borderline' },
+    { restPa: 107.6, mrr: 2.69, flag: 'borderline' },
+    { restPa: 108, mrr: 2.7, flag: 'borderline' },
     { restPa: 108.4, mrr: 2.71, flag: 'normal' },
   ])(`MRR: (2.0 / 0.80) × Pa $restPa / 100 = $mrr → $flag — ${SRC.mrr}`, ({ restPa, mrr, flag }) => {
     const v = one({
@@ -314,7 +325,7 @@ describe('RRR and MRR', () => {
 });
 
 describe('thresholds', () => {
-  it(`every default carries a source, marked [memory]/[practice] where the brief does — ${SRC.practice}`, () => {
+  it(`every default carries a source, marked [memory]/[practice] where it is recalled or common practice — ${SRC.practice}`, () => {
     for (const k of Object.keys(defaultThresholds) as Array<keyof typeof defaultThresholds>) {
       expect(thresholdSources[k], k).toMatch(/\S/);
     }
@@ -355,14 +366,24 @@ describe('thresholds', () => {
     );
   });
 
-  it(`a value that would print as the cut-off without being it gets one more decimal — ${SRC.practice}`, () => {
-    const r = analyzeStudy({
+  it(`flags are judged at the displayed precision, so the flag agrees with the printed value — ${SRC.precision}`, () => {
+    // CFR 0.998 / 0.5 = 1.996, shown 2.00: not below the 2.00 cut-off.
+    const cfr = analyzeStudy({
       vessels: [{ id: 'v', vessel: 'LAD', rest: { pa: 100, pd: 95, tmn: three(0.998) }, hyperemia: { pa: 100, pd: 90, tmn: three(0.5) } }],
-    });
-    expect(r.reasons).toContain('LAD: CFR 1.996 is below the 2.00 cut-off (EAPCI 2020) — impaired coronary flow reserve.');
+    }).vessels[0];
+    expect(cfr.cfr).toBeCloseTo(1.996, 10);
+    expect(cfr.cfrFlag).toBe('normal');
+    // CFR 0.9975 / 0.5 = 1.995 rounds half away to 2.00 as well; 0.997 / 0.5 = 1.994 → 1.99, abnormal.
+    const cfr2 = one({ rest: { pa: 100, pd: 95, tmn: three(0.9975) }, hyperemia: { pa: 100, pd: 90, tmn: three(0.5) } });
+    expect(cfr2.cfrFlag).toBe('normal');
+    const cfr3 = one({ rest: { pa: 100, pd: 95, tmn: three(0.997) }, hyperemia: { pa: 100, pd: 90, tmn: three(0.5) } });
+    expect(cfr3.cfrFlag).toBe('abnormal');
+    // FFR 79.6 / 100 = 0.796 is shown 0.80 and judged 0.80: abnormal, and the sentence prints 0.80.
     const r2 = analyzeStudy({ vessels: [{ id: 'v', vessel: 'LAD', hyperemia: { pa: 100, pd: 79.6 } }] });
-    expect(r2.reasons[0]).toMatch(/^LAD: FFR 0\.796 is at or below the 0\.80 cut-off/);
-    const r3 = analyzeStudy({ vessels: [{ id: 'v', vessel: 'LAD', hyperemia: { pa: 100, pd: 80 } }] });
-    expect(r3.reasons[0]).toMatch(/^LAD: FFR 0\.80 is at or below/);
+    expect(r2.vessels[0].ffr).toBeCloseTo(0.796, 10);
+    expect(r2.reasons[0]).toMatch(/^LAD: FFR 0\.80 is at or below the 0\.80 cut-off/);
+    // FFR 80.5 / 100 = 0.805 is shown 0.81: normal.
+    expect(one({ hyperemia: { pa: 100, pd: 80.5 } }).ffrFlag).toBe('normal');
+    expect(one({ hyperemia: { pa: 100, pd: 80.4 } }).ffrFlag).toBe('abnormal');
   });
 });

@@ -4,7 +4,7 @@ import { analyzeStudy, physiologyInputSchema, vesselCodes, type PhysiologyInput 
 import { isCertainlyValid } from '../../../shared/physiology/fastpath';
 import { analyzeValidated } from '../../../shared/physiology/study';
 
-// Property-based checks. Sources: the formulas and cut-offs in the domain brief §1 (monotone by
+// Property-based checks. Sources: the published formulas and cut-offs (EAPCI 2020; ESC 2024) (monotone by
 // construction: FFR ≤ cut-off, IMR ≥ cut-off); the input limits are common practice.
 
 type VesselIn = PhysiologyInput['vessels'][number];

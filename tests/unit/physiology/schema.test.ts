@@ -7,7 +7,7 @@ const SRC = {
   transit: 'common practice: thermodilution transit times are positive and never above 10 s',
   ratio: 'common practice: a pressure ratio is positive; above 1.5 is impossible',
   wedge: 'Layland et al., Heart 2012 (wedge pressure measured during balloon occlusion, ≥ 0 mmHg)',
-  contract: 'the analyzeStudy contract (shared/design/contracts.md)',
+  contract: 'the analyzeStudy contract: inputs validated by its exported zod schema (common practice)',
   ach: 'ESC 2024 protocol figure (doses in µg); COVADIS (constriction in %)',
   practice: 'common practice',
 };
