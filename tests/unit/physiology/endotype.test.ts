@@ -45,7 +45,7 @@ describe('endotypes', () => {
       vessels: [vessel('lad', { ffrPd: 75, cfr: 1.5, imrTmn: 0.4 })],
       doses: epicardialSpasm,
       endotype: 'obstructive',
-      findings: { obstructive: true, microvascular: null, vasospasm: 'epicardial' },
+      findings: { obstructive: true, microvascular: null, endothelialDysfunction: false, vasospasm: 'epicardial' },
       source: `${SRC.endotypes}; ${SRC.ffr}`,
     },
     {
@@ -53,7 +53,7 @@ describe('endotypes', () => {
       vessels: [{ id: 'rca', vessel: 'RCA', nhpr: { kind: 'diastolic', value: 0.85 } } as VesselIn],
       doses: undefined,
       endotype: 'obstructive',
-      findings: { obstructive: true, microvascular: null, vasospasm: null },
+      findings: { obstructive: true, microvascular: null, endothelialDysfunction: false, vasospasm: null},
       source: `${SRC.endotypes}; ${SRC.nhpr}`,
     },
     {
@@ -61,7 +61,7 @@ describe('endotypes', () => {
       vessels: [{ id: 'rca', vessel: 'RCA', rest: { pa: 100, pd: 88 } } as VesselIn],
       doses: undefined,
       endotype: 'obstructive',
-      findings: { obstructive: true, microvascular: null, vasospasm: null },
+      findings: { obstructive: true, microvascular: null, endothelialDysfunction: false, vasospasm: null},
       source: `${SRC.endotypes}; CONTRAST (whole-cycle Pd/Pa ≤ 0.91)`,
     },
     {
@@ -69,15 +69,15 @@ describe('endotypes', () => {
       vessels: [vessel('lad', { imrTmn: 0.4, cfr: 1.5 })],
       doses: negativeAch,
       endotype: 'microvascular-angina',
-      findings: { obstructive: false, microvascular: 'structural', vasospasm: null },
+      findings: { obstructive: false, microvascular: 'structural', endothelialDysfunction: false, vasospasm: null},
       source: `${SRC.endotypes}; ${SRC.imr}`,
     },
     {
-      name: 'microvascular angina, structural with normal CFR',
+      name: 'microvascular angina, raised IMR with preserved CFR',
       vessels: [vessel('lad', { imrTmn: 0.4, cfr: 3.0 })],
       doses: negativeAch,
       endotype: 'microvascular-angina',
-      findings: { obstructive: false, microvascular: 'structural', vasospasm: null },
+      findings: { obstructive: false, microvascular: 'raised-imr', endothelialDysfunction: false, vasospasm: null},
       source: `${SRC.endotypes}; ${SRC.imr}`,
     },
     {
@@ -85,7 +85,7 @@ describe('endotypes', () => {
       vessels: [vessel('lad', { cfr: 1.5 })],
       doses: negativeAch,
       endotype: 'microvascular-angina',
-      findings: { obstructive: false, microvascular: 'functional', vasospasm: null },
+      findings: { obstructive: false, microvascular: 'functional', endothelialDysfunction: false, vasospasm: null},
       source: `${SRC.endotypes}; ${SRC.cfr}`,
     },
     {
@@ -93,7 +93,7 @@ describe('endotypes', () => {
       vessels: [normalVessel()],
       doses: microSpasm,
       endotype: 'microvascular-angina',
-      findings: { obstructive: false, microvascular: null, vasospasm: 'microvascular' },
+      findings: { obstructive: false, microvascular: null, endothelialDysfunction: false, vasospasm: 'microvascular'},
       source: SRC.covadis,
     },
     {
@@ -101,7 +101,7 @@ describe('endotypes', () => {
       vessels: [vessel('lad', { cfr: 1.5 })],
       doses: microSpasm,
       endotype: 'microvascular-angina',
-      findings: { obstructive: false, microvascular: 'functional', vasospasm: 'microvascular' },
+      findings: { obstructive: false, microvascular: 'functional', endothelialDysfunction: false, vasospasm: 'microvascular'},
       source: SRC.covadis,
     },
     {
@@ -109,7 +109,7 @@ describe('endotypes', () => {
       vessels: [vessel('lad', { cfr: 1.5 })],
       doses: epicardialSpasm,
       endotype: 'mixed',
-      findings: { obstructive: false, microvascular: 'functional', vasospasm: 'epicardial' },
+      findings: { obstructive: false, microvascular: 'functional', endothelialDysfunction: false, vasospasm: 'epicardial'},
       source: SRC.endotypes,
     },
     {
@@ -117,7 +117,7 @@ describe('endotypes', () => {
       vessels: [normalVessel()],
       doses: epicardialSpasm,
       endotype: 'vasospastic-angina',
-      findings: { obstructive: false, microvascular: null, vasospasm: 'epicardial' },
+      findings: { obstructive: false, microvascular: null, endothelialDysfunction: false, vasospasm: 'epicardial'},
       source: `${SRC.endotypes}; ${SRC.covadis}`,
     },
     {
@@ -125,7 +125,7 @@ describe('endotypes', () => {
       vessels: [],
       doses: epicardialSpasm,
       endotype: 'vasospastic-angina',
-      findings: { obstructive: false, microvascular: null, vasospasm: 'epicardial' },
+      findings: { obstructive: false, microvascular: null, endothelialDysfunction: false, vasospasm: 'epicardial'},
       source: SRC.endotypes,
     },
     {
@@ -133,7 +133,7 @@ describe('endotypes', () => {
       vessels: [normalVessel()],
       doses: negativeAch,
       endotype: 'no-abnormality',
-      findings: { obstructive: false, microvascular: null, vasospasm: null },
+      findings: { obstructive: false, microvascular: null, endothelialDysfunction: false, vasospasm: null},
       source: SRC.endotypes,
     },
     {
@@ -141,7 +141,7 @@ describe('endotypes', () => {
       vessels: [normalVessel()],
       doses: endothelial,
       endotype: 'no-abnormality',
-      findings: { obstructive: false, microvascular: null, vasospasm: null },
+      findings: { obstructive: false, microvascular: null, endothelialDysfunction: true, vasospasm: null},
       source: `${SRC.endotypes}; ${SRC.covadis} (endothelial dysfunction is not spasm)`,
     },
     {
@@ -149,7 +149,7 @@ describe('endotypes', () => {
       vessels: [vessel('lad', { cfr: 2.2 })],
       doses: negativeAch,
       endotype: 'no-abnormality',
-      findings: { obstructive: false, microvascular: null, vasospasm: null },
+      findings: { obstructive: false, microvascular: null, endothelialDysfunction: false, vasospasm: null},
       source: `${SRC.endotypes}; ${SRC.cfr} (borderline alone is not CMD)`,
     },
     {
@@ -157,7 +157,7 @@ describe('endotypes', () => {
       vessels: [normalVessel()],
       doses: undefined,
       endotype: 'inconclusive',
-      findings: { obstructive: false, microvascular: null, vasospasm: null },
+      findings: { obstructive: false, microvascular: null, endothelialDysfunction: false, vasospasm: null},
       source: SRC.endotypes,
     },
     {
@@ -165,7 +165,7 @@ describe('endotypes', () => {
       vessels: [{ id: 'lad', vessel: 'LAD', hyperemia: { pa: 100, pd: 90 } } as VesselIn],
       doses: negativeAch,
       endotype: 'inconclusive',
-      findings: { obstructive: false, microvascular: null, vasospasm: null },
+      findings: { obstructive: false, microvascular: null, endothelialDysfunction: false, vasospasm: null},
       source: SRC.endotypes,
     },
     {
@@ -173,7 +173,7 @@ describe('endotypes', () => {
       vessels: [],
       doses: undefined,
       endotype: 'inconclusive',
-      findings: { obstructive: false, microvascular: null, vasospasm: null },
+      findings: { obstructive: false, microvascular: null, endothelialDysfunction: false, vasospasm: null},
       source: SRC.endotypes,
     },
   ] as const)('$name — $source', ({ vessels, doses, endotype, findings }) => {
@@ -202,7 +202,7 @@ describe('findings rules', () => {
   it(`CMD in an obstructed vessel does not count; another vessel's CMD does — ${SRC.covadis}`, () => {
     const obstructedWithCmd = vessel('lad', { ffrPd: 75, imrTmn: 0.6, cfr: 1.5 });
     const r1 = study([obstructedWithCmd, normalVessel('lcx', 'LCX')], negativeAch);
-    expect(r1.findings).toEqual({ obstructive: true, microvascular: null, vasospasm: null });
+    expect(r1.findings).toEqual({ obstructive: true, microvascular: null, endothelialDysfunction: false, vasospasm: null });
     expect(r1.reasons.some((s) => s.includes('not used for the microvascular finding'))).toBe(true);
     const r2 = study([obstructedWithCmd, vessel('lcx', { vessel: 'LCX', cfr: 1.5 })], negativeAch);
     expect(r2.findings.microvascular).toBe('functional');
@@ -210,8 +210,11 @@ describe('findings rules', () => {
   });
 
   it(`structural in any vessel outranks functional in another — ${SRC.endotypes}`, () => {
-    const r = study([vessel('lad', { cfr: 1.5 }), vessel('lcx', { vessel: 'LCX', imrTmn: 0.4 })], negativeAch);
+    const r = study([vessel('lad', { cfr: 1.5 }), vessel('lcx', { vessel: 'LCX', imrTmn: 0.4, cfr: 1.5 })], negativeAch);
     expect(r.findings.microvascular).toBe('structural');
+    // Low CFR elsewhere outranks a raised IMR with preserved CFR.
+    const r2 = study([vessel('lad', { cfr: 1.5 }), vessel('lcx', { vessel: 'LCX', imrTmn: 0.4 })], negativeAch);
+    expect(r2.findings.microvascular).toBe('functional');
   });
 
   it(`borderline CFR (a lab's band up to 2.5) adds a reason sentence — ${SRC.cfr}`, () => {
@@ -223,7 +226,7 @@ describe('findings rules', () => {
   it(`inconclusive names what was not assessed — ${SRC.endotypes}`, () => {
     const r = study([]);
     expect(r.reasons).toEqual([
-      'Endotype: inconclusive — nothing abnormal was found, but an epicardial pressure index (FFR or a resting ratio), a microvascular index (CFR or IMR) and acetylcholine testing were not assessed.',
+      'Endotype: inconclusive — nothing abnormal was found, but an epicardial pressure index (FFR or a resting ratio), CFR, IMR and acetylcholine testing were not assessed.',
     ]);
     expect(study([normalVessel()]).reasons.at(-1)).toBe(
       'Endotype: inconclusive — nothing abnormal was found, but acetylcholine testing was not assessed.',
@@ -233,15 +236,87 @@ describe('findings rules', () => {
   it(`reason sentences: one per rule that fired, values rounded only in the text — ${SRC.practice}`, () => {
     const r = study([vessel('lad', { imrTmn: 0.4, cfr: 1.5 })], negativeAch);
     expect(r.reasons).toEqual([
-      'LAD: IMR 36.0 (Pd × Tmn) is at or above the 25 cut-off (ESC 2024; EAPCI 2020) — raised microvascular resistance (structural microvascular dysfunction).',
+      'LAD: IMR 36 U (Pd × Tmn) is at or above the 25 cut-off (ESC 2024; EAPCI 2020) — raised microvascular resistance with impaired CFR (structural microvascular dysfunction).',
       'LAD: CFR 1.50 is below the 2.00 cut-off (EAPCI 2020) — impaired coronary flow reserve.',
-      'LAD: RRR 1.62 is below the 2.00 cut-off (from memory: CorMicA) — reduced resistive reserve.',
-      'LAD: MRR 1.67 is below the 2.70 cut-off (ESC 2024) — reduced microvascular resistance reserve.',
-      'Acetylcholine testing was negative: maximum constriction 10% (below 20%, from memory) and no dose reproduced symptoms together with ischaemic ECG changes (COVADIS; ESC 2024).',
-      'Endotype: microvascular angina (structural microvascular dysfunction, IMR at or above 25) with no obstructive stenosis (COVADIS; EAPCI 2020).',
+      'LAD: RRR 1.62 is below the 2.00 cut-off (lab setting) — reduced resistive reserve.',
+      'LAD: MRR 1.67 is below the 2.10 cut-off — reduced microvascular resistance reserve; MRR here comes from bolus thermodilution, while its cut-offs were set with continuous thermodilution (de Vos 2023); the bolus cut-off is not settled.',
+      'Acetylcholine testing was negative: maximum constriction 10% (below 20%, lab setting) and no dose reproduced symptoms or ischaemic ECG changes (COVADIS; ESC 2024).',
+      'Endotype: microvascular angina (structural microvascular dysfunction: CFR below 2.00 with IMR at or above 25) with no obstructive stenosis (COVADIS; EAPCI 2020).',
     ]);
     expect(r.vessels[0].imr).toBeCloseTo(36, 10);
     expect(r.vessels[0].rrr).toBeCloseTo((1.5 * 97) / 90, 10);
     expect(r.vessels[0].mrr).toBeCloseTo(1.5 / 0.9, 10);
+  });
+});
+
+describe('what "no abnormality" needs, and what the headline says', () => {
+  it(`CFR alone or IMR alone normal is not enough for "no abnormality" — EAPCI 2020 (Kunadian et al., EHJ 2020) consensus on INOCA`, () => {
+    const cfrOnly = { id: 'lad', vessel: 'LAD', rest: { pa: 100, pd: 97, tmn: three(0.6) }, hyperemia: { pa: 100, pd: 90 } } as VesselIn;
+    // CFR from transit times alone: rest Tmn without hyperaemic Tmn gives no CFR, so add hyperaemic Tmn but no hyperaemic pressures → no IMR.
+    const cfrNoImr = { id: 'lad', vessel: 'LAD', rest: { tmn: three(0.6) }, hyperemia: { tmn: three(0.2) }, nhpr: { kind: 'diastolic', value: 0.95 } } as VesselIn;
+    const r1 = study([cfrNoImr], negativeAch);
+    expect(r1.vessels[0].cfr).toBeCloseTo(3, 10);
+    expect(r1.vessels[0].imr).toBeUndefined();
+    expect(r1.endotype).toBe('inconclusive');
+    expect(r1.reasons.at(-1)).toContain('IMR was not assessed');
+    const r2 = study([cfrOnly], negativeAch);
+    expect(r2.endotype).toBe('inconclusive');
+    expect(r2.reasons.at(-1)).toContain('CFR');
+  });
+
+  it(`an equivocal acetylcholine test leaves the endotype open — COVADIS (Beltrame et al., EHJ 2017)`, () => {
+    const equivocal: Dose[] = [{ vessel: 'LAD', micrograms: 100, constrictionPct: 95, symptoms: false, ischemicEcg: false }];
+    const r = study([normalVessel()], equivocal);
+    expect(r.vasoreactivity?.result).toBe('equivocal');
+    expect(r.endotype).toBe('inconclusive');
+    expect(r.headline).toContain('equivocal');
+  });
+
+  it(`endothelial dysfunction is named in the headline, not hidden under "no abnormality" — EAPCI 2020; COVADIS`, () => {
+    const r = study([normalVessel()], endothelial);
+    expect(r.findings.endothelialDysfunction).toBe(true);
+    expect(r.headline).toBe('No obstructive disease, microvascular dysfunction or spasm; endothelial dysfunction on acetylcholine testing');
+  });
+
+  it(`coexisting findings all appear in an obstructive headline — ESC 2024 chronic coronary syndromes`, () => {
+    const r = study([vessel('lad', { ffrPd: 75 }), vessel('lcx', { vessel: 'LCX', cfr: 1.5 })], epicardialSpasm);
+    expect(r.endotype).toBe('obstructive');
+    expect(r.headline).toBe(
+      'Obstructive coronary disease (LAD), with functional coronary microvascular dysfunction (low CFR, IMR not raised) and epicardial coronary spasm',
+    );
+  });
+});
+
+describe('visual stenosis (COVADIS: non-obstructive means < 50% diameter stenosis or FFR > 0.80 — Ong et al., Int J Cardiol 2018)', () => {
+  it('a vessel without a pressure index and ≥ 50% stenosis is obstructive', () => {
+    const r = study([{ id: 'rca', vessel: 'RCA', visualStenosisPct: 50 } as VesselIn, normalVessel()], negativeAch);
+    expect(r.vessels[0].obstructive).toBe(true);
+    expect(r.vessels[0].judgedBy).toBe('visual-stenosis');
+    expect(r.endotype).toBe('obstructive');
+  });
+  it('49% without a pressure index is not obstructive', () => {
+    const r = study([{ id: 'rca', vessel: 'RCA', visualStenosisPct: 49 } as VesselIn, normalVessel()], negativeAch);
+    expect(r.vessels[0].obstructive).toBe(false);
+    expect(r.findings.obstructive).toBe(false);
+  });
+  it('a pressure index above its cut-off decides over a ≥ 50% visual stenosis', () => {
+    const r = study([{ ...normalVessel(), visualStenosisPct: 70 }], negativeAch);
+    expect(r.vessels[0].judgedBy).toBe('ffr');
+    expect(r.vessels[0].obstructive).toBe(false);
+    expect(r.reasons.some((s) => s.includes('the pressure index decides'))).toBe(true);
+  });
+});
+
+describe('quality caveats reach the headline — common practice (a value that failed its quality check is not reported unqualified)', () => {
+  it('a drift outside the window qualifies an obstructive FFR', () => {
+    const v = { ...vessel('lad', { ffrPd: 75 }), driftPdPa: 0.95 } as VesselIn;
+    const r = study([v], negativeAch);
+    expect(r.vessels[0].warnings.map((w) => w.code)).toContain('drift-out-of-range');
+    expect(r.headline).toMatch(/caution: quality check failed in LAD$/);
+  });
+  it('a plain pressure study of a lesion speaks of the lesion, not of an endotype', () => {
+    const r = study([{ id: 'lad', vessel: 'LAD', hyperemia: { pa: 100, pd: 86 } } as VesselIn]);
+    expect(r.headline).toBe('No obstructive stenosis (LAD)');
+    expect(study([]).headline).toBe('Nothing to judge yet');
   });
 });

@@ -38,6 +38,8 @@ describe('a clean measurement has no warnings', () => {
 describe('drift-out-of-range', () => {
   it.each([
     { drift: 0.97, warn: true },
+    { drift: 0.9749, warn: true }, // shown 0.97
+    { drift: 0.975, warn: false }, // shown 0.98: judged at the displayed precision
     { drift: 0.98, warn: false },
     { drift: 1.0, warn: false },
     { drift: 1.02, warn: false },
