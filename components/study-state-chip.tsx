@@ -1,16 +1,18 @@
 import { StyleSheet, View } from 'react-native';
 import { Text } from './ui/text';
+import { studyStateLabel, type StudyState } from '../shared/study/vocabulary';
 import { color, radius, space } from './theme';
 
 /** A study's state in words with a symbol, so it reads without colour. */
-const look = {
-  draft: { label: 'Draft', symbol: '○', fg: color.inkMuted, bg: color.surfaceSunken },
-  'awaiting-signature': { label: 'Awaiting signature', symbol: '◐', fg: color.borderline, bg: color.borderlineSoft },
-  signed: { label: 'Signed', symbol: '●', fg: color.normal, bg: color.normalSoft },
-  amended: { label: 'Amended', symbol: '◆', fg: color.brand, bg: color.brandSoft },
-} as const;
+const look: Record<StudyState, { label: string; symbol: string; fg: string; bg: string }> = {
+  draft: { label: studyStateLabel.draft, symbol: '○', fg: color.inkMuted, bg: color.surfaceSunken },
+  'awaiting-signature': { label: studyStateLabel['awaiting-signature'], symbol: '◐', fg: color.borderline, bg: color.borderlineSoft },
+  signed: { label: studyStateLabel.signed, symbol: '●', fg: color.normal, bg: color.normalSoft },
+  amending: { label: studyStateLabel.amending, symbol: '◇', fg: color.brand, bg: color.brandSoft },
+  amended: { label: studyStateLabel.amended, symbol: '◆', fg: color.brand, bg: color.brandSoft },
+};
 
-export function StudyStateChip({ state }: { state: keyof typeof look }) {
+export function StudyStateChip({ state }: { state: StudyState }) {
   const l = look[state] ?? look.draft;
   return (
     <View style={[styles.chip, { backgroundColor: l.bg }]} accessibilityLabel={`State: ${l.label}`}>

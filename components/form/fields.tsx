@@ -4,6 +4,7 @@ import { useController, useFormContext } from 'react-hook-form';
 import { Text } from '../ui/text';
 import { color, font, radius, space, touchTarget, type } from '../theme';
 import { parseNumberText } from './parse-number';
+import { roundHalfAway } from '../../shared/physiology/precision';
 
 interface FieldProps {
   name: string;
@@ -38,12 +39,23 @@ export function FieldShell({ label, error, hint, children, testID }: { label: st
 }
 
 /** A number with its unit beside it and the numeric keyboard; empty means "not recorded". */
-export function NumberField({ name, label, unit, testID, hint, integer = false }: FieldProps & { unit?: string; integer?: boolean }) {
+export function NumberField({
+  name,
+  label,
+  unit,
+  testID,
+  hint,
+  integer = false,
+  decimals,
+  accessibleLabel,
+}: FieldProps & { unit?: string; integer?: boolean; decimals?: number; accessibleLabel?: string }) {
+  // A stored value is shown at the index's display precision ("0.60", not "0.6").
+  const show = (v: unknown) => (v == null ? '' : decimals !== undefined && typeof v === 'number' ? roundHalfAway(v, decimals).toFixed(decimals) : String(v));
   const { control, setError, clearErrors } = useFormContext();
   const { field, fieldState } = useController({ name, control });
   const isBad = (v: unknown) => typeof v === 'number' && Number.isNaN(v);
   // NaN comes back from a draft when the text typed was not a number: shown empty, with its error.
-  const [text, setText] = useState(field.value == null || isBad(field.value) ? '' : String(field.value));
+  const [text, setText] = useState(field.value == null || isBad(field.value) ? '' : show(field.value));
   const [badText, setBadText] = useState(isBad(field.value));
 
   // Follow the value when it changes from outside (a reload or a merge), not while typing.
@@ -51,7 +63,7 @@ export function NumberField({ name, label, unit, testID, hint, integer = false }
     if (typeof field.value === 'number' && Number.isNaN(field.value)) return; // our own placeholder for bad text
     const parsed = parseNumberText(text);
     if (!parsed.ok || parsed.value !== field.value) {
-      setText(field.value == null ? '' : String(field.value));
+      setText(show(field.value));
       setBadText(false);
     }
     // eslint-disable-next-line react-hooks/exhaustive-deps
@@ -63,7 +75,7 @@ export function NumberField({ name, label, unit, testID, hint, integer = false }
       <View style={[styles.inputRow, error ? styles.inputError : null]}>
         <TextInput
           testID={testID}
-          accessibilityLabel={unit ? `${label} in ${unit}` : label}
+          accessibilityLabel={unit ? `${accessibleLabel ?? label} in ${unit}` : (accessibleLabel ?? label)}
           aria-invalid={!!error}
           aria-describedby={error || hint ? fieldIds(testID).help : undefined}
           value={text}
@@ -149,6 +161,46 @@ export function ChoiceField<T extends string | number | boolean>({ name, label, 
             >
               <Text variant="caption" weight={selected ? 'semibold' : 'regular'} tone={selected && !quietSelected ? 'onBrand' : quietSelected ? 'muted' : 'ink'}>
                 {selected ? '✓ ' : ''}
+                {o.label}
+              </Text>
+            </Pressable>
+          );
+        })}
+      </View>
+    </FieldShell>
+  );
+}
+
+/**
+ * Several choices from a short list, as checkbox chips (Space toggles the focused one). An exclusive
+ * option ("None") clears the others when chosen and is cleared when another is chosen.
+ */
+export function MultiChoiceField<T extends string>({ name, label, testID, hint, options, exclusive }: FieldProps & { options: Option<T>[]; exclusive?: T }) {
+  const { control } = useFormContext();
+  const { field, fieldState } = useController({ name, control });
+  const chosen: T[] = Array.isArray(field.value) ? field.value : [];
+  const toggle = (value: T) => {
+    if (chosen.includes(value)) return field.onChange(chosen.filter((v) => v !== value));
+    if (value === exclusive) return field.onChange([value]);
+    field.onChange([...chosen.filter((v) => v !== exclusive), value]);
+  };
+  return (
+    <FieldShell label={label} error={fieldState.error?.message} hint={hint} testID={testID}>
+      <View style={styles.chips} role="group" aria-labelledby={fieldIds(testID).label} aria-describedby={fieldState.error || hint ? fieldIds(testID).help : undefined}>
+        {options.map((o) => {
+          const selected = chosen.includes(o.value);
+          return (
+            <Pressable
+              key={o.value}
+              testID={`${testID}-${o.value}`}
+              role="checkbox"
+              aria-checked={selected}
+              accessibilityLabel={o.label}
+              onPress={() => toggle(o.value)}
+              style={[styles.chip, selected && styles.chipSelected]}
+            >
+              <Text variant="caption" weight={selected ? 'semibold' : 'regular'} tone={selected ? 'onBrand' : 'ink'}>
+                {selected ? '☑ ' : '☐ '}
                 {o.label}
               </Text>
             </Pressable>

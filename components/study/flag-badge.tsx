@@ -1,12 +1,12 @@
 import { StyleSheet, View } from 'react-native';
-import type { Flag } from '../../shared/physiology';
+import { flagLabel, type Flag } from '../../shared/physiology';
 import { Text } from '../ui/text';
 import { color, radius, space } from '../theme';
 
 const look: Record<Flag, { symbol: string; label: string; fg: string; bg: string }> = {
-  normal: { symbol: '✓', label: 'Normal', fg: color.normal, bg: color.normalSoft },
-  borderline: { symbol: '◐', label: 'Borderline', fg: color.borderline, bg: color.borderlineSoft },
-  abnormal: { symbol: '▲', label: 'Abnormal', fg: color.abnormal, bg: color.abnormalSoft },
+  normal: { symbol: '✓', label: flagLabel.normal, fg: color.normal, bg: color.normalSoft },
+  borderline: { symbol: '◐', label: flagLabel.borderline, fg: color.borderline, bg: color.borderlineSoft },
+  abnormal: { symbol: '▲', label: flagLabel.abnormal, fg: color.abnormal, bg: color.abnormalSoft },
 };
 
 /** A flag in words with a symbol, so it reads without colour and aloud. */

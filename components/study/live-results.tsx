@@ -1,54 +1,78 @@
 import { useMemo } from 'react';
 import { StyleSheet, View } from 'react-native';
 import { useWatch, useFormContext } from 'react-hook-form';
-import { analyzeStudy, type PhysiologyResult, type VesselResult } from '../../shared/physiology';
+import {
+  analyzeStudy,
+  formatQuantity,
+  imrMethodLabel,
+  indexLabel,
+  nhprKindLabel,
+  vasoreactivityLabel,
+  type Flag,
+  type PhysiologyResult,
+  type QuantityKind,
+  type Thresholds,
+  type VesselResult,
+} from '../../shared/physiology';
 import type { StudySections } from '../../shared/study/schema';
 import { toPhysiologyInput } from '../../shared/study/to-physiology';
+import { useThresholds } from '../data/thresholds-query';
 import { Text } from '../ui/text';
 import { CautionNote } from '../caution-note';
 import { color, radius, space } from '../theme';
 import { FlagBadge } from './flag-badge';
 
-const imrMethodLabel = { 'pd-tmn': 'Pd × Tmn', wedge: 'wedge-corrected', yong: 'corrected without wedge' } as const;
+export interface LiveAnalysis {
+  result: PhysiologyResult | null;
+  problem: string | null;
+  thresholds: Thresholds;
+}
 
-const endotypeLabel: Record<PhysiologyResult['endotype'], string> = {
-  obstructive: 'Obstructive coronary disease',
-  'microvascular-angina': 'Microvascular angina',
-  'vasospastic-angina': 'Vasospastic angina',
-  mixed: 'Microvascular and vasospastic angina',
-  'no-abnormality': 'No coronary abnormality found',
-  inconclusive: 'Not enough data for an endotype',
-};
-
-/** Runs the physiology core on what is in the form right now; invalid entries pause the results. */
-export function useLiveAnalysis(): { result: PhysiologyResult | null; problem: string | null } {
+/**
+ * Runs the physiology core on what is in the form right now, with the lab's thresholds in force.
+ * Values the core could not accept are left out by the mapping, so one bad box does not blank the rest.
+ */
+export function useLiveAnalysis(): LiveAnalysis {
   const { control } = useFormContext<StudySections>();
   const vessels = useWatch({ control, name: 'vessels' });
   const vasoreactivity = useWatch({ control, name: 'vasoreactivity' });
+  const setup = useWatch({ control, name: 'setup' });
+  const { overrides, values } = useThresholds();
   return useMemo(() => {
     try {
-      return { result: analyzeStudy(toPhysiologyInput({ vessels: vessels ?? [], vasoreactivity: vasoreactivity ?? { doses: [], nitrateReversal: null } })), problem: null };
+      const input = toPhysiologyInput({
+        vessels: vessels ?? [],
+        vasoreactivity: vasoreactivity ?? { doses: [], nitrateReversal: null, reversalNitroglycerinMicrograms: null, reversalNitroglycerinAt: null },
+        setup,
+      });
+      return { result: analyzeStudy({ ...input, thresholds: overrides }), problem: null, thresholds: values };
     } catch (error) {
       const issues = (error as { issues?: { message: string }[] }).issues;
-      return { result: null, problem: issues?.[0]?.message ?? 'Some values cannot be used yet.' };
+      return { result: null, problem: issues?.[0]?.message ?? 'Some values cannot be used yet.', thresholds: values };
     }
-  }, [vessels, vasoreactivity]);
+  }, [vessels, vasoreactivity, setup, overrides, values]);
 }
 
-const fmt = (v: number | undefined, digits: number) => (v === undefined ? '—' : v.toFixed(digits));
-
-function Index({ label, value, digits, unit, flag, note, testID }: { label: string; value?: number; digits: number; unit?: string; flag?: VesselResult['ffrFlag']; note?: string; testID: string }) {
+/** One index: its value at the display precision, its flag, and a note. No flag means no verdict. */
+function Index({ label, value, kind, unit, flag, note, testID }: { label: string; value?: number; kind: QuantityKind; unit?: string; flag?: Flag; note?: string; testID: string }) {
   if (value === undefined) return null;
+  const shown = formatQuantity(value, kind);
   return (
-    <View style={styles.index} testID={testID} accessibilityLabel={`${label} ${fmt(value, digits)}${unit ? ` ${unit}` : ''}${flag ? `, ${flag}` : ''}${note ? `, ${note}` : ''}`}>
+    <View style={styles.index} testID={testID} accessibilityLabel={`${label} ${shown}${unit ? ` ${unit}` : ''}${flag ? `, ${flag}` : ', not judged'}${note ? `, ${note}` : ''}`}>
       <Text variant="caption" tone="muted">
         {label}
       </Text>
       <Text variant="title" weight="bold" testID={`${testID}-value`}>
-        {fmt(value, digits)}
+        {shown}
         {unit ? <Text variant="caption" tone="muted">{` ${unit}`}</Text> : null}
       </Text>
-      {flag ? <FlagBadge flag={flag} testID={`${testID}-flag`} /> : null}
+      {flag ? (
+        <FlagBadge flag={flag} testID={`${testID}-flag`} />
+      ) : (
+        <Text variant="caption" tone="muted" testID={`${testID}-unjudged`}>
+          Not judged
+        </Text>
+      )}
       {note ? (
         <Text variant="caption" tone="faint">
           {note}
@@ -58,20 +82,36 @@ function Index({ label, value, digits, unit, flag, note, testID }: { label: stri
   );
 }
 
-/** A vessel's computed indices, flags and quality warnings. */
+/** A vessel's computed and entered indices, flags and quality warnings. */
 export function VesselResults({ result, testID }: { result: VesselResult | undefined; testID: string }) {
   if (!result) return null;
-  const any = [result.ffr, result.restingPdPa, result.cfr, result.imr, result.rrr, result.mrr].some((v) => v !== undefined);
+  const any = [result.ffr, result.restingPdPa, result.nhpr, result.cfr, result.imr, result.rrr, result.mrr].some((v) => v !== undefined);
+  const ffrNotes = [result.ffrSource === 'entered' ? 'from the console' : '', result.ffrGreyZone ? 'grey zone' : ''].filter(Boolean).join('; ');
   return (
     <View style={styles.results} testID={testID} aria-live="polite">
       {any ? (
         <View style={styles.indices}>
-          <Index label="FFR" value={result.ffr} digits={2} flag={result.ffrFlag} testID={`${testID}-ffr`} note={result.ffrSource === 'entered' ? 'from the console' : undefined} />
-          <Index label="Resting Pd/Pa" value={result.restingPdPa} digits={2} flag={result.restingPdPaFlag} testID={`${testID}-resting`} />
-          <Index label="CFR" value={result.cfr} digits={2} flag={result.cfrFlag} testID={`${testID}-cfr`} />
-          <Index label="IMR" value={result.imr} digits={1} unit="U" flag={result.imrFlag} testID={`${testID}-imr`} note={result.imrMethod ? imrMethodLabel[result.imrMethod] : undefined} />
-          <Index label="RRR" value={result.rrr} digits={2} flag={result.rrrFlag} testID={`${testID}-rrr`} />
-          <Index label="MRR" value={result.mrr} digits={2} flag={result.mrrFlag} testID={`${testID}-mrr`} />
+          <Index label={indexLabel.ffr} value={result.ffr} kind="ratio" flag={result.ffrFlag} testID={`${testID}-ffr`} note={ffrNotes || undefined} />
+          <Index label={indexLabel.restingPdPa} value={result.restingPdPa} kind="ratio" flag={result.restingPdPaFlag} testID={`${testID}-resting`} />
+          <Index
+            label={result.nhprKind ? nhprKindLabel[result.nhprKind] : indexLabel.nhpr}
+            value={result.nhpr}
+            kind="ratio"
+            flag={result.nhprFlag}
+            testID={`${testID}-nhpr`}
+            note="from the console"
+          />
+          <Index label={indexLabel.cfr} value={result.cfr} kind="ratio" flag={result.cfrFlag} testID={`${testID}-cfr`} />
+          <Index label={indexLabel.imr} value={result.imr} kind="imr" unit="U" flag={result.imrFlag} testID={`${testID}-imr`} note={result.imrMethod ? imrMethodLabel[result.imrMethod] : undefined} />
+          <Index label={indexLabel.rrr} value={result.rrr} kind="ratio" flag={result.rrrFlag} testID={`${testID}-rrr`} />
+          <Index
+            label={indexLabel.mrr}
+            value={result.mrr}
+            kind="ratio"
+            flag={result.mrrFlag}
+            testID={`${testID}-mrr`}
+            note={result.mrrMethod === 'bolus-thermodilution' ? 'bolus thermodilution' : undefined}
+          />
         </View>
       ) : (
         <Text variant="caption" tone="muted">
@@ -89,13 +129,23 @@ export function VesselResults({ result, testID }: { result: VesselResult | undef
   );
 }
 
-/** The study's endotype and the rules that produced it, with the standing caution. */
+/** Clinical questions about a lesion: the result speaks of the lesions and the decision, not of an endotype. */
+const lesionQuestions = new Set(['intermediate-lesion', 'post-pci']);
+
+/**
+ * The study's result: the headline (every coexisting finding, with any quality caveat), the
+ * acetylcholine result once, the rules that produced it, and the standing caution right beside it.
+ */
 export function StudyResults({ testID = 'study-results' }: { testID?: string }) {
   const { result, problem } = useLiveAnalysis();
+  const { control } = useFormContext<StudySections>();
+  const question = useWatch({ control, name: 'details.clinicalQuestion' });
+  const lesion = question !== null && question !== undefined && lesionQuestions.has(question);
+  const reasons = result ? (lesion ? result.reasons.filter((r) => !r.startsWith('Endotype:')) : result.reasons) : [];
   return (
     <View style={styles.panel} testID={testID}>
       <Text variant="caption" weight="semibold" tone="muted">
-        LIVE RESULT
+        {lesion ? 'LIVE RESULT · LESION ASSESSMENT' : 'LIVE RESULT'}
       </Text>
       {problem ? (
         <Text tone="abnormal" testID={`${testID}-problem`}>
@@ -103,24 +153,28 @@ export function StudyResults({ testID = 'study-results' }: { testID?: string }) 
         </Text>
       ) : result ? (
         <>
-          <Text variant="title" weight="bold" testID={`${testID}-endotype`}>
-            {endotypeLabel[result.endotype]}
+          <Text variant="title" weight="bold" testID={`${testID}-headline`}>
+            {result.headline}
           </Text>
+          <CautionNote testID={`${testID}-caution`} />
           {result.vasoreactivity ? (
-            <Text variant="caption" weight="medium">
-              Acetylcholine: {result.vasoreactivity.result.replace('-', ' ')}
+            <Text variant="caption" weight="medium" testID={`${testID}-acetylcholine`}>
+              Acetylcholine test: {vasoreactivityLabel[result.vasoreactivity.result].toLowerCase()}
             </Text>
           ) : null}
-          <View style={styles.reasons} role="list">
-            {result.reasons.map((r) => (
-              <Text key={r} variant="caption" tone="muted" role="listitem">
-                • {r}
-              </Text>
-            ))}
-          </View>
+          {reasons.length ? (
+            <View style={styles.reasons} role="list">
+              {reasons.map((r) => (
+                <Text key={r} variant="caption" tone="muted" role="listitem">
+                  • {r}
+                </Text>
+              ))}
+            </View>
+          ) : null}
         </>
-      ) : null}
-      <CautionNote testID={`${testID}-caution`} />
+      ) : (
+        <CautionNote testID={`${testID}-caution`} />
+      )}
     </View>
   );
 }

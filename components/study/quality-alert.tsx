@@ -1,23 +1,29 @@
 import { Pressable, StyleSheet } from 'react-native';
 import { Link } from 'expo-router';
 import { useFormContext, useWatch } from 'react-hook-form';
-import { defaultThresholds } from '../../shared/physiology';
+import { formatQuantity, vesselShortName } from '../../shared/physiology';
 import type { StudySections } from '../../shared/study/schema';
+import { summariseDrift } from '../../shared/study/drift';
+import { useThresholds } from '../data/thresholds-query';
 import { Text } from '../ui/text';
 import { color, radius, space, touchTarget } from '../theme';
 
 /**
  * The drift check, said in the study's header whichever section is open: a measurement whose
- * pull-back Pd/Pa is missing or outside the window should not be trusted until repeated.
+ * pull-back Pd/Pa is missing or outside the window should not be trusted until repeated. Nothing is
+ * said before a vessel exists.
  */
 export function DriftAlert({ studyId }: { studyId: string }) {
   const { control } = useFormContext<StudySections>();
   const vessels = useWatch({ control, name: 'vessels' }) ?? [];
-  const { driftLow, driftHigh } = defaultThresholds;
-  const missing = vessels.filter((v) => v.driftPdPa == null || Number.isNaN(v.driftPdPa)).map((v) => v.vessel);
-  const outside = vessels.filter((v) => typeof v.driftPdPa === 'number' && (v.driftPdPa < driftLow - 1e-9 || v.driftPdPa > driftHigh + 1e-9)).map((v) => v.vessel);
-  if (vessels.length === 0 || (missing.length === 0 && outside.length === 0)) return null;
-  const text = [outside.length ? `outside ${driftLow.toFixed(2)}–${driftHigh.toFixed(2)} for ${outside.join(', ')}` : '', missing.length ? `missing for ${missing.join(', ')}` : '']
+  const { values: t } = useThresholds();
+  const drift = summariseDrift(vessels, t);
+  if (!drift.judged || (drift.missing.length === 0 && drift.outside.length === 0)) return null;
+  const names = (codes: typeof drift.missing) => codes.map((c) => vesselShortName[c]).join(', ');
+  const text = [
+    drift.outside.length ? `outside ${formatQuantity(t.driftLow, 'ratio')}–${formatQuantity(t.driftHigh, 'ratio')} for ${names(drift.outside)}` : '',
+    drift.missing.length ? `missing for ${names(drift.missing)}` : '',
+  ]
     .filter(Boolean)
     .join('; ');
   return (

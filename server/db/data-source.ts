@@ -3,16 +3,17 @@ import { DataSource } from 'typeorm';
 import { User } from './entities/user.entity';
 import { Patient } from './entities/patient.entity';
 import { Study } from './entities/study.entity';
-import { AcetylcholineDose, Attachment, ThermodilutionInjection, VesselAssessment } from './entities/measurement.entities';
+import { AcetylcholineDose, Attachment, ThermodilutionInjection, ThresholdSet, VesselAssessment } from './entities/measurement.entities';
 import { InitialSchema1764633600000 } from './migrations/1764633600000-initial-schema';
 import { SessionsAndAudit1764720000000 } from './migrations/1764720000000-sessions-and-audit';
 import { StudyRecord1764806400000 } from './migrations/1764806400000-study-record';
 import { PatientNameSearch1764892800000 } from './migrations/1764892800000-patient-name-search';
 import { EndedSessions1764979200000 } from './migrations/1764979200000-ended-sessions';
+import { StudyRecordDetails1765065600000 } from './migrations/1765065600000-study-record-details';
 
 /** Entities and migrations are listed, not globbed, so tsx, vitest and a bundler all see the same set. */
-export const entities = [User, Patient, Study, VesselAssessment, ThermodilutionInjection, AcetylcholineDose, Attachment];
-export const migrations = [InitialSchema1764633600000, SessionsAndAudit1764720000000, StudyRecord1764806400000, PatientNameSearch1764892800000, EndedSessions1764979200000];
+export const entities = [User, Patient, Study, VesselAssessment, ThermodilutionInjection, AcetylcholineDose, Attachment, ThresholdSet];
+export const migrations = [InitialSchema1764633600000, SessionsAndAudit1764720000000, StudyRecord1764806400000, PatientNameSearch1764892800000, EndedSessions1764979200000, StudyRecordDetails1765065600000];
 
 export function createDataSource(databaseUrl: string, poolSize = 10): DataSource {
   return new DataSource({

@@ -1,4 +1,4 @@
-import { emptyVessel, type AcetylcholineDose, type Findings, type Setup, type VesselAssessment } from '../../shared/study/schema';
+import { emptyDose, emptyFindings, emptyVessel, type AcetylcholineDose, type Details, type Findings, type Setup, type VesselAssessment } from '../../shared/study/schema';
 import type { StudyState } from '../../shared/study/vocabulary';
 
 /**
@@ -51,9 +51,10 @@ export interface DemoStudy {
   referring: { name: string; email: string };
   accessSite: 'right-radial' | 'left-radial' | 'right-femoral';
   guideFrench: number;
+  patientFacts: Pick<Details, 'weightKg' | 'heightCm' | 'anginaPresent' | 'anginaCharacter'>;
   setup: Setup;
   vessels: DemoVessel[];
-  vasoreactivity: { doses: DemoDose[]; nitrateReversal: boolean | null };
+  vasoreactivity: { doses: DemoDose[]; nitrateReversal: boolean | null; reversalNitroglycerinMicrograms: number | null; reversalNitroglycerinAtMinute: number | null };
   findings: Findings;
 }
 
@@ -63,15 +64,35 @@ const vessel = (fields: Partial<DemoVessel> & Pick<DemoVessel, 'vessel'>): DemoV
   return { ...empty, ...fields };
 };
 
-/** Acetylcholine into the left coronary: dose (µg), diameter reduction (%), symptoms, ischaemic ECG. */
-const doses = (rows: [number, number, boolean, boolean][]): DemoDose[] =>
-  rows.map(([micrograms, constrictionPct, symptoms, ischemicEcg]) => ({ vessel: 'LAD', micrograms, constrictionPct, symptoms, ischemicEcg }));
+/** Acetylcholine into the left coronary: dose (µg), diameter reduction (%), symptoms, ischaemic ECG, heart rate, BP. */
+const doses = (rows: [number, number, boolean, boolean, number, number, number][]): DemoDose[] =>
+  rows.map(([micrograms, constrictionPct, symptoms, ischemicEcg, heartRate, systolic, diastolic]) => {
+    const { id: _id, ...empty } = emptyDose('', 'LAD');
+    return { ...empty, micrograms, constrictionPct, symptoms, ischemicEcg, heartRate, systolic, diastolic, rhythm: 'sinus' };
+  });
 
-/** Setup and quality steps done as the lab's checklist asks. */
-const checklist = (hyperaemia: Pick<Setup, 'hyperemicRoute' | 'hyperemicDose' | 'hyperemicDoseUnit'>, heparinUnits: number): Setup => ({
+const noReversal = { nitrateReversal: null, reversalNitroglycerinMicrograms: null, reversalNitroglycerinAtMinute: null };
+const findings = (fields: Partial<Findings>): Findings => ({ ...emptyFindings(), complicationKinds: ['none'], ...fields });
+
+/**
+ * Setup and quality steps done as the lab's checklist asks. A lesion study gives nitroglycerin before
+ * the measurements; a coronary function test only after acetylcholine, which it would otherwise blunt.
+ */
+const checklist = (
+  hyperaemia: Pick<Setup, 'hyperemicRoute' | 'hyperemicDose' | 'hyperemicDoseUnit'>,
+  heparinUnits: number,
+  baseline: [heartRate: number, systolic: number, diastolic: number, lvedp: number],
+  nitrateTiming: NonNullable<Setup['nitrateTiming']> = 'before-measurements',
+): Setup => ({
   transducerZeroed: true,
   nitratesGiven: true,
+  nitrateTiming,
   nitrateDoseMicrograms: 200,
+  baselineHeartRate: baseline[0],
+  baselineSystolic: baseline[1],
+  baselineDiastolic: baseline[2],
+  baselineRhythm: 'sinus',
+  lvedp: baseline[3],
   equalizedInAorta: true,
   introducerRemoved: true,
   wirePosition: 'distal-third',
@@ -106,11 +127,12 @@ export const demoStudies: DemoStudy[] = [
     referring: referrers.osei,
     accessSite: 'right-radial',
     guideFrench: 6,
-    setup: checklist(ivAdenosine, 5000),
+    patientFacts: { weightKg: 84, heightCm: 178, anginaPresent: true, anginaCharacter: 'stable' },
+    setup: checklist(ivAdenosine, 5000, [68, 132, 74, 14]),
     vessels: [
       vessel({
         vessel: 'LAD',
-        segment: 6,
+        segment: '6',
         visualStenosisPct: 60,
         restPa: 96,
         restPd: 84,
@@ -124,15 +146,16 @@ export const demoStudies: DemoStudy[] = [
         decision: 'pci',
       }),
     ],
-    vasoreactivity: { doses: [], nitrateReversal: null },
-    findings: {
-      complications: 'None.',
+    vasoreactivity: { doses: [], ...noReversal },
+    findings: findings({
       contrastMl: 145,
       fluoroscopyMinutes: 14.5,
       impression:
         'Intermediate proximal LAD stenosis (60% visually) is haemodynamically significant: FFR 0.72 with a focal pressure step-up across the lesion on pull-back; diastolic resting ratio 0.84 agrees. Treated with a drug-eluting stent in the same sitting, good angiographic result.',
       plan: 'Dual antiplatelet therapy for 6 months, then a single antiplatelet agent. Continue statin. Cardiac rehabilitation referral. Clinic review in 6 weeks.',
-    },
+      airKermaMGy: 420,
+      doseAreaProductGyCm2: 38.5,
+    }),
   },
   {
     // Moderate mid RCA lesion with a normal FFR, deferred.
@@ -147,11 +170,12 @@ export const demoStudies: DemoStudy[] = [
     referring: referrers.castellane,
     accessSite: 'right-radial',
     guideFrench: 6,
-    setup: checklist(icAdenosine, 4000),
+    patientFacts: { weightKg: 71, heightCm: 164, anginaPresent: true, anginaCharacter: 'stable' },
+    setup: checklist(icAdenosine, 4000, [72, 128, 70, 12]),
     vessels: [
       vessel({
         vessel: 'RCA',
-        segment: 2,
+        segment: '2',
         visualStenosisPct: 50,
         restPa: 92,
         restPd: 87,
@@ -165,14 +189,15 @@ export const demoStudies: DemoStudy[] = [
         decision: 'defer',
       }),
     ],
-    vasoreactivity: { doses: [], nitrateReversal: null },
-    findings: {
-      complications: 'None.',
+    vasoreactivity: { doses: [], ...noReversal },
+    findings: findings({
       contrastMl: 70,
       fluoroscopyMinutes: 5.5,
       impression: 'Moderate mid RCA stenosis (50% visually) is not haemodynamically significant: FFR 0.86, diastolic resting ratio 0.93. Intervention deferred.',
       plan: 'Medical therapy: continue antiplatelet and statin, optimise anti-anginal treatment. Reassess if symptoms change.',
-    },
+      airKermaMGy: 210,
+      doseAreaProductGyCm2: 19.2,
+    }),
   },
   {
     // Angina without obstruction: structural microvascular dysfunction, no spasm.
@@ -187,11 +212,12 @@ export const demoStudies: DemoStudy[] = [
     referring: referrers.fenwick,
     accessSite: 'right-radial',
     guideFrench: 6,
-    setup: checklist(ivAdenosine, 4000),
+    patientFacts: { weightKg: 66, heightCm: 169, anginaPresent: true, anginaCharacter: 'mixed' },
+    setup: checklist(ivAdenosine, 4000, [64, 118, 66, 9], 'after-acetylcholine'),
     vessels: [
       vessel({
         vessel: 'LAD',
-        segment: 7,
+        segment: '7',
         visualStenosisPct: 20,
         restPa: 90,
         restPd: 85,
@@ -205,15 +231,16 @@ export const demoStudies: DemoStudy[] = [
         decision: 'medical-therapy',
       }),
     ],
-    vasoreactivity: { doses: doses([[2, 0, false, false], [20, 10, false, false], [100, 15, false, false]]), nitrateReversal: null },
-    findings: {
-      complications: 'None.',
+    vasoreactivity: { doses: doses([[2, 0, false, false, 66, 120, 68], [20, 10, false, false, 64, 118, 66], [100, 15, false, false, 62, 116, 66]]), ...noReversal },
+    findings: findings({
       contrastMl: 60,
       fluoroscopyMinutes: 7.5,
       impression:
         'No obstructive coronary disease (LAD FFR 0.88). Coronary flow reserve reduced (1.6) with raised microvascular resistance (IMR 34): microvascular angina, structural type. Acetylcholine 2, 20 and 100 µg into the left coronary did not provoke spasm.',
       plan: 'Start a beta-blocker and an ACE inhibitor; continue statin. Lifestyle advice. Clinic review in 8 weeks.',
-    },
+      airKermaMGy: 260,
+      doseAreaProductGyCm2: 22.8,
+    }),
   },
   {
     // Rest angina at night: epicardial spasm with normal microvascular function.
@@ -228,11 +255,12 @@ export const demoStudies: DemoStudy[] = [
     referring: referrers.osei,
     accessSite: 'right-radial',
     guideFrench: 6,
-    setup: checklist(ivAdenosine, 5000),
+    patientFacts: { weightKg: 79, heightCm: 181, anginaPresent: true, anginaCharacter: 'rest' },
+    setup: checklist(ivAdenosine, 5000, [58, 124, 72, 11], 'after-acetylcholine'),
     vessels: [
       vessel({
         vessel: 'LAD',
-        segment: 7,
+        segment: '7',
         visualStenosisPct: 10,
         restPa: 94,
         restPd: 90,
@@ -246,15 +274,20 @@ export const demoStudies: DemoStudy[] = [
         decision: 'medical-therapy',
       }),
     ],
-    vasoreactivity: { doses: doses([[2, 0, false, false], [20, 15, false, false], [100, 95, true, true]]), nitrateReversal: true },
-    findings: {
-      complications: 'Chest pain and anterior ST elevation during acetylcholine testing, relieved by intracoronary nitroglycerin within 2 minutes.',
+    vasoreactivity: { doses: doses([[2, 0, false, false, 58, 124, 72], [20, 15, false, false, 57, 122, 70], [100, 95, true, true, 52, 104, 62]]).map((d, i) =>
+      i === 2 ? { ...d, spasmVessel: 'LAD', spasmSegment: '7', spasmPattern: 'diffuse' } : d,
+    ),
+    nitrateReversal: true, reversalNitroglycerinMicrograms: 200, reversalNitroglycerinAtMinute: 52 },
+    findings: findings({
+      complications: 'No complication. The provoked chest pain and anterior ST elevation were relieved by intracoronary nitroglycerin within 2 minutes.',
       contrastMl: 75,
       fluoroscopyMinutes: 9,
       impression:
         'No obstructive disease (LAD FFR 0.91); normal coronary flow reserve (3.4) and IMR (20). Acetylcholine 100 µg into the left coronary provoked 95% constriction of the mid-to-distal LAD with the usual chest pain and ischaemic ECG changes, reversed by nitroglycerin: epicardial vasospasm.',
       plan: 'Start a calcium channel blocker; sublingual nitrate as needed. Smoking cessation support. Clinic review in 6 weeks.',
-    },
+      airKermaMGy: 300,
+      doseAreaProductGyCm2: 27.4,
+    }),
   },
   {
     // Everything normal, including acetylcholine.
@@ -269,7 +302,8 @@ export const demoStudies: DemoStudy[] = [
     referring: referrers.castellane,
     accessSite: 'right-femoral',
     guideFrench: 6,
-    setup: checklist(ivAdenosine, 4500),
+    patientFacts: { weightKg: 58, heightCm: 160, anginaPresent: true, anginaCharacter: 'stable' },
+    setup: checklist(ivAdenosine, 4500, [70, 121, 68, 10], 'after-acetylcholine'),
     vessels: [
       vessel({
         vessel: 'LAD',
@@ -286,15 +320,17 @@ export const demoStudies: DemoStudy[] = [
         decision: 'defer',
       }),
     ],
-    vasoreactivity: { doses: doses([[2, 0, false, false], [20, 5, false, false], [100, 10, false, false], [200, 15, false, false]]), nitrateReversal: null },
-    findings: {
-      complications: 'None. Femoral access closed with manual compression.',
+    vasoreactivity: { doses: doses([[2, 0, false, false, 70, 121, 68], [20, 5, false, false, 70, 120, 68], [100, 10, false, false, 68, 119, 66], [200, 15, false, false, 66, 118, 66]]), ...noReversal },
+    findings: findings({
+      complications: 'Femoral access closed with manual compression.',
       contrastMl: 65,
       fluoroscopyMinutes: 8,
       impression:
         'No obstructive disease (LAD FFR 0.92), normal coronary flow reserve (3.0) and IMR (22), acetylcholine up to 200 µg negative: no coronary cause of the chest pain was found. Amended: access site corrected to right femoral.',
       plan: 'Reassurance. Stop anti-anginal medication. Evaluate non-cardiac causes with the referring clinician.',
-    },
+      airKermaMGy: 240,
+      doseAreaProductGyCm2: 21.6,
+    }),
   },
   {
     // Functional microvascular dysfunction, waiting too long for signature; one drift check out of range.
@@ -309,11 +345,12 @@ export const demoStudies: DemoStudy[] = [
     referring: referrers.fenwick,
     accessSite: 'left-radial',
     guideFrench: 6,
-    setup: checklist(ivAdenosine, 4000),
+    patientFacts: { weightKg: 73, heightCm: 166, anginaPresent: true, anginaCharacter: 'mixed' },
+    setup: checklist(ivAdenosine, 4000, [76, 138, 80, 13], 'after-acetylcholine'),
     vessels: [
       vessel({
         vessel: 'LAD',
-        segment: 7,
+        segment: '7',
         visualStenosisPct: 15,
         restPa: 92,
         restPd: 87,
@@ -328,7 +365,7 @@ export const demoStudies: DemoStudy[] = [
       }),
       vessel({
         vessel: 'LCX',
-        segment: 13,
+        segment: '13',
         visualStenosisPct: 30,
         restPa: 92,
         restPd: 88,
@@ -341,14 +378,15 @@ export const demoStudies: DemoStudy[] = [
         decision: 'defer',
       }),
     ],
-    vasoreactivity: { doses: doses([[2, 0, false, false], [20, 10, false, false], [100, 25, false, false], [200, 40, false, false]]), nitrateReversal: null },
-    findings: {
-      complications: 'None.',
+    vasoreactivity: { doses: doses([[2, 0, false, false, 76, 138, 80], [20, 10, false, false, 75, 136, 80], [100, 25, false, false, 74, 134, 78], [200, 40, false, false, 72, 132, 78]]), ...noReversal },
+    findings: findings({
       contrastMl: 90,
       fluoroscopyMinutes: 11,
       impression:
         'No obstructive disease (LAD FFR 0.90; circumflex FFR 0.92, drift check 1.03 — read with caution). Reduced coronary flow reserve (1.8) with normal IMR (17) and a short resting transit time: microvascular angina, functional type. Acetylcholine up to 200 µg: 40% constriction without symptoms or ECG changes — endothelial dysfunction, not spasm.',
       plan: 'Start a beta-blocker; continue statin. Clinic review in 8 weeks with symptom diary.',
-    },
+      airKermaMGy: 350,
+      doseAreaProductGyCm2: 31.0,
+    }),
   },
 ];

@@ -1,39 +1,12 @@
-import type { DataSource, EntityManager } from 'typeorm';
+import type { DataSource } from 'typeorm';
 import type { Details } from '../../shared/study/schema';
-import { detailsColumns, findingsColumns, setupColumns } from '../studies/columns';
+import { detailsColumns, findingsColumns, setupColumns, vasoreactivityColumns } from '../studies/columns';
+import { replaceDoses, replaceVessels } from '../studies/repository';
 import { demoOperatorSubject, demoPatients, demoRecorderSubject, demoStudies, demoUsers, type DemoStudy } from './scenario';
 
 /** Section columns and their values, in the same order. */
 function columnValues<T>(columns: { field: keyof T; column: string }[], section: T): { names: string[]; values: unknown[] } {
   return { names: columns.map((c) => c.column), values: columns.map((c) => section[c.field] ?? null) };
-}
-
-/** The measurements of a study just created: vessels with their injections, acetylcholine doses. */
-async function addMeasurements(db: EntityManager, studyId: string, s: DemoStudy): Promise<void> {
-  for (const [position, v] of s.vessels.entries()) {
-    const id = crypto.randomUUID();
-    await db.query(
-      `INSERT INTO vessel_assessment (id, study_id, position, vessel, segment, visual_stenosis_pct, rest_pa, rest_pd,
-         hyperemia_pa, hyperemia_pd, console_ffr, nhpr_kind, nhpr_value, wedge_pressure, drift_pd_pa, pullback_pattern, decision)
-       VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, $12, $13, $14, $15, $16, $17)`,
-      [id, studyId, position, v.vessel, v.segment, v.visualStenosisPct, v.restPa, v.restPd, v.hyperemiaPa, v.hyperemiaPd, v.consoleFfr, v.nhprKind, v.nhprValue, v.wedgePressure, v.driftPdPa, v.pullbackPattern, v.decision],
-    );
-    const injections = [...v.restTransit.map((t, i) => ['rest', i, t] as const), ...v.hyperemiaTransit.map((t, i) => ['hyperemia', i, t] as const)];
-    if (injections.length) {
-      await db.query(
-        `INSERT INTO thermodilution_injection (vessel_assessment_id, phase, position, transit_s)
-         SELECT $1, phase, position, transit FROM unnest($2::text[], $3::int[], $4::numeric[]) AS t(phase, position, transit)`,
-        [id, injections.map((x) => x[0]), injections.map((x) => x[1]), injections.map((x) => x[2])],
-      );
-    }
-  }
-  for (const [position, d] of s.vasoreactivity.doses.entries()) {
-    await db.query(
-      `INSERT INTO acetylcholine_dose (id, study_id, position, vessel, micrograms, constriction_pct, symptoms, ischemic_ecg)
-       VALUES ($1, $2, $3, $4, $5, $6, $7, $8)`,
-      [crypto.randomUUID(), studyId, position, d.vessel, d.micrograms, d.constrictionPct, d.symptoms, d.ischemicEcg],
-    );
-  }
 }
 
 /**
@@ -76,20 +49,31 @@ export async function seedDemo(dataSource: DataSource, issuer: string, now = new
         clinicalQuestion: s.clinicalQuestion,
         accessSite: s.accessSite,
         guideFrench: s.guideFrench,
+        ...s.patientFacts,
       };
-      const sections = [columnValues(detailsColumns, details), columnValues(setupColumns, s.setup), columnValues(findingsColumns, s.findings)];
+      const { doses, reversalNitroglycerinAtMinute, ...vaso } = s.vasoreactivity;
+      const reversalAt = reversalNitroglycerinAtMinute === null ? null : new Date(started.getTime() + reversalNitroglycerinAtMinute * 60_000).toISOString();
+      const sections = [
+        columnValues(detailsColumns, details),
+        columnValues(setupColumns, s.setup),
+        columnValues(findingsColumns, s.findings),
+        columnValues(vasoreactivityColumns, { ...vaso, reversalNitroglycerinAt: reversalAt }),
+      ];
       const names = sections.flatMap((x) => x.names);
-      const values = [s.accession, s.state, s.vasoreactivity.nitrateReversal, recorderId, started, s.mrn, ...sections.flatMap((x) => x.values)];
+      const values = [s.accession, s.state, recorderId, started, s.mrn, ...sections.flatMap((x) => x.values)];
       // The record was opened shortly before the procedure began.
       const created = await db.query(
-        `INSERT INTO study (accession, patient_id, state, nitrate_reversal, created_by, created_at, ${names.join(', ')})
-         SELECT $1, p.id, $2, $3, $4, $5::timestamptz - interval '20 minutes', ${names.map((_, i) => `$${i + 7}`).join(', ')}
-         FROM patient p WHERE p.mrn = $6
+        `INSERT INTO study (accession, patient_id, state, created_by, created_at, ${names.join(', ')})
+         SELECT $1, p.id, $2, $3, $4::timestamptz - interval '20 minutes', ${names.map((_, i) => `$${i + 6}`).join(', ')}
+         FROM patient p WHERE p.mrn = $5
          ON CONFLICT (accession) DO NOTHING
          RETURNING id`,
         values,
       );
-      if (created.length === 1) await addMeasurements(db, created[0].id, s);
+      if (created.length === 1) {
+        await replaceVessels(db, created[0].id, s.vessels.map((v) => ({ ...v, id: crypto.randomUUID() })));
+        await replaceDoses(db, created[0].id, doses.map((d) => ({ ...d, id: crypto.randomUUID() })));
+      }
     }
   });
 }

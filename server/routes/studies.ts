@@ -14,6 +14,7 @@ import type { ApiRoute } from '../http/routes';
 import { parseOrThrow } from '../http/validate';
 import { createStudy, loadStudy, lockEditableStudy, patchStudy, StaleVersionError } from '../studies/repository';
 import { listStudies } from '../studies/worklist';
+import { thresholdsInForce } from '../settings/thresholds';
 
 const uuidPattern = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 const idOf = (req: Request) => {
@@ -130,7 +131,8 @@ export function studyRoutes({ config, dataSource, storage }: { config: Config; d
       handlers: [
         async (req, res) => {
           const study = await readStudy(req, 'analysis');
-          res.json({ version: study.version, analysis: analyzeStudy(toPhysiologyInput(study)) });
+          const { overrides } = await thresholdsInForce(dataSource);
+          res.json({ version: study.version, analysis: analyzeStudy({ ...toPhysiologyInput(study), thresholds: overrides }) });
         },
       ],
     },

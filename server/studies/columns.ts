@@ -1,4 +1,4 @@
-import type { Details, Findings, Setup } from '../../shared/study/schema';
+import type { Details, Findings, Setup, Vasoreactivity } from '../../shared/study/schema';
 
 /** Section field → study column. Numbers are read back as float8 so they arrive as numbers. */
 type Column<T> = { field: keyof T; column: string; kind?: 'number' | 'timestamp' };
@@ -14,11 +14,16 @@ export const detailsColumns: Column<Details>[] = [
   { field: 'clinicalQuestion', column: 'clinical_question' },
   { field: 'accessSite', column: 'access_site' },
   { field: 'guideFrench', column: 'guide_french', kind: 'number' },
+  { field: 'weightKg', column: 'weight_kg', kind: 'number' },
+  { field: 'heightCm', column: 'height_cm', kind: 'number' },
+  { field: 'anginaPresent', column: 'angina_present' },
+  { field: 'anginaCharacter', column: 'angina_character' },
 ];
 
 export const setupColumns: Column<Setup>[] = [
   { field: 'transducerZeroed', column: 'transducer_zeroed' },
   { field: 'nitratesGiven', column: 'nitrates_given' },
+  { field: 'nitrateTiming', column: 'nitrate_timing' },
   { field: 'nitrateDoseMicrograms', column: 'nitrate_dose_ug', kind: 'number' },
   { field: 'equalizedInAorta', column: 'equalized_in_aorta' },
   { field: 'introducerRemoved', column: 'introducer_removed' },
@@ -28,12 +33,27 @@ export const setupColumns: Column<Setup>[] = [
   { field: 'hyperemicDose', column: 'hyperemic_dose', kind: 'number' },
   { field: 'hyperemicDoseUnit', column: 'hyperemic_dose_unit' },
   { field: 'heparinUnits', column: 'heparin_units', kind: 'number' },
+  { field: 'baselineHeartRate', column: 'baseline_heart_rate' },
+  { field: 'baselineSystolic', column: 'baseline_systolic' },
+  { field: 'baselineDiastolic', column: 'baseline_diastolic' },
+  { field: 'baselineRhythm', column: 'baseline_rhythm' },
+  { field: 'lvedp', column: 'lvedp', kind: 'number' },
+];
+
+/** The vasoreactivity section's own fields (its doses live in their own table). */
+export const vasoreactivityColumns: Column<Omit<Vasoreactivity, 'doses'>>[] = [
+  { field: 'nitrateReversal', column: 'nitrate_reversal' },
+  { field: 'reversalNitroglycerinMicrograms', column: 'reversal_ntg_ug', kind: 'number' },
+  { field: 'reversalNitroglycerinAt', column: 'reversal_ntg_at', kind: 'timestamp' },
 ];
 
 export const findingsColumns: Column<Findings>[] = [
+  { field: 'complicationKinds', column: 'complication_kinds' },
   { field: 'complications', column: 'complications' },
   { field: 'contrastMl', column: 'contrast_ml', kind: 'number' },
   { field: 'fluoroscopyMinutes', column: 'fluoroscopy_minutes', kind: 'number' },
+  { field: 'airKermaMGy', column: 'air_kerma_mgy', kind: 'number' },
+  { field: 'doseAreaProductGyCm2', column: 'dose_area_product_gycm2', kind: 'number' },
   { field: 'impression', column: 'impression' },
   { field: 'plan', column: 'plan' },
 ];

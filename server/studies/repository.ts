@@ -12,7 +12,12 @@ import { emptyDetails, emptyFindings, emptySetup } from '../../shared/study/sche
 import type { StudyState } from '../../shared/study/vocabulary';
 import { HttpError, NotFoundError } from '../http/problem';
 import { recordAudit, type AuditEntry } from '../audit/audit';
-import { assignments, detailsColumns, findingsColumns, readSection, selectList, setupColumns } from './columns';
+import { assignments, detailsColumns, findingsColumns, readSection, selectList, setupColumns, vasoreactivityColumns } from './columns';
+import {
+  AcetylcholineDose as DoseRow,
+  ThermodilutionInjection as InjectionRow,
+  VesselAssessment as VesselRow,
+} from '../db/entities/measurement.entities';
 
 /** A write based on an older version than the stored one. Carries the current record for a merge. */
 export class StaleVersionError extends HttpError {
@@ -25,28 +30,24 @@ type Db = DataSource | EntityManager;
 
 export async function loadStudy(db: Db, id: string): Promise<StudyRecord | null> {
   const [row] = await db.query(
-    `SELECT s.id, s.accession, s.state, s.version, s.created_at, s.updated_at, s.nitrate_reversal,
+    `SELECT s.id, s.accession, s.state, s.version, s.created_at, s.updated_at,
             p.mrn, p.family_name, p.given_name, to_char(p.birth_date, 'YYYY-MM-DD') AS birth_date, p.sex,
-            ${selectList(detailsColumns, 's', 'details')}, ${selectList(setupColumns, 's', 'setup')}, ${selectList(findingsColumns, 's', 'findings')}
+            ${selectList(detailsColumns, 's', 'details')}, ${selectList(setupColumns, 's', 'setup')}, ${selectList(findingsColumns, 's', 'findings')},
+            ${selectList(vasoreactivityColumns, 's', 'vaso')}
      FROM study s JOIN patient p ON p.id = s.patient_id WHERE s.id = $1`,
     [id],
   );
   if (!row) return null;
-  const vesselRows = await db.query(
-    `SELECT v.id, v.vessel, v.segment, v.visual_stenosis_pct::float8, v.rest_pa::float8, v.rest_pd::float8,
-            v.hyperemia_pa::float8, v.hyperemia_pd::float8, v.console_ffr::float8, v.nhpr_kind, v.nhpr_value::float8,
-            v.wedge_pressure::float8, v.drift_pd_pa::float8, v.pullback_pattern, v.decision,
-            COALESCE(array_agg(i.transit_s::float8 ORDER BY i.position) FILTER (WHERE i.phase = 'rest'), '{}') AS rest_transit,
-            COALESCE(array_agg(i.transit_s::float8 ORDER BY i.position) FILTER (WHERE i.phase = 'hyperemia'), '{}') AS hyperemia_transit
-     FROM vessel_assessment v LEFT JOIN thermodilution_injection i ON i.vessel_assessment_id = v.id
-     WHERE v.study_id = $1 GROUP BY v.id ORDER BY v.position`,
-    [id],
-  );
-  const doseRows = await db.query(
-    `SELECT id, vessel, micrograms::float8, constriction_pct::float8, symptoms, ischemic_ecg
-     FROM acetylcholine_dose WHERE study_id = $1 ORDER BY position`,
-    [id],
-  );
+  const manager = 'manager' in db ? db.manager : db;
+  const vesselRows = await manager.find(VesselRow, { where: { studyId: id }, order: { position: 'ASC' } });
+  const injections = vesselRows.length
+    ? await manager
+        .createQueryBuilder(InjectionRow, 'i')
+        .where('i.vessel_assessment_id IN (:...ids)', { ids: vesselRows.map((v) => v.id) })
+        .orderBy('i.position', 'ASC')
+        .getMany()
+    : [];
+  const doseRows = await manager.find(DoseRow, { where: { studyId: id }, order: { position: 'ASC' } });
   const attachmentRows = await db.query(
     `SELECT a.id, a.file_name, a.media_type, a.size_bytes::float8 AS size_bytes, a.sha256, a.uploaded_at, u.display_name
      FROM attachment a LEFT JOIN app_user u ON u.id = a.uploaded_by WHERE a.study_id = $1 ORDER BY a.uploaded_at, a.id`,
@@ -63,40 +64,8 @@ export async function loadStudy(db: Db, id: string): Promise<StudyRecord | null>
     details: readSection(detailsColumns, row, 'details'),
     setup: readSection(setupColumns, row, 'setup'),
     findings: readSection(findingsColumns, row, 'findings'),
-    vessels: vesselRows.map(
-      (v: Record<string, never>): VesselAssessment => ({
-        id: v.id,
-        vessel: v.vessel,
-        segment: v.segment,
-        visualStenosisPct: v.visual_stenosis_pct,
-        restPa: v.rest_pa,
-        restPd: v.rest_pd,
-        hyperemiaPa: v.hyperemia_pa,
-        hyperemiaPd: v.hyperemia_pd,
-        consoleFfr: v.console_ffr,
-        nhprKind: v.nhpr_kind,
-        nhprValue: v.nhpr_value,
-        wedgePressure: v.wedge_pressure,
-        driftPdPa: v.drift_pd_pa,
-        restTransit: v.rest_transit,
-        hyperemiaTransit: v.hyperemia_transit,
-        pullbackPattern: v.pullback_pattern,
-        decision: v.decision,
-      }),
-    ),
-    vasoreactivity: {
-      nitrateReversal: row.nitrate_reversal,
-      doses: doseRows.map(
-        (d: Record<string, never>): AcetylcholineDose => ({
-          id: d.id,
-          vessel: d.vessel,
-          micrograms: d.micrograms,
-          constrictionPct: d.constriction_pct,
-          symptoms: d.symptoms,
-          ischemicEcg: d.ischemic_ecg,
-        }),
-      ),
-    },
+    vessels: vesselRows.map((v) => toVessel(v, injections)),
+    vasoreactivity: { ...readSection(vasoreactivityColumns, row, 'vaso'), doses: doseRows.map(toDose) },
     attachments: attachmentRows.map(
       (a: Record<string, never>): AttachmentSummary => ({
         id: a.id,
@@ -289,7 +258,7 @@ export async function patchStudy(dataSource: DataSource, id: string, patch: Patc
     if (patch.details) add(assignments(detailsColumns, patch.details, values.length + 1));
     if (patch.setup) add(assignments(setupColumns, patch.setup, values.length + 1));
     if (patch.findings) add(assignments(findingsColumns, patch.findings, values.length + 1));
-    if (patch.vasoreactivity) add({ sql: `nitrate_reversal = $${values.length + 1}`, values: [patch.vasoreactivity.nitrateReversal] });
+    if (patch.vasoreactivity) add(assignments(vasoreactivityColumns, patch.vasoreactivity, values.length + 1));
     await db.query(`UPDATE study SET ${[...sets, 'version = version + 1', 'updated_at = now()'].join(', ')} WHERE id = $${values.length + 1}`, [...values, id]);
     await removeIfUnused(db, leftBehind);
     if (patch.vessels) await replaceVessels(db, id, patch.vessels);
@@ -300,38 +269,69 @@ export async function patchStudy(dataSource: DataSource, id: string, patch: Patc
   });
 }
 
-async function replaceVessels(db: EntityManager, studyId: string, vessels: VesselAssessment[]): Promise<void> {
-  await db.query(`DELETE FROM vessel_assessment WHERE study_id = $1`, [studyId]);
-  for (const [position, v] of vessels.entries()) {
-    await db.query(
-      `INSERT INTO vessel_assessment (id, study_id, position, vessel, segment, visual_stenosis_pct, rest_pa, rest_pd,
-         hyperemia_pa, hyperemia_pd, console_ffr, nhpr_kind, nhpr_value, wedge_pressure, drift_pd_pa, pullback_pattern, decision)
-       VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, $12, $13, $14, $15, $16, $17)`,
-      [v.id, studyId, position, v.vessel, v.segment, v.visualStenosisPct, v.restPa, v.restPd, v.hyperemiaPa, v.hyperemiaPd, v.consoleFfr, v.nhprKind, v.nhprValue, v.wedgePressure, v.driftPdPa, v.pullbackPattern, v.decision],
-    );
-    const injections = [
-      ...v.restTransit.map((t, i) => ['rest', i, t] as const),
-      ...v.hyperemiaTransit.map((t, i) => ['hyperemia', i, t] as const),
-    ];
-    if (injections.length) {
-      await db.query(
-        `INSERT INTO thermodilution_injection (vessel_assessment_id, phase, position, transit_s)
-         SELECT $1, phase, position, transit FROM unnest($2::text[], $3::int[], $4::numeric[]) AS t(phase, position, transit)`,
-        [v.id, injections.map((x) => x[0]), injections.map((x) => x[1]), injections.map((x) => x[2])],
-      );
-    }
-  }
+/** Stored rows → the record's vessel, transit times in injection order. */
+function toVessel(v: VesselRow, injections: InjectionRow[]): VesselAssessment {
+  const mine = injections.filter((i) => i.vesselAssessmentId === v.id);
+  return {
+    id: v.id,
+    vessel: v.vessel as VesselAssessment['vessel'],
+    segment: v.segment as VesselAssessment['segment'],
+    visualStenosisPct: v.visualStenosisPct,
+    restPa: v.restPa,
+    restPd: v.restPd,
+    hyperemiaPa: v.hyperemiaPa,
+    hyperemiaPd: v.hyperemiaPd,
+    consoleFfr: v.consoleFfr,
+    nhprKind: v.nhprKind as VesselAssessment['nhprKind'],
+    nhprValue: v.nhprValue,
+    wedgePressure: v.wedgePressure,
+    driftPdPa: v.driftPdPa,
+    driftNotDoneReason: v.driftNotDoneReason,
+    timiFlow: v.timiFlow as VesselAssessment['timiFlow'],
+    correctedFrameCount: v.correctedFrameCount,
+    restTransit: mine.filter((i) => i.phase === 'rest').map((i) => i.transitSeconds),
+    hyperemiaTransit: mine.filter((i) => i.phase === 'hyperemia').map((i) => i.transitSeconds),
+    pullbackPattern: v.pullbackPattern as VesselAssessment['pullbackPattern'],
+    decision: v.decision as VesselAssessment['decision'],
+  };
 }
 
-async function replaceDoses(db: EntityManager, studyId: string, doses: AcetylcholineDose[]): Promise<void> {
-  await db.query(`DELETE FROM acetylcholine_dose WHERE study_id = $1`, [studyId]);
-  for (const [position, d] of doses.entries()) {
-    await db.query(
-      `INSERT INTO acetylcholine_dose (id, study_id, position, vessel, micrograms, constriction_pct, symptoms, ischemic_ecg)
-       VALUES ($1, $2, $3, $4, $5, $6, $7, $8)`,
-      [d.id, studyId, position, d.vessel, d.micrograms, d.constrictionPct, d.symptoms, d.ischemicEcg],
-    );
-  }
+function toDose(d: DoseRow): AcetylcholineDose {
+  return {
+    id: d.id,
+    vessel: d.vessel as AcetylcholineDose['vessel'],
+    micrograms: d.micrograms,
+    constrictionPct: d.constrictionPct,
+    symptoms: d.symptoms,
+    ischemicEcg: d.ischemicEcg,
+    heartRate: d.heartRate,
+    systolic: d.systolic,
+    diastolic: d.diastolic,
+    rhythm: d.rhythm as AcetylcholineDose['rhythm'],
+    spasmVessel: d.spasmVessel as AcetylcholineDose['spasmVessel'],
+    spasmSegment: d.spasmSegment as AcetylcholineDose['spasmSegment'],
+    spasmPattern: d.spasmPattern as AcetylcholineDose['spasmPattern'],
+  };
+}
+
+/** A section's rows are replaced whole: the client owns their ids and their order. */
+export async function replaceVessels(db: EntityManager, studyId: string, vessels: VesselAssessment[]): Promise<void> {
+  await db.delete(VesselRow, { studyId });
+  if (vessels.length === 0) return;
+  await db.insert(
+    VesselRow,
+    vessels.map(({ restTransit: _rest, hyperemiaTransit: _hyp, ...v }, position) => ({ ...v, studyId, position })),
+  );
+  const injections = vessels.flatMap((v) => [
+    ...v.restTransit.map((t, position) => ({ vesselAssessmentId: v.id, phase: 'rest' as const, position, transitSeconds: t })),
+    ...v.hyperemiaTransit.map((t, position) => ({ vesselAssessmentId: v.id, phase: 'hyperemia' as const, position, transitSeconds: t })),
+  ]);
+  if (injections.length) await db.insert(InjectionRow, injections);
+}
+
+export async function replaceDoses(db: EntityManager, studyId: string, doses: AcetylcholineDose[]): Promise<void> {
+  await db.delete(DoseRow, { studyId });
+  if (doses.length) await db.insert(DoseRow, doses.map((d, position) => ({ ...d, studyId, position })));
 }
 
 export { emptyDetails, emptySetup, emptyFindings };

@@ -7,6 +7,17 @@ export { physiologyInputSchema, vesselCodes, nhprKinds } from './schema';
 export type { PhysiologyInput, PhysiologyOutput, VesselCode, NhprKind, VesselInput, DoseInput, ProcedureInput } from './schema';
 export { hyperemicAgents, drugRoutes } from './schema';
 export { vesselShortName, vesselLongName, rightCoronaryVessels } from './vessels';
+export { driftOutOfRange } from './quality';
+export {
+  flagLabel,
+  indexLabel,
+  nhprKindLabel,
+  imrMethodLabel,
+  vasoreactivityLabel,
+  endotypeLabel,
+  microvascularLabel,
+  decisionSupportCaution,
+} from './labels';
 export { roundForDisplay, formatQuantity, formatWithUnit, displayDecimals, displayUnit, type QuantityKind } from './precision';
 export {
   defaultThresholds,

@@ -58,8 +58,13 @@ export function checkMissingSide(
 }
 
 /** The drift Pd/Pa is judged at its displayed precision, like every ratio. */
+/** The one drift rule: Pd/Pa at the guide tip outside the window, judged at its displayed precision. */
+export function driftOutOfRange(drift: number, t: Pick<Thresholds, 'driftLow' | 'driftHigh'>): boolean {
+  return below(drift, t.driftLow, 'ratio') || above(drift, t.driftHigh, 'ratio');
+}
+
 export function checkDrift(drift: number, t: Thresholds, label: string, warnings: PhysiologyWarning[]): void {
-  if (below(drift, t.driftLow, 'ratio') || above(drift, t.driftHigh, 'ratio')) {
+  if (driftOutOfRange(drift, t)) {
     warnings.push({
       code: 'drift-out-of-range',
       message: `${label}: Pd/Pa at the guide tip after pull-back was ${ratio(drift)}, outside ${cutRatio(t.driftLow)}–${cutRatio(t.driftHigh)} (${cite(t, 'driftLow')}); sensor drift may have shifted the values — repeat the measurement.`,

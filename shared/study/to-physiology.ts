@@ -1,38 +1,62 @@
-import type { PhysiologyInput } from '../physiology/schema';
+import { MAX_MICROGRAMS, MAX_PRESSURE, MAX_RATIO, MAX_TRANSIT, MIN_POSITIVE, type PhysiologyInput, type ProcedureInput } from '../physiology/schema';
 import type { StudySections } from './schema';
 
 type PhysiologyVessel = PhysiologyInput['vessels'][number];
 
-const present = (v: number | null | undefined): v is number => typeof v === 'number' && Number.isFinite(v);
+/** A number the physiology core accepts for a quantity with these limits; anything else is left out. */
+const within = (min: number, max: number) => (v: number | null | undefined): v is number =>
+  typeof v === 'number' && Number.isFinite(v) && v >= min && v <= max;
+const pressure = within(MIN_POSITIVE, MAX_PRESSURE);
+const ratio = within(MIN_POSITIVE, MAX_RATIO);
+const transit = within(MIN_POSITIVE, MAX_TRANSIT);
+const percent = within(0, 100);
+const micrograms = within(MIN_POSITIVE, MAX_MICROGRAMS);
 
 /**
- * The physiology core's input from a (possibly incomplete) study record: a pressure set goes in only
- * when both Pa and Pd are there, a dose only when every one of its fields is, so a half-typed row
- * yields fewer indices rather than an error.
+ * The physiology core's input from a (possibly incomplete, possibly mistyped) study record. A value
+ * the core could not accept — a box still holding text, a negative pressure typed on the way to a
+ * positive one — is left out, so one bad box never blanks every other live result; the form says
+ * what is wrong with it. Pa and Pd go in together; transit times stand alone (CFR needs only them);
+ * a dose goes in only when every one of its observations is there.
  */
-export function toPhysiologyInput(record: Pick<StudySections, 'vessels' | 'vasoreactivity'>): PhysiologyInput {
+export function toPhysiologyInput(record: Pick<StudySections, 'vessels' | 'vasoreactivity'> & { setup?: StudySections['setup'] }): PhysiologyInput {
   const vessels = record.vessels.map((v): PhysiologyVessel => {
     const out: PhysiologyVessel = { id: v.id, vessel: v.vessel };
-    // A transit box still holding text (NaN in the form) is left out, so one bad box does not stop
-    // every vessel's live result; the injection count then says what is missing.
-    const restTmn = v.restTransit.filter(present);
-    const hypTmn = v.hyperemiaTransit.filter(present);
-    if (present(v.restPa) && present(v.restPd)) {
-      out.rest = { pa: v.restPa, pd: v.restPd, ...(restTmn.length ? { tmn: restTmn } : {}) };
-    }
-    if (present(v.hyperemiaPa) && present(v.hyperemiaPd)) {
-      out.hyperemia = { pa: v.hyperemiaPa, pd: v.hyperemiaPd, ...(hypTmn.length ? { tmn: hypTmn } : {}) };
-    }
-    if (present(v.consoleFfr)) out.ffr = v.consoleFfr;
-    if (v.nhprKind && present(v.nhprValue)) out.nhpr = { kind: v.nhprKind, value: v.nhprValue };
-    if (present(v.wedgePressure)) out.wedgePressure = v.wedgePressure;
-    if (present(v.driftPdPa)) out.driftPdPa = v.driftPdPa;
+    const restTmn = v.restTransit.filter(transit);
+    const hypTmn = v.hyperemiaTransit.filter(transit);
+    const restPressures = pressure(v.restPa) && pressure(v.restPd) ? { pa: v.restPa, pd: v.restPd } : {};
+    const hypPressures = pressure(v.hyperemiaPa) && pressure(v.hyperemiaPd) ? { pa: v.hyperemiaPa, pd: v.hyperemiaPd } : {};
+    if ('pa' in restPressures || restTmn.length) out.rest = { ...restPressures, ...(restTmn.length ? { tmn: restTmn } : {}) };
+    if ('pa' in hypPressures || hypTmn.length) out.hyperemia = { ...hypPressures, ...(hypTmn.length ? { tmn: hypTmn } : {}) };
+    if (ratio(v.consoleFfr)) out.ffr = v.consoleFfr;
+    if (v.nhprKind && ratio(v.nhprValue)) out.nhpr = { kind: v.nhprKind, value: v.nhprValue };
+    if (pressure(v.wedgePressure)) out.wedgePressure = v.wedgePressure;
+    if (ratio(v.driftPdPa)) out.driftPdPa = v.driftPdPa;
+    if (percent(v.visualStenosisPct)) out.visualStenosisPct = v.visualStenosisPct;
     return out;
   });
   const doses = record.vasoreactivity.doses.flatMap((d) =>
-    present(d.micrograms) && present(d.constrictionPct) && d.symptoms !== null && d.ischemicEcg !== null
+    micrograms(d.micrograms) && percent(d.constrictionPct) && d.symptoms !== null && d.ischemicEcg !== null
       ? [{ vessel: d.vessel, micrograms: d.micrograms, constrictionPct: d.constrictionPct, symptoms: d.symptoms, ischemicEcg: d.ischemicEcg }]
       : [],
   );
-  return { vessels, ...(doses.length ? { vasoreactivity: { doses } } : {}) };
+  const procedure = record.setup ? toProcedure(record.setup, doses.length > 0) : undefined;
+  return {
+    vessels,
+    ...(doses.length ? { vasoreactivity: { doses } } : {}),
+    ...(procedure && Object.keys(procedure).length ? { procedure } : {}),
+  };
+}
+
+/** The facts of the procedure that some quality checks need. */
+function toProcedure(setup: StudySections['setup'], acetylcholineGiven: boolean): ProcedureInput {
+  const out: ProcedureInput = {};
+  if (setup.hyperemicAgent) out.hyperemicAgent = setup.hyperemicAgent;
+  if (setup.hyperemicRoute) out.hyperemicRoute = setup.hyperemicRoute;
+  // Only meaningful when acetylcholine was tested; "given" with no timing is not assumed either way.
+  if (acetylcholineGiven && setup.nitratesGiven !== null) {
+    if (setup.nitratesGiven === false) out.nitratesBeforeAcetylcholine = false;
+    else if (setup.nitrateTiming) out.nitratesBeforeAcetylcholine = setup.nitrateTiming === 'before-measurements';
+  }
+  return out;
 }

@@ -100,7 +100,7 @@ describe('the structured study form on a phone', () => {
       await page.setViewportSize(viewports.desktop);
       await page.goto(studyUrl + '/vessels');
       await visible(page, 'vessel-0-results-cfr-value').waitFor();
-      await visible(page, 'study-results-endotype').waitFor();
+      await visible(page, 'study-results-headline').waitFor();
       await page.screenshot({ path: screenshotPath('study-vessels-desktop') });
       await page.goto(studyUrl + '/setup');
       await visible(page, 'drift-check').waitFor();
@@ -156,8 +156,8 @@ describe('the structured study form on a phone', () => {
       await fill('vessel-0-hyp-pd', '80');
       for (const i of [0, 1, 2]) await fill(`vessel-0-hyp-tmn-${i}`, '0.5');
       await fill('vessel-0-drift', '0.99');
-      await expect(visible(page, 'vessel-0-results-imr-value').innerText()).resolves.toMatch(/^40\.0/);
-      await expect(visible(page, 'study-results-endotype').innerText()).resolves.toBe('Microvascular angina');
+      await expect(visible(page, 'vessel-0-results-imr-value').innerText()).resolves.toMatch(/^40( |$)/);
+      await expect(visible(page, 'study-results-headline').innerText()).resolves.toMatch(/^Microvascular angina: structural coronary microvascular dysfunction/);
 
       await visible(page, 'section-vasoreactivity').click();
       await page.waitForURL(/\/vasoreactivity$/);
@@ -177,8 +177,11 @@ describe('the structured study form on a phone', () => {
       await visible(page, 'dose-2-ecg-true').click();
       await visible(page, 'dose-1-remove').click();
       await visible(page, 'dose-1-remove-confirm').click();
-      await expect(visible(page, 'dose-1-result').innerText()).resolves.toBe('Response: epicardial spasm');
-      await expect(visible(page, 'study-results-endotype').innerText()).resolves.toBe('Microvascular and vasospastic angina');
+      await expect(visible(page, 'dose-1-result').innerText()).resolves.toBe('This dose: epicardial spasm');
+      // The first dose (10%, no symptoms, no ECG change) keeps its own outcome on its own card (COVADIS).
+      await expect(visible(page, 'dose-0-result').innerText()).resolves.toBe('This dose: negative');
+      await expect(visible(page, 'acetylcholine-summary').innerText()).resolves.toBe('Acetylcholine test overall: epicardial spasm');
+      await expect(visible(page, 'study-results-headline').innerText()).resolves.toMatch(/^Microvascular and vasospastic angina: structural coronary microvascular dysfunction .* and epicardial coronary spasm/);
       await visible(page, 'dose-nitrate-reversal-true').click();
       await visible(page, 'save-status-saved').waitFor({ timeout: 10_000 });
       await page.screenshot({ path: screenshotPath('study-vasoreactivity-phone') });

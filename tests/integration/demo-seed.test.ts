@@ -118,7 +118,7 @@ describe('the demo studies come out of the physiology core as intended', () => {
     // Abnormal FFR means obstructive, which takes precedence — EAPCI 2020.
     expect(analyses.get('SBR-26-0411')!.endotype).toBe('obstructive');
     expect(analyses.get('SBR-26-0411')!.findings.obstructive).toBe(true);
-    expect(r.vessels[0]).toMatchObject({ segment: 6, decision: 'pci' });
+    expect(r.vessels[0]).toMatchObject({ segment: '6', decision: 'pci' });
   });
 
   it('SBR-26-0412: moderate mid RCA lesion, normal FFR, deferred', () => {
@@ -131,7 +131,7 @@ describe('the demo studies come out of the physiology core as intended', () => {
     // Pressures only: no microvascular index and no acetylcholine, so the core calls it inconclusive.
     expect(analyses.get('SBR-26-0412')!.findings).toEqual({ obstructive: false, microvascular: null, vasospasm: null });
     expect(analyses.get('SBR-26-0412')!.endotype).toBe('inconclusive');
-    expect(r.vessels[0]).toMatchObject({ segment: 2, decision: 'defer' });
+    expect(r.vessels[0]).toMatchObject({ segment: '2', decision: 'defer' });
   });
 
   it('SBR-26-0413: angina without obstruction, structural microvascular dysfunction', () => {

@@ -18,12 +18,15 @@ const sameType = (entity: string, table: string) =>
     boolean: 'boolean',
     smallint: 'smallint',
     integer: 'integer',
+    increment: 'integer',
+    int: 'integer',
     int4: 'integer',
     bigint: 'bigint',
     numeric: 'numeric',
     date: 'date',
     char: 'character',
     timestamptz: 'timestamp with time zone',
+    jsonb: 'jsonb',
   })[entity] === table;
 
 describe('entities and migrations describe the same tables', () => {
@@ -38,7 +41,7 @@ describe('entities and migrations describe the same tables', () => {
       for (const column of meta.columns) {
         const row = table.get(column.databaseName);
         expect(row, `${meta.tableName}.${column.databaseName} missing`).toBeDefined();
-        expect(sameType(String(column.type), row!.data_type), `${meta.tableName}.${column.databaseName}: ${String(column.type)} vs ${row!.data_type}`).toBe(true);
+        expect(column.isArray ? row!.data_type === 'ARRAY' : sameType(String(column.type), row!.data_type), `${meta.tableName}.${column.databaseName}: ${String(column.type)} vs ${row!.data_type}`).toBe(true);
         expect(row!.is_nullable === 'YES', `${meta.tableName}.${column.databaseName} nullability`).toBe(column.isNullable);
       }
       const mapped = new Set(meta.columns.map((c) => c.databaseName));

@@ -2,7 +2,7 @@ import { randomUUID } from 'node:crypto';
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { DataSource } from 'typeorm';
-import { emptyVessel, type StudyRecord } from '../../shared/study/schema';
+import { emptyDose, emptyFindings, emptyVasoreactivity, emptyVessel, type StudyRecord } from '../../shared/study/schema';
 import { openTestDatabase } from '../support/app';
 import { signIn, startStack, usernameOf, type TestStack } from '../support/stack';
 
@@ -69,10 +69,10 @@ describe('POST /api/studies', () => {
 describe('PATCH /api/studies/:id', () => {
   it('stores vessels with their injections in their own tables and raises the version', async () => {
     const study = await create();
-    const vessel = { ...emptyVessel(randomUUID(), 'LAD'), segment: 6, restPa: 100, restPd: 95, hyperemiaPa: 90, hyperemiaPd: 72, restTransit: [0.9, 0.88, 0.92], hyperemiaTransit: [0.3, 0.31, 0.29] };
+    const vessel = { ...emptyVessel(randomUUID(), 'LAD'), segment: '6', restPa: 100, restPd: 95, hyperemiaPa: 90, hyperemiaPd: 72, restTransit: [0.9, 0.88, 0.92], hyperemiaTransit: [0.3, 0.31, 0.29] };
     const res = await api().patch(`/api/studies/${study.id}`).set('Cookie', staff).set('Origin', stack.url).send({ version: 1, vessels: [vessel] }).expect(200);
     expect(res.body.version).toBe(2);
-    expect(res.body.vessels[0]).toMatchObject({ vessel: 'LAD', segment: 6, restPa: 100, hyperemiaTransit: [0.3, 0.31, 0.29] });
+    expect(res.body.vessels[0]).toMatchObject({ vessel: 'LAD', segment: '6', restPa: 100, hyperemiaTransit: [0.3, 0.31, 0.29] });
     const [{ n }] = await db.query(`SELECT count(*)::int AS n FROM thermodilution_injection WHERE vessel_assessment_id = $1`, [vessel.id]);
     expect(n).toBe(6);
     const analysis = await api().get(`/api/studies/${study.id}/analysis`).set('Cookie', physician).expect(200);
@@ -84,12 +84,12 @@ describe('PATCH /api/studies/:id', () => {
 
   it('refuses a stale version with 409 and the current record, and keeps the newer data', async () => {
     const study = await create();
-    await api().patch(`/api/studies/${study.id}`).set('Cookie', staff).set('Origin', stack.url).send({ version: 1, findings: { complications: 'None', contrastMl: 80, fluoroscopyMinutes: 6.5, impression: null, plan: null } }).expect(200);
-    const stale = await api().patch(`/api/studies/${study.id}`).set('Cookie', physician).set('Origin', stack.url).send({ version: 1, findings: { complications: 'Overwritten?', contrastMl: 1, fluoroscopyMinutes: 1, impression: null, plan: null } }).expect(409);
+    await api().patch(`/api/studies/${study.id}`).set('Cookie', staff).set('Origin', stack.url).send({ version: 1, findings: { ...emptyFindings(), complicationKinds: ['none'], contrastMl: 80, fluoroscopyMinutes: 6.5 } }).expect(200);
+    const stale = await api().patch(`/api/studies/${study.id}`).set('Cookie', physician).set('Origin', stack.url).send({ version: 1, findings: { ...emptyFindings(), complications: 'Overwritten?', contrastMl: 1, fluoroscopyMinutes: 1 } }).expect(409);
     expect(stale.headers['content-type']).toMatch(/problem\+json/);
-    expect(stale.body).toMatchObject({ status: 409, currentVersion: 2, current: { findings: { complications: 'None', contrastMl: 80 } } });
+    expect(stale.body).toMatchObject({ status: 409, currentVersion: 2, current: { findings: { complicationKinds: ['none'], contrastMl: 80 } } });
     const now = await api().get(`/api/studies/${study.id}`).set('Cookie', staff).expect(200);
-    expect(now.body.findings.complications).toBe('None');
+    expect(now.body.findings.complicationKinds).toEqual(['none']);
     expect(now.body.version).toBe(2);
   });
 
@@ -97,7 +97,11 @@ describe('PATCH /api/studies/:id', () => {
     ['a negative pressure', { vessels: [{ ...emptyVessel('7d5b6f1e-0a4c-4d3f-9b1e-2c3d4e5f6a7b', 'LAD'), restPa: -4 }] }, '/vessels/0/restPa'],
     ['a transit time above 10 s', { vessels: [{ ...emptyVessel('7d5b6f1e-0a4c-4d3f-9b1e-2c3d4e5f6a7b', 'RCA'), restTransit: [0.8, 12] }] }, '/vessels/0/restTransit/1'],
     ['an unknown vessel', { vessels: [{ ...emptyVessel('7d5b6f1e-0a4c-4d3f-9b1e-2c3d4e5f6a7b', 'LAD'), vessel: 'XYZ' }] }, '/vessels/0/vessel'],
-    ['a constriction above 100%', { vasoreactivity: { nitrateReversal: null, doses: [{ id: '6c1d2e3f-4a5b-4c6d-8e7f-9a0b1c2d3e4f', vessel: 'LAD', micrograms: 20, constrictionPct: 140, symptoms: false, ischemicEcg: false }] } }, '/vasoreactivity/doses/0/constrictionPct'],
+    ['a constriction above 100%', { vasoreactivity: { ...emptyVasoreactivity(), doses: [{ ...emptyDose('6c1d2e3f-4a5b-4c6d-8e7f-9a0b1c2d3e4f', 'LAD'), micrograms: 20, constrictionPct: 140, symptoms: false, ischemicEcg: false }] } }, '/vasoreactivity/doses/0/constrictionPct'],
+    ['a wedge pressure of 0 (the analysis needs a positive pressure)', { vessels: [{ ...emptyVessel('7d5b6f1e-0a4c-4d3f-9b1e-2c3d4e5f6a7b', 'LAD'), wedgePressure: 0 }] }, '/vessels/0/wedgePressure'],
+    ['a pressure below the measurable floor', { vessels: [{ ...emptyVessel('7d5b6f1e-0a4c-4d3f-9b1e-2c3d4e5f6a7b', 'LAD'), restPa: 0.0005 }] }, '/vessels/0/restPa'],
+    ['"none" together with a complication', { findings: { ...emptyFindings(), complicationKinds: ['none', 'dissection'] } }, '/findings/complicationKinds'],
+    ['a segment code that does not exist', { vessels: [{ ...emptyVessel('7d5b6f1e-0a4c-4d3f-9b1e-2c3d4e5f6a7b', 'LAD'), segment: '18' }] }, '/vessels/0/segment'],
     ['no version', { version: undefined }, '/version'],
   ])('refuses %s with a field error at its pointer', async (_what, body, pointer) => {
     const study = await create();
@@ -108,7 +112,7 @@ describe('PATCH /api/studies/:id', () => {
   it('refuses edits to a signed study', async () => {
     const study = await create();
     await db.query(`UPDATE study SET state = 'signed' WHERE id = $1`, [study.id]);
-    const res = await api().patch(`/api/studies/${study.id}`).set('Cookie', physician).set('Origin', stack.url).send({ version: 1, findings: { complications: null, contrastMl: null, fluoroscopyMinutes: null, impression: 'x', plan: null } }).expect(409);
+    const res = await api().patch(`/api/studies/${study.id}`).set('Cookie', physician).set('Origin', stack.url).send({ version: 1, findings: { ...emptyFindings(), impression: 'x' } }).expect(409);
     expect(res.body.title).toBe('The study is signed');
   });
 

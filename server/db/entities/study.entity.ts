@@ -2,6 +2,7 @@ import { Column, Entity, JoinColumn, ManyToOne, PrimaryGeneratedColumn, VersionC
 import { Timestamped } from './timestamps';
 import { Patient } from './patient.entity';
 import { User } from './user.entity';
+import { numeric } from './numeric';
 
 /**
  * One physiology study of one patient in one catheterization session.
@@ -51,25 +52,38 @@ export class Study extends Timestamped {
   @Column('text', { name: 'referring_email', nullable: true }) referringEmail!: string | null;
   @Column('text', { name: 'access_site', nullable: true }) accessSite!: string | null;
   @Column('smallint', { name: 'guide_french', nullable: true }) guideFrench!: number | null;
+  @Column('numeric', { name: 'weight_kg', nullable: true, transformer: numeric }) weightKg!: number | null;
+  @Column('numeric', { name: 'height_cm', nullable: true, transformer: numeric }) heightCm!: number | null;
+  @Column('boolean', { name: 'angina_present', nullable: true }) anginaPresent!: boolean | null;
+  @Column('text', { name: 'angina_character', nullable: true }) anginaCharacter!: string | null;
 
   // Setup and quality steps.
   @Column('boolean', { name: 'transducer_zeroed', nullable: true }) transducerZeroed!: boolean | null;
   @Column('boolean', { name: 'nitrates_given', nullable: true }) nitratesGiven!: boolean | null;
-  @Column('numeric', { name: 'nitrate_dose_ug', nullable: true }) nitrateDoseMicrograms!: string | null;
+  @Column('numeric', { name: 'nitrate_dose_ug', nullable: true, transformer: numeric }) nitrateDoseMicrograms!: number | null;
   @Column('boolean', { name: 'equalized_in_aorta', nullable: true }) equalizedInAorta!: boolean | null;
   @Column('boolean', { name: 'introducer_removed', nullable: true }) introducerRemoved!: boolean | null;
   @Column('text', { name: 'wire_position', nullable: true }) wirePosition!: string | null;
   @Column('text', { name: 'hyperemic_agent', nullable: true }) hyperemicAgent!: string | null;
   @Column('text', { name: 'hyperemic_route', nullable: true }) hyperemicRoute!: string | null;
-  @Column('numeric', { name: 'hyperemic_dose', nullable: true }) hyperemicDose!: string | null;
+  @Column('numeric', { name: 'hyperemic_dose', nullable: true, transformer: numeric }) hyperemicDose!: number | null;
   @Column('text', { name: 'hyperemic_dose_unit', nullable: true }) hyperemicDoseUnit!: string | null;
-  @Column('numeric', { name: 'heparin_units', nullable: true }) heparinUnits!: string | null;
+  @Column('numeric', { name: 'heparin_units', nullable: true, transformer: numeric }) heparinUnits!: number | null;
+  @Column('text', { name: 'nitrate_timing', nullable: true }) nitrateTiming!: string | null;
+  @Column('smallint', { name: 'baseline_heart_rate', nullable: true }) baselineHeartRate!: number | null;
+  @Column('smallint', { name: 'baseline_systolic', nullable: true }) baselineSystolic!: number | null;
+  @Column('smallint', { name: 'baseline_diastolic', nullable: true }) baselineDiastolic!: number | null;
+  @Column('text', { name: 'baseline_rhythm', nullable: true }) baselineRhythm!: string | null;
+  @Column('numeric', { nullable: true, transformer: numeric }) lvedp!: number | null;
   @Column('boolean', { name: 'nitrate_reversal', nullable: true }) nitrateReversal!: boolean | null;
+  @Column('numeric', { name: 'reversal_ntg_ug', nullable: true, transformer: numeric }) reversalNitroglycerinMicrograms!: number | null;
+  @Column('timestamptz', { name: 'reversal_ntg_at', nullable: true }) reversalNitroglycerinAt!: Date | null;
 
   // Findings and plan.
+  @Column('text', { name: 'complication_kinds', array: true, default: () => "'{}'" }) complicationKinds!: string[];
   @Column('text', { nullable: true }) complications!: string | null;
-  @Column('numeric', { name: 'contrast_ml', nullable: true }) contrastMl!: string | null;
-  @Column('numeric', { name: 'fluoroscopy_minutes', nullable: true }) fluoroscopyMinutes!: string | null;
+  @Column('numeric', { name: 'contrast_ml', nullable: true, transformer: numeric }) contrastMl!: number | null;
+  @Column('numeric', { name: 'fluoroscopy_minutes', nullable: true, transformer: numeric }) fluoroscopyMinutes!: number | null;
   @Column('text', { nullable: true }) impression!: string | null;
   @Column('text', { nullable: true }) plan!: string | null;
 

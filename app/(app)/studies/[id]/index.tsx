@@ -1,9 +1,9 @@
-import { ChoiceField, NumberField, TextField } from '../../../../components/form/fields';
+import { ChoiceField, NumberField, TextField, YesNoField } from '../../../../components/form/fields';
 import { DateTimeField } from '../../../../components/form/date-time-field';
 import { optionsOf } from '../../../../components/form/options';
 import { FieldRow, SectionCard } from '../../../../components/study/section-card';
 import { useOperators } from '../../../../components/data/study-query';
-import { accessSiteLabel, clinicalQuestionLabel, sexLabel } from '../../../../shared/study/vocabulary';
+import { accessSiteLabel, anginaCharacterLabel, clinicalQuestionLabel, sexLabel } from '../../../../shared/study/vocabulary';
 
 /** Patient & indication. */
 export default function OverviewSection() {
@@ -38,7 +38,15 @@ export default function OverviewSection() {
           <TextField name="details.referringName" label="Referring clinician" testID="details-referring-name" />
           <TextField name="details.referringEmail" label="Referring clinician's e-mail" keyboard="email" testID="details-referring-email" />
         </FieldRow>
+        <FieldRow>
+          <NumberField name="details.weightKg" label="Weight" unit="kg" testID="details-weight" />
+          <NumberField name="details.heightCm" label="Height" unit="cm" testID="details-height" />
+        </FieldRow>
         <TextField name="details.indication" label="Indication" multiline testID="details-indication" />
+        <FieldRow>
+          <YesNoField name="details.anginaPresent" label="Angina" testID="details-angina" />
+          <ChoiceField name="details.anginaCharacter" label="Angina character" testID="details-angina-character" options={optionsOf(anginaCharacterLabel)} />
+        </FieldRow>
         <ChoiceField name="details.clinicalQuestion" label="Clinical question" testID="details-question" options={optionsOf(clinicalQuestionLabel)} />
         <FieldRow>
           <ChoiceField name="details.accessSite" label="Access site" testID="details-access" options={optionsOf(accessSiteLabel)} />

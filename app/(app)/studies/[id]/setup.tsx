@@ -5,10 +5,11 @@ import { optionsOf } from '../../../../components/form/options';
 import { FieldRow, SectionCard } from '../../../../components/study/section-card';
 import { Text } from '../../../../components/ui/text';
 import { color, radius, space } from '../../../../components/theme';
-import { useLiveAnalysis } from '../../../../components/study/live-results';
-import { defaultThresholds } from '../../../../shared/physiology';
+import { useThresholds } from '../../../../components/data/thresholds-query';
+import { formatQuantity, vesselShortName } from '../../../../shared/physiology';
 import type { StudySections } from '../../../../shared/study/schema';
-import { doseUnitLabel, drugRouteLabel, hyperemicAgentLabel, vesselLabel, wirePositionLabel } from '../../../../shared/study/vocabulary';
+import { summariseDrift } from '../../../../shared/study/drift';
+import { doseUnitLabel, drugRouteLabel, hyperemicAgentLabel, nitrateTimingLabel, rhythmLabel, wirePositionLabel } from '../../../../shared/study/vocabulary';
 
 /** Setup & quality: the steps that make the numbers trustworthy, and the drift check of every vessel. */
 export default function SetupSection() {
@@ -18,15 +19,33 @@ export default function SetupSection() {
       <SectionCard title="Before measuring" testID="card-setup">
         <YesNoField name="setup.transducerZeroed" label="Transducer zeroed at heart level" testID="setup-zeroed" />
         <FieldRow>
-          <YesNoField name="setup.nitratesGiven" label="Nitrates before wiring" testID="setup-nitrates" />
-          <NumberField name="setup.nitrateDoseMicrograms" label="Nitrate dose" unit="µg" testID="setup-nitrate-dose" />
+          <YesNoField name="setup.nitratesGiven" label="Intracoronary nitroglycerin given" testID="setup-nitrates" />
+          <NumberField name="setup.nitrateDoseMicrograms" label="Nitroglycerin dose" unit="µg" testID="setup-nitrate-dose" />
         </FieldRow>
+        <ChoiceField
+          name="setup.nitrateTiming"
+          label="When it was given"
+          hint="In a coronary function test, nitroglycerin before acetylcholine can make the test falsely negative."
+          testID="setup-nitrate-timing"
+          options={optionsOf(nitrateTimingLabel)}
+        />
         <FieldRow>
           <YesNoField name="setup.equalizedInAorta" label="Pressures equalized in the aorta" testID="setup-equalized" />
           <YesNoField name="setup.introducerRemoved" label="Introducer removed before equalizing" testID="setup-introducer" />
         </FieldRow>
         <ChoiceField name="setup.wirePosition" label="Wire sensor position" testID="setup-wire" options={optionsOf(wirePositionLabel)} />
         <NumberField name="setup.heparinUnits" label="Heparin" unit="U" integer testID="setup-heparin" />
+      </SectionCard>
+      <SectionCard title="Haemodynamics at baseline" testID="card-baseline">
+        <FieldRow>
+          <NumberField name="setup.baselineHeartRate" label="Heart rate" unit="bpm" integer testID="setup-baseline-hr" />
+          <NumberField name="setup.baselineSystolic" label="Systolic pressure" unit="mmHg" integer testID="setup-baseline-systolic" />
+          <NumberField name="setup.baselineDiastolic" label="Diastolic pressure" unit="mmHg" integer testID="setup-baseline-diastolic" />
+        </FieldRow>
+        <FieldRow>
+          <ChoiceField name="setup.baselineRhythm" label="Rhythm" testID="setup-baseline-rhythm" options={optionsOf(rhythmLabel)} />
+          <NumberField name="setup.lvedp" label="LVEDP" unit="mmHg" testID="setup-lvedp" />
+        </FieldRow>
       </SectionCard>
       <SectionCard title="Hyperaemia" testID="card-hyperemia">
         <ChoiceField name="setup.hyperemicAgent" label="Agent" testID="setup-agent" options={optionsOf(hyperemicAgentLabel)} />
@@ -40,38 +59,37 @@ export default function SetupSection() {
   );
 }
 
-/** Drift: missing or out of range is said prominently, per vessel, with the window used. */
+/** Drift: missing or out of range is said prominently, per vessel, with the window used; nothing before a vessel exists. */
 function DriftCheck() {
   const { control } = useFormContext<StudySections>();
   const vessels = useWatch({ control, name: 'vessels' }) ?? [];
-  const { result } = useLiveAnalysis();
-  const low = defaultThresholds.driftLow;
-  const high = defaultThresholds.driftHigh;
-  const missing = vessels.filter((v) => v.driftPdPa == null);
-  const outOfRange = (result?.vessels ?? []).filter((v) => v.warnings.some((w) => w.code === 'drift-out-of-range'));
-  const ok = vessels.length > 0 && missing.length === 0 && outOfRange.length === 0;
+  const { values: t } = useThresholds();
+  const low = formatQuantity(t.driftLow, 'ratio');
+  const high = formatQuantity(t.driftHigh, 'ratio');
+  const drift = summariseDrift(vessels, t);
+  const needsAttention = drift.missing.length > 0 || drift.outside.length > 0;
+  const tone = !drift.judged ? styles.driftNeutral : needsAttention ? styles.driftBad : styles.driftOk;
   return (
-    <View style={[styles.drift, ok ? styles.driftOk : styles.driftBad]} testID="drift-check" role={ok ? undefined : 'alert'}>
-      <Text weight="semibold" tone={ok ? 'ink' : 'abnormal'}>
-        {vessels.length === 0
-          ? '▲ Drift check: no vessel measured yet'
-          : ok
-            ? `✓ Drift checked for every vessel (within ${low.toFixed(2)}–${high.toFixed(2)})`
-            : '▲ Drift check needs attention'}
+    <View style={[styles.drift, tone]} testID="drift-check" role={needsAttention ? 'alert' : undefined}>
+      <Text weight="semibold" tone={needsAttention ? 'abnormal' : 'ink'}>
+        {!drift.judged
+          ? 'Drift check: recorded per vessel once a vessel is added'
+          : needsAttention
+            ? '▲ Drift check needs attention'
+            : `✓ Drift checked for every vessel (within ${low}–${high})${drift.notDone.length ? `; not done for ${drift.notDone.map((c) => vesselShortName[c]).join(', ')}, with a reason` : ''}`}
       </Text>
-      {missing.map((v) => (
-        <Text key={v.id} variant="caption" tone="abnormal" testID={`drift-missing-${v.vessel}`}>
-          {vesselLabel[v.vessel]}: no pull-back Pd/Pa recorded. Enter it on the vessel card.
+      {drift.missing.map((code, i) => (
+        <Text key={`${code}-${i}`} variant="caption" tone="abnormal" testID={`drift-missing-${code}`}>
+          {vesselShortName[code]}: no pull-back Pd/Pa recorded. Enter it on the vessel card, or say why it was not done.
         </Text>
       ))}
-      {outOfRange.map((v) => (
-        <Text key={v.id} variant="caption" tone="abnormal">
-          {v.warnings.find((w) => w.code === 'drift-out-of-range')!.message}
+      {drift.outside.map((code, i) => (
+        <Text key={`${code}-out-${i}`} variant="caption" tone="abnormal" testID={`drift-outside-${code}`}>
+          {vesselShortName[code]}: Pd/Pa at the guide tip outside {low}–{high}; repeat the measurement or read its values with caution.
         </Text>
       ))}
       <Text variant="caption" tone="muted">
-        Pull the sensor back to the guide tip after the run: Pd/Pa there should read {low.toFixed(2)}–{high.toFixed(2)}; outside it, repeat
-        the measurement.
+        Pull the sensor back to the guide tip after the run: Pd/Pa there should read {low}–{high} (the lab's setting).
       </Text>
     </View>
   );
@@ -81,4 +99,5 @@ const styles = StyleSheet.create({
   drift: { gap: space.xs, borderRadius: radius.lg, borderWidth: 1, padding: space.lg },
   driftOk: { backgroundColor: color.normalSoft, borderColor: color.normal },
   driftBad: { backgroundColor: color.abnormalSoft, borderColor: color.abnormal, borderWidth: 2 },
+  driftNeutral: { backgroundColor: color.surface, borderColor: color.line },
 });

@@ -1,5 +1,7 @@
-import { useFieldArray, useFormContext } from 'react-hook-form';
+import { useFieldArray, useFormContext, useWatch } from 'react-hook-form';
 import { ChoiceField, NumberField, YesNoField } from '../../../../components/form/fields';
+import { DateTimeField } from '../../../../components/form/date-time-field';
+import { optionsOf } from '../../../../components/form/options';
 import { newId } from '../../../../components/form/new-id';
 import { FieldRow, SectionCard } from '../../../../components/study/section-card';
 import { useLiveAnalysis } from '../../../../components/study/live-results';
@@ -7,17 +9,27 @@ import { Button } from '../../../../components/ui/button';
 import { ConfirmRemove } from '../../../../components/ui/confirm-remove';
 import { EmptyState } from '../../../../components/ui/async-states';
 import { Text } from '../../../../components/ui/text';
-import { vesselCodes } from '../../../../shared/physiology';
-import { emptyDose, type StudySections } from '../../../../shared/study/schema';
+import { classifyDose, vasoreactivityLabel, vesselCodes, vesselShortName } from '../../../../shared/physiology';
+import { emptyDose, type AcetylcholineDose, type StudySections } from '../../../../shared/study/schema';
+import { coronarySegments, rhythmLabel, spasmPatternLabel } from '../../../../shared/study/vocabulary';
 
 /** Left-coronary acetylcholine protocol doses (ESC 2024 protocol figure); lower doses in the right coronary. */
 const protocolMicrograms = [2, 20, 100, 200];
+
+const vesselOptions = vesselCodes.map((v) => ({ value: v, label: vesselShortName[v] }));
+
+/** This dose's own outcome, once its observations are all there. */
+function doseOutcome(d: AcetylcholineDose | undefined, t: Parameters<typeof classifyDose>[1]) {
+  if (!d || typeof d.micrograms !== 'number' || typeof d.constrictionPct !== 'number' || !Number.isFinite(d.constrictionPct) || d.symptoms === null || d.ischemicEcg === null) return null;
+  return classifyDose({ vessel: d.vessel, micrograms: d.micrograms, constrictionPct: d.constrictionPct, symptoms: d.symptoms, ischemicEcg: d.ischemicEcg }, t);
+}
 
 /** Vasoreactivity: each acetylcholine dose with the angiographic response, symptoms and ECG. */
 export default function VasoreactivitySection() {
   const { control, getValues } = useFormContext<StudySections>();
   const { fields, append, remove } = useFieldArray({ control, name: 'vasoreactivity.doses', keyName: 'key' });
-  const { result } = useLiveAnalysis();
+  const doses = useWatch({ control, name: 'vasoreactivity.doses' }) ?? [];
+  const { result, thresholds } = useLiveAnalysis();
   const addNext = () => {
     const doses = getValues('vasoreactivity.doses');
     const last = doses[doses.length - 1];
@@ -34,7 +46,7 @@ export default function VasoreactivitySection() {
         {fields.length === 0 ? <EmptyState title="No dose recorded" detail="Add the first dose when it is given." testID="doses-empty" /> : null}
         {fields.map((f, i) => {
           const p = `vasoreactivity.doses.${i}`;
-          const outcome = result?.doseResults?.[i]?.result;
+          const outcome = doseOutcome(doses[i], thresholds);
           return (
             <SectionCard
               key={f.key}
@@ -42,7 +54,7 @@ export default function VasoreactivitySection() {
               testID={`dose-card-${i}`}
               aside={<ConfirmRemove what={`dose ${i + 1}`} onConfirm={() => remove(i)} testID={`dose-${i}-remove`} />}
             >
-              <ChoiceField name={`${p}.vessel`} label="Into" testID={`dose-${i}-vessel`} options={vesselCodes.map((v) => ({ value: v, label: v }))} allowClear={false} />
+              <ChoiceField name={`${p}.vessel`} label="Injected into" testID={`dose-${i}-vessel`} options={vesselOptions} allowClear={false} />
               <FieldRow>
                 <NumberField name={`${p}.micrograms`} label="Dose" unit="µg" testID={`dose-${i}-micrograms`} />
                 <NumberField name={`${p}.constrictionPct`} label="Diameter reduction vs baseline" unit="%" testID={`dose-${i}-constriction`} />
@@ -51,18 +63,43 @@ export default function VasoreactivitySection() {
                 <YesNoField name={`${p}.symptoms`} label="Usual symptoms reproduced" testID={`dose-${i}-symptoms`} />
                 <YesNoField name={`${p}.ischemicEcg`} label="Ischaemic ECG changes" testID={`dose-${i}-ecg`} />
               </FieldRow>
-              {outcome ? (
-                <Text weight="semibold" testID={`dose-${i}-result`}>
-                  Response: {outcome.replaceAll('-', ' ')}
-                </Text>
-              ) : null}
+              <FieldRow>
+                <NumberField name={`${p}.heartRate`} label="Heart rate" unit="bpm" integer testID={`dose-${i}-hr`} />
+                <NumberField name={`${p}.systolic`} label="Systolic" unit="mmHg" integer testID={`dose-${i}-systolic`} />
+                <NumberField name={`${p}.diastolic`} label="Diastolic" unit="mmHg" integer testID={`dose-${i}-diastolic`} />
+              </FieldRow>
+              <ChoiceField name={`${p}.rhythm`} label="Rhythm" testID={`dose-${i}-rhythm`} options={optionsOf(rhythmLabel)} />
+              <ChoiceField name={`${p}.spasmVessel`} label="Constriction seen in" hint="Where the narrowing was seen, if not where the drug went" testID={`dose-${i}-spasm-vessel`} options={vesselOptions} />
+              <FieldRow>
+                <ChoiceField
+                  name={`${p}.spasmSegment`}
+                  label="Segment"
+                  testID={`dose-${i}-spasm-segment`}
+                  options={coronarySegments
+                    .filter((s) => !doses[i]?.spasmVessel || s.vessel === doses[i]?.spasmVessel)
+                    .map((s) => ({ value: s.code, label: `${s.code} ${s.label}` }))}
+                />
+                <ChoiceField name={`${p}.spasmPattern`} label="Pattern" testID={`dose-${i}-spasm-pattern`} options={optionsOf(spasmPatternLabel)} />
+              </FieldRow>
+              <Text weight="semibold" testID={`dose-${i}-result`} aria-live="polite">
+                {outcome ? `This dose: ${vasoreactivityLabel[outcome].toLowerCase()}` : 'This dose: outcome shown once constriction, symptoms and ECG are entered'}
+              </Text>
             </SectionCard>
           );
         })}
         <Button testID="add-dose" label={fields.length ? 'Add the next dose' : 'Add a dose'} onPress={addNext} />
       </SectionCard>
       <SectionCard title="After the doses" testID="card-reversal">
-        <YesNoField name="vasoreactivity.nitrateReversal" label="Spasm reversed with nitrates" testID="dose-nitrate-reversal" />
+        {result?.vasoreactivity ? (
+          <Text weight="semibold" testID="acetylcholine-summary">
+            Acetylcholine test overall: {vasoreactivityLabel[result.vasoreactivity.result].toLowerCase()}
+          </Text>
+        ) : null}
+        <YesNoField name="vasoreactivity.nitrateReversal" label="Spasm reversed with nitroglycerin" testID="dose-nitrate-reversal" />
+        <FieldRow>
+          <NumberField name="vasoreactivity.reversalNitroglycerinMicrograms" label="Nitroglycerin given" unit="µg" testID="dose-reversal-ntg" />
+          <DateTimeField name="vasoreactivity.reversalNitroglycerinAt" label="At" testID="dose-reversal-ntg-at" />
+        </FieldRow>
         {(result?.warnings ?? []).map((w) => (
           <Text key={w.message} variant="caption" tone="abnormal">
             ⚠ {w.message}

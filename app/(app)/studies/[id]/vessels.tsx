@@ -1,7 +1,7 @@
 import { useState } from 'react';
 import { Pressable, StyleSheet, View } from 'react-native';
 import { useFieldArray, useFormContext, useWatch } from 'react-hook-form';
-import { ChoiceField, NumberField, TransitTimesField } from '../../../../components/form/fields';
+import { ChoiceField, NumberField, TextField, TransitTimesField } from '../../../../components/form/fields';
 import { optionsOf } from '../../../../components/form/options';
 import { newId } from '../../../../components/form/new-id';
 import { FieldRow, SectionCard } from '../../../../components/study/section-card';
@@ -11,11 +11,18 @@ import { ConfirmRemove } from '../../../../components/ui/confirm-remove';
 import { EmptyState } from '../../../../components/ui/async-states';
 import { Text } from '../../../../components/ui/text';
 import { color, radius, space, touchTarget } from '../../../../components/theme';
-import { vesselCodes, nhprKinds, type VesselCode, type VesselResult } from '../../../../shared/physiology';
+import { vesselCodes, nhprKinds, nhprKindLabel, type VesselCode, type VesselResult } from '../../../../shared/physiology';
 import { emptyVessel, type StudySections } from '../../../../shared/study/schema';
-import { coronarySegments, decisionLabel, pullbackPatternLabel, segmentModelName, vesselLabel } from '../../../../shared/study/vocabulary';
-
-const nhprKindLabel = { 'whole-cycle': 'Whole-cycle Pd/Pa', diastolic: 'Diastolic ratio', 'full-cycle-minimum': 'Full-cycle minimum ratio' } as const;
+import {
+  coronarySegments,
+  decisionLabel,
+  pullbackPatternLabel,
+  segmentModelName,
+  timiFlowGrades,
+  timiFlowLabel,
+  vesselLabel,
+  vesselShortName,
+} from '../../../../shared/study/vocabulary';
 
 /** Vessels: one card per vessel studied, with its pressures, transit times and live indices. */
 export default function VesselsSection() {
@@ -44,7 +51,7 @@ export default function VesselsSection() {
                 }}
                 style={styles.pickItem}
               >
-                <Text weight="semibold">{code}</Text>
+                <Text weight="semibold">{vesselShortName[code]}</Text>
                 <Text variant="caption" tone="muted">
                   {vesselLabel[code]}
                 </Text>
@@ -68,7 +75,7 @@ function VesselCard({ index, onRemove, result }: { index: number; onRemove: () =
   const segments = coronarySegments.filter((s) => s.vessel === vessel);
   return (
     <SectionCard
-      title={`${vessel} · ${vesselLabel[vessel]}`}
+      title={`${vesselShortName[vessel]} · ${vesselLabel[vessel]}`}
       testID={`vessel-card-${index}`}
       aside={<ConfirmRemove what={`the ${vesselLabel[vessel]} and its measurements`} onConfirm={onRemove} testID={`${t}-remove`} />}
     >
@@ -78,31 +85,36 @@ function VesselCard({ index, onRemove, result }: { index: number; onRemove: () =
           name={`${p}.segment`}
           label={`Segment (${segmentModelName})`}
           testID={`${t}-segment`}
-          options={(segments.length ? segments : coronarySegments).map((s) => ({ value: s.n, label: `${s.n} ${s.label}` }))}
+          options={(segments.length ? segments : coronarySegments).map((s) => ({ value: s.code, label: `${s.code} ${s.label}` }))}
         />
         <NumberField name={`${p}.visualStenosisPct`} label="Visual stenosis" unit="%" testID={`${t}-stenosis`} />
       </FieldRow>
+      <FieldRow>
+        <ChoiceField name={`${p}.timiFlow`} label="TIMI flow" testID={`${t}-timi`} options={timiFlowGrades.map((g) => ({ value: g, label: timiFlowLabel[g] }))} />
+        <NumberField name={`${p}.correctedFrameCount`} label="Corrected TIMI frame count" unit="frames" testID={`${t}-cfc`} />
+      </FieldRow>
       <Text weight="semibold">At rest</Text>
       <FieldRow>
-        <NumberField name={`${p}.restPa`} label="Pa" unit="mmHg" testID={`${t}-rest-pa`} />
-        <NumberField name={`${p}.restPd`} label="Pd" unit="mmHg" testID={`${t}-rest-pd`} />
+        <NumberField name={`${p}.restPa`} label="Pa" accessibleLabel="Resting Pa" unit="mmHg" testID={`${t}-rest-pa`} />
+        <NumberField name={`${p}.restPd`} label="Pd" accessibleLabel="Resting Pd" unit="mmHg" testID={`${t}-rest-pd`} />
       </FieldRow>
       <TransitTimesField name={`${p}.restTransit`} label="Transit time at rest" testID={`${t}-rest-tmn`} />
       <FieldRow>
         <ChoiceField name={`${p}.nhprKind`} label="Resting ratio from the console" testID={`${t}-nhpr-kind`} options={nhprKinds.map((k) => ({ value: k, label: nhprKindLabel[k] }))} />
-        <NumberField name={`${p}.nhprValue`} label="Resting ratio value" testID={`${t}-nhpr-value`} />
+        <NumberField name={`${p}.nhprValue`} label="Resting ratio value" decimals={2} testID={`${t}-nhpr-value`} />
       </FieldRow>
       <Text weight="semibold">At hyperaemia</Text>
       <FieldRow>
-        <NumberField name={`${p}.hyperemiaPa`} label="Pa" unit="mmHg" testID={`${t}-hyp-pa`} />
-        <NumberField name={`${p}.hyperemiaPd`} label="Pd" unit="mmHg" testID={`${t}-hyp-pd`} />
-        <NumberField name={`${p}.consoleFfr`} label="FFR from the console" hint="Only when pressures were not entered" testID={`${t}-console-ffr`} />
+        <NumberField name={`${p}.hyperemiaPa`} label="Pa" accessibleLabel="Hyperaemic Pa" unit="mmHg" testID={`${t}-hyp-pa`} />
+        <NumberField name={`${p}.hyperemiaPd`} label="Pd" accessibleLabel="Hyperaemic Pd" unit="mmHg" testID={`${t}-hyp-pd`} />
+        <NumberField name={`${p}.consoleFfr`} label="FFR from the console" decimals={2} hint="Only when pressures were not entered" testID={`${t}-console-ffr`} />
       </FieldRow>
       <TransitTimesField name={`${p}.hyperemiaTransit`} label="Transit time at hyperaemia" testID={`${t}-hyp-tmn`} />
       <FieldRow>
         <NumberField name={`${p}.wedgePressure`} label="Coronary wedge pressure" unit="mmHg" hint="During balloon occlusion, if measured" testID={`${t}-wedge`} />
-        <NumberField name={`${p}.driftPdPa`} label="Drift check at pull-back (Pd/Pa)" hint="Sensor at the guide tip after the run" testID={`${t}-drift`} />
+        <NumberField name={`${p}.driftPdPa`} label="Drift check at pull-back (Pd/Pa)" decimals={2} hint="Sensor at the guide tip after the run" testID={`${t}-drift`} />
       </FieldRow>
+      <TextField name={`${p}.driftNotDoneReason`} label="Drift check not done: why" hint="Only when no pull-back Pd/Pa was recorded" testID={`${t}-drift-not-done`} />
       <ChoiceField name={`${p}.pullbackPattern`} label="Pull-back pattern" testID={`${t}-pullback`} options={optionsOf(pullbackPatternLabel)} />
       <ChoiceField name={`${p}.decision`} label="Decision" testID={`${t}-decision`} options={optionsOf(decisionLabel)} />
     </SectionCard>
