@@ -10,6 +10,7 @@ import type {
 } from '../../shared/study/schema';
 import { emptyDetails, emptyFindings, emptySetup } from '../../shared/study/schema';
 import type { StudyState } from '../../shared/study/vocabulary';
+import { isEditable } from '../../shared/study/state-machine';
 import { HttpError, NotFoundError } from '../http/problem';
 import { recordAudit, type AuditEntry } from '../audit/audit';
 import { assignments, detailsColumns, findingsColumns, readSection, selectList, setupColumns, vasoreactivityColumns } from './columns';
@@ -196,13 +197,11 @@ export class StudyLockedError extends HttpError {
   }
 }
 
-export const editableStates = ['draft', 'awaiting-signature'] as const;
-
 /** Locks the study row for the rest of the transaction and refuses when it is signed. */
 export async function lockEditableStudy(db: EntityManager, id: string): Promise<{ patientId: string; version: number }> {
   const [row] = await db.query(`SELECT patient_id, version, state FROM study WHERE id = $1 FOR UPDATE`, [id]);
   if (!row) throw new NotFoundError('No study has this id.');
-  if (!(editableStates as readonly string[]).includes(row.state)) throw new StudyLockedError(row.state);
+  if (!isEditable(row.state)) throw new StudyLockedError(row.state);
   return { patientId: row.patient_id, version: row.version };
 }
 

@@ -62,7 +62,8 @@ describe('the structured study form on a phone', () => {
       await expect(visible(page, 'drift-alert').innerText()).resolves.toMatch(/Drift check missing for LAD/);
       const restPa = visible(page, 'vessel-0-rest-pa');
       expect(await restPa.getAttribute('inputmode')).toBe('decimal');
-      expect(await restPa.getAttribute('aria-label')).toBe('Pa in mmHg');
+      expect(await restPa.getAttribute('aria-label')).toBe('Resting Pa in mmHg');
+      expect(await visible(page, 'vessel-0-hyp-pa').getAttribute('aria-label')).toBe('Hyperaemic Pa in mmHg');
       // Hand-computed from the published formulas (CFR = Tmn rest / Tmn hyp, EAPCI 2020; IMR = Pd × Tmn, Yong et al.): CFR 0.90 / 0.30 = 3.00, IMR 72 × 0.30 = 21.6,
       // corrected without wedge 20.52 because FFR 72/90 = 0.80 is abnormal (≤ 0.80, ESC 2024).
       await restPa.fill('100');
@@ -77,7 +78,8 @@ describe('the structured study form on a phone', () => {
       await expect.poll(() => visible(page, 'drift-alert').count()).toBe(0);
 
       await expect(visible(page, 'vessel-0-results-cfr-value').innerText()).resolves.toBe('3.00');
-      await expect(visible(page, 'vessel-0-results-imr-value').innerText()).resolves.toMatch(/^20\.5/);
+      // IMR is shown and judged as a whole number: 20.52 → 21.
+      await expect(visible(page, 'vessel-0-results-imr-value').innerText()).resolves.toMatch(/^21( |$)/);
       await expect(visible(page, 'vessel-0-results-ffr-flag').innerText()).resolves.toBe('▲ Abnormal');
       await expect(visible(page, 'vessel-0-results-cfr-flag').innerText()).resolves.toBe('✓ Normal');
       await expect(visible(page, 'study-results-caution').innerText()).resolves.toMatch(/Decision support only/);

@@ -93,7 +93,9 @@ describe('every demo study carries a full structured record', () => {
     expect(r.details.referringEmail).toMatch(/@saltmarsh\.example$/);
     for (const v of Object.values(r.details)) expect(v).not.toBeNull();
     for (const v of Object.values(r.setup)) expect(v).not.toBeNull();
-    for (const v of Object.values(r.findings)) expect(v).not.toBeNull();
+    // Complications are recorded explicitly ("none" included); details are written only when there is something to say.
+    expect(r.findings.complicationKinds.length).toBeGreaterThan(0);
+    for (const [k, v] of Object.entries(r.findings)) if (k !== 'complications') expect(v, k).not.toBeNull();
     // Three injections per thermodilution set (from memory: three at rest, three at hyperaemia).
     for (const v of r.vessels) {
       expect([0, 3]).toContain(v.restTransit.length);
@@ -129,7 +131,7 @@ describe('the demo studies come out of the physiology core as intended', () => {
     expect(rca.ffr).toBeCloseTo(0.86, 2);
     expect(rca.ffrFlag).toBe('normal');
     // Pressures only: no microvascular index and no acetylcholine, so the core calls it inconclusive.
-    expect(analyses.get('SBR-26-0412')!.findings).toEqual({ obstructive: false, microvascular: null, vasospasm: null });
+    expect(analyses.get('SBR-26-0412')!.findings).toEqual({ obstructive: false, microvascular: null, endothelialDysfunction: false, vasospasm: null });
     expect(analyses.get('SBR-26-0412')!.endotype).toBe('inconclusive');
     expect(r.vessels[0]).toMatchObject({ segment: '2', decision: 'defer' });
   });
@@ -150,7 +152,7 @@ describe('the demo studies come out of the physiology core as intended', () => {
     expect(lad.imrFlag).toBe('abnormal');
     // Low CFR with high IMR = structural microvascular angina — EAPCI 2020; COVADIS.
     expect(a.endotype).toBe('microvascular-angina');
-    expect(a.findings).toEqual({ obstructive: false, microvascular: 'structural', vasospasm: null });
+    expect(a.findings).toEqual({ obstructive: false, microvascular: 'structural', endothelialDysfunction: false, vasospasm: null });
     // Acetylcholine 2/20/100 µg (ESC 2024 protocol), < 20% constriction and no symptoms — negative (from memory: 20%; COVADIS).
     expect(r.vasoreactivity.doses.map((d) => d.micrograms)).toEqual([2, 20, 100]);
     expect(a.vasoreactivity?.result).toBe('negative');
@@ -173,7 +175,7 @@ describe('the demo studies come out of the physiology core as intended', () => {
     expect(d100.constrictionPct).toBeGreaterThanOrEqual(90);
     expect(a.doseResults?.find((d) => d.micrograms === 100)?.result).toBe('epicardial-spasm');
     expect(a.endotype).toBe('vasospastic-angina');
-    expect(a.findings).toEqual({ obstructive: false, microvascular: null, vasospasm: 'epicardial' });
+    expect(a.findings).toEqual({ obstructive: false, microvascular: null, endothelialDysfunction: false, vasospasm: 'epicardial' });
     expect(r.vasoreactivity.nitrateReversal).toBe(true);
   });
 
@@ -190,7 +192,7 @@ describe('the demo studies come out of the physiology core as intended', () => {
     expect(a.vasoreactivity?.result).toBe('negative');
     // Epicardial, microvascular and acetylcholine all assessed and normal — no abnormality (EAPCI 2020).
     expect(a.endotype).toBe('no-abnormality');
-    expect(a.findings).toEqual({ obstructive: false, microvascular: null, vasospasm: null });
+    expect(a.findings).toEqual({ obstructive: false, microvascular: null, endothelialDysfunction: false, vasospasm: null });
   });
 
   it('SBR-26-0416: functional microvascular dysfunction, overdue for signature', () => {
@@ -209,7 +211,7 @@ describe('the demo studies come out of the physiology core as intended', () => {
     expect(lad.imr).toBeCloseTo(16.72, 2);
     // Low CFR with normal IMR = functional microvascular angina — EAPCI 2020; CorMicA.
     expect(a.endotype).toBe('microvascular-angina');
-    expect(a.findings).toEqual({ obstructive: false, microvascular: 'functional', vasospasm: null });
+    expect(a.findings).toEqual({ obstructive: false, microvascular: 'functional', endothelialDysfunction: true, vasospasm: null });
     // 40% constriction without symptoms or ECG changes: endothelial dysfunction, not spasm — COVADIS; ≥ 20% from memory.
     expect(a.vasoreactivity?.result).toBe('endothelial-dysfunction');
   });

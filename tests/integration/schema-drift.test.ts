@@ -27,6 +27,7 @@ const sameType = (entity: string, table: string) =>
     char: 'character',
     timestamptz: 'timestamp with time zone',
     jsonb: 'jsonb',
+    bytea: 'bytea',
   })[entity] === table;
 
 describe('entities and migrations describe the same tables', () => {

@@ -84,6 +84,8 @@ export class Study extends Timestamped {
   @Column('text', { nullable: true }) complications!: string | null;
   @Column('numeric', { name: 'contrast_ml', nullable: true, transformer: numeric }) contrastMl!: number | null;
   @Column('numeric', { name: 'fluoroscopy_minutes', nullable: true, transformer: numeric }) fluoroscopyMinutes!: number | null;
+  @Column('numeric', { name: 'air_kerma_mgy', nullable: true, transformer: numeric }) airKermaMGy!: number | null;
+  @Column('numeric', { name: 'dose_area_product_gycm2', nullable: true, transformer: numeric }) doseAreaProductGyCm2!: number | null;
   @Column('text', { nullable: true }) impression!: string | null;
   @Column('text', { nullable: true }) plan!: string | null;
 

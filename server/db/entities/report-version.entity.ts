@@ -1,0 +1,39 @@
+import { Column, Entity, JoinColumn, ManyToOne, PrimaryGeneratedColumn } from 'typeorm';
+import { Study } from './study.entity';
+import { User } from './user.entity';
+
+/**
+ * One signed report version: what was signed, exactly as it was signed. Never updated or deleted (a
+ * database trigger refuses it); an addendum adds a new version that supersedes this one.
+ */
+@Entity({ name: 'report_version' })
+export class ReportVersion {
+  @PrimaryGeneratedColumn('uuid') id!: string;
+  @Column('uuid', { name: 'study_id' }) studyId!: string;
+  @ManyToOne(() => Study, { onDelete: 'RESTRICT' })
+  @JoinColumn({ name: 'study_id' })
+  study?: Study;
+  /** 1 for the first signature, then one more per addendum. */
+  @Column('integer', { name: 'version_no' }) versionNo!: number;
+  /** The study record's version the report was built from (what the signer previewed). */
+  @Column('integer', { name: 'study_version' }) studyVersion!: number;
+  @Column('text') status!: 'final' | 'amended';
+  @Column('uuid', { name: 'supersedes_id', nullable: true }) supersedesId!: string | null;
+  @Column('text', { nullable: true }) reason!: string | null;
+  @Column('text', { name: 'narrative_html' }) narrativeHtml!: string;
+  @Column('text', { name: 'narrative_text' }) narrativeText!: string;
+  @Column('jsonb') snapshot!: unknown;
+  @Column('jsonb') analysis!: unknown;
+  @Column('jsonb') thresholds!: unknown;
+  @Column('text', { name: 'template_version' }) templateVersion!: string;
+  @Column('bytea') pdf!: Buffer;
+  @Column('char', { name: 'pdf_sha256', length: 64 }) pdfSha256!: string;
+  @Column('char', { name: 'content_sha256', length: 64 }) contentSha256!: string;
+  @Column('uuid', { name: 'signed_by' }) signedBy!: string;
+  @ManyToOne(() => User, { onDelete: 'RESTRICT' })
+  @JoinColumn({ name: 'signed_by' })
+  signer?: User;
+  @Column('text', { name: 'signer_name' }) signerName!: string;
+  @Column('timestamptz', { name: 'signed_at' }) signedAt!: Date;
+  @Column('text') attestation!: string;
+}
