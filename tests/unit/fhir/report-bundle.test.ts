@@ -1,5 +1,5 @@
 import { beforeAll, describe, expect, it } from 'vitest';
-import type { Bundle, CodeSystem, DiagnosticReport, Encounter, Observation, Patient } from 'fhir/r4';
+import type { Bundle, CodeSystem, DiagnosticReport, Encounter, Observation, Patient, Resource } from 'fhir/r4';
 import { ZodError } from 'zod';
 import { analyzeStudy, type PhysiologyInput } from '../../../shared/physiology';
 import { formatQuantity } from '../../../shared/physiology/precision';
@@ -13,7 +13,7 @@ import { caseA, hashes, reportInput } from './fixtures';
 // Indexing the FHIR R4 definitions takes a few seconds on a busy machine: once, before the tests.
 beforeAll(() => {
   warmUpValidation();
-  fhirIssues({ resourceType: 'Basic', code: { text: 'warm-up' } });
+  fhirIssues({ resourceType: 'Basic', code: { text: 'warm-up' } } as Resource);
 }, 60_000);
 
 const resources = <T,>(b: Bundle, type: string) => b.entry!.filter((e) => e.resource?.resourceType === type).map((e) => e.resource as T);
