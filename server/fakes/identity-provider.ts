@@ -155,7 +155,7 @@ export async function startFakeIdp(options: FakeIdpOptions): Promise<FakeIdp> {
       ctx.type = 'html';
       ctx.body = page('Sign-in problem', `<h1>Sign-in problem</h1><p class="error">${escape(String(out.error_description ?? out.error))}</p>`);
     },
-    ttl: { Session: 8 * 3600, Grant: 8 * 3600, Interaction: 600, AuthorizationCode: 60, AccessToken: 3600, IdToken: 3600 },
+    ttl: { Session: 8 * 3600, Grant: 8 * 3600, Interaction: 600, AuthorizationCode: 60, AccessToken: 3600, IdToken: 3600, ClientCredentials: 300 },
   };
   const provider = new Provider(issuer, configuration);
 
