@@ -63,6 +63,12 @@ const configSchema = z
     ALLOWED_ORIGINS: z.string().default(''),
     ATTACHMENT_DIR: z.string().min(1).default('storage/attachments'),
     ATTACHMENT_MAX_MB: z.coerce.number().min(0.01).max(500).default(20),
+    EHR_FHIR_URL: z.url().default('http://127.0.0.1:8472/fhir'),
+    EHR_CLIENT_ID: z.string().min(1).default('isobar-ehr'),
+    EHR_CLIENT_SECRET: z.string().min(1).default('local-development-ehr-secret'),
+    EHR_SCOPE: z.string().min(1).default('system/Patient.write system/Encounter.write system/Observation.write system/DiagnosticReport.write'),
+    EHR_TIMEOUT_SECONDS: z.coerce.number().min(1).max(600).default(30),
+    FAKE_EHR_PORT: port.default(8472),
   })
   .superRefine((value, ctx) => {
     if (value.NODE_ENV === 'production' && value.SESSION_SECRET.startsWith('local-development-secret')) {
@@ -86,6 +92,10 @@ export interface Config {
   /** Origins allowed to send state-changing requests: the public URL's, plus any listed. */
   allowedOrigins: string[];
   attachments: { dir: string; maxBytes: number };
+  /** The EHR's FHIR endpoint and Isobar's client-credentials client at the identity provider. */
+  ehr: { fhirBaseUrl: string; clientId: string; clientSecret: string; scope: string; timeoutMs: number };
+  /** Port of the local stand-in EHR (`server/fakes/main.ts`). */
+  fakeEhrPort: number;
 }
 
 export class ConfigError extends Error {
@@ -126,5 +136,13 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
     signInRateLimit: v.SIGN_IN_RATE_LIMIT,
     allowedOrigins: [new URL(publicUrl).origin, ...v.ALLOWED_ORIGINS.split(',').map((o) => o.trim()).filter(Boolean)],
     attachments: { dir: v.ATTACHMENT_DIR, maxBytes: Math.round(v.ATTACHMENT_MAX_MB * 1024 * 1024) },
+    ehr: {
+      fhirBaseUrl: v.EHR_FHIR_URL.replace(/\/$/, ''),
+      clientId: v.EHR_CLIENT_ID,
+      clientSecret: v.EHR_CLIENT_SECRET,
+      scope: v.EHR_SCOPE,
+      timeoutMs: v.EHR_TIMEOUT_SECONDS * 1000,
+    },
+    fakeEhrPort: v.FAKE_EHR_PORT,
   };
 }

@@ -2,7 +2,7 @@ import { generateKeyPairSync } from 'node:crypto';
 import { createServer, type Server } from 'node:http';
 import type { AddressInfo } from 'node:net';
 import express from 'express';
-import Provider, { type Configuration, type KoaContextWithOIDC } from 'oidc-provider';
+import Provider, { errors, type Configuration, type KoaContextWithOIDC } from 'oidc-provider';
 import { demoHospital, demoUsers } from '../demo/scenario';
 
 /**
@@ -18,6 +18,20 @@ export interface FakeIdpOptions {
   /** Isobar's public URL: its callback and post-sign-out pages are registered from it. */
   appUrl: string;
   password?: string;
+  /**
+   * Service clients (OAuth2 client credentials, no user): each gets JWT access tokens (RFC 9068) for
+   * one resource server, e.g. Isobar's client for the EHR's FHIR endpoint.
+   */
+  serviceClients?: ServiceClient[];
+}
+
+export interface ServiceClient {
+  clientId: string;
+  clientSecret: string;
+  /** The resource server (RFC 8707 resource indicator) the tokens are for, e.g. the EHR's FHIR base URL. */
+  audience: string;
+  /** The scopes the client may be granted there, space-separated. */
+  scope: string;
 }
 
 export interface FakeIdp {
@@ -68,6 +82,7 @@ export async function startFakeIdp(options: FakeIdpOptions): Promise<FakeIdp> {
 
   const { privateKey } = generateKeyPairSync('rsa', { modulusLength: 2048 });
   const jwk = { ...privateKey.export({ format: 'jwk' }), use: 'sig', alg: 'RS256', kid: 'fake-idp-1' };
+  const services = options.serviceClients ?? [];
   const findUser = (id: string): DemoUser | undefined => demoUsers.find((u) => u.subject === id);
 
   const configuration: Configuration = {
@@ -82,6 +97,15 @@ export async function startFakeIdp(options: FakeIdpOptions): Promise<FakeIdp> {
         response_types: ['code'],
         token_endpoint_auth_method: 'client_secret_basic',
       },
+      ...services.map((s) => ({
+        client_id: s.clientId,
+        client_secret: s.clientSecret,
+        client_name: `service client for ${s.audience}`,
+        redirect_uris: [],
+        grant_types: ['client_credentials'],
+        response_types: [],
+        token_endpoint_auth_method: 'client_secret_basic' as const,
+      })),
     ],
     jwks: { keys: [jwk as never] },
     cookies: { keys: ['fake-idp-local-cookie-key-0123456789'] },
@@ -100,6 +124,18 @@ export async function startFakeIdp(options: FakeIdpOptions): Promise<FakeIdp> {
     interactions: { url: (_ctx, interaction) => `/interaction/${interaction.uid}` },
     features: {
       devInteractions: { enabled: false },
+      clientCredentials: { enabled: true },
+      // A service client's tokens are JWTs for its one resource server, which checks them itself.
+      resourceIndicators: {
+        enabled: true,
+        defaultResource: async (_ctx, client, oneOf) => oneOf ?? services.find((s) => s.clientId === client.clientId)?.audience,
+        useGrantedResource: async () => false,
+        getResourceServerInfo: async (_ctx, resource, client) => {
+          const service = services.find((s) => s.clientId === client.clientId && s.audience === resource);
+          if (!service) throw new errors.InvalidTarget();
+          return { scope: service.scope, audience: service.audience, accessTokenFormat: 'jwt', accessTokenTTL: 300, jwt: { sign: { alg: 'RS256' } } };
+        },
+      },
       rpInitiatedLogout: {
         enabled: true,
         // Sign-out needs no second confirmation here: the user already chose it in Isobar.
@@ -119,7 +155,7 @@ export async function startFakeIdp(options: FakeIdpOptions): Promise<FakeIdp> {
       ctx.type = 'html';
       ctx.body = page('Sign-in problem', `<h1>Sign-in problem</h1><p class="error">${escape(String(out.error_description ?? out.error))}</p>`);
     },
-    ttl: { Session: 8 * 3600, Grant: 8 * 3600, Interaction: 600, AuthorizationCode: 60, AccessToken: 3600, IdToken: 3600 },
+    ttl: { Session: 8 * 3600, Grant: 8 * 3600, Interaction: 600, AuthorizationCode: 60, AccessToken: 3600, IdToken: 3600, ClientCredentials: 300 },
   };
   const provider = new Provider(issuer, configuration);
 

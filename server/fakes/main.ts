@@ -1,19 +1,28 @@
 import { loadConfig } from '../config';
+import { startFakeEhr } from './ehr';
 import { startFakeIdp } from './identity-provider';
 
-/** Starts the local stand-ins for hospital services (identity provider) for `npm start`. */
+/**
+ * Starts the local stand-ins for hospital services for `npm start`: the identity provider (with
+ * Isobar's service client for the EHR) and the EHR's FHIR endpoint on `FAKE_EHR_PORT`.
+ */
 async function main(): Promise<void> {
   const config = loadConfig();
-  const port = Number(new URL(config.oidc.issuer).port || 80);
+  const issuer = new URL(config.oidc.issuer);
   const idp = await startFakeIdp({
-    port,
-    host: new URL(config.oidc.issuer).hostname,
+    port: Number(issuer.port || 80),
+    host: issuer.hostname,
     clientId: config.oidc.clientId,
     clientSecret: config.oidc.clientSecret,
     appUrl: config.publicUrl,
+    serviceClients: [
+      { clientId: config.ehr.clientId, clientSecret: config.ehr.clientSecret, audience: config.ehr.fhirBaseUrl, scope: config.ehr.scope },
+    ],
   });
   console.log(`local identity provider at ${idp.issuer}`);
-  const stop = () => void idp.close().then(() => process.exit(0));
+  const ehr = await startFakeEhr({ port: config.fakeEhrPort, issuer: idp.issuer, audience: config.ehr.fhirBaseUrl });
+  console.log(`local EHR FHIR endpoint at ${ehr.fhirBaseUrl}`);
+  const stop = () => void Promise.all([idp.close(), ehr.close()]).then(() => process.exit(0));
   process.on('SIGINT', stop);
   process.on('SIGTERM', stop);
 }
