@@ -1,5 +1,6 @@
 import { loadConfig } from '../config';
 import { createDataSource } from '../db/data-source';
+import { prepareSchema } from '../db/prepare';
 import { seedDemo } from '../demo/seed';
 
 /**
@@ -11,8 +12,8 @@ async function main(): Promise<void> {
   const dataSource = createDataSource(config.databaseUrl, 2);
   await dataSource.initialize();
   try {
-    const ran = await dataSource.runMigrations({ transaction: 'each' });
-    console.log(ran.length ? `migrations run: ${ran.map((m) => m.name).join(', ')}` : 'schema is up to date');
+    const ran = await prepareSchema(dataSource, config.databaseUrl);
+    console.log(ran.length ? `migrations run: ${ran.join(', ')}` : 'schema is up to date');
     if (process.argv.includes('--demo')) {
       await seedDemo(dataSource, config.oidc.issuer);
       console.log('demo scenario loaded');

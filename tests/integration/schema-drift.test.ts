@@ -42,7 +42,7 @@ describe('entities and migrations describe the same tables', () => {
       for (const column of meta.columns) {
         const row = table.get(column.databaseName);
         expect(row, `${meta.tableName}.${column.databaseName} missing`).toBeDefined();
-        expect(column.isArray ? row!.data_type === 'ARRAY' : sameType(String(column.type), row!.data_type), `${meta.tableName}.${column.databaseName}: ${String(column.type)} vs ${row!.data_type}`).toBe(true);
+        expect(column.isArray ? row!.data_type === 'ARRAY' : sameType(column.type === Number ? 'integer' : String(column.type), row!.data_type), `${meta.tableName}.${column.databaseName}: ${String(column.type)} vs ${row!.data_type}`).toBe(true);
         expect(row!.is_nullable === 'YES', `${meta.tableName}.${column.databaseName} nullability`).toBe(column.isNullable);
       }
       const mapped = new Set(meta.columns.map((c) => c.databaseName));

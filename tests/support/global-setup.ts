@@ -1,4 +1,5 @@
 import { createDataSource } from '../../server/db/data-source';
+import { prepareSchema } from '../../server/db/prepare';
 
 /** Once per run: bring the test database (made fresh by `npm test`) to the current schema. */
 export default async function setup(): Promise<void> {
@@ -10,7 +11,7 @@ export default async function setup(): Promise<void> {
   const dataSource = createDataSource(url, 2);
   await dataSource.initialize();
   try {
-    await dataSource.runMigrations({ transaction: 'each' });
+    await prepareSchema(dataSource, url);
   } finally {
     await dataSource.destroy();
   }
