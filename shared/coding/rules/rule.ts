@@ -1,5 +1,5 @@
 import { CODING_CAUTION, codeEntry } from '../codes';
-import type { CodeSets } from '../code-sets';
+import { releaseLabel, releaseOf, type CodeSets } from '../code-sets';
 import type { CodeSystem, CodingData, CodingWarning, SuggestedCode } from '../schema';
 
 /**
@@ -46,8 +46,10 @@ export class RuleContext {
     const entry = codeEntry(system, code);
     if (!entry) throw new Error(`Rule ${rule.id} emitted ${system} ${code}, which is not in the code table.`);
     const release = this.codeSets[system];
-    if (release.year < entry.since) {
-      this.warn(rule, 'code-not-in-release', `${system} ${code} (${entry.description.toLowerCase()}) is not in ${release.label}, the release for this date of service; it was first available in ${system === 'ICD-10-CM' || system === 'ICD-10-PCS' ? 'FY' : ''}${entry.since}. Code this by hand.`);
+    // Judge existence by the release of the date of service itself, even when it is not encoded.
+    const dated = this.input.dateOfService ? releaseOf(system, this.input.dateOfService) : release.year;
+    if (dated < entry.since) {
+      this.warn(rule, 'code-not-in-release', `${system} ${code} (${entry.description.toLowerCase()}) is not in ${releaseLabel(system, dated)}, the release for this date of service; it was first available in ${system === 'ICD-10-CM' || system === 'ICD-10-PCS' ? 'FY' : ''}${entry.since}. Code this by hand.`);
       return null;
     }
     const modifiers = [...(o.modifiers ?? [])];
