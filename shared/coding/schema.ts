@@ -3,7 +3,7 @@ import { vesselCodes, type VesselCode } from '../physiology/schema';
 
 /**
  * The coding engine's input: what was done in one catheterization session and what the signed
- * findings say. Every field the contract names is required; the encounter fields may be `null`
+ * findings say. Every field of the public shape is required; the encounter fields may be `null`
  * ("not recorded yet"), which the engine answers with a blocking warning rather than a guess.
  */
 

@@ -102,7 +102,7 @@ describe('a study record and its analysis become the coding input', () => {
     expect(suggestCodes(input).warnings.map((w) => w.code)).toContain('date-of-service-missing');
   });
 
-  it('the coding section schema rejects an unknown intervention kind — contract: bad input → ZodError', () => {
+  it('the coding section schema rejects an unknown intervention kind — a bad record is refused, not coded (common practice)', () => {
     const bad = { ...emptyStudyCoding(), interventions: [{ id: ids[0], vessel: 'LAD', kind: 'laser', branch: false, stent: null }] };
     expect(studyCodingSchema.safeParse(bad).success).toBe(false);
     expect(() => toCodingInput({ ...study(), coding: bad as never }, analyzeStudy({ vessels: [] }))).toThrow();

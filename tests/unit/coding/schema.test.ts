@@ -18,11 +18,11 @@ describe('bad input throws a ZodError, never a silent code', () => {
     ['unknown provocation agent', input({ vasoreactivity: { agent: 'adenosine' as never, vessel: 'LAD' } })],
     ['not an object', 42],
   ];
-  it.each(bad)('%s — contract: bad input → ZodError', (_name, value) => {
+  it.each(bad)('%s → ZodError: the engine never codes an input it cannot read (common practice)', (_name, value) => {
     expect(() => suggestCodes(value as CodingInput)).toThrow(ZodError);
   });
 
-  it('a valid minimal input is accepted — contract', () => {
+  it('a valid minimal input is accepted — common practice', () => {
     expect(() => suggestCodes(input())).not.toThrow();
   });
 });

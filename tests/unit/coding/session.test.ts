@@ -113,7 +113,7 @@ describe('the encounter', () => {
 });
 
 describe('the caution', () => {
-  it('the result and every code line carry it — domain caution for code suggestions (certified coder, current code sets, payer policy)', () => {
+  it('the result and every code line carry it — product caution: code suggestions are for a certified coder under current code-set rules and payer policy (common practice)', () => {
     const r = suggestCodes(input({ cath: angiography(), physiology: [{ vessel: 'LAD', measured: ['ffr'], hyperemicAgent: true }] }));
     expect(r.caution).toMatch(/verify against current code-set rules and payer policy/);
     expect(r.caution).toMatch(/certified coder/);
