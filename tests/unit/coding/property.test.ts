@@ -29,7 +29,7 @@ const arbInput: fc.Arbitrary<CodingInput> = fc.record({
   dateOfService: fc.option(fc.date({ min: new Date('2015-10-01'), max: new Date('2028-12-31'), noInvalidDate: true }).map((d) => d.toISOString().slice(0, 10)), { nil: undefined }),
 }, { requiredKeys: ['billing', 'setting', 'patientClass', 'cath', 'pci', 'physiology', 'vasoreactivity', 'diagnoses'] }) as fc.Arbitrary<CodingInput>;
 
-const runs = { numRuns: 1500 };
+const runs = { numRuns: 500 };
 
 describe('properties over random sessions — common practice for claim lines; add-on rule from the CPT add-on convention', () => {
   it('every add-on has one of its primaries in the result, or an add-on warning', () => {
