@@ -1,0 +1,110 @@
+import { describe, expect, it } from 'vitest';
+import { emptyStudyCoding, studyCodingSchema, suggestCodes, toCodingInput, type StudyCoding } from '../../../shared/coding';
+import { analyzeStudy } from '../../../shared/physiology';
+import { emptyDetails, emptyDose, emptySetup, emptyVessel, type StudySections, type VesselAssessment } from '../../../shared/study/schema';
+import { toPhysiologyInput } from '../../../shared/study/to-physiology';
+
+const ids = ['8c9c6d0e-1f2a-4b3c-9d4e-5f6a7b8c9d01', '8c9c6d0e-1f2a-4b3c-9d4e-5f6a7b8c9d02', '8c9c6d0e-1f2a-4b3c-9d4e-5f6a7b8c9d03'];
+
+type Rec = Pick<StudySections, 'details' | 'setup' | 'vessels' | 'vasoreactivity'> & { coding: StudyCoding };
+
+function study(o: { vessels?: VesselAssessment[]; coding?: Partial<StudyCoding>; agent?: StudySections['setup']['hyperemicAgent']; question?: StudySections['details']['clinicalQuestion']; doses?: StudySections['vasoreactivity']['doses']; start?: string | null } = {}): Rec {
+  return {
+    details: { ...emptyDetails(), clinicalQuestion: o.question ?? null, procedureStartedAt: o.start === undefined ? '2025-05-06T09:30:00+02:00' : o.start },
+    setup: { ...emptySetup(), hyperemicAgent: o.agent === undefined ? 'adenosine' : o.agent },
+    vessels: o.vessels ?? [],
+    vasoreactivity: { doses: o.doses ?? [], nitrateReversal: null },
+    coding: { ...emptyStudyCoding(), patientClass: 'outpatient', billing: 'professional', setting: 'hospital', diagnosticCath: 'done', coronaryAngiography: true, leftHeart: true, angina: true, ...o.coding },
+  };
+}
+const map = (rec: Rec) => toCodingInput(rec, analyzeStudy(toPhysiologyInput(rec)));
+
+// Hand-computed case A of the physiology checks (formulas, not a paper): FFR 0.80, CFR 3.00, IMR 21.6.
+const ladFull = (): VesselAssessment => ({ ...emptyVessel(ids[0], 'LAD'), restPa: 100, restPd: 95, hyperemiaPa: 90, hyperemiaPd: 72, restTransit: [0.9, 0.9, 0.9], hyperemiaTransit: [0.3, 0.3, 0.3] });
+const rcaResting = (): VesselAssessment => ({ ...emptyVessel(ids[1], 'RCA'), nhprKind: 'diastolic', nhprValue: 0.93 });
+
+describe('a study record and its analysis become the coding input', () => {
+  it('measured indices per vessel come from the analysis; the hyperaemic agent counts only where hyperaemic data exist — CPT 93571/93572 count vessels (coding articles summarising CPT)', () => {
+    const input = map(study({ vessels: [ladFull(), rcaResting(), emptyVessel(ids[2], 'LCX')] }));
+    expect(input.physiology).toEqual([
+      { vessel: 'LAD', measured: ['ffr', 'nhpr', 'cfr', 'imr'], hyperemicAgent: true },
+      { vessel: 'RCA', measured: ['nhpr'], hyperemicAgent: false },
+    ]);
+    const r = suggestCodes(input);
+    expect(r.codes.filter((c) => c.system === 'CPT').map((c) => `${c.code} x${c.units}`)).toEqual(['93458 x1', '93571 x1', '93572 x1']);
+    expect(r.warnings.find((w) => w.code === 'resting-only-physiology')?.message).toContain('RCA');
+  });
+
+  it('FFR 0.80 in the LAD is obstructive disease; with angina documented → I25.119 — FFR ≤ 0.80 abnormal (ESC 2024); CMS ICD-10-CM tabular I25.11-', () => {
+    const input = map(study({ vessels: [ladFull()] }));
+    expect(input.diagnoses).toEqual({ obstructiveCad: true, angina: true, microvascularDysfunction: false, vasospasm: null });
+    expect(suggestCodes(input).codes.filter((c) => c.system === 'ICD-10-CM').map((c) => c.code)).toEqual(['I25.119']);
+  });
+
+  it('the encounter, catheterization and interventions pass through; the date of service is the procedure date — CPT releases by date of service (CMS)', () => {
+    const input = map(
+      study({
+        coding: { rightHeart: true, leftVentriculography: true, interventions: [{ id: ids[0], vessel: 'LAD', kind: 'stent', branch: false, stent: 'drug-eluting' }, { id: ids[1], vessel: 'DIAGONAL', kind: 'balloon', branch: true, stent: 'drug-eluting' }] },
+      }),
+    );
+    expect(input.billing).toBe('professional');
+    expect(input.cath).toEqual({ coronaryAngiography: true, leftHeart: true, rightHeart: true, graftAngiography: false, leftVentriculography: true });
+    expect(input.pci).toEqual([{ vessel: 'LAD', kind: 'stent', stent: 'drug-eluting' }, { vessel: 'DIAGONAL', kind: 'balloon', branch: true }]);
+    expect(input.dateOfService).toBe('2025-05-06');
+  });
+
+  it('"none" means no catheterization; not recorded is a blocking note — no silent default (common practice)', () => {
+    expect(map(study({ coding: { diagnosticCath: 'none' } })).cath).toBeNull();
+    const unknown = map(study({ coding: { diagnosticCath: null } }));
+    expect(unknown.cath).toBeNull();
+    expect(unknown.notes).toContainEqual(expect.objectContaining({ code: 'cath-not-recorded', blocking: true }));
+    expect(suggestCodes(unknown).warnings.some((w) => w.code === 'cath-not-recorded' && w.blocking)).toBe(true);
+  });
+
+  it('an unrecorded encounter passes through as null and blocks the review — common practice', () => {
+    const r = suggestCodes(map(study({ coding: { billing: null, setting: null, patientClass: null } })));
+    expect(r.warnings.find((w) => w.code === 'encounter-not-recorded')?.blocking).toBe(true);
+  });
+
+  it('hyperaemic data with no agent recorded: not counted as hyperaemic, with a note — common practice', () => {
+    const input = map(study({ agent: null, vessels: [ladFull()] }));
+    expect(input.physiology[0].hyperemicAgent).toBe(false);
+    expect(input.notes?.map((n) => n.code)).toContain('hyperemic-agent-not-recorded');
+  });
+
+  it('angina not stated: taken from the clinical question, with a note — common practice', () => {
+    const yes = map(study({ coding: { angina: null }, question: 'angina-no-obstruction' }));
+    expect(yes.diagnoses.angina).toBe(true);
+    const no = map(study({ coding: { angina: null }, question: 'intermediate-lesion' }));
+    expect(no.diagnoses.angina).toBe(false);
+    for (const i of [yes, no]) expect(i.notes?.map((n) => n.code)).toContain('angina-inferred');
+    expect(map(study()).notes ?? []).toEqual([]);
+  });
+
+  it('acetylcholine spasm reaches the diagnoses and the provocation warning — COVADIS (≥ 90% constriction with symptoms and ischaemic ECG = epicardial spasm); CMS ICD-10-CM I20.1', () => {
+    const dose = { ...emptyDose(ids[2], 'LAD'), micrograms: 100, constrictionPct: 95, symptoms: true, ischemicEcg: true };
+    const input = map(study({ doses: [dose], coding: { angina: true } }));
+    expect(input.vasoreactivity).toEqual({ agent: 'acetylcholine', vessel: 'LAD' });
+    expect(input.diagnoses.vasospasm).toBe('epicardial');
+    const r = suggestCodes(input);
+    expect(r.codes.filter((c) => c.system === 'ICD-10-CM').map((c) => c.code)).toEqual(['I20.1']);
+    expect(r.warnings.map((w) => w.code)).toContain('provocation-no-code');
+  });
+
+  it('a vessel decided for intervention with none recorded is noted — common practice', () => {
+    const input = map(study({ vessels: [{ ...ladFull(), decision: 'pci' }] }));
+    expect(input.notes?.map((n) => n.code)).toContain('pci-decision-without-intervention');
+  });
+
+  it('no procedure date → dateOfService null, which is warned — CPT releases by date of service (CMS)', () => {
+    const input = map(study({ start: null }));
+    expect(input.dateOfService).toBeNull();
+    expect(suggestCodes(input).warnings.map((w) => w.code)).toContain('date-of-service-missing');
+  });
+
+  it('the coding section schema rejects an unknown intervention kind — a bad record is refused, not coded (common practice)', () => {
+    const bad = { ...emptyStudyCoding(), interventions: [{ id: ids[0], vessel: 'LAD', kind: 'laser', branch: false, stent: null }] };
+    expect(studyCodingSchema.safeParse(bad).success).toBe(false);
+    expect(() => toCodingInput({ ...study(), coding: bad as never }, analyzeStudy({ vessels: [] }))).toThrow();
+  });
+});
