@@ -126,14 +126,15 @@ export function toCodingInput(
   }
 
   const f = analysis.findings;
-  let angina = coding.angina;
+  // The coding section's answer first, then the study form's angina field, then the clinical question.
+  let angina = coding.angina ?? record.details.anginaPresent ?? null;
   if (angina === null) {
     angina = record.details.clinicalQuestion === 'angina-no-obstruction';
     notes.push({
       code: 'angina-inferred',
       message: angina
-        ? 'Angina is not stated in the coding section; it was taken from the clinical question (angina with no obstructive disease). Confirm it in the physician\'s documentation.'
-        : 'Angina is not stated in the coding section and was taken as absent. If the physician documents angina, the diagnosis codes change.',
+        ? 'Angina is recorded neither in the coding section nor in the study; it was taken from the clinical question (angina with no obstructive disease). Confirm it in the physician\'s documentation.'
+        : 'Angina is recorded neither in the coding section nor in the study and was taken as absent. If the physician documents angina, the diagnosis codes change.',
     });
   }
   if (f.endothelialDysfunction) {

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { emptyStudyCoding, studyCodingSchema, suggestCodes, toCodingInput, type StudyCoding } from '../../../shared/coding';
 import { analyzeStudy } from '../../../shared/physiology';
-import { emptyDetails, emptyDose, emptySetup, emptyVessel, type StudySections, type VesselAssessment } from '../../../shared/study/schema';
+import { emptyDetails, emptyDose, emptySetup, emptyVasoreactivity, emptyVessel, type StudySections, type VesselAssessment } from '../../../shared/study/schema';
 import { toPhysiologyInput } from '../../../shared/study/to-physiology';
 
 const ids = ['8c9c6d0e-1f2a-4b3c-9d4e-5f6a7b8c9d01', '8c9c6d0e-1f2a-4b3c-9d4e-5f6a7b8c9d02', '8c9c6d0e-1f2a-4b3c-9d4e-5f6a7b8c9d03'];
@@ -13,7 +13,7 @@ function study(o: { vessels?: VesselAssessment[]; coding?: Partial<StudyCoding>;
     details: { ...emptyDetails(), clinicalQuestion: o.question ?? null, procedureStartedAt: o.start === undefined ? '2025-05-06T09:30:00+02:00' : o.start },
     setup: { ...emptySetup(), hyperemicAgent: o.agent === undefined ? 'adenosine' : o.agent },
     vessels: o.vessels ?? [],
-    vasoreactivity: { doses: o.doses ?? [], nitrateReversal: null },
+    vasoreactivity: { ...emptyVasoreactivity(), doses: o.doses ?? [] },
     coding: { ...emptyStudyCoding(), patientClass: 'outpatient', billing: 'professional', setting: 'hospital', diagnosticCath: 'done', coronaryAngiography: true, leftHeart: true, angina: true, ...o.coding },
   };
 }
