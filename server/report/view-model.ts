@@ -115,7 +115,10 @@ export interface ReportView {
   caution: string;
   signature: null | {
     signedBy: string;
+    /** Printed time of signing, in the report's zone. */
     signedAt: string;
+    /** The same time as given (ISO 8601): the PDF's creation date. */
+    signedAtIso: string;
     reportVersion: number;
     fingerprint: string;
     shortFingerprint: string;
@@ -153,27 +156,35 @@ export function shortFingerprint(hex: string): string {
   return (hex.slice(0, 16).match(/.{1,4}/g) ?? []).join('-');
 }
 
+const formatters = new Map<string, Intl.DateTimeFormat>();
+/** Intl formatters are costly to build: one per zone and style, kept. */
+function formatter(timeZone: string, style: 'date-time' | 'time'): Intl.DateTimeFormat {
+  const key = `${timeZone} ${style}`;
+  let f = formatters.get(key);
+  if (!f) {
+    f = new Intl.DateTimeFormat(
+      'en-GB',
+      style === 'time'
+        ? { timeZone, hour: '2-digit', minute: '2-digit', hourCycle: 'h23' }
+        : { timeZone, day: 'numeric', month: 'short', year: 'numeric', hour: '2-digit', minute: '2-digit', hourCycle: 'h23', timeZoneName: 'short' },
+    );
+    formatters.set(key, f);
+  }
+  return f;
+}
+
 /** A time in the report's zone, e.g. "2 Dec 2026, 14:05 UTC". */
 export function formatDateTime(iso: string, timeZone = 'UTC'): string {
   const d = new Date(iso);
   if (Number.isNaN(d.getTime())) return iso;
-  const parts = new Intl.DateTimeFormat('en-GB', {
-    timeZone,
-    day: 'numeric',
-    month: 'short',
-    year: 'numeric',
-    hour: '2-digit',
-    minute: '2-digit',
-    hourCycle: 'h23',
-    timeZoneName: 'short',
-  }).formatToParts(d);
+  const parts = formatter(timeZone, 'date-time').formatToParts(d);
   const get = (t: string) => parts.find((p) => p.type === t)?.value ?? '';
   return `${get('day')} ${get('month')} ${get('year')}, ${get('hour')}:${get('minute')} ${get('timeZoneName')}`;
 }
 
 function formatTime(iso: string, timeZone: string): string {
   const d = new Date(iso);
-  return new Intl.DateTimeFormat('en-GB', { timeZone, hour: '2-digit', minute: '2-digit', hourCycle: 'h23' }).format(d);
+  return Number.isNaN(d.getTime()) ? iso : formatter(timeZone, 'time').format(d);
 }
 
 /** A label from a vocabulary table that may not know the code yet. */
@@ -657,6 +668,7 @@ export function buildReportView(input: ReportInput): ReportView {
     ? {
         signedBy: input.signature.signedBy,
         signedAt: formatDateTime(input.signature.signedAt, tz),
+        signedAtIso: input.signature.signedAt,
         reportVersion: input.signature.reportVersion,
         fingerprint: input.signature.fingerprint,
         shortFingerprint: shortFingerprint(input.signature.fingerprint),
