@@ -707,7 +707,7 @@ export function buildReportView(input: ReportInput): ReportView {
     impression: paragraphs(study.findings.impression),
     plan: paragraphs(study.findings.plan),
     thresholds: used.keys.map((k) => ({ ...thresholdText(k, t), source: thresholdSource(k, t) })),
-    caution: reportCaution,
+    caution: reportCaution[kind],
     signature,
   };
 }

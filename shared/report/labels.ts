@@ -40,6 +40,9 @@ export const vasoreactivityOutcomeLabel: Readonly<Record<VasoreactivityOutcome, 
   negative: 'Negative',
 });
 
-/** The standing caution printed with every report. */
-export const reportCaution =
-  "Decision support only. Computed indices and the endotype are for review by a licensed clinician; the thresholds are the lab's settings. Local policy applies.";
+/** The standing caution printed with every report, in the words of its kind. */
+export const reportCaution = Object.freeze({
+  lesion: "Decision support only. The computed indices and their flags are for review by a licensed clinician; the thresholds are the lab's settings. Local policy applies.",
+  'coronary-function':
+    "Decision support only. The computed indices, their flags and the endotype are for review by a licensed clinician; the thresholds are the lab's settings. Local policy applies.",
+} as const);
