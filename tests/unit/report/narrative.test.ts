@@ -1,0 +1,309 @@
+import { describe, expect, it } from 'vitest';
+import { defaultThresholds } from '../../../shared/physiology';
+import { findingsSchema, emptySetup, emptyVessel } from '../../../shared/study/schema';
+import { htmlDocument, renderNarrative } from '../../../server/report/render';
+import { REPORT_TEMPLATE_VERSION } from '../../../server/report/template-version';
+import { buildReportView, reportKindOf, type ReportStudy } from '../../../server/report/view-model';
+import { analysisOf, demoReportStudies, viewOf } from './fixtures';
+
+const render = (s: ReportStudy, extra: Parameters<typeof viewOf>[1] = {}) => renderNarrative(viewOf(s, extra));
+const section = (text: string, heading: string) => {
+  const start = text.indexOf(`\n${heading}\n`);
+  if (start < 0) return null;
+  const rest = text.slice(start + heading.length + 2);
+  const end = rest.search(/\n\n[A-Z][A-Z :]+\n/);
+  return end < 0 ? rest : rest.slice(0, end);
+};
+
+/** Signs of a sentence or cell left empty by missing data. */
+function expectNoHoles(text: string, html: string) {
+  const prose = text.replace(/ {2,}/g, ' '); // table padding is not a hole
+  for (const bad of ['undefined', 'null', 'NaN', '[object', '()', ' ,', ' .', ': .', ';;', ', ,']) {
+    expect(prose.includes(bad), `text holds "${bad}"`).toBe(false);
+  }
+  expect(text).not.toMatch(/^(?!Reasons:$).*:[ \t]*$/m); // a label with nothing after it
+  expect(html).not.toMatch(/<(p|li|td|dd|h2|h3)[^>]*>\s*<\/\1>/);
+  expect(html).not.toMatch(/undefined|NaN|\[object/);
+}
+
+describe('report kind follows the clinical question', () => {
+  it.each([
+    ['intermediate-lesion', 'lesion'],
+    ['post-pci', 'lesion'],
+    ['angina-no-obstruction', 'coronary-function'],
+  ] as const)('%s → %s', (question, kind) => {
+    const s = demoReportStudies()[2];
+    s.details.clinicalQuestion = question;
+    expect(reportKindOf(s)).toBe(kind);
+  });
+  it('"other" or unrecorded: thermodilution or acetylcholine make it a coronary function report', () => {
+    const cf = demoReportStudies()[2];
+    cf.details.clinicalQuestion = null;
+    expect(reportKindOf(cf)).toBe('coronary-function');
+    const lesion = demoReportStudies()[0];
+    lesion.details.clinicalQuestion = 'other';
+    expect(reportKindOf(lesion)).toBe('lesion');
+  });
+});
+
+describe('template sections', () => {
+  const [lad, rca, structural, spasm, normal, functional] = demoReportStudies();
+
+  it('records the template version in the HTML and the text', () => {
+    const n = render(lad);
+    expect(n.templateVersion).toBe(REPORT_TEMPLATE_VERSION);
+    expect(n.html).toContain(`data-template-version="${REPORT_TEMPLATE_VERSION}"`);
+    expect(n.text).toContain(`Report template ${REPORT_TEMPLATE_VERSION}`);
+    expect(htmlDocument(viewOf(lad), n.html)).toContain(`<meta name="report-template-version" content="${REPORT_TEMPLATE_VERSION}">`);
+  });
+
+  it('identification: patient, accession, operator, referring clinician', () => {
+    const { text } = render(lad);
+    expect(text).toContain('Patient: QUENNEVILLE, Harold');
+    expect(text).toContain('MRN: SB-104233');
+    expect(text).toContain('Birth date: 1956-03-14');
+    expect(text).toContain('Accession: SBR-26-0411');
+    expect(text).toContain('Operator: Dr. Kofi Oduya');
+    expect(text).toContain('Referring clinician: Dr. Wendell Osei-Marsh');
+  });
+
+  it('indication and clinical question', () => {
+    const ind = section(render(lad).text, 'INDICATION')!;
+    expect(ind).toContain('Intermediate proximal LAD lesion on angiography, exertional angina');
+    expect(ind).toContain('Clinical question: Intermediate lesion: is it significant?');
+  });
+
+  it('technique: access, guide, anticoagulation, nitrates, hyperaemia, wire position, equalization, drift', () => {
+    const t = section(render(lad).text, 'PROCEDURE AND TECHNIQUE')!;
+    expect(t).toContain('Right radial access; 6 Fr guide catheter.');
+    expect(t).toContain('Heparin 5000 U.');
+    expect(t).toContain('Nitroglycerin 200 µg given.');
+    expect(t).toContain('Hyperaemia with intravenous adenosine 140 µg/kg/min.');
+    expect(t).toContain('Pressure wire sensor: distal third of the vessel.');
+    expect(t).toContain('Transducer zeroed at heart level; pressures equalized with the sensor in the aorta, introducer removed.');
+    // Drift window 0.98–1.02 [memory]; drift > 2 mmHg means repeat (Cook et al., Circ Cardiovasc Interv 2016).
+    expect(t).toContain('Drift check, Pd/Pa with the sensor back at the guide tip: LAD 0.99 (within 0.98–1.02).');
+    expect(t).toContain('Totals: contrast 145 mL, fluoroscopy 14.5 min.');
+  });
+
+  it('technique: a drift check out of the window and one not done with its reason', () => {
+    const t = section(render(functional).text, 'PROCEDURE AND TECHNIQUE')!;
+    expect(t).toContain('LAD 0.99 (within 0.98–1.02); LCx 1.03 (outside 0.98–1.02)');
+    const s = demoReportStudies()[5];
+    s.vessels[1].driftPdPa = null;
+    (s.vessels[1] as { driftNotDoneReason?: string }).driftNotDoneReason = 'Wire lost distal position';
+    expect(section(render(s).text, 'PROCEDURE AND TECHNIQUE')).toContain('LCx not done (Wire lost distal position)');
+  });
+
+  it('technique: intracoronary adenosine in µg and thermodilution injections', () => {
+    expect(section(render(rca).text, 'PROCEDURE AND TECHNIQUE')).toContain('Hyperaemia with intracoronary adenosine 100 µg.');
+    expect(section(render(structural).text, 'PROCEDURE AND TECHNIQUE')).toContain(
+      'Bolus thermodilution with room-temperature saline, injections: LAD 3 at rest and 3 at hyperaemia.',
+    );
+  });
+
+  it('measurements and calculated indices tables, one row per vessel, numbers at display precision', () => {
+    const { text, html } = render(functional);
+    const m = section(text, 'MEASUREMENTS')!;
+    expect(m.split('\n')[0]).toMatch(/^Vessel\s+Segment\s+Visual stenosis\s+Pa \/ Pd at rest \(mmHg\)\s+Pa \/ Pd at hyperaemia \(mmHg\)\s+Mean Tmn at rest \(s\)\s+Mean Tmn at hyperaemia \(s\)$/);
+    expect(m).toMatch(/^LAD\s+Mid LAD\s+15 %\s+92 \/ 87\s+84 \/ 76\s+0\.39\s+0\.22$/m);
+    // The circumflex has no transit times: its cells show a dash, the row stays.
+    expect(m).toMatch(/^LCx\s+Distal circumflex|^LCx\s+segment 13|^LCx\s+Mid and distal LCx/m);
+    const idx = section(text, 'CALCULATED INDICES')!;
+    // Display precision: ratios 2 decimals, IMR a whole number (shared precision rule).
+    expect(idx).toMatch(/^LAD\s+0\.90\s+0\.95\s+1\.77 \(abnormal\)\s+17\s+/m);
+    expect(html).toContain('<td class="flag-abnormal">1.77 <span class="flag">(abnormal)</span></td>');
+  });
+
+  it('interpretation per vessel names the threshold it was judged against', () => {
+    const i = section(render(lad).text, 'INTERPRETATION BY VESSEL')!;
+    // FFR ≤ 0.80 (ESC 2024); diastolic ratio ≤ 0.89 (DEFINE-FLAIR; EAPCI 2020); whole-cycle Pd/Pa ≤ 0.91 (CONTRAST).
+    expect(i).toContain('FFR 0.72: abnormal (cut-off ≤ 0.80, ESC 2024).');
+    expect(i).toContain('Diastolic ratio 0.84: abnormal (cut-off ≤ 0.89, DEFINE-FLAIR; EAPCI 2020).');
+    expect(i).toContain('Resting whole-cycle Pd/Pa from the pressures 0.88: abnormal (cut-off ≤ 0.91, CONTRAST).');
+    expect(i).toContain('The lesion is haemodynamically significant (judged by FFR).');
+    expect(i).toContain('Pull-back: focal step-up.');
+    expect(i).toContain('Decision: treat (coronary intervention).');
+  });
+
+  it('a lab threshold that differs from the default is cited as the lab setting', () => {
+    const s = demoReportStudies()[2];
+    const thresholds = { ...defaultThresholds, cfr: 2.5 };
+    const view = buildReportView({ study: s, analysis: analysisOf(s, thresholds), thresholds, people: { operator: 'Dr. Kofi Oduya' } });
+    const { text } = renderNarrative(view);
+    expect(text).toContain('(cut-off < 2.50, lab setting)');
+    expect(text).toContain('- CFR abnormal: < 2.50 (lab setting)');
+  });
+
+  it('hand-computed case A: FFR 0.80 at the boundary, corrected IMR, RRR and MRR', () => {
+    // Pa/Pd rest 100/95, hyp 90/72, Tmn rest 0.90 s, hyp 0.30 s, computed by hand from the published
+    // formulas (not from a paper): FFR 0.80 (abnormal, ≤ 0.80, ESC 2024), CFR 3.00, IMR 21.6 → 22,
+    // Yong-corrected 20.52 → 21 (used as FFR ≤ 0.80), RRR 3.96 (Lee et al., JAHA 2020), MRR 4.17 (De Bruyne 2021).
+    const s = demoReportStudies()[2];
+    s.vessels = [{ ...emptyVessel(s.vessels[0].id, 'LAD'), restPa: 100, restPd: 95, hyperemiaPa: 90, hyperemiaPd: 72, restTransit: [0.9, 0.9, 0.9], hyperemiaTransit: [0.3, 0.3, 0.3], driftPdPa: 1 }];
+    s.vasoreactivity.doses = [];
+    const i = section(render(s).text, 'INTERPRETATION BY VESSEL')!;
+    expect(i).toContain('FFR 0.80: abnormal (cut-off ≤ 0.80, ESC 2024); in the grey zone 0.76–0.80.');
+    expect(i).toContain('CFR 3.00: normal');
+    expect(i).toContain('IMR 21 U, corrected without wedge pressure: normal (cut-off ≥ 25 U, ESC 2024; EAPCI 2020); uncorrected 22 U.');
+    expect(i).toContain('RRR 3.96: normal');
+    expect(i).toContain('MRR 4.17: normal');
+  });
+
+  it('acetylcholine protocol: each dose with what happened, the result and the reversal', () => {
+    const a = section(render(spasm).text, 'ACETYLCHOLINE TESTING')!;
+    // Doses 2, 20, 100 µg into the left coronary (ESC 2024 protocol); spasm ≥ 90% with symptoms and ECG (COVADIS).
+    expect(a).toContain('Intracoronary acetylcholine into the LAD, 3 doses of 2, 20 and 100 µg, each followed by angiography.');
+    expect(a).toMatch(/^Dose\s+Into\s+Diameter reduction\s+Usual symptoms\s+Ischaemic ECG\s+Response$/m);
+    expect(a).toMatch(/^2 µg\s+LAD\s+0 %\s+No\s+No\s+Negative$/m);
+    expect(a).toMatch(/^100 µg\s+LAD\s+95 %\s+Yes\s+Yes\s+Epicardial spasm$/m);
+    expect(a).toContain('Result: epicardial spasm (spasm: constriction of 90% or more with the usual symptoms and ischaemic ECG changes, COVADIS; ESC 2024).');
+    expect(a).toContain('Spasm reversed with intracoronary nitroglycerin.');
+  });
+
+  it('acetylcholine: a dose still missing observations keeps its row, with no response', () => {
+    const s = demoReportStudies()[3];
+    s.vasoreactivity.doses[2].symptoms = null;
+    const a = section(render(s).text, 'ACETYLCHOLINE TESTING')!;
+    expect(a).toMatch(/^100 µg\s+LAD\s+95 %\s+—\s+Yes\s+—$/m);
+    expect(a).toMatch(/^20 µg\s+LAD\s+15 %\s+No\s+No\s+Negative$/m);
+  });
+
+  it('endotype with its reasons (coronary function studies)', () => {
+    const d = section(render(structural).text, 'DIAGNOSIS: CORONARY FUNCTION')!;
+    expect(d.split('\n')[0]).toBe('Microvascular angina');
+    expect(d).toContain('Reasons:');
+    expect(d).toMatch(/- LAD: CFR 1\.\d\d/);
+    expect(section(render(normal).text, 'DIAGNOSIS: CORONARY FUNCTION')!.split('\n')[0]).toBe('No coronary abnormality found');
+    // The headline is left out when it only repeats the label.
+    expect(section(render(normal).text, 'DIAGNOSIS: CORONARY FUNCTION')).not.toContain('No coronary abnormality found.\n');
+  });
+
+  it('measurement quality lists the core warnings', () => {
+    const q = section(render(functional).text, 'MEASUREMENT QUALITY')!;
+    expect(q).toContain('LCx: Pd/Pa at the guide tip after pull-back was 1.03, outside 0.98–1.02');
+    expect(section(render(lad).text, 'MEASUREMENT QUALITY')).toBeNull();
+  });
+
+  it('complications: free text, the list of kinds, "none" and "not recorded"', () => {
+    expect(section(render(spasm).text, 'COMPLICATIONS')).toContain('Chest pain and anterior ST elevation during acetylcholine testing');
+    const s = demoReportStudies()[0];
+    const f = s.findings as typeof s.findings & { complicationKinds?: string[] };
+    f.complicationKinds = ['none'];
+    f.complications = null;
+    expect(section(render(s).text, 'COMPLICATIONS')!.trim()).toBe('None.');
+    f.complicationKinds = ['dissection', 'arrhythmia'];
+    f.complications = 'Type A dissection of the mid LAD, no flow limitation.';
+    const c = section(render(s).text, 'COMPLICATIONS')!;
+    // Labels from the shared complication table once it exists; the codes in words before that.
+    expect(c).toMatch(/^(Coronary dissection and arrhythmia needing treatment|Dissection and arrhythmia)\.$/m);
+    expect(c).toContain('Type A dissection of the mid LAD, no flow limitation.');
+    f.complicationKinds = [];
+    f.complications = null;
+    expect(section(render(s).text, 'COMPLICATIONS')!.trim()).toBe('Not recorded.');
+  });
+
+  it('impression and plan keep the physician’s paragraphs', () => {
+    const s = demoReportStudies()[0];
+    s.findings.impression = 'First paragraph,\nwrapped line.\n\nSecond paragraph.';
+    const { text, html } = render(s);
+    expect(section(text, 'IMPRESSION')!.trim()).toBe('First paragraph, wrapped line.\nSecond paragraph.');
+    expect(html).toContain('<p>First paragraph, wrapped line.</p>\n<p>Second paragraph.</p>');
+    expect(section(text, 'RECOMMENDATIONS AND PLAN')).toContain('Dual antiplatelet therapy for 6 months');
+  });
+
+  it('thresholds applied, caution, and the signature block', () => {
+    const signed = render(lad, {
+      signature: { signedBy: 'Dr. Kofi Oduya', signedAt: '2026-11-30T10:15:00Z', reportVersion: 2, fingerprint: '0123456789abcdef'.repeat(4), amendmentReason: 'Access site corrected' },
+    });
+    expect(section(signed.text, 'THRESHOLDS APPLIED')).toContain('- FFR abnormal: ≤ 0.80 (ESC 2024)');
+    expect(signed.text).toContain('Decision support only.');
+    expect(signed.text).toContain('Electronically signed by Dr. Kofi Oduya on 30 Nov 2026, 10:15 UTC. Report version 2. Content fingerprint 0123-4567-89ab-cdef.');
+    expect(signed.text).toContain('Addendum: Access site corrected');
+    expect(render(lad).text).toContain('Preview: not signed.');
+    expect(render(lad, { timeZone: 'Europe/Oslo', signature: { signedBy: 'X', signedAt: '2026-11-30T10:15:00Z', reportVersion: 1, fingerprint: 'ab'.repeat(32) } }).text).toContain(
+      'on 30 Nov 2026, 11:15 CET.',
+    );
+  });
+});
+
+describe('a plain pressure-wire study of an intermediate lesion', () => {
+  for (const i of [0, 1]) {
+    const s = demoReportStudies()[i];
+    it(`${s.accession} speaks of the lesion and the decision, prints no endotype`, () => {
+      const analysis = analysisOf(s);
+      const { text, html } = render(s);
+      expect(text).toContain('Coronary physiology report');
+      expect(section(text, 'CONCLUSION')).toMatch(/haemodynamically significant \(FFR 0\.\d\d\); (treat|defer)/);
+      for (const absent of ['endotype', 'Endotype', 'microvascular', 'Microvascular', 'CORONARY FUNCTION', 'ACETYLCHOLINE', 'CFR', 'IMR', 'Not enough data']) {
+        expect(text, absent).not.toContain(absent);
+      }
+      expect(html).not.toContain('class="endotype"');
+      // The core's endotype exists (it is not printed here).
+      expect(analysis.endotype).toBeTypeOf('string');
+    });
+  }
+
+  it('the deferred lesion, whose core endotype is inconclusive, reads as a lesion report', () => {
+    const s = demoReportStudies()[1];
+    expect(analysisOf(s).endotype).toBe('inconclusive');
+    const c = section(render(s).text, 'CONCLUSION')!;
+    expect(c).toContain('Right coronary (Mid RCA): not haemodynamically significant (FFR 0.86); defer.');
+  });
+
+  it('a minimal record leaves no empty sentence, row or column', () => {
+    const s = demoReportStudies()[0];
+    s.setup = emptySetup();
+    s.details = { ...s.details, accessSite: null, guideFrench: null, encounter: null, referringName: null, procedureStartedAt: null, procedureEndedAt: null };
+    s.vessels = [{ ...emptyVessel(s.vessels[0].id, 'LAD'), consoleFfr: 0.83, driftPdPa: 1 }];
+    s.findings = { ...s.findings, contrastMl: null, fluoroscopyMinutes: null };
+    const { text, html } = render(s);
+    expect(section(text, 'PROCEDURE AND TECHNIQUE')!.trim()).toBe('Drift check, Pd/Pa with the sensor back at the guide tip: LAD 1.00 (within 0.98–1.02).');
+    expect(section(text, 'MEASUREMENTS')).toBeNull();
+    expect(section(text, 'CALCULATED INDICES')!.trim().split('\n')).toEqual(['Vessel  FFR', '------  ----', 'LAD     0.83']);
+    expect(text).not.toMatch(/Encounter|Procedure:|Referring|Heparin|Hyperaemia|Totals/);
+    expectNoHoles(text, html);
+  });
+
+  it('every demo report is free of empty sentences and cells', () => {
+    for (const s of demoReportStudies()) {
+      const { text, html } = render(s);
+      expectNoHoles(text, html);
+    }
+  });
+});
+
+describe('free text is escaped, never rendered as markup', () => {
+  const markup = '<script>alert("x")</script><b onclick=steal()>bold</b> & <img src=x onerror=alert(1)>';
+
+  it('in the impression, plan, indication, complications and patient name', () => {
+    const s = demoReportStudies()[0];
+    s.findings.impression = markup;
+    s.findings.plan = markup;
+    s.findings.complications = markup;
+    s.details.indication = markup;
+    s.patient.givenName = '<i>Harold</i>';
+    const { html, text } = render(s);
+    expect(html).not.toMatch(/<script|<b |<img|<i>/);
+    expect(html).toContain('&lt;script&gt;alert(&quot;x&quot;)&lt;/script&gt;&lt;b onclick&#x3D;steal()&gt;bold&lt;/b&gt; &amp; &lt;img src&#x3D;x onerror&#x3D;alert(1)&gt;');
+    expect(html).toContain('QUENNEVILLE, &lt;i&gt;Harold&lt;/i&gt;');
+    // The plain text is not markup: it keeps the physician's characters as typed.
+    expect(section(text, 'IMPRESSION')!.trim()).toBe(markup);
+    expect(text).not.toContain('&lt;');
+  });
+
+  it('a 10,000-character impression: the record refuses it, the renderer would print it whole', () => {
+    const long = `${'Lorem ipsum dolor sit amet <consectetur> & adipiscing. '.repeat(182)}end`.slice(0, 10_000);
+    expect(long).toHaveLength(10_000);
+    // The study record caps the impression at 5000 characters with a clear message.
+    const parsed = findingsSchema.safeParse({ ...demoReportStudies()[0].findings, impression: long });
+    expect(parsed.success).toBe(false);
+    expect(parsed.error!.issues[0].message).toBe('Impression is too long (at most 5000 characters).');
+    const s = demoReportStudies()[0];
+    s.findings.impression = long;
+    const { text, html } = render(s);
+    expect(section(text, 'IMPRESSION')!.trim()).toBe(long.trim());
+    expect(html.split('&lt;consectetur&gt;').length - 1).toBe(long.split('<consectetur>').length - 1);
+    expect(html).not.toContain('<consectetur>');
+  });
+});
