@@ -28,10 +28,16 @@ export function reportStudyFromDemo(demo: DemoStudy, index = 0): ReportStudy {
       clinicalQuestion: demo.clinicalQuestion,
       accessSite: demo.accessSite,
       guideFrench: demo.guideFrench,
+      ...demo.patientFacts,
     },
     setup: { ...emptySetup(), ...demo.setup },
     vessels: demo.vessels.map((v, i) => ({ ...v, id: uuid(2000 + index * 20 + i) })),
-    vasoreactivity: { ...demo.vasoreactivity, doses: demo.vasoreactivity.doses.map((d, i) => ({ ...d, id: uuid(3000 + index * 20 + i) })) },
+    vasoreactivity: {
+      nitrateReversal: demo.vasoreactivity.nitrateReversal,
+      reversalNitroglycerinMicrograms: demo.vasoreactivity.reversalNitroglycerinMicrograms,
+      reversalNitroglycerinAt: null,
+      doses: demo.vasoreactivity.doses.map((d, i) => ({ ...d, id: uuid(3000 + index * 20 + i) })),
+    },
     findings: { ...emptyFindings(), ...demo.findings },
   };
 }
