@@ -69,6 +69,9 @@ const configSchema = z
     EHR_SCOPE: z.string().min(1).default('system/Patient.write system/Encounter.write system/Observation.write system/DiagnosticReport.write'),
     EHR_TIMEOUT_SECONDS: z.coerce.number().min(1).max(600).default(30),
     FAKE_EHR_PORT: port.default(8472),
+    HOSPITAL_NAME: z.string().trim().min(1).max(200).default('Saltmarsh Bay Regional Hospital'),
+    HOSPITAL_LAB: z.string().trim().max(200).default('Cardiac Catheterization Laboratory'),
+    SIGN_REAUTH_MINUTES: z.coerce.number().int().min(1).max(720).default(10),
   })
   .superRefine((value, ctx) => {
     if (value.NODE_ENV === 'production' && value.SESSION_SECRET.startsWith('local-development-secret')) {
@@ -96,6 +99,10 @@ export interface Config {
   ehr: { fhirBaseUrl: string; clientId: string; clientSecret: string; scope: string; timeoutMs: number };
   /** Port of the local stand-in EHR (`server/fakes/main.ts`). */
   fakeEhrPort: number;
+  /** The hospital and lab printed on reports. */
+  hospital: { name: string; lab: string };
+  /** A signature needs a sign-in at most this many minutes old. */
+  signReauthMinutes: number;
 }
 
 export class ConfigError extends Error {
@@ -144,5 +151,7 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
       timeoutMs: v.EHR_TIMEOUT_SECONDS * 1000,
     },
     fakeEhrPort: v.FAKE_EHR_PORT,
+    hospital: { name: v.HOSPITAL_NAME, lab: v.HOSPITAL_LAB },
+    signReauthMinutes: v.SIGN_REAUTH_MINUTES,
   };
 }

@@ -14,7 +14,14 @@ export type AuditAction =
   | 'create'
   | 'update'
   | 'delete'
-  | 'export';
+  | 'export'
+  | 'mark-ready'
+  | 'send-back'
+  | 'sign'
+  | 'open-addendum'
+  | 'sign-addendum'
+  | 'discard-addendum'
+  | 'verify';
 
 export interface AuditEntry {
   actorUserId?: string | null;

@@ -232,6 +232,31 @@ export async function createStudy(dataSource: DataSource, input: CreateStudy, cr
   });
 }
 
+type WritableSections = Partial<Pick<StudySections, 'details' | 'setup' | 'findings' | 'vasoreactivity' | 'vessels'>>;
+
+/**
+ * Writes whole sections of a study (inside the caller's transaction, the row already locked): the
+ * study's own columns, then its vessel and dose rows.
+ */
+export async function writeSections(db: EntityManager, id: string, sections: WritableSections, options: { patientId?: string; bumpVersion?: boolean } = {}): Promise<void> {
+  const sets: string[] = [];
+  const values: unknown[] = [];
+  const add = (a: { sql: string; values: unknown[] }) => {
+    if (!a.sql) return;
+    sets.push(a.sql);
+    values.push(...a.values);
+  };
+  if (options.patientId) add({ sql: `patient_id = $${values.length + 1}`, values: [options.patientId] });
+  if (sections.details) add(assignments(detailsColumns, sections.details, values.length + 1));
+  if (sections.setup) add(assignments(setupColumns, sections.setup, values.length + 1));
+  if (sections.findings) add(assignments(findingsColumns, sections.findings, values.length + 1));
+  if (sections.vasoreactivity) add(assignments(vasoreactivityColumns, sections.vasoreactivity, values.length + 1));
+  const bump = options.bumpVersion ? ['version = version + 1'] : [];
+  await db.query(`UPDATE study SET ${[...sets, ...bump, 'updated_at = now()'].join(', ')} WHERE id = $${values.length + 1}`, [...values, id]);
+  if (sections.vessels) await replaceVessels(db, id, sections.vessels);
+  if (sections.vasoreactivity) await replaceDoses(db, id, sections.vasoreactivity.doses);
+}
+
 /**
  * Replaces the sections the patch carries, in one transaction: the row is locked, the version and
  * the state checked, the sections written, the audit row added, and the result read back — all
@@ -241,27 +266,15 @@ export async function patchStudy(dataSource: DataSource, id: string, patch: Patc
   return dataSource.transaction(async (db) => {
     const current = await lockEditableStudy(db, id);
     if (current.version !== patch.version) throw new StaleVersionError((await loadStudy(db, id))!);
-    const sets: string[] = [];
-    const values: unknown[] = [];
-    const add = (a: { sql: string; values: unknown[] }) => {
-      if (!a.sql) return;
-      sets.push(a.sql);
-      values.push(...a.values);
-    };
     let leftBehind: string | null = null;
+    let patientId: string | undefined;
     if (patch.patient) {
       const resolved = await resolvePatient(db, patch.patient, id, current.patientId);
       leftBehind = resolved.leftBehind;
-      add({ sql: `patient_id = $${values.length + 1}`, values: [resolved.patientId] });
+      patientId = resolved.patientId;
     }
-    if (patch.details) add(assignments(detailsColumns, patch.details, values.length + 1));
-    if (patch.setup) add(assignments(setupColumns, patch.setup, values.length + 1));
-    if (patch.findings) add(assignments(findingsColumns, patch.findings, values.length + 1));
-    if (patch.vasoreactivity) add(assignments(vasoreactivityColumns, patch.vasoreactivity, values.length + 1));
-    await db.query(`UPDATE study SET ${[...sets, 'version = version + 1', 'updated_at = now()'].join(', ')} WHERE id = $${values.length + 1}`, [...values, id]);
+    await writeSections(db, id, patch, { patientId, bumpVersion: true });
     await removeIfUnused(db, leftBehind);
-    if (patch.vessels) await replaceVessels(db, id, patch.vessels);
-    if (patch.vasoreactivity) await replaceDoses(db, id, patch.vasoreactivity.doses);
     const changed = Object.keys(patch).filter((k) => k !== 'version');
     if (actor) await recordAudit(db, { ...actor, action: 'update', entityType: 'study', entityId: id, outcome: 'success', detail: { sections: changed, fromVersion: patch.version } });
     return { changed, record: (await loadStudy(db, id))! };

@@ -1,0 +1,66 @@
+import type { DataSource, EntityManager } from 'typeorm';
+import type { Role } from '../../shared/auth/permissions';
+import { checkTransition, transitions, type StudyAction } from '../../shared/study/state-machine';
+import type { StudyState } from '../../shared/study/vocabulary';
+import { recordAudit, type AuditEntry } from '../audit/audit';
+import { NotFoundError } from '../http/problem';
+import { loadStudy, StaleVersionError, writeSections } from '../studies/repository';
+import type { StudyRecord } from '../../shared/study/schema';
+import { TransitionRefusedError } from './errors';
+import { latestVersion } from './sign-study';
+
+export type StateChange = Exclude<StudyAction, 'sign' | 'sign-addendum'>;
+
+export interface ChangeStateRequest {
+  studyId: string;
+  action: StateChange;
+  studyVersion: number;
+  reason?: string | null;
+  role: Role | null;
+  audit: Pick<AuditEntry, 'actorUserId' | 'actorName' | 'actorRole' | 'clientAddress'>;
+}
+
+/**
+ * Moves a study along the hand-off: ready for review, back to draft with a reason, an addendum opened
+ * or discarded. Discarding an addendum puts the record back exactly as it was last signed.
+ */
+export async function changeStudyState(dataSource: DataSource, req: ChangeStateRequest): Promise<StudyRecord> {
+  return dataSource.transaction(async (manager) => {
+    const [row] = await manager.query(`SELECT state, version FROM study WHERE id = $1 FOR UPDATE`, [req.studyId]);
+    if (!row) throw new NotFoundError('No study has this id.');
+    const state = row.state as StudyState;
+    const refusal = checkTransition(state, req.action, req.role, req.reason);
+    if (refusal) throw new TransitionRefusedError(refusal, `“${transitions[req.action].label}” is not possible for a ${state} study${refusal === 'not-permitted' ? ' with your role' : ''}.`);
+    if (row.version !== req.studyVersion) throw new StaleVersionError((await loadStudy(manager, req.studyId))!);
+    let next: StudyState;
+    if (req.action === 'discard-addendum') {
+      const last = await latestVersion(manager, req.studyId);
+      if (!last) throw new TransitionRefusedError('wrong-state', 'This study has no signed version to return to.');
+      next = last.status === 'final' ? 'signed' : 'amended';
+      await restoreSnapshot(manager, req.studyId, last.snapshot as StudyRecord);
+    } else {
+      next = transitions[req.action].to as StudyState;
+    }
+    await manager.query(`UPDATE study SET state = $2, version = version + 1, updated_at = now() WHERE id = $1`, [req.studyId, next]);
+    await recordAudit(manager, {
+      ...req.audit,
+      action: req.action,
+      entityType: 'study',
+      entityId: req.studyId,
+      outcome: 'success',
+      detail: { from: state, to: next, ...(req.reason ? { reason: req.reason.slice(0, 500) } : {}) },
+    });
+    return (await loadStudy(manager, req.studyId))!;
+  });
+}
+
+/** Writes the signed snapshot's sections back over the record (the addendum's edits are dropped). */
+async function restoreSnapshot(manager: EntityManager, studyId: string, snapshot: StudyRecord): Promise<void> {
+  await writeSections(manager, studyId, {
+    details: snapshot.details,
+    setup: snapshot.setup,
+    vessels: snapshot.vessels,
+    vasoreactivity: snapshot.vasoreactivity,
+    findings: snapshot.findings,
+  });
+}

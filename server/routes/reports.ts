@@ -1,0 +1,124 @@
+import express, { type Request } from 'express';
+import type { DataSource } from 'typeorm';
+import { z } from 'zod';
+import { auditContext, recordAudit } from '../audit/audit';
+import type { Config } from '../config';
+import { ReportVersion } from '../db/entities/report-version.entity';
+import { NotFoundError } from '../http/problem';
+import type { ApiRoute } from '../http/routes';
+import { parseOrThrow } from '../http/validate';
+import { changeStudyState } from '../reports/change-study-state';
+import { ReauthenticationRequiredError } from '../reports/errors';
+import { previewStudyReport } from '../reports/preview-report';
+import { signStudy } from '../reports/sign-study';
+import { verifyReport } from '../reports/verify-report';
+
+const uuidPattern = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
+const idParam = (req: Request, what = 'study') => {
+  const id = String(req.params.id);
+  if (!uuidPattern.test(id)) throw new NotFoundError(`No ${what} has this id.`);
+  return id;
+};
+
+const reasonSchema = z.string({ error: 'reason must be text.' }).trim().max(1000, { error: 'The reason is too long (at most 1000 characters).' }).nullable().optional();
+const versionSchema = z.number({ error: 'version is required: the study version you previewed.' }).int().min(1);
+const signSchema = z.strictObject({ version: versionSchema, reason: reasonSchema });
+const transitionSchema = z.strictObject({
+  action: z.enum(['mark-ready', 'send-back', 'open-addendum', 'discard-addendum'], { error: 'action must be mark-ready, send-back, open-addendum or discard-addendum.' }),
+  version: versionSchema,
+  reason: reasonSchema,
+});
+const verifySchema = z.strictObject({ fingerprint: z.string({ error: 'fingerprint must be text.' }).max(200) });
+
+/** Report preview, hand-off, signing, addenda, signed PDFs and verification. */
+export function reportRoutes({ config, dataSource }: { config: Config; dataSource: DataSource }): ApiRoute[] {
+  return [
+    {
+      method: 'get',
+      path: '/studies/:id/report',
+      access: 'study:read',
+      summary: 'The report as it would be signed now, what is missing, the signed versions and the actions open to you',
+      handlers: [
+        async (req, res) => {
+          const id = idParam(req);
+          const preview = await previewStudyReport(dataSource, id, req.session.auth!.role, config.hospital);
+          await recordAudit(dataSource, { ...auditContext(req), action: 'read', entityType: 'study', entityId: id, outcome: 'success', detail: { view: 'report' } });
+          res.json(preview);
+        },
+      ],
+    },
+    {
+      method: 'post',
+      path: '/studies/:id/transitions',
+      access: 'study:read',
+      summary: 'Ready for review, send back with a reason, open or discard an addendum',
+      handlers: [
+        async (req, res) => {
+          const id = idParam(req);
+          const body = parseOrThrow(transitionSchema, req.body);
+          const auth = req.session.auth!;
+          const record = await changeStudyState(dataSource, { studyId: id, action: body.action, studyVersion: body.version, reason: body.reason, role: auth.role, audit: auditContext(req) });
+          res.json(record);
+        },
+      ],
+    },
+    {
+      method: 'post',
+      path: '/studies/:id/sign',
+      access: 'study:sign',
+      summary: 'Sign the previewed version (or the open addendum with its reason): one immutable report version',
+      handlers: [
+        async (req, res) => {
+          const id = idParam(req);
+          const body = parseOrThrow(signSchema, req.body);
+          const auth = req.session.auth!;
+          // An electronic signature confirms who signs: a sign-in older than the limit must be renewed.
+          if (Date.now() - auth.signedInAt > config.signReauthMinutes * 60_000) throw new ReauthenticationRequiredError(config.signReauthMinutes);
+          const version = await signStudy(dataSource, {
+            studyId: id,
+            studyVersion: body.version,
+            reason: body.reason,
+            signer: { userId: auth.userId, displayName: auth.displayName, role: auth.role },
+            hospital: config.hospital,
+            audit: auditContext(req),
+          });
+          res.status(201).json(version);
+        },
+      ],
+    },
+    {
+      method: 'get',
+      path: '/reports/:id/pdf',
+      access: 'study:read',
+      summary: 'A signed version’s PDF, byte for byte as signed',
+      handlers: [
+        async (req, res) => {
+          const id = idParam(req, 'report version');
+          const version = await dataSource.getRepository(ReportVersion).findOne({ where: { id }, select: { id: true, studyId: true, versionNo: true, pdf: true, pdfSha256: true } });
+          if (!version) throw new NotFoundError('No report version has this id.');
+          const [study] = await dataSource.query(`SELECT accession FROM study WHERE id = $1`, [version.studyId]);
+          await recordAudit(dataSource, { ...auditContext(req), action: 'export', entityType: 'study', entityId: version.studyId, outcome: 'success', detail: { reportVersion: version.versionNo, format: 'pdf' } });
+          res.setHeader('Content-Type', 'application/pdf');
+          res.setHeader('Content-Disposition', `inline; filename="${String(study?.accession ?? 'report').replace(/[^A-Za-z0-9._-]/g, '_')}-v${version.versionNo}.pdf"`);
+          res.setHeader('X-Content-SHA256', version.pdfSha256);
+          res.send(version.pdf);
+        },
+      ],
+    },
+    {
+      method: 'post',
+      path: '/reports/verify',
+      access: 'study:read',
+      summary: 'Which study and version a PDF (its bytes) or a printed fingerprint is, and whether it is superseded',
+      handlers: [
+        express.raw({ type: 'application/pdf', limit: config.attachments.maxBytes }),
+        async (req, res) => {
+          const evidence = Buffer.isBuffer(req.body) ? { pdf: req.body } : parseOrThrow(verifySchema, req.body);
+          const result = await verifyReport(dataSource, evidence);
+          await recordAudit(dataSource, { ...auditContext(req), action: 'verify', entityType: 'study', entityId: result.studyId ?? null, outcome: 'success', detail: { found: result.found } });
+          res.json(result);
+        },
+      ],
+    },
+  ];
+}
