@@ -571,9 +571,15 @@ function complicationLines(findings: ReportStudy['findings']): string[] {
   const kinds = (findings as { complicationKinds?: readonly string[] }).complicationKinds;
   const details = paragraphs(findings.complications);
   if (Array.isArray(kinds) && kinds.length > 0) {
-    const labels = kinds.map((k) => labelOf(vocab.complicationLabel, k) ?? k).map((l) => l.replace(/\s*\(describe below\)$/i, ''));
-    const head = kinds.includes('none') ? 'None.' : sentence(joinAnd(labels.map((l, i) => (i === 0 ? l : lowerFirst(l)))));
-    return [head, ...details];
+    // "Other" is told by its description, not by the word.
+    const named = kinds.filter((k) => k !== 'other' || details.length === 0);
+    const labels = named.map((k) => labelOf(vocab.complicationLabel, k) ?? k).map((l) => l.replace(/\s*\(describe below\)$/i, ''));
+    if (kinds.includes('none')) {
+      // Details that only repeat "none" are not printed twice.
+      return ['None.', ...details.filter((d) => !/^none\.?$/i.test(d))];
+    }
+    const listed = labels.length ? [sentence(joinAnd(labels.map((l, i) => (i === 0 ? l : lowerFirst(l)))))] : [];
+    return [...listed, ...details];
   }
   return details.length ? details : ['Not recorded.'];
 }

@@ -7,6 +7,9 @@ import { buildReportView, type ReportInput, type ReportStudy } from '../../../se
 /** Stable invented row ids, so views built from the same study are identical. */
 const uuid = (n: number) => `00000000-0000-4000-8000-${String(n).padStart(12, '0')}`;
 
+/** Vasoreactivity fields that not every version of the record has; empty unless the scenario sets them. */
+const laterVasoreactivity = { reversalNitroglycerinMicrograms: null, reversalNitroglycerinAt: null };
+
 /** A demo scenario study as the report builder receives it (ids and times fixed for tests). */
 export function reportStudyFromDemo(demo: DemoStudy, index = 0): ReportStudy {
   const patient = demoPatients.find((p) => p.mrn === demo.mrn)!;
@@ -31,7 +34,7 @@ export function reportStudyFromDemo(demo: DemoStudy, index = 0): ReportStudy {
     },
     setup: { ...emptySetup(), ...demo.setup },
     vessels: demo.vessels.map((v, i) => ({ ...v, id: uuid(2000 + index * 20 + i) })),
-    vasoreactivity: { ...demo.vasoreactivity, doses: demo.vasoreactivity.doses.map((d, i) => ({ ...d, id: uuid(3000 + index * 20 + i) })) },
+    vasoreactivity: { ...laterVasoreactivity, ...demo.vasoreactivity, doses: demo.vasoreactivity.doses.map((d, i) => ({ ...d, id: uuid(3000 + index * 20 + i) })) },
     findings: { ...emptyFindings(), ...demo.findings },
   };
 }

@@ -192,12 +192,21 @@ describe('template sections', () => {
     f.complicationKinds = ['none'];
     f.complications = null;
     expect(section(render(s).text, 'COMPLICATIONS')!.trim()).toBe('None.');
+    f.complications = 'None.';
+    expect(section(render(s).text, 'COMPLICATIONS')!.trim()).toBe('None.');
+    f.complications = 'Radial artery spasm at the end, settled with verapamil.';
+    expect(section(render(s).text, 'COMPLICATIONS')!.trim()).toBe('None.\nRadial artery spasm at the end, settled with verapamil.');
     f.complicationKinds = ['dissection', 'arrhythmia'];
     f.complications = 'Type A dissection of the mid LAD, no flow limitation.';
     const c = section(render(s).text, 'COMPLICATIONS')!;
     // Labels from the shared complication table once it exists; the codes in words before that.
     expect(c).toMatch(/^(Coronary dissection and arrhythmia needing treatment|Dissection and arrhythmia)\.$/m);
     expect(c).toContain('Type A dissection of the mid LAD, no flow limitation.');
+    f.complicationKinds = ['dissection', 'other'];
+    f.complications = 'Vasovagal reaction.';
+    expect(section(render(s).text, 'COMPLICATIONS')!.trim()).toMatch(/^(Coronary dissection|Dissection)\.\nVasovagal reaction\.$/);
+    f.complicationKinds = ['other'];
+    expect(section(render(s).text, 'COMPLICATIONS')!.trim()).toBe('Vasovagal reaction.');
     f.complicationKinds = [];
     f.complications = null;
     expect(section(render(s).text, 'COMPLICATIONS')!.trim()).toBe('Not recorded.');
