@@ -260,6 +260,17 @@ describe('a plain pressure-wire study of an intermediate lesion', () => {
     expect(c).toContain('Right coronary (Mid RCA): not haemodynamically significant (FFR 0.86); defer.');
   });
 
+  it('after intervention it speaks of the residual gradient, not of a lesion to judge', () => {
+    const s = demoReportStudies()[0];
+    s.details.clinicalQuestion = 'post-pci';
+    s.vessels[0] = { ...s.vessels[0], hyperemiaPa: 90, hyperemiaPd: 83, consoleFfr: null, nhprKind: null, nhprValue: null, decision: null };
+    const { text } = render(s);
+    // FFR 83/90 = 0.92 > 0.80 (ESC 2024): no significant residual gradient.
+    expect(section(text, 'INTERPRETATION BY VESSEL')).toContain('No haemodynamically significant gradient remains after intervention (judged by FFR).');
+    expect(section(text, 'CONCLUSION')!.trim()).toBe('Left anterior descending (Proximal LAD): no significant gradient remains after intervention (FFR 0.92).');
+    expect(text).not.toContain('The lesion is');
+  });
+
   it('a minimal record leaves no empty sentence, row or column', () => {
     const s = demoReportStudies()[0];
     s.setup = emptySetup();
