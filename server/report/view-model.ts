@@ -557,9 +557,7 @@ function acetylcholineSection(study: ReportStudy, analysis: PhysiologyResult, t:
   );
   const outcome = analysis.vasoreactivity?.result;
   const result = outcome
-    ? sentence(
-        `Result: ${lowerFirst(vasoreactivityOutcomeLabel[outcome])} (spasm: constriction of ${q(t.spasmConstrictionPct, 'percent')}% or more with the usual symptoms and ischaemic ECG changes, ${cite(t, 'spasmConstrictionPct')})`,
-      )
+    ? `${sentence(`Result: ${lowerFirst(vasoreactivityOutcomeLabel[outcome])}`)} Spasm is judged as constriction of ${q(t.spasmConstrictionPct, 'percent')}% or more with the usual symptoms and ischaemic ECG changes (${cite(t, 'spasmConstrictionPct')}).`
     : null;
   const v = study.vasoreactivity as ReportStudy['vasoreactivity'] & Record<string, unknown>;
   const ntg = isNum(v.reversalNitroglycerinMicrograms) ? ` ${withUnit(v.reversalNitroglycerinMicrograms, 'dose')}` : '';

@@ -157,7 +157,7 @@ describe('template sections', () => {
     expect(a).toMatch(/^Dose\s+Into\s+Diameter reduction\s+Usual symptoms\s+Ischaemic ECG\s+Response$/m);
     expect(a).toMatch(/^2 µg\s+LAD\s+0 %\s+No\s+No\s+Negative$/m);
     expect(a).toMatch(/^100 µg\s+LAD\s+95 %\s+Yes\s+Yes\s+Epicardial spasm$/m);
-    expect(a).toContain('Result: epicardial spasm (spasm: constriction of 90% or more with the usual symptoms and ischaemic ECG changes, COVADIS; ESC 2024).');
+    expect(a).toContain('Result: epicardial spasm. Spasm is judged as constriction of 90% or more with the usual symptoms and ischaemic ECG changes (COVADIS; ESC 2024).');
     expect(a).toContain('Spasm reversed with intracoronary nitroglycerin.');
   });
 
