@@ -58,6 +58,18 @@ export function sha256Hex(bytes: Uint8Array): string {
   return createHash('sha256').update(bytes).digest('hex');
 }
 
+/**
+ * The full content fingerprint written into a report PDF's metadata (its Subject), or null when the
+ * bytes hold none. For "verify": an uploaded PDF names the signed content it prints even when its
+ * bytes were re-saved by another program (a re-saved file has another SHA-256 but keeps its Subject,
+ * unless that program rewrote the metadata).
+ */
+export function fingerprintInPdf(pdf: Uint8Array): string | null {
+  const text = Buffer.from(pdf.buffer, pdf.byteOffset, pdf.byteLength).toString('latin1');
+  const m = /\(Report version \d+, fingerprint ([0-9a-f]{64})\)/.exec(text);
+  return m ? m[1] : null;
+}
+
 // ---------------------------------------------------------------------------------------------
 // Fonts: Public Sans from the app's font package, held in pdfmake's virtual file system
 
