@@ -78,6 +78,7 @@ interface PdfMake {
   setUrlAccessPolicy(cb: (url: string) => boolean): void;
   setLocalAccessPolicy(cb: (path: string) => boolean): void;
   createPdf(doc: TDocumentDefinitions): { getBuffer(): Promise<Buffer> };
+  setTableLayouts(layouts: Record<string, unknown>): void;
   virtualfs: { writeFileSync(name: string, data: Buffer): void };
 }
 const pdfmake = pdfmakeDefault as unknown as PdfMake;
@@ -102,6 +103,7 @@ function setUp(): void {
     family[style] = name;
   }
   pdfmake.setFonts({ [PDF_FONT]: family });
+  pdfmake.setTableLayouts(tableLayouts);
   // Everything the report needs is in memory: no URL and no local file may be read while rendering.
   pdfmake.setUrlAccessPolicy(() => false);
   pdfmake.setLocalAccessPolicy(() => false);
@@ -112,7 +114,8 @@ function setUp(): void {
 // Page
 
 /** A4 portrait, margins in points (1/72 inch): left, top, right, bottom. */
-export const PAGE = { size: 'A4', margins: [48, 66, 48, 72] as [number, number, number, number] } as const;
+export const PAGE = { size: 'A4', width: 595.28, margins: [48, 66, 48, 72] as [number, number, number, number] } as const;
+const textWidth = PAGE.width - PAGE.margins[0] - PAGE.margins[2];
 
 const ink = '#1c2430';
 const muted = '#5b6675';
@@ -166,7 +169,7 @@ function header(view: ReportView): Content {
         fontSize: 8.5,
         color: ink,
       },
-      { canvas: [{ type: 'line', x1: 0, y1: 4, x2: 595.28 - PAGE.margins[0] - PAGE.margins[2], y2: 4, lineWidth: 0.5, lineColor: rule }] },
+      { canvas: [{ type: 'line', x1: 0, y1: 4, x2: textWidth, y2: 4, lineWidth: 0.5, lineColor: rule }] },
     ],
   };
 }
@@ -182,7 +185,7 @@ function footer(view: ReportView, page: number, pages: number): Content {
   return {
     margin: [PAGE.margins[0], 24, PAGE.margins[2], 0],
     stack: [
-      { canvas: [{ type: 'line', x1: 0, y1: 0, x2: 595.28 - PAGE.margins[0] - PAGE.margins[2], y2: 0, lineWidth: 0.5, lineColor: rule }] },
+      { canvas: [{ type: 'line', x1: 0, y1: 0, x2: textWidth, y2: 0, lineWidth: 0.5, lineColor: rule }] },
       {
         margin: [0, 4, 0, 0],
         columns: [
@@ -340,6 +343,5 @@ export async function renderReportPdf(view: ReportView, options: PdfOptions = {}
   const created = new Date(options.createdAt ?? view.signature?.signedAtIso ?? 0);
   if (Number.isNaN(created.getTime())) throw new TypeError('renderReportPdf: createdAt is not a valid time.');
   const doc = reportDocument(view, created);
-  (pdfmake as unknown as { setTableLayouts(l: unknown): void }).setTableLayouts(tableLayouts);
   return pdfmake.createPdf(doc).getBuffer();
 }
