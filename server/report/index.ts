@@ -3,7 +3,7 @@ import { fingerprint, renderReportPdf, sha256Hex } from './pdf';
 import { htmlDocument, renderNarrative, type Narrative } from './render';
 import { buildReportView, type ReportInput, type ReportStudy, type ReportView } from './view-model';
 
-export { canonicalContent, fingerprint, renderReportPdf, sha256Hex, PAGE } from './pdf';
+export { canonicalContent, fingerprint, fingerprintInPdf, renderReportPdf, sha256Hex, warmUpPdf, PAGE } from './pdf';
 export { renderNarrative, htmlDocument, type Narrative } from './render';
 export { buildReportView, reportKindOf, shortFingerprint, type ReportInput, type ReportStudy, type ReportView, type ReportSignature, type ReportKind } from './view-model';
 export { REPORT_TEMPLATE_VERSION } from './template-version';

@@ -58,6 +58,18 @@ export function sha256Hex(bytes: Uint8Array): string {
   return createHash('sha256').update(bytes).digest('hex');
 }
 
+/**
+ * The full content fingerprint written into a report PDF's metadata (its Subject), or null when the
+ * bytes hold none. For "verify": an uploaded PDF names the signed content it prints even when its
+ * bytes were re-saved by another program (a re-saved file has another SHA-256 but keeps its Subject,
+ * unless that program rewrote the metadata).
+ */
+export function fingerprintInPdf(pdf: Uint8Array): string | null {
+  const text = Buffer.from(pdf.buffer, pdf.byteOffset, pdf.byteLength).toString('latin1');
+  const m = /\(Report version \d+, fingerprint ([0-9a-f]{64})\)/.exec(text);
+  return m ? m[1] : null;
+}
+
 // ---------------------------------------------------------------------------------------------
 // Fonts: Public Sans from the app's font package, held in pdfmake's virtual file system
 
@@ -66,6 +78,7 @@ interface PdfMake {
   setUrlAccessPolicy(cb: (url: string) => boolean): void;
   setLocalAccessPolicy(cb: (path: string) => boolean): void;
   createPdf(doc: TDocumentDefinitions): { getBuffer(): Promise<Buffer> };
+  setTableLayouts(layouts: Record<string, unknown>): void;
   virtualfs: { writeFileSync(name: string, data: Buffer): void };
 }
 const pdfmake = pdfmakeDefault as unknown as PdfMake;
@@ -90,6 +103,7 @@ function setUp(): void {
     family[style] = name;
   }
   pdfmake.setFonts({ [PDF_FONT]: family });
+  pdfmake.setTableLayouts(tableLayouts);
   // Everything the report needs is in memory: no URL and no local file may be read while rendering.
   pdfmake.setUrlAccessPolicy(() => false);
   pdfmake.setLocalAccessPolicy(() => false);
@@ -100,7 +114,8 @@ function setUp(): void {
 // Page
 
 /** A4 portrait, margins in points (1/72 inch): left, top, right, bottom. */
-export const PAGE = { size: 'A4', margins: [48, 66, 48, 72] as [number, number, number, number] } as const;
+export const PAGE = { size: 'A4', width: 595.28, margins: [48, 66, 48, 72] as [number, number, number, number] } as const;
+const textWidth = PAGE.width - PAGE.margins[0] - PAGE.margins[2];
 
 const ink = '#1c2430';
 const muted = '#5b6675';
@@ -154,7 +169,7 @@ function header(view: ReportView): Content {
         fontSize: 8.5,
         color: ink,
       },
-      { canvas: [{ type: 'line', x1: 0, y1: 4, x2: 595.28 - PAGE.margins[0] - PAGE.margins[2], y2: 4, lineWidth: 0.5, lineColor: rule }] },
+      { canvas: [{ type: 'line', x1: 0, y1: 4, x2: textWidth, y2: 4, lineWidth: 0.5, lineColor: rule }] },
     ],
   };
 }
@@ -170,7 +185,7 @@ function footer(view: ReportView, page: number, pages: number): Content {
   return {
     margin: [PAGE.margins[0], 24, PAGE.margins[2], 0],
     stack: [
-      { canvas: [{ type: 'line', x1: 0, y1: 0, x2: 595.28 - PAGE.margins[0] - PAGE.margins[2], y2: 0, lineWidth: 0.5, lineColor: rule }] },
+      { canvas: [{ type: 'line', x1: 0, y1: 0, x2: textWidth, y2: 0, lineWidth: 0.5, lineColor: rule }] },
       {
         margin: [0, 4, 0, 0],
         columns: [
@@ -313,12 +328,20 @@ export interface PdfOptions {
   createdAt?: string | Date;
 }
 
+/**
+ * Loads the fonts and compiles pdfmake's code paths once, so the first report signed after a start
+ * does not pay for them (the first render in a process takes several times longer than the next).
+ */
+export async function warmUpPdf(): Promise<void> {
+  setUp();
+  await pdfmake.createPdf({ content: [{ text: 'Isobar 0123456789 Pd/Pa µg ≤ ≥ –', bold: true }, 'Isobar'], defaultStyle: { font: PDF_FONT } }).getBuffer();
+}
+
 /** Renders the report as PDF bytes. */
 export async function renderReportPdf(view: ReportView, options: PdfOptions = {}): Promise<Buffer> {
   setUp();
   const created = new Date(options.createdAt ?? view.signature?.signedAtIso ?? 0);
   if (Number.isNaN(created.getTime())) throw new TypeError('renderReportPdf: createdAt is not a valid time.');
   const doc = reportDocument(view, created);
-  (pdfmake as unknown as { setTableLayouts(l: unknown): void }).setTableLayouts(tableLayouts);
   return pdfmake.createPdf(doc).getBuffer();
 }

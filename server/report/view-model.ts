@@ -395,7 +395,14 @@ function judged(flag: Flag | undefined): string {
   return flag ? flagLabel[flag] : 'not judged';
 }
 
-function vesselSentences(r: VesselResult, row: ReportStudy['vessels'][number] | undefined, kind: ReportKind, t: Thresholds, used: UsedThresholds): string[] {
+function vesselSentences(
+  r: VesselResult,
+  row: ReportStudy['vessels'][number] | undefined,
+  kind: ReportKind,
+  afterPci: boolean,
+  t: Thresholds,
+  used: UsedThresholds,
+): string[] {
   const out: string[] = [];
   const against = (op: string, key: ThresholdKey, kind: QuantityKind = 'ratio', unit = '') => `(cut-off ${op} ${q(t[key], kind)}${unit}, ${cite(t, key)})`;
 
@@ -450,7 +457,13 @@ function vesselSentences(r: VesselResult, row: ReportStudy['vessels'][number] | 
             ? lowerFirst(nhprKindLabel[r.nhprKind])
             : 'resting Pd/Pa';
     if (r.judgedBy === 'visual-stenosis') used.add('obstructiveStenosisPct');
-    if (kind === 'lesion') {
+    if (kind === 'lesion' && afterPci) {
+      out.push(
+        r.obstructive
+          ? `A haemodynamically significant gradient remains after intervention (judged by ${by}).`
+          : `No haemodynamically significant gradient remains after intervention (judged by ${by}).`,
+      );
+    } else if (kind === 'lesion') {
       out.push(r.obstructive ? `The lesion is haemodynamically significant (judged by ${by}).` : `The lesion is not haemodynamically significant (judged by ${by}).`);
     } else {
       out.push(r.obstructive ? `Obstructive epicardial disease (judged by ${by}).` : `No obstructive epicardial disease (judged by ${by}).`);
@@ -463,7 +476,7 @@ function vesselSentences(r: VesselResult, row: ReportStudy['vessels'][number] | 
   return out;
 }
 
-function lesionSummary(study: ReportStudy, analysis: PhysiologyResult): string[] {
+function lesionSummary(study: ReportStudy, analysis: PhysiologyResult, afterPci: boolean): string[] {
   const rows = new Map(study.vessels.map((v) => [v.id, v]));
   const out: string[] = [];
   for (const r of analysis.vessels) {
@@ -479,7 +492,14 @@ function lesionSummary(study: ReportStudy, analysis: PhysiologyResult): string[]
             : `visual stenosis ${withUnit(r.visualStenosisPct ?? 0, 'percent')}`;
     const where = vesselTitle(r.vessel, row?.segment);
     const decision = row?.decision ? `; ${lowerFirst(vocabulary.decisionLabel[row.decision])}` : '';
-    out.push(sentence(`${where}: ${r.obstructive ? 'haemodynamically significant' : 'not haemodynamically significant'} (${index})${decision}`));
+    const verdict = afterPci
+      ? r.obstructive
+        ? 'significant gradient remains after intervention'
+        : 'no significant gradient remains after intervention'
+      : r.obstructive
+        ? 'haemodynamically significant'
+        : 'not haemodynamically significant';
+    out.push(sentence(`${where}: ${verdict} (${index})${decision}`));
   }
   return out;
 }
@@ -537,9 +557,7 @@ function acetylcholineSection(study: ReportStudy, analysis: PhysiologyResult, t:
   );
   const outcome = analysis.vasoreactivity?.result;
   const result = outcome
-    ? sentence(
-        `Result: ${lowerFirst(vasoreactivityOutcomeLabel[outcome])} (spasm: constriction of ${q(t.spasmConstrictionPct, 'percent')}% or more with the usual symptoms and ischaemic ECG changes, ${cite(t, 'spasmConstrictionPct')})`,
-      )
+    ? `${sentence(`Result: ${lowerFirst(vasoreactivityOutcomeLabel[outcome])}`)} Spasm is judged as constriction of ${q(t.spasmConstrictionPct, 'percent')}% or more with the usual symptoms and ischaemic ECG changes (${cite(t, 'spasmConstrictionPct')}).`
     : null;
   const v = study.vasoreactivity as ReportStudy['vasoreactivity'] & Record<string, unknown>;
   const ntg = isNum(v.reversalNitroglycerinMicrograms) ? ` ${withUnit(v.reversalNitroglycerinMicrograms, 'dose')}` : '';
@@ -571,9 +589,15 @@ function complicationLines(findings: ReportStudy['findings']): string[] {
   const kinds = (findings as { complicationKinds?: readonly string[] }).complicationKinds;
   const details = paragraphs(findings.complications);
   if (Array.isArray(kinds) && kinds.length > 0) {
-    const labels = kinds.map((k) => labelOf(vocab.complicationLabel, k) ?? k).map((l) => l.replace(/\s*\(describe below\)$/i, ''));
-    const head = kinds.includes('none') ? 'None.' : sentence(joinAnd(labels.map((l, i) => (i === 0 ? l : lowerFirst(l)))));
-    return [head, ...details];
+    // "Other" is told by its description, not by the word.
+    const named = kinds.filter((k) => k !== 'other' || details.length === 0);
+    const labels = named.map((k) => labelOf(vocab.complicationLabel, k) ?? k).map((l) => l.replace(/\s*\(describe below\)$/i, ''));
+    if (kinds.includes('none')) {
+      // Details that only repeat "none" are not printed twice.
+      return ['None.', ...details.filter((d) => !/^none\.?$/i.test(d))];
+    }
+    const listed = labels.length ? [sentence(joinAnd(labels.map((l, i) => (i === 0 ? l : lowerFirst(l)))))] : [];
+    return [...listed, ...details];
   }
   return details.length ? details : ['Not recorded.'];
 }
@@ -630,6 +654,7 @@ export function buildReportView(input: ReportInput): ReportView {
   const { study, analysis, thresholds: t } = input;
   const tz = input.timeZone ?? 'UTC';
   const kind = reportKindOf(study);
+  const afterPci = study.details.clinicalQuestion === 'post-pci';
   const used = usedThresholds();
   const p = study.patient;
   const d = study.details;
@@ -654,7 +679,7 @@ export function buildReportView(input: ReportInput): ReportView {
   const rows = new Map(study.vessels.map((v) => [v.id, v]));
   for (const r of analysis.vessels) {
     const row = rows.get(r.id);
-    const sentences = vesselSentences(r, row, kind, t, used);
+    const sentences = vesselSentences(r, row, kind, afterPci, t, used);
     if (sentences.length) interpretation.push({ vessel: vesselTitle(r.vessel, row?.segment), sentences });
   }
 
@@ -691,7 +716,7 @@ export function buildReportView(input: ReportInput): ReportView {
     measurements: measurementTable(study, analysis),
     indices: indexTable(analysis),
     interpretation,
-    lesionSummary: kind === 'lesion' ? lesionSummary(study, analysis) : [],
+    lesionSummary: kind === 'lesion' ? lesionSummary(study, analysis, afterPci) : [],
     acetylcholine,
     endotype:
       kind === 'coronary-function'

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { checkCompleteness, missingSummary } from '../../../shared/report/completeness';
 import { emptyDose, emptyVessel } from '../../../shared/study/schema';
-import { demoReportStudies } from './fixtures';
+import { demoReportStudies as demoStudies } from './fixtures';
 
 /**
  * What must be recorded before signing. The items follow the minimum content of a catheterization
@@ -10,6 +10,20 @@ import { demoReportStudies } from './fixtures';
  * calculations, interpretation, complications, recommendations) and the quality steps of a pressure
  * wire study (drift check: Cook et al., Circ Cardiovasc Interv 2016).
  */
+
+/**
+ * The demo studies with their complications recorded as the form records them: where the record has
+ * the list of kinds and it is still empty, a free text of "None…" becomes the explicit "none" and any
+ * other text becomes "other" with that text as its description.
+ */
+const demoReportStudies = () =>
+  demoStudies().map((s) => {
+    const f = s.findings as typeof s.findings & { complicationKinds?: string[] };
+    if (Array.isArray(f.complicationKinds) && f.complicationKinds.length === 0 && f.complications) {
+      f.complicationKinds = /^none\b/i.test(f.complications) ? ['none'] : ['other'];
+    }
+    return s;
+  });
 
 const paths = (s: Parameters<typeof checkCompleteness>[0]) => checkCompleteness(s).missing.map((m) => m.path);
 

@@ -7,6 +7,8 @@ import { buildReportView, type ReportInput, type ReportStudy } from '../../../se
 /** Stable invented row ids, so views built from the same study are identical. */
 const uuid = (n: number) => `00000000-0000-4000-8000-${String(n).padStart(12, '0')}`;
 
+/** Vasoreactivity fields that not every version of the record has; empty unless the scenario sets them. */
+
 /** A demo scenario study as the report builder receives it (ids and times fixed for tests). */
 export function reportStudyFromDemo(demo: DemoStudy, index = 0): ReportStudy {
   const patient = demoPatients.find((p) => p.mrn === demo.mrn)!;

@@ -77,13 +77,14 @@ describe('template sections', () => {
     const t = section(render(lad).text, 'PROCEDURE AND TECHNIQUE')!;
     expect(t).toContain('Right radial access; 6 Fr guide catheter.');
     expect(t).toContain('Heparin 5000 U.');
-    expect(t).toContain('Nitroglycerin 200 µg given.');
+    expect(t).toContain('Nitroglycerin 200 µg given before the measurements.');
+    expect(t).toContain('Baseline: heart rate 68 bpm, blood pressure 132/74 mmHg, sinus rhythm, LVEDP 14 mmHg.');
     expect(t).toContain('Hyperaemia with intravenous adenosine 140 µg/kg/min.');
     expect(t).toContain('Pressure wire sensor: distal third of the vessel.');
     expect(t).toContain('Transducer zeroed at heart level; pressures equalized with the sensor in the aorta, introducer removed.');
     // Drift window 0.98–1.02 [memory]; drift > 2 mmHg means repeat (Cook et al., Circ Cardiovasc Interv 2016).
     expect(t).toContain('Drift check, Pd/Pa with the sensor back at the guide tip: LAD 0.99 (within 0.98–1.02).');
-    expect(t).toContain('Totals: contrast 145 mL, fluoroscopy 14.5 min.');
+    expect(t).toContain('Totals: contrast 145 mL, fluoroscopy 14.5 min, air kerma 420 mGy, dose-area product 38.5 Gy·cm².');
   });
 
   it('technique: a drift check out of the window and one not done with its reason', () => {
@@ -154,19 +155,19 @@ describe('template sections', () => {
     const a = section(render(spasm).text, 'ACETYLCHOLINE TESTING')!;
     // Doses 2, 20, 100 µg into the left coronary (ESC 2024 protocol); spasm ≥ 90% with symptoms and ECG (COVADIS).
     expect(a).toContain('Intracoronary acetylcholine into the LAD, 3 doses of 2, 20 and 100 µg, each followed by angiography.');
-    expect(a).toMatch(/^Dose\s+Into\s+Diameter reduction\s+Usual symptoms\s+Ischaemic ECG\s+Response$/m);
-    expect(a).toMatch(/^2 µg\s+LAD\s+0 %\s+No\s+No\s+Negative$/m);
-    expect(a).toMatch(/^100 µg\s+LAD\s+95 %\s+Yes\s+Yes\s+Epicardial spasm$/m);
-    expect(a).toContain('Result: epicardial spasm (spasm: constriction of 90% or more with the usual symptoms and ischaemic ECG changes, COVADIS; ESC 2024).');
-    expect(a).toContain('Spasm reversed with intracoronary nitroglycerin.');
+    expect(a).toMatch(/^Dose\s+Into\s+Diameter reduction\s+Usual symptoms\s+Ischaemic ECG\s+Response\s+Notes$/m);
+    expect(a).toMatch(/^2 µg\s+LAD\s+0 %\s+No\s+No\s+Negative\s+HR 58 bpm, BP 124\/72 mmHg, sinus rhythm$/m);
+    expect(a).toMatch(/^100 µg\s+LAD\s+95 %\s+Yes\s+Yes\s+Epicardial spasm\s+constriction in LAD, Mid LAD, diffuse/m);
+    expect(a).toContain('Result: epicardial spasm. Spasm is judged as constriction of 90% or more with the usual symptoms and ischaemic ECG changes (COVADIS; ESC 2024).');
+    expect(a).toContain('Spasm reversed with intracoronary nitroglycerin 200 µg.');
   });
 
   it('acetylcholine: a dose still missing observations keeps its row, with no response', () => {
     const s = demoReportStudies()[3];
     s.vasoreactivity.doses[2].symptoms = null;
     const a = section(render(s).text, 'ACETYLCHOLINE TESTING')!;
-    expect(a).toMatch(/^100 µg\s+LAD\s+95 %\s+—\s+Yes\s+—$/m);
-    expect(a).toMatch(/^20 µg\s+LAD\s+15 %\s+No\s+No\s+Negative$/m);
+    expect(a).toMatch(/^100 µg\s+LAD\s+95 %\s+—\s+Yes\s+—\s+constriction in LAD/m);
+    expect(a).toMatch(/^20 µg\s+LAD\s+15 %\s+No\s+No\s+Negative\s+HR 57 bpm/m);
   });
 
   it('endotype with its reasons (coronary function studies)', () => {
@@ -186,18 +187,27 @@ describe('template sections', () => {
   });
 
   it('complications: free text, the list of kinds, "none" and "not recorded"', () => {
-    expect(section(render(spasm).text, 'COMPLICATIONS')).toContain('Chest pain and anterior ST elevation during acetylcholine testing');
+    expect(section(render(spasm).text, 'COMPLICATIONS')).toContain('provoked chest pain and anterior ST elevation were relieved by intracoronary nitroglycerin');
     const s = demoReportStudies()[0];
     const f = s.findings as typeof s.findings & { complicationKinds?: string[] };
     f.complicationKinds = ['none'];
     f.complications = null;
     expect(section(render(s).text, 'COMPLICATIONS')!.trim()).toBe('None.');
+    f.complications = 'None.';
+    expect(section(render(s).text, 'COMPLICATIONS')!.trim()).toBe('None.');
+    f.complications = 'Radial artery spasm at the end, settled with verapamil.';
+    expect(section(render(s).text, 'COMPLICATIONS')!.trim()).toBe('None.\nRadial artery spasm at the end, settled with verapamil.');
     f.complicationKinds = ['dissection', 'arrhythmia'];
     f.complications = 'Type A dissection of the mid LAD, no flow limitation.';
     const c = section(render(s).text, 'COMPLICATIONS')!;
     // Labels from the shared complication table once it exists; the codes in words before that.
     expect(c).toMatch(/^(Coronary dissection and arrhythmia needing treatment|Dissection and arrhythmia)\.$/m);
     expect(c).toContain('Type A dissection of the mid LAD, no flow limitation.');
+    f.complicationKinds = ['dissection', 'other'];
+    f.complications = 'Vasovagal reaction.';
+    expect(section(render(s).text, 'COMPLICATIONS')!.trim()).toMatch(/^(Coronary dissection|Dissection)\.\nVasovagal reaction\.$/);
+    f.complicationKinds = ['other'];
+    expect(section(render(s).text, 'COMPLICATIONS')!.trim()).toBe('Vasovagal reaction.');
     f.complicationKinds = [];
     f.complications = null;
     expect(section(render(s).text, 'COMPLICATIONS')!.trim()).toBe('Not recorded.');
@@ -251,12 +261,23 @@ describe('a plain pressure-wire study of an intermediate lesion', () => {
     expect(c).toContain('Right coronary (Mid RCA): not haemodynamically significant (FFR 0.86); defer.');
   });
 
+  it('after intervention it speaks of the residual gradient, not of a lesion to judge', () => {
+    const s = demoReportStudies()[0];
+    s.details.clinicalQuestion = 'post-pci';
+    s.vessels[0] = { ...s.vessels[0], hyperemiaPa: 90, hyperemiaPd: 83, consoleFfr: null, nhprKind: null, nhprValue: null, decision: null };
+    const { text } = render(s);
+    // FFR 83/90 = 0.92 > 0.80 (ESC 2024): no significant residual gradient.
+    expect(section(text, 'INTERPRETATION BY VESSEL')).toContain('No haemodynamically significant gradient remains after intervention (judged by FFR).');
+    expect(section(text, 'CONCLUSION')!.trim()).toBe('Left anterior descending (Proximal LAD): no significant gradient remains after intervention (FFR 0.92).');
+    expect(text).not.toContain('The lesion is');
+  });
+
   it('a minimal record leaves no empty sentence, row or column', () => {
     const s = demoReportStudies()[0];
     s.setup = emptySetup();
     s.details = { ...s.details, accessSite: null, guideFrench: null, encounter: null, referringName: null, procedureStartedAt: null, procedureEndedAt: null };
     s.vessels = [{ ...emptyVessel(s.vessels[0].id, 'LAD'), consoleFfr: 0.83, driftPdPa: 1 }];
-    s.findings = { ...s.findings, contrastMl: null, fluoroscopyMinutes: null };
+    s.findings = { ...s.findings, contrastMl: null, fluoroscopyMinutes: null, airKermaMGy: null, doseAreaProductGyCm2: null };
     const { text, html } = render(s);
     expect(section(text, 'PROCEDURE AND TECHNIQUE')!.trim()).toBe('Drift check, Pd/Pa with the sensor back at the guide tip: LAD 1.00 (within 0.98–1.02).');
     expect(section(text, 'MEASUREMENTS')).toBeNull();

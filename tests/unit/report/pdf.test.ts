@@ -2,7 +2,7 @@ import { readFileSync } from 'node:fs';
 import { createHash } from 'node:crypto';
 import { describe, expect, it } from 'vitest';
 import { defaultThresholds } from '../../../shared/physiology';
-import { canonicalContent, fingerprint, PAGE, prepareSignedReport, previewReport, renderReportPdf, sha256Hex, type SignedContent } from '../../../server/report';
+import { canonicalContent, fingerprint, fingerprintInPdf, PAGE, prepareSignedReport, previewReport, renderReportPdf, sha256Hex, type SignedContent } from '../../../server/report';
 import { pdfInfo, pdfPages, pdfToPng, pngSize } from '../../support/pdf-to-png';
 import { analysisOf, demoReportStudies, viewOf } from './fixtures';
 
@@ -121,6 +121,10 @@ describe('preparing a signed version', () => {
     expect(prepared.fingerprint).toBe(createHash('sha256').update(canonicalContent(content)).digest('hex'));
     expect(prepared.narrative.text).toContain(`Content fingerprint ${prepared.fingerprint.slice(0, 4)}-${prepared.fingerprint.slice(4, 8)}-`);
     expect(prepared.pdfSha256).toBe(sha256Hex(prepared.pdf));
+    // "Verify" can read the full fingerprint back from the file; a preview carries none.
+    expect(fingerprintInPdf(prepared.pdf)).toBe(prepared.fingerprint);
+    expect(pdfInfo(prepared.pdf).Subject).toBe(`Report version 1, fingerprint ${prepared.fingerprint}`);
+    expect(fingerprintInPdf(await renderReportPdf(preview.view))).toBeNull();
     expect(prepared.htmlDocument.startsWith('<!doctype html>')).toBe(true);
   });
 
