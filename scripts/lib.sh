@@ -46,6 +46,11 @@ ensure_chromium() {
   command -v chromium >/dev/null 2>&1 || apt_install chromium
 }
 
+# pdftoppm / pdftotext read the signed PDFs back in the tests (Debian's poppler-utils).
+ensure_poppler() {
+  command -v pdftoppm >/dev/null 2>&1 || apt_install poppler-utils
+}
+
 # PostgreSQL refuses to run as root: run its programs as the `postgres` user when we are root.
 as_pg() {
   if [[ $(id -u) -eq 0 ]]; then runuser -u postgres -- "$@"; else "$@"; fi

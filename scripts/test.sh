@@ -20,6 +20,7 @@ began=$(date +%s)
 ensure_node_modules
 ensure_postgres_installed
 ensure_chromium
+ensure_poppler
 PG_FSYNC=off start_cluster postgres-test "$PG_PORT"
 ensure_database "$PG_PORT" isobar_test fresh
 ensure_web_build

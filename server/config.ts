@@ -72,6 +72,11 @@ const configSchema = z
     HOSPITAL_NAME: z.string().trim().min(1).max(200).default('Saltmarsh Bay Regional Hospital'),
     HOSPITAL_LAB: z.string().trim().max(200).default('Cardiac Catheterization Laboratory'),
     SIGN_REAUTH_MINUTES: z.coerce.number().int().min(1).max(720).default(10),
+    SMTP_HOST: z.string().trim().min(1).default('127.0.0.1'),
+    SMTP_PORT: port.default(8425),
+    MAIL_FROM: z.string().trim().min(3).default('Isobar reports <isobar@localhost>'),
+    FAKE_SMTP_HTTP_PORT: port.default(8426),
+    JOB_WORKER: z.enum(['on', 'off']).default('on'),
   })
   .superRefine((value, ctx) => {
     if (value.NODE_ENV === 'production' && value.SESSION_SECRET.startsWith('local-development-secret')) {
@@ -103,6 +108,10 @@ export interface Config {
   hospital: { name: string; lab: string };
   /** A signature needs a sign-in at most this many minutes old. */
   signReauthMinutes: number;
+  /** The mail relay for notices; locally the stand-in started by `server/fakes/main.ts`. */
+  mail: { host: string; port: number; from: string; fakeHttpPort: number };
+  /** Whether this server process runs the background job worker. */
+  jobWorker: boolean;
 }
 
 export class ConfigError extends Error {
@@ -153,5 +162,7 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
     fakeEhrPort: v.FAKE_EHR_PORT,
     hospital: { name: v.HOSPITAL_NAME, lab: v.HOSPITAL_LAB },
     signReauthMinutes: v.SIGN_REAUTH_MINUTES,
+    mail: { host: v.SMTP_HOST, port: v.SMTP_PORT, from: v.MAIL_FROM, fakeHttpPort: v.FAKE_SMTP_HTTP_PORT },
+    jobWorker: v.JOB_WORKER === 'on',
   };
 }

@@ -2,6 +2,8 @@ import { createServer } from 'node:http';
 import { loadConfig, ConfigError } from './config';
 import { createDataSource } from './db/data-source';
 import { createApp } from './app';
+import { startWorker } from './jobs/worker';
+import { taskList } from './jobs/tasks';
 
 /** Starts the server: connects to the database, serves `/api` and the web build, stops cleanly. */
 async function main(): Promise<void> {
@@ -20,6 +22,8 @@ async function main(): Promise<void> {
     server.listen(config.port, config.host, resolve);
   });
   console.log(`Isobar server listening on ${config.publicUrl}`);
+  // Background work (notices, code suggestions, EHR delivery) runs beside the server, from the queue in PostgreSQL.
+  const worker = config.jobWorker ? await startWorker({ connectionString: config.databaseUrl, tasks: taskList(dataSource, config) }) : null;
 
   let stopping = false;
   const stop = async (signal: string) => {
@@ -28,6 +32,7 @@ async function main(): Promise<void> {
     console.log(`${signal}: stopping the server`);
     server.close();
     server.closeAllConnections();
+    await worker?.stop().catch(() => undefined);
     await dataSource.destroy().catch(() => undefined);
     process.exit(0);
   };

@@ -26,6 +26,8 @@ export class HttpError extends Error {
     public readonly title: string,
     detail?: string,
     public readonly errors?: FieldProblem[],
+    /** Extra members of the problem document (RFC 9457 extensions), e.g. the current record on a conflict. */
+    public readonly extensions?: Record<string, unknown>,
   ) {
     super(detail ?? title);
     this.name = 'HttpError';
@@ -56,6 +58,7 @@ export function toProblem(error: HttpError, instance?: string): Problem {
     detail: error.message,
     ...(instance ? { instance } : {}),
     ...(error.errors?.length ? { errors: error.errors } : {}),
+    ...(error.extensions ?? {}),
   };
 }
 

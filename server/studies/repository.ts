@@ -23,7 +23,10 @@ import {
 /** A write based on an older version than the stored one. Carries the current record for a merge. */
 export class StaleVersionError extends HttpError {
   constructor(public readonly current: StudyRecord) {
-    super(409, 'stale-version', 'The study has changed since you opened it', `Someone saved version ${current.version} while you were editing. Reload it, or merge your changes into it.`);
+    super(409, 'stale-version', 'The study has changed since you opened it', `Someone saved version ${current.version} while you were editing. Reload it, or merge your changes into it.`, undefined, {
+      currentVersion: current.version,
+      current,
+    });
   }
 }
 

@@ -66,11 +66,19 @@ export function analyzeVessel(v: VesselInput, t: Thresholds, label: string, proc
   if (hypPa !== undefined && hypPd !== undefined) {
     ffr = hypPd / hypPa;
     out.ffrSource = 'pressures';
-    if (v.ffr !== undefined && Math.abs(v.ffr - ffr) > FFR_MISMATCH_TOLERANCE + 1e-9) {
-      warnings.push({
-        code: 'ffr-mismatch',
-        message: `${label}: the entered FFR ${ratio(v.ffr)} differs from hyperaemic Pd/Pa ${ratio(ffr)} by more than ${FFR_MISMATCH_TOLERANCE.toFixed(2)}; the value from the pressures is used.`,
-      });
+    // Typed whole-mmHg means are coarser than the console's tracing: a difference beyond the tolerance,
+    // or one that puts the two values on opposite sides of the cut-off, is said and qualifies the verdict.
+    if (v.ffr !== undefined) {
+      const apart = Math.abs(v.ffr - ffr) > FFR_MISMATCH_TOLERANCE + 1e-9;
+      const acrossCut = lowIsAbnormal(v.ffr, t.ffr) !== lowIsAbnormal(ffr, t.ffr);
+      if (apart || acrossCut) {
+        warnings.push({
+          code: 'ffr-mismatch',
+          message: acrossCut
+            ? `${label}: the console FFR ${ratio(v.ffr)} and hyperaemic Pd/Pa ${ratio(ffr)} from the typed pressures fall on opposite sides of the ${ratio(t.ffr)} cut-off; the value from the pressures is shown — check the tracing before deciding.`
+            : `${label}: the entered FFR ${ratio(v.ffr)} differs from hyperaemic Pd/Pa ${ratio(ffr)} by more than ${FFR_MISMATCH_TOLERANCE.toFixed(2)}; the value from the pressures is used.`,
+        });
+      }
     }
   } else if (v.ffr !== undefined) {
     ffr = v.ffr;

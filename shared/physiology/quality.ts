@@ -58,9 +58,12 @@ export function checkMissingSide(
 }
 
 /** The drift Pd/Pa is judged at its displayed precision, like every ratio. */
-/** The one drift rule: Pd/Pa at the guide tip outside the window, judged at its displayed precision. */
+/**
+ * The one drift rule: Pd/Pa at the guide tip outside the window. Drift is a quality check, not a
+ * reported index, so it is judged on the value as entered: 0.975 is 2.5 mmHg of drift at Pa 100.
+ */
 export function driftOutOfRange(drift: number, t: Pick<Thresholds, 'driftLow' | 'driftHigh'>): boolean {
-  return below(drift, t.driftLow, 'ratio') || above(drift, t.driftHigh, 'ratio');
+  return below(drift, t.driftLow, 'raw') || above(drift, t.driftHigh, 'raw');
 }
 
 export function checkDrift(drift: number, t: Thresholds, label: string, warnings: PhysiologyWarning[]): void {

@@ -238,9 +238,9 @@ describe('findings rules', () => {
     expect(r.reasons).toEqual([
       'LAD: IMR 36 U (Pd × Tmn) is at or above the 25 cut-off (ESC 2024; EAPCI 2020) — raised microvascular resistance with impaired CFR (structural microvascular dysfunction).',
       'LAD: CFR 1.50 is below the 2.00 cut-off (EAPCI 2020) — impaired coronary flow reserve.',
-      'LAD: RRR 1.62 is below the 2.00 cut-off (lab setting) — reduced resistive reserve.',
+      'LAD: RRR 1.62 is below the 2.00 cut-off (common practice) — reduced resistive reserve.',
       'LAD: MRR 1.67 is below the 2.10 cut-off — reduced microvascular resistance reserve; MRR here comes from bolus thermodilution, while its cut-offs were set with continuous thermodilution (de Vos 2023); the bolus cut-off is not settled.',
-      'Acetylcholine testing was negative: maximum constriction 10% (below 20%, lab setting) and no dose reproduced symptoms or ischaemic ECG changes (COVADIS; ESC 2024).',
+      'Acetylcholine testing was negative: maximum constriction 10% (below 20%, common practice) and no dose reproduced symptoms or ischaemic ECG changes (COVADIS; ESC 2024).',
       'Endotype: microvascular angina (structural microvascular dysfunction: CFR below 2.00 with IMR at or above 25) with no obstructive stenosis (COVADIS; EAPCI 2020).',
     ]);
     expect(r.vessels[0].imr).toBeCloseTo(36, 10);

@@ -13,7 +13,7 @@ const SRC = {
   precision: 'common practice: an index is judged at the precision it is displayed and reported (ratios 2 decimals, IMR whole number)',
   caseA: 'hand-computed from the published formulas (FFR = Pd/Pa, Pijls et al., NEJM 1996; CFR = Tmn rest / Tmn hyp, EAPCI 2020; IMR with the Yong correction, Yong et al.; RRR, Lee et al., JAHA 2020; MRR, De Bruyne et al. 2021) — not a worked example from a paper',
   ffr: 'ESC 2024 chronic coronary syndromes guideline; EAPCI 2020; FAME (FFR ≤ 0.80)',
-  grey: 'DEFER/FAME history, Interv Cardiol Rev 2016 (grey zone 0.76–0.80)',
+  grey: 'DEFER/FAME history, Interv Cardiol Rev 2016 (grey zone 0.75–0.80)',
   restPdPa: 'CONTRAST (whole-cycle resting Pd/Pa ≤ 0.91)',
   diastolic: 'DEFINE-FLAIR and the SWEDEHEART-based trial, 2017; EAPCI 2020 (≤ 0.89)',
   fullCycle: 'validation studies summarised in an Open Heart review; EAPCI 2020 (≤ 0.89)',
@@ -91,7 +91,8 @@ describe('FFR boundaries', () => {
     { pd: 79, ffr: 0.79, flag: 'abnormal', grey: true, source: SRC.ffr },
     { pd: 81, ffr: 0.81, flag: 'normal', grey: undefined, source: SRC.ffr },
     { pd: 76, ffr: 0.76, flag: 'abnormal', grey: true, source: SRC.grey },
-    { pd: 75, ffr: 0.75, flag: 'abnormal', grey: undefined, source: SRC.grey },
+    { pd: 75, ffr: 0.75, flag: 'abnormal', grey: true, source: SRC.grey },
+    { pd: 74, ffr: 0.74, flag: 'abnormal', grey: undefined, source: SRC.grey },
   ])('hyperaemic Pd $pd / Pa 100 → FFR $ffr $flag — $source', ({ pd, ffr, flag, grey }) => {
     const v = one({ hyperemia: { pa: 100, pd } });
     expect(v.ffr).toBeCloseTo(ffr, 12);
@@ -113,14 +114,21 @@ describe('FFR boundaries', () => {
   it(`grey zone adds a reason but keeps the flag abnormal — ${SRC.grey}`, () => {
     const r = analyzeStudy({ vessels: [{ id: 'v', vessel: 'LAD', hyperemia: { pa: 100, pd: 78 } }] });
     expect(r.vessels[0].ffrFlag).toBe('abnormal');
-    expect(r.reasons.some((s) => s.includes('0.76–0.80 grey zone'))).toBe(true);
+    expect(r.reasons.some((s) => s.includes('0.75–0.80 grey zone'))).toBe(true);
   });
 
-  it(`pressures win over an entered FFR within 0.02 — ${SRC.practice}`, () => {
-    const v = one({ ffr: 0.81, hyperemia: { pa: 100, pd: 80 } });
+  it(`pressures win over an entered FFR within 0.02 on the same side of the cut-off — ${SRC.practice}`, () => {
+    const v = one({ ffr: 0.79, hyperemia: { pa: 100, pd: 80 } });
     expect(v.ffr).toBeCloseTo(0.8, 12);
     expect(v.ffrSource).toBe('pressures');
     expect(v.warnings).toEqual([]);
+  });
+
+  it(`an entered FFR on the other side of the cut-off is always said, and qualifies the headline — ${SRC.practice}`, () => {
+    // Console 0.80 (abnormal) against typed means 65/80 = 0.8125 → 0.81 (normal): only 0.0125 apart.
+    const r = analyzeStudy({ vessels: [{ id: 'v', vessel: 'LAD', ffr: 0.8, hyperemia: { pa: 80, pd: 65 } }] });
+    expect(r.vessels[0].warnings.map((w) => w.code)).toContain('ffr-mismatch');
+    expect(r.headline).toMatch(/caution: quality check failed in LAD/);
   });
 });
 

@@ -1,0 +1,19 @@
+import type { TaskList } from 'graphile-worker';
+import type { DataSource } from 'typeorm';
+import type { Config } from '../config';
+import { sendReportNoticeTask } from '../mail/send-report-notice';
+
+/**
+ * Every background task the worker runs, by the name it is queued under (see `jobNames`). A task
+ * without a handler yet stays queued until a release that has one.
+ */
+export function taskList(dataSource: DataSource, config: Config): TaskList {
+  return {
+    'send-report-notice': sendReportNoticeTask(dataSource, {
+      host: config.mail.host,
+      port: config.mail.port,
+      from: config.mail.from,
+      hospitalName: config.hospital.name,
+    }),
+  };
+}

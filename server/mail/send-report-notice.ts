@@ -1,0 +1,44 @@
+import nodemailer from 'nodemailer';
+import type { DataSource } from 'typeorm';
+import type { Task } from 'graphile-worker';
+import { z } from 'zod';
+
+export interface MailSettings {
+  host: string;
+  port: number;
+  from: string;
+  hospitalName: string;
+}
+
+const payloadSchema = z.object({ reportVersionId: z.uuid() });
+
+/**
+ * The referring clinician's notice that a report is signed and in the hospital record. It names the
+ * accession number and the version, nothing else: no diagnosis, no measurements, no patient name, and
+ * no link that would need an Isobar account. A failure throws, so the queue retries with backoff.
+ */
+export function sendReportNoticeTask(dataSource: DataSource, mail: MailSettings): Task {
+  const transport = nodemailer.createTransport({ host: mail.host, port: mail.port, secure: false, ignoreTLS: true, connectionTimeout: 10_000 });
+  return async (payload) => {
+    const { reportVersionId } = payloadSchema.parse(payload);
+    const [row] = await dataSource.query(
+      `SELECT s.accession, s.referring_email, v.version_no, v.status
+       FROM report_version v JOIN study s ON s.id = v.study_id WHERE v.id = $1`,
+      [reportVersionId],
+    );
+    if (!row || !row.referring_email) return; // nobody to tell
+    const amended = row.status === 'amended';
+    await transport.sendMail({
+      from: mail.from,
+      to: row.referring_email,
+      subject: `${amended ? 'Amended report' : 'Report'} signed: accession ${row.accession}`,
+      text: [
+        `The ${amended ? `amended report (version ${row.version_no})` : 'report'} for accession number ${row.accession} has been signed.`,
+        `It is available in the ${mail.hospitalName} patient record.`,
+        '',
+        'This notice contains no clinical information. Please read the report in the patient record.',
+      ].join('\n'),
+      headers: { 'X-Isobar-Report-Version': String(row.version_no) },
+    });
+  };
+}

@@ -1,0 +1,161 @@
+import { randomUUID } from 'node:crypto';
+import request from 'supertest';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { DataSource } from 'typeorm';
+import { emptyFindings, emptyVessel, type StudyRecord } from '../../shared/study/schema';
+import { openTestDatabase } from '../support/app';
+import { signIn, startStack, usernameOf, type TestStack } from '../support/stack';
+
+// The sign-and-amend workflow is the product's design (common practice: a signed report changes only by addendum).
+let db: DataSource;
+let stack: TestStack;
+let staff: string;
+let physician: string;
+let coder: string;
+
+beforeAll(async () => {
+  db = await openTestDatabase();
+  stack = await startStack(db);
+  staff = (await signIn(stack, usernameOf('staff'))).cookie;
+  physician = (await signIn(stack, usernameOf('physician'))).cookie;
+  coder = (await signIn(stack, usernameOf('coder'))).cookie;
+});
+afterAll(async () => {
+  await stack.close();
+  await db.destroy();
+});
+
+const api = () => request(stack.url);
+const send = (method: 'post' | 'patch', path: string, cookie: string) => api()[method](path).set('Cookie', cookie).set('Origin', stack.url);
+
+/** A complete lesion study: FFR 72/90 = 0.80 (abnormal, ≤ 0.80 — ESC 2024), drift 1.00, complications "none". */
+async function completeStudy(): Promise<StudyRecord> {
+  const created = await send('post', '/api/studies', staff)
+    .send({ patient: { mrn: `S-${randomUUID().slice(0, 8)}`, familyName: 'Varnhagen', givenName: 'Tove', birthDate: '1959-02-11', sex: 'female' } })
+    .expect(201);
+  const operators = await api().get('/api/operators').set('Cookie', staff).expect(200);
+  const study: StudyRecord = created.body;
+  const res = await send('patch', `/api/studies/${study.id}`, staff)
+    .send({
+      version: study.version,
+      details: { ...study.details, indication: 'Intermediate LAD lesion <b>on CT</b>', clinicalQuestion: 'intermediate-lesion', operatorId: operators.body.items[0].id },
+      vessels: [{ ...emptyVessel(randomUUID(), 'LAD'), restPa: 100, restPd: 95, hyperemiaPa: 90, hyperemiaPd: 72, driftPdPa: 1.0, decision: 'pci' }],
+      findings: { ...emptyFindings(), complicationKinds: ['none'], impression: 'Significant LAD lesion.', plan: 'Stent.' },
+    })
+    .expect(200);
+  return res.body;
+}
+
+describe('report preview and signing', () => {
+  it('previews with every missing item at once, each pointing at its field, and refuses to sign an incomplete study', async () => {
+    const created = await send('post', '/api/studies', staff)
+      .send({ patient: { mrn: `S-${randomUUID().slice(0, 8)}`, familyName: 'Okafor', givenName: 'Lumi', birthDate: '1970-05-05', sex: 'male' } })
+      .expect(201);
+    const preview = await api().get(`/api/studies/${created.body.id}/report`).set('Cookie', physician).expect(200);
+    expect(preview.body.completeness.complete).toBe(false);
+    expect(preview.body.completeness.missing.map((m: { code: string }) => m.code)).toEqual(expect.arrayContaining(['indication', 'no-vessel', 'complications']));
+    const res = await send('post', `/api/studies/${created.body.id}/sign`, physician).send({ version: preview.body.studyVersion }).expect(422);
+    expect(res.body.errors.map((e: { pointer: string }) => e.pointer)).toEqual(expect.arrayContaining(['/details/indication']));
+    const [{ n }] = await db.query(`SELECT count(*)::int AS n FROM report_version WHERE study_id = $1`, [created.body.id]);
+    expect(n).toBe(0);
+  });
+
+  it('signs exactly the previewed version: one immutable version, PDF and fingerprint, audit row and follow-up jobs', async () => {
+    const study = await completeStudy();
+    await send('post', `/api/studies/${study.id}/transitions`, staff).send({ action: 'mark-ready', version: study.version }).expect(200);
+    const preview = await api().get(`/api/studies/${study.id}/report`).set('Cookie', physician).expect(200);
+    expect(preview.body.completeness).toEqual({ complete: true, missing: [] });
+    expect(preview.body.actions).toContain('sign');
+    // Free text is escaped, never rendered as markup.
+    expect(preview.body.html).toContain('&lt;b&gt;on CT&lt;/b&gt;');
+    const signed = await send('post', `/api/studies/${study.id}/sign`, physician).send({ version: preview.body.studyVersion }).expect(201);
+    expect(signed.body).toMatchObject({ versionNo: 1, status: 'final' });
+    expect(signed.body.contentSha256).toMatch(/^[0-9a-f]{64}$/);
+    const pdf = await api().get(`/api/reports/${signed.body.id}/pdf`).set('Cookie', coder).buffer(true).parse((res, cb) => {
+      const chunks: Buffer[] = [];
+      res.on('data', (c: Buffer) => chunks.push(c));
+      res.on('end', () => cb(null, Buffer.concat(chunks)));
+    }).expect(200);
+    expect(pdf.headers['content-type']).toBe('application/pdf');
+    expect((pdf.body as Buffer).subarray(0, 5).toString()).toBe('%PDF-');
+    expect(pdf.headers['x-content-sha256']).toBe(signed.body.pdfSha256);
+    const [row] = await db.query(`SELECT state FROM study WHERE id = $1`, [study.id]);
+    expect(row.state).toBe('signed');
+    const audit = await db.query(`SELECT action FROM audit_event WHERE entity_id = $1 AND action IN ('mark-ready', 'sign') ORDER BY id`, [study.id]);
+    expect(audit.map((a: { action: string }) => a.action)).toEqual(['mark-ready', 'sign']);
+    const jobs = await db.query(
+      `SELECT t.identifier FROM graphile_worker._private_jobs j JOIN graphile_worker._private_tasks t ON t.id = j.task_id
+       WHERE j.payload->>'reportVersionId' = $1 ORDER BY t.identifier`,
+      [signed.body.id],
+    );
+    expect(jobs.map((j: { identifier: string }) => j.identifier)).toEqual(['deliver-report', 'send-report-notice', 'suggest-codes']);
+    // Verify: by the PDF's bytes and by the printed fingerprint.
+    const byPdf = await send('post', '/api/reports/verify', coder).set('Content-Type', 'application/pdf').send(pdf.body).expect(200);
+    expect(byPdf.body).toMatchObject({ found: true, studyId: study.id, versionNo: 1, supersededBy: null });
+    const byPrint = await send('post', '/api/reports/verify', coder).send({ fingerprint: signed.body.contentSha256.slice(0, 16) }).expect(200);
+    expect(byPrint.body).toMatchObject({ found: true, versionNo: 1 });
+    expect((await send('post', '/api/reports/verify', coder).send({ fingerprint: 'ffffffffffffffff' }).expect(200)).body).toEqual({ found: false });
+  });
+
+  it('refuses a signature for a study changed since the preview (409 with the current record), and a non-physician', async () => {
+    const study = await completeStudy();
+    await send('post', `/api/studies/${study.id}/sign`, staff).send({ version: study.version }).expect(403);
+    await send('patch', `/api/studies/${study.id}`, staff).send({ version: study.version, findings: { ...study.findings, plan: 'Changed plan.' } }).expect(200);
+    const res = await send('post', `/api/studies/${study.id}/sign`, physician).send({ version: study.version }).expect(409);
+    expect(res.body.current.findings.plan).toBe('Changed plan.');
+  });
+
+  it('two physicians signing at once make exactly one version; the other gets 409', async () => {
+    const study = await completeStudy();
+    const second = (await signIn(stack, usernameOf('physician'))).cookie;
+    const results = await Promise.all([physician, second].map((c) => send('post', `/api/studies/${study.id}/sign`, c).send({ version: study.version })));
+    expect(results.map((r) => r.status).sort()).toEqual([201, 409]);
+    const [{ n }] = await db.query(`SELECT count(*)::int AS n FROM report_version WHERE study_id = $1`, [study.id]);
+    expect(n).toBe(1);
+  });
+
+  it('changes after signing go through an addendum with a reason, making version 2 that supersedes version 1; edits are refused while signed', async () => {
+    const study = await completeStudy();
+    const v1 = await send('post', `/api/studies/${study.id}/sign`, physician).send({ version: study.version }).expect(201);
+    const signedNow = (await api().get(`/api/studies/${study.id}`).set('Cookie', physician).expect(200)).body as StudyRecord;
+    await send('patch', `/api/studies/${study.id}`, physician).send({ version: signedNow.version, findings: { ...signedNow.findings, plan: 'x' } }).expect(409);
+    const opened = await send('post', `/api/studies/${study.id}/transitions`, physician).send({ action: 'open-addendum', version: signedNow.version }).expect(200);
+    expect(opened.body.state).toBe('amending');
+    const edited = await send('patch', `/api/studies/${study.id}`, physician).send({ version: opened.body.version, findings: { ...opened.body.findings, plan: 'Stent, then cardiac rehabilitation.' } }).expect(200);
+    await send('post', `/api/studies/${study.id}/sign`, physician).send({ version: edited.body.version }).expect(422);
+    const v2 = await send('post', `/api/studies/${study.id}/sign`, physician).send({ version: edited.body.version, reason: 'Plan completed' }).expect(201);
+    expect(v2.body).toMatchObject({ versionNo: 2, status: 'amended' });
+    const [row] = await db.query(`SELECT supersedes_id, reason FROM report_version WHERE id = $1`, [v2.body.id]);
+    expect(row).toEqual({ supersedes_id: v1.body.id, reason: 'Plan completed' });
+    const verify = await send('post', '/api/reports/verify', coder).send({ fingerprint: v1.body.contentSha256 }).expect(200);
+    expect(verify.body.supersededBy).toMatchObject({ versionNo: 2 });
+  });
+
+  it('a discarded addendum puts the record back exactly as signed', async () => {
+    const study = await completeStudy();
+    await send('post', `/api/studies/${study.id}/sign`, physician).send({ version: study.version }).expect(201);
+    const signedNow = (await api().get(`/api/studies/${study.id}`).set('Cookie', physician).expect(200)).body as StudyRecord;
+    const opened = await send('post', `/api/studies/${study.id}/transitions`, physician).send({ action: 'open-addendum', version: signedNow.version }).expect(200);
+    const edited = await send('patch', `/api/studies/${study.id}`, physician).send({ version: opened.body.version, findings: { ...opened.body.findings, plan: 'Not meant' } }).expect(200);
+    const back = await send('post', `/api/studies/${study.id}/transitions`, physician).send({ action: 'discard-addendum', version: edited.body.version }).expect(200);
+    expect(back.body.state).toBe('signed');
+    expect(back.body.findings.plan).toBe('Stent.');
+  });
+
+  it('a signed version can be neither changed nor deleted, even with SQL', async () => {
+    const study = await completeStudy();
+    const v = await send('post', `/api/studies/${study.id}/sign`, physician).send({ version: study.version }).expect(201);
+    await expect(db.query(`UPDATE report_version SET signer_name = 'someone else' WHERE id = $1`, [v.body.id])).rejects.toThrow(/append-only/);
+    await expect(db.query(`DELETE FROM report_version WHERE id = $1`, [v.body.id])).rejects.toThrow(/append-only/);
+  });
+
+  it('send-back needs a reason; a coder cannot move a study', async () => {
+    const study = await completeStudy();
+    await send('post', `/api/studies/${study.id}/transitions`, coder).send({ action: 'mark-ready', version: study.version }).expect(403);
+    const ready = await send('post', `/api/studies/${study.id}/transitions`, staff).send({ action: 'mark-ready', version: study.version }).expect(200);
+    const res = await send('post', `/api/studies/${study.id}/transitions`, physician).send({ action: 'send-back', version: ready.body.version }).expect(422);
+    expect(res.body.errors[0].pointer).toBe('/reason');
+    const back = await send('post', `/api/studies/${study.id}/transitions`, physician).send({ action: 'send-back', version: ready.body.version, reason: 'The circumflex is missing' }).expect(200);
+    expect(back.body.state).toBe('draft');
+  });
+});
