@@ -19,6 +19,18 @@ import { BundleBuildError, buildReportBundle, bundleIdentifierOf, type StoredRep
 /** Rows of a query (pg's `rows`): the task runs on the job queue's connection, routes on TypeORM's. */
 export type Query = (sql: string, params?: unknown[]) => Promise<Record<string, unknown>[]>;
 
+/**
+ * A `Query` over TypeORM: its `query()` answers an UPDATE or DELETE with `[rows, affected]` rather
+ * than the rows, so that shape is unwrapped.
+ */
+export function typeormQuery(db: { query(sql: string, params?: unknown[]): Promise<unknown> }): Query {
+  return async (sql, params) => {
+    const result = await db.query(sql, params);
+    if (Array.isArray(result) && result.length === 2 && Array.isArray(result[0]) && typeof result[1] === 'number') return result[0] as Record<string, unknown>[];
+    return result as Record<string, unknown>[];
+  };
+}
+
 export interface DeliverDeps {
   query: Query;
   send: (bundle: Bundle) => Promise<SendResult>;
