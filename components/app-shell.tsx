@@ -10,7 +10,7 @@ import { color, radius, space, touchTarget } from './theme';
 import { useSignOut, type Me } from './data/me-query';
 
 interface NavItem {
-  href: '/' | '/coding' | '/turnaround' | '/audit' | '/admin';
+  href: '/' | '/coding' | '/turnaround' | '/deliveries' | '/audit' | '/admin';
   label: string;
   needs: Permission;
   testID: string;
@@ -20,6 +20,7 @@ const navItems: NavItem[] = [
   { href: '/', label: 'Worklist', needs: 'study:read', testID: 'nav-worklist' },
   { href: '/coding', label: 'Coding queue', needs: 'coding:read', testID: 'nav-coding' },
   { href: '/turnaround', label: 'Turnaround', needs: 'turnaround:read', testID: 'nav-turnaround' },
+  { href: '/deliveries', label: 'EHR delivery', needs: 'delivery:manage', testID: 'nav-deliveries' },
   { href: '/audit', label: 'Audit trail', needs: 'audit:read', testID: 'nav-audit' },
   { href: '/admin', label: 'Administration', needs: 'admin:manage', testID: 'nav-admin' },
 ];

@@ -15,6 +15,7 @@ import { recordRoutes } from './routes/records';
 import { studyRoutes } from './routes/studies';
 import { settingsRoutes } from './routes/settings';
 import { reportRoutes } from './routes/reports';
+import { deliveryRoutes } from './routes/delivery';
 import { diskStorage, type AttachmentStorage } from './attachments/storage';
 
 export interface AppDeps {
@@ -29,7 +30,15 @@ export interface AppDeps {
 
 /** Every `/api` route with the access it needs: the router is built from this list alone. */
 export function apiRoutes(deps: Required<Pick<AppDeps, 'config' | 'dataSource' | 'idp' | 'storage'>>): ApiRoute[] {
-  return [...healthRoutes(deps), ...authRoutes(deps), ...studyRoutes(deps), ...settingsRoutes(deps), ...reportRoutes(deps), ...recordRoutes(deps)];
+  return [
+    ...healthRoutes(deps),
+    ...authRoutes(deps),
+    ...studyRoutes(deps),
+    ...settingsRoutes(deps),
+    ...reportRoutes(deps),
+    ...recordRoutes(deps),
+    ...deliveryRoutes(deps),
+  ];
 }
 
 /**

@@ -68,6 +68,11 @@ const configSchema = z
     EHR_CLIENT_SECRET: z.string().min(1).default('local-development-ehr-secret'),
     EHR_SCOPE: z.string().min(1).default('system/Patient.write system/Encounter.write system/Observation.write system/DiagnosticReport.write'),
     EHR_TIMEOUT_SECONDS: z.coerce.number().min(1).max(600).default(30),
+    EHR_DELIVERY_LIMIT_HOURS: z.coerce.number().min(0.01).max(24 * 30).default(24),
+    // Identifier systems of the hospital's MRNs, encounters and accession numbers (defaults: HL7's example OID root).
+    EHR_PATIENT_ID_SYSTEM: z.string().min(1).default('urn:oid:2.16.840.1.113883.19.5.1'),
+    EHR_ENCOUNTER_ID_SYSTEM: z.string().min(1).default('urn:oid:2.16.840.1.113883.19.5.2'),
+    EHR_ACCESSION_SYSTEM: z.string().min(1).default('urn:oid:2.16.840.1.113883.19.5.3'),
     FAKE_EHR_PORT: port.default(8472),
     HOSPITAL_NAME: z.string().trim().min(1).max(200).default('Saltmarsh Bay Regional Hospital'),
     HOSPITAL_LAB: z.string().trim().max(200).default('Cardiac Catheterization Laboratory'),
@@ -101,7 +106,17 @@ export interface Config {
   allowedOrigins: string[];
   attachments: { dir: string; maxBytes: number };
   /** The EHR's FHIR endpoint and Isobar's client-credentials client at the identity provider. */
-  ehr: { fhirBaseUrl: string; clientId: string; clientSecret: string; scope: string; timeoutMs: number };
+  ehr: {
+    fhirBaseUrl: string;
+    clientId: string;
+    clientSecret: string;
+    scope: string;
+    timeoutMs: number;
+    /** Transient failures are retried until this long after the first try, then the delivery gives up. */
+    deliveryLimitMs: number;
+    /** Identifier systems of the hospital's patient MRNs, encounters and accession numbers. */
+    identifierSystems: { patient: string; encounter: string; accession: string };
+  };
   /** Port of the local stand-in EHR (`server/fakes/main.ts`). */
   fakeEhrPort: number;
   /** The hospital and lab printed on reports. */
@@ -158,6 +173,8 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
       clientSecret: v.EHR_CLIENT_SECRET,
       scope: v.EHR_SCOPE,
       timeoutMs: v.EHR_TIMEOUT_SECONDS * 1000,
+      deliveryLimitMs: Math.round(v.EHR_DELIVERY_LIMIT_HOURS * 3_600_000),
+      identifierSystems: { patient: v.EHR_PATIENT_ID_SYSTEM, encounter: v.EHR_ENCOUNTER_ID_SYSTEM, accession: v.EHR_ACCESSION_SYSTEM },
     },
     fakeEhrPort: v.FAKE_EHR_PORT,
     hospital: { name: v.HOSPITAL_NAME, lab: v.HOSPITAL_LAB },

@@ -2,6 +2,7 @@ import type { TaskList } from 'graphile-worker';
 import type { DataSource } from 'typeorm';
 import type { Config } from '../config';
 import { sendReportNoticeTask } from '../mail/send-report-notice';
+import { deliveryTasks } from '../ehr/tasks';
 
 /**
  * Every background task the worker runs, by the name it is queued under (see `jobNames`). A task
@@ -9,6 +10,7 @@ import { sendReportNoticeTask } from '../mail/send-report-notice';
  */
 export function taskList(dataSource: DataSource, config: Config): TaskList {
   return {
+    ...deliveryTasks,
     'send-report-notice': sendReportNoticeTask(dataSource, {
       host: config.mail.host,
       port: config.mail.port,

@@ -1,5 +1,6 @@
 import type { EntityManager } from 'typeorm';
 import { addJob } from '../jobs/queue';
+import { enqueueDelivery } from '../ehr/enqueue-delivery';
 
 /**
  * What follows a signature, joined inside the signing transaction: the referrer's notice, the code
@@ -9,5 +10,5 @@ import { addJob } from '../jobs/queue';
 export async function onReportSigned(manager: EntityManager, reportVersionId: string): Promise<void> {
   await addJob(manager, 'send-report-notice', { reportVersionId }, { jobKey: `notice:${reportVersionId}`, maxAttempts: 25 });
   await addJob(manager, 'suggest-codes', { reportVersionId }, { jobKey: `codes:${reportVersionId}`, maxAttempts: 5 });
-  await addJob(manager, 'deliver-report', { reportVersionId }, { jobKey: `deliver:${reportVersionId}`, maxAttempts: 25 });
+  await enqueueDelivery(manager, reportVersionId);
 }

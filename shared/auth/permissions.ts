@@ -17,6 +17,8 @@ export const permissionTable = {
   'turnaround:read': ['chief'],
   /** The audit trail. */
   'audit:read': ['chief', 'admin'],
+  /** The list of EHR deliveries needing attention, and sending a signed report again. */
+  'delivery:manage': ['chief', 'admin'],
   /** Users, roles, templates, settings. */
   'admin:manage': ['admin'],
 } as const satisfies Record<string, readonly Role[]>;

@@ -1,0 +1,206 @@
+import type { Bundle, OperationOutcome } from 'fhir/r4';
+import type { DeliveryIssue, DeliveryStatus, EhrResourceId } from '../../shared/delivery/status';
+import type { SendResult } from './ehr-client';
+import { BundleBuildError, buildReportBundle, bundleIdentifierOf, type StoredReportVersion } from './build-report-bundle';
+
+/**
+ * One try at delivering one signed report version to the EHR, and its record in `report_delivery`.
+ *
+ * - A sender first claims the delivery (status `sending` with a lease), so no two processes send the
+ *   same bundle at once; a sender that dies mid-send leaves a lease that expires, and the next try sends
+ *   again — the EHR recognises the resend by Bundle.identifier.
+ * - Delivered: the EHR's ids are kept. Rejected (a 4xx, or a bundle that cannot be built): kept with
+ *   the EHR's issues and not tried again until someone asks for a resend. Transient (5xx, timeout,
+ *   connection): `failed-retrying`, and `TransientDeliveryError` is thrown so the job queue tries again
+ *   with its backoff — until the time limit after the first try, then `given-up`.
+ * - A delivered, rejected or given-up delivery is left alone: a second job for it does nothing.
+ */
+
+/** Rows of a query (pg's `rows`): the task runs on the job queue's connection, routes on TypeORM's. */
+export type Query = (sql: string, params?: unknown[]) => Promise<Record<string, unknown>[]>;
+
+/**
+ * A `Query` over TypeORM: its `query()` answers an UPDATE or DELETE with `[rows, affected]` rather
+ * than the rows, so that shape is unwrapped.
+ */
+export function typeormQuery(db: { query(sql: string, params?: unknown[]): Promise<unknown> }): Query {
+  return async (sql, params) => {
+    const result = await db.query(sql, params);
+    if (Array.isArray(result) && result.length === 2 && Array.isArray(result[0]) && typeof result[1] === 'number') return result[0] as Record<string, unknown>[];
+    return result as Record<string, unknown>[];
+  };
+}
+
+export interface DeliverDeps {
+  query: Query;
+  send: (bundle: Bundle) => Promise<SendResult>;
+  /** Transient failures are retried until this long after the first try. */
+  limitMs: number;
+  /** How long a claim holds before another sender may take over (longer than a send can last). */
+  leaseMs: number;
+  identifierSystems: { patient: string; encounter: string; accession: string };
+}
+
+/** Where the job queue is with this job: its attempts so far (this one included) and its limit. */
+export interface JobAttempt {
+  attempts: number;
+  maxAttempts: number;
+}
+
+export type DeliverOutcome =
+  | { result: 'delivered'; ehrReportId: string | null }
+  | { result: 'rejected' | 'given-up'; error: string }
+  | { result: 'left-alone'; status: DeliveryStatus }
+  | { result: 'no-such-version' };
+
+/** Thrown for a failure worth trying again; the job queue retries the job with backoff. */
+export class TransientDeliveryError extends Error {
+  constructor(message: string) {
+    super(message);
+    this.name = 'TransientDeliveryError';
+  }
+}
+
+/** graphile-worker's retry delay after the n-th failed attempt: exp(min(n, 10)) seconds. */
+export const retryDelayMs = (attempts: number) => Math.round(Math.exp(Math.min(Math.max(attempts, 1), 10)) * 1000);
+
+const MAX_DIAGNOSTICS = 500;
+
+/** The OperationOutcome's issues as stored: severity, code, FHIRPath locations, diagnostics (shortened). */
+export function issuesOf(outcome: OperationOutcome | undefined): DeliveryIssue[] {
+  return (outcome?.issue ?? []).slice(0, 50).map((i) => ({
+    severity: i.severity,
+    code: i.code,
+    ...(i.expression?.length ? { expression: i.expression.slice(0, 10) } : {}),
+    ...(i.diagnostics ? { diagnostics: i.diagnostics.slice(0, MAX_DIAGNOSTICS) } : {}),
+  }));
+}
+
+/** The resources the EHR answered with, from each entry's `response.location` (FHIR R4 Bundle.entry.response). */
+export function ehrIdsOf(response: Bundle): EhrResourceId[] {
+  const ids: EhrResourceId[] = [];
+  for (const entry of response.entry ?? []) {
+    const location = entry.response?.location;
+    if (!location) continue;
+    // "Type/id" or "Type/id/_history/version", possibly absolute.
+    const match = /(?:^|\/)([A-Z][A-Za-z]+)\/([A-Za-z0-9\-.]{1,64})(?:\/_history\/([A-Za-z0-9\-.]{1,64}))?$/.exec(location);
+    if (match) ids.push({ resourceType: match[1], id: match[2], ...(match[3] ? { version: match[3] } : {}) });
+  }
+  return ids;
+}
+
+/** Makes sure the version has its delivery row (signing may add only the job). */
+export async function ensureDeliveryRow(query: Query, reportVersionId: string): Promise<boolean> {
+  await query(
+    `INSERT INTO report_delivery (report_version_id, study_id)
+     SELECT id, study_id FROM report_version WHERE id = $1
+     ON CONFLICT (report_version_id) DO NOTHING`,
+    [reportVersionId],
+  );
+  const rows = await query(`SELECT 1 FROM report_delivery WHERE report_version_id = $1`, [reportVersionId]);
+  return rows.length > 0;
+}
+
+export async function deliverReport(deps: DeliverDeps, reportVersionId: string, job: JobAttempt): Promise<DeliverOutcome> {
+  const { query } = deps;
+  if (!(await ensureDeliveryRow(query, reportVersionId))) return { result: 'no-such-version' };
+
+  const claimed = await query(
+    `UPDATE report_delivery
+        SET status = 'sending', attempts = attempts + 1, first_attempt_at = coalesce(first_attempt_at, now()),
+            last_attempt_at = now(), next_attempt_at = NULL, lease_until = now() + $2 * interval '1 millisecond', updated_at = now()
+      WHERE report_version_id = $1
+        AND (status IN ('queued', 'failed-retrying') OR (status = 'sending' AND lease_until < now()))
+      RETURNING first_attempt_at`,
+    [reportVersionId, deps.leaseMs],
+  );
+  if (claimed.length === 0) {
+    const [current] = await query(`SELECT status, lease_until FROM report_delivery WHERE report_version_id = $1`, [reportVersionId]);
+    const status = current.status as DeliveryStatus;
+    if (status === 'sending') throw new TransientDeliveryError('Another sender is delivering this report now.');
+    return { result: 'left-alone', status };
+  }
+  const firstAttemptAt = claimed[0].first_attempt_at as Date;
+
+  const [row] = await query(
+    `SELECT rv.id, rv.study_id, rv.version_no, rv.status, rv.snapshot, rv.analysis, rv.thresholds, rv.pdf, rv.pdf_sha256,
+            rv.signer_name, rv.signed_at, prev.version_no AS previous_version_no, operator.display_name AS operator_name
+       FROM report_version rv
+       LEFT JOIN report_version prev ON prev.id = rv.supersedes_id
+       LEFT JOIN app_user operator ON operator.id::text = rv.snapshot -> 'details' ->> 'operatorId'
+      WHERE rv.id = $1`,
+    [reportVersionId],
+  );
+  const version: StoredReportVersion = {
+    id: row.id as string,
+    studyId: row.study_id as string,
+    versionNo: row.version_no as number,
+    status: row.status as 'final' | 'amended',
+    snapshot: row.snapshot,
+    analysis: row.analysis,
+    thresholds: row.thresholds,
+    pdf: row.pdf as Buffer,
+    pdfSha256: row.pdf_sha256 as string,
+    signerName: row.signer_name as string,
+    signedAt: row.signed_at as Date,
+  };
+
+  let bundle: Bundle;
+  try {
+    bundle = buildReportBundle(version, {
+      previousVersionNo: (row.previous_version_no as number | null) ?? undefined,
+      operatorName: row.operator_name as string | null,
+      identifierSystems: deps.identifierSystems,
+    });
+  } catch (error) {
+    if (!(error instanceof BundleBuildError)) throw error;
+    await stop(query, reportVersionId, 'rejected', { error: error.message, httpStatus: null, issues: [] });
+    return { result: 'rejected', error: error.message };
+  }
+  await query(`UPDATE report_delivery SET bundle_identifier = $2 WHERE report_version_id = $1`, [reportVersionId, bundleIdentifierOf(version.studyId, version.versionNo)]);
+
+  const sent = await deps.send(bundle);
+  if (sent.ok) {
+    const ids = ehrIdsOf(sent.response);
+    const report = ids.find((i) => i.resourceType === 'DiagnosticReport');
+    const ehrReportId = report ? `DiagnosticReport/${report.id}` : null;
+    await query(
+      `UPDATE report_delivery
+          SET status = 'delivered', http_status = $2, ehr_ids = $3::jsonb, ehr_report_id = $4, delivered_at = now(),
+              last_error = NULL, issues = NULL, lease_until = NULL, next_attempt_at = NULL, stopped_at = NULL, updated_at = now()
+        WHERE report_version_id = $1`,
+      [reportVersionId, sent.status, JSON.stringify(ids), ehrReportId],
+    );
+    return { result: 'delivered', ehrReportId };
+  }
+
+  const failure = { error: sent.message, httpStatus: sent.status ?? null, issues: issuesOf(sent.outcome) };
+  if (sent.kind === 'rejected') {
+    await stop(query, reportVersionId, 'rejected', failure);
+    return { result: 'rejected', error: sent.message };
+  }
+  const pastLimit = Date.now() - firstAttemptAt.getTime() >= deps.limitMs;
+  if (pastLimit || job.attempts >= job.maxAttempts) {
+    const error = `${sent.message}; gave up after ${pastLimit ? `the time limit of ${Math.round(deps.limitMs / 60_000)} min` : `${job.attempts} tries`}`;
+    await stop(query, reportVersionId, 'given-up', { ...failure, error });
+    return { result: 'given-up', error };
+  }
+  await query(
+    `UPDATE report_delivery
+        SET status = 'failed-retrying', last_error = $2, http_status = $3, issues = $4::jsonb,
+            next_attempt_at = now() + $5 * interval '1 millisecond', lease_until = NULL, updated_at = now()
+      WHERE report_version_id = $1`,
+    [reportVersionId, failure.error, failure.httpStatus, JSON.stringify(failure.issues), retryDelayMs(job.attempts)],
+  );
+  throw new TransientDeliveryError(sent.message);
+}
+
+async function stop(query: Query, reportVersionId: string, status: 'rejected' | 'given-up', failure: { error: string; httpStatus: number | null; issues: DeliveryIssue[] }) {
+  await query(
+    `UPDATE report_delivery
+        SET status = $2, last_error = $3, http_status = $4, issues = $5::jsonb, stopped_at = now(),
+            lease_until = NULL, next_attempt_at = NULL, updated_at = now()
+      WHERE report_version_id = $1`,
+    [reportVersionId, status, failure.error, failure.httpStatus, JSON.stringify(failure.issues)],
+  );
+}

@@ -1,0 +1,68 @@
+import type { Task, TaskList } from 'graphile-worker';
+import { z } from 'zod';
+import { loadConfig, type Config } from '../config';
+import { deliverReport, type DeliverDeps } from './deliver-report';
+import { EhrClient } from './ehr-client';
+
+/**
+ * The job queue's tasks for EHR delivery. `deliver-report` (payload `{ reportVersionId }`) sends one
+ * signed report version; a transient failure throws, so graphile-worker retries with its exponential
+ * backoff; a rejection or the time limit ends the job without an error (the delivery row says why).
+ */
+
+const payloadSchema = z.object({ reportVersionId: z.uuid() });
+
+export interface DeliveryTaskOptions {
+  send: DeliverDeps['send'];
+  limitMs: number;
+  leaseMs: number;
+  identifierSystems: DeliverDeps['identifierSystems'];
+}
+
+export function createDeliveryTasks(options: DeliveryTaskOptions): TaskList {
+  const deliver: Task = async (payload, helpers) => {
+    const parsed = payloadSchema.safeParse(payload);
+    if (!parsed.success) {
+      // A malformed job would fail the same way forever: log it and let it go.
+      helpers.logger.error(`deliver-report: payload without a report version id (job ${helpers.job.id})`);
+      return;
+    }
+    const { reportVersionId } = parsed.data;
+    const outcome = await deliverReport(
+      { ...options, query: async (sql, params) => (await helpers.query(sql, params as unknown[])).rows },
+      reportVersionId,
+      { attempts: helpers.job.attempts, maxAttempts: helpers.job.max_attempts },
+    );
+    helpers.logger.info(`deliver-report ${reportVersionId}: ${outcome.result}`);
+  };
+  return { 'deliver-report': deliver };
+}
+
+/** The task options from the server's settings: one EHR client (its token is reused until it expires). */
+export function deliveryTaskOptions(config: Config): DeliveryTaskOptions {
+  const client = new EhrClient({
+    fhirBaseUrl: config.ehr.fhirBaseUrl,
+    issuer: config.oidc.issuer,
+    clientId: config.ehr.clientId,
+    clientSecret: config.ehr.clientSecret,
+    scope: config.ehr.scope,
+    timeoutMs: config.ehr.timeoutMs,
+  });
+  return {
+    send: (bundle) => client.sendTransaction(bundle),
+    limitMs: config.ehr.deliveryLimitMs,
+    // A send is at most two token requests and two transactions, each bounded by the timeout.
+    leaseMs: 4 * config.ehr.timeoutMs + 60_000,
+    identifierSystems: config.ehr.identifierSystems,
+  };
+}
+
+let configured: TaskList | undefined;
+
+/** The delivery tasks with the server's settings (read on first use). */
+export const deliveryTasks: TaskList = {
+  'deliver-report': (payload, helpers) => {
+    configured ??= createDeliveryTasks(deliveryTaskOptions(loadConfig()));
+    return configured['deliver-report']!(payload, helpers);
+  },
+};

@@ -1,0 +1,70 @@
+import type { Request } from 'express';
+import type { DataSource } from 'typeorm';
+import { z } from 'zod';
+import { deliveryStatuses } from '../../shared/delivery/status';
+import { auditContext, recordAudit } from '../audit/audit';
+import { NotFoundError } from '../http/problem';
+import type { ApiRoute } from '../http/routes';
+import { parseOrThrow } from '../http/validate';
+import { listDeliveriesNeedingAttention, listStudyDeliveries } from '../ehr/list-deliveries';
+import { resendDelivery } from '../ehr/resend-delivery';
+
+const uuidPattern = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
+const idOf = (req: Request) => {
+  const id = String(req.params.id);
+  if (!uuidPattern.test(id)) throw new NotFoundError('No record has this id.');
+  return id;
+};
+
+const listQuerySchema = z.object({
+  status: z.enum(deliveryStatuses, { error: `status must be one of: ${deliveryStatuses.join(', ')}.` }).optional(),
+});
+
+/** Delivery of signed reports to the EHR: per study for its readers; the list and "send again" for the chief and admin. */
+export function deliveryRoutes({ dataSource }: { dataSource: DataSource }): ApiRoute[] {
+  return [
+    {
+      method: 'get',
+      path: '/studies/:id/deliveries',
+      access: 'study:read',
+      summary: 'EHR delivery of each signed version of a study: status, EHR ids, next try, issues',
+      handlers: [
+        async (req, res) => {
+          const id = idOf(req);
+          const [study] = await dataSource.query(`SELECT id FROM study WHERE id = $1`, [id]);
+          if (!study) throw new NotFoundError('No study has this id.');
+          const deliveries = await listStudyDeliveries(dataSource, id);
+          await recordAudit(dataSource, { ...auditContext(req), action: 'read', entityType: 'study', entityId: id, outcome: 'success', detail: { view: 'deliveries' } });
+          res.json({ items: deliveries });
+        },
+      ],
+    },
+    {
+      method: 'get',
+      path: '/deliveries',
+      access: 'delivery:manage',
+      summary: 'Deliveries that are retrying, rejected or given up: accession, status and issues only',
+      handlers: [
+        async (req, res) => {
+          const query = parseOrThrow(listQuerySchema, req.query);
+          res.json({ items: await listDeliveriesNeedingAttention(dataSource, { statuses: query.status ? [query.status] : undefined }) });
+        },
+      ],
+    },
+    {
+      method: 'post',
+      path: '/report-versions/:id/resend',
+      access: 'delivery:manage',
+      summary: 'Send a signed report version to the EHR again (the EHR recognises the resend)',
+      handlers: [
+        async (req, res) => {
+          const id = idOf(req);
+          const context = auditContext(req);
+          const { previousStatus } = await resendDelivery(dataSource, id, context.actorUserId ?? null);
+          await recordAudit(dataSource, { ...context, action: 'update', entityType: 'report-delivery', entityId: id, outcome: 'success', detail: { resend: true, previousStatus } });
+          res.status(202).json({ reportVersionId: id, status: 'queued' });
+        },
+      ],
+    },
+  ];
+}
