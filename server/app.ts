@@ -5,6 +5,7 @@ import helmet from 'helmet';
 import type { DataSource } from 'typeorm';
 import type { Config } from './config';
 import { apiNotFound, problemHandler } from './http/problem';
+import { refuseImpossibleValues } from './http/input-safety';
 import { routerFrom, type ApiRoute } from './http/routes';
 import { identityProvider, type IdentityProvider } from './auth/oidc';
 import { sessionMiddleware } from './auth/session';
@@ -70,6 +71,7 @@ export function createApp({
   });
   api.use(requireSameOrigin(config));
   api.use(express.json({ limit: config.jsonBodyLimit }));
+  api.use(refuseImpossibleValues);
   api.use(sessionMiddleware(config, dataSource));
   api.use(enforceSessionLimit(config));
   api.use(routerFrom(apiRoutes({ config, dataSource, idp, storage }), dataSource));

@@ -10,7 +10,7 @@ import type {
 } from '../../shared/study/schema';
 import { emptyDetails, emptyFindings, emptySetup } from '../../shared/study/schema';
 import type { StudyState } from '../../shared/study/vocabulary';
-import { HttpError, NotFoundError } from '../http/problem';
+import { HttpError, NotFoundError, UnprocessableError } from '../http/problem';
 import { recordAudit, type AuditEntry } from '../audit/audit';
 import { assignments, detailsColumns, findingsColumns, readSection, selectList, setupColumns } from './columns';
 
@@ -247,8 +247,19 @@ async function nextAccession(db: EntityManager, at: Date): Promise<string> {
   return `ISB-${day}-${String(n).padStart(4, '0')}-${Math.random().toString(36).slice(2, 6).toUpperCase()}`;
 }
 
+/** The operator must be a physician on file: an id of nobody, or of another role, is refused. */
+async function checkOperator(db: EntityManager, operatorId: string | null | undefined): Promise<void> {
+  if (!operatorId) return;
+  const [row] = await db.query(`SELECT role FROM app_user WHERE id = $1`, [operatorId]);
+  if (row?.role === 'physician') return;
+  throw new UnprocessableError('The operator must be a physician.', [
+    { pointer: '/details/operatorId', detail: row ? 'Operator: this person is not a physician. Choose a physician from the list.' : 'Operator: nobody has this id. Choose a physician from the list.' },
+  ]);
+}
+
 export async function createStudy(dataSource: DataSource, input: CreateStudy, createdBy: string | null, actor?: AuditActor): Promise<string> {
   return dataSource.transaction(async (db) => {
+    await checkOperator(db, input.details?.operatorId);
     const { patientId } = await resolvePatient(db, input.patient, null, null);
     const details = { ...emptyDetails(), ...input.details };
     const set = assignments(detailsColumns, details, 1);
@@ -273,6 +284,7 @@ export async function patchStudy(dataSource: DataSource, id: string, patch: Patc
   return dataSource.transaction(async (db) => {
     const current = await lockEditableStudy(db, id);
     if (current.version !== patch.version) throw new StaleVersionError((await loadStudy(db, id))!);
+    await checkOperator(db, patch.details?.operatorId);
     const sets: string[] = [];
     const values: unknown[] = [];
     const add = (a: { sql: string; values: unknown[] }) => {
