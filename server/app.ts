@@ -72,7 +72,9 @@ export function createApp({
   api.use(requireSameOrigin(config));
   api.use(express.json({ limit: config.jsonBodyLimit }));
   api.use(refuseImpossibleValues);
-  api.use(sessionMiddleware(config, dataSource));
+  const sessions = sessionMiddleware(config, dataSource);
+  // Health needs no session, so it answers "database down" itself rather than the session store's error.
+  api.use((req, res, next) => (req.path === '/health' ? next() : sessions(req, res, next)));
   api.use(enforceSessionLimit(config));
   api.use(routerFrom(apiRoutes({ config, dataSource, idp, storage }), dataSource));
   api.use(apiNotFound);

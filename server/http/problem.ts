@@ -1,4 +1,5 @@
 import type { ErrorRequestHandler, RequestHandler } from 'express';
+import { isDatabaseUnavailable, retryAfterSeconds } from '../db/availability';
 
 /** One field-level problem, located by a JSON pointer into the request body (RFC 6901). */
 export interface FieldProblem {
@@ -43,13 +44,14 @@ export class NotFoundError extends HttpError {
   }
 }
 export class ServiceUnavailableError extends HttpError {
-  constructor(detail: string) {
+  constructor(detail: string, public readonly extensions: Record<string, unknown> = {}) {
     super(503, 'service-unavailable', 'Service unavailable', detail);
   }
 }
 
 export function toProblem(error: HttpError, instance?: string): Problem {
   return {
+    ...(error instanceof ServiceUnavailableError ? error.extensions : {}),
     type: PROBLEM_BASE + error.slug,
     title: error.title,
     status: error.status,
@@ -129,16 +131,28 @@ export const apiNotFound: RequestHandler = (req, _res, next) => {
  */
 export function problemHandler(log: (message: string, error: unknown) => void = console.error): ErrorRequestHandler {
   return (err, req, res, next) => {
-    if (res.headersSent) return next(err);
+    if (res.headersSent) {
+      // A late error (e.g. the session store failing after the answer went out): the answer is
+      // complete, so keep the connection; only an unfinished answer has to be cut.
+      if (res.writableEnded) {
+        if (!isDatabaseUnavailable(err)) log(`Error after the response on ${req.method} ${req.path}`, err);
+        return;
+      }
+      return next(err);
+    }
     const e: ErrorLike = err ?? {};
     let known: HttpError | undefined = err instanceof HttpError ? err : (fromZod(e) ?? fromBodyParser(e) ?? fromClientError(e));
+    if (!known && isDatabaseUnavailable(err)) {
+      known = new ServiceUnavailableError('The database is not answering. Try again in a few seconds.');
+    }
     if (!known && isDataException(e)) {
       known = new UnprocessableError('A value in the request cannot be stored (out of range or not valid text).');
     }
     if (!known) {
-      log(`Unhandled error on ${req.method} ${req.originalUrl}`, err);
+      log(`Unhandled error on ${req.method} ${req.path}`, err);
       known = new HttpError(500, 'internal', 'Internal server error', 'Something went wrong on the server. The error has been logged.');
     }
+    if (known.status === 503) res.set('Retry-After', String(retryAfterSeconds));
     res.status(known.status).type('application/problem+json').send(JSON.stringify(toProblem(known, req.originalUrl.split('?')[0])));
   };
 }
