@@ -15,11 +15,15 @@ import { authRoutes } from './routes/auth';
 import { recordRoutes } from './routes/records';
 import { studyRoutes } from './routes/studies';
 import { diskStorage, type AttachmentStorage } from './attachments/storage';
+import { createLogger, requestLogger, type Logger } from './log';
 
 export interface AppDeps {
   config: Config;
   dataSource: DataSource;
-  log?: (message: string, error?: unknown) => void;
+  /** Structured logger (pino); defaults to one at the configured level on stdout. */
+  logger?: Logger;
+  /** Where unexpected errors go; defaults to the logger. */
+  log?: (message: string, error?: unknown, fields?: Record<string, unknown>) => void;
   /** The identity provider; defaults to the one in the config (tests may pass their own). */
   idp?: IdentityProvider;
   /** Where attachments are kept; defaults to the folder in the config. */
@@ -38,12 +42,14 @@ export function apiRoutes(deps: Required<Pick<AppDeps, 'config' | 'dataSource' |
 export function createApp({
   config,
   dataSource,
-  log = console.error,
+  logger = createLogger(config.logLevel),
+  log = (message, error, fields) => logger.error({ ...fields, err: error }, message),
   idp = identityProvider(config.oidc),
   storage = diskStorage(path.resolve(config.attachments.dir)),
 }: AppDeps): Express {
   const app = express();
   app.disable('x-powered-by');
+  app.use(requestLogger(logger));
   app.set('trust proxy', 'loopback');
 
   app.use(
@@ -72,7 +78,7 @@ export function createApp({
   api.use(requireSameOrigin(config));
   api.use(express.json({ limit: config.jsonBodyLimit }));
   api.use(refuseImpossibleValues);
-  const sessions = sessionMiddleware(config, dataSource);
+  const sessions = sessionMiddleware(config, dataSource, logger);
   // Health needs no session, so it answers "database down" itself rather than the session store's error.
   api.use((req, res, next) => (req.path === '/health' ? next() : sessions(req, res, next)));
   api.use(enforceSessionLimit(config));

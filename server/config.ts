@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { isRole, type Role } from '../shared/auth/permissions';
+import { defaultLevel, logLevels, type LogLevel } from './log';
 
 /**
  * Every setting the server reads, with a working default for local use.
@@ -63,6 +64,7 @@ const configSchema = z
     ALLOWED_ORIGINS: z.string().default(''),
     ATTACHMENT_DIR: z.string().min(1).default('storage/attachments'),
     ATTACHMENT_MAX_MB: z.coerce.number().min(0.01).max(500).default(20),
+    LOG_LEVEL: z.enum(logLevels).optional(),
   })
   .superRefine((value, ctx) => {
     if (value.NODE_ENV === 'production' && value.SESSION_SECRET.startsWith('local-development-secret')) {
@@ -86,6 +88,8 @@ export interface Config {
   /** Origins allowed to send state-changing requests: the public URL's, plus any listed. */
   allowedOrigins: string[];
   attachments: { dir: string; maxBytes: number };
+  /** pino level; `silent` under test unless LOG_LEVEL says otherwise. */
+  logLevel: LogLevel;
 }
 
 export class ConfigError extends Error {
@@ -126,5 +130,6 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
     signInRateLimit: v.SIGN_IN_RATE_LIMIT,
     allowedOrigins: [new URL(publicUrl).origin, ...v.ALLOWED_ORIGINS.split(',').map((o) => o.trim()).filter(Boolean)],
     attachments: { dir: v.ATTACHMENT_DIR, maxBytes: Math.round(v.ATTACHMENT_MAX_MB * 1024 * 1024) },
+    logLevel: v.LOG_LEVEL ?? defaultLevel({ NODE_ENV: v.NODE_ENV }),
   };
 }

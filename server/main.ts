@@ -2,30 +2,32 @@ import { createServer } from 'node:http';
 import { loadConfig, ConfigError } from './config';
 import { createDataSource } from './db/data-source';
 import { createApp } from './app';
+import { createLogger, safeError } from './log';
 
 /** Starts the server: connects to the database, serves `/api` and the web build, stops cleanly. */
 async function main(): Promise<void> {
   const config = loadConfig();
-  const dataSource = createDataSource(config.databaseUrl, config.databasePoolSize);
+  const logger = createLogger(config.logLevel);
+  const dataSource = createDataSource(config.databaseUrl, config.databasePoolSize, logger);
   await dataSource.initialize();
   const pending = await dataSource.showMigrations();
   if (pending) {
     throw new Error('The database has migrations that have not been run. Run `npm start`, which runs them first.');
   }
 
-  const server = createServer(createApp({ config, dataSource }));
+  const server = createServer(createApp({ config, dataSource, logger }));
   server.requestTimeout = 60_000;
   await new Promise<void>((resolve, reject) => {
     server.once('error', reject);
     server.listen(config.port, config.host, resolve);
   });
-  console.log(`Isobar server listening on ${config.publicUrl}`);
+  logger.info({ url: config.publicUrl }, 'server listening');
 
   let stopping = false;
   const stop = async (signal: string) => {
     if (stopping) return;
     stopping = true;
-    console.log(`${signal}: stopping the server`);
+    logger.info({ signal }, 'stopping the server');
     server.close();
     server.closeAllConnections();
     await dataSource.destroy().catch(() => undefined);
@@ -36,6 +38,7 @@ async function main(): Promise<void> {
 }
 
 main().catch((error) => {
-  console.error(error instanceof ConfigError ? error.message : error);
+  if (error instanceof ConfigError) console.error(error.message);
+  else createLogger('error').fatal({ err: safeError(error) }, 'server failed to start');
   process.exit(1);
 });

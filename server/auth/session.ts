@@ -5,6 +5,7 @@ import type { RequestHandler } from 'express';
 import type { DataSource } from 'typeorm';
 import type { Config } from '../config';
 import type { Role } from '../../shared/auth/permissions';
+import { defaultLogger, safeError, type Logger } from '../log';
 
 /** What a signed-in session holds. */
 export interface SessionAuth {
@@ -135,13 +136,15 @@ function poolOf(dataSource: DataSource): Pool {
  * Sessions in PostgreSQL: HttpOnly, SameSite=Lax cookie (Lax, not Strict, so the provider's redirect
  * back to the callback carries it), Secure over HTTPS, idle timeout renewed on each request.
  */
-export function createSessionStore(config: Config, dataSource: DataSource): session.Store {
+export function createSessionStore(config: Config, dataSource: DataSource, logger: Logger = defaultLogger()): session.Store {
   const pool = poolOf(dataSource);
   const Store = endedSessionAwareStore(connectPgSimple(session), pool, config.session.maxHours * 3_600_000, (config.session.idleMinutes * 60_000) / 10);
   return new Store({
     pool,
     tableName: 'http_session',
     createTableIfMissing: false,
+    // Its default prints the error with console.error; log it as data without values instead.
+    errorLog: (...args: unknown[]) => logger.warn({ err: safeError(args.find((a) => a instanceof Error)) }, 'session store query failed'),
     pruneSessionInterval: config.env === 'test' ? false : 15 * 60,
   });
 }
@@ -153,8 +156,8 @@ export function createSessionStore(config: Config, dataSource: DataSource): sess
  * Forgetting the id for this request only keeps the stored session as it was; the error is answered
  * (503 when the database is unreachable) and the next request reads the session again.
  */
-export function sessionMiddleware(config: Config, dataSource: DataSource): RequestHandler {
-  const inner = expressSession(config, dataSource);
+export function sessionMiddleware(config: Config, dataSource: DataSource, logger?: Logger): RequestHandler {
+  const inner = expressSession(config, dataSource, logger);
   return (req, res, next) =>
     inner(req, res, (err?: unknown) => {
       if (err && !req.session) (req as { sessionID?: string }).sessionID = undefined;
@@ -162,12 +165,12 @@ export function sessionMiddleware(config: Config, dataSource: DataSource): Reque
     });
 }
 
-function expressSession(config: Config, dataSource: DataSource): RequestHandler {
+function expressSession(config: Config, dataSource: DataSource, logger?: Logger): RequestHandler {
   const idleMs = config.session.idleMinutes * 60_000;
   return session({
     name: sessionCookieName,
     secret: config.sessionSecret,
-    store: createSessionStore(config, dataSource),
+    store: createSessionStore(config, dataSource, logger),
     resave: false,
     saveUninitialized: false,
     rolling: true,

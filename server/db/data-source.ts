@@ -1,5 +1,6 @@
 import 'reflect-metadata';
 import { DataSource } from 'typeorm';
+import { defaultLogger, SafeQueryLogger, type Logger } from '../log';
 import { User } from './entities/user.entity';
 import { Patient } from './entities/patient.entity';
 import { Study } from './entities/study.entity';
@@ -14,7 +15,8 @@ import { EndedSessions1764979200000 } from './migrations/1764979200000-ended-ses
 export const entities = [User, Patient, Study, VesselAssessment, ThermodilutionInjection, AcetylcholineDose, Attachment];
 export const migrations = [InitialSchema1764633600000, SessionsAndAudit1764720000000, StudyRecord1764806400000, PatientNameSearch1764892800000, EndedSessions1764979200000];
 
-export function createDataSource(databaseUrl: string, poolSize = 10): DataSource {
+/** Failing queries are logged by their SQL text and SQLSTATE only (see server/log.ts). */
+export function createDataSource(databaseUrl: string, poolSize = 10, logger: Logger = defaultLogger()): DataSource {
   return new DataSource({
     type: 'postgres',
     url: databaseUrl,
@@ -23,7 +25,8 @@ export function createDataSource(databaseUrl: string, poolSize = 10): DataSource
     migrationsTableName: 'schema_migration',
     synchronize: false,
     migrationsRun: false,
-    logging: ['error'],
+    logging: ['error', 'warn'],
+    logger: new SafeQueryLogger(logger),
     extra: { max: poolSize, connectionTimeoutMillis: 3000 },
   });
 }

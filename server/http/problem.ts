@@ -129,13 +129,13 @@ export const apiNotFound: RequestHandler = (req, _res, next) => {
  * The one error middleware: known errors become problem+json; anything else is logged
  * and answered with a generic 500 that reveals nothing of the server's internals.
  */
-export function problemHandler(log: (message: string, error: unknown) => void = console.error): ErrorRequestHandler {
+export function problemHandler(log: (message: string, error: unknown, fields?: Record<string, unknown>) => void = console.error): ErrorRequestHandler {
   return (err, req, res, next) => {
     if (res.headersSent) {
       // A late error (e.g. the session store failing after the answer went out): the answer is
       // complete, so keep the connection; only an unfinished answer has to be cut.
       if (res.writableEnded) {
-        if (!isDatabaseUnavailable(err)) log(`Error after the response on ${req.method} ${req.path}`, err);
+        if (!isDatabaseUnavailable(err)) log('error after the response', err, { reqId: req.id, method: req.method, path: req.path });
         return;
       }
       return next(err);
@@ -149,7 +149,7 @@ export function problemHandler(log: (message: string, error: unknown) => void = 
       known = new UnprocessableError('A value in the request cannot be stored (out of range or not valid text).');
     }
     if (!known) {
-      log(`Unhandled error on ${req.method} ${req.path}`, err);
+      log('unhandled error', err, { reqId: req.id, method: req.method, path: req.path });
       known = new HttpError(500, 'internal', 'Internal server error', 'Something went wrong on the server. The error has been logged.');
     }
     if (known.status === 503) res.set('Retry-After', String(retryAfterSeconds));
