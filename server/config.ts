@@ -30,6 +30,10 @@ const configSchema = z
       .string()
       .regex(/^postgres(ql)?:\/\//, 'must be a postgres:// URL')
       .default('postgres://isobar@127.0.0.1:54470/isobar'),
+    MIGRATION_DATABASE_URL: z
+      .string()
+      .regex(/^postgres(ql)?:\/\//, 'must be a postgres:// URL')
+      .default('postgres://isobar_owner@127.0.0.1:54470/isobar'),
     DATABASE_POOL_SIZE: z.coerce.number().int().min(1).max(100).default(10),
     SESSION_SECRET: z.string().min(32, 'must be at least 32 characters').default('local-development-secret-change-me-0123456789'),
     WEB_DIST: z.string().min(1).default('dist'),
@@ -77,7 +81,10 @@ export interface Config {
   host: string;
   port: number;
   publicUrl: string;
+  /** The server's role: rows only (see server/db/privileges.ts). */
   databaseUrl: string;
+  /** The owner role: runs migrations (npm start and npm test do, before the server starts). */
+  migrationDatabaseUrl: string;
   databasePoolSize: number;
   sessionSecret: string;
   webDist: string;
@@ -114,6 +121,7 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
     port: v.PORT,
     publicUrl,
     databaseUrl: v.DATABASE_URL,
+    migrationDatabaseUrl: v.MIGRATION_DATABASE_URL,
     databasePoolSize: v.DATABASE_POOL_SIZE,
     sessionSecret: v.SESSION_SECRET,
     webDist: v.WEB_DIST,

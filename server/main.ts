@@ -3,6 +3,8 @@ import { loadConfig, ConfigError } from './config';
 import { createDataSource } from './db/data-source';
 import { createApp } from './app';
 import { createLogger, safeError } from './log';
+import { startWorker } from './jobs/worker';
+import { taskList } from './jobs/tasks';
 
 /** Starts the server: connects to the database, serves `/api` and the web build, stops cleanly. */
 async function main(): Promise<void> {
@@ -15,6 +17,8 @@ async function main(): Promise<void> {
     throw new Error('The database has migrations that have not been run. Run `npm start`, which runs them first.');
   }
 
+  // The job queue's schema was migrated by the owner role (npm start runs that first).
+  const worker = await startWorker(taskList, { databaseUrl: config.databaseUrl, logger });
   const server = createServer(createApp({ config, dataSource, logger }));
   server.requestTimeout = 60_000;
   await new Promise<void>((resolve, reject) => {
@@ -30,6 +34,7 @@ async function main(): Promise<void> {
     logger.info({ signal }, 'stopping the server');
     server.close();
     server.closeAllConnections();
+    await worker.stop().catch(() => undefined);
     await dataSource.destroy().catch(() => undefined);
     process.exit(0);
   };

@@ -10,10 +10,11 @@ import { SessionsAndAudit1764720000000 } from './migrations/1764720000000-sessio
 import { StudyRecord1764806400000 } from './migrations/1764806400000-study-record';
 import { PatientNameSearch1764892800000 } from './migrations/1764892800000-patient-name-search';
 import { EndedSessions1764979200000 } from './migrations/1764979200000-ended-sessions';
+import { SignedStudyGuard1765131313000 } from './migrations/1765131313000-signed-study-guard';
 
 /** Entities and migrations are listed, not globbed, so tsx, vitest and a bundler all see the same set. */
 export const entities = [User, Patient, Study, VesselAssessment, ThermodilutionInjection, AcetylcholineDose, Attachment];
-export const migrations = [InitialSchema1764633600000, SessionsAndAudit1764720000000, StudyRecord1764806400000, PatientNameSearch1764892800000, EndedSessions1764979200000];
+export const migrations = [InitialSchema1764633600000, SessionsAndAudit1764720000000, StudyRecord1764806400000, PatientNameSearch1764892800000, EndedSessions1764979200000, SignedStudyGuard1765131313000];
 
 /** Failing queries are logged by their SQL text and SQLSTATE only (see server/log.ts). */
 export function createDataSource(databaseUrl: string, poolSize = 10, logger: Logger = defaultLogger()): DataSource {

@@ -79,7 +79,7 @@ export async function seedDemo(dataSource: DataSource, issuer: string, now = new
       };
       const sections = [columnValues(detailsColumns, details), columnValues(setupColumns, s.setup), columnValues(findingsColumns, s.findings)];
       const names = sections.flatMap((x) => x.names);
-      const values = [s.accession, s.state, s.vasoreactivity.nitrateReversal, recorderId, started, s.mrn, ...sections.flatMap((x) => x.values)];
+      const values = [s.accession, 'draft', s.vasoreactivity.nitrateReversal, recorderId, started, s.mrn, ...sections.flatMap((x) => x.values)];
       // The record was opened shortly before the procedure began.
       const created = await db.query(
         `INSERT INTO study (accession, patient_id, state, nitrate_reversal, created_by, created_at, ${names.join(', ')})
@@ -89,7 +89,11 @@ export async function seedDemo(dataSource: DataSource, issuer: string, now = new
          RETURNING id`,
         values,
       );
-      if (created.length === 1) await addMeasurements(db, created[0].id, s);
+      // Measurements first, then the state: a signed study's rows cannot be added afterwards.
+      if (created.length === 1) {
+        await addMeasurements(db, created[0].id, s);
+        if (s.state !== 'draft') await db.query(`UPDATE study SET state = $2 WHERE id = $1`, [created[0].id, s.state]);
+      }
     }
   });
 }

@@ -2,6 +2,7 @@ import http from 'node:http';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { DataSource } from 'typeorm';
 import { createDataSource } from '../../server/db/data-source';
+import { prepareDatabase } from '../../server/cli/prepare-database';
 import { createPrivateCluster, type PrivateCluster } from '../support/pg-cluster';
 import { signIn, startStack, usernameOf, type TestStack } from '../support/stack';
 
@@ -17,11 +18,12 @@ const roles = ['staff', 'physician', 'coder', 'chief', 'admin'] as const;
 
 beforeAll(async () => {
   cluster = await createPrivateCluster('outage-pg');
+  cluster.psql(`CREATE ROLE isobar_owner LOGIN`);
   cluster.psql(`CREATE ROLE isobar LOGIN`);
-  cluster.psql(`CREATE DATABASE isobar OWNER isobar`);
+  cluster.psql(`CREATE DATABASE isobar OWNER isobar_owner`);
+  await prepareDatabase(cluster.url('isobar', 'isobar_owner'), cluster.url('isobar', 'isobar'));
   db = createDataSource(cluster.url('isobar', 'isobar'), 4);
   await db.initialize();
-  await db.runMigrations({ transaction: 'each' });
   stack = await startStack(db);
   for (const role of roles) cookies[role] = (await signIn(stack, usernameOf(role))).cookie;
 }, 120_000);

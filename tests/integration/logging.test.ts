@@ -5,7 +5,7 @@ import type { DataSource } from 'typeorm';
 import { createApp } from '../../server/app';
 import { createDataSource } from '../../server/db/data-source';
 import { createLogger } from '../../server/log';
-import { openTestDatabase, testConfig } from '../support/app';
+import { openOwnerDatabase, openTestDatabase, testConfig } from '../support/app';
 import { signIn, startStack, usernameOf } from '../support/stack';
 
 // The server log must never hold patient identifiers: a failing query carrying a recognisable
@@ -26,11 +26,13 @@ function captureLog() {
 }
 
 let db: DataSource;
+let owner: DataSource;
 beforeAll(async () => {
   db = await openTestDatabase();
+  owner = await openOwnerDatabase();
   // A trigger that refuses this one invented patient, quoting the name in its message, as a real
   // constraint or data error would quote a value.
-  await db.query(`
+  await owner.query(`
     CREATE OR REPLACE FUNCTION test_refuse_marked_patient() RETURNS trigger LANGUAGE plpgsql AS $$
     BEGIN
       IF NEW.family_name = '${marker.familyName}' THEN
@@ -38,11 +40,12 @@ beforeAll(async () => {
       END IF;
       RETURN NEW;
     END $$`);
-  await db.query(`CREATE TRIGGER test_refuse_marked_patient BEFORE INSERT ON patient FOR EACH ROW EXECUTE FUNCTION test_refuse_marked_patient()`);
+  await owner.query(`CREATE TRIGGER test_refuse_marked_patient BEFORE INSERT ON patient FOR EACH ROW EXECUTE FUNCTION test_refuse_marked_patient()`);
 });
 afterAll(async () => {
-  await db.query(`DROP TRIGGER IF EXISTS test_refuse_marked_patient ON patient`);
-  await db.query(`DROP FUNCTION IF EXISTS test_refuse_marked_patient()`);
+  await owner.query(`DROP TRIGGER IF EXISTS test_refuse_marked_patient ON patient`);
+  await owner.query(`DROP FUNCTION IF EXISTS test_refuse_marked_patient()`);
+  await owner.destroy();
   await db.destroy();
 });
 
