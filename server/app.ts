@@ -50,7 +50,8 @@ export function createApp({
   const app = express();
   app.disable('x-powered-by');
   app.use(requestLogger(logger));
-  app.set('trust proxy', 'loopback');
+  // Forwarded addresses only from a configured proxy: otherwise anyone could set X-Forwarded-For.
+  app.set('trust proxy', config.trustProxy.length ? config.trustProxy : false);
 
   app.use(
     helmet({

@@ -66,6 +66,12 @@ const configSchema = z
     SESSION_MAX_HOURS: z.coerce.number().min(0.1).max(72).default(12),
     SIGN_IN_RATE_LIMIT: z.coerce.number().int().min(1).max(10_000).default(30),
     ALLOWED_ORIGINS: z.string().default(''),
+    TRUST_PROXY: z
+      .string()
+      .default('')
+      .refine((v) => v.split(',').every((p) => /^(loopback|linklocal|uniquelocal|[0-9a-fA-F:.]+(\/\d{1,3})?)$/.test(p.trim())) || v === '', {
+        message: 'must be empty, or addresses/CIDR ranges (or loopback, linklocal, uniquelocal), comma-separated',
+      }),
     ATTACHMENT_DIR: z.string().min(1).default('storage/attachments'),
     ATTACHMENT_MAX_MB: z.coerce.number().min(0.01).max(500).default(20),
     LOG_LEVEL: z.enum(logLevels).optional(),
@@ -95,6 +101,11 @@ export interface Config {
   /** Origins allowed to send state-changing requests: the public URL's, plus any listed. */
   allowedOrigins: string[];
   attachments: { dir: string; maxBytes: number };
+  /**
+   * The reverse proxies whose X-Forwarded-For is believed (Express's `trust proxy`); none by default,
+   * so a client cannot choose the address that is audited and rate-limited.
+   */
+  trustProxy: string[];
   /** pino level; `silent` under test unless LOG_LEVEL says otherwise. */
   logLevel: LogLevel;
 }
@@ -138,6 +149,7 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
     signInRateLimit: v.SIGN_IN_RATE_LIMIT,
     allowedOrigins: [new URL(publicUrl).origin, ...v.ALLOWED_ORIGINS.split(',').map((o) => o.trim()).filter(Boolean)],
     attachments: { dir: v.ATTACHMENT_DIR, maxBytes: Math.round(v.ATTACHMENT_MAX_MB * 1024 * 1024) },
+    trustProxy: v.TRUST_PROXY.split(',').map((p) => p.trim()).filter(Boolean),
     logLevel: v.LOG_LEVEL ?? defaultLevel({ NODE_ENV: v.NODE_ENV }),
   };
 }

@@ -26,6 +26,8 @@ export function authRoutes(deps: { config: Config; dataSource: DataSource; idp: 
     limit: config.signInRateLimit,
     standardHeaders: 'draft-8',
     legacyHeaders: false,
+    // Without a configured proxy X-Forwarded-For is ignored on purpose; no need to warn about it.
+    validate: { xForwardedForHeader: false },
     handler: (_req, _res, next) =>
       next(new HttpError(429, 'too-many-sign-in-attempts', 'Too many sign-in attempts', 'Wait a minute, then try again.')),
   });

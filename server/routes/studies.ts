@@ -12,7 +12,7 @@ import type { Config } from '../config';
 import { HttpError, NotFoundError } from '../http/problem';
 import type { ApiRoute } from '../http/routes';
 import { parseOrThrow } from '../http/validate';
-import { createStudy, loadStudy, lockEditableStudy, patchStudy, StaleVersionError } from '../studies/repository';
+import { createStudy, loadStudy, lockEditableStudy, patchStudy, PatientMismatchError, StaleVersionError } from '../studies/repository';
 import { listStudies } from '../studies/worklist';
 
 const uuidPattern = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
@@ -59,7 +59,8 @@ export function studyRoutes({ config, dataSource, storage }: { config: Config; d
         async (req, res) => {
           const query = parseOrThrow(worklistQuerySchema, req.query, 'The worklist query');
           const page = await listStudies(dataSource, query);
-          await recordAudit(dataSource, { ...auditContext(req), action: 'search', entityType: 'study', outcome: 'success', detail: { ...query, returned: page.items.length } });
+          // The ids shown, so "who saw this patient" has an answer, not only the filters used.
+          await recordAudit(dataSource, { ...auditContext(req), action: 'search', entityType: 'study', outcome: 'success', detail: { ...query, returned: page.items.length, studyIds: page.items.map((s) => s.id) } });
           res.json(page);
         },
       ],
@@ -72,7 +73,16 @@ export function studyRoutes({ config, dataSource, storage }: { config: Config; d
       handlers: [
         async (req, res) => {
           const input = parseOrThrow(createStudySchema, req.body, 'The new study');
-          const id = await createStudy(dataSource, input, req.session.auth!.userId, auditContext(req));
+          let id: string;
+          try {
+            id = await createStudy(dataSource, input, req.session.auth!.userId, auditContext(req));
+          } catch (error) {
+            if (error instanceof PatientMismatchError) {
+              // Who tried which MRN against which differing fields: for the audit trail, not the answer.
+              await recordAudit(dataSource, { ...auditContext(req), action: 'create', entityType: 'study', outcome: 'failure', detail: { reason: 'patient-mismatch', mrn: error.mrn, differs: error.fields } });
+            }
+            throw error;
+          }
           res.status(201).location(`/api/studies/${id}`).json(await loadStudy(dataSource, id));
         },
       ],
@@ -115,6 +125,9 @@ export function studyRoutes({ config, dataSource, storage }: { config: Config; d
                 }),
               );
               return;
+            }
+            if (error instanceof PatientMismatchError) {
+              await recordAudit(dataSource, { ...auditContext(req), action: 'update', entityType: 'study', entityId: id, outcome: 'failure', detail: { reason: 'patient-mismatch', mrn: error.mrn, differs: error.fields } });
             }
             if (isUniqueViolation(error)) throw new HttpError(409, 'duplicate-row-id', 'Row id already used', 'A vessel or dose row id belongs to another study. Reload the study.');
             throw error;

@@ -125,9 +125,16 @@ const exactlySame = (row: PatientRow, p: StudySections['patient']) => demographi
 
 /** The MRN belongs to someone else: the study is not moved to them, and nobody is renamed. */
 export class PatientMismatchError extends HttpError {
-  constructor(mrn: string, fields: string[]) {
-    super(409, 'patient-mismatch', 'The MRN belongs to another patient', `MRN ${mrn} is already on file with a different ${fields.join(', ')}.`, [
-      { pointer: '/patient/mrn', detail: `MRN ${mrn} is on file for another patient (different ${fields.map(label).join(', ')}). Check the MRN.` },
+  /**
+   * Says only that the MRN belongs to someone else: naming what differs (the birth date, the given
+   * name) would let anyone with write access probe another patient's demographics one field at a time.
+   */
+  constructor(
+    public readonly mrn: string,
+    public readonly fields: string[],
+  ) {
+    super(409, 'patient-mismatch', 'The MRN belongs to another patient', 'This MRN is on file for another patient. Check the MRN and the name.', [
+      { pointer: '/patient/mrn', detail: 'This MRN is on file for another patient. Check the MRN.' },
     ]);
   }
 }
