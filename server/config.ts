@@ -74,6 +74,7 @@ const configSchema = z
       }),
     ATTACHMENT_DIR: z.string().min(1).default('storage/attachments'),
     ATTACHMENT_MAX_MB: z.coerce.number().min(0.01).max(500).default(20),
+    ATTACHMENT_MAX_CONCURRENT: z.coerce.number().int().min(1).max(100).default(4),
     LOG_LEVEL: z.enum(logLevels).optional(),
   })
   .superRefine((value, ctx) => {
@@ -100,7 +101,7 @@ export interface Config {
   signInRateLimit: number;
   /** Origins allowed to send state-changing requests: the public URL's, plus any listed. */
   allowedOrigins: string[];
-  attachments: { dir: string; maxBytes: number };
+  attachments: { dir: string; maxBytes: number; maxConcurrentUploads?: number };
   /**
    * The reverse proxies whose X-Forwarded-For is believed (Express's `trust proxy`); none by default,
    * so a client cannot choose the address that is audited and rate-limited.
@@ -148,7 +149,7 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
     session: { idleMinutes: v.SESSION_IDLE_MINUTES, maxHours: v.SESSION_MAX_HOURS, secure: publicUrl.startsWith('https:') },
     signInRateLimit: v.SIGN_IN_RATE_LIMIT,
     allowedOrigins: [new URL(publicUrl).origin, ...v.ALLOWED_ORIGINS.split(',').map((o) => o.trim()).filter(Boolean)],
-    attachments: { dir: v.ATTACHMENT_DIR, maxBytes: Math.round(v.ATTACHMENT_MAX_MB * 1024 * 1024) },
+    attachments: { dir: v.ATTACHMENT_DIR, maxBytes: Math.round(v.ATTACHMENT_MAX_MB * 1024 * 1024), maxConcurrentUploads: v.ATTACHMENT_MAX_CONCURRENT },
     trustProxy: v.TRUST_PROXY.split(',').map((p) => p.trim()).filter(Boolean),
     logLevel: v.LOG_LEVEL ?? defaultLevel({ NODE_ENV: v.NODE_ENV }),
   };
