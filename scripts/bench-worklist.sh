@@ -8,6 +8,7 @@ cd "$ROOT"
 PG_PORT=${ISOBAR_TEST_PG_PORT:-54471}
 export NODE_ENV=test
 export DATABASE_URL=postgres://isobar@127.0.0.1:$PG_PORT/isobar_bench
+export MIGRATION_DATABASE_URL=postgres://isobar_owner@127.0.0.1:$PG_PORT/isobar_bench
 export ATTACHMENT_DIR="$DATA_DIR/bench-attachments"
 
 cleanup() {

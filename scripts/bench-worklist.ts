@@ -4,6 +4,7 @@
 import type { DataSource } from 'typeorm';
 import { worklistQuerySchema, type WorklistPage } from '../shared/study/worklist';
 import { createDataSource } from '../server/db/data-source';
+import { prepareDatabase } from '../server/cli/prepare-database';
 import { listStudies } from '../server/studies/worklist';
 import { signIn, startStack } from '../tests/support/stack';
 
@@ -104,9 +105,9 @@ function summary(times: number[]): { p50: number; p95: number; max: number } {
 }
 
 async function main(): Promise<void> {
+  await prepareDatabase(process.env.MIGRATION_DATABASE_URL!, databaseUrl!);
   const ds = createDataSource(databaseUrl!, 10);
   await ds.initialize();
-  await ds.runMigrations({ transaction: 'each' });
   const settings = await ds.query(`SELECT current_setting('server_version') AS v, current_setting('fsync') AS fsync, current_setting('synchronous_commit') AS sc, current_setting('shared_buffers') AS sb`);
   console.log(`PostgreSQL ${settings[0].v}, fsync ${settings[0].fsync}, synchronous_commit ${settings[0].sc}, shared_buffers ${settings[0].sb}`);
   await seed(ds);

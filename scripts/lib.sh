@@ -106,18 +106,33 @@ psql_admin() { # PORT SQL
   "$PG_BIN/psql" -h 127.0.0.1 -p "$1" -U postgres -d postgres -v ON_ERROR_STOP=1 -qtAc "$2"
 }
 
-# ensure_database PORT NAME [fresh]: the `isobar` role owns the database; `fresh` drops it first.
+# Two roles: `isobar_owner` owns the database and its schema and runs the migrations;
+# `isobar` is the server's role, which may only read and write rows (the privileges are granted
+# by the owner after each migration run: server/db/privileges.ts).
+ensure_roles() {
+  local port=$1 role
+  for role in isobar_owner isobar; do
+    if [[ -z $(psql_admin "$port" "SELECT 1 FROM pg_roles WHERE rolname = '$role'") ]]; then
+      psql_admin "$port" "CREATE ROLE $role LOGIN NOSUPERUSER NOCREATEDB NOCREATEROLE"
+    fi
+  done
+}
+
+# ensure_database PORT NAME [fresh]: `isobar_owner` owns the database; `fresh` drops it first.
+# A database from before the split (owned by `isobar`) is handed over to the owner role.
 ensure_database() {
   local port=$1 name=$2 fresh=${3:-}
-  if [[ -z $(psql_admin "$port" "SELECT 1 FROM pg_roles WHERE rolname = 'isobar'") ]]; then
-    psql_admin "$port" "CREATE ROLE isobar LOGIN"
-  fi
+  ensure_roles "$port"
   if [[ $fresh == fresh ]]; then
     psql_admin "$port" "DROP DATABASE IF EXISTS $name WITH (FORCE)"
   fi
   if [[ -z $(psql_admin "$port" "SELECT 1 FROM pg_database WHERE datname = '$name'") ]]; then
-    psql_admin "$port" "CREATE DATABASE $name OWNER isobar"
+    psql_admin "$port" "CREATE DATABASE $name OWNER isobar_owner"
     log "database $name created"
+  elif [[ $(psql_admin "$port" "SELECT pg_get_userbyid(datdba) FROM pg_database WHERE datname = '$name'") != isobar_owner ]]; then
+    log "handing database $name over to the owner role"
+    "$PG_BIN/psql" -h 127.0.0.1 -p "$port" -U postgres -d "$name" -v ON_ERROR_STOP=1 -qtAc \
+      "ALTER DATABASE $name OWNER TO isobar_owner; REASSIGN OWNED BY isobar TO isobar_owner;"
   fi
 }
 

@@ -8,6 +8,7 @@ PG_PORT=${ISOBAR_PG_PORT:-54470}
 export PORT=${PORT:-8470}
 export HOST=${HOST:-127.0.0.1}
 export DATABASE_URL=${DATABASE_URL:-postgres://isobar@127.0.0.1:$PG_PORT/isobar}
+export MIGRATION_DATABASE_URL=${MIGRATION_DATABASE_URL:-postgres://isobar_owner@127.0.0.1:$PG_PORT/isobar}
 
 export OIDC_ISSUER=${OIDC_ISSUER:-http://127.0.0.1:8471}
 

@@ -6,6 +6,7 @@ cd "$ROOT"
 PG_PORT=${ISOBAR_TEST_PG_PORT:-54471}
 export NODE_ENV=test
 export DATABASE_URL=postgres://isobar@127.0.0.1:$PG_PORT/isobar_test
+export MIGRATION_DATABASE_URL=postgres://isobar_owner@127.0.0.1:$PG_PORT/isobar_test
 export ATTACHMENT_DIR="$DATA_DIR/test-attachments"
 
 # The test cluster holds nothing worth keeping: one that had to live outside the project is removed.

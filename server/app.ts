@@ -5,6 +5,7 @@ import helmet from 'helmet';
 import type { DataSource } from 'typeorm';
 import type { Config } from './config';
 import { apiNotFound, problemHandler } from './http/problem';
+import { refuseImpossibleValues } from './http/input-safety';
 import { routerFrom, type ApiRoute } from './http/routes';
 import { identityProvider, type IdentityProvider } from './auth/oidc';
 import { sessionMiddleware } from './auth/session';
@@ -17,11 +18,15 @@ import { settingsRoutes } from './routes/settings';
 import { reportRoutes } from './routes/reports';
 import { deliveryRoutes } from './routes/delivery';
 import { diskStorage, type AttachmentStorage } from './attachments/storage';
+import { createLogger, requestLogger, type Logger } from './log';
 
 export interface AppDeps {
   config: Config;
   dataSource: DataSource;
-  log?: (message: string, error?: unknown) => void;
+  /** Structured logger (pino); defaults to one at the configured level on stdout. */
+  logger?: Logger;
+  /** Where unexpected errors go; defaults to the logger. */
+  log?: (message: string, error?: unknown, fields?: Record<string, unknown>) => void;
   /** The identity provider; defaults to the one in the config (tests may pass their own). */
   idp?: IdentityProvider;
   /** Where attachments are kept; defaults to the folder in the config. */
@@ -48,13 +53,16 @@ export function apiRoutes(deps: Required<Pick<AppDeps, 'config' | 'dataSource' |
 export function createApp({
   config,
   dataSource,
-  log = console.error,
+  logger = createLogger(config.logLevel),
+  log = (message, error, fields) => logger.error({ ...fields, err: error }, message),
   idp = identityProvider(config.oidc),
   storage = diskStorage(path.resolve(config.attachments.dir)),
 }: AppDeps): Express {
   const app = express();
   app.disable('x-powered-by');
-  app.set('trust proxy', 'loopback');
+  app.use(requestLogger(logger));
+  // Forwarded addresses only from a configured proxy: otherwise anyone could set X-Forwarded-For.
+  app.set('trust proxy', config.trustProxy.length ? config.trustProxy : false);
 
   app.use(
     helmet({
@@ -81,7 +89,10 @@ export function createApp({
   });
   api.use(requireSameOrigin(config));
   api.use(express.json({ limit: config.jsonBodyLimit }));
-  api.use(sessionMiddleware(config, dataSource));
+  api.use(refuseImpossibleValues);
+  const sessions = sessionMiddleware(config, dataSource, logger);
+  // Health needs no session, so it answers "database down" itself rather than the session store's error.
+  api.use((req, res, next) => (req.path === '/health' ? next() : sessions(req, res, next)));
   api.use(enforceSessionLimit(config));
   api.use(routerFrom(apiRoutes({ config, dataSource, idp, storage }), dataSource));
   api.use(apiNotFound);

@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { isRole, type Role } from '../shared/auth/permissions';
+import { defaultLevel, logLevels, type LogLevel } from './log';
 
 /**
  * Every setting the server reads, with a working default for local use.
@@ -29,6 +30,10 @@ const configSchema = z
       .string()
       .regex(/^postgres(ql)?:\/\//, 'must be a postgres:// URL')
       .default('postgres://isobar@127.0.0.1:54470/isobar'),
+    MIGRATION_DATABASE_URL: z
+      .string()
+      .regex(/^postgres(ql)?:\/\//, 'must be a postgres:// URL')
+      .default('postgres://isobar_owner@127.0.0.1:54470/isobar'),
     DATABASE_POOL_SIZE: z.coerce.number().int().min(1).max(100).default(10),
     SESSION_SECRET: z.string().min(32, 'must be at least 32 characters').default('local-development-secret-change-me-0123456789'),
     WEB_DIST: z.string().min(1).default('dist'),
@@ -61,6 +66,12 @@ const configSchema = z
     SESSION_MAX_HOURS: z.coerce.number().min(0.1).max(72).default(12),
     SIGN_IN_RATE_LIMIT: z.coerce.number().int().min(1).max(10_000).default(30),
     ALLOWED_ORIGINS: z.string().default(''),
+    TRUST_PROXY: z
+      .string()
+      .default('')
+      .refine((v) => v.split(',').every((p) => /^(loopback|linklocal|uniquelocal|[0-9a-fA-F:.]+(\/\d{1,3})?)$/.test(p.trim())) || v === '', {
+        message: 'must be empty, or addresses/CIDR ranges (or loopback, linklocal, uniquelocal), comma-separated',
+      }),
     ATTACHMENT_DIR: z.string().min(1).default('storage/attachments'),
     ATTACHMENT_MAX_MB: z.coerce.number().min(0.01).max(500).default(20),
     EHR_FHIR_URL: z.url().default('http://127.0.0.1:8472/fhir'),
@@ -82,6 +93,8 @@ const configSchema = z
     MAIL_FROM: z.string().trim().min(3).default('Isobar reports <isobar@localhost>'),
     FAKE_SMTP_HTTP_PORT: port.default(8426),
     JOB_WORKER: z.enum(['on', 'off']).default('on'),
+    ATTACHMENT_MAX_CONCURRENT: z.coerce.number().int().min(1).max(100).default(4),
+    LOG_LEVEL: z.enum(logLevels).optional(),
   })
   .superRefine((value, ctx) => {
     if (value.NODE_ENV === 'production' && value.SESSION_SECRET.startsWith('local-development-secret')) {
@@ -94,7 +107,10 @@ export interface Config {
   host: string;
   port: number;
   publicUrl: string;
+  /** The server's role: rows only (see server/db/privileges.ts). */
   databaseUrl: string;
+  /** The owner role: runs migrations (npm start and npm test do, before the server starts). */
+  migrationDatabaseUrl: string;
   databasePoolSize: number;
   sessionSecret: string;
   webDist: string;
@@ -104,7 +120,6 @@ export interface Config {
   signInRateLimit: number;
   /** Origins allowed to send state-changing requests: the public URL's, plus any listed. */
   allowedOrigins: string[];
-  attachments: { dir: string; maxBytes: number };
   /** The EHR's FHIR endpoint and Isobar's client-credentials client at the identity provider. */
   ehr: {
     fhirBaseUrl: string;
@@ -127,6 +142,14 @@ export interface Config {
   mail: { host: string; port: number; from: string; fakeHttpPort: number };
   /** Whether this server process runs the background job worker. */
   jobWorker: boolean;
+  attachments: { dir: string; maxBytes: number; maxConcurrentUploads?: number };
+  /**
+   * The reverse proxies whose X-Forwarded-For is believed (Express's `trust proxy`); none by default,
+   * so a client cannot choose the address that is audited and rate-limited.
+   */
+  trustProxy: string[];
+  /** pino level; `silent` under test unless LOG_LEVEL says otherwise. */
+  logLevel: LogLevel;
 }
 
 export class ConfigError extends Error {
@@ -151,6 +174,7 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
     port: v.PORT,
     publicUrl,
     databaseUrl: v.DATABASE_URL,
+    migrationDatabaseUrl: v.MIGRATION_DATABASE_URL,
     databasePoolSize: v.DATABASE_POOL_SIZE,
     sessionSecret: v.SESSION_SECRET,
     webDist: v.WEB_DIST,
@@ -166,7 +190,6 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
     session: { idleMinutes: v.SESSION_IDLE_MINUTES, maxHours: v.SESSION_MAX_HOURS, secure: publicUrl.startsWith('https:') },
     signInRateLimit: v.SIGN_IN_RATE_LIMIT,
     allowedOrigins: [new URL(publicUrl).origin, ...v.ALLOWED_ORIGINS.split(',').map((o) => o.trim()).filter(Boolean)],
-    attachments: { dir: v.ATTACHMENT_DIR, maxBytes: Math.round(v.ATTACHMENT_MAX_MB * 1024 * 1024) },
     ehr: {
       fhirBaseUrl: v.EHR_FHIR_URL.replace(/\/$/, ''),
       clientId: v.EHR_CLIENT_ID,
@@ -181,5 +204,8 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
     signReauthMinutes: v.SIGN_REAUTH_MINUTES,
     mail: { host: v.SMTP_HOST, port: v.SMTP_PORT, from: v.MAIL_FROM, fakeHttpPort: v.FAKE_SMTP_HTTP_PORT },
     jobWorker: v.JOB_WORKER === 'on',
+    attachments: { dir: v.ATTACHMENT_DIR, maxBytes: Math.round(v.ATTACHMENT_MAX_MB * 1024 * 1024), maxConcurrentUploads: v.ATTACHMENT_MAX_CONCURRENT },
+    trustProxy: v.TRUST_PROXY.split(',').map((p) => p.trim()).filter(Boolean),
+    logLevel: v.LOG_LEVEL ?? defaultLevel({ NODE_ENV: v.NODE_ENV }),
   };
 }

@@ -1,3 +1,4 @@
+import fs from 'node:fs/promises';
 import { fileTypeFromBuffer } from 'file-type';
 
 /** What the lab may attach: console printouts and images, and exported traces. */
@@ -14,6 +15,13 @@ export async function detectMediaType(bytes: Buffer): Promise<AcceptedMediaType 
     return (acceptedMediaTypes as readonly string[]).includes(detected.mime) ? (detected.mime as AcceptedMediaType) : null;
   }
   return looksLikeCsv(bytes) ? 'text/csv' : null;
+}
+
+/** The same judgement for a file on disk: its first bytes, and the whole text only for a CSV candidate. */
+export async function detectMediaTypeOfFile(file: string, head: Buffer): Promise<AcceptedMediaType | null> {
+  const detected = await fileTypeFromBuffer(head);
+  if (detected) return (acceptedMediaTypes as readonly string[]).includes(detected.mime) ? (detected.mime as AcceptedMediaType) : null;
+  return looksLikeCsv(await fs.readFile(file)) ? 'text/csv' : null;
 }
 
 /**
@@ -57,17 +65,41 @@ const extensionsOf: Record<AcceptedMediaType, string[]> = {
   'text/csv': ['csv', 'txt', 'tsv'],
 };
 
-/** True when the name claims a known type other than the content's (e.g. text renamed to .pdf). */
+const extensionOf = (fileName: string) => (/\.([^.]+)$/.exec(fileName)?.[1] ?? '').toLowerCase();
+
+/** True unless the name's extension is one of the content's (a PNG named .html or .exe disagrees). */
 export function nameDisagreesWith(fileName: string, mediaType: AcceptedMediaType): boolean {
-  const ext = fileName.includes('.') ? fileName.split('.').pop()!.toLowerCase() : '';
-  const known = Object.values(extensionsOf).flat();
-  return known.includes(ext) && !extensionsOf[mediaType].includes(ext);
+  const ext = extensionOf(fileName);
+  return ext !== '' && !extensionsOf[mediaType].includes(ext);
 }
 
-/** A file name safe to store and to send back in Content-Disposition. */
+/** The name with the content's extension added when it has none. */
+export function withExtension(fileName: string, mediaType: AcceptedMediaType): string {
+  return extensionOf(fileName) ? fileName : `${fileName}.${extensionsOf[mediaType][0]}`;
+}
+
+/**
+ * multipart file names arrive decoded as Latin-1 (busboy's default for a plain `filename=`), though
+ * browsers send UTF-8 bytes: decode them again as UTF-8 when they are valid UTF-8.
+ */
+export function utf8FileName(name: string): string {
+  if (!/^[\u0000-\u00FF]*$/.test(name) || !/[\u0080-\u00FF]/.test(name)) return name;
+  const bytes = Buffer.from(name, 'latin1');
+  try {
+    return new TextDecoder('utf-8', { fatal: true }).decode(bytes);
+  } catch {
+    return name;
+  }
+}
+
+/**
+ * A file name safe to store and to send back in Content-Disposition: UTF-8, NFC, no folder part,
+ * no control characters (C0, DEL, C1), no direction overrides or isolates (which can make
+ * "exe.pdf" read as "fdp.exe"; Unicode TR #36 §2.1), no quotes.
+ */
 export function cleanFileName(name: string): string {
-  const base = name.split(/[\\/]/).pop() ?? 'attachment';
+  const base = utf8FileName(name).normalize('NFC').split(/[\\/]/).pop() ?? 'attachment';
   // eslint-disable-next-line no-control-regex
-  const cleaned = base.replace(/[\u0000-\u001F\u007F"]/g, '').trim().slice(0, 200);
+  const cleaned = base.replace(/[\u0000-\u001F\u007F-\u009F"\u061C\u200E\u200F\u202A-\u202E\u2066-\u2069]/g, '').trim().slice(0, 200);
   return cleaned || 'attachment';
 }

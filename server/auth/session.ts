@@ -5,6 +5,7 @@ import type { RequestHandler } from 'express';
 import type { DataSource } from 'typeorm';
 import type { Config } from '../config';
 import type { Role } from '../../shared/auth/permissions';
+import { defaultLogger, safeError, type Logger } from '../log';
 
 /** What a signed-in session holds. */
 export interface SessionAuth {
@@ -45,9 +46,50 @@ type PgStoreClass = ReturnType<typeof connectPgSimple>;
  * Ending a session leaves its id in `http_session_ended` (in the same statement as the delete), and
  * a save never writes an id found there, so a late save cannot bring an ended session back.
  */
-function endedSessionAwareStore(Base: PgStoreClass, pool: Pool, maxAgeMs: number) {
+function endedSessionAwareStore(Base: PgStoreClass, pool: Pool, maxAgeMs: number, touchStepMs: number) {
+  /** The expiry stored for a session id when a request read it, until that request touches it. */
+  const storedExpiry = new Map<string, number>();
+  const remember = (sid: string, expiresMs: number) => {
+    if (storedExpiry.size > 100_000) storedExpiry.clear(); // requests that never finished: forget them all
+    storedExpiry.set(sid, expiresMs);
+  };
   return class EndedSessionAwareStore extends Base {
+    override get(sid: string, fn: (err: unknown, sess?: session.SessionData | null) => void): void {
+      pool
+        .query(`SELECT sess, extract(epoch FROM expire) * 1000 AS expire_ms FROM http_session WHERE sid = $1 AND expire >= now()`, [sid])
+        .then(
+          ({ rows: [row] }) => {
+            if (!row) return fn(null, null);
+            let sess: session.SessionData;
+            try {
+              sess = typeof row.sess === 'string' ? JSON.parse(row.sess) : row.sess;
+            } catch {
+              return fn(null, null); // unreadable: treated as no session
+            }
+            remember(sid, Number(row.expire_ms));
+            fn(null, sess);
+          },
+          (err) => fn(err),
+        );
+    }
+
+    /**
+     * Each request moves the idle expiry forward. Writing that on every request costs a row update
+     * per read; instead it is written only once it moves by more than `touchStepMs` (a tenth of the
+     * idle limit), so an idle session ends between 90% and 100% of the limit after its last request.
+     */
+    override touch(sid: string, sess: session.SessionData, fn?: Callback): void {
+      const known = storedExpiry.get(sid);
+      storedExpiry.delete(sid);
+      const next = sess.cookie?.expires ? new Date(sess.cookie.expires).getTime() : Date.now() + maxAgeMs;
+      if (known !== undefined && next - known < touchStepMs) return fn?.();
+      pool
+        .query(`UPDATE http_session SET expire = to_timestamp($1) WHERE sid = $2`, [next / 1000, sid])
+        .then(() => fn?.(), (err) => fn?.(err));
+    }
+
     override set(sid: string, sess: session.SessionData, fn?: Callback): void {
+      storedExpiry.delete(sid);
       const expires = sess.cookie?.expires ? new Date(sess.cookie.expires).getTime() : Date.now() + maxAgeMs;
       pool
         .query(
@@ -60,6 +102,7 @@ function endedSessionAwareStore(Base: PgStoreClass, pool: Pool, maxAgeMs: number
     }
 
     override destroy(sid: string, fn?: Callback): void {
+      storedExpiry.delete(sid);
       pool
         .query(
           `WITH gone AS (DELETE FROM http_session WHERE sid = $1)
@@ -93,23 +136,41 @@ function poolOf(dataSource: DataSource): Pool {
  * Sessions in PostgreSQL: HttpOnly, SameSite=Lax cookie (Lax, not Strict, so the provider's redirect
  * back to the callback carries it), Secure over HTTPS, idle timeout renewed on each request.
  */
-export function createSessionStore(config: Config, dataSource: DataSource): session.Store {
+export function createSessionStore(config: Config, dataSource: DataSource, logger: Logger = defaultLogger()): session.Store {
   const pool = poolOf(dataSource);
-  const Store = endedSessionAwareStore(connectPgSimple(session), pool, config.session.maxHours * 3_600_000);
+  const Store = endedSessionAwareStore(connectPgSimple(session), pool, config.session.maxHours * 3_600_000, (config.session.idleMinutes * 60_000) / 10);
   return new Store({
     pool,
     tableName: 'http_session',
     createTableIfMissing: false,
+    // Its default prints the error with console.error; log it as data without values instead.
+    errorLog: (...args: unknown[]) => logger.warn({ err: safeError(args.find((a) => a instanceof Error)) }, 'session store query failed'),
     pruneSessionInterval: config.env === 'test' ? false : 15 * 60,
   });
 }
 
-export function sessionMiddleware(config: Config, dataSource: DataSource): RequestHandler {
+/**
+ * Sessions, kept through a database outage: when the store cannot be read, express-session passes
+ * the error on with no session loaded, and would then "destroy" the id at the end of the request (it
+ * sees a session id without a session) — ending a valid session for good once the database is back.
+ * Forgetting the id for this request only keeps the stored session as it was; the error is answered
+ * (503 when the database is unreachable) and the next request reads the session again.
+ */
+export function sessionMiddleware(config: Config, dataSource: DataSource, logger?: Logger): RequestHandler {
+  const inner = expressSession(config, dataSource, logger);
+  return (req, res, next) =>
+    inner(req, res, (err?: unknown) => {
+      if (err && !req.session) (req as { sessionID?: string }).sessionID = undefined;
+      next(err);
+    });
+}
+
+function expressSession(config: Config, dataSource: DataSource, logger?: Logger): RequestHandler {
   const idleMs = config.session.idleMinutes * 60_000;
   return session({
     name: sessionCookieName,
     secret: config.sessionSecret,
-    store: createSessionStore(config, dataSource),
+    store: createSessionStore(config, dataSource, logger),
     resave: false,
     saveUninitialized: false,
     rolling: true,

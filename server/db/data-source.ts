@@ -1,5 +1,6 @@
 import 'reflect-metadata';
 import { DataSource } from 'typeorm';
+import { defaultLogger, SafeQueryLogger, type Logger } from '../log';
 import { User } from './entities/user.entity';
 import { Patient } from './entities/patient.entity';
 import { Study } from './entities/study.entity';
@@ -15,11 +16,24 @@ import { ReportVersion } from './entities/report-version.entity';
 import { ReportDelivery } from './entities/report-delivery.entity';
 import { ReportDelivery1765324800000 } from './migrations/1765324800000-report-delivery';
 
+import { SignedStudyGuard1765131313000 } from './migrations/1765131313000-signed-study-guard';
+
 /** Entities and migrations are listed, not globbed, so tsx, vitest and a bundler all see the same set. */
 export const entities = [User, Patient, Study, VesselAssessment, ThermodilutionInjection, AcetylcholineDose, Attachment, ThresholdSet, ReportVersion, ReportDelivery];
-export const migrations = [InitialSchema1764633600000, SessionsAndAudit1764720000000, StudyRecord1764806400000, PatientNameSearch1764892800000, EndedSessions1764979200000, StudyRecordDetails1765065600000, ReportVersions1765152000000, ReportDelivery1765324800000];
+export const migrations = [
+  InitialSchema1764633600000,
+  SessionsAndAudit1764720000000,
+  StudyRecord1764806400000,
+  PatientNameSearch1764892800000,
+  EndedSessions1764979200000,
+  StudyRecordDetails1765065600000,
+  SignedStudyGuard1765131313000,
+  ReportVersions1765152000000,
+  ReportDelivery1765324800000,
+];
 
-export function createDataSource(databaseUrl: string, poolSize = 10): DataSource {
+/** Failing queries are logged by their SQL text and SQLSTATE only (see server/log.ts). */
+export function createDataSource(databaseUrl: string, poolSize = 10, logger: Logger = defaultLogger()): DataSource {
   return new DataSource({
     type: 'postgres',
     url: databaseUrl,
@@ -28,7 +42,8 @@ export function createDataSource(databaseUrl: string, poolSize = 10): DataSource
     migrationsTableName: 'schema_migration',
     synchronize: false,
     migrationsRun: false,
-    logging: ['error'],
+    logging: ['error', 'warn'],
+    logger: new SafeQueryLogger(logger),
     extra: { max: poolSize, connectionTimeoutMillis: 3000 },
   });
 }

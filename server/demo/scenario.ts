@@ -56,6 +56,8 @@ export interface DemoStudy {
   vessels: DemoVessel[];
   vasoreactivity: { doses: DemoDose[]; nitrateReversal: boolean | null; reversalNitroglycerinMicrograms: number | null; reversalNitroglycerinAtMinute: number | null };
   findings: Findings;
+  /** For an amended study: what the addendum changed, and why. */
+  amendment?: { reason: string; details: Partial<Details> };
 }
 
 /** A vessel row: the shared empty vessel (ids are given when seeding) with the fields that were measured. */
@@ -300,7 +302,8 @@ export const demoStudies: DemoStudy[] = [
     indication: 'Exertional chest pain, normal non-invasive tests',
     clinicalQuestion: 'angina-no-obstruction',
     referring: referrers.castellane,
-    accessSite: 'right-femoral',
+    accessSite: 'right-radial',
+    amendment: { reason: 'Access site corrected: the procedure was done from the right femoral artery.', details: { accessSite: 'right-femoral' } },
     guideFrench: 6,
     patientFacts: { weightKg: 58, heightCm: 160, anginaPresent: true, anginaCharacter: 'stable' },
     setup: checklist(ivAdenosine, 4500, [70, 121, 68, 10], 'after-acetylcholine'),

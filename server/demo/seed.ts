@@ -1,8 +1,10 @@
 import type { DataSource } from 'typeorm';
 import type { Details } from '../../shared/study/schema';
 import { detailsColumns, findingsColumns, setupColumns, vasoreactivityColumns } from '../studies/columns';
-import { replaceDoses, replaceVessels } from '../studies/repository';
-import { demoOperatorSubject, demoPatients, demoRecorderSubject, demoStudies, demoUsers, type DemoStudy } from './scenario';
+import { replaceDoses, replaceVessels, writeSections } from '../studies/repository';
+import { changeStudyState } from '../reports/change-study-state';
+import { signStudy } from '../reports/sign-study';
+import { demoHospital, demoOperatorSubject, demoPatients, demoRecorderSubject, demoStudies, demoUsers, type DemoStudy } from './scenario';
 
 /** Section columns and their values, in the same order. */
 function columnValues<T>(columns: { field: keyof T; column: string }[], section: T): { names: string[]; values: unknown[] } {
@@ -14,7 +16,9 @@ function columnValues<T>(columns: { field: keyof T; column: string }[], section:
  * MRN, accession) and left alone when they already exist, so edits made in the demo survive.
  * A study gets its measurements only in the run that creates it, in the same transaction.
  */
-export async function seedDemo(dataSource: DataSource, issuer: string, now = new Date()): Promise<void> {
+export async function seedDemo(dataSource: DataSource, issuer: string, now = new Date(), hospital: { name: string; lab: string } | null = demoHospital): Promise<void> {
+  const toAdvance: { id: string; demo: DemoStudy }[] = [];
+  let physician: { id: string; name: string } | null = null;
   await dataSource.transaction(async (db) => {
     for (const u of demoUsers) {
       await db.query(
@@ -33,6 +37,7 @@ export async function seedDemo(dataSource: DataSource, issuer: string, now = new
     const userId = async (subject: string): Promise<string | null> =>
       (await db.query(`SELECT id FROM app_user WHERE issuer = $1 AND subject = $2`, [issuer, subject]))[0]?.id ?? null;
     const operatorId = await userId(demoOperatorSubject);
+    physician = operatorId ? { id: operatorId, name: demoUsers.find((u) => u.subject === demoOperatorSubject)!.displayName } : null;
     const recorderId = await userId(demoRecorderSubject);
 
     for (const s of demoStudies) {
@@ -60,7 +65,8 @@ export async function seedDemo(dataSource: DataSource, issuer: string, now = new
         columnValues(vasoreactivityColumns, { ...vaso, reversalNitroglycerinAt: reversalAt }),
       ];
       const names = sections.flatMap((x) => x.names);
-      const values = [s.accession, s.state, recorderId, started, s.mrn, ...sections.flatMap((x) => x.values)];
+      // Every demo study starts as a draft; later states are reached the way users reach them (below).
+      const values = [s.accession, 'draft', recorderId, started, s.mrn, ...sections.flatMap((x) => x.values)];
       // The record was opened shortly before the procedure began.
       const created = await db.query(
         `INSERT INTO study (accession, patient_id, state, created_by, created_at, ${names.join(', ')})
@@ -73,7 +79,26 @@ export async function seedDemo(dataSource: DataSource, issuer: string, now = new
       if (created.length === 1) {
         await replaceVessels(db, created[0].id, s.vessels.map((v) => ({ ...v, id: crypto.randomUUID() })));
         await replaceDoses(db, created[0].id, doses.map((d) => ({ ...d, id: crypto.randomUUID() })));
+        if (s.state !== 'draft') toAdvance.push({ id: created[0].id, demo: s });
       }
     }
   });
+  // Studies past the draft reach their state through the real hand-off and signing code, so signed
+  // ones have versions, PDFs and follow-up jobs like any other.
+  for (const { id, demo } of toAdvance) await advanceDemoStudy(dataSource, id, demo, physician!, hospital);
+}
+
+async function advanceDemoStudy(dataSource: DataSource, studyId: string, demo: DemoStudy, physician: { id: string; name: string }, hospital: { name: string; lab: string } | null): Promise<void> {
+  const audit = { actorUserId: physician.id, actorName: physician.name, actorRole: 'physician' as const, clientAddress: null };
+  const version = async () => (await dataSource.query(`SELECT version FROM study WHERE id = $1`, [studyId]))[0].version as number;
+  await changeStudyState(dataSource, { studyId, action: 'mark-ready', studyVersion: await version(), role: 'physician', audit });
+  if (demo.state === 'awaiting-signature') return;
+  const signer = { userId: physician.id, displayName: physician.name, role: 'physician' as const };
+  await signStudy(dataSource, { studyId, studyVersion: await version(), signer, hospital, audit });
+  if (demo.state !== 'amended' || !demo.amendment) return;
+  const opened = await changeStudyState(dataSource, { studyId, action: 'open-addendum', studyVersion: await version(), role: 'physician', audit });
+  await dataSource.transaction(async (manager) => {
+    await writeSections(manager, studyId, { details: { ...opened.details, ...demo.amendment!.details } }, { bumpVersion: true });
+  });
+  await signStudy(dataSource, { studyId, studyVersion: await version(), signer, hospital, audit, reason: demo.amendment.reason });
 }

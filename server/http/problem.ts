@@ -1,4 +1,5 @@
 import type { ErrorRequestHandler, RequestHandler } from 'express';
+import { isDatabaseUnavailable, retryAfterSeconds } from '../db/availability';
 
 /** One field-level problem, located by a JSON pointer into the request body (RFC 6901). */
 export interface FieldProblem {
@@ -45,13 +46,14 @@ export class NotFoundError extends HttpError {
   }
 }
 export class ServiceUnavailableError extends HttpError {
-  constructor(detail: string) {
+  constructor(detail: string, public readonly extensions: Record<string, unknown> = {}) {
     super(503, 'service-unavailable', 'Service unavailable', detail);
   }
 }
 
 export function toProblem(error: HttpError, instance?: string): Problem {
   return {
+    ...(error instanceof ServiceUnavailableError ? error.extensions : {}),
     type: PROBLEM_BASE + error.slug,
     title: error.title,
     status: error.status,
@@ -62,8 +64,38 @@ export function toProblem(error: HttpError, instance?: string): Problem {
   };
 }
 
+export class UnprocessableError extends HttpError {
+  constructor(detail: string, errors?: FieldProblem[]) {
+    super(422, 'unprocessable', 'A field cannot be accepted', detail, errors);
+  }
+}
+
+/** RFC 6901 JSON pointer for a path of keys. */
+export function pointerOf(path: readonly PropertyKey[]): string {
+  return path.map((p) => '/' + String(p).replaceAll('~', '~0').replaceAll('/', '~1')).join('');
+}
+
+type ErrorLike = { type?: string; status?: number; statusCode?: number; expose?: boolean; code?: string; name?: string; issues?: unknown; message?: string };
+
+/** A zod error (classic or core) thrown anywhere: the input broke a schema, not the server. */
+function fromZod(err: ErrorLike): HttpError | undefined {
+  if (err.name !== 'ZodError' || !Array.isArray(err.issues)) return undefined;
+  const errors = (err.issues as Array<{ path?: PropertyKey[]; message?: string }>).map((i) => ({ pointer: pointerOf(i.path ?? []), detail: i.message ?? 'Not a valid value.' }));
+  return new UnprocessableError(`The request has ${errors.length === 1 ? 'a field' : `${errors.length} fields`} to correct.`, errors);
+}
+
+/** zlib's codes for a stream that is not what its Content-Encoding says (gzip, deflate, br). */
+const isDecompressionFailure = (err: ErrorLike) => typeof err.code === 'string' && (/^Z_/.test(err.code) || /^ERR__/.test(err.code) || /BROTLI/.test(err.code));
+
+/**
+ * PostgreSQL data exceptions (SQLSTATE class 22: a value out of range, a byte sequence it cannot
+ * store, a malformed literal). Input checks refuse these first and name the field; this is the net
+ * under them, so a value the checks did not foresee is still a client error and not a crash.
+ */
+const isDataException = (err: ErrorLike) => typeof err.code === 'string' && /^22[0-9A-Z]{3}$/.test(err.code) && 'severity' in (err as object);
+
 /** Body-parser errors carry a `type`; map the ones a client can cause to a clear problem. */
-function fromBodyParser(err: { type?: string; status?: number }): HttpError | undefined {
+function fromBodyParser(err: ErrorLike): HttpError | undefined {
   switch (err.type) {
     case 'entity.parse.failed':
       return new BadRequestError('The request body is not valid JSON.');
@@ -73,8 +105,23 @@ function fromBodyParser(err: { type?: string; status?: number }): HttpError | un
     case 'charset.unsupported':
       return new HttpError(415, 'unsupported-encoding', 'Unsupported encoding', 'The request body uses an encoding this server does not accept.');
     default:
-      return undefined;
+      break;
   }
+  const status = err.status ?? err.statusCode;
+  if (status === 400 && isDecompressionFailure(err)) {
+    return new BadRequestError('The request body could not be decoded: it is not valid compressed data for its Content-Encoding.');
+  }
+  return undefined;
+}
+
+/**
+ * Any other error that says it is a client's (http-errors sets `expose` on 4xx): answer with its
+ * status and a generic text, never the message, which may quote the request.
+ */
+function fromClientError(err: ErrorLike): HttpError | undefined {
+  const status = err.status ?? err.statusCode;
+  if (typeof status !== 'number' || status < 400 || status > 499 || err.expose === false) return undefined;
+  return new HttpError(status, 'bad-request', 'The request could not be understood', 'The request could not be understood.');
 }
 
 export const apiNotFound: RequestHandler = (req, _res, next) => {
@@ -85,14 +132,30 @@ export const apiNotFound: RequestHandler = (req, _res, next) => {
  * The one error middleware: known errors become problem+json; anything else is logged
  * and answered with a generic 500 that reveals nothing of the server's internals.
  */
-export function problemHandler(log: (message: string, error: unknown) => void = console.error): ErrorRequestHandler {
+export function problemHandler(log: (message: string, error: unknown, fields?: Record<string, unknown>) => void = console.error): ErrorRequestHandler {
   return (err, req, res, next) => {
-    if (res.headersSent) return next(err);
-    let known: HttpError | undefined = err instanceof HttpError ? err : fromBodyParser(err ?? {});
+    if (res.headersSent) {
+      // A late error (e.g. the session store failing after the answer went out): the answer is
+      // complete, so keep the connection; only an unfinished answer has to be cut.
+      if (res.writableEnded) {
+        if (!isDatabaseUnavailable(err)) log('error after the response', err, { reqId: req.id, method: req.method, path: req.path });
+        return;
+      }
+      return next(err);
+    }
+    const e: ErrorLike = err ?? {};
+    let known: HttpError | undefined = err instanceof HttpError ? err : (fromZod(e) ?? fromBodyParser(e) ?? fromClientError(e));
+    if (!known && isDatabaseUnavailable(err)) {
+      known = new ServiceUnavailableError('The database is not answering. Try again in a few seconds.');
+    }
+    if (!known && isDataException(e)) {
+      known = new UnprocessableError('A value in the request cannot be stored (out of range or not valid text).');
+    }
     if (!known) {
-      log(`Unhandled error on ${req.method} ${req.originalUrl}`, err);
+      log('unhandled error', err, { reqId: req.id, method: req.method, path: req.path });
       known = new HttpError(500, 'internal', 'Internal server error', 'Something went wrong on the server. The error has been logged.');
     }
+    if (known.status === 503) res.set('Retry-After', String(retryAfterSeconds));
     res.status(known.status).type('application/problem+json').send(JSON.stringify(toProblem(known, req.originalUrl.split('?')[0])));
   };
 }

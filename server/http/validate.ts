@@ -1,10 +1,7 @@
 import type { z } from 'zod';
-import { BadRequestError, type FieldProblem } from './problem';
+import { BadRequestError, pointerOf, type FieldProblem } from './problem';
 
-/** RFC 6901 JSON pointer for a zod issue path. */
-export function pointerOf(path: PropertyKey[]): string {
-  return path.map((p) => '/' + String(p).replaceAll('~', '~0').replaceAll('/', '~1')).join('');
-}
+export { pointerOf };
 
 /** Parses at the edge with the shared schema; every issue comes back located by a JSON pointer. */
 export function parseOrThrow<S extends z.ZodType>(schema: S, value: unknown, what = 'The request'): z.output<S> {

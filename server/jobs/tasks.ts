@@ -1,8 +1,8 @@
-import type { TaskList } from 'graphile-worker';
 import type { DataSource } from 'typeorm';
 import type { Config } from '../config';
-import { sendReportNoticeTask } from '../mail/send-report-notice';
 import { deliveryTasks } from '../ehr/tasks';
+import { sendReportNoticeTask } from '../mail/send-report-notice';
+import type { TaskList } from './worker';
 
 /**
  * Every background task the worker runs, by the name it is queued under (see `jobNames`). A task

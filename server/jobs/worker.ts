@@ -1,28 +1,48 @@
-import { run, runMigrations, type Runner, type TaskList } from 'graphile-worker';
-import { workerLogger, type ServerLog } from './log-adapter';
+import { Logger as WorkerLogger, run, runMigrations, type Runner, type TaskList } from 'graphile-worker';
+import pg from 'pg';
+import { defaultLogger, safeError, type Logger } from '../log';
 
-/** Creates or updates the queue's own schema (graphile_worker). Run by the schema owner before the server starts. */
-export async function migrateJobQueue(connectionString: string): Promise<void> {
-  await runMigrations({ connectionString, logger: workerLogger() });
-}
+export type { TaskList };
 
-export interface WorkerOptions {
-  connectionString: string;
-  tasks: TaskList;
-  concurrency?: number;
-  /** Milliseconds between polls when LISTEN/NOTIFY misses a job. */
-  pollInterval?: number;
-  log?: ServerLog;
-}
-
-/** Starts the worker inside the server process; `stop()` on the returned runner drains it. */
-export async function startWorker(options: WorkerOptions): Promise<Runner> {
-  return run({
-    connectionString: options.connectionString,
-    concurrency: options.concurrency ?? 2,
-    pollInterval: options.pollInterval ?? 2000,
-    noHandleSignals: true,
-    taskList: options.tasks,
-    logger: workerLogger(options.log),
+/** graphile-worker's log lines through ours, as data (its messages carry no request text). */
+function workerLogger(logger: Logger): WorkerLogger {
+  return new WorkerLogger(() => (level, message, meta) => {
+    const fields = { component: 'jobs', ...(meta && typeof meta === 'object' && 'error' in meta ? { err: safeError((meta as { error: unknown }).error) } : {}) };
+    const method = level === 'error' ? 'error' : level === 'warning' ? 'warn' : 'debug';
+    logger[method](fields, message);
   });
+}
+
+/** Creates or updates the job queue's schema. Run by the owner role, before the server starts. */
+export async function migrateJobQueue(ownerUrl: string, logger: Logger = defaultLogger()): Promise<void> {
+  await runMigrations({ connectionString: ownerUrl, logger: workerLogger(logger) });
+}
+
+export interface WorkerHandle {
+  stop(): Promise<void>;
+}
+
+/**
+ * Works the queue with the server's role: tasks run with retries and exponential backoff. The
+ * schema must already be migrated (by the owner); the worker only reads its migration ledger.
+ */
+export async function startWorker(
+  taskList: TaskList,
+  { databaseUrl, logger = defaultLogger(), concurrency = 2, pollInterval = 1000 }: { databaseUrl: string; logger?: Logger; concurrency?: number; pollInterval?: number },
+): Promise<WorkerHandle> {
+  const pool = new pg.Pool({ connectionString: databaseUrl, max: concurrency + 2, connectionTimeoutMillis: 3000 });
+  pool.on('error', (error) => logger.warn({ err: safeError(error) }, 'job queue connection failed'));
+  let runner: Runner;
+  try {
+    runner = await run({ pgPool: pool, taskList, concurrency, pollInterval, noHandleSignals: true, logger: workerLogger(logger) });
+  } catch (error) {
+    await pool.end();
+    throw error;
+  }
+  return {
+    async stop() {
+      await runner.stop();
+      await pool.end();
+    },
+  };
 }

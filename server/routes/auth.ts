@@ -26,6 +26,8 @@ export function authRoutes(deps: { config: Config; dataSource: DataSource; idp: 
     limit: config.signInRateLimit,
     standardHeaders: 'draft-8',
     legacyHeaders: false,
+    // Without a configured proxy X-Forwarded-For is ignored on purpose; no need to warn about it.
+    validate: { xForwardedForHeader: false },
     handler: (_req, _res, next) =>
       next(new HttpError(429, 'too-many-sign-in-attempts', 'Too many sign-in attempts', 'Wait a minute, then try again.')),
   });
@@ -79,7 +81,8 @@ export function authRoutes(deps: { config: Config; dataSource: DataSource; idp: 
         async (req, res) => {
           const pending = req.session.pending;
           if (typeof req.query.error === 'string') {
-            await failSignIn(req, 'provider-error', { error: req.query.error });
+            // The provider's error text comes from the address bar: anyone can write it. Keep a fixed code.
+            await failSignIn(req, 'provider-error');
             res.redirect(303, '/sign-in?error=provider-refused');
             return;
           }
@@ -92,8 +95,9 @@ export function authRoutes(deps: { config: Config; dataSource: DataSource; idp: 
           let idToken: string | undefined;
           try {
             ({ claims, idToken } = await idp.exchange(new URL(req.originalUrl, config.publicUrl), pending));
-          } catch (error) {
-            await failSignIn(req, 'token-exchange-failed', { message: error instanceof Error ? error.message : String(error) });
+          } catch {
+            // The library's message may quote the provider's response; keep a fixed code only.
+            await failSignIn(req, 'token-exchange-failed');
             res.redirect(303, '/sign-in?error=failed');
             return;
           }

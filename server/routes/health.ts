@@ -14,7 +14,7 @@ export function healthRoutes({ dataSource }: { dataSource: DataSource }): ApiRou
       handlers: [
         async (_req, res) => {
           if (!(await databaseAnswers(dataSource))) {
-            throw new ServiceUnavailableError('The database is not answering.');
+            throw new ServiceUnavailableError('The database is not answering.', { database: 'down' });
           }
           res.json({ status: 'ok', database: 'up', time: new Date().toISOString() });
         },

@@ -18,7 +18,7 @@ export function recordRoutes({ dataSource }: { dataSource: DataSource }): ApiRou
           const rows: Record<string, never>[] = await dataSource.query(
             `${summarySelect} WHERE s.state IN ('signed', 'amended') ORDER BY s.procedure_ended_at ASC NULLS LAST, s.id LIMIT 100`,
           );
-          await recordAudit(dataSource, { ...auditContext(req), action: 'search', entityType: 'study', outcome: 'success', detail: { queue: 'coding', returned: rows.length } });
+          await recordAudit(dataSource, { ...auditContext(req), action: 'search', entityType: 'study', outcome: 'success', detail: { queue: 'coding', returned: rows.length, studyIds: rows.map((r) => r.id) } });
           res.json({ items: rows.map(toSummary) });
         },
       ],
@@ -35,7 +35,7 @@ export function recordRoutes({ dataSource }: { dataSource: DataSource }): ApiRou
             `${summarySelect} WHERE s.state IN ('draft', 'awaiting-signature') AND s.procedure_ended_at IS NOT NULL
              ORDER BY s.procedure_ended_at ASC, s.id LIMIT 200`,
           );
-          await recordAudit(dataSource, { ...auditContext(req), action: 'search', entityType: 'study', outcome: 'success', detail: { view: 'awaiting-signature', returned: rows.length } });
+          await recordAudit(dataSource, { ...auditContext(req), action: 'search', entityType: 'study', outcome: 'success', detail: { view: 'awaiting-signature', returned: rows.length, studyIds: rows.map((r) => r.id) } });
           res.json({
             targetHours: defaultSignatureTargetHours,
             items: rows.map((row) => ({ ...toSummary(row), ...waitingSince(row.procedure_ended_at as Date, now) })),
@@ -53,7 +53,7 @@ export function recordRoutes({ dataSource }: { dataSource: DataSource }): ApiRou
           const rows = await dataSource.query(
             `SELECT id, display_name, email, role, last_sign_in_at FROM app_user ORDER BY display_name, id`,
           );
-          await recordAudit(dataSource, { ...auditContext(req), action: 'search', entityType: 'user', outcome: 'success', detail: { returned: rows.length } });
+          await recordAudit(dataSource, { ...auditContext(req), action: 'search', entityType: 'user', outcome: 'success', detail: { returned: rows.length, userIds: rows.map((u: { id: string }) => u.id) } });
           res.json({
             items: rows.map((u: { id: string; display_name: string; email: string; role: string | null; last_sign_in_at: Date | null }) => ({
               id: u.id,

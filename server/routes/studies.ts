@@ -1,18 +1,19 @@
-import multer from 'multer';
-import type { Request, RequestHandler } from 'express';
+import type { Request } from 'express';
 import type { DataSource } from 'typeorm';
 import { analyzeStudy } from '../../shared/physiology';
 import { createStudySchema, patchStudySchema } from '../../shared/study/schema';
 import { toPhysiologyInput } from '../../shared/study/to-physiology';
 import { worklistQuerySchema } from '../../shared/study/worklist';
 import { auditContext, recordAudit } from '../audit/audit';
-import { cleanFileName, detectMediaType, nameDisagreesWith } from '../attachments/content-type';
+import { cleanFileName, detectMediaTypeOfFile, nameDisagreesWith, withExtension } from '../attachments/content-type';
+import { acceptUpload, headOf, type StreamedFile } from '../attachments/upload';
+import { neutraliseCsv } from '../../shared/csv/neutralise';
 import type { AttachmentStorage } from '../attachments/storage';
 import type { Config } from '../config';
 import { HttpError, NotFoundError } from '../http/problem';
 import type { ApiRoute } from '../http/routes';
 import { parseOrThrow } from '../http/validate';
-import { createStudy, loadStudy, lockEditableStudy, patchStudy, StaleVersionError } from '../studies/repository';
+import { createStudy, loadStudy, lockEditableStudy, patchStudy, PatientMismatchError, StaleVersionError } from '../studies/repository';
 import { listStudies } from '../studies/worklist';
 import { thresholdsInForce } from '../settings/thresholds';
 
@@ -27,20 +28,7 @@ const idOf = (req: Request) => {
 const isUniqueViolation = (e: unknown) => (e as { code?: string })?.code === '23505';
 
 export function studyRoutes({ config, dataSource, storage }: { config: Config; dataSource: DataSource; storage: AttachmentStorage }): ApiRoute[] {
-  const upload: RequestHandler = multer({
-    storage: multer.memoryStorage(),
-    limits: { fileSize: config.attachments.maxBytes, files: 1, fields: 5 },
-  }).single('file');
-
-  const acceptUpload: RequestHandler = (req, res, next) =>
-    upload(req, res, (err: unknown) => {
-      if (!err) return next();
-      const code = (err as { code?: string }).code;
-      if (code === 'LIMIT_FILE_SIZE') {
-        return next(new HttpError(413, 'file-too-large', 'File too large', `Attachments may be at most ${Math.round(config.attachments.maxBytes / 1048576)} MB.`));
-      }
-      next(new HttpError(400, 'bad-upload', 'The upload could not be read', 'Send one file in the form field "file".'));
-    });
+  const upload = acceptUpload(storage, config.attachments.maxBytes, config.attachments.maxConcurrentUploads ?? 4);
 
   /** A study read by the signed-in user, recorded in the audit trail; 404 when there is none. */
   const readStudy = async (req: Request, view?: string) => {
@@ -60,7 +48,8 @@ export function studyRoutes({ config, dataSource, storage }: { config: Config; d
         async (req, res) => {
           const query = parseOrThrow(worklistQuerySchema, req.query, 'The worklist query');
           const page = await listStudies(dataSource, query);
-          await recordAudit(dataSource, { ...auditContext(req), action: 'search', entityType: 'study', outcome: 'success', detail: { ...query, returned: page.items.length } });
+          // The ids shown, so "who saw this patient" has an answer, not only the filters used.
+          await recordAudit(dataSource, { ...auditContext(req), action: 'search', entityType: 'study', outcome: 'success', detail: { ...query, returned: page.items.length, studyIds: page.items.map((s) => s.id) } });
           res.json(page);
         },
       ],
@@ -73,7 +62,16 @@ export function studyRoutes({ config, dataSource, storage }: { config: Config; d
       handlers: [
         async (req, res) => {
           const input = parseOrThrow(createStudySchema, req.body, 'The new study');
-          const id = await createStudy(dataSource, input, req.session.auth!.userId, auditContext(req));
+          let id: string;
+          try {
+            id = await createStudy(dataSource, input, req.session.auth!.userId, auditContext(req));
+          } catch (error) {
+            if (error instanceof PatientMismatchError) {
+              // Who tried which MRN against which differing fields: for the audit trail, not the answer.
+              await recordAudit(dataSource, { ...auditContext(req), action: 'create', entityType: 'study', outcome: 'failure', detail: { reason: 'patient-mismatch', mrn: error.mrn, differs: error.fields } });
+            }
+            throw error;
+          }
           res.status(201).location(`/api/studies/${id}`).json(await loadStudy(dataSource, id));
         },
       ],
@@ -117,6 +115,9 @@ export function studyRoutes({ config, dataSource, storage }: { config: Config; d
               );
               return;
             }
+            if (error instanceof PatientMismatchError) {
+              await recordAudit(dataSource, { ...auditContext(req), action: 'update', entityType: 'study', entityId: id, outcome: 'failure', detail: { reason: 'patient-mismatch', mrn: error.mrn, differs: error.fields } });
+            }
             if (isUniqueViolation(error)) throw new HttpError(409, 'duplicate-row-id', 'Row id already used', 'A vessel or dose row id belongs to another study. Reload the study.');
             throw error;
           }
@@ -154,49 +155,58 @@ export function studyRoutes({ config, dataSource, storage }: { config: Config; d
       access: 'study:write',
       summary: 'Attach a console printout or export (PDF, PNG, JPEG, CSV; type checked from the content)',
       handlers: [
-        acceptUpload,
+        upload,
         async (req, res) => {
           const id = idOf(req);
-          const file = req.file;
-          if (!file || file.size === 0) throw new HttpError(400, 'no-file', 'No file', 'Choose a file to attach.');
-          const fileName = cleanFileName(file.originalname);
-          const mediaType = await detectMediaType(file.buffer);
-          const refused = !mediaType
-            ? `"${fileName}" is not a PDF, PNG, JPEG or CSV file (judged from its content, not its name).`
-            : nameDisagreesWith(fileName, mediaType)
-              ? `"${fileName}" is named as another kind of file than its content (${mediaType}). Rename it or attach the right file.`
-              : null;
-          if (refused || !mediaType) {
-            await recordAudit(dataSource, { ...auditContext(req), action: 'create', entityType: 'attachment', outcome: 'failure', detail: { studyId: id, fileName, reason: 'unsupported-type', detected: mediaType } });
-            throw new HttpError(415, 'unsupported-file-type', 'File type not accepted', refused ?? undefined);
-          }
-          const stored = await storage.put(file.buffer);
-          let saved: { id: string; uploaded_at: Date };
+          const file = req.file as unknown as (StreamedFile & { originalname: string }) | undefined;
+          if (!file) throw new HttpError(400, 'no-file', 'No file', 'Choose a file to attach.');
+          // From here on the incoming file is ours to keep or to remove.
+          let adopted = false;
           try {
-            saved = await dataSource.transaction(async (db) => {
-              await lockEditableStudy(db, id);
-              const [row] = await db.query(
-                `INSERT INTO attachment (study_id, file_name, media_type, size_bytes, sha256, storage_key, uploaded_by)
-                 VALUES ($1, $2, $3, $4, $5, $6, $7) RETURNING id, uploaded_at`,
-                [id, fileName, mediaType, file.size, stored.sha256, stored.key, req.session.auth!.userId],
-              );
-              await recordAudit(db, { ...auditContext(req), action: 'create', entityType: 'attachment', entityId: row.id, outcome: 'success', detail: { studyId: id, fileName, sha256: stored.sha256 } });
-              return row as { id: string; uploaded_at: Date };
+            if (file.size === 0) throw new HttpError(400, 'no-file', 'No file', 'Choose a file to attach.');
+            const given = cleanFileName(file.originalname);
+            const mediaType = await detectMediaTypeOfFile(file.path, await headOf(file.path));
+            const refused = !mediaType
+              ? `"${given}" is not a PDF, PNG, JPEG or CSV file (judged from its content, not its name).`
+              : nameDisagreesWith(given, mediaType)
+                ? `"${given}" is named as another kind of file than its content (${mediaType}). Rename it or attach the right file.`
+                : null;
+            if (refused || !mediaType) {
+              await recordAudit(dataSource, { ...auditContext(req), action: 'create', entityType: 'attachment', outcome: 'failure', detail: { studyId: id, fileName: given, reason: 'unsupported-type', detected: mediaType } });
+              throw new HttpError(415, 'unsupported-file-type', 'File type not accepted', refused ?? undefined);
+            }
+            const fileName = withExtension(given, mediaType);
+            const stored = await storage.adopt(file.path);
+            adopted = true;
+            let saved: { id: string; uploaded_at: Date };
+            try {
+              saved = await dataSource.transaction(async (db) => {
+                await lockEditableStudy(db, id);
+                const [row] = await db.query(
+                  `INSERT INTO attachment (study_id, file_name, media_type, size_bytes, sha256, storage_key, uploaded_by)
+                   VALUES ($1, $2, $3, $4, $5, $6, $7) RETURNING id, uploaded_at`,
+                  [id, fileName, mediaType, file.size, file.sha256, stored.key, req.session.auth!.userId],
+                );
+                await recordAudit(db, { ...auditContext(req), action: 'create', entityType: 'attachment', entityId: row.id, outcome: 'success', detail: { studyId: id, fileName, sha256: file.sha256 } });
+                return row as { id: string; uploaded_at: Date };
+              });
+            } catch (error) {
+              // Nothing refers to the bytes when the row was not written.
+              await storage.delete(stored.key).catch(() => undefined);
+              throw error;
+            }
+            res.status(201).json({
+              id: saved.id,
+              fileName,
+              mediaType,
+              sizeBytes: file.size,
+              sha256: file.sha256,
+              uploadedAt: saved.uploaded_at.toISOString(),
+              uploadedBy: req.session.auth!.displayName,
             });
-          } catch (error) {
-            // Nothing refers to the bytes when the row was not written.
-            await storage.delete(stored.key).catch(() => undefined);
-            throw error;
+          } finally {
+            if (!adopted) await storage.discard(file.path).catch(() => undefined);
           }
-          res.status(201).json({
-            id: saved.id,
-            fileName,
-            mediaType,
-            sizeBytes: file.size,
-            sha256: stored.sha256,
-            uploadedAt: saved.uploaded_at.toISOString(),
-            uploadedBy: req.session.auth!.displayName,
-          });
         },
       ],
     },
@@ -209,7 +219,10 @@ export function studyRoutes({ config, dataSource, storage }: { config: Config; d
         async (req, res) => {
           const [row] = await dataSource.query(`SELECT id, study_id, file_name, media_type, storage_key FROM attachment WHERE id = $1`, [idOf(req)]);
           if (!row) throw new NotFoundError('No attachment has this id.');
-          const bytes = await storage.get(row.storage_key);
+          const stored = await storage.get(row.storage_key);
+          // The stored bytes (and their SHA-256) stay as uploaded; a CSV is served with every cell a
+          // spreadsheet would run as a formula neutralised (shared/csv/neutralise.ts).
+          const bytes = row.media_type === 'text/csv' ? Buffer.from(neutraliseCsv(stored.toString('utf8')), 'utf8') : stored;
           await recordAudit(dataSource, { ...auditContext(req), action: 'read', entityType: 'attachment', entityId: row.id, outcome: 'success', detail: { studyId: row.study_id } });
           res
             .type(row.media_type)

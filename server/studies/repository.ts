@@ -11,7 +11,7 @@ import type {
 import { emptyDetails, emptyFindings, emptySetup } from '../../shared/study/schema';
 import type { StudyState } from '../../shared/study/vocabulary';
 import { isEditable } from '../../shared/study/state-machine';
-import { HttpError, NotFoundError } from '../http/problem';
+import { HttpError, NotFoundError, UnprocessableError } from '../http/problem';
 import { recordAudit, type AuditEntry } from '../audit/audit';
 import { assignments, detailsColumns, findingsColumns, readSection, selectList, setupColumns, vasoreactivityColumns } from './columns';
 import {
@@ -98,9 +98,16 @@ const exactlySame = (row: PatientRow, p: StudySections['patient']) => demographi
 
 /** The MRN belongs to someone else: the study is not moved to them, and nobody is renamed. */
 export class PatientMismatchError extends HttpError {
-  constructor(mrn: string, fields: string[]) {
-    super(409, 'patient-mismatch', 'The MRN belongs to another patient', `MRN ${mrn} is already on file with a different ${fields.join(', ')}.`, [
-      { pointer: '/patient/mrn', detail: `MRN ${mrn} is on file for another patient (different ${fields.map(label).join(', ')}). Check the MRN.` },
+  /**
+   * Says only that the MRN belongs to someone else: naming what differs (the birth date, the given
+   * name) would let anyone with write access probe another patient's demographics one field at a time.
+   */
+  constructor(
+    public readonly mrn: string,
+    public readonly fields: string[],
+  ) {
+    super(409, 'patient-mismatch', 'The MRN belongs to another patient', 'This MRN is on file for another patient. Check the MRN and the name.', [
+      { pointer: '/patient/mrn', detail: 'This MRN is on file for another patient. Check the MRN.' },
     ]);
   }
 }
@@ -218,8 +225,19 @@ async function nextAccession(db: EntityManager, at: Date): Promise<string> {
   return `ISB-${day}-${String(n).padStart(4, '0')}-${Math.random().toString(36).slice(2, 6).toUpperCase()}`;
 }
 
+/** The operator must be a physician on file: an id of nobody, or of another role, is refused. */
+async function checkOperator(db: EntityManager, operatorId: string | null | undefined): Promise<void> {
+  if (!operatorId) return;
+  const [row] = await db.query(`SELECT role FROM app_user WHERE id = $1`, [operatorId]);
+  if (row?.role === 'physician') return;
+  throw new UnprocessableError('The operator must be a physician.', [
+    { pointer: '/details/operatorId', detail: row ? 'Operator: this person is not a physician. Choose a physician from the list.' : 'Operator: nobody has this id. Choose a physician from the list.' },
+  ]);
+}
+
 export async function createStudy(dataSource: DataSource, input: CreateStudy, createdBy: string | null, actor?: AuditActor): Promise<string> {
   return dataSource.transaction(async (db) => {
+    await checkOperator(db, input.details?.operatorId);
     const { patientId } = await resolvePatient(db, input.patient, null, null);
     const details = { ...emptyDetails(), ...input.details };
     const set = assignments(detailsColumns, details, 1);
@@ -269,6 +287,7 @@ export async function patchStudy(dataSource: DataSource, id: string, patch: Patc
   return dataSource.transaction(async (db) => {
     const current = await lockEditableStudy(db, id);
     if (current.version !== patch.version) throw new StaleVersionError((await loadStudy(db, id))!);
+    await checkOperator(db, patch.details?.operatorId);
     let leftBehind: string | null = null;
     let patientId: string | undefined;
     if (patch.patient) {

@@ -1,6 +1,7 @@
 import type { DataSource } from 'typeorm';
 import type { WorklistItem, WorklistPage, WorklistQuery } from '../../shared/study/worklist';
 import { BadRequestError } from '../http/problem';
+import { problemOfText } from '../http/input-safety';
 
 /**
  * One study as lists show it (worklist, coding queue, turnaround): `SELECT … FROM` a study with its
@@ -42,7 +43,9 @@ function decodeCursor(cursor: string): [string, string] {
       typeof value[0] === 'string' &&
       /^\d{4}-\d{2}-\d{2} \d{2}:\d{2}:\d{2}(\.\d{1,6})?[+-]\d{2}(:?\d{2})?$/.test(value[0]) &&
       typeof value[1] === 'string' &&
-      /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/.test(value[1])
+      /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/.test(value[1]) &&
+      // Well formed is not enough: 30 February or hour 99 would reach the database as a data error.
+      problemOfText(value[0].replace(/([+-]\d{2})$/, '$1:00')) === null
     ) {
       return value as [string, string];
     }

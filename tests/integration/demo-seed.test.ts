@@ -7,7 +7,7 @@ import { defaultSignatureTargetHours, waitingSince } from '../../shared/turnarou
 import { demoStudies } from '../../server/demo/scenario';
 import { seedDemo } from '../../server/demo/seed';
 import { loadStudy, patchStudy } from '../../server/studies/repository';
-import { openTestDatabase, testConfig } from '../support/app';
+import { openTestDatabase, removeStudiesAsOwner, testConfig } from '../support/app';
 
 // Other files share this database and add their own rows, so counts are compared, never assumed.
 const issuer = testConfig().oidc.issuer;
@@ -36,7 +36,7 @@ async function loadDemo(accession: string): Promise<StudyRecord> {
 beforeAll(async () => {
   db = await openTestDatabase();
   // Start from no demo studies (a database kept between runs may hold them), then seed twice.
-  await db.query(`DELETE FROM study WHERE accession = ANY($1)`, [accessions]);
+  await removeStudiesAsOwner(`accession = ANY($1)`, [accessions]);
   await seedDemo(db, issuer, now);
   for (const a of accessions) {
     const record = await loadDemo(a);

@@ -4,6 +4,7 @@ import type { DataSource } from 'typeorm';
 import { createApp } from '../../server/app';
 import { loadConfig, type Config } from '../../server/config';
 import { createDataSource } from '../../server/db/data-source';
+import { ownerUrlFor } from './global-setup';
 
 export function testConfig(overrides: Partial<Config> = {}): Config {
   return { ...loadConfig(process.env), ...overrides };
@@ -16,6 +17,36 @@ export async function openTestDatabase(): Promise<DataSource> {
   const dataSource = createDataSource(url, 4);
   await dataSource.initialize();
   return dataSource;
+}
+
+/**
+ * The owner role's connection to the test database, for what the server's role may not do
+ * (schema changes, setting up a trigger for a test, removing a signed study between files).
+ */
+export async function openOwnerDatabase(): Promise<DataSource> {
+  const url = process.env.MIGRATION_DATABASE_URL ?? ownerUrlFor(process.env.DATABASE_URL ?? '');
+  const dataSource = createDataSource(url, 2);
+  await dataSource.initialize();
+  return dataSource;
+}
+
+/**
+ * Removes studies whatever their state, as the owner with the signed-study guard lifted for this
+ * transaction only (ALTER TABLE is transactional: other sessions never see the guard off).
+ * For test housekeeping; the product never deletes a signed study.
+ */
+export async function removeStudiesAsOwner(where: string, params: unknown[]): Promise<void> {
+  const owner = await openOwnerDatabase();
+  const guarded = ['study', 'vessel_assessment', 'thermodilution_injection', 'acetylcholine_dose', 'attachment'];
+  try {
+    await owner.transaction(async (tx) => {
+      for (const t of guarded) await tx.query(`ALTER TABLE ${t} DISABLE TRIGGER ${t}_signed_guard`);
+      await tx.query(`DELETE FROM study WHERE ${where}`, params);
+      for (const t of guarded) await tx.query(`ALTER TABLE ${t} ENABLE TRIGGER ${t}_signed_guard`);
+    });
+  } finally {
+    await owner.destroy();
+  }
 }
 
 /** The real app listening on a free loopback port (for browser tests). */

@@ -37,9 +37,18 @@ describe('file names', () => {
     ['photo.JPG', 'image/jpeg', false],
     ['scan.png', 'application/pdf', true],
     ['export', 'text/csv', false],
-    ['export.dat', 'text/csv', false],
+    // Any extension that is not the content's disagrees, known or not (an image named .html or .exe).
+    ['export.dat', 'text/csv', true],
+    ['image.html', 'image/png', true],
+    ['image.exe', 'image/png', true],
   ] as const)('%s with %s content disagrees: %s', (name, type, disagrees) => {
     expect(nameDisagreesWith(name, type)).toBe(disagrees);
+  });
+
+  it('decodes UTF-8 names that arrive as Latin-1 and strips control and direction-override characters', () => {
+    expect(cleanFileName(Buffer.from('Ödegaard 📈.csv', 'utf8').toString('latin1'))).toBe('Ödegaard 📈.csv');
+    expect(cleanFileName('scan\u202Egnp.exe')).toBe('scangnp.exe'); // U+202E right-to-left override (Unicode TR #36 §2.1)
+    expect(cleanFileName('a\u0085b\u2066c.pdf')).toBe('abc.pdf');
   });
 
   it('keeps only a plain base name', () => {

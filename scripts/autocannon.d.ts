@@ -1,0 +1,26 @@
+// The part of autocannon's API the load benchmark uses (the package ships no types).
+declare module 'autocannon' {
+  namespace autocannon {
+    interface Options {
+      url: string;
+      connections?: number;
+      duration?: number;
+      headers?: Record<string, string>;
+    }
+    interface Histogram {
+      average: number;
+      total: number;
+      p50: number;
+      p99: number;
+    }
+    interface Result {
+      requests: Histogram;
+      latency: Histogram;
+      errors: number;
+      timeouts: number;
+      non2xx: number;
+    }
+  }
+  function autocannon(options: autocannon.Options): Promise<autocannon.Result>;
+  export default autocannon;
+}
