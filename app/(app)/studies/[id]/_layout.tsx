@@ -12,7 +12,7 @@ import { Text } from '../../../../components/ui/text';
 import { StudyStateChip } from '../../../../components/study-state-chip';
 import { patientName } from '../../../../components/format';
 import { SectionNav } from '../../../../components/study/section-nav';
-import { ConflictBanner, SaveStatus } from '../../../../components/study/save-status';
+import { ConflictChooser, SaveStatus } from '../../../../components/study/save-status';
 import { StudyResults } from '../../../../components/study/live-results';
 import { DriftAlert } from '../../../../components/study/quality-alert';
 import { StudyContext } from '../../../../components/study/study-context';
@@ -34,23 +34,29 @@ export default function StudyLayout() {
     );
   }
   if (study.isError) {
-    const missing = study.error instanceof ApiError && study.error.status === 404;
+    const status = study.error instanceof ApiError ? study.error.status : undefined;
+    const missing = status === 404 || status === 400;
+    const forbidden = status === 403;
     return (
       <Center style={styles.pad}>
         <ErrorState
-          title={missing ? 'No such study' : 'The study could not be opened'}
-          detail={missing ? 'The link may be wrong, or the study was removed.' : study.error.message}
-          onRetry={missing ? undefined : () => study.refetch()}
+          title={missing ? 'No such study' : forbidden ? 'Your role may not open this study' : 'The study could not be opened'}
+          detail={
+            missing ? 'The link may be wrong, or the study was removed.' : forbidden ? 'Ask the lab or an administrator if you need to see it.' : study.error.message
+          }
+          onRetry={missing || forbidden ? undefined : () => study.refetch()}
         />
       </Center>
     );
   }
-  return <StudyEditor key={study.data.id} study={study.data} userId={me.data!.id} />;
+  return <StudyEditor key={study.data.id} study={study.data} userId={me.data!.id} canWrite={me.data!.permissions.includes('study:write')} />;
 }
 
-function StudyEditor({ study, userId }: { study: StudyRecord; userId: string }) {
+function StudyEditor({ study, userId, canWrite }: { study: StudyRecord; userId: string; canWrite: boolean }) {
   const wide = useIsWide();
-  const locked = study.state === 'signed' || study.state === 'amended';
+  const signed = study.state === 'signed' || study.state === 'amended';
+  const locked = signed || !canWrite;
+  const readOnlyReason = signed ? 'Signed — read only; changes are made as an addendum' : !canWrite ? 'Read only — your role may view this study but not change it' : null;
   // Unsent edits kept on this device win over the server copy at load. Sections the draft did not
   // change since its base are taken from the server, which may be newer; the base version then
   // decides whether the edits go as they are or need the user's choice (conflict).
@@ -68,10 +74,17 @@ function StudyEditor({ study, userId }: { study: StudyRecord; userId: string }) 
     return { values: values as StudySections, base: base as StudySections, baseVersion: draft.baseVersion };
   });
   // Edits kept on this device for a study that has been signed since: say so, and let them go.
-  const [leftover, setLeftover] = useState(() => (locked ? takeDraft(study.id, userId) : null));
+  const [leftover, setLeftover] = useState(() => (signed ? takeDraft(study.id, userId) : null));
+  // Edits this role may not make are dropped at once (they could never be saved), with a word why.
+  const [dropped] = useState(() => {
+    if (signed || canWrite || !takeDraft(study.id, userId)) return false;
+    clearDraft(study.id);
+    return true;
+  });
   const form = useForm<StudySections>({ defaultValues: initial.values, resolver: zodResolver(studySectionsSchema), mode: 'onChange' });
   const save = useAutosave(study, form, { baseVersion: initial.baseVersion, base: initial.base, userId }, locked);
   const current = save.state.kind === 'conflict' ? save.state.current : null;
+  const stoppedByRole = save.state.kind === 'stopped' && save.state.reason === 'forbidden';
 
   const header = (
     <View style={[styles.header, wide && styles.headerWide]}>
@@ -87,8 +100,8 @@ function StudyEditor({ study, userId }: { study: StudyRecord; userId: string }) 
       <View style={[styles.headerState, !wide && styles.headerStatePhone]}>
         <StudyStateChip state={study.state} />
         {locked ? (
-          <Text variant="caption" weight="semibold" tone="muted">
-            Signed — read only; changes are made as an addendum
+          <Text variant="caption" weight="semibold" tone="muted" testID="read-only-note">
+            {readOnlyReason}
           </Text>
         ) : (
           <SaveStatus state={save.state} />
@@ -98,7 +111,7 @@ function StudyEditor({ study, userId }: { study: StudyRecord; userId: string }) 
   );
 
   return (
-    <StudyContext.Provider value={{ study, locked, save }}>
+    <StudyContext.Provider value={{ study, locked, save, readOnlyReason }}>
       <FormProvider {...form}>
         <View style={styles.root} testID="study-editor">
           {header}
@@ -126,9 +139,19 @@ function StudyEditor({ study, userId }: { study: StudyRecord; userId: string }) 
               </Pressable>
             </View>
           ) : null}
+          {dropped || stoppedByRole ? (
+            <View style={styles.bannerWrap} role="alert" testID="edits-dropped">
+              <Text weight="semibold" tone="abnormal">
+                ▲ Edits made on this device were not saved: your role may view this study but not change it.
+              </Text>
+              <Text variant="caption" tone="muted">
+                They have been removed from this device. The study shows what is saved.
+              </Text>
+            </View>
+          ) : null}
           {current ? (
             <View style={styles.bannerWrap}>
-              <ConflictBanner state={save.state} onLoadSaved={() => save.loadSaved(current)} onKeepMine={() => save.keepMine(current)} />
+              <ConflictChooser key={current.version} state={save.state} onLoadSaved={() => save.loadSaved(current)} onResolve={(choices) => save.resolve(current, choices)} />
             </View>
           ) : null}
           {wide ? (
