@@ -12,6 +12,7 @@ import { enforceSessionLimit, requireSameOrigin } from './auth/request-guards';
 import { healthRoutes } from './routes/health';
 import { authRoutes } from './routes/auth';
 import { recordRoutes } from './routes/records';
+import { auditRoutes } from './routes/audit';
 import { studyRoutes } from './routes/studies';
 import { diskStorage, type AttachmentStorage } from './attachments/storage';
 
@@ -27,7 +28,7 @@ export interface AppDeps {
 
 /** Every `/api` route with the access it needs: the router is built from this list alone. */
 export function apiRoutes(deps: Required<Pick<AppDeps, 'config' | 'dataSource' | 'idp' | 'storage'>>): ApiRoute[] {
-  return [...healthRoutes(deps), ...authRoutes(deps), ...studyRoutes(deps), ...recordRoutes(deps)];
+  return [...healthRoutes(deps), ...authRoutes(deps), ...studyRoutes(deps), ...recordRoutes(deps), ...auditRoutes(deps)];
 }
 
 /**
