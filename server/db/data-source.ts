@@ -9,10 +9,11 @@ import { SessionsAndAudit1764720000000 } from './migrations/1764720000000-sessio
 import { StudyRecord1764806400000 } from './migrations/1764806400000-study-record';
 import { PatientNameSearch1764892800000 } from './migrations/1764892800000-patient-name-search';
 import { EndedSessions1764979200000 } from './migrations/1764979200000-ended-sessions';
+import { PatientMrnSearch1765100000000 } from './migrations/1765100000000-patient-mrn-search';
 
 /** Entities and migrations are listed, not globbed, so tsx, vitest and a bundler all see the same set. */
 export const entities = [User, Patient, Study, VesselAssessment, ThermodilutionInjection, AcetylcholineDose, Attachment];
-export const migrations = [InitialSchema1764633600000, SessionsAndAudit1764720000000, StudyRecord1764806400000, PatientNameSearch1764892800000, EndedSessions1764979200000];
+export const migrations = [InitialSchema1764633600000, SessionsAndAudit1764720000000, StudyRecord1764806400000, PatientNameSearch1764892800000, EndedSessions1764979200000, PatientMrnSearch1765100000000];
 
 export function createDataSource(databaseUrl: string, poolSize = 10): DataSource {
   return new DataSource({
