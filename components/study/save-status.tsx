@@ -13,7 +13,7 @@ const describe = (s: SaveState): { text: string; tone: 'muted' | 'abnormal' | 'i
       if (s.mergedWith) return { text: `✓ Saved, merged with changes saved elsewhere (version ${s.mergedWith})`, tone: 'muted' };
       return { text: s.at ? `✓ Saved ${s.at.toLocaleTimeString('en-GB', { hour: '2-digit', minute: '2-digit' })}` : '✓ All changes saved', tone: 'muted' };
     case 'pending':
-      return { text: '● Unsaved changes — saving shortly', tone: 'ink' };
+      return { text: '● Saving shortly…', tone: 'ink' };
     case 'saving':
       return { text: '↻ Saving…', tone: 'ink' };
     case 'offline':

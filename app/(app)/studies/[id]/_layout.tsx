@@ -1,6 +1,6 @@
 import { useState, type ReactNode } from 'react';
 import { Pressable, ScrollView, StyleSheet, View } from 'react-native';
-import { Slot, useLocalSearchParams } from 'expo-router';
+import { Link, Slot, useLocalSearchParams } from 'expo-router';
 import { FormProvider, useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import { studySectionsSchema, type StudyRecord, type StudySections } from '../../../../shared/study/schema';
@@ -17,9 +17,10 @@ import { StudyResults } from '../../../../components/study/live-results';
 import { DriftAlert } from '../../../../components/study/quality-alert';
 import { StudyContext } from '../../../../components/study/study-context';
 import { clearDraft, takeDraft, toStableJson } from '../../../../components/study/draft-store';
-import { useMeQuery } from '../../../../components/data/me-query';
+import { useMeQuery, useSignOut } from '../../../../components/data/me-query';
+import { studyStateLabel } from '../../../../shared/study/vocabulary';
 import { sectionsOf, useAutosave } from '../../../../components/study/use-autosave';
-import { color, space } from '../../../../components/theme';
+import { color, space, touchTarget } from '../../../../components/theme';
 
 /** One study: loads it once, owns its form and autosave; sections are child routes. */
 export default function StudyLayout() {
@@ -49,11 +50,12 @@ export default function StudyLayout() {
       </Center>
     );
   }
-  return <StudyEditor key={study.data.id} study={study.data} userId={me.data!.id} canWrite={me.data!.permissions.includes('study:write')} />;
+  return <StudyEditor key={study.data.id} study={study.data} userId={me.data!.id} canWrite={me.data!.permissions.includes('study:write')} home={me.data!.home ?? '/'} />;
 }
 
-function StudyEditor({ study, userId, canWrite }: { study: StudyRecord; userId: string; canWrite: boolean }) {
+function StudyEditor({ study, userId, canWrite, home }: { study: StudyRecord; userId: string; canWrite: boolean; home: string }) {
   const wide = useIsWide();
+  const signOut = useSignOut();
   const signed = study.state === 'signed' || study.state === 'amended';
   const locked = signed || !canWrite;
   const readOnlyReason = signed ? 'Signed — read only; changes are made as an addendum' : !canWrite ? 'Read only — your role may view this study but not change it' : null;
@@ -86,10 +88,17 @@ function StudyEditor({ study, userId, canWrite }: { study: StudyRecord; userId: 
   const current = save.state.kind === 'conflict' ? save.state.current : null;
   const stoppedByRole = save.state.kind === 'stopped' && save.state.reason === 'forbidden';
 
-  const header = (
-    <View style={[styles.header, wide && styles.headerWide]}>
+  const status = locked ? (
+    <Text variant="caption" weight="semibold" tone="muted" testID="read-only-note">
+      {readOnlyReason}
+    </Text>
+  ) : (
+    <SaveStatus state={save.state} />
+  );
+  const header = wide ? (
+    <View style={[styles.header, styles.headerWide]}>
       <View style={styles.headerText}>
-        <Text variant={wide ? 'headline' : 'title'} weight="bold" role="heading" aria-level={1} testID="study-patient-name" numberOfLines={1}>
+        <Text variant="headline" weight="bold" role="heading" aria-level={1} testID="study-patient-name" numberOfLines={1}>
           {patientName(form.watch('patient'))}
         </Text>
         <Text variant="caption" tone="muted">
@@ -97,17 +106,82 @@ function StudyEditor({ study, userId, canWrite }: { study: StudyRecord; userId: 
         </Text>
       </View>
       <DriftAlert studyId={study.id} />
-      <View style={[styles.headerState, !wide && styles.headerStatePhone]}>
+      <View style={styles.headerState}>
         <StudyStateChip state={study.state} />
-        {locked ? (
-          <Text variant="caption" weight="semibold" tone="muted" testID="read-only-note">
-            {readOnlyReason}
-          </Text>
-        ) : (
-          <SaveStatus state={save.state} />
-        )}
+        {status}
       </View>
     </View>
+  ) : (
+    // A phone keeps the form in view: one compact bar (the app's own bar steps aside on a study).
+    <View style={[styles.header, styles.headerPhone]} testID="study-header">
+      <View style={styles.phoneRow}>
+        <Link href={home as '/'} asChild>
+          <Pressable testID="study-back" role="link" accessibilityLabel="Back to the list" style={styles.back}>
+            <Text variant="title" weight="bold" tone="brand">
+              ‹
+            </Text>
+          </Pressable>
+        </Link>
+        <Text variant="body" weight="bold" role="heading" aria-level={1} testID="study-patient-name" numberOfLines={1} style={styles.phoneName}>
+          {patientName(form.watch('patient'))}
+        </Text>
+        <Pressable testID="sign-out-button" role="button" accessibilityLabel="Sign out" onPress={() => signOut.mutate()} disabled={signOut.isPending} style={styles.phoneSignOut}>
+          <Text variant="caption" weight="semibold" tone="brand">
+            {signOut.isPending ? 'Signing out…' : 'Sign out'}
+          </Text>
+        </Pressable>
+      </View>
+      <View style={styles.phoneMeta}>
+        <Text variant="caption" tone="muted" numberOfLines={1} style={styles.phoneIds}>
+          MRN {form.watch('patient.mrn')} · {study.accession} · {studyStateLabel[study.state]}
+        </Text>
+        <View style={styles.phoneStatus}>{status}</View>
+      </View>
+    </View>
+  );
+
+  const banners = (
+    <>
+          {leftover ? (
+        <View style={[styles.bannerWrap]} role="alert" testID="leftover-draft">
+          <Text weight="semibold" tone="abnormal">
+            ▲ Edits made on this device were never saved, and the study has been signed since.
+          </Text>
+          <Text variant="caption" tone="muted">
+            They cannot be added to a signed study; record what matters as an addendum.
+          </Text>
+          <Pressable
+            role="button"
+            testID="leftover-discard"
+            accessibilityLabel="Discard the unsaved edits from this device"
+            onPress={() => {
+              clearDraft(study.id);
+              setLeftover(null);
+            }}
+            style={styles.discard}
+          >
+            <Text variant="caption" weight="semibold" tone="brand">
+              Discard them
+            </Text>
+          </Pressable>
+        </View>
+      ) : null}
+      {dropped || stoppedByRole ? (
+        <View style={styles.bannerWrap} role="alert" testID="edits-dropped">
+          <Text weight="semibold" tone="abnormal">
+            ▲ Edits made on this device were not saved: your role may view this study but not change it.
+          </Text>
+          <Text variant="caption" tone="muted">
+            They have been removed from this device. The study shows what is saved.
+          </Text>
+        </View>
+      ) : null}
+      {current ? (
+        <View style={styles.bannerWrap}>
+          <ConflictChooser key={current.version} state={save.state} onLoadSaved={() => save.loadSaved(current)} onResolve={(choices) => save.resolve(current, choices)} />
+        </View>
+      ) : null}
+    </>
   );
 
   return (
@@ -115,45 +189,7 @@ function StudyEditor({ study, userId, canWrite }: { study: StudyRecord; userId: 
       <FormProvider {...form}>
         <View style={styles.root} testID="study-editor">
           {header}
-          {leftover ? (
-            <View style={[styles.bannerWrap]} role="alert" testID="leftover-draft">
-              <Text weight="semibold" tone="abnormal">
-                ▲ Edits made on this device were never saved, and the study has been signed since.
-              </Text>
-              <Text variant="caption" tone="muted">
-                They cannot be added to a signed study; record what matters as an addendum.
-              </Text>
-              <Pressable
-                role="button"
-                testID="leftover-discard"
-                accessibilityLabel="Discard the unsaved edits from this device"
-                onPress={() => {
-                  clearDraft(study.id);
-                  setLeftover(null);
-                }}
-                style={styles.discard}
-              >
-                <Text variant="caption" weight="semibold" tone="brand">
-                  Discard them
-                </Text>
-              </Pressable>
-            </View>
-          ) : null}
-          {dropped || stoppedByRole ? (
-            <View style={styles.bannerWrap} role="alert" testID="edits-dropped">
-              <Text weight="semibold" tone="abnormal">
-                ▲ Edits made on this device were not saved: your role may view this study but not change it.
-              </Text>
-              <Text variant="caption" tone="muted">
-                They have been removed from this device. The study shows what is saved.
-              </Text>
-            </View>
-          ) : null}
-          {current ? (
-            <View style={styles.bannerWrap}>
-              <ConflictChooser key={current.version} state={save.state} onLoadSaved={() => save.loadSaved(current)} onResolve={(choices) => save.resolve(current, choices)} />
-            </View>
-          ) : null}
+          {wide ? banners : null}
           {wide ? (
             <View style={styles.panes}>
               <SectionNav studyId={study.id} vertical />
@@ -170,6 +206,8 @@ function StudyEditor({ study, userId, canWrite }: { study: StudyRecord; userId: 
             <>
               <SectionNav studyId={study.id} vertical={false} />
               <ScrollView style={styles.formPane} contentContainerStyle={styles.formContentPhone} keyboardShouldPersistTaps="handled">
+                {banners}
+                <DriftAlert studyId={study.id} />
                 <Locked locked={locked}>
                   <Slot />
                 </Locked>
@@ -204,9 +242,17 @@ const styles = StyleSheet.create({
   root: { flex: 1 },
   header: { flexDirection: 'row', flexWrap: 'wrap', justifyContent: 'space-between', alignItems: 'center', gap: space.sm, paddingHorizontal: space.lg, paddingVertical: space.md, backgroundColor: color.surface, borderBottomWidth: 1, borderBottomColor: color.line },
   headerWide: { paddingHorizontal: space.xxl, paddingVertical: space.lg },
-  headerText: { flexShrink: 1, gap: 2 },
+  headerText: { flexShrink: 1, flexGrow: 1, minWidth: 0, gap: 2 },
   headerState: { alignItems: 'flex-end', gap: space.xs, flexShrink: 1 },
-  headerStatePhone: { flexDirection: 'row', flexWrap: 'wrap', alignItems: 'center', gap: space.sm },
+  headerPhone: { flexDirection: 'column', flexWrap: 'nowrap', alignItems: 'stretch', paddingHorizontal: space.xs, paddingTop: 0, paddingBottom: space.xs, gap: 0 },
+  phoneRow: { flexDirection: 'row', alignItems: 'center', gap: space.xs },
+  phoneName: { flex: 1, minWidth: 0 },
+  phoneSignOut: { minHeight: touchTarget, justifyContent: 'center', paddingHorizontal: space.sm },
+  // One line: the identifiers give way (ellipsis) before the save state does.
+  phoneMeta: { flexDirection: 'row', flexWrap: 'nowrap', alignItems: 'flex-start', justifyContent: 'space-between', columnGap: space.sm, paddingHorizontal: space.sm },
+  phoneIds: { flexShrink: 1, minWidth: 0 },
+  phoneStatus: { flexShrink: 0, maxWidth: '55%', alignItems: 'flex-end' },
+  back: { minWidth: touchTarget, minHeight: touchTarget, alignItems: 'center', justifyContent: 'center' },
   bannerWrap: { padding: space.md, gap: space.xs },
   discard: { minHeight: 44, justifyContent: 'center', alignSelf: 'flex-start' },
   panes: { flex: 1, flexDirection: 'row', gap: space.xl, paddingLeft: space.xl, paddingTop: space.xl },

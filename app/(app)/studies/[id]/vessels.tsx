@@ -13,6 +13,7 @@ import { Text } from '../../../../components/ui/text';
 import { color, radius, space, touchTarget } from '../../../../components/theme';
 import { vesselCodes, nhprKinds, type VesselCode, type VesselResult } from '../../../../shared/physiology';
 import { emptyVessel, type StudySections } from '../../../../shared/study/schema';
+import { displayDecimals } from '../../../../shared/physiology/precision';
 import { coronarySegments, decisionLabel, pullbackPatternLabel, segmentModelName, vesselLabel } from '../../../../shared/study/vocabulary';
 
 const nhprKindLabel = { 'whole-cycle': 'Whole-cycle Pd/Pa', diastolic: 'Diastolic ratio', 'full-cycle-minimum': 'Full-cycle minimum ratio' } as const;
@@ -84,24 +85,24 @@ function VesselCard({ index, onRemove, result }: { index: number; onRemove: () =
       </FieldRow>
       <Text weight="semibold">At rest</Text>
       <FieldRow>
-        <NumberField name={`${p}.restPa`} label="Pa" unit="mmHg" testID={`${t}-rest-pa`} />
-        <NumberField name={`${p}.restPd`} label="Pd" unit="mmHg" testID={`${t}-rest-pd`} />
+        <NumberField name={`${p}.restPa`} label="Pa" accessibleLabel="Pa at rest" decimals={displayDecimals.pressure} unit="mmHg" testID={`${t}-rest-pa`} />
+        <NumberField name={`${p}.restPd`} label="Pd" accessibleLabel="Pd at rest" decimals={displayDecimals.pressure} unit="mmHg" testID={`${t}-rest-pd`} />
       </FieldRow>
       <TransitTimesField name={`${p}.restTransit`} label="Transit time at rest" testID={`${t}-rest-tmn`} />
       <FieldRow>
         <ChoiceField name={`${p}.nhprKind`} label="Resting ratio from the console" testID={`${t}-nhpr-kind`} options={nhprKinds.map((k) => ({ value: k, label: nhprKindLabel[k] }))} />
-        <NumberField name={`${p}.nhprValue`} label="Resting ratio value" testID={`${t}-nhpr-value`} />
+        <NumberField name={`${p}.nhprValue`} label="Resting ratio value" decimals={displayDecimals.ratio} testID={`${t}-nhpr-value`} />
       </FieldRow>
       <Text weight="semibold">At hyperaemia</Text>
       <FieldRow>
-        <NumberField name={`${p}.hyperemiaPa`} label="Pa" unit="mmHg" testID={`${t}-hyp-pa`} />
-        <NumberField name={`${p}.hyperemiaPd`} label="Pd" unit="mmHg" testID={`${t}-hyp-pd`} />
-        <NumberField name={`${p}.consoleFfr`} label="FFR from the console" hint="Only when pressures were not entered" testID={`${t}-console-ffr`} />
+        <NumberField name={`${p}.hyperemiaPa`} label="Pa" accessibleLabel="Pa at hyperaemia" decimals={displayDecimals.pressure} unit="mmHg" testID={`${t}-hyp-pa`} />
+        <NumberField name={`${p}.hyperemiaPd`} label="Pd" accessibleLabel="Pd at hyperaemia" decimals={displayDecimals.pressure} unit="mmHg" testID={`${t}-hyp-pd`} />
+        <NumberField name={`${p}.consoleFfr`} label="FFR from the console" decimals={displayDecimals.ratio} hint="Only when pressures were not entered" testID={`${t}-console-ffr`} />
       </FieldRow>
       <TransitTimesField name={`${p}.hyperemiaTransit`} label="Transit time at hyperaemia" testID={`${t}-hyp-tmn`} />
       <FieldRow>
         <NumberField name={`${p}.wedgePressure`} label="Coronary wedge pressure" unit="mmHg" hint="During balloon occlusion, if measured" testID={`${t}-wedge`} />
-        <NumberField name={`${p}.driftPdPa`} label="Drift check at pull-back (Pd/Pa)" hint="Sensor at the guide tip after the run" testID={`${t}-drift`} />
+        <NumberField name={`${p}.driftPdPa`} label="Drift check at pull-back (Pd/Pa)" decimals={displayDecimals.ratio} hint="Sensor at the guide tip after the run" testID={`${t}-drift`} />
       </FieldRow>
       <ChoiceField name={`${p}.pullbackPattern`} label="Pull-back pattern" testID={`${t}-pullback`} options={optionsOf(pullbackPatternLabel)} />
       <ChoiceField name={`${p}.decision`} label="Decision" testID={`${t}-decision`} options={optionsOf(decisionLabel)} />
