@@ -9,13 +9,14 @@ import { PublicSans_500Medium } from '@expo-google-fonts/public-sans/500Medium';
 import { PublicSans_600SemiBold } from '@expo-google-fonts/public-sans/600SemiBold';
 import { PublicSans_700Bold } from '@expo-google-fonts/public-sans/700Bold';
 import { color } from '../components/theme';
+import { shouldRetryRead } from '../components/data/api';
 import { SessionSync } from '../components/session-sync';
 import { useFocusRing } from '../components/focus-ring';
 
 /** Providers and theme for every screen: data fetching, fonts bundled with the app, safe areas. */
 export default function RootLayout() {
   const [queryClient] = useState(
-    () => new QueryClient({ defaultOptions: { queries: { staleTime: 15_000, refetchOnWindowFocus: true } } }),
+    () => new QueryClient({ defaultOptions: { queries: { staleTime: 15_000, refetchOnWindowFocus: true, retry: shouldRetryRead } } }),
   );
   useFocusRing();
   const [fontsLoaded, fontError] = useFonts({

@@ -20,8 +20,7 @@ const signInErrors: Record<string, string> = {
 const steps = [
   { title: 'Record', body: 'Pressures, transit times and drug doses, entered at the table on a phone or a workstation.' },
   { title: 'Compute', body: 'FFR, resting Pd/Pa, CFR, IMR, RRR and the endotype, with quality checks beside each number.' },
-  { title: 'Report and sign', body: 'A narrative drafted from the structured data, signed and kept as an unchangeable version.' },
-  { title: 'Code and deliver', body: 'Suggested procedure and diagnosis codes for the coder; the signed report sent to the EHR.' },
+  { title: 'Review', body: 'One worklist for the lab and the physicians, the coding queue for coders, turnaround and the audit trail for the chief.' },
 ];
 
 /** Signed-out start page: the product, the sign-in button, the service state. */
@@ -45,7 +44,7 @@ export default function SignInPage() {
               </Text>
             </View>
             <Text variant="lead" tone="muted" style={styles.tagline}>
-              Coronary physiology, from the wire to the signed report.
+              Coronary physiology, from the wire to the result.
             </Text>
             <Text tone="muted" style={styles.body}>
               For the catheterization lab team, the reading cardiologist, the coders and the department chief.

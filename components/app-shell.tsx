@@ -1,4 +1,4 @@
-import type { ReactNode } from 'react';
+import { useState, type ReactNode } from 'react';
 import { Pressable, ScrollView, StyleSheet, View } from 'react-native';
 import { Link, usePathname } from 'expo-router';
 import { SafeAreaView } from 'react-native-safe-area-context';
@@ -31,6 +31,8 @@ export function AppShell({ me, children }: { me: Me; children: ReactNode }) {
   const pathname = usePathname();
   const signOut = useSignOut();
   const items = navItems.filter((item) => can(me.role, item.needs));
+  const [tabs, setTabs] = useState({ width: 0, content: 0, x: 0 });
+  const moreTabs = tabs.content > tabs.width + tabs.x + 4;
   const isActive = (href: string) => (href === '/' ? pathname === '/' : pathname.startsWith(href));
 
   const links = items.map((item) => (
@@ -97,17 +99,38 @@ export function AppShell({ me, children }: { me: Me; children: ReactNode }) {
       </SafeAreaView>
     );
   }
+  // On a phone, a study has its own compact bar (back, patient, save state) and section tabs. The
+  // tree keeps its shape (null in place of the bars) so the screen below is not mounted afresh.
+  const inStudy = /^\/studies\/(?!new$)[^/]+/.test(pathname);
   return (
     <SafeAreaView style={styles.root}>
-      <View style={styles.topBar}>
-        {brand}
-        {account}
-      </View>
-      {items.length > 1 ? (
+      {inStudy ? null : (
+        <View style={styles.topBar}>
+          {brand}
+          {account}
+        </View>
+      )}
+      {items.length > 1 && !inStudy ? (
         <View role="navigation" aria-label="Main" style={styles.tabsBar}>
-          <ScrollView horizontal showsHorizontalScrollIndicator={false} contentContainerStyle={styles.tabs}>
+          <ScrollView
+            horizontal
+            showsHorizontalScrollIndicator={false}
+            contentContainerStyle={styles.tabs}
+            scrollEventThrottle={32}
+            onLayout={(e) => setTabs((t) => ({ ...t, width: e.nativeEvent.layout.width }))}
+            onContentSizeChange={(w) => setTabs((t) => ({ ...t, content: w }))}
+            onScroll={(e) => setTabs((t) => ({ ...t, x: e.nativeEvent.contentOffset.x }))}
+          >
             {links}
           </ScrollView>
+          {moreTabs ? (
+            // More tabs to the right: a fade and an arrow say so (the row scrolls sideways).
+            <View style={styles.moreCue} pointerEvents="none" testID="tabs-more-cue" aria-hidden>
+              <Text weight="bold" tone="brand">
+                ›
+              </Text>
+            </View>
+          ) : null}
         </View>
       ) : null}
       <View style={styles.main} role="main">
@@ -134,6 +157,18 @@ const styles = StyleSheet.create({
     gap: space.md,
   },
   tabsBar: { backgroundColor: color.surface, borderBottomWidth: 1, borderBottomColor: color.line },
+  moreCue: {
+    position: 'absolute',
+    right: 0,
+    top: 0,
+    bottom: 0,
+    alignItems: 'flex-end',
+    justifyContent: 'center',
+    paddingRight: space.sm,
+    width: 32,
+    backgroundColor: color.surface,
+    boxShadow: `-16px 0 12px ${color.surface}`,
+  } as object,
   tabs: { paddingHorizontal: space.sm, gap: space.xs },
   tabLink: { minHeight: touchTarget, justifyContent: 'center', paddingHorizontal: space.md, borderBottomWidth: 3, borderBottomColor: 'transparent' },
   tabLinkActive: { borderBottomColor: color.accent },

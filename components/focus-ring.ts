@@ -10,7 +10,12 @@ export function useFocusRing(): void {
     if (typeof document === 'undefined' || document.getElementById('isobar-focus-ring')) return;
     const style = document.createElement('style');
     style.id = 'isobar-focus-ring';
-    style.textContent = `:focus-visible { outline: 3px solid ${color.focus} !important; outline-offset: 2px; border-radius: 4px; }`;
+    // A box that holds an input and its unit draws the ring around the whole box, not the inner input.
+    style.textContent = [
+      `:focus-visible { outline: 3px solid ${color.focus} !important; outline-offset: 2px; border-radius: 4px; }`,
+      `[data-focus-ring="within"] :focus-visible { outline: none !important; }`,
+      `[data-focus-ring="within"]:has(:focus-visible) { outline: 3px solid ${color.focus}; outline-offset: 2px; }`,
+    ].join('\n');
     document.head.appendChild(style);
   }, []);
 }

@@ -1,15 +1,17 @@
 import type { ReactNode } from 'react';
-import { StyleSheet, View } from 'react-native';
+import { Pressable, StyleSheet, View } from 'react-native';
+import { Link } from 'expo-router';
 import { Text } from './ui/text';
 import { useIsWide } from './ui/layout';
 import { StudyStateChip } from './study-state-chip';
 import { dayLabel, formatDateTime, patientName } from './format';
 import { color, radius, space } from './theme';
-import type { StudySummary } from './data/records-query';
+import type { StudySummary } from './data/study-query';
 
 /**
  * Studies as rows: patient first (what the team looks for), then accession, state and time.
- * With `dayOf`, rows are headed by their day, so "today first" can be seen at a glance.
+ * With `dayOf`, rows are headed by their day, so "today first" can be seen at a glance. Each row
+ * opens its study.
  */
 export function StudyList<T extends StudySummary>({ studies, aside, testID, dayOf }: { studies: T[]; aside?: (s: T) => ReactNode; testID: string; dayOf?: (s: T) => string | null }) {
   const wide = useIsWide();
@@ -25,7 +27,14 @@ export function StudyList<T extends StudySummary>({ studies, aside, testID, dayO
               </Text>
             </View>
           ) : null}
-        <View testID={`study-row-${s.accession}`} style={[styles.row, wide && styles.rowWide, (i > 0 || dayOf) && styles.divider]}>
+        <Link href={`/studies/${s.id}`} asChild>
+        <Pressable
+          testID={`study-row-${s.accession}`}
+          role="link"
+          accessibilityLabel={`Open the study of ${patientName(s.patient)}, MRN ${s.patient.mrn}, ${s.accession}`}
+          // Link's asChild hands the style to the DOM element on web, which takes one object, not an array.
+          style={StyleSheet.flatten([styles.row, wide && styles.rowWide, (i > 0 || dayOf) && styles.divider])}
+        >
           <View style={[styles.who, wide && styles.whoWide]}>
             <Text weight="semibold">{patientName(s.patient)}</Text>
             <Text variant="caption" tone="muted">
@@ -48,7 +57,8 @@ export function StudyList<T extends StudySummary>({ studies, aside, testID, dayO
             </Text>
           </View>
           {aside ? <View style={styles.aside}>{aside(s)}</View> : null}
-        </View>
+        </Pressable>
+        </Link>
         </View>
       ))}
     </View>

@@ -113,7 +113,7 @@ async function main(): Promise<void> {
   await seed(ds);
 
   // A family-name prefix as a user would type it: the first five letters of a mid-list patient's name.
-  const [{ family }] = await ds.query(`SELECT family_name AS family FROM patient WHERE mrn = 'BP-002000'`);
+  const [{ family, given }] = await ds.query(`SELECT family_name AS family, given_name AS given FROM patient WHERE mrn = 'BP-002000'`);
   const prefix = family.slice(0, 5).toLowerCase();
   const [{ patients, studies }] = await ds.query(
     `SELECT count(DISTINCT p.id)::int AS patients, count(s.id)::int AS studies FROM patient p JOIN study s ON s.patient_id = p.id
@@ -146,6 +146,11 @@ async function main(): Promise<void> {
       { name: `(d) search q=${prefix}`, query: { q: prefix } },
       // A name nobody has: the search's worst case.
       { name: '(e) search q=zzq, no match', query: { q: 'zzq' }, warmUp: 10, timed: 200 },
+      // The other ways people type a patient: as lists print the name, given then family, MRN parts.
+      { name: '(f) search "Family, G."', query: { q: `${family.toUpperCase()}, ${given.slice(0, 1)}.` } },
+      { name: '(g) search "Given Family"', query: { q: `${given} ${family}` } },
+      { name: '(h) search lower-case MRN', query: { q: 'bp-002000' } },
+      { name: '(i) search MRN digits 002000', query: { q: '002000' } },
     ];
     console.log(`\nsearch prefix "${prefix}" matches ${patients} patients, ${studies} studies`);
     console.log(`\n${WARM_UP} warm-up + ${TIMED} timed sequential requests per case (e: 10 + 200); target p95 < ${TARGET_P95_MS} ms`);

@@ -13,6 +13,7 @@ import { enforceSessionLimit, requireSameOrigin } from './auth/request-guards';
 import { healthRoutes } from './routes/health';
 import { authRoutes } from './routes/auth';
 import { recordRoutes } from './routes/records';
+import { auditRoutes } from './routes/audit';
 import { studyRoutes } from './routes/studies';
 import { settingsRoutes } from './routes/settings';
 import { reportRoutes } from './routes/reports';
@@ -42,6 +43,7 @@ export function apiRoutes(deps: Required<Pick<AppDeps, 'config' | 'dataSource' |
     ...settingsRoutes(deps),
     ...reportRoutes(deps),
     ...recordRoutes(deps),
+    ...auditRoutes(deps),
     ...deliveryRoutes(deps),
   ];
 }

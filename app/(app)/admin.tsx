@@ -6,7 +6,7 @@ import { Text } from '../../components/ui/text';
 import { formatDateTime } from '../../components/format';
 import { color, radius, space } from '../../components/theme';
 import { isRole, roleLabel } from '../../shared/auth/permissions';
-import { useUsersQuery } from '../../components/data/records-query';
+import { useUsersQuery } from '../../components/data/users-query';
 
 /** Users and their roles. Roles come from the identity provider's groups; this page shows the result. */
 export default function AdminPage() {

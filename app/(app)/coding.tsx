@@ -3,7 +3,7 @@ import { EmptyState, ErrorState, LoadingState } from '../../components/ui/async-
 import { PageHeader } from '../../components/page-header';
 import { StudyList } from '../../components/study-list';
 import { CautionNote } from '../../components/caution-note';
-import { useCodingQueueQuery } from '../../components/data/records-query';
+import { useCodingQueueQuery } from '../../components/data/coding-query';
 
 /** The coder's queue: signed studies, oldest first. */
 export default function CodingQueuePage() {

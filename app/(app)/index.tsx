@@ -1,6 +1,6 @@
 import { useEffect, useState } from 'react';
-import { Pressable, StyleSheet, TextInput, View } from 'react-native';
-import { Link, Redirect, useRouter } from 'expo-router';
+import { StyleSheet, TextInput, View } from 'react-native';
+import { Redirect, useLocalSearchParams, useRouter } from 'expo-router';
 import { can } from '../../shared/auth/permissions';
 import { studyStateLabel, studyStates, type StudyState } from '../../shared/study/vocabulary';
 import { Center, Content } from '../../components/ui/layout';
@@ -8,6 +8,7 @@ import { Button } from '../../components/ui/button';
 import { Text } from '../../components/ui/text';
 import { EmptyState, ErrorState, LoadingState } from '../../components/ui/async-states';
 import { PageHeader } from '../../components/page-header';
+import { RadioChips } from '../../components/ui/radio-chips';
 import { StudyList } from '../../components/study-list';
 import { CautionNote } from '../../components/caution-note';
 import { useMeQuery } from '../../components/data/me-query';
@@ -18,20 +19,31 @@ import { color, font, radius, space, touchTarget, type } from '../../components/
 export default function WorklistPage() {
   const me = useMeQuery();
   const router = useRouter();
-  const [search, setSearch] = useState('');
-  const [filters, setFilters] = useState<WorklistFilters>({});
+  // The filters live in the address, so a reload, a bookmark or the back button keeps them.
+  const params = useLocalSearchParams<{ q?: string; state?: string; operator?: string; when?: string }>();
+  const when = params.when === 'today' || params.when === 'week' ? params.when : undefined;
+  const filters: WorklistFilters = {
+    q: params.q?.trim() || undefined,
+    state: studyStates.includes(params.state as StudyState) ? (params.state as StudyState) : undefined,
+    operatorId: params.operator || undefined,
+    from: when === 'today' ? isoDay(0) : when === 'week' ? isoDay(-6) : undefined,
+  };
+  const setParam = (key: 'q' | 'state' | 'operator' | 'when', value: string | undefined) => router.setParams({ [key]: value || undefined });
+  const [search, setSearch] = useState(params.q ?? '');
   const operators = useOperators();
   const worklist = useWorklist(filters);
 
   // Search as the user types, after a short pause.
   useEffect(() => {
-    const t = setTimeout(() => setFilters((f) => ({ ...f, q: search.trim() || undefined })), 300);
+    const t = setTimeout(() => {
+      if ((search.trim() || undefined) !== (params.q?.trim() || undefined)) setParam('q', search.trim());
+    }, 300);
     return () => clearTimeout(t);
+    // eslint-disable-next-line react-hooks/exhaustive-deps
   }, [search]);
 
   if (me.data && !can(me.data.role, 'study:read')) return <Redirect href={(me.data.home ?? '/sign-in') as '/'} />;
   const items = worklist.data?.pages.flatMap((p) => p.items) ?? [];
-  const toggle = <K extends keyof WorklistFilters>(key: K, value: WorklistFilters[K]) => setFilters((f) => ({ ...f, [key]: f[key] === value ? undefined : value }));
 
   return (
     <Content>
@@ -49,9 +61,9 @@ export default function WorklistPage() {
             style={styles.search}
             inputMode="search"
           />
-          <FilterChips label="State" testID="filter-state" options={studyStates.map((s) => ({ value: s, label: studyStateLabel[s] }))} value={filters.state} onPick={(v) => toggle('state', v as StudyState)} />
+          <FilterChips label="State" testID="filter-state" options={studyStates.map((s) => ({ value: s, label: studyStateLabel[s] }))} value={filters.state} onPick={(v) => setParam('state', v)} />
           {operators.data?.items.length ? (
-            <FilterChips label="Operator" testID="filter-operator" options={operators.data.items.map((o) => ({ value: o.id, label: o.displayName }))} value={filters.operatorId} onPick={(v) => toggle('operatorId', v)} />
+            <FilterChips label="Operator" testID="filter-operator" options={operators.data.items.map((o) => ({ value: o.id, label: o.displayName }))} value={filters.operatorId} onPick={(v) => setParam('operator', v)} />
           ) : null}
           <FilterChips
             label="When"
@@ -60,8 +72,8 @@ export default function WorklistPage() {
               { value: 'today', label: 'Today' },
               { value: 'week', label: 'Last 7 days' },
             ]}
-            value={filters.from === isoDay(0) ? 'today' : filters.from === isoDay(-6) ? 'week' : undefined}
-            onPick={(v) => setFilters((f) => ({ ...f, from: (v === 'today' ? isoDay(0) : isoDay(-6)) === f.from ? undefined : v === 'today' ? isoDay(0) : isoDay(-6) }))}
+            value={when}
+            onPick={(v) => setParam('when', v)}
           />
         </View>
         {worklist.isPending ? (
@@ -80,13 +92,11 @@ export default function WorklistPage() {
               testID="worklist"
               dayOf={(s) => s.sortAt}
               aside={(s) => (
-                <Link href={`/studies/${s.id}`} asChild>
-                  <Pressable testID={`open-${s.accession}`} role="link" accessibilityLabel={`Open study ${s.accession}`} style={styles.open}>
-                    <Text weight="semibold" tone="brand">
-                      Open →
-                    </Text>
-                  </Pressable>
-                </Link>
+                <View testID={`open-${s.accession}`} style={styles.open} aria-hidden>
+                  <Text weight="semibold" tone="brand">
+                    Open →
+                  </Text>
+                </View>
               )}
             />
             {worklist.hasNextPage ? (
@@ -108,23 +118,14 @@ function isoDay(offset: number): string {
   return d.toISOString();
 }
 
+/** One filter: "Any" or one value, as a radio group. */
 function FilterChips({ label, options, value, onPick, testID }: { label: string; options: { value: string; label: string }[]; value?: string; onPick: (v: string) => void; testID: string }) {
   return (
-    <View style={styles.filterRow} role="group" aria-label={label}>
-      <Text variant="caption" weight="semibold" tone="muted" style={styles.filterLabel}>
+    <View style={styles.filterRow}>
+      <Text variant="caption" weight="semibold" tone="muted" style={styles.filterLabel} nativeID={`${testID}-label`}>
         {label}
       </Text>
-      {options.map((o) => {
-        const on = value === o.value;
-        return (
-          <Pressable key={o.value} testID={`${testID}-${o.value}`} role="checkbox" aria-checked={on} accessibilityLabel={`${label}: ${o.label}`} onPress={() => onPick(o.value)} style={[styles.chip, on && styles.chipOn]}>
-            <Text variant="caption" weight={on ? 'semibold' : 'regular'} tone={on ? 'onBrand' : 'ink'}>
-              {on ? '✓ ' : ''}
-              {o.label}
-            </Text>
-          </Pressable>
-        );
-      })}
+      <RadioChips pill testID={testID} labelledBy={`${testID}-label`} style={styles.filterChips} options={[{ value: '', label: 'Any', quiet: true }, ...options]} value={value ?? ''} onChange={onPick} />
     </View>
   );
 }
@@ -133,9 +134,8 @@ const styles = StyleSheet.create({
   center: { gap: space.xl },
   filters: { gap: space.sm },
   search: { minHeight: touchTarget, borderWidth: 1, borderColor: color.inkFaint, borderRadius: radius.md, backgroundColor: color.surface, paddingHorizontal: space.md, fontFamily: font.regular, fontSize: type.body.fontSize, color: color.ink },
-  filterRow: { flexDirection: 'row', flexWrap: 'wrap', alignItems: 'center', gap: space.xs },
+  filterRow: { flexDirection: 'row', alignItems: 'center', gap: space.xs },
   filterLabel: { width: 64 },
-  chip: { minHeight: touchTarget, justifyContent: 'center', paddingHorizontal: space.md, borderRadius: radius.pill, borderWidth: 1, borderColor: color.line, backgroundColor: color.surface },
-  chipOn: { backgroundColor: color.brand, borderColor: color.brand },
+  filterChips: { flex: 1, gap: space.xs },
   open: { minHeight: touchTarget, justifyContent: 'center', paddingHorizontal: space.md },
 });

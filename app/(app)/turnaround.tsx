@@ -6,7 +6,7 @@ import { StudyList } from '../../components/study-list';
 import { Text } from '../../components/ui/text';
 import { formatHours } from '../../components/format';
 import { color, radius, space } from '../../components/theme';
-import { useAwaitingSignatureQuery } from '../../components/data/records-query';
+import { useAwaitingSignatureQuery } from '../../components/data/turnaround-query';
 
 /** The chief's view: unsigned studies and how long each has waited since the procedure ended. */
 export default function TurnaroundPage() {

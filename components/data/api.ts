@@ -46,6 +46,16 @@ export async function apiFetch<T>(path: string, init: RequestInit = {}): Promise
   return body as T;
 }
 
+/**
+ * Whether a failed read is worth asking again: a 4xx answer (signed out, forbidden, missing) will not
+ * change by asking again, so it is shown at once; other failures get two more tries.
+ */
+export function shouldRetryRead(failureCount: number, error: unknown): boolean {
+  const status = error instanceof ApiError ? error.status : undefined;
+  if (status !== undefined && status >= 400 && status < 500 && status !== 408 && status !== 429) return false;
+  return failureCount < 2;
+}
+
 function safeJson(text: string): unknown {
   try {
     return JSON.parse(text);

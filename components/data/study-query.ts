@@ -1,8 +1,11 @@
 import { useInfiniteQuery, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import type { AttachmentSummary, CreateStudy, StudyRecord } from '../../shared/study/schema';
-import type { WorklistPage } from '../../shared/study/worklist';
+import type { WorklistItem, WorklistPage } from '../../shared/study/worklist';
 import type { StudyState } from '../../shared/study/vocabulary';
 import { apiFetch, ApiError } from './api';
+
+/** A study as lists show it: the same shape for the worklist, the coding queue and turnaround. */
+export type StudySummary = WorklistItem;
 
 export interface WorklistFilters {
   state?: StudyState;

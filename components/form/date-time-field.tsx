@@ -34,14 +34,16 @@ export function DateTimeField({ name, label, testID }: { name: string; label: st
     // eslint-disable-next-line react-hooks/exhaustive-deps
   }, [field.value]);
   return (
-    <FieldShell label={label} error={fieldState.error?.message} hint="YYYY-MM-DD HH:MM, local time" testID={testID}>
+    <FieldShell label={label} error={fieldState.error?.message} hint={text.trim() ? 'YYYY-MM-DD HH:MM, local time' : 'Not recorded yet · write it as YYYY-MM-DD HH:MM, local time'} testID={testID}>
       <TextInput
         testID={testID}
         accessibilityLabel={`${label}, as year-month-day hours:minutes`}
         aria-invalid={!!fieldState.error}
         aria-describedby={fieldIds(testID).help}
         value={text}
-        placeholder="2026-12-01 14:30"
+        // The format itself, drawn faint: an empty box must never look like a recorded time.
+        placeholder="YYYY-MM-DD HH:MM"
+        placeholderTextColor={color.inkFaint}
         // Plain text keyboard: phone number pads lack "-", ":" and the space the format needs.
         inputMode="text"
         autoCapitalize="none"
@@ -57,7 +59,7 @@ export function DateTimeField({ name, label, testID }: { name: string; label: st
           clearErrors(name);
           field.onChange(p.value);
         }}
-        style={[styles.input, fieldState.error ? styles.error : null]}
+        style={[styles.input, !text.trim() && styles.empty, fieldState.error ? styles.error : null]}
       />
     </FieldShell>
   );
@@ -66,4 +68,5 @@ export function DateTimeField({ name, label, testID }: { name: string; label: st
 const styles = StyleSheet.create({
   input: { minHeight: touchTarget, borderWidth: 1, borderColor: color.inkFaint, borderRadius: radius.md, backgroundColor: color.surface, paddingHorizontal: space.md, fontFamily: font.regular, fontSize: type.body.fontSize, color: color.ink },
   error: { borderColor: color.abnormal, borderWidth: 2 },
+  empty: { borderStyle: 'dashed', backgroundColor: color.surfaceSunken },
 });

@@ -4,7 +4,7 @@ import { useController, useFormContext } from 'react-hook-form';
 import { Text } from '../ui/text';
 import { color, font, radius, space, touchTarget, type } from '../theme';
 import { parseNumberText } from './parse-number';
-import { roundHalfAway } from '../../shared/physiology/precision';
+import { RadioChips } from '../ui/radio-chips';
 
 interface FieldProps {
   name: string;
@@ -12,6 +12,9 @@ interface FieldProps {
   testID: string;
   hint?: string;
 }
+
+/** Marks a box holding an input and its unit: the focus ring is drawn around the whole box (web). */
+const focusRingWithin = { dataSet: { focusRing: 'within' } } as object;
 
 /** Ids tying a control to its label and to its hint or error (aria-labelledby / aria-describedby). */
 export const fieldIds = (testID: string) => ({ label: `${testID}-label`, help: `${testID}-help` });
@@ -38,7 +41,22 @@ export function FieldShell({ label, error, hint, children, testID }: { label: st
   );
 }
 
-/** A number with its unit beside it and the numeric keyboard; empty means "not recorded". */
+/**
+ * A number as text at `decimals` places at least (what was typed as "0.60" comes back as "0.60", not
+ * "0.6"); more decimals than that are kept as they are.
+ */
+export function numberText(value: number | null | undefined, decimals?: number): string {
+  if (value == null || Number.isNaN(value)) return '';
+  if (decimals === undefined) return String(value);
+  const fixed = value.toFixed(decimals);
+  return Number(fixed) === value ? fixed : String(value);
+}
+
+/**
+ * A number with its unit beside it and the numeric keyboard; empty means "not recorded".
+ * `accessibleLabel` names the box for screen readers when the visible label is shared with another
+ * box (e.g. "Pa" at rest and at hyperaemia); `decimals` is the display precision of the quantity.
+ */
 export function NumberField({
   name,
   label,
@@ -46,16 +64,14 @@ export function NumberField({
   testID,
   hint,
   integer = false,
-  decimals,
   accessibleLabel,
-}: FieldProps & { unit?: string; integer?: boolean; decimals?: number; accessibleLabel?: string }) {
-  // A stored value is shown at the index's display precision ("0.60", not "0.6").
-  const show = (v: unknown) => (v == null ? '' : decimals !== undefined && typeof v === 'number' ? roundHalfAway(v, decimals).toFixed(decimals) : String(v));
+  decimals,
+}: FieldProps & { unit?: string; integer?: boolean; accessibleLabel?: string; decimals?: number }) {
   const { control, setError, clearErrors } = useFormContext();
   const { field, fieldState } = useController({ name, control });
   const isBad = (v: unknown) => typeof v === 'number' && Number.isNaN(v);
   // NaN comes back from a draft when the text typed was not a number: shown empty, with its error.
-  const [text, setText] = useState(field.value == null || isBad(field.value) ? '' : show(field.value));
+  const [text, setText] = useState(numberText(field.value, decimals));
   const [badText, setBadText] = useState(isBad(field.value));
 
   // Follow the value when it changes from outside (a reload or a merge), not while typing.
@@ -63,7 +79,7 @@ export function NumberField({
     if (typeof field.value === 'number' && Number.isNaN(field.value)) return; // our own placeholder for bad text
     const parsed = parseNumberText(text);
     if (!parsed.ok || parsed.value !== field.value) {
-      setText(show(field.value));
+      setText(numberText(field.value, decimals));
       setBadText(false);
     }
     // eslint-disable-next-line react-hooks/exhaustive-deps
@@ -72,10 +88,10 @@ export function NumberField({
   const error = badText ? `${label}: enter a number${unit ? ` in ${unit}` : ''}.` : fieldState.error?.message;
   return (
     <FieldShell label={label} error={error} hint={hint} testID={testID}>
-      <View style={[styles.inputRow, error ? styles.inputError : null]}>
+      <View style={[styles.inputRow, error ? styles.inputError : null]} {...focusRingWithin}>
         <TextInput
           testID={testID}
-          accessibilityLabel={unit ? `${accessibleLabel ?? label} in ${unit}` : (accessibleLabel ?? label)}
+          accessibilityLabel={`${accessibleLabel ?? label}${unit ? ` in ${unit}` : ''}`}
           aria-invalid={!!error}
           aria-describedby={error || hint ? fieldIds(testID).help : undefined}
           value={text}
@@ -144,29 +160,15 @@ export function ChoiceField<T extends string | number | boolean>({ name, label, 
   const all: Option<T | null>[] = allowClear ? [...options, { value: null, label: 'Not recorded' }] : options;
   return (
     <FieldShell label={label} error={fieldState.error?.message} hint={hint} testID={testID}>
-      <View style={styles.chips} role="radiogroup" aria-labelledby={fieldIds(testID).label} aria-describedby={fieldState.error || hint ? fieldIds(testID).help : undefined}>
-        {all.map((o) => {
-          const selected = field.value === o.value || (o.value === null && field.value == null);
-          // "Not recorded" is the resting state of a field: shown as chosen, but quietly.
-          const quietSelected = selected && o.value === null;
-          return (
-            <Pressable
-              key={String(o.value)}
-              testID={`${testID}-${String(o.value)}`}
-              role="radio"
-              aria-checked={selected}
-              accessibilityLabel={o.label}
-              onPress={() => field.onChange(o.value)}
-              style={[styles.chip, selected && (quietSelected ? styles.chipQuietSelected : styles.chipSelected), o.value === null && !selected && styles.chipQuiet]}
-            >
-              <Text variant="caption" weight={selected ? 'semibold' : 'regular'} tone={selected && !quietSelected ? 'onBrand' : quietSelected ? 'muted' : 'ink'}>
-                {selected ? '✓ ' : ''}
-                {o.label}
-              </Text>
-            </Pressable>
-          );
-        })}
-      </View>
+      <RadioChips
+        testID={testID + '-group'}
+        optionTestID={testID}
+        labelledBy={fieldIds(testID).label}
+        describedBy={fieldState.error || hint ? fieldIds(testID).help : undefined}
+        options={all.map((o) => ({ ...o, quiet: o.value === null }))}
+        value={(field.value ?? null) as T | null}
+        onChange={(v) => field.onChange(v)}
+      />
     </FieldShell>
   );
 }
@@ -255,7 +257,7 @@ export function TransitTimesField({ name, label, testID, slots = 3 }: FieldProps
     <FieldShell label={label} error={error} hint="One box per saline injection, in seconds; three is usual." testID={testID}>
       <View style={styles.injections}>
         {texts.map((t, i) => (
-          <View key={i} style={[styles.inputRow, styles.injection, bad.includes(i) && styles.inputError]}>
+          <View key={i} style={[styles.inputRow, styles.injection, bad.includes(i) && styles.inputError]} {...focusRingWithin}>
             <TextInput
               testID={`${testID}-${i}`}
               accessibilityLabel={`${label}, injection ${i + 1}, in seconds`}
@@ -313,7 +315,11 @@ const styles = StyleSheet.create({
   textInput: { borderWidth: 1, borderColor: color.inkFaint, borderRadius: radius.md, backgroundColor: color.surface, paddingHorizontal: space.md },
   multiline: { minHeight: 96, paddingVertical: space.sm, textAlignVertical: 'top' },
   unit: { marginLeft: space.xs },
-  chips: { flexDirection: 'row', flexWrap: 'wrap', gap: space.sm },
+
+  injections: { flexDirection: 'row', flexWrap: 'wrap', gap: space.sm, alignItems: 'center' },
+  injection: { width: 96 },
+  addInjection: { minHeight: touchTarget, justifyContent: 'center', paddingHorizontal: space.sm },
+  chips: { flexDirection: 'row', flexWrap: 'wrap', gap: space.sm, minWidth: 0 },
   chip: {
     minHeight: touchTarget,
     justifyContent: 'center',
@@ -322,11 +328,7 @@ const styles = StyleSheet.create({
     borderWidth: 1,
     borderColor: color.line,
     backgroundColor: color.surface,
+    flexShrink: 1,
   },
   chipSelected: { backgroundColor: color.brand, borderColor: color.brand },
-  chipQuiet: { borderStyle: 'dashed' },
-  chipQuietSelected: { backgroundColor: color.surfaceSunken, borderColor: color.inkFaint, borderStyle: 'dashed' },
-  injections: { flexDirection: 'row', flexWrap: 'wrap', gap: space.sm, alignItems: 'center' },
-  injection: { width: 96 },
-  addInjection: { minHeight: touchTarget, justifyContent: 'center', paddingHorizontal: space.sm },
 });

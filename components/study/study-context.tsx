@@ -1,11 +1,14 @@
 import { createContext, useContext } from 'react';
 import type { StudyRecord } from '../../shared/study/schema';
+import type { MergeChoice } from '../../shared/study/merge';
 import type { SaveState } from './use-autosave';
 
 export interface StudyContextValue {
   study: StudyRecord;
   locked: boolean;
-  save: { state: SaveState; flush: () => Promise<void>; loadSaved: (s: StudyRecord) => void; keepMine: (s: StudyRecord) => void };
+  save: { state: SaveState; flush: () => Promise<void>; loadSaved: (s: StudyRecord) => void; resolve: (s: StudyRecord, choices: Record<string, MergeChoice>) => void };
+  /** Why the form is read only, when it is. */
+  readOnlyReason: string | null;
 }
 
 export const StudyContext = createContext<StudyContextValue | null>(null);

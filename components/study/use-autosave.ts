@@ -1,20 +1,24 @@
 import { useCallback, useEffect, useRef, useState } from 'react';
 import type { UseFormReturn } from 'react-hook-form';
-import { useQueryClient } from '@tanstack/react-query';
-import { sectionNames, studySectionsSchema, type SectionName, type StudyRecord, type StudySections } from '../../shared/study/schema';
+import { useMutation, useQueryClient } from '@tanstack/react-query';
+import type { SectionName, StudyRecord, StudySections } from '../../shared/study/schema';
+import { threeWayMerge, type MergeChoice, type MergeConflict } from '../../shared/study/merge';
 import { ApiError } from '../data/api';
 import { patchStudyRequest, studyKeys } from '../data/study-query';
 import { clearDraft, farewell, heartbeat, tabId, toStableJson, writeDraft } from './draft-store';
+import { decideOnSaveError, formNameOf, pathOfPointer, planSave, saveRetryDelay, shouldRetrySave, valueAt, type SaveFailure, type StopReason } from './save-plan';
 
 export type SaveState =
-  | { kind: 'saved'; at: Date | null }
+  | { kind: 'saved'; at: Date | null; mergedWith?: number }
   | { kind: 'pending' }
   | { kind: 'saving' }
   | { kind: 'offline' }
-  | { kind: 'invalid'; sections: SectionName[] }
-  | { kind: 'conflict'; current: StudyRecord }
-  /** Stops retrying: the user must act (sign in again, or the study was signed meanwhile). */
-  | { kind: 'stopped'; reason: 'signed-out' | 'signed' | 'refused' | 'gone'; message: string };
+  /** Fields kept on this device until corrected (JSON pointers); the rest of their sections was sent. */
+  | { kind: 'invalid'; sections: SectionName[]; fields: string[] }
+  /** Another writer changed the same fields: the person chooses, field by field. */
+  | { kind: 'conflict'; current: StudyRecord; conflicts: MergeConflict[] }
+  /** Stops sending: the user must act (sign in again, or the study was signed meanwhile). */
+  | { kind: 'stopped'; reason: StopReason; message: string };
 
 export const sectionsOf = (s: StudySections): StudySections => ({
   patient: s.patient,
@@ -25,15 +29,12 @@ export const sectionsOf = (s: StudySections): StudySections => ({
   findings: s.findings,
 });
 
-/** Equality that tells NaN (uncorrected text in a number box) from an empty field. */
-const same = (a: unknown, b: unknown) => toStableJson(a) === toStableJson(b);
 // structuredClone keeps NaN (the mark of text in a number box), which a JSON round trip would turn into null.
 const clone = <T,>(v: T): T => structuredClone(v);
-const fieldOfPointer = (pointer: string) => pointer.split('/').slice(1).map((p) => p.replaceAll('~1', '/').replaceAll('~0', '~')).join('.');
-const validSection = (n: SectionName, value: unknown) => studySectionsSchema.shape[n].safeParse(value).success;
+const failureOf = (error: unknown): SaveFailure =>
+  error instanceof ApiError ? { status: error.status, problem: error.problem as SaveFailure['problem'] } : { status: -1 };
 
 const debounceMs = 700;
-const retryMs = 5000;
 
 export interface AutosaveStart {
   /** The version and server copy the form's values were based on (a restored draft's, or the study's). */
@@ -44,9 +45,10 @@ export interface AutosaveStart {
 
 /**
  * Saves a study without a save button. Every change is kept on the device at once, with the server
- * copy it was based on; after a pause the changed sections are sent with that version. Offline: retried
- * when the network returns. Stale: the user chooses to load the saved version or to put theirs on top,
- * section by section. Leaving the study or hiding the tab sends what is pending straight away.
+ * copy it was based on; after a pause the changed fields are sent with that version (a field that
+ * cannot be saved stays here, the rest goes). Failures that may pass are retried by the mutation
+ * (TanStack Query pauses it while the browser is offline and resumes it when it is back). Stale:
+ * merged field by field with the other writer's save; where both changed a field, the person chooses.
  */
 export function useAutosave(study: StudyRecord, form: UseFormReturn<StudySections>, start: AutosaveStart, locked = false) {
   const queryClient = useQueryClient();
@@ -56,45 +58,70 @@ export function useAutosave(study: StudyRecord, form: UseFormReturn<StudySection
   const inFlight = useRef(false);
   const again = useRef(false);
   const stopped = useRef(false);
+  const conflict = useRef<StudyRecord | null>(null);
+  /** The other writer's version merged in since the last save was confirmed (said once it is saved). */
+  const merged = useRef<number | null>(null);
   const unmounted = useRef(false);
-  /** Sections the server refused as they stand (e.g. an MRN of another patient): not resent until they change. */
-  const heldBack = useRef(new Map<SectionName, string>());
+  /** Fields the server refused as they stand (pointer → refused value): not resent until they change. */
+  const heldBack = useRef(new Map<string, string>());
   const [state, setStateNow] = useState<SaveState>({ kind: 'saved', at: null });
   // After the editor is gone, a last send may still finish: it must not touch state, timers or drafts.
   const setState: typeof setStateNow = (v) => {
     if (!unmounted.current) setStateNow(v);
   };
 
-  const dirtySections = useCallback((values: StudySections) => sectionNames.filter((n) => !same(values[n], server.current[n])), []);
+  const save = useMutation({
+    mutationKey: ['studies', 'save', study.id],
+    mutationFn: ({ body, keepalive }: { body: Record<string, unknown>; keepalive: boolean }) => patchStudyRequest(study.id, body, { keepalive }),
+    networkMode: 'online',
+    retry: (count, error) => shouldRetrySave(count, failureOf(error)),
+    retryDelay: (count) => saveRetryDelay(count),
+  });
+  const mutate = save.mutateAsync;
+
+  const plan = useCallback((values: StudySections) => {
+    for (const [pointer, refused] of heldBack.current) if (toStableJson(valueAt(values, pathOfPointer(pointer))) !== refused) heldBack.current.delete(pointer);
+    return planSave(values, server.current, heldBack.current, toStableJson);
+  }, []);
 
   const keepLocally = useCallback(() => {
     if (unmounted.current) return;
     const values = clone(form.getValues());
-    if (dirtySections(values).length === 0) return clearDraft(study.id);
+    if (toStableJson(values) === toStableJson(server.current)) return clearDraft(study.id);
     writeDraft({ studyId: study.id, userId: start.userId, tabId: tabId(), baseVersion: version.current, base: server.current, sections: values, savedAt: Date.now() });
-  }, [dirtySections, form, start.userId, study.id]);
+  }, [form, start.userId, study.id]);
+
+  /** What the status line says when nothing is on its way. */
+  const settle = useCallback((values: StudySections) => {
+    const p = plan(values);
+    if (Object.keys(p.send).length) {
+      setState({ kind: 'pending' });
+      return true;
+    }
+    if (p.held.length) setState({ kind: 'invalid', sections: [...new Set(p.held.map((h) => pathOfPointer(h)[0] as SectionName))], fields: p.held });
+    else {
+      clearDraft(study.id);
+      const mergedWith = merged.current;
+      setState((s) => (s.kind === 'saved' && !mergedWith ? s : { kind: 'saved', at: new Date(), mergedWith: mergedWith ?? undefined }));
+    }
+    return false;
+  // eslint-disable-next-line react-hooks/exhaustive-deps
+  }, [plan, study.id]);
 
   const flush = useCallback(
     async ({ keepalive = false } = {}) => {
       if (timer.current) clearTimeout(timer.current);
       timer.current = null;
-      if (stopped.current) return;
+      if (stopped.current || conflict.current) return;
       if (inFlight.current) {
         again.current = true;
         return;
       }
       const values = clone(form.getValues());
-      for (const [n, held] of heldBack.current) if (held !== toStableJson(values[n])) heldBack.current.delete(n);
-      // Sections with an entry that cannot be saved (e.g. text in a number box) wait for a correction,
-      // and so do sections the server refused as they stand; the other sections still go.
-      const invalid = sectionNames.filter((n) => !validSection(n, values[n]) || heldBack.current.has(n));
-      const ready = dirtySections(values).filter((n) => !invalid.includes(n));
+      const p = plan(values);
+      const ready = Object.keys(p.send) as SectionName[];
       if (ready.length === 0) {
-        if (invalid.length) setState({ kind: 'invalid', sections: invalid });
-        else {
-          clearDraft(study.id);
-          setState((s) => (s.kind === 'conflict' ? s : { kind: 'saved', at: s.kind === 'saved' ? s.at : new Date() }));
-        }
+        settle(values);
         return;
       }
       inFlight.current = true;
@@ -103,82 +130,74 @@ export function useAutosave(study: StudyRecord, form: UseFormReturn<StudySection
         if (!unmounted.current) timer.current = setTimeout(() => void flush(), ms);
       };
       try {
-        const body: Record<string, unknown> = { version: version.current };
-        for (const n of ready) body[n] = values[n];
-        const saved = await patchStudyRequest(study.id, body, { keepalive });
+        const body: Record<string, unknown> = { version: version.current, ...p.send };
+        // A send as the page goes away must start now: straight to fetch, not through the mutation's queue.
+        const saved = keepalive ? await patchStudyRequest(study.id, body, { keepalive }) : await mutate({ body, keepalive });
         version.current = saved.version;
-        for (const n of ready) (server.current as Record<SectionName, unknown>)[n] = values[n];
+        server.current = { ...server.current, ...clone(p.send) } as StudySections;
         queryClient.setQueryData(studyKeys.detail(study.id), saved);
         void queryClient.invalidateQueries({ queryKey: studyKeys.lists() });
         keepLocally();
-        const now = clone(form.getValues());
-        const stillInvalid = sectionNames.filter((n) => !validSection(n, now[n]) || heldBack.current.has(n));
-        const stillDirty = dirtySections(now).filter((n) => !stillInvalid.includes(n));
-        if (stillDirty.length) {
-          setState({ kind: 'pending' });
-          again.current = true;
-        } else if (stillInvalid.length) setState({ kind: 'invalid', sections: stillInvalid });
-        else setState({ kind: 'saved', at: new Date() });
+        if (settle(clone(form.getValues()))) again.current = true;
+        else merged.current = null;
       } catch (error) {
-        const status = error instanceof ApiError ? error.status : -1;
-        const problem = error instanceof ApiError ? (error.problem as ApiError['problem'] & { current?: StudyRecord }) : undefined;
-        const stop = (reason: 'signed-out' | 'signed' | 'refused' | 'gone', message: string) => {
-          stopped.current = true;
-          setState({ kind: 'stopped', reason, message });
-        };
-        const type = problem?.type?.split('/').pop();
-        if (status === 0) {
-          setState({ kind: 'offline' });
-          schedule(retryMs);
-        } else if (status === 409 && type === 'stale-version' && problem?.current) {
-          const theirs = sectionsOf(problem.current);
-          const mine = clone(form.getValues());
-          if (sectionNames.every((n) => same(mine[n], theirs[n]))) {
-            // The newer version holds exactly what this tab has: our own save whose answer was lost
-            // (a save sent as the page was hidden or reloaded). Nothing to choose between.
-            version.current = problem.current.version;
+        const decision = decideOnSaveError(failureOf(error));
+        switch (decision.kind) {
+          case 'retry':
+            // The mutation has given up (only when the editor is leaving) or a keepalive send failed.
+            setState({ kind: 'offline' });
+            schedule(5000);
+            break;
+          case 'stale': {
+            const current = decision.current;
+            const theirs = sectionsOf(current);
+            const mine = clone(form.getValues());
+            const merge = threeWayMerge(server.current, mine, theirs);
+            queryClient.setQueryData(studyKeys.detail(study.id), current);
+            if (merge.conflicts.length) {
+              conflict.current = current;
+              setState({ kind: 'conflict', current, conflicts: merge.conflicts });
+              break;
+            }
+            // Nothing changed on both sides: take theirs where they changed, keep ours where we did.
+            version.current = current.version;
             server.current = clone(theirs);
-            queryClient.setQueryData(studyKeys.detail(study.id), problem.current);
+            if (toStableJson(merge.merged) !== toStableJson(mine)) form.reset(clone(merge.merged), { keepErrors: true });
             keepLocally();
-            setState({ kind: 'saved', at: new Date() });
-          } else {
-            setState({ kind: 'conflict', current: problem.current });
+            merged.current = current.version;
+            if (settle(clone(form.getValues()))) again.current = true;
+            break;
           }
-        } else if ((status === 400 || status === 409 || status === 422) && problem?.errors?.length) {
-          const refused = new Set<SectionName>();
-          for (const e of problem.errors) {
-            form.setError(fieldOfPointer(e.pointer) as never, { type: 'server', message: e.detail });
-            const section = e.pointer.split('/')[1] as SectionName;
-            if (sectionNames.includes(section)) refused.add(section);
+          case 'fields': {
+            for (const e of decision.errors) {
+              const path = pathOfPointer(e.pointer);
+              form.setError(formNameOf(path) as never, { type: 'server', message: e.detail });
+              heldBack.current.set(e.pointer, toStableJson(valueAt(values, path)));
+            }
+            // The fields the server did not object to go out on their own.
+            if (settle(clone(form.getValues()))) again.current = true;
+            break;
           }
-          for (const n of refused) heldBack.current.set(n, toStableJson(values[n]));
-          setState({ kind: 'invalid', sections: [...refused] });
-          // The sections the server did not object to go out on their own.
-          if (ready.some((n) => !refused.has(n))) again.current = true;
-        } else if (status === 401) {
-          stop('signed-out', 'Your session has ended. Your edits are kept on this device: sign in again to send them.');
-        } else if (status === 409 && type === 'study-signed') {
-          stop('signed', 'The study was signed meanwhile, so these edits cannot be saved to it. They stay on this device; add them as an addendum.');
-        } else if (status === 409) {
-          stop('refused', `${problem?.detail ?? 'The change was refused.'} Reload the study.`);
-        } else if (status === 403) {
-          stop('refused', 'Your role may not change this study.');
-        } else if (status === 404) {
-          stop('gone', 'This study no longer exists.');
-        } else {
-          setState({ kind: 'offline' });
-          schedule(retryMs * 2);
+          case 'stop':
+            stopped.current = true;
+            if (decision.reason === 'forbidden') {
+              // This role may not edit: what was typed here cannot be kept, so it does not linger after a reload.
+              clearDraft(study.id);
+              form.reset(clone(server.current));
+            }
+            setState({ kind: 'stopped', reason: decision.reason, message: decision.message });
+            break;
         }
       } finally {
         inFlight.current = false;
-        if (again.current && !stopped.current) {
+        if (again.current && !stopped.current && !conflict.current) {
           again.current = false;
           if (unmounted.current) void flush({ keepalive: true });
           else schedule(debounceMs);
         }
       }
     },
-    [dirtySections, form, keepLocally, queryClient, study.id],
+    [form, keepLocally, mutate, plan, queryClient, settle, study.id],
   );
 
   useEffect(() => {
@@ -188,11 +207,11 @@ export function useAutosave(study: StudyRecord, form: UseFormReturn<StudySection
     const beat = setInterval(heartbeat, 5000);
     const subscription = form.watch(() => {
       keepLocally();
-      setState((s) => (s.kind === 'conflict' || s.kind === 'offline' || s.kind === 'stopped' ? s : { kind: 'pending' }));
+      if (conflict.current || stopped.current) return;
+      setState((s) => (s.kind === 'offline' ? s : { kind: 'pending' }));
       if (timer.current) clearTimeout(timer.current);
       timer.current = setTimeout(() => void flush(), debounceMs);
     });
-    const online = () => void flush();
     // Leaving or hiding the page sends what is pending now (keepalive lets it finish after unload).
     const hidden = () => {
       if (globalThis.document?.visibilityState === 'hidden') void flush({ keepalive: true });
@@ -201,15 +220,13 @@ export function useAutosave(study: StudyRecord, form: UseFormReturn<StudySection
       farewell();
       void flush({ keepalive: true });
     };
-    globalThis.addEventListener?.('online', online);
     globalThis.addEventListener?.('pagehide', pagehide);
     globalThis.document?.addEventListener?.('visibilitychange', hidden);
     // A draft restored from this device at load time goes out straight away.
-    if (dirtySections(form.getValues()).length) timer.current = setTimeout(() => void flush(), 50);
+    if (toStableJson(form.getValues()) !== toStableJson(server.current)) timer.current = setTimeout(() => void flush(), 50);
     return () => {
       subscription.unsubscribe();
       clearInterval(beat);
-      globalThis.removeEventListener?.('online', online);
       globalThis.removeEventListener?.('pagehide', pagehide);
       globalThis.document?.removeEventListener?.('visibilitychange', hidden);
       // Leaving the study (back to the worklist): what waits for the debounce is sent now, once;
@@ -218,11 +235,13 @@ export function useAutosave(study: StudyRecord, form: UseFormReturn<StudySection
       unmounted.current = true;
       if (pending) void flush({ keepalive: true });
     };
-  }, [dirtySections, flush, form, keepLocally, locked]);
+  }, [flush, form, keepLocally, locked]);
 
   /** Conflict: take the saved version and drop local edits. */
   const loadSaved = useCallback(
     (current: StudyRecord) => {
+      conflict.current = null;
+      heldBack.current.clear();
       version.current = current.version;
       server.current = clone(sectionsOf(current));
       clearDraft(study.id);
@@ -233,22 +252,26 @@ export function useAutosave(study: StudyRecord, form: UseFormReturn<StudySection
     [form, queryClient, study.id],
   );
 
-  /** Conflict: take the other writer's sections where this tab changed nothing since its base; send ours on top. */
-  const keepMine = useCallback(
-    (current: StudyRecord) => {
-      const base = server.current;
-      const mine = clone(form.getValues());
+  /**
+   * Conflict: merge field by field with the saved version; where both changed a field, `choices`
+   * says whose value stays (the saved one unless the person picked theirs). Then send the result.
+   */
+  const resolve = useCallback(
+    (current: StudyRecord, choices: Record<string, MergeChoice>) => {
       const theirs = clone(sectionsOf(current));
-      const merged = { ...mine } as Record<SectionName, unknown>;
-      for (const n of sectionNames) if (same(mine[n], base[n])) merged[n] = theirs[n];
+      const result = threeWayMerge(server.current, clone(form.getValues()), theirs, choices);
+      conflict.current = null;
       version.current = current.version;
       server.current = theirs;
-      form.reset(merged as StudySections);
+      form.reset(clone(result.merged), { keepErrors: true });
+      keepLocally();
       setState({ kind: 'pending' });
       void flush();
     },
-    [flush, form],
+    [flush, form, keepLocally],
   );
 
-  return { state, flush, loadSaved, keepMine };
+  // While a send waits on the network (paused offline, or between retries), say so.
+  const waiting = state.kind === 'saving' && (save.isPaused || save.failureCount > 0);
+  return { state: waiting ? ({ kind: 'offline' } as SaveState) : state, flush, loadSaved, resolve };
 }

@@ -20,7 +20,7 @@ export function ConfirmRemove({ what, onConfirm, testID }: { what: string; onCon
   }
   return (
     <View style={styles.ask} role="alert">
-      <Text variant="caption" weight="semibold">
+      <Text variant="caption" weight="semibold" style={styles.question}>
         Remove {what}?
       </Text>
       <Pressable
@@ -49,5 +49,7 @@ export function ConfirmRemove({ what, onConfirm, testID }: { what: string; onCon
 const styles = StyleSheet.create({
   action: { minHeight: touchTarget, justifyContent: 'center', paddingHorizontal: space.md, borderRadius: radius.md },
   danger: { backgroundColor: color.abnormal },
-  ask: { flexDirection: 'row', flexWrap: 'wrap', alignItems: 'center', gap: space.xs, backgroundColor: color.abnormalSoft, borderRadius: radius.md, paddingLeft: space.sm },
+  // Its own full-width line, wrapping inside it: both answers stay on a 390 px screen.
+  ask: { flexBasis: '100%', maxWidth: '100%', flexDirection: 'row', flexWrap: 'wrap', alignItems: 'center', gap: space.xs, backgroundColor: color.abnormalSoft, borderRadius: radius.md, padding: space.xs, paddingLeft: space.sm },
+  question: { flexBasis: '100%', flexShrink: 1 },
 });

@@ -17,6 +17,7 @@ import { ReportDelivery } from './entities/report-delivery.entity';
 import { ReportDelivery1765324800000 } from './migrations/1765324800000-report-delivery';
 
 import { SignedStudyGuard1765131313000 } from './migrations/1765131313000-signed-study-guard';
+import { PatientMrnSearch1765100000000 } from './migrations/1765100000000-patient-mrn-search';
 
 /** Entities and migrations are listed, not globbed, so tsx, vitest and a bundler all see the same set. */
 export const entities = [User, Patient, Study, VesselAssessment, ThermodilutionInjection, AcetylcholineDose, Attachment, ThresholdSet, ReportVersion, ReportDelivery];
@@ -27,6 +28,7 @@ export const migrations = [
   PatientNameSearch1764892800000,
   EndedSessions1764979200000,
   StudyRecordDetails1765065600000,
+  PatientMrnSearch1765100000000,
   SignedStudyGuard1765131313000,
   ReportVersions1765152000000,
   ReportDelivery1765324800000,

@@ -15,7 +15,7 @@ export const appendOnlyTables: Record<string, string[]> = {
   audit_event: ['actor_user_id', 'actor_name', 'actor_role', 'action', 'entity_type', 'entity_id', 'client_address', 'outcome', 'detail'],
   // Signed report versions: written once by the signature, never changed (a trigger refuses it too).
   report_version: [
-    'study_id', 'version_no', 'study_version', 'status', 'supersedes_id', 'reason', 'narrative_html', 'narrative_text',
+    'id', 'study_id', 'version_no', 'study_version', 'status', 'supersedes_id', 'reason', 'narrative_html', 'narrative_text',
     'snapshot', 'analysis', 'thresholds', 'template_version', 'pdf', 'pdf_sha256', 'content_sha256', 'signed_by',
     'signer_name', 'signed_at', 'attestation',
   ],

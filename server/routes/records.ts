@@ -1,11 +1,10 @@
 import type { DataSource } from 'typeorm';
-import { toFhirAuditEvent } from '../../fhir/audit-event';
-import { auditContext, recordAudit, type AuditRow } from '../audit/audit';
+import { auditContext, recordAudit } from '../audit/audit';
 import type { ApiRoute } from '../http/routes';
 import { defaultSignatureTargetHours, waitingSince } from '../../shared/turnaround/overdue';
 import { summarySelect, toSummary } from '../studies/worklist';
 
-/** Reads of the coding queue, overdue studies, users and the audit trail. Every read is audited. */
+/** Reads of the coding queue, overdue studies and users. Every read is audited. */
 export function recordRoutes({ dataSource }: { dataSource: DataSource }): ApiRoute[] {
   return [
     {
@@ -61,42 +60,6 @@ export function recordRoutes({ dataSource }: { dataSource: DataSource }): ApiRou
               email: u.email,
               role: u.role,
               lastSignInAt: u.last_sign_in_at?.toISOString() ?? null,
-            })),
-          });
-        },
-      ],
-    },
-    {
-      method: 'get',
-      path: '/audit-events',
-      access: 'audit:read',
-      summary: 'The newest audit events as FHIR R4 AuditEvent resources (a searchset Bundle)',
-      handlers: [
-        async (req, res) => {
-          const limit = Math.min(500, Math.max(1, Number(req.query.limit) || 100));
-          const rows: AuditRow[] = await dataSource.query(
-            `SELECT id::text, recorded_at, actor_user_id, actor_name, actor_role, action, entity_type, entity_id, client_address, outcome, detail
-             FROM audit_event ORDER BY id DESC LIMIT $1`,
-            [limit],
-          );
-          await recordAudit(dataSource, { ...auditContext(req), action: 'export', entityType: 'audit-event', outcome: 'success', detail: { returned: rows.length } });
-          res.json({
-            resourceType: 'Bundle',
-            type: 'searchset',
-            total: rows.length,
-            entry: rows.map((r) => ({
-              resource: toFhirAuditEvent({
-                id: r.id,
-                recordedAt: r.recorded_at,
-                actorUserId: r.actor_user_id,
-                actorName: r.actor_name,
-                actorRole: r.actor_role,
-                action: r.action,
-                entityType: r.entity_type,
-                entityId: r.entity_id,
-                clientAddress: r.client_address,
-                outcome: r.outcome,
-              }),
             })),
           });
         },

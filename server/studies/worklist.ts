@@ -2,6 +2,7 @@ import type { DataSource } from 'typeorm';
 import type { WorklistItem, WorklistPage, WorklistQuery } from '../../shared/study/worklist';
 import { BadRequestError } from '../http/problem';
 import { problemOfText } from '../http/input-safety';
+import { parseSearch, type ParsedSearch } from '../../shared/study/search';
 
 /**
  * One study as lists show it (worklist, coding queue, turnaround): `SELECT … FROM` a study with its
@@ -57,6 +58,22 @@ function decodeCursor(cursor: string): [string, string] {
 
 const escapeLike = (s: string) => s.replace(/[\\%_]/g, (c) => `\\${c}`);
 
+/** The patients a search names, as a condition on `p` (patient) that each arm of which an index answers. */
+function patientMatch(search: ParsedSearch, raw: string, param: (v: unknown) => string): string {
+  const arms = [`p.mrn = ${param(raw.trim())}`, `upper(p.mrn) = ${param(search.id)}`];
+  if (search.partialId) {
+    arms.push(`upper(p.mrn) LIKE ${param(`${escapeLike(search.id)}%`)}`);
+    arms.push(`reverse(upper(p.mrn)) LIKE ${param(`${escapeLike([...search.id].reverse().join(''))}%`)}`);
+  }
+  for (const name of search.names) {
+    const parts: string[] = [];
+    if (name.family) parts.push(`lower(p.family_name) LIKE ${param(`${escapeLike(name.family)}%`)}`);
+    if (name.given) parts.push(`lower(p.given_name) LIKE ${param(`${escapeLike(name.given)}%`)}`);
+    if (parts.length) arms.push(`(${parts.join(' AND ')})`);
+  }
+  return `(${arms.join(' OR ')})`;
+}
+
 /** Up to this many matching patients, search goes patient-first (see listStudies). */
 const patientLookupCap = 200;
 
@@ -76,21 +93,21 @@ export async function listStudies(db: DataSource, query: WorklistQuery): Promise
   if (query.from) where.push(`s.sort_at >= ${param(query.from)}::timestamptz`);
   if (query.to) where.push(`s.sort_at < ${param(query.to)}::timestamptz`);
   if (query.q) {
-    // Patients first, through their own indexes (MRN, family and given name prefixes); then the
-    // studies of those patients. Mixing patient and study columns in one OR would force a walk of
-    // the whole worklist for a rare name. A very common prefix falls back to that walk, which is
-    // fast exactly when matches are dense.
-    const prefix = `${escapeLike(query.q.toLowerCase())}%`;
+    // Patients first, through their own indexes (MRN as typed or in capitals, its first or last
+    // digits, family and given name prefixes); then the studies of those patients. Mixing patient
+    // and study columns in one OR would force a walk of the whole worklist for a rare name. A very
+    // common prefix falls back to that walk, which is fast exactly when matches are dense.
+    const search = parseSearch(query.q);
+    const lookup: unknown[] = [];
     const patients: { id: string }[] = await db.query(
-      `SELECT id FROM patient WHERE mrn = $1 OR lower(family_name) LIKE $2 OR lower(given_name) LIKE $2 LIMIT ${patientLookupCap + 1}`,
-      [query.q, prefix],
+      `SELECT id FROM patient p WHERE ${patientMatch(search, query.q, (v) => (lookup.push(v), `$${lookup.length}`))} LIMIT ${patientLookupCap + 1}`,
+      lookup,
     );
-    const exact = param(query.q);
+    const accession = param(search.id);
     if (patients.length <= patientLookupCap) {
-      where.push(`(s.patient_id = ANY(${param(patients.map((p) => p.id))}::uuid[]) OR s.accession = upper(${exact}))`);
+      where.push(`(s.patient_id = ANY(${param(patients.map((p) => p.id))}::uuid[]) OR s.accession = ${accession})`);
     } else {
-      const like = param(prefix);
-      where.push(`(p.mrn = ${exact} OR s.accession = upper(${exact}) OR lower(p.family_name) LIKE ${like} OR lower(p.given_name) LIKE ${like})`);
+      where.push(`(s.accession = ${accession} OR ${patientMatch(search, query.q, param)})`);
     }
   }
   if (query.cursor) {

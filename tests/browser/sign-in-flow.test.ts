@@ -103,3 +103,101 @@ describe('signing in from the browser', () => {
     }
   });
 });
+
+describe('getting around', () => {
+  it('returns to the study link after signing in from it', async () => {
+    const context = await browser.context.browser()!.newContext({ viewport: viewports.phone });
+    const page = await context.newPage();
+    try {
+      await page.goto(`${stack.url}/studies/${study.id}`);
+      await page.waitForURL(/\/sign-in/);
+      await page.getByRole('button', { name: 'Sign in with your hospital account' }).click();
+      await page.waitForURL((url) => url.href.startsWith(stack.idp.issuer));
+      await page.getByTestId('idp-username').fill(usernameOf('physician'));
+      await page.getByTestId('idp-password').fill('demo');
+      await page.getByTestId('idp-submit').click();
+      await page.waitForURL((url) => url.href.startsWith(stack.url) && url.pathname === `/studies/${study.id}`);
+      await page.getByTestId('study-editor').waitFor();
+    } finally {
+      await context.close();
+    }
+  });
+
+  it('says at once that a study is missing, without retrying', async () => {
+    const context = await browser.context.browser()!.newContext({ viewport: viewports.phone });
+    const page = await context.newPage();
+    try {
+      await signInInBrowser(page, stack, usernameOf('staff'));
+      const started = Date.now();
+      await page.goto(`${stack.url}/studies/00000000-0000-4000-8000-000000000000`);
+      await page.getByText('No such study').waitFor();
+      expect(Date.now() - started).toBeLessThan(4000);
+    } finally {
+      await context.close();
+    }
+  });
+
+  it('says at once that a study is not for this role', async () => {
+    const context = await browser.context.browser()!.newContext({ viewport: viewports.phone });
+    const page = await context.newPage();
+    try {
+      await signInInBrowser(page, stack, usernameOf('admin'));
+      let studyReads = 0;
+      page.on('request', (r) => {
+        if (r.url().endsWith(`/api/studies/${study.id}`)) studyReads++;
+      });
+      const started = Date.now();
+      await page.goto(`${stack.url}/studies/${study.id}`);
+      await page.getByText('Your role may not open this study').waitFor();
+      expect(Date.now() - started).toBeLessThan(4000);
+      await page.waitForTimeout(1500);
+      expect(studyReads).toBe(1);
+      await page.screenshot({ path: screenshotPath('study-forbidden-phone') });
+    } finally {
+      await context.close();
+    }
+  });
+
+  it('opens a study from the turnaround list and from the coding queue, and the chief sees more tabs are there', async () => {
+    const signed = await createStudy(db, { state: 'signed', endedHoursAgo: 5 });
+    const context = await browser.context.browser()!.newContext({ viewport: viewports.phone });
+    const page = await context.newPage();
+    try {
+      await signInInBrowser(page, stack, usernameOf('chief'));
+      // Four tabs do not fit 390 px: a cue says the row scrolls.
+      await page.getByTestId('tabs-more-cue').waitFor();
+      await page.screenshot({ path: screenshotPath('turnaround-chief-phone') });
+      await page.getByTestId(`study-row-${study.accession}`).click();
+      await page.waitForURL((url) => url.pathname === `/studies/${study.id}`);
+      await page.goto(`${stack.url}/coding`);
+      await page.getByTestId(`study-row-${signed.accession}`).click();
+      await page.waitForURL((url) => url.pathname === `/studies/${signed.id}`);
+    } finally {
+      await context.close();
+    }
+  });
+
+  it('keeps worklist filters in the address, and they are radio groups with Space and arrow keys', async () => {
+    const context = await browser.context.browser()!.newContext({ viewport: viewports.desktop });
+    const page = await context.newPage();
+    try {
+      await signInInBrowser(page, stack, usernameOf('staff'));
+      const draft = page.getByTestId('filter-state-draft');
+      await draft.waitFor();
+      expect(await draft.getAttribute('role')).toBe('radio');
+      await draft.focus();
+      await page.keyboard.press('Space');
+      await page.waitForURL(/state=draft/);
+      await page.keyboard.press('ArrowRight');
+      await page.waitForURL(/state=awaiting-signature/);
+      await page.getByTestId('worklist-search').fill(study.patient.mrn.toLowerCase());
+      await page.waitForURL(/q=/);
+      await page.reload();
+      await expect.poll(() => page.getByTestId('filter-state-awaiting-signature').getAttribute('aria-checked')).toBe('true');
+      expect(await page.getByTestId('worklist-search').inputValue()).toBe(study.patient.mrn.toLowerCase());
+      await page.getByTestId(`study-row-${study.accession}`).waitFor();
+    } finally {
+      await context.close();
+    }
+  });
+});

@@ -36,6 +36,9 @@ describe.each(Object.entries(viewports))('signed-out start page at %s width', (n
     const family = await page.getByRole('heading', { level: 1 }).evaluate((el) => getComputedStyle(el).fontFamily);
     expect(family).toContain('PublicSans_700Bold');
     expect(await page.evaluate(() => document.fonts.check('16px PublicSans_400Regular'))).toBe(true);
+    // It promises only what the product does today: no report signing or delivery yet.
+    const text = await page.getByTestId('sign-in-page').innerText();
+    expect(text).not.toMatch(/sign(ed)? report|report and sign|deliver/i);
     // Nothing wider than the viewport.
     expect(await page.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(viewport.width);
     await page.screenshot({ path: screenshotPath(`sign-in-page-${name}`), fullPage: true });

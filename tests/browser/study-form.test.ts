@@ -37,6 +37,8 @@ describe('the structured study form on a phone', () => {
   it('creates a study, enters a vessel with pressures and injections, shows CFR and IMR, and keeps everything over a reload', async () => {
     const context = await browser.context.browser()!.newContext({ viewport: viewports.phone });
     const page = await context.newPage();
+    // A step that never happens fails with its locator, well inside the test's own limit.
+    page.setDefaultTimeout(12_000);
     try {
       await signInAs(page, 'staff');
       await visible(page, 'new-study').click();
@@ -62,8 +64,9 @@ describe('the structured study form on a phone', () => {
       await expect(visible(page, 'drift-alert').innerText()).resolves.toMatch(/Drift check missing for LAD/);
       const restPa = visible(page, 'vessel-0-rest-pa');
       expect(await restPa.getAttribute('inputmode')).toBe('decimal');
-      expect(await restPa.getAttribute('aria-label')).toBe('Resting Pa in mmHg');
-      expect(await visible(page, 'vessel-0-hyp-pa').getAttribute('aria-label')).toBe('Hyperaemic Pa in mmHg');
+      // Rest and hyperaemia boxes share the visible label "Pa": screen readers hear them apart.
+      expect(await restPa.getAttribute('aria-label')).toBe('Pa at rest in mmHg');
+      expect(await visible(page, 'vessel-0-hyp-pa').getAttribute('aria-label')).toBe('Pa at hyperaemia in mmHg');
       // Hand-computed from the published formulas (CFR = Tmn rest / Tmn hyp, EAPCI 2020; IMR = Pd × Tmn, Yong et al.): CFR 0.90 / 0.30 = 3.00, IMR 72 × 0.30 = 21.6,
       // corrected without wedge 20.52 because FFR 72/90 = 0.80 is abnormal (≤ 0.80, ESC 2024).
       await restPa.fill('100');
@@ -91,6 +94,16 @@ describe('the structured study form on a phone', () => {
       await visible(page, 'vessel-0-rest-pa').waitFor();
       expect(await visible(page, 'vessel-0-rest-pa').inputValue()).toBe('100');
       expect(await visible(page, 'vessel-0-hyp-tmn-2').inputValue()).toBe('0.3');
+      // A ratio comes back at its display precision, as typed (ratios to 2 decimals: ESC 2024 reports FFR as 0.80).
+      expect(await visible(page, 'vessel-0-drift').inputValue()).toBe('1.00');
+      // The keyboard focus ring goes round the whole box, unit included, not the inner input.
+      await visible(page, 'vessel-0-rest-pd').focus();
+      await page.keyboard.press('Shift+Tab');
+      const ring = await visible(page, 'vessel-0-rest-pa').evaluate((input) => ({
+        box: getComputedStyle(input.closest('[data-focus-ring="within"]')!).outlineStyle,
+        input: getComputedStyle(input).outlineStyle,
+      }));
+      expect(ring).toEqual({ box: 'solid', input: 'none' });
       await expect(visible(page, 'vessel-0-results-cfr-value').innerText()).resolves.toBe('3.00');
       const [row] = await db.query(
         `SELECT count(*)::int AS n FROM thermodilution_injection i JOIN vessel_assessment v ON v.id = i.vessel_assessment_id JOIN study s ON s.id = v.study_id JOIN patient p ON p.id = s.patient_id WHERE p.mrn = $1`,
@@ -107,6 +120,18 @@ describe('the structured study form on a phone', () => {
       await page.goto(studyUrl + '/setup');
       await visible(page, 'drift-check').waitFor();
       await page.screenshot({ path: screenshotPath('study-setup-desktop') });
+      // Yes / No / Not recorded is one radio group: arrow keys move the choice (WAI-ARIA APG radio group pattern).
+      await visible(page, 'setup-zeroed-true').click();
+      await page.keyboard.press('ArrowRight');
+      await expect.poll(() => visible(page, 'setup-zeroed-false').getAttribute('aria-checked')).toBe('true');
+      expect(await visible(page, 'setup-zeroed-true').getAttribute('aria-checked')).toBe('false');
+      // An empty procedure time shows the format, never a made-up time that could pass for data.
+      await page.goto(studyUrl);
+      const start = visible(page, 'details-started');
+      await start.waitFor();
+      expect(await start.inputValue()).toBe('');
+      expect(await start.getAttribute('placeholder')).toBe('YYYY-MM-DD HH:MM');
+      await expect(page.locator('#details-started-help:visible').innerText()).resolves.toMatch(/Not recorded yet/);
     } finally {
       await context.close();
     }
@@ -115,6 +140,8 @@ describe('the structured study form on a phone', () => {
   it('keeps edits typed while offline and sends them when the network returns', async () => {
     const context = await browser.context.browser()!.newContext({ viewport: viewports.phone });
     const page = await context.newPage();
+    // A step that never happens fails with its locator, well inside the test's own limit.
+    page.setDefaultTimeout(12_000);
     try {
       await signInAs(page, 'staff');
       await openByMrn(page, mrn);
@@ -135,6 +162,8 @@ describe('the structured study form on a phone', () => {
   it('records an angina-without-obstruction work-up with acetylcholine doses and shows the endotype', async () => {
     const context = await browser.context.browser()!.newContext({ viewport: viewports.phone });
     const page = await context.newPage();
+    // A step that never happens fails with its locator, well inside the test's own limit.
+    page.setDefaultTimeout(12_000);
     try {
       await signInAs(page, 'physician');
       await visible(page, 'new-study').click();
@@ -203,6 +232,8 @@ describe('the structured study form on a phone', () => {
   it('restores edits that never reached the server after a reload, sends them, and clears drafts at sign-out', async () => {
     const context = await browser.context.browser()!.newContext({ viewport: viewports.phone });
     const page = await context.newPage();
+    // A step that never happens fails with its locator, well inside the test's own limit.
+    page.setDefaultTimeout(12_000);
     try {
       await signInAs(page, 'staff');
       await openByMrn(page, mrn);
@@ -236,6 +267,8 @@ describe('the structured study form on a phone', () => {
   it('holds back a section with text in a number box instead of saving the last good number', async () => {
     const context = await browser.context.browser()!.newContext({ viewport: viewports.phone });
     const page = await context.newPage();
+    // A step that never happens fails with its locator, well inside the test's own limit.
+    page.setDefaultTimeout(12_000);
     try {
       await signInAs(page, 'staff');
       await openByMrn(page, mrn);

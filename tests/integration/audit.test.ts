@@ -108,3 +108,44 @@ describe('export as FHIR R4 AuditEvent', () => {
     expect(fhirIssues(bundle)).toEqual([]);
   });
 });
+
+describe('the audit trail for people (GET /api/audit-trail)', () => {
+  it('lists newest first across more than 999 events, pages by numeric id, and names the patient and accession', async () => {
+    // Enough events that ids cross 999 → 1000: compared as text, "999" would sort above "1000".
+    const { n } = (await db.query(`SELECT count(*)::int AS n FROM audit_event`))[0];
+    if (n < 1100) await db.query(`INSERT INTO audit_event (action, outcome, entity_type) SELECT 'search', 'success', 'study' FROM generate_series(1, $1)`, [1100 - n]);
+    const study = await createStudy(db);
+    const session = await signIn(stack, usernameOf('physician'));
+    await request(stack.url).get(`/api/studies/${study.id}`).set('Cookie', session.cookie).expect(200);
+    const chief = await signIn(stack, usernameOf('chief'));
+
+    const first = await request(stack.url).get('/api/audit-trail?limit=20').set('Cookie', chief.cookie).expect(200);
+    const ids = first.body.items.map((i: { id: string }) => Number(i.id));
+    expect(ids).toEqual([...ids].sort((a, b) => b - a));
+    const { max } = (await db.query(`SELECT max(id)::int AS max FROM audit_event WHERE action <> 'search' OR entity_type <> 'audit-event'`))[0];
+    expect(ids[0]).toBeGreaterThanOrEqual(max);
+    const next = await request(stack.url).get(`/api/audit-trail?limit=20&before=${first.body.nextCursor}`).set('Cookie', chief.cookie).expect(200);
+    expect(Number(next.body.items[0].id)).toBe(ids[ids.length - 1] - 1);
+
+    const read = first.body.items.find((i: { action: string; studyId: string }) => i.action === 'read' && i.studyId === study.id);
+    expect(read).toMatchObject({ actionLabel: 'Opened', actor: 'Dr. Kofi Oduya', target: `Testperson, Ada · MRN ${study.patient.mrn} · ${study.accession}` });
+  });
+
+  it('filters by user, patient (MRN in any case), action and date', async () => {
+    const study = await createStudy(db);
+    const staff = await signIn(stack, usernameOf('staff'));
+    await request(stack.url).get(`/api/studies/${study.id}`).set('Cookie', staff.cookie).expect(200);
+    const chief = await signIn(stack, usernameOf('chief'));
+    const today = new Date().toISOString().slice(0, 10);
+    const q = new URLSearchParams({ patient: study.patient.mrn.toLowerCase(), action: 'read', from: today, to: today });
+    const res = await request(stack.url).get(`/api/audit-trail?${q}`).set('Cookie', chief.cookie).expect(200);
+    expect(res.body.items.length).toBe(1);
+    expect(res.body.items[0]).toMatchObject({ action: 'read', studyId: study.id, actorRole: 'staff' });
+    const byUser = await request(stack.url).get(`/api/audit-trail?patient=${study.patient.mrn}&user=oduya`).set('Cookie', chief.cookie).expect(200);
+    expect(byUser.body.items).toEqual([]);
+    const yesterday = new Date(Date.now() - 86_400_000).toISOString().slice(0, 10);
+    const before = await request(stack.url).get(`/api/audit-trail?patient=${study.patient.mrn}&to=${yesterday}`).set('Cookie', chief.cookie).expect(200);
+    expect(before.body.items).toEqual([]);
+    await request(stack.url).get('/api/audit-trail?action=launch').set('Cookie', chief.cookie).expect(400);
+  });
+});

@@ -1,6 +1,6 @@
 import { useState, type ReactNode } from 'react';
 import { Pressable, ScrollView, StyleSheet, View } from 'react-native';
-import { Slot, useLocalSearchParams } from 'expo-router';
+import { Link, Slot, useLocalSearchParams } from 'expo-router';
 import { FormProvider, useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import { studySectionsSchema, type StudyRecord, type StudySections } from '../../../../shared/study/schema';
@@ -12,14 +12,15 @@ import { Text } from '../../../../components/ui/text';
 import { StudyStateChip } from '../../../../components/study-state-chip';
 import { patientName } from '../../../../components/format';
 import { SectionNav } from '../../../../components/study/section-nav';
-import { ConflictBanner, SaveStatus } from '../../../../components/study/save-status';
+import { ConflictChooser, SaveStatus } from '../../../../components/study/save-status';
 import { StudyResults } from '../../../../components/study/live-results';
 import { DriftAlert } from '../../../../components/study/quality-alert';
 import { StudyContext } from '../../../../components/study/study-context';
 import { clearDraft, takeDraft, toStableJson } from '../../../../components/study/draft-store';
-import { useMeQuery } from '../../../../components/data/me-query';
+import { useMeQuery, useSignOut } from '../../../../components/data/me-query';
+import { studyStateLabel } from '../../../../shared/study/vocabulary';
 import { sectionsOf, useAutosave } from '../../../../components/study/use-autosave';
-import { color, space } from '../../../../components/theme';
+import { color, space, touchTarget } from '../../../../components/theme';
 
 /** One study: loads it once, owns its form and autosave; sections are child routes. */
 export default function StudyLayout() {
@@ -34,23 +35,30 @@ export default function StudyLayout() {
     );
   }
   if (study.isError) {
-    const missing = study.error instanceof ApiError && study.error.status === 404;
+    const status = study.error instanceof ApiError ? study.error.status : undefined;
+    const missing = status === 404 || status === 400;
+    const forbidden = status === 403;
     return (
       <Center style={styles.pad}>
         <ErrorState
-          title={missing ? 'No such study' : 'The study could not be opened'}
-          detail={missing ? 'The link may be wrong, or the study was removed.' : study.error.message}
-          onRetry={missing ? undefined : () => study.refetch()}
+          title={missing ? 'No such study' : forbidden ? 'Your role may not open this study' : 'The study could not be opened'}
+          detail={
+            missing ? 'The link may be wrong, or the study was removed.' : forbidden ? 'Ask the lab or an administrator if you need to see it.' : study.error.message
+          }
+          onRetry={missing || forbidden ? undefined : () => study.refetch()}
         />
       </Center>
     );
   }
-  return <StudyEditor key={study.data.id} study={study.data} userId={me.data!.id} />;
+  return <StudyEditor key={study.data.id} study={study.data} userId={me.data!.id} canWrite={me.data!.permissions.includes('study:write')} home={me.data!.home ?? '/'} />;
 }
 
-function StudyEditor({ study, userId }: { study: StudyRecord; userId: string }) {
+function StudyEditor({ study, userId, canWrite, home }: { study: StudyRecord; userId: string; canWrite: boolean; home: string }) {
   const wide = useIsWide();
-  const locked = study.state === 'signed' || study.state === 'amended';
+  const signOut = useSignOut();
+  const signed = study.state === 'signed' || study.state === 'amended';
+  const locked = signed || !canWrite;
+  const readOnlyReason = signed ? 'Signed — read only; changes are made as an addendum' : !canWrite ? 'Read only — your role may view this study but not change it' : null;
   // Unsent edits kept on this device win over the server copy at load. Sections the draft did not
   // change since its base are taken from the server, which may be newer; the base version then
   // decides whether the edits go as they are or need the user's choice (conflict).
@@ -68,15 +76,29 @@ function StudyEditor({ study, userId }: { study: StudyRecord; userId: string }) 
     return { values: values as StudySections, base: base as StudySections, baseVersion: draft.baseVersion };
   });
   // Edits kept on this device for a study that has been signed since: say so, and let them go.
-  const [leftover, setLeftover] = useState(() => (locked ? takeDraft(study.id, userId) : null));
+  const [leftover, setLeftover] = useState(() => (signed ? takeDraft(study.id, userId) : null));
+  // Edits this role may not make are dropped at once (they could never be saved), with a word why.
+  const [dropped] = useState(() => {
+    if (signed || canWrite || !takeDraft(study.id, userId)) return false;
+    clearDraft(study.id);
+    return true;
+  });
   const form = useForm<StudySections>({ defaultValues: initial.values, resolver: zodResolver(studySectionsSchema), mode: 'onChange' });
   const save = useAutosave(study, form, { baseVersion: initial.baseVersion, base: initial.base, userId }, locked);
   const current = save.state.kind === 'conflict' ? save.state.current : null;
+  const stoppedByRole = save.state.kind === 'stopped' && save.state.reason === 'forbidden';
 
-  const header = (
-    <View style={[styles.header, wide && styles.headerWide]}>
+  const status = locked ? (
+    <Text variant="caption" weight="semibold" tone="muted" testID="read-only-note">
+      {readOnlyReason}
+    </Text>
+  ) : (
+    <SaveStatus state={save.state} />
+  );
+  const header = wide ? (
+    <View style={[styles.header, styles.headerWide]}>
       <View style={styles.headerText}>
-        <Text variant={wide ? 'headline' : 'title'} weight="bold" role="heading" aria-level={1} testID="study-patient-name" numberOfLines={1}>
+        <Text variant="headline" weight="bold" role="heading" aria-level={1} testID="study-patient-name" numberOfLines={1}>
           {patientName(form.watch('patient'))}
         </Text>
         <Text variant="caption" tone="muted">
@@ -84,53 +106,90 @@ function StudyEditor({ study, userId }: { study: StudyRecord; userId: string }) 
         </Text>
       </View>
       <DriftAlert studyId={study.id} />
-      <View style={[styles.headerState, !wide && styles.headerStatePhone]}>
+      <View style={styles.headerState}>
         <StudyStateChip state={study.state} />
-        {locked ? (
-          <Text variant="caption" weight="semibold" tone="muted">
-            Signed — read only; changes are made as an addendum
+        {status}
+      </View>
+    </View>
+  ) : (
+    // A phone keeps the form in view: one compact bar (the app's own bar steps aside on a study).
+    <View style={[styles.header, styles.headerPhone]} testID="study-header">
+      <View style={styles.phoneRow}>
+        <Link href={home as '/'} asChild>
+          <Pressable testID="study-back" role="link" accessibilityLabel="Back to the list" style={styles.back}>
+            <Text variant="title" weight="bold" tone="brand">
+              ‹
+            </Text>
+          </Pressable>
+        </Link>
+        <Text variant="body" weight="bold" role="heading" aria-level={1} testID="study-patient-name" numberOfLines={1} style={styles.phoneName}>
+          {patientName(form.watch('patient'))}
+        </Text>
+        <Pressable testID="sign-out-button" role="button" accessibilityLabel="Sign out" onPress={() => signOut.mutate()} disabled={signOut.isPending} style={styles.phoneSignOut}>
+          <Text variant="caption" weight="semibold" tone="brand">
+            {signOut.isPending ? 'Signing out…' : 'Sign out'}
           </Text>
-        ) : (
-          <SaveStatus state={save.state} />
-        )}
+        </Pressable>
+      </View>
+      <View style={styles.phoneMeta}>
+        <Text variant="caption" tone="muted" numberOfLines={1} style={styles.phoneIds}>
+          MRN {form.watch('patient.mrn')} · {study.accession} · {studyStateLabel[study.state]}
+        </Text>
+        <View style={styles.phoneStatus}>{status}</View>
       </View>
     </View>
   );
 
+  const banners = (
+    <>
+          {leftover ? (
+        <View style={[styles.bannerWrap]} role="alert" testID="leftover-draft">
+          <Text weight="semibold" tone="abnormal">
+            ▲ Edits made on this device were never saved, and the study has been signed since.
+          </Text>
+          <Text variant="caption" tone="muted">
+            They cannot be added to a signed study; record what matters as an addendum.
+          </Text>
+          <Pressable
+            role="button"
+            testID="leftover-discard"
+            accessibilityLabel="Discard the unsaved edits from this device"
+            onPress={() => {
+              clearDraft(study.id);
+              setLeftover(null);
+            }}
+            style={styles.discard}
+          >
+            <Text variant="caption" weight="semibold" tone="brand">
+              Discard them
+            </Text>
+          </Pressable>
+        </View>
+      ) : null}
+      {dropped || stoppedByRole ? (
+        <View style={styles.bannerWrap} role="alert" testID="edits-dropped">
+          <Text weight="semibold" tone="abnormal">
+            ▲ Edits made on this device were not saved: your role may view this study but not change it.
+          </Text>
+          <Text variant="caption" tone="muted">
+            They have been removed from this device. The study shows what is saved.
+          </Text>
+        </View>
+      ) : null}
+      {current ? (
+        <View style={styles.bannerWrap}>
+          <ConflictChooser key={current.version} state={save.state} onLoadSaved={() => save.loadSaved(current)} onResolve={(choices) => save.resolve(current, choices)} />
+        </View>
+      ) : null}
+    </>
+  );
+
   return (
-    <StudyContext.Provider value={{ study, locked, save }}>
+    <StudyContext.Provider value={{ study, locked, save, readOnlyReason }}>
       <FormProvider {...form}>
         <View style={styles.root} testID="study-editor">
           {header}
-          {leftover ? (
-            <View style={[styles.bannerWrap]} role="alert" testID="leftover-draft">
-              <Text weight="semibold" tone="abnormal">
-                ▲ Edits made on this device were never saved, and the study has been signed since.
-              </Text>
-              <Text variant="caption" tone="muted">
-                They cannot be added to a signed study; record what matters as an addendum.
-              </Text>
-              <Pressable
-                role="button"
-                testID="leftover-discard"
-                accessibilityLabel="Discard the unsaved edits from this device"
-                onPress={() => {
-                  clearDraft(study.id);
-                  setLeftover(null);
-                }}
-                style={styles.discard}
-              >
-                <Text variant="caption" weight="semibold" tone="brand">
-                  Discard them
-                </Text>
-              </Pressable>
-            </View>
-          ) : null}
-          {current ? (
-            <View style={styles.bannerWrap}>
-              <ConflictBanner state={save.state} onLoadSaved={() => save.loadSaved(current)} onKeepMine={() => save.keepMine(current)} />
-            </View>
-          ) : null}
+          {wide ? banners : null}
           {wide ? (
             <View style={styles.panes}>
               <SectionNav studyId={study.id} vertical />
@@ -147,6 +206,8 @@ function StudyEditor({ study, userId }: { study: StudyRecord; userId: string }) 
             <>
               <SectionNav studyId={study.id} vertical={false} />
               <ScrollView style={styles.formPane} contentContainerStyle={styles.formContentPhone} keyboardShouldPersistTaps="handled">
+                {banners}
+                <DriftAlert studyId={study.id} />
                 <Locked locked={locked}>
                   <Slot />
                 </Locked>
@@ -181,9 +242,17 @@ const styles = StyleSheet.create({
   root: { flex: 1 },
   header: { flexDirection: 'row', flexWrap: 'wrap', justifyContent: 'space-between', alignItems: 'center', gap: space.sm, paddingHorizontal: space.lg, paddingVertical: space.md, backgroundColor: color.surface, borderBottomWidth: 1, borderBottomColor: color.line },
   headerWide: { paddingHorizontal: space.xxl, paddingVertical: space.lg },
-  headerText: { flexShrink: 1, gap: 2 },
+  headerText: { flexShrink: 1, flexGrow: 1, minWidth: 0, gap: 2 },
   headerState: { alignItems: 'flex-end', gap: space.xs, flexShrink: 1 },
-  headerStatePhone: { flexDirection: 'row', flexWrap: 'wrap', alignItems: 'center', gap: space.sm },
+  headerPhone: { flexDirection: 'column', flexWrap: 'nowrap', alignItems: 'stretch', paddingHorizontal: space.xs, paddingTop: 0, paddingBottom: space.xs, gap: 0 },
+  phoneRow: { flexDirection: 'row', alignItems: 'center', gap: space.xs },
+  phoneName: { flex: 1, minWidth: 0 },
+  phoneSignOut: { minHeight: touchTarget, justifyContent: 'center', paddingHorizontal: space.sm },
+  // One line: the identifiers give way (ellipsis) before the save state does.
+  phoneMeta: { flexDirection: 'row', flexWrap: 'nowrap', alignItems: 'flex-start', justifyContent: 'space-between', columnGap: space.sm, paddingHorizontal: space.sm },
+  phoneIds: { flexShrink: 1, minWidth: 0 },
+  phoneStatus: { flexShrink: 0, maxWidth: '55%', alignItems: 'flex-end' },
+  back: { minWidth: touchTarget, minHeight: touchTarget, alignItems: 'center', justifyContent: 'center' },
   bannerWrap: { padding: space.md, gap: space.xs },
   discard: { minHeight: 44, justifyContent: 'center', alignSelf: 'flex-start' },
   panes: { flex: 1, flexDirection: 'row', gap: space.xl, paddingLeft: space.xl, paddingTop: space.xl },

@@ -13,6 +13,7 @@ import { Text } from '../../../../components/ui/text';
 import { color, radius, space, touchTarget } from '../../../../components/theme';
 import { vesselCodes, nhprKinds, nhprKindLabel, type VesselCode, type VesselResult } from '../../../../shared/physiology';
 import { emptyVessel, type StudySections } from '../../../../shared/study/schema';
+import { displayDecimals } from '../../../../shared/physiology/precision';
 import {
   coronarySegments,
   decisionLabel,
@@ -23,6 +24,7 @@ import {
   vesselLabel,
   vesselShortName,
 } from '../../../../shared/study/vocabulary';
+
 
 /** Vessels: one card per vessel studied, with its pressures, transit times and live indices. */
 export default function VesselsSection() {
@@ -95,24 +97,24 @@ function VesselCard({ index, onRemove, result }: { index: number; onRemove: () =
       </FieldRow>
       <Text weight="semibold">At rest</Text>
       <FieldRow>
-        <NumberField name={`${p}.restPa`} label="Pa" accessibleLabel="Resting Pa" unit="mmHg" testID={`${t}-rest-pa`} />
-        <NumberField name={`${p}.restPd`} label="Pd" accessibleLabel="Resting Pd" unit="mmHg" testID={`${t}-rest-pd`} />
+        <NumberField name={`${p}.restPa`} label="Pa" accessibleLabel="Pa at rest" decimals={displayDecimals.pressure} unit="mmHg" testID={`${t}-rest-pa`} />
+        <NumberField name={`${p}.restPd`} label="Pd" accessibleLabel="Pd at rest" decimals={displayDecimals.pressure} unit="mmHg" testID={`${t}-rest-pd`} />
       </FieldRow>
       <TransitTimesField name={`${p}.restTransit`} label="Transit time at rest" testID={`${t}-rest-tmn`} />
       <FieldRow>
         <ChoiceField name={`${p}.nhprKind`} label="Resting ratio from the console" testID={`${t}-nhpr-kind`} options={nhprKinds.map((k) => ({ value: k, label: nhprKindLabel[k] }))} />
-        <NumberField name={`${p}.nhprValue`} label="Resting ratio value" decimals={2} testID={`${t}-nhpr-value`} />
+        <NumberField name={`${p}.nhprValue`} label="Resting ratio value" decimals={displayDecimals.ratio} testID={`${t}-nhpr-value`} />
       </FieldRow>
       <Text weight="semibold">At hyperaemia</Text>
       <FieldRow>
-        <NumberField name={`${p}.hyperemiaPa`} label="Pa" accessibleLabel="Hyperaemic Pa" unit="mmHg" testID={`${t}-hyp-pa`} />
-        <NumberField name={`${p}.hyperemiaPd`} label="Pd" accessibleLabel="Hyperaemic Pd" unit="mmHg" testID={`${t}-hyp-pd`} />
-        <NumberField name={`${p}.consoleFfr`} label="FFR from the console" decimals={2} hint="Only when pressures were not entered" testID={`${t}-console-ffr`} />
+        <NumberField name={`${p}.hyperemiaPa`} label="Pa" accessibleLabel="Pa at hyperaemia" decimals={displayDecimals.pressure} unit="mmHg" testID={`${t}-hyp-pa`} />
+        <NumberField name={`${p}.hyperemiaPd`} label="Pd" accessibleLabel="Pd at hyperaemia" decimals={displayDecimals.pressure} unit="mmHg" testID={`${t}-hyp-pd`} />
+        <NumberField name={`${p}.consoleFfr`} label="FFR from the console" decimals={displayDecimals.ratio} hint="Only when pressures were not entered" testID={`${t}-console-ffr`} />
       </FieldRow>
       <TransitTimesField name={`${p}.hyperemiaTransit`} label="Transit time at hyperaemia" testID={`${t}-hyp-tmn`} />
       <FieldRow>
         <NumberField name={`${p}.wedgePressure`} label="Coronary wedge pressure" unit="mmHg" hint="During balloon occlusion, if measured" testID={`${t}-wedge`} />
-        <NumberField name={`${p}.driftPdPa`} label="Drift check at pull-back (Pd/Pa)" decimals={2} hint="Sensor at the guide tip after the run" testID={`${t}-drift`} />
+        <NumberField name={`${p}.driftPdPa`} label="Drift check at pull-back (Pd/Pa)" decimals={displayDecimals.ratio} hint="Sensor at the guide tip after the run" testID={`${t}-drift`} />
       </FieldRow>
       <TextField name={`${p}.driftNotDoneReason`} label="Drift check not done: why" hint="Only when no pull-back Pd/Pa was recorded" testID={`${t}-drift-not-done`} />
       <ChoiceField name={`${p}.pullbackPattern`} label="Pull-back pattern" testID={`${t}-pullback`} options={optionsOf(pullbackPatternLabel)} />
