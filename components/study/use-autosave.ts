@@ -23,6 +23,7 @@ export const sectionsOf = (s: StudySections): StudySections => ({
   vessels: s.vessels,
   vasoreactivity: s.vasoreactivity,
   findings: s.findings,
+  coding: s.coding,
 });
 
 /** Equality that tells NaN (uncorrected text in a number box) from an empty field. */

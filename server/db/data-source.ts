@@ -12,10 +12,12 @@ import { EndedSessions1764979200000 } from './migrations/1764979200000-ended-ses
 import { StudyRecordDetails1765065600000 } from './migrations/1765065600000-study-record-details';
 import { ReportVersions1765152000000 } from './migrations/1765152000000-report-versions';
 import { ReportVersion } from './entities/report-version.entity';
+import { CodeDecision, CodeLine, CodeSuggestionSet, CodingReview, CoronaryIntervention } from './entities/coding.entities';
+import { CodeReview1765238400000 } from './migrations/1765238400000-code-review';
 
 /** Entities and migrations are listed, not globbed, so tsx, vitest and a bundler all see the same set. */
-export const entities = [User, Patient, Study, VesselAssessment, ThermodilutionInjection, AcetylcholineDose, Attachment, ThresholdSet, ReportVersion];
-export const migrations = [InitialSchema1764633600000, SessionsAndAudit1764720000000, StudyRecord1764806400000, PatientNameSearch1764892800000, EndedSessions1764979200000, StudyRecordDetails1765065600000, ReportVersions1765152000000];
+export const entities = [User, Patient, Study, VesselAssessment, ThermodilutionInjection, AcetylcholineDose, Attachment, ThresholdSet, ReportVersion, CoronaryIntervention, CodeSuggestionSet, CodeLine, CodeDecision, CodingReview];
+export const migrations = [InitialSchema1764633600000, SessionsAndAudit1764720000000, StudyRecord1764806400000, PatientNameSearch1764892800000, EndedSessions1764979200000, StudyRecordDetails1765065600000, ReportVersions1765152000000, CodeReview1765238400000];
 
 export function createDataSource(databaseUrl: string, poolSize = 10): DataSource {
   return new DataSource({

@@ -13,7 +13,8 @@ import type { StudyState } from '../../shared/study/vocabulary';
 import { isEditable } from '../../shared/study/state-machine';
 import { HttpError, NotFoundError } from '../http/problem';
 import { recordAudit, type AuditEntry } from '../audit/audit';
-import { assignments, detailsColumns, findingsColumns, readSection, selectList, setupColumns, vasoreactivityColumns } from './columns';
+import { assignments, codingColumns, detailsColumns, findingsColumns, readSection, selectList, setupColumns, vasoreactivityColumns } from './columns';
+import { loadInterventions, replaceInterventions } from '../coding/study-interventions';
 import {
   AcetylcholineDose as DoseRow,
   ThermodilutionInjection as InjectionRow,
@@ -34,7 +35,7 @@ export async function loadStudy(db: Db, id: string): Promise<StudyRecord | null>
     `SELECT s.id, s.accession, s.state, s.version, s.created_at, s.updated_at,
             p.mrn, p.family_name, p.given_name, to_char(p.birth_date, 'YYYY-MM-DD') AS birth_date, p.sex,
             ${selectList(detailsColumns, 's', 'details')}, ${selectList(setupColumns, 's', 'setup')}, ${selectList(findingsColumns, 's', 'findings')},
-            ${selectList(vasoreactivityColumns, 's', 'vaso')}
+            ${selectList(vasoreactivityColumns, 's', 'vaso')}, ${selectList(codingColumns, 's', 'coding')}
      FROM study s JOIN patient p ON p.id = s.patient_id WHERE s.id = $1`,
     [id],
   );
@@ -67,6 +68,7 @@ export async function loadStudy(db: Db, id: string): Promise<StudyRecord | null>
     findings: readSection(findingsColumns, row, 'findings'),
     vessels: vesselRows.map((v) => toVessel(v, injections)),
     vasoreactivity: { ...readSection(vasoreactivityColumns, row, 'vaso'), doses: doseRows.map(toDose) },
+    coding: { ...readSection(codingColumns, row, 'coding'), interventions: await loadInterventions(manager, id) },
     attachments: attachmentRows.map(
       (a: Record<string, never>): AttachmentSummary => ({
         id: a.id,
@@ -258,10 +260,12 @@ export async function patchStudy(dataSource: DataSource, id: string, patch: Patc
     if (patch.setup) add(assignments(setupColumns, patch.setup, values.length + 1));
     if (patch.findings) add(assignments(findingsColumns, patch.findings, values.length + 1));
     if (patch.vasoreactivity) add(assignments(vasoreactivityColumns, patch.vasoreactivity, values.length + 1));
+    if (patch.coding) add(assignments(codingColumns, patch.coding, values.length + 1));
     await db.query(`UPDATE study SET ${[...sets, 'version = version + 1', 'updated_at = now()'].join(', ')} WHERE id = $${values.length + 1}`, [...values, id]);
     await removeIfUnused(db, leftBehind);
     if (patch.vessels) await replaceVessels(db, id, patch.vessels);
     if (patch.vasoreactivity) await replaceDoses(db, id, patch.vasoreactivity.doses);
+    if (patch.coding) await replaceInterventions(db, id, patch.coding.interventions);
     const changed = Object.keys(patch).filter((k) => k !== 'version');
     if (actor) await recordAudit(db, { ...actor, action: 'update', entityType: 'study', entityId: id, outcome: 'success', detail: { sections: changed, fromVersion: patch.version } });
     return { changed, record: (await loadStudy(db, id))! };
