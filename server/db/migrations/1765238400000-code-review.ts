@@ -109,6 +109,15 @@ export class CodeReview1765238400000 implements MigrationInterface {
       )`);
     await db.query(`CREATE INDEX coding_review_queue_idx ON coding_review (queued_at, study_id) WHERE status <> 'coded'`);
 
+    // A signed study's interventions are as frozen as its other rows, where that guard exists.
+    await db.query(`
+      DO $$ BEGIN
+        IF EXISTS (SELECT 1 FROM pg_proc WHERE proname = 'study_part_refuse_signed_change') THEN
+          CREATE TRIGGER coronary_intervention_signed_guard BEFORE INSERT OR UPDATE OR DELETE ON coronary_intervention
+          FOR EACH ROW EXECUTE FUNCTION study_part_refuse_signed_change();
+        END IF;
+      END $$`);
+
     // Suggestions and decisions are evidence of what was proposed and decided: append-only.
     await db.query(`
       CREATE FUNCTION coding_refuse_change() RETURNS trigger LANGUAGE plpgsql AS $$
