@@ -14,6 +14,7 @@ import { authRoutes } from './routes/auth';
 import { recordRoutes } from './routes/records';
 import { studyRoutes } from './routes/studies';
 import { settingsRoutes } from './routes/settings';
+import { codingRoutes } from './routes/coding';
 import { diskStorage, type AttachmentStorage } from './attachments/storage';
 
 export interface AppDeps {
@@ -28,7 +29,7 @@ export interface AppDeps {
 
 /** Every `/api` route with the access it needs: the router is built from this list alone. */
 export function apiRoutes(deps: Required<Pick<AppDeps, 'config' | 'dataSource' | 'idp' | 'storage'>>): ApiRoute[] {
-  return [...healthRoutes(deps), ...authRoutes(deps), ...studyRoutes(deps), ...settingsRoutes(deps), ...recordRoutes(deps)];
+  return [...healthRoutes(deps), ...authRoutes(deps), ...studyRoutes(deps), ...settingsRoutes(deps), ...recordRoutes(deps), ...codingRoutes(deps)];
 }
 
 /**
