@@ -20,7 +20,6 @@ export interface UserSummary {
 
 export const recordKeys = {
   worklist: ['studies', 'list'] as const,
-  codingQueue: ['coding', 'queue'] as const,
   awaitingSignature: ['turnaround', 'awaiting-signature'] as const,
   users: ['admin', 'users'] as const,
   audit: ['audit-events'] as const,
@@ -28,9 +27,6 @@ export const recordKeys = {
 
 export const useWorklistQuery = () =>
   useQuery({ queryKey: recordKeys.worklist, queryFn: () => apiFetch<{ items: StudySummary[] }>('/studies') });
-
-export const useCodingQueueQuery = () =>
-  useQuery({ queryKey: recordKeys.codingQueue, queryFn: () => apiFetch<{ items: StudySummary[] }>('/coding/queue') });
 
 export const useAwaitingSignatureQuery = () =>
   useQuery({
