@@ -68,3 +68,28 @@ export async function runSuggestCodes(reportVersionId: string): Promise<string[]
   }
   return logged;
 }
+
+/**
+ * A signed study for the coder: an intermediate LAD lesion with a low FFR and a resting ratio in the
+ * circumflex, after coronary angiography with left heart catheterization, outpatient, professional
+ * claim, hospital. Written through the repository as the form would, then signed and suggested.
+ */
+export async function signedCodingStudy(db: DataSource, signedBy: string, familyName = 'Halloran'): Promise<StudyRecord> {
+  const { createStudy, patchStudy, loadStudy } = await import('../../server/studies/repository');
+  const { emptyStudyCoding, emptyVessel, emptyDetails, emptySetup } = await import('../../shared/study/schema');
+  const id = await createStudy(db, { patient: { mrn: `CB-${randomUUID().slice(0, 8)}`, familyName, givenName: 'Bea', birthDate: '1958-02-14', sex: 'female' } }, null);
+  const created = (await loadStudy(db, id))!;
+  await patchStudy(db, id, {
+    version: created.version,
+    details: { ...emptyDetails(), procedureStartedAt: '2025-03-11T09:00:00.000Z', procedureEndedAt: '2025-03-11T10:00:00.000Z', operatorId: signedBy, anginaPresent: true, clinicalQuestion: 'intermediate-lesion', indication: 'Intermediate LAD lesion' },
+    setup: { ...emptySetup(), hyperemicAgent: 'adenosine' },
+    vessels: [
+      { ...emptyVessel(randomUUID(), 'LAD'), restPa: 92, restPd: 80, hyperemiaPa: 88, hyperemiaPd: 66 },
+      { ...emptyVessel(randomUUID(), 'LCX'), nhprKind: 'whole-cycle', nhprValue: 0.95 },
+    ],
+    coding: { ...emptyStudyCoding(), patientClass: 'outpatient', billing: 'professional', setting: 'hospital', diagnosticCath: 'done', coronaryAngiography: true, leftHeart: true },
+  });
+  const record = (await loadStudy(db, id))!;
+  await runSuggestCodes(await insertReportVersion(db, record, { signedBy }));
+  return record;
+}
