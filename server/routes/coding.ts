@@ -1,6 +1,6 @@
 import type { Request } from 'express';
 import type { DataSource } from 'typeorm';
-import { addCodeSchema, codingQueueQuerySchema, completeReviewSchema, decideCodeSchema } from '../../shared/coding/review';
+import { addCodeSchema, codeExportQuerySchema, codingQueueQuerySchema, completeReviewSchema, decideCodeSchema } from '../../shared/coding/review';
 import { auditContext, recordAudit } from '../audit/audit';
 import { NotFoundError } from '../http/problem';
 import type { ApiRoute } from '../http/routes';
@@ -9,6 +9,7 @@ import type { CodingActor } from '../coding/actor';
 import { addCode } from '../coding/add-code';
 import { completeReview } from '../coding/complete-review';
 import { decideCode } from '../coding/decide-code';
+import { codesToCsv, exportCodes } from '../coding/export-codes';
 import { listQueue } from '../coding/list-queue';
 import { loadReview } from '../coding/load-review';
 import { sqlOf } from '../coding/sql';
@@ -91,6 +92,24 @@ export function codingRoutes({ dataSource }: { dataSource: DataSource }): ApiRou
           const id = studyIdOf(req);
           const { setId } = parseOrThrow(completeReviewSchema, req.body, 'The completion');
           res.json(await completeReview(dataSource, id, setId, actorOf(req)));
+        },
+      ],
+    },
+    {
+      method: 'get',
+      path: '/coding/export',
+      access: 'coding:read',
+      summary: 'The reviewed codes of the studies coded between two days, as CSV (default) or JSON',
+      handlers: [
+        async (req, res) => {
+          const { from, to, format } = parseOrThrow(codeExportQuerySchema, req.query, 'The export query');
+          const rows = await exportCodes(sqlOf(dataSource), from, to);
+          await recordAudit(dataSource, { ...auditContext(req), action: 'export', entityType: 'study-coding', outcome: 'success', detail: { from, to, format, codes: rows.length } });
+          if (format === 'json') {
+            res.json({ from, to, items: rows });
+            return;
+          }
+          res.type('text/csv; charset=utf-8').attachment(`codes-${from}-${to}.csv`).send(codesToCsv(rows));
         },
       ],
     },

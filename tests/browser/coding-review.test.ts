@@ -12,7 +12,7 @@ import { signIn, startStack, usernameOf, type TestStack } from '../support/stack
  * - CPT 93458-26: coronary angiography with left heart catheterization, professional component (CPT 93454–93461; CMS PC/TC indicator) [memory, well known];
  * - CPT 93571-26 / 93572-26: coronary physiology, first vessel / each additional vessel (CPT add-on codes) [memory, well known];
  * - ICD-10-CM I25.119: coronary atherosclerosis of a native artery with unspecified angina (ICD-10-CM tabular, guideline I.C.9.b);
- * - ICD-10-CM I25.10 (without angina) and Z95.5 (presence of a coronary stent): ICD-10-CM tabular.
+ * - ICD-10-CM I25.10 (without angina) and Z95.5 (presence of a coronary stent): ICD-10-CM tabular [memory].
  */
 
 let db: DataSource;
@@ -118,6 +118,18 @@ describe("the coder's review", () => {
         { code: '93572', modifiers: ['26'], origin: 'suggested', decision: 'reject', d_code: null, d_modifiers: null, reason: 'The circumflex had a resting ratio only' },
         { code: 'I25.119', modifiers: [], origin: 'suggested', decision: 'edit', d_code: 'I25.10', d_modifiers: [], reason: 'Angina is not documented in the signed report' },
         { code: 'Z95.5', modifiers: [], origin: 'added', decision: 'add', d_code: null, d_modifiers: null, reason: 'Prior coronary stent documented in the history' },
+      ]);
+
+      // The export holds exactly these codes as reported.
+      const today = new Date().toISOString().slice(0, 10);
+      const exported = await page.request.get(`${stack.url}/api/coding/export?from=${today}&to=${today}&format=json`);
+      expect(exported.status()).toBe(200);
+      const items: { accession: string; system: string; code: string; modifiers: string[]; units: number }[] = (await exported.json()).items;
+      expect(items.filter((c) => c.accession === study.accession).map((c) => `${c.system} ${[c.code, ...c.modifiers].join('-')} x${c.units}`)).toEqual([
+        'CPT 93458-26 x1',
+        'CPT 93571-26 x1',
+        'ICD-10-CM I25.10 x1',
+        'ICD-10-CM Z95.5 x1',
       ]);
 
       // The study has left the queue.

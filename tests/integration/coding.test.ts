@@ -252,6 +252,16 @@ describe('the coding queue and a study review', () => {
     expect(coded.body.items.map((i: { studyId: string }) => i.studyId)).toContain(record.id);
     await decide({ decision: 'accept', lineId: line(r, '93571').id }).expect(409);
 
+    // The export holds the codes as reported: accepted, edited and added; not the rejected one.
+    const today = new Date().toISOString().slice(0, 10);
+    const exported = await api().get(`/api/coding/export?from=${today}&to=${today}&format=json`).set('Cookie', chief).expect(200);
+    const mine = exported.body.items.filter((c: { accession: string }) => c.accession === record.accession);
+    expect(mine.map((c: { system: string; code: string; modifiers: string[]; units: number; decision: string }) => `${c.system} ${c.code} ${c.modifiers.join('-')} x${c.units} ${c.decision}`).sort()).toEqual(
+      r.lines.filter((l) => l.final).map((l) => `${l.system} ${l.final!.code} ${l.final!.modifiers.join('-')} x${l.final!.units} ${l.decision!.decision}`).sort(),
+    );
+    expect(mine.some((c: { code: string; modifiers: string[] }) => c.code === '93571')).toBe(false);
+    expect(mine.find((c: { code: string }) => c.code === '93572')).toMatchObject({ modifiers: ['26', 'XU'], reason: 'Separate vessel documented in the report' });
+
     const audit = await db.query(`SELECT action, detail FROM audit_event WHERE entity_type = 'study-coding' AND entity_id = $1 ORDER BY id`, [record.id]);
     expect(audit.map((a: { detail: { decision?: string; completed?: boolean } }) => a.detail.decision ?? (a.detail.completed ? 'complete' : '?'))).toEqual([
       'accept',
@@ -314,5 +324,30 @@ describe('an addendum', () => {
     expect(r).toMatchObject({ status: 'coded', set: { id: first.set.id, versionNo: 1 } });
     const [{ sets }] = await db.query(`SELECT count(*)::int AS sets FROM code_suggestion_set WHERE study_id = $1`, [record.id]);
     expect(sets).toBe(2);
+  });
+});
+
+describe('the export of reviewed codes', () => {
+  it('writes CSV with a header, one row per reported code, and neutralises a cell a spreadsheet would run as a formula', async () => {
+    const { record } = await signedStudy();
+    let r = await review(record.id);
+    for (const l of r.lines) r = (await post(`/api/coding/studies/${record.id}/decisions`, coder, { setId: r.set.id, decision: 'accept', lineId: l.id }).expect(200)).body;
+    r = (await post(`/api/coding/studies/${record.id}/codes`, coder, { setId: r.set.id, system: 'ICD-10-CM', code: 'Z95.5', units: 1, modifiers: [], reason: '=HYPERLINK("http://example.invalid")' }).expect(201)).body;
+    await post(`/api/coding/studies/${record.id}/complete`, coder, { setId: r.set.id }).expect(200);
+    const today = new Date().toISOString().slice(0, 10);
+    const res = await api().get(`/api/coding/export?from=${today}&to=${today}`).set('Cookie', coder).expect(200);
+    expect(res.headers['content-type']).toMatch(/^text\/csv/);
+    expect(res.headers['content-disposition']).toMatch(/attachment; filename="codes-/);
+    const lines = res.text.split('\r\n').filter(Boolean);
+    expect(lines[0]).toBe('accession,mrn,patient,date_of_service,report_version,system,code,modifiers,units,description,rule_id,decision,reason,coded_by,coded_at');
+    const mine = lines.filter((l) => l.startsWith(`${record.accession},`));
+    expect(mine).toHaveLength(r.lines.length);
+    expect(mine.find((l) => l.includes(',93458,'))).toMatch(/,2025-03-11,1,CPT,93458,26,1,/);
+    // A cell beginning with = is prefixed with an apostrophe (OWASP, "CSV Injection").
+    expect(mine.find((l) => l.includes(',Z95.5,'))).toContain(`"'=HYPERLINK(""http://example.invalid"")"`);
+    const [audit] = await db.query(`SELECT detail FROM audit_event WHERE action = 'export' AND entity_type = 'study-coding' ORDER BY id DESC LIMIT 1`);
+    expect(audit.detail).toMatchObject({ from: today, to: today, format: 'csv' });
+    await api().get(`/api/coding/export?from=${today}&to=2000-01-01`).set('Cookie', coder).expect(400);
+    await api().get(`/api/coding/export?from=${today}&to=${today}`).set('Cookie', physician).expect(403);
   });
 });

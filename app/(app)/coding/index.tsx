@@ -6,6 +6,7 @@ import { EmptyState, ErrorState, LoadingState } from '../../../components/ui/asy
 import { PageHeader } from '../../../components/page-header';
 import { CautionNote } from '../../../components/caution-note';
 import { Text } from '../../../components/ui/text';
+import { Button } from '../../../components/ui/button';
 import { patientName } from '../../../components/format';
 import { useCodingQueue, type QueueFilters } from '../../../components/data/coding-query';
 import { useOperators } from '../../../components/data/study-query';
@@ -63,6 +64,7 @@ export default function CodingQueuePage() {
         ) : (
           <QueueList items={queue.data.items} />
         )}
+        <ExportCodes from={filters.from} to={filters.to} />
         <CautionNote />
       </Center>
     </Content>
@@ -113,6 +115,27 @@ function QueueList({ items }: { items: QueueItem[] }) {
           </Link>
         </View>
       ))}
+    </View>
+  );
+}
+
+/** The reviewed codes of the chosen days (today when none is chosen), as CSV or JSON. */
+function ExportCodes({ from, to }: { from?: string; to?: string }) {
+  const today = new Date().toISOString().slice(0, 10);
+  const range = { from: from ?? to ?? today, to: to ?? from ?? today };
+  const open = (format: 'csv' | 'json') => {
+    const url = `/api/coding/export?${new URLSearchParams({ ...range, format }).toString()}`;
+    if (typeof window !== 'undefined') window.location.assign(url);
+  };
+  return (
+    <View style={styles.exportBox} role="group" aria-label="Export reviewed codes">
+      <Text variant="caption" tone="muted" testID="export-range">
+        Export the codes of the studies coded {range.from === range.to ? `on ${range.from}` : `from ${range.from} to ${range.to}`} (set the days above).
+      </Text>
+      <View style={styles.dates}>
+        <Button label="Download CSV" kind="secondary" testID="export-csv" onPress={() => open('csv')} />
+        <Button label="Download JSON" kind="secondary" testID="export-json" onPress={() => open('json')} />
+      </View>
     </View>
   );
 }
@@ -194,4 +217,5 @@ const styles = StyleSheet.create({
   divider: { borderTopWidth: 1, borderTopColor: color.line },
   pressed: { backgroundColor: color.brandSoft },
   cell: { gap: space.xxs },
+  exportBox: { gap: space.sm },
 });
