@@ -82,7 +82,7 @@ function QueueList({ items }: { items: QueueItem[] }) {
               role="link"
               testID={`queue-row-${s.accession}`}
               accessibilityLabel={`${patientName(s.patient)}, ${s.accession}, ${reviewStatusLabel[s.status]}, waiting ${ageLabel(s.hoursWaiting)}. Open the code review.`}
-              style={({ pressed }) => [styles.row, wide && styles.rowWide, i > 0 && styles.divider, pressed && styles.pressed]}
+              style={StyleSheet.flatten([styles.row, wide && styles.rowWide, i > 0 && styles.divider])}
             >
               <View style={[styles.cell, wide && { flex: 1.3 }]}>
                 <Text weight="semibold">{patientName(s.patient)}</Text>
@@ -215,7 +215,6 @@ const styles = StyleSheet.create({
   row: { padding: space.lg, gap: space.sm, minHeight: touchTarget },
   rowWide: { flexDirection: 'row', alignItems: 'center', gap: space.xl },
   divider: { borderTopWidth: 1, borderTopColor: color.line },
-  pressed: { backgroundColor: color.brandSoft },
   cell: { gap: space.xxs },
   exportBox: { gap: space.sm },
 });
