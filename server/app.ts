@@ -18,6 +18,7 @@ import { studyRoutes } from './routes/studies';
 import { settingsRoutes } from './routes/settings';
 import { reportRoutes } from './routes/reports';
 import { deliveryRoutes } from './routes/delivery';
+import { codingRoutes } from './routes/coding';
 import { diskStorage, type AttachmentStorage } from './attachments/storage';
 import { createLogger, requestLogger, type Logger } from './log';
 
@@ -45,6 +46,7 @@ export function apiRoutes(deps: Required<Pick<AppDeps, 'config' | 'dataSource' |
     ...recordRoutes(deps),
     ...auditRoutes(deps),
     ...deliveryRoutes(deps),
+    ...codingRoutes(deps),
   ];
 }
 

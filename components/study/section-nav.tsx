@@ -9,6 +9,7 @@ export const studySections = [
   { slug: 'vessels', label: 'Vessels', testID: 'section-vessels' },
   { slug: 'vasoreactivity', label: 'Vasoreactivity', testID: 'section-vasoreactivity' },
   { slug: 'findings', label: 'Findings & plan', testID: 'section-findings' },
+  { slug: 'coding', label: 'Coding', testID: 'section-coding' },
   { slug: 'attachments', label: 'Attachments', testID: 'section-attachments' },
 ] as const;
 

@@ -27,6 +27,7 @@ export const sectionsOf = (s: StudySections): StudySections => ({
   vessels: s.vessels,
   vasoreactivity: s.vasoreactivity,
   findings: s.findings,
+  coding: s.coding,
 });
 
 // structuredClone keeps NaN (the mark of text in a number box), which a JSON round trip would turn into null.

@@ -18,9 +18,11 @@ import { ReportDelivery1765324800000 } from './migrations/1765324800000-report-d
 
 import { SignedStudyGuard1765131313000 } from './migrations/1765131313000-signed-study-guard';
 import { PatientMrnSearch1765100000000 } from './migrations/1765100000000-patient-mrn-search';
+import { CodeDecision, CodeLine, CodeSuggestionSet, CodingReview, CoronaryIntervention } from './entities/coding.entities';
+import { CodeReview1765238400000 } from './migrations/1765238400000-code-review';
 
 /** Entities and migrations are listed, not globbed, so tsx, vitest and a bundler all see the same set. */
-export const entities = [User, Patient, Study, VesselAssessment, ThermodilutionInjection, AcetylcholineDose, Attachment, ThresholdSet, ReportVersion, ReportDelivery];
+export const entities = [User, Patient, Study, VesselAssessment, ThermodilutionInjection, AcetylcholineDose, Attachment, ThresholdSet, ReportVersion, ReportDelivery, CoronaryIntervention, CodeSuggestionSet, CodeLine, CodeDecision, CodingReview];
 export const migrations = [
   InitialSchema1764633600000,
   SessionsAndAudit1764720000000,
@@ -31,6 +33,7 @@ export const migrations = [
   PatientMrnSearch1765100000000,
   SignedStudyGuard1765131313000,
   ReportVersions1765152000000,
+  CodeReview1765238400000,
   ReportDelivery1765324800000,
 ];
 

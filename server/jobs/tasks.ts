@@ -1,6 +1,7 @@
 import type { DataSource } from 'typeorm';
 import type { Config } from '../config';
 import { deliveryTasks } from '../ehr/tasks';
+import { codingTasks } from '../coding/tasks';
 import { sendReportNoticeTask } from '../mail/send-report-notice';
 import type { TaskList } from './worker';
 
@@ -11,6 +12,7 @@ import type { TaskList } from './worker';
 export function taskList(dataSource: DataSource, config: Config): TaskList {
   return {
     ...deliveryTasks,
+    ...codingTasks,
     'send-report-notice': sendReportNoticeTask(dataSource, {
       host: config.mail.host,
       port: config.mail.port,

@@ -4,24 +4,9 @@ import type { ApiRoute } from '../http/routes';
 import { defaultSignatureTargetHours, waitingSince } from '../../shared/turnaround/overdue';
 import { summarySelect, toSummary } from '../studies/worklist';
 
-/** Reads of the coding queue, overdue studies and users. Every read is audited. */
+/** Reads of overdue studies and users. Every read is audited. */
 export function recordRoutes({ dataSource }: { dataSource: DataSource }): ApiRoute[] {
   return [
-    {
-      method: 'get',
-      path: '/coding/queue',
-      access: 'coding:read',
-      summary: 'Signed studies waiting for code review, oldest first',
-      handlers: [
-        async (req, res) => {
-          const rows: Record<string, never>[] = await dataSource.query(
-            `${summarySelect} WHERE s.state IN ('signed', 'amended') ORDER BY s.procedure_ended_at ASC NULLS LAST, s.id LIMIT 100`,
-          );
-          await recordAudit(dataSource, { ...auditContext(req), action: 'search', entityType: 'study', outcome: 'success', detail: { queue: 'coding', returned: rows.length, studyIds: rows.map((r) => r.id) } });
-          res.json({ items: rows.map(toSummary) });
-        },
-      ],
-    },
     {
       method: 'get',
       path: '/turnaround/awaiting-signature',

@@ -1,4 +1,4 @@
-import type { Details, Findings, Setup, Vasoreactivity } from '../../shared/study/schema';
+import type { Details, Findings, Setup, StudySections, Vasoreactivity } from '../../shared/study/schema';
 
 /** Section field → study column. Numbers are read back as float8 so they arrive as numbers. */
 type Column<T> = { field: keyof T; column: string; kind?: 'number' | 'timestamp' };
@@ -56,6 +56,20 @@ export const findingsColumns: Column<Findings>[] = [
   { field: 'doseAreaProductGyCm2', column: 'dose_area_product_gycm2', kind: 'number' },
   { field: 'impression', column: 'impression' },
   { field: 'plan', column: 'plan' },
+];
+
+/** The coding section's own fields (its interventions live in their own table). */
+export const codingColumns: Column<Omit<StudySections['coding'], 'interventions'>>[] = [
+  { field: 'patientClass', column: 'coding_patient_class' },
+  { field: 'billing', column: 'coding_billing' },
+  { field: 'setting', column: 'coding_setting' },
+  { field: 'diagnosticCath', column: 'diagnostic_cath' },
+  { field: 'coronaryAngiography', column: 'cath_coronary_angiography' },
+  { field: 'leftHeart', column: 'cath_left_heart' },
+  { field: 'leftVentriculography', column: 'cath_left_ventriculography' },
+  { field: 'rightHeart', column: 'cath_right_heart' },
+  { field: 'graftAngiography', column: 'cath_graft_angiography' },
+  { field: 'angina', column: 'coding_angina' },
 ];
 
 export function selectList<T>(columns: Column<T>[], alias: string, prefix: string): string {

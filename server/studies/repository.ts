@@ -13,7 +13,8 @@ import type { StudyState } from '../../shared/study/vocabulary';
 import { isEditable } from '../../shared/study/state-machine';
 import { HttpError, NotFoundError, UnprocessableError } from '../http/problem';
 import { recordAudit, type AuditEntry } from '../audit/audit';
-import { assignments, detailsColumns, findingsColumns, readSection, selectList, setupColumns, vasoreactivityColumns } from './columns';
+import { assignments, codingColumns, detailsColumns, findingsColumns, readSection, selectList, setupColumns, vasoreactivityColumns } from './columns';
+import { loadInterventions, replaceInterventions } from '../coding/study-interventions';
 import {
   AcetylcholineDose as DoseRow,
   ThermodilutionInjection as InjectionRow,
@@ -37,7 +38,7 @@ export async function loadStudy(db: Db, id: string): Promise<StudyRecord | null>
     `SELECT s.id, s.accession, s.state, s.version, s.created_at, s.updated_at,
             p.mrn, p.family_name, p.given_name, to_char(p.birth_date, 'YYYY-MM-DD') AS birth_date, p.sex,
             ${selectList(detailsColumns, 's', 'details')}, ${selectList(setupColumns, 's', 'setup')}, ${selectList(findingsColumns, 's', 'findings')},
-            ${selectList(vasoreactivityColumns, 's', 'vaso')}
+            ${selectList(vasoreactivityColumns, 's', 'vaso')}, ${selectList(codingColumns, 's', 'coding')}
      FROM study s JOIN patient p ON p.id = s.patient_id WHERE s.id = $1`,
     [id],
   );
@@ -70,6 +71,7 @@ export async function loadStudy(db: Db, id: string): Promise<StudyRecord | null>
     findings: readSection(findingsColumns, row, 'findings'),
     vessels: vesselRows.map((v) => toVessel(v, injections)),
     vasoreactivity: { ...readSection(vasoreactivityColumns, row, 'vaso'), doses: doseRows.map(toDose) },
+    coding: { ...readSection(codingColumns, row, 'coding'), interventions: await loadInterventions(manager, id) },
     attachments: attachmentRows.map(
       (a: Record<string, never>): AttachmentSummary => ({
         id: a.id,
@@ -253,7 +255,7 @@ export async function createStudy(dataSource: DataSource, input: CreateStudy, cr
   });
 }
 
-type WritableSections = Partial<Pick<StudySections, 'details' | 'setup' | 'findings' | 'vasoreactivity' | 'vessels'>>;
+type WritableSections = Partial<Pick<StudySections, 'details' | 'setup' | 'findings' | 'vasoreactivity' | 'vessels' | 'coding'>>;
 
 /**
  * Writes whole sections of a study (inside the caller's transaction, the row already locked): the
@@ -272,10 +274,12 @@ export async function writeSections(db: EntityManager, id: string, sections: Wri
   if (sections.setup) add(assignments(setupColumns, sections.setup, values.length + 1));
   if (sections.findings) add(assignments(findingsColumns, sections.findings, values.length + 1));
   if (sections.vasoreactivity) add(assignments(vasoreactivityColumns, sections.vasoreactivity, values.length + 1));
+  if (sections.coding) add(assignments(codingColumns, sections.coding, values.length + 1));
   const bump = options.bumpVersion ? ['version = version + 1'] : [];
   await db.query(`UPDATE study SET ${[...sets, ...bump, 'updated_at = now()'].join(', ')} WHERE id = $${values.length + 1}`, [...values, id]);
   if (sections.vessels) await replaceVessels(db, id, sections.vessels);
   if (sections.vasoreactivity) await replaceDoses(db, id, sections.vasoreactivity.doses);
+  if (sections.coding) await replaceInterventions(db, id, sections.coding.interventions);
 }
 
 /**

@@ -19,6 +19,7 @@ import {
   wirePositions,
   type StudyState,
 } from './vocabulary';
+import { emptyStudyCoding, studyCodingSchema } from '../coding/from-study';
 
 /**
  * The study record: one schema per section, used by the form (zodResolver), the API (parse at the
@@ -192,6 +193,8 @@ export const studySectionsSchema = z.object({
   }),
   vasoreactivity: vasoreactivitySchema,
   findings: findingsSchema,
+  /** What coding needs beyond the physiology: encounter, diagnostic catheterization, interventions. */
+  coding: studyCodingSchema,
 });
 export type StudySections = z.infer<typeof studySectionsSchema>;
 export type SectionName = keyof StudySections;
@@ -318,6 +321,8 @@ export const emptyDose = (id: string, vessel: AcetylcholineDose['vessel']): Acet
   spasmSegment: null,
   spasmPattern: null,
 });
+
+export { emptyStudyCoding };
 
 export const emptyVasoreactivity = (): Vasoreactivity => ({
   doses: [],

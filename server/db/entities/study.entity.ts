@@ -89,6 +89,18 @@ export class Study extends Timestamped {
   @Column('text', { nullable: true }) impression!: string | null;
   @Column('text', { nullable: true }) plan!: string | null;
 
+  // Coding: the encounter, the diagnostic catheterization of the session (its interventions are rows).
+  @Column('text', { name: 'coding_patient_class', nullable: true }) codingPatientClass!: string | null;
+  @Column('text', { name: 'coding_billing', nullable: true }) codingBilling!: string | null;
+  @Column('text', { name: 'coding_setting', nullable: true }) codingSetting!: string | null;
+  @Column('text', { name: 'diagnostic_cath', nullable: true }) diagnosticCath!: string | null;
+  @Column('boolean', { name: 'cath_coronary_angiography', default: false }) cathCoronaryAngiography!: boolean;
+  @Column('boolean', { name: 'cath_left_heart', default: false }) cathLeftHeart!: boolean;
+  @Column('boolean', { name: 'cath_left_ventriculography', default: false }) cathLeftVentriculography!: boolean;
+  @Column('boolean', { name: 'cath_right_heart', default: false }) cathRightHeart!: boolean;
+  @Column('boolean', { name: 'cath_graft_angiography', default: false }) cathGraftAngiography!: boolean;
+  @Column('boolean', { name: 'coding_angina', nullable: true }) codingAngina!: boolean | null;
+
   @Column('uuid', { name: 'created_by', nullable: true }) createdBy!: string | null;
 
   /** Worklist order, computed by the database (procedure start, else when the record was opened). */

@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { decideOnSaveError, fieldPathOf, planSave, saveRetryDelay, shouldRetrySave, type SaveFailure } from '../../../components/study/save-plan';
 import { ApiError, shouldRetryRead } from '../../../components/data/api';
+import { emptyStudyCoding } from '../../../shared/coding';
 import { emptyDetails, emptyFindings, emptySetup, emptyVasoreactivity, emptyVessel, type StudyRecord, type StudySections } from '../../../shared/study/schema';
 
 const lad = '11111111-1111-4111-8111-111111111111';
@@ -13,6 +14,7 @@ const sections = (over: Partial<StudySections> = {}): StudySections => ({
   vessels: [],
   vasoreactivity: emptyVasoreactivity(),
   findings: emptyFindings(),
+  coding: emptyStudyCoding(),
   ...over,
 });
 

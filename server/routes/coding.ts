@@ -1,0 +1,117 @@
+import type { Request } from 'express';
+import type { DataSource } from 'typeorm';
+import { addCodeSchema, codeExportQuerySchema, codingQueueQuerySchema, completeReviewSchema, decideCodeSchema } from '../../shared/coding/review';
+import { auditContext, recordAudit } from '../audit/audit';
+import { NotFoundError } from '../http/problem';
+import type { ApiRoute } from '../http/routes';
+import { parseOrThrow } from '../http/validate';
+import type { CodingActor } from '../coding/actor';
+import { addCode } from '../coding/add-code';
+import { completeReview } from '../coding/complete-review';
+import { decideCode } from '../coding/decide-code';
+import { codesToCsv, exportCodes } from '../coding/export-codes';
+import { listQueue } from '../coding/list-queue';
+import { loadReview } from '../coding/load-review';
+import { sqlOf } from '../coding/sql';
+
+const uuidPattern = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
+const studyIdOf = (req: Request) => {
+  const id = String(req.params.id);
+  if (!uuidPattern.test(id)) throw new NotFoundError('No study has this id.');
+  return id;
+};
+const actorOf = (req: Request): CodingActor => {
+  const ctx = auditContext(req);
+  return { ...ctx, actorUserId: ctx.actorUserId!, actorName: ctx.actorName ?? 'Unknown user' };
+};
+
+/** The coding queue and a study's code review. Coders review; the chief reads. Every read and change is audited. */
+export function codingRoutes({ dataSource }: { dataSource: DataSource }): ApiRoute[] {
+  return [
+    {
+      method: 'get',
+      path: '/coding/queue',
+      access: 'coding:read',
+      summary: 'Studies whose codes await review, oldest first; filters by physician, signing day and status',
+      handlers: [
+        async (req, res) => {
+          const query = parseOrThrow(codingQueueQuerySchema, req.query, 'The queue query');
+          const items = await listQueue(sqlOf(dataSource), query);
+          await recordAudit(dataSource, { ...auditContext(req), action: 'search', entityType: 'study', outcome: 'success', detail: { queue: 'coding', ...query, returned: items.length } });
+          res.json({ items });
+        },
+      ],
+    },
+    {
+      method: 'get',
+      path: '/coding/studies/:id',
+      access: 'coding:read',
+      summary: "A study's code review: suggestions with their rule and reason, decisions, the signed report, changes since the previous version",
+      handlers: [
+        async (req, res) => {
+          const id = studyIdOf(req);
+          const review = await loadReview(sqlOf(dataSource), id);
+          await recordAudit(dataSource, { ...auditContext(req), action: 'read', entityType: 'study', entityId: id, outcome: 'success', detail: { view: 'coding' } });
+          res.json(review);
+        },
+      ],
+    },
+    {
+      method: 'post',
+      path: '/coding/studies/:id/decisions',
+      access: 'coding:review',
+      summary: 'Accept, edit (with a reason) or reject (with a reason) one suggested code',
+      handlers: [
+        async (req, res) => {
+          const id = studyIdOf(req);
+          const input = parseOrThrow(decideCodeSchema, req.body, 'The decision');
+          res.json(await decideCode(dataSource, id, input, actorOf(req)));
+        },
+      ],
+    },
+    {
+      method: 'post',
+      path: '/coding/studies/:id/codes',
+      access: 'coding:review',
+      summary: 'Add a code the suggestions missed, with a reason',
+      handlers: [
+        async (req, res) => {
+          const id = studyIdOf(req);
+          const input = parseOrThrow(addCodeSchema, req.body, 'The added code');
+          res.status(201).json(await addCode(dataSource, id, input, actorOf(req)));
+        },
+      ],
+    },
+    {
+      method: 'post',
+      path: '/coding/studies/:id/complete',
+      access: 'coding:review',
+      summary: 'Complete the review (every code decided, no blocking warning): records who and when',
+      handlers: [
+        async (req, res) => {
+          const id = studyIdOf(req);
+          const { setId } = parseOrThrow(completeReviewSchema, req.body, 'The completion');
+          res.json(await completeReview(dataSource, id, setId, actorOf(req)));
+        },
+      ],
+    },
+    {
+      method: 'get',
+      path: '/coding/export',
+      access: 'coding:read',
+      summary: 'The reviewed codes of the studies coded between two days, as CSV (default) or JSON',
+      handlers: [
+        async (req, res) => {
+          const { from, to, format } = parseOrThrow(codeExportQuerySchema, req.query, 'The export query');
+          const rows = await exportCodes(sqlOf(dataSource), from, to);
+          await recordAudit(dataSource, { ...auditContext(req), action: 'export', entityType: 'study-coding', outcome: 'success', detail: { from, to, format, codes: rows.length } });
+          if (format === 'json') {
+            res.json({ from, to, items: rows });
+            return;
+          }
+          res.type('text/csv; charset=utf-8').attachment(`codes-${from}-${to}.csv`).send(codesToCsv(rows));
+        },
+      ],
+    },
+  ];
+}
