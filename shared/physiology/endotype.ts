@@ -139,12 +139,18 @@ export function classifyStudy(
     // Microvascular function, in vessels without an obstructive stenosis.
     const cfrLow = v.cfrFlag === 'abnormal';
     const imrHigh = v.imrFlag === 'abnormal';
-    if (!obstructed) {
+    // Microvascular dysfunction is judged only where obstruction was excluded in the same vessel
+    // (COVADIS; EAPCI 2020): a pressure index above its cut-off, or a visual stenosis below 50%.
+    if (!obstructed && v.judgedBy !== undefined) {
       if (v.cfr !== undefined) cfrMeasured = true;
       if (v.imr !== undefined) imrMeasured = true;
       const kind: Findings['microvascular'] = cfrLow && imrHigh ? 'structural' : cfrLow ? 'functional' : imrHigh ? 'raised-imr' : null;
       if (kind !== null && (microvascular === null || microRank[kind] > microRank[microvascular])) microvascular = kind;
       if (kind === 'functional' && v.imr === undefined) functionalWithoutImr = true;
+    } else if (!obstructed && (cfrLow || imrHigh)) {
+      reasons.push(
+        `${label}: ${cfrLow ? 'CFR' : 'IMR'} is abnormal, but obstruction was not excluded in this vessel (no pressure index and no stenosis estimate), so it is not used for a microvascular finding (COVADIS; EAPCI 2020).`,
+      );
     }
     if (v.imr !== undefined && imrHigh) {
       reasons.push(
@@ -202,8 +208,10 @@ export function classifyStudy(
     vr === 'epicardial-spasm' ? 'epicardial' : vr === 'microvascular-spasm' ? 'microvascular' : null;
   const endothelialDysfunction = vr === 'endothelial-dysfunction';
 
+  const microText = (kind: NonNullable<Findings['microvascular']>) =>
+    kind === 'functional' && functionalWithoutImr ? 'coronary microvascular dysfunction with low CFR (IMR not measured, so its type is not known)' : microWords[kind];
   const coexisting: string[] = [];
-  if (microvascular !== null) coexisting.push(microWords[microvascular]);
+  if (microvascular !== null) coexisting.push(microText(microvascular));
   if (vasospasm !== null) coexisting.push(spasmWords[vasospasm]);
   if (endothelialDysfunction) coexisting.push('endothelial dysfunction');
   if (vr === 'equivocal') coexisting.push('an equivocal acetylcholine test');
@@ -231,13 +239,13 @@ export function classifyStudy(
     if (vasospasm === 'microvascular') parts.push('microvascular spasm');
     if (vasospasm === 'epicardial') {
       endotype = 'mixed';
-      headline = `Microvascular and vasospastic angina: ${joinAnd([...(microvascular ? [microWords[microvascular]] : []), spasmWords.epicardial])}${withEd}`;
+      headline = `Microvascular and vasospastic angina: ${joinAnd([...(microvascular ? [microText(microvascular)] : []), spasmWords.epicardial])}${withEd}`;
       reasons.push(
         `Endotype: mixed — microvascular angina (${parts.join('; ')}) together with epicardial spasm, with no obstructive stenosis (COVADIS; EAPCI 2020).`,
       );
     } else {
       endotype = 'microvascular-angina';
-      headline = `Microvascular angina: ${joinAnd([...(microvascular ? [microWords[microvascular]] : []), ...(vasospasm === 'microvascular' ? [spasmWords.microvascular] : [])])}${withEd}`;
+      headline = `Microvascular angina: ${joinAnd([...(microvascular ? [microText(microvascular)] : []), ...(vasospasm === 'microvascular' ? [spasmWords.microvascular] : [])])}${withEd}`;
       reasons.push(`Endotype: microvascular angina (${parts.join('; ')}) with no obstructive stenosis (COVADIS; EAPCI 2020).`);
     }
   } else if (vasospasm === 'epicardial') {

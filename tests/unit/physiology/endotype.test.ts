@@ -320,3 +320,20 @@ describe('quality caveats reach the headline — common practice (a value that f
     expect(study([]).headline).toBe('Nothing to judge yet');
   });
 });
+
+describe('microvascular findings need obstruction excluded in the same vessel — COVADIS (Ong et al., Int J Cardiol 2018); EAPCI 2020', () => {
+  it('a low CFR in a vessel with no pressure index and no stenosis estimate is not called microvascular angina', () => {
+    const r = study([{ id: 'lad', vessel: 'LAD', rest: { tmn: three(0.6) }, hyperemia: { tmn: three(0.4) } } as VesselIn], negativeAch);
+    expect(r.vessels[0].cfrFlag).toBe('abnormal');
+    expect(r.findings.microvascular).toBeNull();
+    expect(r.endotype).toBe('inconclusive');
+    expect(r.reasons.some((s) => s.includes('obstruction was not excluded in this vessel'))).toBe(true);
+  });
+  it('with a visual stenosis below 50% the same vessel counts, and a missing IMR is said as such, not as "IMR not raised"', () => {
+    const r = study([{ id: 'lad', vessel: 'LAD', visualStenosisPct: 20, rest: { tmn: three(0.6) }, hyperemia: { tmn: three(0.4) } } as VesselIn], negativeAch);
+    expect(r.findings.microvascular).toBe('functional');
+    expect(r.headline).toContain('IMR not measured');
+    expect(r.headline).not.toContain('IMR not raised');
+  });
+});
+
