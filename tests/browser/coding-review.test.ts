@@ -181,4 +181,37 @@ describe("the coder's review", () => {
       await context.close();
     }
   });
+
+  it("on a phone: lab staff record the coding section of a study, and it is saved", async () => {
+    const { createStudy } = await import('../../server/studies/repository');
+    const id = await createStudy(db, { patient: { mrn: `CF-${Date.now().toString(36).toUpperCase()}`, familyName: 'Formcase', givenName: 'Ines', birthDate: '1964-07-02', sex: 'female' } }, null);
+    const context = await browser.context.browser()!.newContext({ viewport: viewports.phone });
+    const page = await context.newPage();
+    try {
+      await signInInBrowser(page, stack, usernameOf('staff'));
+      await page.goto(`${stack.url}/studies/${id}/coding`);
+      await visible(page, 'card-encounter').waitFor();
+      await visible(page, 'coding-patient-class-outpatient').click();
+      await visible(page, 'coding-billing-professional').click();
+      await visible(page, 'coding-setting-hospital').click();
+      await visible(page, 'coding-diagnostic-cath-done').click();
+      await visible(page, 'coding-left-heart-true').click();
+      // Left ventriculography is asked only once a left heart catheterization is recorded.
+      await visible(page, 'coding-left-ventriculography-true').waitFor();
+      await visible(page, 'intervention-add').click();
+      await visible(page, 'intervention-0-vessel-RCA').click();
+      await visible(page, 'intervention-0-stent-drug-eluting').click();
+      expect(await visible(page, 'coding-patient-class-outpatient').getAttribute('aria-checked')).toBe('true');
+      await visible(page, 'save-status-saved').waitFor({ timeout: 10_000 });
+      await page.screenshot({ path: screenshotPath('study-coding-section-phone'), fullPage: true });
+      await expect
+        .poll(async () => (await db.query(`SELECT coding_patient_class, diagnostic_cath, cath_left_heart FROM study WHERE id = $1`, [id]))[0])
+        .toEqual({ coding_patient_class: 'outpatient', diagnostic_cath: 'done', cath_left_heart: true });
+      await expect
+        .poll(async () => db.query(`SELECT vessel, kind, branch, stent FROM coronary_intervention WHERE study_id = $1`, [id]))
+        .toEqual([{ vessel: 'RCA', kind: 'stent', branch: false, stent: 'drug-eluting' }]);
+    } finally {
+      await context.close();
+    }
+  });
 });
