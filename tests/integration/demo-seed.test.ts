@@ -49,6 +49,24 @@ afterAll(async () => {
   await db.destroy();
 });
 
+describe('the demo reaches its states through the real hand-off and signing code', () => {
+  it('signed studies have one signed version with a PDF; the amended one has two, the second superseding the first', async () => {
+    const versions = async (accession: string) =>
+      db.query(
+        `SELECT v.version_no, v.status, v.supersedes_id IS NOT NULL AS supersedes, length(v.pdf) > 1000 AS has_pdf, v.reason
+         FROM report_version v JOIN study s ON s.id = v.study_id WHERE s.accession = $1 ORDER BY v.version_no`,
+        [accession],
+      );
+    expect(await versions('SBR-26-0411')).toEqual([{ version_no: 1, status: 'final', supersedes: false, has_pdf: true, reason: null }]);
+    expect(await versions('SBR-26-0413')).toEqual([]);
+    const amended = await versions('SBR-26-0415');
+    expect(amended.map((v: { status: string }) => v.status)).toEqual(['final', 'amended']);
+    expect(amended[1].supersedes).toBe(true);
+    expect(records.get('SBR-26-0415')!.details.accessSite).toBe('right-femoral');
+    expect(records.get('SBR-26-0415')!.state).toBe('amended');
+  });
+});
+
 describe('seeding the demo is idempotent', () => {
   it('a second run adds no rows and changes no study', async () => {
     const before = await counts();

@@ -17,7 +17,8 @@ export class SignedStudyGuard1765131313000 implements MigrationInterface {
     await db.query(`
       CREATE FUNCTION study_refuse_signed_change() RETURNS trigger LANGUAGE plpgsql AS $$
       DECLARE
-        bookkeeping constant text[] := ARRAY['state', 'version', 'updated_at'];
+        -- sort_at is generated: not yet computed in NEW while a BEFORE trigger runs.
+        bookkeeping constant text[] := ARRAY['state', 'version', 'updated_at', 'sort_at'];
       BEGIN
         IF NOT study_record_is_locked(OLD.state) THEN
           RETURN CASE WHEN TG_OP = 'DELETE' THEN OLD ELSE NEW END;
