@@ -463,6 +463,13 @@ function vesselSentences(
           ? `A haemodynamically significant gradient remains after intervention (judged by ${by}).`
           : `No haemodynamically significant gradient remains after intervention (judged by ${by}).`,
       );
+    } else if (kind === 'lesion' && r.judgedBy === 'visual-stenosis') {
+      // A visual estimate says nothing of the lesion's physiology (COVADIS: ≥ 50% is angiographic obstruction only).
+      out.push(
+        r.obstructive
+          ? `The lesion is angiographically obstructive by visual estimate (${by}); it was not assessed physiologically.`
+          : `The lesion is not angiographically obstructive by visual estimate (${by}); it was not assessed physiologically.`,
+      );
     } else if (kind === 'lesion') {
       out.push(r.obstructive ? `The lesion is haemodynamically significant (judged by ${by}).` : `The lesion is not haemodynamically significant (judged by ${by}).`);
     } else {
@@ -496,9 +503,13 @@ function lesionSummary(study: ReportStudy, analysis: PhysiologyResult, afterPci:
       ? r.obstructive
         ? 'significant gradient remains after intervention'
         : 'no significant gradient remains after intervention'
-      : r.obstructive
-        ? 'haemodynamically significant'
-        : 'not haemodynamically significant';
+      : r.judgedBy === 'visual-stenosis'
+        ? r.obstructive
+          ? 'angiographically obstructive by visual estimate, not assessed physiologically'
+          : 'not angiographically obstructive by visual estimate, not assessed physiologically'
+        : r.obstructive
+          ? 'haemodynamically significant'
+          : 'not haemodynamically significant';
     out.push(sentence(`${where}: ${verdict} (${index})${decision}`));
   }
   return out;
@@ -721,7 +732,11 @@ export function buildReportView(input: ReportInput): ReportView {
     endotype:
       kind === 'coronary-function'
         ? {
-            label: endotypeLabel[analysis.endotype],
+            // Endothelial dysfunction is a finding: "no abnormality" is never printed above it.
+            label:
+              analysis.endotype === 'no-abnormality' && analysis.findings.endothelialDysfunction
+                ? 'No obstructive disease, microvascular dysfunction or spasm; endothelial dysfunction'
+                : endotypeLabel[analysis.endotype],
             // The headline names every coexisting finding; it is left out when it only repeats the label.
             headline: sentence(analysis.headline) === sentence(endotypeLabel[analysis.endotype]) ? '' : sentence(analysis.headline),
             reasons: analysis.reasons.map(sentence),

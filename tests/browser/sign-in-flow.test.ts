@@ -158,8 +158,8 @@ describe('getting around', () => {
     }
   });
 
-  it('opens a study from the turnaround list and from the coding queue, and the chief sees more tabs are there', async () => {
-    const signed = await createStudy(db, { state: 'signed', endedHoursAgo: 5 });
+  // Coding queue rows open the study's code review: tests/browser/coding-review.test.ts.
+  it('opens a study from the turnaround list, and the chief sees more tabs are there', async () => {
     const context = await browser.context.browser()!.newContext({ viewport: viewports.phone });
     const page = await context.newPage();
     try {
@@ -169,9 +169,6 @@ describe('getting around', () => {
       await page.screenshot({ path: screenshotPath('turnaround-chief-phone') });
       await page.getByTestId(`study-row-${study.accession}`).click();
       await page.waitForURL((url) => url.pathname === `/studies/${study.id}`);
-      await page.goto(`${stack.url}/coding`);
-      await page.getByTestId(`study-row-${signed.accession}`).click();
-      await page.waitForURL((url) => url.pathname === `/studies/${signed.id}`);
     } finally {
       await context.close();
     }

@@ -328,3 +328,21 @@ describe('free text is escaped, never rendered as markup', () => {
     expect(html).not.toContain('<consectetur>');
   });
 });
+
+describe('what a visual estimate and endothelial dysfunction are called', () => {
+  it('a lesion judged only by visual stenosis is "angiographically obstructive", never "haemodynamically significant" — COVADIS (Ong et al., Int J Cardiol 2018): ≥ 50% is angiographic obstruction', () => {
+    const s = demoReportStudies()[0];
+    s.vessels = [{ ...emptyVessel(s.vessels[0].id, 'LAD'), visualStenosisPct: 60, driftNotDoneReason: 'No wire used' }];
+    const text = render(s).text;
+    expect(text).toContain('angiographically obstructive by visual estimate');
+    expect(text).not.toContain('The lesion is haemodynamically significant');
+  });
+
+  it('endothelial dysfunction alone is named in the diagnosis line, not "No coronary abnormality found" — EAPCI 2020; COVADIS', () => {
+    const s = demoReportStudies()[5];
+    s.vessels = s.vessels.slice(0, 1).map((v) => ({ ...v, restTransit: [0.9, 0.9, 0.9], hyperemiaTransit: [0.25, 0.25, 0.25] }));
+    const text = render(s).text;
+    expect(text).toContain('endothelial dysfunction');
+    expect(text).not.toContain('No coronary abnormality found');
+  });
+});
