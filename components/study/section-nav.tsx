@@ -11,6 +11,7 @@ export const studySections = [
   { slug: 'findings', label: 'Findings & plan', testID: 'section-findings' },
   { slug: 'coding', label: 'Coding', testID: 'section-coding' },
   { slug: 'attachments', label: 'Attachments', testID: 'section-attachments' },
+  { slug: 'report', label: 'Report & signature', testID: 'section-report' },
 ] as const;
 
 /** The study's sections: a sticky scrolling row on phones, a column on wide screens. Each is its own URL. */

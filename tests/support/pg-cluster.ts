@@ -25,7 +25,25 @@ const pgBin = () => {
 };
 const isRoot = () => process.getuid?.() === 0;
 const asPg = (cmd: string, args: string[]) =>
-  execFileSync(isRoot() ? 'runuser' : cmd, isRoot() ? ['-u', 'postgres', '--', cmd, ...args] : args, { stdio: ['ignore', 'pipe', 'pipe'] }).toString();
+  execFileSync(isRoot() ? 'runuser' : cmd, isRoot() ? ['-u', 'postgres', '--', cmd, ...args] : args, { stdio: ['ignore', 'pipe', 'pipe'], cwd: '/' }).toString();
+
+/**
+ * Where a private cluster can live: the project's .data, unless the postgres user cannot reach it
+ * (a clone inside a 0700 temporary folder), then a folder in /var/tmp — as scripts/lib.sh does.
+ */
+function clusterBase(): string {
+  const local = path.resolve('.data');
+  fs.mkdirSync(local, { recursive: true });
+  if (!isRoot()) return local;
+  try {
+    execFileSync('runuser', ['-u', 'postgres', '--', 'test', '-x', local], { cwd: '/' });
+    return local;
+  } catch {
+    const dir = fs.mkdtempSync('/var/tmp/isobar-test-');
+    fs.chmodSync(dir, 0o755);
+    return dir;
+  }
+}
 
 async function freePort(): Promise<number> {
   const server = net.createServer();
@@ -37,7 +55,7 @@ async function freePort(): Promise<number> {
 
 export async function createPrivateCluster(name: string): Promise<PrivateCluster> {
   const bin = pgBin();
-  const dir = path.resolve('.data', `${name}-${process.pid}`);
+  const dir = path.join(clusterBase(), `${name}-${process.pid}`);
   fs.rmSync(dir, { recursive: true, force: true });
   fs.mkdirSync(dir, { recursive: true, mode: 0o700 });
   if (isRoot()) execFileSync('chown', ['postgres:postgres', dir]);

@@ -1,0 +1,118 @@
+import { useState } from 'react';
+import { ScrollView, StyleSheet, TextInput, View } from 'react-native';
+import { Link, useLocalSearchParams } from 'expo-router';
+import { useReportAction, useReportPreview } from '../../../../components/data/report-query';
+import { ApiError } from '../../../../components/data/api';
+import { SectionCard } from '../../../../components/study/section-card';
+import { Button } from '../../../../components/ui/button';
+import { ErrorState, LoadingState } from '../../../../components/ui/async-states';
+import { Text } from '../../../../components/ui/text';
+import { CautionNote } from '../../../../components/caution-note';
+import { color, font, radius, space, type } from '../../../../components/theme';
+import { transitions, type StudyAction } from '../../../../shared/study/state-machine';
+import { studyStateLabel, type StudyState } from '../../../../shared/study/vocabulary';
+
+/** Report: the preview as it would be signed, what is missing, the hand-off and the signature. */
+export default function ReportSection() {
+  const { id } = useLocalSearchParams<{ id: string }>();
+  const preview = useReportPreview(id);
+  const act = useReportAction(id);
+  const [reason, setReason] = useState('');
+  if (preview.isPending) return <LoadingState label="Building the report preview…" testID="report-loading" />;
+  if (preview.isError) return <ErrorState title="The report preview could not be built" detail={preview.error.message} onRetry={() => void preview.refetch()} testID="report-error" />;
+  const p = preview.data;
+  const needsReason = (a: StudyAction) => transitions[a].needsReason || (a === 'sign' && p.state === 'amending');
+  const signAction: StudyAction = p.state === 'amending' ? 'sign-addendum' : 'sign';
+  const actions = p.actions.filter((a) => a !== 'sign-addendum' || p.state === 'amending');
+  const blocked = (a: StudyAction) => (a === 'sign' || a === 'sign-addendum') && !p.completeness.complete;
+  const error = act.error instanceof ApiError ? act.error : null;
+  return (
+    <>
+      <SectionCard title="Report" testID="card-report">
+        <Text testID="report-state">State: {studyStateLabel[p.state as StudyState] ?? p.state}</Text>
+        {p.completeness.complete ? (
+          <Text weight="semibold" testID="report-complete">
+            ✓ Complete: nothing is missing before signing.
+          </Text>
+        ) : (
+          <View style={styles.missing} role="alert" testID="report-missing">
+            <Text weight="semibold" tone="abnormal">
+              {p.completeness.missing.length} item{p.completeness.missing.length === 1 ? '' : 's'} missing before the report can be signed:
+            </Text>
+            {p.completeness.missing.map((m) => (
+              <Link key={m.path} href={`/studies/${id}/${m.section === 'details' || m.section === 'patient' ? '' : m.section === 'vessels' ? 'vessels' : m.section}` as '/'}>
+                <Text variant="caption" tone="abnormal" testID={`report-missing-${m.code}`}>
+                  ▲ {m.message}
+                </Text>
+              </Link>
+            ))}
+          </View>
+        )}
+        {actions.some(needsReason) ? (
+          <TextInput
+            testID="report-reason"
+            accessibilityLabel="Reason (needed to send back or to sign an addendum)"
+            placeholder="Reason, when one is needed"
+            value={reason}
+            onChangeText={setReason}
+            style={styles.reason}
+          />
+        ) : null}
+        <View style={styles.actions}>
+          {actions.map((a) => {
+            const action = a === 'sign' ? signAction : a;
+            return (
+              <Button
+                key={a}
+                testID={`report-action-${a}`}
+                label={transitions[action].label}
+                kind={a === 'sign' || a === 'sign-addendum' ? 'primary' : 'secondary'}
+                disabled={act.isPending || blocked(action)}
+                accessibilityLabel={blocked(action) ? `${transitions[action].label}: not possible until the missing items are entered` : undefined}
+                onPress={() => act.mutate({ action, version: p.studyVersion, reason: reason.trim() || undefined })}
+              />
+            );
+          })}
+        </View>
+        {error ? (
+          <Text tone="abnormal" role="alert" testID="report-action-error">
+            ▲ {error.message}
+            {error.problem.type.endsWith('/reauthentication-required') ? (
+              <Link href={`/api/auth/sign-in?returnTo=${encodeURIComponent(`/studies/${id}/report`)}` as '/'}>
+                <Text tone="brand"> Sign in again</Text>
+              </Link>
+            ) : null}
+          </Text>
+        ) : null}
+        <CautionNote testID="report-caution" />
+      </SectionCard>
+      {p.versions.length ? (
+        <SectionCard title="Signed versions" testID="card-versions">
+          {p.versions.map((v) => (
+            <Text key={v.id} testID={`report-version-${v.versionNo}`}>
+              Version {v.versionNo} ({v.status === 'final' ? 'first signature' : 'addendum'}) · {v.signerName} · {new Date(v.signedAt).toLocaleString()} ·{' '}
+              <Link href={`/api/reports/${v.id}/pdf` as '/'} target="_blank">
+                <Text tone="brand">PDF</Text>
+              </Link>{' '}
+              · fingerprint {v.contentSha256.slice(0, 16)}
+            </Text>
+          ))}
+        </SectionCard>
+      ) : null}
+      <SectionCard title="Preview" testID="card-preview">
+        <ScrollView horizontal>
+          <Text style={styles.narrative} testID="report-preview-text" selectable>
+            {p.text}
+          </Text>
+        </ScrollView>
+      </SectionCard>
+    </>
+  );
+}
+
+const styles = StyleSheet.create({
+  missing: { gap: space.xs, backgroundColor: color.abnormalSoft, borderRadius: radius.md, padding: space.md },
+  actions: { flexDirection: 'row', flexWrap: 'wrap', gap: space.sm },
+  reason: { borderWidth: 1, borderColor: color.inkFaint, borderRadius: radius.md, padding: space.sm, fontFamily: font.regular, fontSize: type.body.fontSize },
+  narrative: { fontFamily: 'monospace', fontSize: 12, lineHeight: 18 },
+});
