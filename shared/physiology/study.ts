@@ -4,9 +4,14 @@ import { vesselName } from './format';
 import { analyzeVessel } from './indices';
 import type { PhysiologyOutput, VesselCode } from './schema';
 import type { DoseResult, PhysiologyResult, PhysiologyWarning, VasoreactivityResult, VesselResult } from './types';
+import { rightCoronaryVessels } from './vessels';
 import { analyzeVasoreactivity } from './vasoreactivity';
 
 /** The analysis of an input that has already passed validation. */
+/** Doses from which a negative acetylcholine test counts (ESC 2024 protocol: 100–200 µg left, 20–50 µg right). */
+const PROVOCATIVE_LEFT_UG = 100;
+const PROVOCATIVE_RIGHT_UG = 50;
+
 export function analyzeValidated(data: PhysiologyOutput): PhysiologyResult {
   const ctx = contextFor(data.thresholds);
   const t = ctx.t;
@@ -38,7 +43,22 @@ export function analyzeValidated(data: PhysiologyOutput): PhysiologyResult {
     warnings = analysed.warnings;
   }
 
-  const { findings, endotype, headline, reasons } = classifyStudy(vessels, labels, vasoreactivity, vasoReasons, ctx);
+  const classified = classifyStudy(vessels, labels, vasoreactivity, vasoReasons, ctx);
+  const { findings, reasons } = classified;
+  let { endotype, headline } = classified;
+  // A negative test that may be falsely negative does not support "no abnormality" (ESC 2024): nitrates
+  // given before acetylcholine, or no dose reached the provocative range (100 µg left, 50 µg right).
+  if (endotype === 'no-abnormality' && doses !== undefined && doses.length > 0) {
+    const doubts: string[] = [];
+    if (warnings.some((w) => w.code === 'nitrates-before-acetylcholine')) doubts.push('nitroglycerin was given before acetylcholine');
+    const provocative = doses.some((d) => d.micrograms >= (rightCoronaryVessels.has(d.vessel) ? PROVOCATIVE_RIGHT_UG : PROVOCATIVE_LEFT_UG));
+    if (!provocative) doubts.push(`no dose reached the provocative range (${PROVOCATIVE_LEFT_UG} µg left, ${PROVOCATIVE_RIGHT_UG} µg right coronary)`);
+    if (doubts.length > 0) {
+      endotype = 'inconclusive';
+      headline = `Endotype not determined: the acetylcholine test may be falsely negative (${doubts.join('; ')})`;
+      reasons[reasons.length - 1] = `Endotype: inconclusive — no abnormality was found, but the acetylcholine test may be falsely negative: ${doubts.join('; ')} (ESC 2024).`;
+    }
+  }
   const result: PhysiologyResult = { vessels, findings, endotype, headline, reasons, warnings };
   if (vasoreactivity !== undefined) {
     result.vasoreactivity = vasoreactivity;

@@ -337,3 +337,17 @@ describe('microvascular findings need obstruction excluded in the same vessel �
   });
 });
 
+
+describe('a negative acetylcholine test that may be falsely negative does not give "no abnormality" — ESC 2024 chronic coronary syndromes (protocol: 100–200 µg left, 20–50 µg right; nitrates withheld before testing)', () => {
+  it('nitroglycerin before acetylcholine leaves the endotype open and says why', () => {
+    const r = analyzeStudy({ vessels: [normalVessel()], vasoreactivity: { doses: negativeAch }, procedure: { nitratesBeforeAcetylcholine: true } });
+    expect(r.endotype).toBe('inconclusive');
+    expect(r.headline).toContain('nitroglycerin was given before acetylcholine');
+  });
+  it('a top dose below the provocative range leaves the endotype open; 100 µg into the left coronary does not', () => {
+    const low = study([normalVessel()], [{ vessel: 'LAD', micrograms: 20, constrictionPct: 5, symptoms: false, ischemicEcg: false }]);
+    expect(low.endotype).toBe('inconclusive');
+    expect(low.headline).toContain('no dose reached the provocative range');
+    expect(study([normalVessel()], negativeAch).endotype).toBe('no-abnormality');
+  });
+});
