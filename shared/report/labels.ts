@@ -1,4 +1,4 @@
-import type { Endotype, Flag, ImrMethod, NhprKind, VasoreactivityOutcome } from '../physiology';
+import type { Endotype, Flag, ImrMethod, VasoreactivityOutcome } from '../physiology';
 
 /**
  * Words for the physiology core's codes, as the report and the screens print them. The codes are
@@ -20,11 +20,8 @@ export const flagLabel: Readonly<Record<Flag, string>> = Object.freeze({
   borderline: 'borderline',
 });
 
-export const nhprKindLabel: Readonly<Record<NhprKind, string>> = Object.freeze({
-  'whole-cycle': 'Whole-cycle Pd/Pa',
-  diastolic: 'Diastolic ratio',
-  'full-cycle-minimum': 'Full-cycle minimum ratio',
-});
+/** The resting-ratio names are the same on screen and in the report: one table. */
+export { nhprKindLabel } from '../physiology/labels';
 
 export const imrMethodLabel: Readonly<Record<ImrMethod, string>> = Object.freeze({
   'pd-tmn': 'Pd × Tmn',
