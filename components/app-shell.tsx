@@ -6,6 +6,7 @@ import { can, roleLabel, type Permission } from '../shared/auth/permissions';
 import { BrandMark } from './brand-mark';
 import { Text } from './ui/text';
 import { useIsWide } from './ui/layout';
+import { useActiveInView } from './ui/use-active-in-view';
 import { color, radius, space, touchTarget } from './theme';
 import { useSignOut, type Me } from './data/me-query';
 
@@ -34,11 +35,13 @@ export function AppShell({ me, children }: { me: Me; children: ReactNode }) {
   const [tabs, setTabs] = useState({ width: 0, content: 0, x: 0 });
   const moreTabs = tabs.content > tabs.width + tabs.x + 4;
   const isActive = (href: string) => (href === '/' ? pathname === '/' : pathname.startsWith(href));
+  const inView = useActiveInView(wide ? undefined : items.find((item) => isActive(item.href))?.testID);
 
   const links = items.map((item) => (
     <Link key={item.href} href={item.href} asChild>
       <Pressable
         testID={item.testID}
+        onLayout={wide ? undefined : inView.itemLayout(item.testID)}
         accessibilityRole="link"
         aria-current={isActive(item.href) ? 'page' : undefined}
         // Link's asChild hands the style to the DOM element on web, which takes one object, not an array.
@@ -117,9 +120,16 @@ export function AppShell({ me, children }: { me: Me; children: ReactNode }) {
             showsHorizontalScrollIndicator={false}
             contentContainerStyle={styles.tabs}
             scrollEventThrottle={32}
-            onLayout={(e) => setTabs((t) => ({ ...t, width: e.nativeEvent.layout.width }))}
+            ref={inView.scroll}
+            onLayout={(e) => {
+              inView.viewportLayout(e);
+              setTabs((t) => ({ ...t, width: e.nativeEvent.layout.width }));
+            }}
             onContentSizeChange={(w) => setTabs((t) => ({ ...t, content: w }))}
-            onScroll={(e) => setTabs((t) => ({ ...t, x: e.nativeEvent.contentOffset.x }))}
+            onScroll={(e) => {
+              inView.onScrollX(e.nativeEvent.contentOffset.x);
+              setTabs((t) => ({ ...t, x: e.nativeEvent.contentOffset.x }));
+            }}
           >
             {links}
           </ScrollView>

@@ -139,7 +139,7 @@ ensure_database() {
 # Rebuild the web app only when its sources changed since the last export.
 ensure_web_build() {
   local want
-  want=$(cd "$ROOT" && find app components shared assets app.json babel.config.js tsconfig.json package-lock.json \
+  want=$(cd "$ROOT" && find app components shared assets app.json babel.config.js tsconfig.json package-lock.json scripts/precompress-web.ts \
     -type f -not -path '*/node_modules/*' -print0 2>/dev/null | sort -z | xargs -0 sha1sum | sha1sum | cut -c1-40)
   if [[ -f $ROOT/dist/.build-hash && $(cat "$ROOT/dist/.build-hash") == "$want" ]]; then
     return
@@ -148,5 +148,6 @@ ensure_web_build() {
   rm -rf "$ROOT/dist"
   (cd "$ROOT" && CI=1 EXPO_NO_TELEMETRY=1 node_modules/.bin/expo export --platform web --output-dir dist >"$DATA_DIR/web-build.log" 2>&1) \
     || { tail -n 40 "$DATA_DIR/web-build.log" >&2; fail "the web build failed (full log: .data/web-build.log)"; }
+  (cd "$ROOT" && node_modules/.bin/tsx scripts/precompress-web.ts dist >>"$DATA_DIR/web-build.log") || fail "compressing the web build failed"
   echo "$want" >"$ROOT/dist/.build-hash"
 }

@@ -1,6 +1,8 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import express, { type Express } from 'express';
+import compression from 'compression';
+import expressStaticGzip from 'express-static-gzip';
 import helmet from 'helmet';
 import type { DataSource } from 'typeorm';
 import type { Config } from './config';
@@ -86,6 +88,9 @@ export function createApp({
   );
 
   const api = express.Router();
+  // JSON answers compressed (the worklist's rows travel a phone's network); PDFs and files are
+  // compressed already, and a sign request is tiny, so only text above 1 KB is worth the CPU.
+  api.use(compression({ threshold: 1024, filter: (req, res) => /json|text|csv/.test(String(res.getHeader('Content-Type') ?? '')) && compression.filter(req, res) }));
   api.use((_req, res, next) => {
     // Patient data must never sit in a browser or proxy cache (nor come back with the back button).
     res.set('Cache-Control', 'no-store');
@@ -108,16 +113,25 @@ export function createApp({
   return app;
 }
 
-/** The exported web build: hashed bundles cached for a year, the page itself never cached. */
+/**
+ * The exported web build: hashed bundles cached for a year, the page itself never cached. The build
+ * step writes brotli and gzip copies beside each text file (scripts/precompress-web.ts); the copy the
+ * browser accepts is sent with its Content-Encoding and `Vary: Accept-Encoding`.
+ */
 function serveWebApp(app: Express, distDir: string): void {
   const indexFile = path.join(distDir, 'index.html');
   app.use(
-    express.static(distDir, {
+    expressStaticGzip(distDir, {
+      enableBrotli: true,
+      orderPreference: ['br', 'gzip'],
       index: false,
-      setHeaders(res, filePath) {
-        if (filePath.includes(`${path.sep}_expo${path.sep}`) || filePath.includes(`${path.sep}assets${path.sep}`)) {
-          res.set('Cache-Control', 'public, max-age=31536000, immutable');
-        }
+      serveStatic: {
+        index: false,
+        setHeaders(res, filePath) {
+          if (filePath.includes(`${path.sep}_expo${path.sep}`) || filePath.includes(`${path.sep}assets${path.sep}`)) {
+            res.setHeader('Cache-Control', 'public, max-age=31536000, immutable');
+          }
+        },
       },
     }),
   );

@@ -168,9 +168,16 @@ export function decideOnSaveError(failure: SaveFailure): SaveDecision {
 /** No answer (0), a timeout, too many requests, or a server fault: worth sending again. */
 export const isTransient = (status: number) => status === 0 || status === 408 || status === 429 || status >= 500;
 
-/** Autosave keeps trying while the failure is transient: the edits are safe on the device meanwhile. */
-export function shouldRetrySave(_failureCount: number, failure: SaveFailure): boolean {
-  return isTransient(failure.status);
+/** Sends of one save before autosave stops trying on its own (about 40 s with the delays below). */
+export const maxSaveRetries = 8;
+
+/**
+ * Autosave tries again while the failure is transient, a bounded number of times: the edits are safe on
+ * the device meanwhile, and after that the next edit, the connection coming back or "Try now" sends them.
+ * Retrying for ever would hammer a failing server and keep the page busy with no end in sight.
+ */
+export function shouldRetrySave(failureCount: number, failure: SaveFailure): boolean {
+  return isTransient(failure.status) && failureCount < maxSaveRetries;
 }
 
 /** 1 s, 2 s, 4 s, then every 5 s (`failureCount` counts failures so far, from 0). */

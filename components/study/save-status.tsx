@@ -17,7 +17,8 @@ const describe = (s: SaveState): { text: string; tone: 'muted' | 'abnormal' | 'i
     case 'saving':
       return { text: '↻ Saving…', tone: 'ink' };
     case 'offline':
-      return { text: '⚠ Not reaching the server — changes kept on this device, sent when the connection returns', tone: 'abnormal' };
+      if (s.gaveUp) return { text: '⚠ Not reaching the server — changes kept on this device; they go with your next edit, when the connection returns, or now', tone: 'abnormal' };
+      return { text: '⚠ Not reaching the server — changes kept on this device, trying again', tone: 'abnormal' };
     case 'invalid':
       return { text: `▲ ${s.fields.length === 1 ? 'One field is' : `${s.fields.length} fields are`} not saved yet — correct the outlined ${s.fields.length === 1 ? 'box' : 'boxes'}; everything else is saved`, tone: 'abnormal' };
     case 'conflict':
@@ -27,13 +28,15 @@ const describe = (s: SaveState): { text: string; tone: 'muted' | 'abnormal' | 'i
   }
 };
 
-export function SaveStatus({ state }: { state: SaveState }) {
+export function SaveStatus({ state, onRetry }: { state: SaveState; onRetry?: () => void }) {
   const d = describe(state);
+  const canRetry = state.kind === 'offline' && state.gaveUp && onRetry;
   return (
-    <View testID="save-status" accessibilityLiveRegion="polite" aria-live="polite">
-      <Text variant="caption" weight="semibold" tone={d.tone} testID={`save-status-${state.kind}`}>
+    <View testID="save-status" accessibilityLiveRegion="polite" aria-live="polite" style={canRetry ? styles.statusRow : undefined}>
+      <Text variant="caption" weight="semibold" tone={d.tone} testID={`save-status-${state.kind}`} style={canRetry ? styles.statusText : undefined}>
         {d.text}
       </Text>
+      {canRetry ? <Button label="Try now" kind="secondary" onPress={onRetry} testID="save-retry" accessibilityLabel="Try saving now" /> : null}
     </View>
   );
 }
@@ -103,6 +106,8 @@ export function ConflictChooser({ state, onLoadSaved, onResolve }: { state: Save
 }
 
 const styles = StyleSheet.create({
+  statusRow: { flexDirection: 'row', alignItems: 'center', gap: space.sm, flexWrap: 'wrap' },
+  statusText: { flexShrink: 1 },
   banner: { gap: space.sm, backgroundColor: color.abnormalSoft, borderColor: color.abnormal, borderWidth: 1, borderRadius: radius.md, padding: space.md },
   actions: { flexDirection: 'row', flexWrap: 'wrap', gap: space.sm },
   conflict: { gap: space.xs, paddingTop: space.sm, borderTopWidth: 1, borderTopColor: color.line },

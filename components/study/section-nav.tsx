@@ -1,6 +1,7 @@
 import { Pressable, ScrollView, StyleSheet, View } from 'react-native';
 import { Link, usePathname } from 'expo-router';
 import { Text } from '../ui/text';
+import { useActiveInView } from '../ui/use-active-in-view';
 import { color, radius, space, touchTarget } from '../theme';
 
 export const studySections = [
@@ -18,6 +19,9 @@ export const studySections = [
 export function SectionNav({ studyId, vertical }: { studyId: string; vertical: boolean }) {
   const pathname = usePathname();
   const base = `/studies/${studyId}`;
+  const hrefOf = (slug: string) => (slug ? `${base}/${slug}` : base);
+  const activeTab = studySections.find((s) => pathname === hrefOf(s.slug))?.testID;
+  const inView = useActiveInView(vertical ? undefined : activeTab);
   const links = studySections.map((s) => {
     const href = s.slug ? `${base}/${s.slug}` : base;
     const active = pathname === href;
@@ -25,6 +29,7 @@ export function SectionNav({ studyId, vertical }: { studyId: string; vertical: b
       <Link key={s.testID} href={href as '/'} asChild>
         <Pressable
           testID={s.testID}
+          onLayout={vertical ? undefined : inView.itemLayout(s.testID)}
           role="link"
           aria-current={active ? 'page' : undefined}
           style={StyleSheet.flatten([vertical ? styles.item : styles.tab, active && (vertical ? styles.itemActive : styles.tabActive)])}
@@ -45,7 +50,15 @@ export function SectionNav({ studyId, vertical }: { studyId: string; vertical: b
   }
   return (
     <View role="navigation" aria-label="Study sections" style={styles.bar}>
-      <ScrollView horizontal showsHorizontalScrollIndicator={false} contentContainerStyle={styles.row}>
+      <ScrollView
+        ref={inView.scroll}
+        horizontal
+        showsHorizontalScrollIndicator={false}
+        contentContainerStyle={styles.row}
+        scrollEventThrottle={32}
+        onLayout={inView.viewportLayout}
+        onScroll={(e) => inView.onScrollX(e.nativeEvent.contentOffset.x)}
+      >
         {links}
       </ScrollView>
     </View>

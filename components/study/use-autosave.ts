@@ -12,7 +12,8 @@ export type SaveState =
   | { kind: 'saved'; at: Date | null; mergedWith?: number }
   | { kind: 'pending' }
   | { kind: 'saving' }
-  | { kind: 'offline' }
+  /** Not reaching the server; `gaveUp` once the bounded retries are spent (the next edit, reconnection or "Try now" sends). */
+  | { kind: 'offline'; gaveUp?: boolean }
   /** Fields kept on this device until corrected (JSON pointers); the rest of their sections was sent. */
   | { kind: 'invalid'; sections: SectionName[]; fields: string[] }
   /** Another writer changed the same fields: the person chooses, field by field. */
@@ -145,9 +146,9 @@ export function useAutosave(study: StudyRecord, form: UseFormReturn<StudySection
         const decision = decideOnSaveError(failureOf(error));
         switch (decision.kind) {
           case 'retry':
-            // The mutation has given up (only when the editor is leaving) or a keepalive send failed.
-            setState({ kind: 'offline' });
-            schedule(5000);
+            // The mutation has given up after its bounded tries, or a keepalive send failed: the edits
+            // stay on this device until the next edit, the connection coming back, or "Try now".
+            setState({ kind: 'offline', gaveUp: true });
             break;
           case 'stale': {
             const current = decision.current;
@@ -221,6 +222,11 @@ export function useAutosave(study: StudyRecord, form: UseFormReturn<StudySection
       farewell();
       void flush({ keepalive: true });
     };
+    // The connection is back: send what waited, without waiting for the next edit.
+    const online = () => {
+      if (!timer.current && !inFlight.current) void flush();
+    };
+    globalThis.addEventListener?.('online', online);
     globalThis.addEventListener?.('pagehide', pagehide);
     globalThis.document?.addEventListener?.('visibilitychange', hidden);
     // A draft restored from this device at load time goes out straight away.
@@ -228,6 +234,7 @@ export function useAutosave(study: StudyRecord, form: UseFormReturn<StudySection
     return () => {
       subscription.unsubscribe();
       clearInterval(beat);
+      globalThis.removeEventListener?.('online', online);
       globalThis.removeEventListener?.('pagehide', pagehide);
       globalThis.document?.removeEventListener?.('visibilitychange', hidden);
       // Leaving the study (back to the worklist): what waits for the debounce is sent now, once;

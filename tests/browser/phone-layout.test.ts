@@ -53,6 +53,23 @@ describe('a study on a 390 px phone', () => {
     await page.close();
   });
 
+  it("scrolls the open section's tab into sight when the study opens on a section far to the right", async () => {
+    const study = await createStudy(db);
+    const page = await phone.newPage();
+    await page.goto(`${stack.url}/studies/${study.id}/attachments`);
+    const tab = visible(page, 'section-attachments');
+    await tab.waitFor();
+    // The row is wider than the phone: without scrolling, this tab starts beyond the right edge.
+    const row = await page.locator('[aria-label="Study sections"]:visible').boundingBox();
+    await expect.poll(async () => {
+      const box = await tab.boundingBox();
+      return box!.x >= row!.x && box!.x + box!.width <= row!.x + row!.width;
+    }).toBe(true);
+    expect(await tab.getAttribute('aria-current')).toBe('page');
+    await page.screenshot({ path: screenshotPath('section-tab-in-view-phone') });
+    await page.close();
+  });
+
   it('wraps a long clinical-question choice inside its card: nothing moves sideways', async () => {
     const page = await phone.newPage();
     await page.goto(`${stack.url}/studies/new`);

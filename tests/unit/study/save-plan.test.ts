@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { decideOnSaveError, fieldPathOf, planSave, saveRetryDelay, shouldRetrySave, type SaveFailure } from '../../../components/study/save-plan';
+import { decideOnSaveError, fieldPathOf, maxSaveRetries, planSave, saveRetryDelay, shouldRetrySave, type SaveFailure } from '../../../components/study/save-plan';
 import { ApiError, shouldRetryRead } from '../../../components/data/api';
 import { emptyStudyCoding } from '../../../shared/coding';
 import { emptyDetails, emptyFindings, emptySetup, emptyVasoreactivity, emptyVessel, type StudyRecord, type StudySections } from '../../../shared/study/schema';
@@ -132,6 +132,15 @@ describe('retries', () => {
     [422, false],
   ])('a save that failed with %i is retried: %s', (status, retried) => {
     expect(shouldRetrySave(7, { status })).toBe(retried);
+  });
+
+  it('stops retrying a transient failure on its own after a bounded number of tries', () => {
+    expect(shouldRetrySave(0, { status: 503 })).toBe(true);
+    expect(shouldRetrySave(maxSaveRetries - 1, { status: 503 })).toBe(true);
+    expect(shouldRetrySave(maxSaveRetries, { status: 503 })).toBe(false);
+    expect(shouldRetrySave(maxSaveRetries + 50, { status: 0 })).toBe(false);
+    const totalWait = Array.from({ length: maxSaveRetries }, (_, i) => saveRetryDelay(i)).reduce((a, b) => a + b, 0);
+    expect(totalWait).toBeLessThanOrEqual(60_000);
   });
 
   it('waits 1, 2, 4, then 5 s between tries', () => {

@@ -93,7 +93,7 @@ function StudyEditor({ study, userId, canWrite, home }: { study: StudyRecord; us
       {readOnlyReason}
     </Text>
   ) : (
-    <SaveStatus state={save.state} />
+    <SaveStatus state={save.state} onRetry={() => void save.flush()} />
   );
   const header = wide ? (
     <View style={[styles.header, styles.headerWide]}>
