@@ -34,8 +34,13 @@ const epicardialSpasm: Dose[] = [{ vessel: 'LAD', micrograms: 100, constrictionP
 const microSpasm: Dose[] = [{ vessel: 'LAD', micrograms: 100, constrictionPct: 40, symptoms: true, ischemicEcg: true }];
 const endothelial: Dose[] = [{ vessel: 'LAD', micrograms: 100, constrictionPct: 50, symptoms: false, ischemicEcg: false }];
 
-function study(vessels: VesselIn[], doses?: Dose[], thresholds?: PhysiologyInput['thresholds']) {
-  return analyzeStudy({ vessels, ...(doses ? { vasoreactivity: { doses } } : {}), ...(thresholds ? { thresholds } : {}) });
+function study(vessels: VesselIn[], doses?: Dose[], thresholds?: PhysiologyInput['thresholds'], angina?: boolean) {
+  return analyzeStudy({
+    vessels,
+    ...(doses ? { vasoreactivity: { doses } } : {}),
+    ...(thresholds ? { thresholds } : {}),
+    ...(angina !== undefined ? { angina } : {}),
+  });
 }
 
 describe('endotypes', () => {
@@ -234,14 +239,15 @@ describe('findings rules', () => {
   });
 
   it(`reason sentences: one per rule that fired, values rounded only in the text — ${SRC.practice}`, () => {
-    const r = study([vessel('lad', { imrTmn: 0.4, cfr: 1.5 })], negativeAch);
+    const r = study([vessel('lad', { imrTmn: 0.4, cfr: 1.5 })], negativeAch, undefined, true);
     expect(r.reasons).toEqual([
       'LAD: IMR 36 U (Pd × Tmn) is at or above the 25 cut-off (ESC 2024; EAPCI 2020) — raised microvascular resistance with impaired CFR (structural microvascular dysfunction).',
       'LAD: CFR 1.50 is below the 2.00 cut-off (EAPCI 2020) — impaired coronary flow reserve.',
-      'LAD: RRR 1.62 is below the 2.00 cut-off (common practice) — reduced resistive reserve.',
+      // The RRR cut-off 2.0 is recalled (CorMicA) [memory], not confirmed from a source, and says so.
+      'LAD: RRR 1.62 is below the 2.00 cut-off (cut-off source not confirmed) — reduced resistive reserve.',
       'LAD: MRR 1.67 is below the 2.10 cut-off — reduced microvascular resistance reserve; MRR here comes from bolus thermodilution, while its cut-offs were set with continuous thermodilution (de Vos 2023); the bolus cut-off is not settled.',
       'Acetylcholine testing was negative: maximum constriction 10% (below 20%, common practice) and no dose reproduced symptoms or ischaemic ECG changes (COVADIS; ESC 2024).',
-      'Endotype: microvascular angina (structural microvascular dysfunction: CFR below 2.00 with IMR at or above 25) with no obstructive stenosis (COVADIS; EAPCI 2020).',
+      'Endotype: microvascular angina (structural microvascular dysfunction in LAD: CFR below 2.00 with IMR at or above 25) with no obstructive stenosis (COVADIS; EAPCI 2020).',
     ]);
     expect(r.vessels[0].imr).toBeCloseTo(36, 10);
     expect(r.vessels[0].rrr).toBeCloseTo((1.5 * 97) / 90, 10);
@@ -282,7 +288,7 @@ describe('what "no abnormality" needs, and what the headline says', () => {
     const r = study([vessel('lad', { ffrPd: 75 }), vessel('lcx', { vessel: 'LCX', cfr: 1.5 })], epicardialSpasm);
     expect(r.endotype).toBe('obstructive');
     expect(r.headline).toBe(
-      'Obstructive coronary disease (LAD), with functional coronary microvascular dysfunction (low CFR, IMR not raised) and epicardial coronary spasm',
+      'Obstructive coronary disease (LAD), with functional coronary microvascular dysfunction (low CFR, IMR not raised) in LCx and epicardial coronary spasm',
     );
   });
 });
