@@ -37,6 +37,7 @@ export function useLiveAnalysis(): LiveAnalysis {
   const vessels = useWatch({ control, name: 'vessels' });
   const vasoreactivity = useWatch({ control, name: 'vasoreactivity' });
   const setup = useWatch({ control, name: 'setup' });
+  const anginaPresent = useWatch({ control, name: 'details.anginaPresent' });
   const { overrides, values } = useThresholds();
   return useMemo(() => {
     try {
@@ -44,13 +45,14 @@ export function useLiveAnalysis(): LiveAnalysis {
         vessels: vessels ?? [],
         vasoreactivity: vasoreactivity ?? { doses: [], nitrateReversal: null, reversalNitroglycerinMicrograms: null, reversalNitroglycerinAt: null },
         setup,
+        details: { anginaPresent: anginaPresent ?? null },
       });
       return { result: analyzeStudy({ ...input, thresholds: overrides }), problem: null, thresholds: values };
     } catch (error) {
       const issues = (error as { issues?: { message: string }[] }).issues;
       return { result: null, problem: issues?.[0]?.message ?? 'Some values cannot be used yet.', thresholds: values };
     }
-  }, [vessels, vasoreactivity, setup, overrides, values]);
+  }, [vessels, vasoreactivity, setup, anginaPresent, overrides, values]);
 }
 
 /** One index: its value at the display precision, its flag, and a note. No flag means no verdict. */

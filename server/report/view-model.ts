@@ -1,5 +1,6 @@
 import {
   defaultThresholds,
+  endotypeName,
   formatQuantity,
   formatWithUnit,
   thresholdCitations,
@@ -712,6 +713,9 @@ export function buildReportView(input: ReportInput): ReportView {
       }
     : null;
 
+  // "Angina" in the endotype's name only when the record says the patient has angina (COVADIS).
+  const endotypeWords = endotypeName(analysis.endotype, d.anginaPresent ?? undefined, endotypeLabel);
+
   return {
     templateVersion: REPORT_TEMPLATE_VERSION,
     kind,
@@ -736,9 +740,9 @@ export function buildReportView(input: ReportInput): ReportView {
             label:
               analysis.endotype === 'no-abnormality' && analysis.findings.endothelialDysfunction
                 ? 'No obstructive disease, microvascular dysfunction or spasm; endothelial dysfunction'
-                : endotypeLabel[analysis.endotype],
+                : endotypeWords,
             // The headline names every coexisting finding; it is left out when it only repeats the label.
-            headline: sentence(analysis.headline) === sentence(endotypeLabel[analysis.endotype]) ? '' : sentence(analysis.headline),
+            headline: sentence(analysis.headline) === sentence(endotypeWords) ? '' : sentence(analysis.headline),
             reasons: analysis.reasons.map(sentence),
           }
         : null,

@@ -48,14 +48,33 @@ const doubtfulQuality: Record<string, string> = {
   'ffr-mismatch': 'entered FFR disagrees with the pressures',
 };
 
-const microWords: Record<NonNullable<Findings['microvascular']>, string> = {
-  structural: 'structural coronary microvascular dysfunction (low CFR, raised IMR)',
-  functional: 'functional coronary microvascular dysfunction (low CFR, IMR not raised)',
-  'raised-imr': 'raised microvascular resistance with preserved CFR',
-};
+type MicroKind = NonNullable<Findings['microvascular']>;
+
+/** One vessel's microvascular finding in words; `partnerMissing`: the other of CFR and IMR was not measured there. */
+function microPhrase(kind: MicroKind, partnerMissing: boolean): string {
+  switch (kind) {
+    case 'structural':
+      return 'structural coronary microvascular dysfunction (low CFR, raised IMR)';
+    case 'functional':
+      return partnerMissing
+        ? 'coronary microvascular dysfunction with low CFR (IMR not measured, so its type is not known)'
+        : 'functional coronary microvascular dysfunction (low CFR, IMR not raised)';
+    default:
+      return partnerMissing
+        ? 'raised microvascular resistance (CFR not measured)'
+        : 'raised microvascular resistance with preserved CFR';
+  }
+}
+
 const spasmWords = { epicardial: 'epicardial coronary spasm', microvascular: 'microvascular spasm' } as const;
 
 const microRank = { structural: 3, functional: 2, 'raised-imr': 1 } as const;
+
+interface MicroGroup {
+  kind: MicroKind;
+  partnerMissing: boolean;
+  labels: string[];
+}
 
 export interface Classification {
   findings: Findings;
@@ -75,6 +94,7 @@ export function classifyStudy(
   vaso: VasoreactivityResult | undefined,
   vasoReasons: readonly string[],
   ctx: Ctx,
+  angina?: boolean,
 ): Classification {
   const t = ctx.t;
   const obstructiveLabels: string[] = [];
@@ -84,9 +104,12 @@ export function classifyStudy(
   let lowRrr = false;
   let lowMrr = false;
   let epicardialAssessed = false;
-  let cfrMeasured = false;
-  let imrMeasured = false;
-  let functionalWithoutImr = false;
+  // CFR and IMR are judged together only within one vessel (never a CFR from one and an IMR from another).
+  let cfrJudgedAny = false;
+  let imrJudgedAny = false;
+  let bothJudgedInOneVessel = false;
+  const microGroups: MicroGroup[] = [];
+  const unjudgedThermo: string[] = [];
   const caveats: string[] = [];
 
   const reasons: string[] = [];
@@ -136,17 +159,32 @@ export function classifyStudy(
     else if (v.judgedBy !== undefined) clearLabels.push(label);
     const obstructed = v.obstructive === true;
 
-    // Microvascular function, in vessels without an obstructive stenosis.
+    // Microvascular function, in vessels without an obstructive stenosis, from this vessel's own CFR and IMR.
     const cfrLow = v.cfrFlag === 'abnormal';
     const imrHigh = v.imrFlag === 'abnormal';
+    const cfrJudged = v.cfrFlag !== undefined;
+    const imrJudged = v.imrFlag !== undefined;
+    if (v.warnings.some((w) => w.code === 'cfr-below-one')) {
+      unjudgedThermo.push(label);
+      reasons.push(
+        `${label}: CFR ${ratio(v.cfr ?? 0)} is below 1 — most likely a measurement error (transit times swapped or faulty); CFR and the indices from the transit times are shown but not judged, and no microvascular finding is drawn from them.`,
+      );
+    }
     // Microvascular dysfunction is judged only where obstruction was excluded in the same vessel
     // (COVADIS; EAPCI 2020): a pressure index above its cut-off, or a visual stenosis below 50%.
     if (!obstructed && v.judgedBy !== undefined) {
-      if (v.cfr !== undefined) cfrMeasured = true;
-      if (v.imr !== undefined) imrMeasured = true;
+      if (cfrJudged) cfrJudgedAny = true;
+      if (imrJudged) imrJudgedAny = true;
+      if (cfrJudged && imrJudged) bothJudgedInOneVessel = true;
       const kind: Findings['microvascular'] = cfrLow && imrHigh ? 'structural' : cfrLow ? 'functional' : imrHigh ? 'raised-imr' : null;
-      if (kind !== null && (microvascular === null || microRank[kind] > microRank[microvascular])) microvascular = kind;
-      if (kind === 'functional' && v.imr === undefined) functionalWithoutImr = true;
+      if (kind !== null) {
+        v.microvascular = kind;
+        if (microvascular === null || microRank[kind] > microRank[microvascular]) microvascular = kind;
+        const partnerMissing = kind === 'functional' ? v.imr === undefined : kind === 'raised-imr' ? v.cfr === undefined : false;
+        const group = microGroups.find((g) => g.kind === kind && g.partnerMissing === partnerMissing);
+        if (group) group.labels.push(label);
+        else microGroups.push({ kind, partnerMissing, labels: [label] });
+      }
     } else if (!obstructed && (cfrLow || imrHigh)) {
       reasons.push(
         `${label}: ${cfrLow ? 'CFR' : 'IMR'} is abnormal, but obstruction was not excluded in this vessel (no pressure index and no stenosis estimate), so it is not used for a microvascular finding (COVADIS; EAPCI 2020).`,
@@ -207,26 +245,48 @@ export function classifyStudy(
   const vasospasm: Findings['vasospasm'] =
     vr === 'epicardial-spasm' ? 'epicardial' : vr === 'microvascular-spasm' ? 'microvascular' : null;
   const endothelialDysfunction = vr === 'endothelial-dysfunction';
+  const equivocalAch = vr === 'equivocal';
 
-  const microText = (kind: NonNullable<Findings['microvascular']>) =>
-    kind === 'functional' && functionalWithoutImr ? 'coronary microvascular dysfunction with low CFR (IMR not measured, so its type is not known)' : microWords[kind];
-  const coexisting: string[] = [];
-  if (microvascular !== null) coexisting.push(microText(microvascular));
+  // Each vessel's microvascular finding is named with its vessels, never merged into one.
+  const microParts = microGroups.map((g) => `${microPhrase(g.kind, g.partnerMissing)} in ${joinAnd(g.labels)}`);
+  const cmdParts = microGroups.map((g) => {
+    const where = ` in ${joinAnd(g.labels)}`;
+    switch (g.kind) {
+      case 'structural':
+        return `structural microvascular dysfunction${where}: CFR below ${cutRatio(t.cfr)} with IMR at or above ${cutPlain(t.imr)}`;
+      case 'functional':
+        return g.partnerMissing
+          ? `microvascular dysfunction with low CFR${where}: CFR below ${cutRatio(t.cfr)} with IMR not measured`
+          : `functional microvascular dysfunction${where}: CFR below ${cutRatio(t.cfr)} with IMR below the cut-off`;
+      default:
+        return g.partnerMissing
+          ? `raised microvascular resistance${where}: IMR at or above ${cutPlain(t.imr)} with CFR not measured`
+          : `raised microvascular resistance${where}: IMR at or above ${cutPlain(t.imr)} with CFR not below ${cutRatio(t.cfr)}`;
+    }
+  });
+  const coexisting: string[] = [...microParts];
   if (vasospasm !== null) coexisting.push(spasmWords[vasospasm]);
   if (endothelialDysfunction) coexisting.push('endothelial dysfunction');
-  if (vr === 'equivocal') coexisting.push('an equivocal acetylcholine test');
+  if (equivocalAch) coexisting.push('an equivocal acetylcholine test');
+
+  // Acetylcholine results that are not spasm, named beside any microvascular or spasm endotype.
+  const achTail = endothelialDysfunction
+    ? '; endothelial dysfunction on acetylcholine testing'
+    : equivocalAch
+      ? '; equivocal acetylcholine test (criteria for spasm only partly met)'
+      : '';
+  const achReason = endothelialDysfunction
+    ? '; endothelial dysfunction was found on acetylcholine testing'
+    : equivocalAch
+      ? '; the acetylcholine test was equivocal (criteria for spasm only partly met)'
+      : '';
+  // COVADIS calls these "angina" only in a patient with the symptom.
+  const hasAngina = angina === true;
+  const anginaState = angina === false ? 'the record says the patient has no angina' : 'angina is not recorded';
+  const capital = (x: string) => x.charAt(0).toUpperCase() + x.slice(1);
 
   let endotype: Endotype;
   let headline: string;
-  const cmdText =
-    microvascular === 'structural'
-      ? `structural microvascular dysfunction: CFR below ${cutRatio(t.cfr)} with IMR at or above ${cutPlain(t.imr)}`
-      : microvascular === 'functional'
-        ? `functional microvascular dysfunction: CFR below ${cutRatio(t.cfr)} with IMR ${functionalWithoutImr ? 'not measured' : 'below the cut-off'}`
-        : microvascular === 'raised-imr'
-          ? `raised microvascular resistance: IMR at or above ${cutPlain(t.imr)} with CFR not below ${cutRatio(t.cfr)}`
-          : '';
-  const withEd = endothelialDysfunction ? '; endothelial dysfunction on acetylcholine testing' : '';
   if (obstructive) {
     endotype = 'obstructive';
     headline = `Obstructive coronary disease (${obstructiveLabels.join(', ')})${coexisting.length ? `, with ${joinAnd(coexisting)}` : ''}`;
@@ -234,38 +294,54 @@ export function classifyStudy(
       `Endotype: obstructive — abnormal pressure index or obstructive stenosis in ${obstructiveLabels.join(', ')}${coexisting.length ? `; coexisting ${joinAnd(coexisting)} ${coexisting.length > 1 ? 'are' : 'is'} reported as well (ESC 2024)` : ''}.`,
     );
   } else if (microvascular !== null || vasospasm === 'microvascular') {
-    const parts: string[] = [];
-    if (cmdText) parts.push(cmdText);
+    const parts: string[] = [...cmdParts];
     if (vasospasm === 'microvascular') parts.push('microvascular spasm');
     if (vasospasm === 'epicardial') {
       endotype = 'mixed';
-      headline = `Microvascular and vasospastic angina: ${joinAnd([...(microvascular ? [microText(microvascular)] : []), spasmWords.epicardial])}${withEd}`;
+      const found = joinAnd([...microParts, spasmWords.epicardial]);
+      headline = hasAngina ? `Microvascular and vasospastic angina: ${found}${achTail}` : `${capital(found)}${achTail}`;
       reasons.push(
-        `Endotype: mixed — microvascular angina (${parts.join('; ')}) together with epicardial spasm, with no obstructive stenosis (COVADIS; EAPCI 2020).`,
+        hasAngina
+          ? `Endotype: mixed — microvascular angina (${parts.join('; ')}) together with epicardial spasm, with no obstructive stenosis${achReason} (COVADIS; EAPCI 2020).`
+          : `Endotype: mixed — coronary microvascular dysfunction (${parts.join('; ')}) together with epicardial spasm, with no obstructive stenosis${achReason}; named microvascular and vasospastic angina only in a patient with angina, and ${anginaState} (COVADIS: Ong et al., Int J Cardiol 2018; Beltrame et al., Eur Heart J 2017).`,
       );
     } else {
       endotype = 'microvascular-angina';
-      headline = `Microvascular angina: ${joinAnd([...(microvascular ? [microText(microvascular)] : []), ...(vasospasm === 'microvascular' ? [spasmWords.microvascular] : [])])}${withEd}`;
-      reasons.push(`Endotype: microvascular angina (${parts.join('; ')}) with no obstructive stenosis (COVADIS; EAPCI 2020).`);
+      const found = joinAnd([...microParts, ...(vasospasm === 'microvascular' ? [spasmWords.microvascular] : [])]);
+      headline = hasAngina ? `Microvascular angina: ${found}${achTail}` : `${capital(found)}${achTail}`;
+      reasons.push(
+        hasAngina
+          ? `Endotype: microvascular angina (${parts.join('; ')}) with no obstructive stenosis${achReason} (COVADIS; EAPCI 2020).`
+          : `Endotype: coronary microvascular dysfunction (${parts.join('; ')}) with no obstructive stenosis${achReason}; named microvascular angina only in a patient with angina, and ${anginaState} (COVADIS: Ong et al., Int J Cardiol 2018).`,
+      );
     }
   } else if (vasospasm === 'epicardial') {
     endotype = 'vasospastic-angina';
-    headline = `Vasospastic angina: epicardial coronary spasm${withEd}`;
+    headline = hasAngina ? `Vasospastic angina: epicardial coronary spasm${achTail}` : `Epicardial vasospasm on acetylcholine testing${achTail}`;
     reasons.push(
-      'Endotype: vasospastic angina — epicardial spasm with no obstructive stenosis and no microvascular dysfunction found (COVADIS; EAPCI 2020).',
+      hasAngina
+        ? 'Endotype: vasospastic angina — epicardial spasm with no obstructive stenosis and no microvascular dysfunction found (COVADIS; EAPCI 2020).'
+        : `Endotype: epicardial vasospasm — epicardial spasm with no obstructive stenosis and no microvascular dysfunction found; named vasospastic angina only in a patient with angina, and ${anginaState} (COVADIS: Beltrame et al., Eur Heart J 2017).`,
     );
   } else {
     const missing: string[] = [];
     if (!epicardialAssessed) missing.push('an epicardial pressure index (FFR or a resting ratio)');
-    if (!cfrMeasured) missing.push('CFR');
-    if (!imrMeasured) missing.push('IMR');
+    if (!bothJudgedInOneVessel) {
+      if (unjudgedThermo.length > 0 && !cfrJudgedAny) {
+        // Said below: the transit times were measured but not judged.
+      } else if (cfrJudgedAny && imrJudgedAny) missing.push('a vessel with both CFR and IMR');
+      else {
+        if (!cfrJudgedAny) missing.push('CFR');
+        if (!imrJudgedAny) missing.push('IMR');
+      }
+    }
     if (vaso === undefined) missing.push('acetylcholine testing');
     const notes: string[] = [];
     if (borderlineCfr) notes.push('a borderline CFR');
     if (lowRrr) notes.push('a low RRR');
     if (lowMrr) notes.push('a low MRR');
     const noted = notes.length > 0 ? `; ${joinAnd(notes)} ${notes.length > 1 ? 'were' : 'was'} noted but ${notes.length > 1 ? 'do' : 'does'} not define an endotype` : '';
-    if (missing.length === 0 && vr !== 'equivocal') {
+    if (missing.length === 0 && bothJudgedInOneVessel && !equivocalAch) {
       endotype = 'no-abnormality';
       if (endothelialDysfunction) {
         headline = 'No obstructive disease, microvascular dysfunction or spasm; endothelial dysfunction on acetylcholine testing';
@@ -280,10 +356,11 @@ export function classifyStudy(
       }
     } else {
       endotype = 'inconclusive';
-      const coronaryFunctionTested = cfrMeasured || imrMeasured || vaso !== undefined;
+      const coronaryFunctionTested = cfrJudgedAny || imrJudgedAny || unjudgedThermo.length > 0 || vaso !== undefined;
       const why = [
         ...(missing.length > 0 ? [`${joinAnd(missing)} ${missing.length > 1 ? 'were' : 'was'} not assessed`] : []),
-        ...(vr === 'equivocal' ? ['the acetylcholine test was equivocal'] : []),
+        ...(unjudgedThermo.length > 0 ? [`the transit times in ${joinAnd(unjudgedThermo)} gave a CFR below 1 and were not judged`] : []),
+        ...(equivocalAch ? ['the acetylcholine test was equivocal'] : []),
       ];
       if (!coronaryFunctionTested) {
         // A pressure-wire study of a lesion: speak of the lesions, not of an endotype.
@@ -292,7 +369,7 @@ export function classifyStudy(
             ? `No obstructive stenosis (${clearLabels.join(', ')})`
             : 'Nothing to judge yet';
       } else {
-        headline = `Endotype not determined: ${joinAnd(why)}${withEd}`;
+        headline = `Endotype not determined: ${joinAnd(why)}${endothelialDysfunction ? '; endothelial dysfunction on acetylcholine testing' : ''}`;
       }
       reasons.push(`Endotype: inconclusive — nothing abnormal was found, but ${joinAnd(why)}${noted}.`);
     }

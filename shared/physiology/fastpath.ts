@@ -167,7 +167,7 @@ function uniqueIds(vessels: readonly unknown[]): boolean {
 export function isCertainlyValid(x: unknown): x is PhysiologyOutput {
   if (!isPlainObject(x)) return false;
   for (const k in x) {
-    if (k !== 'vessels' && k !== 'vasoreactivity' && k !== 'thresholds' && k !== 'procedure') return false;
+    if (k !== 'vessels' && k !== 'vasoreactivity' && k !== 'thresholds' && k !== 'procedure' && k !== 'angina') return false;
     if (x[k] === undefined) return false;
   }
   const vessels = x.vessels;
@@ -184,5 +184,6 @@ export function isCertainlyValid(x: unknown): x is PhysiologyOutput {
   }
   if (x.thresholds !== undefined && !okThresholds(x.thresholds)) return false;
   if (x.procedure !== undefined && !okProcedure(x.procedure)) return false;
+  if (x.angina !== undefined && typeof x.angina !== 'boolean') return false;
   return true;
 }

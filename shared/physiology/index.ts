@@ -15,6 +15,8 @@ export {
   imrMethodLabel,
   vasoreactivityLabel,
   endotypeLabel,
+  endotypeLabelWithoutAngina,
+  endotypeName,
   microvascularLabel,
   decisionSupportCaution,
 } from './labels';

@@ -129,15 +129,20 @@ export function analyzeVessel(v: VesselInput, t: Thresholds, label: string, proc
   }
 
   let cfr: number | undefined;
+  // A CFR below 1 (hyperaemic transit longer than resting) is taken for a measurement error, most often
+  // swapped sets: the thermodilution indices are shown but given no verdict, so they decide nothing.
+  let thermodilutionDoubtful = false;
   if (tr !== undefined && th !== undefined) {
     cfr = tr / th;
     out.cfr = cfr;
-    out.cfrFlag = below(cfr, t.cfr, 'ratio')
-      ? 'abnormal'
-      : below(cfr, Math.max(t.cfr, t.cfrBorderline), 'ratio')
-        ? 'borderline'
-        : 'normal';
-    checkCfrBelowOne(cfr, label, warnings);
+    thermodilutionDoubtful = checkCfrBelowOne(cfr, label, warnings);
+    if (!thermodilutionDoubtful) {
+      out.cfrFlag = below(cfr, t.cfr, 'ratio')
+        ? 'abnormal'
+        : below(cfr, Math.max(t.cfr, t.cfrBorderline), 'ratio')
+          ? 'borderline'
+          : 'normal';
+    }
   }
 
   // IMR needs hyperaemic pressures and transit times.
@@ -180,24 +185,26 @@ export function analyzeVessel(v: VesselInput, t: Thresholds, label: string, proc
     }
     if (imr !== undefined) {
       out.imr = imr;
-      out.imrFlag = atOrAbove(imr, t.imr, 'imr') ? 'abnormal' : 'normal';
+      if (!thermodilutionDoubtful) out.imrFlag = atOrAbove(imr, t.imr, 'imr') ? 'abnormal' : 'normal';
     }
   }
 
   if (cfr !== undefined && restPd !== undefined && hypPd !== undefined) {
     const rrr = (cfr * restPd) / hypPd;
     out.rrr = rrr;
-    out.rrrFlag = below(rrr, t.rrr, 'ratio') ? 'abnormal' : 'normal';
+    if (!thermodilutionDoubtful) out.rrrFlag = below(rrr, t.rrr, 'ratio') ? 'abnormal' : 'normal';
   }
   if (cfr !== undefined && ffr !== undefined && restPa !== undefined && hypPa !== undefined) {
     const mrr = (cfr / ffr) * (restPa / hypPa);
     out.mrr = mrr;
     out.mrrMethod = 'bolus-thermodilution';
-    out.mrrFlag = below(mrr, t.mrr, 'ratio')
-      ? 'abnormal'
-      : atOrBelow(mrr, Math.max(t.mrr, t.mrrBorderline), 'ratio') && t.mrrBorderline > t.mrr
-        ? 'borderline'
-        : 'normal';
+    if (!thermodilutionDoubtful) {
+      out.mrrFlag = below(mrr, t.mrr, 'ratio')
+        ? 'abnormal'
+        : atOrBelow(mrr, Math.max(t.mrr, t.mrrBorderline), 'ratio') && t.mrrBorderline > t.mrr
+          ? 'borderline'
+          : 'normal';
+    }
   }
 
   // Quality checks.

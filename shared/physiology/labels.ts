@@ -54,6 +54,22 @@ export const endotypeLabel: Readonly<Record<Endotype, string>> = Object.freeze({
   inconclusive: 'Endotype not determined',
 });
 
+/**
+ * The endotypes whose names say "angina": COVADIS calls them angina only in a patient with the symptom
+ * (microvascular angina: Ong et al., Int J Cardiol 2018; vasospastic angina: Beltrame et al., Eur Heart J
+ * 2017). When the record says no angina, or does not say, the finding is named instead.
+ */
+export const endotypeLabelWithoutAngina: Readonly<Partial<Record<Endotype, string>>> = Object.freeze({
+  'microvascular-angina': 'Coronary microvascular dysfunction',
+  'vasospastic-angina': 'Epicardial vasospasm',
+  mixed: 'Coronary microvascular dysfunction and epicardial vasospasm',
+});
+
+/** The endotype's name for this patient: "angina" only when angina is recorded as present. */
+export function endotypeName(endotype: Endotype, angina: boolean | undefined, labels: Readonly<Record<Endotype, string>> = endotypeLabel): string {
+  return angina === true ? labels[endotype] : (endotypeLabelWithoutAngina[endotype] ?? labels[endotype]);
+}
+
 export const microvascularLabel: Readonly<Record<NonNullable<Findings['microvascular']>, string>> = Object.freeze({
   structural: 'Structural microvascular dysfunction',
   functional: 'Functional microvascular dysfunction',

@@ -107,14 +107,17 @@ export function checkImplausible(
   }
 }
 
-/** A hyperaemic transit time longer than the resting one (CFR below 1): most often the two sets were swapped. */
-export function checkCfrBelowOne(cfr: number, label: string, warnings: PhysiologyWarning[]): void {
-  if (below(cfr, 1, 'ratio')) {
-    warnings.push({
-      code: 'cfr-below-one',
-      message: `${label}: CFR ${ratio(cfr)} is below 1 — the hyperaemic transit times are longer than the resting ones; check that the two sets were not swapped.`,
-    });
-  }
+/**
+ * A hyperaemic transit time longer than the resting one (CFR below 1, as displayed): most often the two
+ * sets were swapped. Returns true when it warned; the caller then leaves the thermodilution indices unjudged.
+ */
+export function checkCfrBelowOne(cfr: number, label: string, warnings: PhysiologyWarning[]): boolean {
+  if (!below(cfr, 1, 'ratio')) return false;
+  warnings.push({
+    code: 'cfr-below-one',
+    message: `${label}: CFR ${ratio(cfr)} is below 1 — the hyperaemic transit times are longer than the resting ones, most likely a measurement error (check that the two sets were not swapped). CFR and the indices computed from the transit times (IMR, RRR, MRR) are shown but not judged, and no microvascular finding is drawn from them.`,
+  });
+  return true;
 }
 
 /**

@@ -152,6 +152,12 @@ export const physiologyInputSchema = z
         .optional(),
       thresholds: thresholdsSchema.optional(),
       procedure: procedureSchema.optional(),
+      /**
+       * Whether the patient has angina (or an anginal equivalent), as the record says: true, false, or
+       * absent when not recorded. The COVADIS criteria for microvascular and vasospastic angina need the
+       * symptom; without it the findings are named as dysfunction and spasm, not angina.
+       */
+      angina: z.boolean({ error: 'Angina must be true or false.' }).optional(),
     },
     { error: strictMessage('the physiology input') },
   )

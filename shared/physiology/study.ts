@@ -43,7 +43,7 @@ export function analyzeValidated(data: PhysiologyOutput): PhysiologyResult {
     warnings = analysed.warnings;
   }
 
-  const classified = classifyStudy(vessels, labels, vasoreactivity, vasoReasons, ctx);
+  const classified = classifyStudy(vessels, labels, vasoreactivity, vasoReasons, ctx, data.angina);
   const { findings, reasons } = classified;
   let { endotype, headline } = classified;
   // A negative test that may be falsely negative does not support "no abnormality" (ESC 2024): nitrates

@@ -126,7 +126,8 @@ export const thresholdCitations: Readonly<Record<ThresholdKey, string>> = Object
   cfr: 'EAPCI 2020',
   cfrBorderline: 'ESC 2024',
   imr: 'ESC 2024; EAPCI 2020',
-  rrr: 'common practice',
+  // Recalled, not confirmed from a published source: said so wherever the cut-off is cited.
+  rrr: 'cut-off source not confirmed',
   mrr: 'de Vos 2023',
   mrrBorderline: 'de Vos 2023',
   ffrGreyZoneLow: 'DEFER/FAME',

@@ -43,6 +43,12 @@ export interface VesselResult {
   /** Whether the vessel is obstructive, and by what it was judged; absent when nothing judges it. */
   obstructive?: boolean;
   judgedBy?: 'ffr' | 'nhpr' | 'resting-pd-pa' | 'visual-stenosis';
+  /**
+   * This vessel's microvascular finding, from its own CFR and IMR (never combined across vessels); set
+   * only where obstruction was excluded in the vessel. The study's `findings.microvascular` is the most
+   * severe of these.
+   */
+  microvascular?: 'structural' | 'functional' | 'raised-imr';
   warnings: PhysiologyWarning[];
 }
 

@@ -19,7 +19,9 @@ const micrograms = within(MIN_POSITIVE, MAX_MICROGRAMS);
  * what is wrong with it. Pa and Pd go in together; transit times stand alone (CFR needs only them);
  * a dose goes in only when every one of its observations is there.
  */
-export function toPhysiologyInput(record: Pick<StudySections, 'vessels' | 'vasoreactivity'> & { setup?: StudySections['setup'] }): PhysiologyInput {
+export function toPhysiologyInput(
+  record: Pick<StudySections, 'vessels' | 'vasoreactivity'> & { setup?: StudySections['setup']; details?: Pick<StudySections['details'], 'anginaPresent'> },
+): PhysiologyInput {
   const vessels = record.vessels.map((v): PhysiologyVessel => {
     const out: PhysiologyVessel = { id: v.id, vessel: v.vessel };
     const restTmn = v.restTransit.filter(transit);
@@ -41,10 +43,13 @@ export function toPhysiologyInput(record: Pick<StudySections, 'vessels' | 'vasor
       : [],
   );
   const procedure = record.setup ? toProcedure(record.setup, doses.length > 0) : undefined;
+  // Angina as the record says it; not recorded stays absent (the core then does not call findings angina).
+  const angina = record.details?.anginaPresent;
   return {
     vessels,
     ...(doses.length ? { vasoreactivity: { doses } } : {}),
     ...(procedure && Object.keys(procedure).length ? { procedure } : {}),
+    ...(typeof angina === 'boolean' ? { angina } : {}),
   };
 }
 

@@ -188,7 +188,8 @@ describe('the structured study form on a phone', () => {
       for (const i of [0, 1, 2]) await fill(`vessel-0-hyp-tmn-${i}`, '0.5');
       await fill('vessel-0-drift', '0.99');
       await expect(visible(page, 'vessel-0-results-imr-value').innerText()).resolves.toMatch(/^40( |$)/);
-      await expect(visible(page, 'study-results-headline').innerText()).resolves.toMatch(/^Microvascular angina: structural coronary microvascular dysfunction/);
+      // Angina is not recorded in this study, so the finding is named without "angina" (COVADIS: Ong et al., Int J Cardiol 2018).
+      await expect(visible(page, 'study-results-headline').innerText()).resolves.toMatch(/^Structural coronary microvascular dysfunction \(low CFR, raised IMR\) in LAD/);
 
       await visible(page, 'section-vasoreactivity').click();
       await page.waitForURL(/\/vasoreactivity$/);
@@ -212,7 +213,7 @@ describe('the structured study form on a phone', () => {
       // The first dose (10%, no symptoms, no ECG change) keeps its own outcome on its own card (COVADIS).
       await expect(visible(page, 'dose-0-result').innerText()).resolves.toBe('This dose: negative');
       await expect(visible(page, 'acetylcholine-summary').innerText()).resolves.toBe('Acetylcholine test overall: epicardial spasm');
-      await expect(visible(page, 'study-results-headline').innerText()).resolves.toMatch(/^Microvascular and vasospastic angina: structural coronary microvascular dysfunction .* and epicardial coronary spasm/);
+      await expect(visible(page, 'study-results-headline').innerText()).resolves.toMatch(/^Structural coronary microvascular dysfunction .* in LAD and epicardial coronary spasm/);
       await visible(page, 'dose-nitrate-reversal-true').click();
       await visible(page, 'save-status-saved').waitFor({ timeout: 10_000 });
       await page.screenshot({ path: screenshotPath('study-vasoreactivity-phone') });

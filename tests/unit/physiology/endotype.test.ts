@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { analyzeStudy, type PhysiologyInput } from '../../../shared/physiology';
+import { analyzeStudy, endotypeName, type PhysiologyInput } from '../../../shared/physiology';
 
 type VesselIn = PhysiologyInput['vessels'][number];
 type Dose = NonNullable<PhysiologyInput['vasoreactivity']>['doses'][number];
@@ -34,8 +34,13 @@ const epicardialSpasm: Dose[] = [{ vessel: 'LAD', micrograms: 100, constrictionP
 const microSpasm: Dose[] = [{ vessel: 'LAD', micrograms: 100, constrictionPct: 40, symptoms: true, ischemicEcg: true }];
 const endothelial: Dose[] = [{ vessel: 'LAD', micrograms: 100, constrictionPct: 50, symptoms: false, ischemicEcg: false }];
 
-function study(vessels: VesselIn[], doses?: Dose[], thresholds?: PhysiologyInput['thresholds']) {
-  return analyzeStudy({ vessels, ...(doses ? { vasoreactivity: { doses } } : {}), ...(thresholds ? { thresholds } : {}) });
+function study(vessels: VesselIn[], doses?: Dose[], thresholds?: PhysiologyInput['thresholds'], angina?: boolean) {
+  return analyzeStudy({
+    vessels,
+    ...(doses ? { vasoreactivity: { doses } } : {}),
+    ...(thresholds ? { thresholds } : {}),
+    ...(angina !== undefined ? { angina } : {}),
+  });
 }
 
 describe('endotypes', () => {
@@ -234,14 +239,15 @@ describe('findings rules', () => {
   });
 
   it(`reason sentences: one per rule that fired, values rounded only in the text — ${SRC.practice}`, () => {
-    const r = study([vessel('lad', { imrTmn: 0.4, cfr: 1.5 })], negativeAch);
+    const r = study([vessel('lad', { imrTmn: 0.4, cfr: 1.5 })], negativeAch, undefined, true);
     expect(r.reasons).toEqual([
       'LAD: IMR 36 U (Pd × Tmn) is at or above the 25 cut-off (ESC 2024; EAPCI 2020) — raised microvascular resistance with impaired CFR (structural microvascular dysfunction).',
       'LAD: CFR 1.50 is below the 2.00 cut-off (EAPCI 2020) — impaired coronary flow reserve.',
-      'LAD: RRR 1.62 is below the 2.00 cut-off (common practice) — reduced resistive reserve.',
+      // The RRR cut-off 2.0 is recalled (CorMicA) [memory], not confirmed from a source, and says so.
+      'LAD: RRR 1.62 is below the 2.00 cut-off (cut-off source not confirmed) — reduced resistive reserve.',
       'LAD: MRR 1.67 is below the 2.10 cut-off — reduced microvascular resistance reserve; MRR here comes from bolus thermodilution, while its cut-offs were set with continuous thermodilution (de Vos 2023); the bolus cut-off is not settled.',
       'Acetylcholine testing was negative: maximum constriction 10% (below 20%, common practice) and no dose reproduced symptoms or ischaemic ECG changes (COVADIS; ESC 2024).',
-      'Endotype: microvascular angina (structural microvascular dysfunction: CFR below 2.00 with IMR at or above 25) with no obstructive stenosis (COVADIS; EAPCI 2020).',
+      'Endotype: microvascular angina (structural microvascular dysfunction in LAD: CFR below 2.00 with IMR at or above 25) with no obstructive stenosis (COVADIS; EAPCI 2020).',
     ]);
     expect(r.vessels[0].imr).toBeCloseTo(36, 10);
     expect(r.vessels[0].rrr).toBeCloseTo((1.5 * 97) / 90, 10);
@@ -282,7 +288,7 @@ describe('what "no abnormality" needs, and what the headline says', () => {
     const r = study([vessel('lad', { ffrPd: 75 }), vessel('lcx', { vessel: 'LCX', cfr: 1.5 })], epicardialSpasm);
     expect(r.endotype).toBe('obstructive');
     expect(r.headline).toBe(
-      'Obstructive coronary disease (LAD), with functional coronary microvascular dysfunction (low CFR, IMR not raised) and epicardial coronary spasm',
+      'Obstructive coronary disease (LAD), with functional coronary microvascular dysfunction (low CFR, IMR not raised) in LCx and epicardial coronary spasm',
     );
   });
 });
@@ -349,5 +355,160 @@ describe('a negative acetylcholine test that may be falsely negative does not gi
     expect(low.endotype).toBe('inconclusive');
     expect(low.headline).toContain('no dose reached the provocative range');
     expect(study([normalVessel()], negativeAch).endotype).toBe('no-abnormality');
+  });
+});
+
+describe('a CFR below 1 is a measurement error: shown, not judged, and decides nothing — common practice (a hyperaemic transit time longer than the resting one means swapped or faulty entries); CFR = Tmn rest / Tmn hyp (EAPCI 2020)', () => {
+  // Hand-computed: Tmn rest 0.30 s, hyperaemic 0.90 s → CFR 0.33; IMR = Pd 90 × 0.90 = 81 U (FFR 0.90, Pd × Tmn).
+  const swapped: VesselIn = { id: 'lad', vessel: 'LAD', rest: { pa: 100, pd: 97, tmn: three(0.3) }, hyperemia: { pa: 100, pd: 90, tmn: three(0.9) } };
+
+  it('the values stay, with no flag; no microvascular finding and no endotype are drawn from them', () => {
+    const r = study([swapped], negativeAch, undefined, true);
+    const v = r.vessels[0];
+    expect(v.cfr).toBeCloseTo(1 / 3, 10);
+    expect(v.imr).toBeCloseTo(81, 10);
+    expect([v.cfrFlag, v.imrFlag, v.rrrFlag, v.mrrFlag]).toEqual([undefined, undefined, undefined, undefined]);
+    expect(v.microvascular).toBeUndefined();
+    expect(v.warnings.map((w) => w.code)).toContain('cfr-below-one');
+    expect(r.findings).toEqual({ obstructive: false, microvascular: null, endothelialDysfunction: false, vasospasm: null });
+    expect(r.endotype).toBe('inconclusive');
+    expect(r.headline).toBe('Endotype not determined: the transit times in LAD gave a CFR below 1 and were not judged — caution: quality check failed in LAD');
+    expect(r.headline).not.toMatch(/microvascular|angina/i);
+  });
+
+  it('the same transit times in the right order give a judged CFR and IMR (the swap is what was withheld)', () => {
+    const fixed = { ...swapped, rest: { pa: 100, pd: 97, tmn: three(0.9) }, hyperemia: { pa: 100, pd: 90, tmn: three(0.3) } };
+    const v = study([fixed], negativeAch).vessels[0];
+    expect(v.cfr).toBeCloseTo(3, 10);
+    expect(v.cfrFlag).toBe('normal');
+    expect(v.imr).toBeCloseTo(27, 10); // Pd 90 × Tmn 0.30 = 27 U, at or above 25: judged abnormal
+    expect(v.imrFlag).toBe('abnormal');
+  });
+
+  it('judged at the displayed precision: CFR 0.995 shows 1.00 and is judged (abnormal, below 2.00); 0.99 is not', () => {
+    const at = (rest: number) => study([{ ...swapped, rest: { pa: 100, pd: 97, tmn: three(rest) }, hyperemia: { pa: 100, pd: 90, tmn: three(1) } }], negativeAch).vessels[0];
+    expect(at(0.995).cfrFlag).toBe('abnormal');
+    expect(at(0.99).cfrFlag).toBeUndefined();
+  });
+
+  it("a swapped vessel does not hide another vessel's finding", () => {
+    const r = study([swapped, vessel('lcx', { vessel: 'LCX', cfr: 1.5 })], negativeAch, undefined, true);
+    expect(r.findings.microvascular).toBe('functional');
+    expect(r.headline).toBe(
+      'Microvascular angina: functional coronary microvascular dysfunction (low CFR, IMR not raised) in LCx — caution: quality check failed in LAD',
+    );
+  });
+});
+
+describe('several vessels: each keeps its own microvascular finding, from its own CFR and IMR — COVADIS (Ong et al., Int J Cardiol 2018); EAPCI 2020; coexisting findings all reported (ESC 2024)', () => {
+  it('structural in the LAD and raised IMR with preserved CFR in the LCx are both named, with their vessels', () => {
+    const r = study([vessel('lad', { imrTmn: 0.4, cfr: 1.5 }), vessel('lcx', { vessel: 'LCX', imrTmn: 0.4 })], negativeAch, undefined, true);
+    expect(r.vessels.map((v) => v.microvascular)).toEqual(['structural', 'raised-imr']);
+    // The contract's single study value is the most severe kind.
+    expect(r.findings.microvascular).toBe('structural');
+    expect(r.headline).toBe(
+      'Microvascular angina: structural coronary microvascular dysfunction (low CFR, raised IMR) in LAD and raised microvascular resistance with preserved CFR in LCx',
+    );
+    expect(r.reasons.at(-1)).toBe(
+      'Endotype: microvascular angina (structural microvascular dysfunction in LAD: CFR below 2.00 with IMR at or above 25; raised microvascular resistance in LCx: IMR at or above 25 with CFR not below 2.00) with no obstructive stenosis (COVADIS; EAPCI 2020).',
+    );
+  });
+
+  it('the same kind in two vessels is said once, naming both', () => {
+    const r = study([vessel('lad', { cfr: 1.5 }), vessel('rca', { vessel: 'RCA', cfr: 1.6 })], negativeAch, undefined, true);
+    expect(r.headline).toBe('Microvascular angina: functional coronary microvascular dysfunction (low CFR, IMR not raised) in LAD and RCA');
+  });
+});
+
+describe('CFR and IMR are combined only within one vessel — EAPCI 2020 / ILIAS (Boerhout et al., EuroIntervention 2022): structural means low CFR and high IMR together', () => {
+  it('a low CFR in the LAD and a raised IMR in the LCx are not structural dysfunction', () => {
+    // LAD: CFR 1.50, IMR 18; LCx: CFR 3.00, IMR 36 (Pd 90 × Tmn).
+    const r = study([vessel('lad', { cfr: 1.5 }), vessel('lcx', { vessel: 'LCX', imrTmn: 0.4 })], negativeAch, undefined, true);
+    expect(r.findings.microvascular).toBe('functional');
+    expect(r.vessels.map((v) => v.microvascular)).toEqual(['functional', 'raised-imr']);
+    expect(r.headline).toBe(
+      'Microvascular angina: functional coronary microvascular dysfunction (low CFR, IMR not raised) in LAD and raised microvascular resistance with preserved CFR in LCx',
+    );
+  });
+
+  it('a CFR measured only in the LAD and an IMR measured only in the LCx: each said with what was missing, never structural', () => {
+    // LAD: Tmn only (CFR 1.50), judged non-obstructive by a 20% stenosis; LCx: FFR 0.90 and hyperaemic Tmn only (IMR 36).
+    const ladCfrOnly = { id: 'lad', vessel: 'LAD', visualStenosisPct: 20, rest: { tmn: three(0.6) }, hyperemia: { tmn: three(0.4) } } as VesselIn;
+    const lcxImrOnly = { id: 'lcx', vessel: 'LCX', hyperemia: { pa: 100, pd: 90, tmn: three(0.4) } } as VesselIn;
+    const r = study([ladCfrOnly, lcxImrOnly], negativeAch, undefined, true);
+    expect(r.findings.microvascular).not.toBe('structural');
+    expect(r.headline).toBe(
+      'Microvascular angina: coronary microvascular dysfunction with low CFR (IMR not measured, so its type is not known) in LAD and raised microvascular resistance (CFR not measured) in LCx',
+    );
+  });
+
+  it('normal CFR in one vessel and normal IMR in another do not make "no abnormality"', () => {
+    const ladCfrOnly = { id: 'lad', vessel: 'LAD', visualStenosisPct: 20, rest: { tmn: three(0.9) }, hyperemia: { tmn: three(0.3) } } as VesselIn;
+    const lcxImrOnly = { id: 'lcx', vessel: 'LCX', hyperemia: { pa: 100, pd: 90, tmn: three(0.2) } } as VesselIn;
+    const r = study([ladCfrOnly, lcxImrOnly], negativeAch);
+    expect(r.vessels[0].cfrFlag).toBe('normal');
+    expect(r.vessels[1].imrFlag).toBe('normal');
+    expect(r.endotype).toBe('inconclusive');
+    expect(r.reasons.at(-1)).toBe('Endotype: inconclusive — nothing abnormal was found, but a vessel with both CFR and IMR was not assessed.');
+  });
+});
+
+describe('an equivocal acetylcholine test is named beside non-obstructive findings — COVADIS (Beltrame et al., EHJ 2017: incomplete criteria are "suspected", not spasm)', () => {
+  const equivocal: Dose[] = [{ vessel: 'LAD', micrograms: 100, constrictionPct: 95, symptoms: true, ischemicEcg: false }];
+  it('with microvascular dysfunction: in the headline and in the endotype reason', () => {
+    const r = study([vessel('lad', { cfr: 1.5 })], equivocal, undefined, true);
+    expect(r.vasoreactivity?.result).toBe('equivocal');
+    expect(r.endotype).toBe('microvascular-angina');
+    expect(r.headline).toBe(
+      'Microvascular angina: functional coronary microvascular dysfunction (low CFR, IMR not raised) in LAD; equivocal acetylcholine test (criteria for spasm only partly met)',
+    );
+    expect(r.reasons.at(-1)).toContain('the acetylcholine test was equivocal');
+  });
+  it('without angina recorded too', () => {
+    const r = study([vessel('lad', { cfr: 1.5 })], equivocal);
+    expect(r.headline).toContain('; equivocal acetylcholine test');
+  });
+  it('with obstructive disease: listed among the coexisting findings (ESC 2024)', () => {
+    const r = study([vessel('lad', { ffrPd: 75 })], equivocal);
+    expect(r.headline).toBe('Obstructive coronary disease (LAD), with an equivocal acetylcholine test');
+  });
+});
+
+describe('"angina" only when the record says angina — COVADIS: microvascular angina needs symptoms (Ong et al., Int J Cardiol 2018;250:16-20); vasospastic angina needs symptoms (Beltrame et al., Eur Heart J 2017)', () => {
+  const cases = [
+    { name: 'microvascular', vessels: [vessel('lad', { imrTmn: 0.4, cfr: 1.5 })], doses: negativeAch, endotype: 'microvascular-angina',
+      withAngina: 'Microvascular angina: structural coronary microvascular dysfunction (low CFR, raised IMR) in LAD',
+      without: 'Structural coronary microvascular dysfunction (low CFR, raised IMR) in LAD' },
+    { name: 'microvascular spasm', vessels: [normalVessel()], doses: microSpasm, endotype: 'microvascular-angina',
+      withAngina: 'Microvascular angina: microvascular spasm', without: 'Microvascular spasm' },
+    { name: 'vasospastic', vessels: [normalVessel()], doses: epicardialSpasm, endotype: 'vasospastic-angina',
+      withAngina: 'Vasospastic angina: epicardial coronary spasm', without: 'Epicardial vasospasm on acetylcholine testing' },
+    { name: 'mixed', vessels: [vessel('lad', { cfr: 1.5 })], doses: epicardialSpasm, endotype: 'mixed',
+      withAngina: 'Microvascular and vasospastic angina: functional coronary microvascular dysfunction (low CFR, IMR not raised) in LAD and epicardial coronary spasm',
+      without: 'Functional coronary microvascular dysfunction (low CFR, IMR not raised) in LAD and epicardial coronary spasm' },
+  ] as const;
+  it.each(cases)('$name: angina recorded, recorded absent, not recorded', ({ vessels, doses, endotype, withAngina, without }) => {
+    const yes = study([...vessels], [...doses], undefined, true);
+    const no = study([...vessels], [...doses], undefined, false);
+    const unknown = study([...vessels], [...doses]);
+    // The endotype code of the contract stays; only the words change.
+    for (const r of [yes, no, unknown]) expect(r.endotype).toBe(endotype);
+    expect(yes.headline).toBe(withAngina);
+    expect(no.headline).toBe(without);
+    expect(unknown.headline).toBe(without);
+    expect(no.headline).not.toMatch(/angina/i);
+    expect(no.reasons.at(-1)).toContain('the record says the patient has no angina');
+    expect(unknown.reasons.at(-1)).toContain('angina is not recorded');
+    expect(unknown.reasons.at(-1)).toMatch(/Ong et al\., Int J Cardiol 2018|Beltrame et al\., Eur Heart J 2017/);
+  });
+  it('the endotype names follow the same rule', () => {
+    expect(endotypeName('microvascular-angina', true)).toBe('Microvascular angina');
+    expect(endotypeName('microvascular-angina', false)).toBe('Coronary microvascular dysfunction');
+    expect(endotypeName('vasospastic-angina', undefined)).toBe('Epicardial vasospasm');
+    expect(endotypeName('mixed', undefined)).toBe('Coronary microvascular dysfunction and epicardial vasospasm');
+    expect(endotypeName('obstructive', undefined)).toBe('Obstructive coronary disease');
+  });
+  it('a value other than true or false is refused', () => {
+    expect(() => analyzeStudy({ vessels: [], angina: 'yes' as unknown as boolean })).toThrow(/Angina must be true or false/);
   });
 });

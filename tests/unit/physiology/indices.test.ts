@@ -323,6 +323,8 @@ describe('RRR and MRR', () => {
     });
     expect(v.mrr).toBeCloseTo(mrr, 10);
     expect(v.mrrFlag).toBe(flag);
+    // The value says which method it comes from: its cut-offs were set with continuous thermodilution.
+    expect(v.mrrMethod).toBe('bolus-thermodilution');
   });
 
   it(`MRR uses the entered FFR only through the pressures; none without hyperaemic pressures — ${SRC.mrr}`, () => {

@@ -180,6 +180,26 @@ describe('template sections', () => {
     expect(section(render(normal).text, 'DIAGNOSIS: CORONARY FUNCTION')).not.toContain('No coronary abnormality found.\n');
   });
 
+  it('"angina" in the diagnosis only when the record says angina — COVADIS microvascular angina criteria (Ong et al., Int J Cardiol 2018;250:16-20)', () => {
+    for (const anginaPresent of [false, null]) {
+      const s = demoReportStudies()[2];
+      s.details.anginaPresent = anginaPresent;
+      const d = section(render(s).text, 'DIAGNOSIS: CORONARY FUNCTION')!;
+      expect(d.split('\n')[0]).toBe('Coronary microvascular dysfunction');
+      // Label and headline (the lines before the reasons) do not say angina; the reason says why.
+      expect(d.slice(0, d.indexOf('Reasons:'))).not.toMatch(/angina/i);
+      expect(d).toContain('named microvascular angina only in a patient with angina');
+    }
+  });
+
+  it('an equivocal acetylcholine test is printed beside the microvascular finding — COVADIS (Beltrame et al., EHJ 2017)', () => {
+    const s = demoReportStudies()[2];
+    s.vasoreactivity.doses = s.vasoreactivity.doses.slice(0, 1).map((d) => ({ ...d, micrograms: 100, constrictionPct: 95, symptoms: true, ischemicEcg: false }));
+    const d = section(render(s).text, 'DIAGNOSIS: CORONARY FUNCTION')!;
+    expect(d.split('\n')[0]).toBe('Microvascular angina');
+    expect(d).toContain('equivocal acetylcholine test (criteria for spasm only partly met)');
+  });
+
   it('measurement quality lists the core warnings', () => {
     const q = section(render(functional).text, 'MEASUREMENT QUALITY')!;
     expect(q).toContain('LCx: Pd/Pa at the guide tip after pull-back was 1.03, outside 0.98–1.02');

@@ -1,7 +1,7 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { analyzeStudy } from '../../../shared/physiology';
-import { emptyDose, emptySetup, emptyVasoreactivity, emptyVessel, studySectionsSchema, vesselAssessmentSchema, acetylcholineDoseSchema } from '../../../shared/study/schema';
+import { emptyDetails, emptyDose, emptySetup, emptyVasoreactivity, emptyVessel, studySectionsSchema, vesselAssessmentSchema, acetylcholineDoseSchema } from '../../../shared/study/schema';
 import { toPhysiologyInput } from '../../../shared/study/to-physiology';
 
 const ID = '7d5b6f1e-0a4c-4d3f-9b1e-2c3d4e5f6a7b';
@@ -38,6 +38,34 @@ describe('the study record → physiology input', () => {
     expect(after.procedure?.nitratesBeforeAcetylcholine).toBe(false);
     const unknownTiming = toPhysiologyInput({ vessels: [], vasoreactivity: vaso, setup: { ...emptySetup(), nitratesGiven: true } });
     expect(unknownTiming.procedure?.nitratesBeforeAcetylcholine).toBeUndefined();
+  });
+
+  it('passes the angina field: "angina" words only when the record says angina (COVADIS microvascular angina criteria — Ong et al., Int J Cardiol 2018;250:16-20)', () => {
+    // LAD: FFR 0.90, CFR 1.50 (Tmn 0.60 / 0.40), IMR 36 (Pd 90 × 0.40) — structural; acetylcholine negative at 100 µg.
+    const vessel = { ...emptyVessel(ID, 'LAD'), restPa: 100, restPd: 97, hyperemiaPa: 100, hyperemiaPd: 90, restTransit: [0.6, 0.6, 0.6], hyperemiaTransit: [0.4, 0.4, 0.4] };
+    const dose = { ...emptyDose(ID, 'LAD'), micrograms: 100, constrictionPct: 10, symptoms: false, ischemicEcg: false };
+    const record = (anginaPresent: boolean | null) => ({
+      vessels: [vessel],
+      vasoreactivity: { ...emptyVasoreactivity(), doses: [dose] },
+      details: { ...emptyDetails(), anginaPresent },
+    });
+    expect(toPhysiologyInput(record(true)).angina).toBe(true);
+    expect(toPhysiologyInput(record(false)).angina).toBe(false);
+    expect('angina' in toPhysiologyInput(record(null))).toBe(false);
+    expect(analyzeStudy(toPhysiologyInput(record(true))).headline).toMatch(/^Microvascular angina: /);
+    expect(analyzeStudy(toPhysiologyInput(record(false))).headline).toMatch(/^Structural coronary microvascular dysfunction/);
+    expect(analyzeStudy(toPhysiologyInput(record(null))).headline).not.toMatch(/angina/i);
+  });
+
+  it('transit times typed into the wrong boxes (CFR below 1) give no microvascular finding (common practice: hyperaemic Tmn longer than resting means swapped entries)', () => {
+    const vessel = { ...emptyVessel(ID, 'LAD'), restPa: 100, restPd: 97, hyperemiaPa: 100, hyperemiaPd: 90, restTransit: [0.3, 0.3, 0.3], hyperemiaTransit: [0.9, 0.9, 0.9] };
+    const dose = { ...emptyDose(ID, 'LAD'), micrograms: 100, constrictionPct: 10, symptoms: false, ischemicEcg: false };
+    const r = analyzeStudy(toPhysiologyInput({ vessels: [vessel], vasoreactivity: { ...emptyVasoreactivity(), doses: [dose] }, details: { ...emptyDetails(), anginaPresent: true } }));
+    expect(r.vessels[0].cfr).toBeCloseTo(1 / 3, 10);
+    expect(r.vessels[0].cfrFlag).toBeUndefined();
+    expect(r.vessels[0].imrFlag).toBeUndefined();
+    expect(r.findings.microvascular).toBeNull();
+    expect(r.endotype).toBe('inconclusive');
   });
 });
 
