@@ -21,6 +21,7 @@ import { nhprKinds, vesselCodes, type NhprKind } from '../shared/physiology/sche
 import { resolveThresholds, thresholdsSchema, type Thresholds } from '../shared/physiology/thresholds';
 import type { Flag } from '../shared/physiology/types';
 import { vesselLongName } from '../shared/physiology/vessels';
+import { endotypeName } from '../shared/physiology/labels';
 import {
   IDENTIFIER_SYSTEMS,
   UCUM,
@@ -101,6 +102,8 @@ const analysisSchema = z.object({
     .object({ result: z.enum(['epicardial-spasm', 'microvascular-spasm', 'endothelial-dysfunction', 'equivocal', 'negative']) })
     .optional(),
   endotype: z.enum(['obstructive', 'microvascular-angina', 'vasospastic-angina', 'mixed', 'no-abnormality', 'inconclusive']),
+  /** Angina as recorded; without it the text names dysfunction and spasm, not angina (COVADIS needs the symptom). */
+  angina: z.boolean().optional(),
 });
 
 const base64 = z
@@ -404,7 +407,7 @@ function studyMeasurements(input: Input): Measured[] {
     const e = a.endotype;
     out.push({
       concept: 'endotype',
-      value: { valueCodeableConcept: { coding: [localCoding(endotypeConcept[e])], text: localConcepts[endotypeConcept[e]].display } },
+      value: { valueCodeableConcept: { coding: [localCoding(endotypeConcept[e])], text: endotypeName(e, a.angina) } },
       interpretation:
         e === 'no-abnormality'
           ? [{ coding: [{ ...interpretation.normal }], text: 'Normal' }]
@@ -552,7 +555,7 @@ export function toReportBundle(raw: ReportBundleInput): Bundle {
     ...(cft
       ? {
           conclusionCode: [
-            { coding: [localCoding(endotypeConcept[input.analysis.endotype])], text: localConcepts[endotypeConcept[input.analysis.endotype]].display },
+            { coding: [localCoding(endotypeConcept[input.analysis.endotype])], text: endotypeName(input.analysis.endotype, input.analysis.angina) },
           ],
         }
       : {}),

@@ -53,6 +53,7 @@ const snapshotSchema = z.object({
     procedureEndedAt: z.iso.datetime({ offset: true }).nullable().optional().catch(null),
     operatorId: z.string().nullable().optional(),
     patientClass: z.enum(['inpatient', 'outpatient']).nullable().optional().catch(null),
+    anginaPresent: z.boolean().nullable().optional().catch(null),
   }),
   vessels: z.array(z.object({ id: z.string(), segment: z.string().nullable().optional() })).optional().default([]),
   findings: z.object({ impression: optionalText }).optional(),
@@ -118,7 +119,7 @@ export function reportBundleInputOf(version: StoredReportVersion, context: Bundl
     accession: { system: systems.accession, value: s.accession },
     procedure: { start: s.details.procedureStartedAt, ...(s.details.procedureEndedAt ? { end: s.details.procedureEndedAt } : {}) },
     performer: { name: context.operatorName ?? version.signerName },
-    analysis: { ...(analysis.data as object), vessels } as ReportBundleInput['analysis'],
+    analysis: { ...(analysis.data as object), vessels, ...(typeof s.details.anginaPresent === 'boolean' ? { angina: s.details.anginaPresent } : {}) } as ReportBundleInput['analysis'],
     thresholds: version.thresholds as ReportBundleInput['thresholds'],
     conclusion: s.findings?.impression ?? NO_IMPRESSION_CONCLUSION,
     // The default title names the version and, for an addendum, the version it amends.

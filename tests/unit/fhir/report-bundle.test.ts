@@ -249,6 +249,26 @@ describe('acetylcholine result and endotype', () => {
     expect(report(b).conclusionCode![0].coding![0].code).toBe(`endotype-${expected}`);
   });
 
+  // COVADIS (Ong et al., Int J Cardiol 2018;250:16-20): microvascular *angina* needs the symptom. The
+  // code names the endotype class; the text says angina only when the record says angina.
+  it('names microvascular angina in the text only when angina is recorded; the code stays the endotype class', () => {
+    const lcxOnly: PhysiologyInput = {
+      vessels: [{ id: 'vessel-lcx', vessel: 'LCX', rest: { pa: 95, pd: 93, tmn: [0.9, 0.9, 0.9] }, hyperemia: { pa: 85, pd: 80, tmn: [0.5, 0.5, 0.5] }, visualStenosisPct: 30 }],
+      vasoreactivity: { doses: [{ vessel: 'LAD', micrograms: 100, constrictionPct: 10, symptoms: false, ischemicEcg: false }] },
+    };
+    const analysis = analyzeStudy({ ...lcxOnly, angina: true });
+    expect(analysis.endotype).toBe('microvascular-angina');
+    const texts = (angina: boolean | undefined) => {
+      const b = toReportBundle(reportInput(lcxOnly, { analysis: { ...analysis, ...(angina === undefined ? {} : { angina }) } }));
+      const endotype = studyObservation(b, 'endotype')!;
+      expect(endotype.valueCodeableConcept!.coding![0].code).toBe('endotype-microvascular-angina');
+      return [endotype.valueCodeableConcept!.text, report(b).conclusionCode![0].text];
+    };
+    expect(texts(true)).toEqual(['Microvascular angina', 'Microvascular angina']);
+    expect(texts(false)).toEqual(['Coronary microvascular dysfunction', 'Coronary microvascular dysfunction']);
+    expect(texts(undefined)).toEqual(['Coronary microvascular dysfunction', 'Coronary microvascular dysfunction']);
+  });
+
   it('a plain pressure-wire study sends no endotype and no acetylcholine result', () => {
     const b = toReportBundle(reportInput({ vessels: [{ id: 'vessel-lad', vessel: 'LAD', ffr: 0.75 }] }));
     expect(studyObservation(b, 'endotype')).toBeUndefined();
