@@ -137,7 +137,7 @@ export const thresholdCitations: Readonly<Record<ThresholdKey, string>> = Object
   injectionSpread: 'common practice; source not confirmed',
   minInjections: 'common practice; source not confirmed',
   spasmConstrictionPct: 'COVADIS; ESC 2024',
-  endothelialDysfunctionPct: 'COVADIS; the 20% figure not confirmed',
+  endothelialDysfunctionPct: 'common practice; source not confirmed',
   achMaxMicrograms: 'ESC 2024 protocol',
   achMaxMicrogramsRight: 'JCS 2016',
   obstructiveStenosisPct: 'COVADIS',
