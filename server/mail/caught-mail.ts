@@ -1,18 +1,8 @@
 import { NotFoundError, ServiceUnavailableError } from '../http/problem';
+import type { CaughtMessage } from '../../shared/mail/caught';
 import { readMessage } from './read-message';
 
-/** One message the local mail stand-in caught, as the development page shows it. */
-export interface CaughtMessage {
-  id: number;
-  receivedAt: string;
-  from: string;
-  to: string[];
-  subject: string;
-  /** The message's own headers (unfolded, encoded words decoded). */
-  headers: Array<{ name: string; value: string }>;
-  /** The plain-text body. */
-  text: string;
-}
+export type { CaughtMessage };
 
 const notInUse = 'Caught mail exists only where the local mail stand-in is in use (development and tests); this server sends mail to a real relay.';
 
