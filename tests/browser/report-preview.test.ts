@@ -115,10 +115,21 @@ describe('the live report preview', () => {
       expect(await visible(page, 'report-pane').count()).toBe(0);
       await visible(page, 'report-pane-show').click();
       await visible(page, 'report-pane-document').waitFor();
+
+      // The narrowest screen that keeps both side by side, and just below it none.
+      await page.setViewportSize({ width: 1100, height: 800 });
+      const narrowForm = await box(page, 'findings-impression');
+      const narrowPane = await box(page, 'report-pane');
+      expect(narrowPane.x).toBeGreaterThanOrEqual(narrowForm.x + narrowForm.width);
+      expect(narrowForm.width).toBeGreaterThan(300);
+      await page.screenshot({ path: screenshotPath('report-preview-beside-form-1100') });
+      await page.setViewportSize({ width: 1060, height: 800 });
+      await visible(page, 'findings-impression').waitFor();
+      expect(await visible(page, 'report-pane').count()).toBe(0);
     } finally {
       await context.close();
     }
-  });
+  }, 120_000);
 
   it('at 390 px there is no side pane; the Report section keeps its preview', async () => {
     const study = await completeStudy('Marchetti', await physicianId());
@@ -140,7 +151,7 @@ describe('the live report preview', () => {
     } finally {
       await context.close();
     }
-  });
+  }, 120_000);
 });
 
 describe('the physician’s landing page', () => {
@@ -193,7 +204,7 @@ describe('the physician’s landing page', () => {
         await context.close();
       }
     }
-  });
+  }, 120_000);
 });
 
 describe('caught mail', () => {
@@ -225,5 +236,5 @@ describe('caught mail', () => {
     } finally {
       await phys.close();
     }
-  });
+  }, 120_000);
 });

@@ -205,11 +205,11 @@ function StudyEditor({ study, userId, canWrite, home }: { study: StudyRecord; us
           {header}
           {wide ? banners : null}
           {showPane ? (
-            // Form and report preview side by side: the section tabs sit above the form, and the live
+            // Form and report preview side by side: the section tabs wrap above the form, and the live
             // results follow the section, as on a phone.
             <View style={styles.panes}>
               <View style={styles.formColumn}>
-                <SectionNav studyId={study.id} vertical={false} />
+                <SectionNav studyId={study.id} vertical={false} wrap />
                 <ScrollView style={styles.formPane} contentContainerStyle={styles.formContentBesidePreview} keyboardShouldPersistTaps="handled">
                   <Locked locked={locked}>
                     <Slot />
