@@ -113,6 +113,11 @@ describe('the live report preview', () => {
       await visible(page, 'findings-impression').waitFor();
       await visible(page, 'report-pane-show').waitFor();
       expect(await visible(page, 'report-pane').count()).toBe(0);
+      // The live results have their column beside the form again.
+      const results = await box(page, 'study-results');
+      const formAgain = await box(page, 'findings-impression');
+      expect(results.x).toBeGreaterThanOrEqual(formAgain.x + formAgain.width);
+      await page.screenshot({ path: screenshotPath('report-preview-hidden-desktop') });
       await visible(page, 'report-pane-show').click();
       await visible(page, 'report-pane-document').waitFor();
 
