@@ -11,7 +11,7 @@ import { color, radius, space, touchTarget } from './theme';
 import { useSignOut, type Me } from './data/me-query';
 
 interface NavItem {
-  href: '/' | '/coding' | '/turnaround' | '/deliveries' | '/audit' | '/admin';
+  href: '/' | '/coding' | '/turnaround' | '/deliveries' | '/audit' | '/admin' | '/caught-mail';
   label: string;
   needs: Permission;
   testID: string;
@@ -24,6 +24,7 @@ const navItems: NavItem[] = [
   { href: '/deliveries', label: 'EHR delivery', needs: 'delivery:manage', testID: 'nav-deliveries' },
   { href: '/audit', label: 'Audit trail', needs: 'audit:read', testID: 'nav-audit' },
   { href: '/admin', label: 'Administration', needs: 'admin:manage', testID: 'nav-admin' },
+  { href: '/caught-mail', label: 'Caught mail', needs: 'admin:manage', testID: 'nav-caught-mail' },
 ];
 
 /** Signed-in frame: side navigation on wide screens, a top bar with a scrolling tab row on phones. */

@@ -13,7 +13,20 @@ import type { StudySummary } from './data/study-query';
  * With `dayOf`, rows are headed by their day, so "today first" can be seen at a glance. Each row
  * opens its study.
  */
-export function StudyList<T extends StudySummary>({ studies, aside, testID, dayOf }: { studies: T[]; aside?: (s: T) => ReactNode; testID: string; dayOf?: (s: T) => string | null }) {
+export function StudyList<T extends StudySummary>({
+  studies,
+  aside,
+  testID,
+  dayOf,
+  hrefOf = (s) => `/studies/${s.id}`,
+}: {
+  studies: T[];
+  aside?: (s: T) => ReactNode;
+  testID: string;
+  dayOf?: (s: T) => string | null;
+  /** Where a row leads: the study's first section unless said otherwise. */
+  hrefOf?: (s: T) => string;
+}) {
   const wide = useIsWide();
   const now = new Date();
   return (
@@ -27,7 +40,7 @@ export function StudyList<T extends StudySummary>({ studies, aside, testID, dayO
               </Text>
             </View>
           ) : null}
-        <Link href={`/studies/${s.id}`} asChild>
+        <Link href={hrefOf(s) as '/'} asChild>
         <Pressable
           testID={`study-row-${s.accession}`}
           role="link"

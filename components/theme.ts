@@ -60,8 +60,8 @@ export const type = {
 /** Minimum touch target (px), for gloved hands. */
 export const touchTarget = 44;
 
-/** Breakpoints: phone first; `wide` switches to side navigation and two panes. */
-export const breakpoint = { wide: 1024 } as const;
+/** Breakpoints: phone first; `wide` switches to side navigation and two panes; `preview` has room for the form and the report preview side by side. */
+export const breakpoint = { wide: 1024, preview: 1100 } as const;
 
 /** Width of the centred reading column on wide screens. */
 export const maxContentWidth = 1120;

@@ -21,6 +21,7 @@ import { settingsRoutes } from './routes/settings';
 import { reportRoutes } from './routes/reports';
 import { deliveryRoutes } from './routes/delivery';
 import { codingRoutes } from './routes/coding';
+import { mailRoutes } from './routes/mail';
 import { diskStorage, type AttachmentStorage } from './attachments/storage';
 import { createLogger, requestLogger, type Logger } from './log';
 
@@ -49,6 +50,7 @@ export function apiRoutes(deps: Required<Pick<AppDeps, 'config' | 'dataSource' |
     ...auditRoutes(deps),
     ...deliveryRoutes(deps),
     ...codingRoutes(deps),
+    ...mailRoutes(deps),
   ];
 }
 

@@ -92,6 +92,8 @@ const configSchema = z
     SMTP_PORT: port.default(8425),
     MAIL_FROM: z.string().trim().min(3).default('Isobar reports <isobar@localhost>'),
     FAKE_SMTP_HTTP_PORT: port.default(8426),
+    /** Set by whoever runs real hospital services instead of the local stand-ins (see scripts/start.sh). */
+    ISOBAR_NO_FAKES: z.string().optional(),
     JOB_WORKER: z.enum(['on', 'off']).default('on'),
     ATTACHMENT_MAX_CONCURRENT: z.coerce.number().int().min(1).max(100).default(4),
     LOG_LEVEL: z.enum(logLevels).optional(),
@@ -139,7 +141,17 @@ export interface Config {
   /** A signature needs a sign-in at most this many minutes old. */
   signReauthMinutes: number;
   /** The mail relay for notices; locally the stand-in started by `server/fakes/main.ts`. */
-  mail: { host: string; port: number; from: string; fakeHttpPort: number };
+  mail: {
+    host: string;
+    port: number;
+    from: string;
+    fakeHttpPort: number;
+    /**
+     * Where the local mail stand-in lists what it caught (the admin's development page reads it); null
+     * when the stand-in is not in use: in production, with ISOBAR_NO_FAKES, or a relay not on loopback.
+     */
+    caughtMailUrl: string | null;
+  };
   /** Whether this server process runs the background job worker. */
   jobWorker: boolean;
   attachments: { dir: string; maxBytes: number; maxConcurrentUploads?: number };
@@ -157,6 +169,11 @@ export class ConfigError extends Error {
     super(`Invalid configuration:\n${problems.map((p) => `  - ${p}`).join('\n')}`);
     this.name = 'ConfigError';
   }
+}
+
+/** The local mail stand-in catches the mail: not in production, not with real services, only on loopback. */
+function fakeMailInUse(v: { NODE_ENV: string; ISOBAR_NO_FAKES?: string; SMTP_HOST: string }): boolean {
+  return v.NODE_ENV !== 'production' && !v.ISOBAR_NO_FAKES && ['127.0.0.1', 'localhost', '::1'].includes(v.SMTP_HOST);
 }
 
 export function loadConfig(env: Record<string, string | undefined> = process.env): Config {
@@ -202,7 +219,13 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
     fakeEhrPort: v.FAKE_EHR_PORT,
     hospital: { name: v.HOSPITAL_NAME, lab: v.HOSPITAL_LAB },
     signReauthMinutes: v.SIGN_REAUTH_MINUTES,
-    mail: { host: v.SMTP_HOST, port: v.SMTP_PORT, from: v.MAIL_FROM, fakeHttpPort: v.FAKE_SMTP_HTTP_PORT },
+    mail: {
+      host: v.SMTP_HOST,
+      port: v.SMTP_PORT,
+      from: v.MAIL_FROM,
+      fakeHttpPort: v.FAKE_SMTP_HTTP_PORT,
+      caughtMailUrl: fakeMailInUse(v) ? `http://${v.SMTP_HOST.includes(':') ? `[${v.SMTP_HOST}]` : v.SMTP_HOST}:${v.FAKE_SMTP_HTTP_PORT}/messages` : null,
+    },
     jobWorker: v.JOB_WORKER === 'on',
     attachments: { dir: v.ATTACHMENT_DIR, maxBytes: Math.round(v.ATTACHMENT_MAX_MB * 1024 * 1024), maxConcurrentUploads: v.ATTACHMENT_MAX_CONCURRENT },
     trustProxy: v.TRUST_PROXY.split(',').map((p) => p.trim()).filter(Boolean),

@@ -11,6 +11,7 @@ import { PageHeader } from '../../components/page-header';
 import { RadioChips } from '../../components/ui/radio-chips';
 import { StudyList } from '../../components/study-list';
 import { CautionNote } from '../../components/caution-note';
+import { AwaitingSignatureLists } from '../../components/awaiting-signature';
 import { useMeQuery } from '../../components/data/me-query';
 import { useOperators, useWorklist, type WorklistFilters } from '../../components/data/study-query';
 import { color, font, radius, space, touchTarget, type } from '../../components/theme';
@@ -44,13 +45,21 @@ export default function WorklistPage() {
 
   if (me.data && !can(me.data.role, 'study:read')) return <Redirect href={(me.data.home ?? '/sign-in') as '/'} />;
   const items = worklist.data?.pages.flatMap((p) => p.items) ?? [];
+  // A physician lands on what awaits their signature, above the worklist.
+  const signs = can(me.data?.role, 'study:sign');
 
   return (
     <Content>
       <Center style={styles.center}>
-        <PageHeader title="Worklist" subtitle="Physiology studies, newest first.">
+        <PageHeader title="Worklist" subtitle={signs ? 'Studies awaiting signature, then every physiology study, newest first.' : 'Physiology studies, newest first.'}>
           {can(me.data?.role, 'study:write') ? <Button testID="new-study" label="New study" onPress={() => router.push('/studies/new')} /> : null}
         </PageHeader>
+        {signs ? <AwaitingSignatureLists /> : null}
+        {signs ? (
+          <Text variant="title" weight="semibold" role="heading" aria-level={2} testID="worklist-heading">
+            All studies
+          </Text>
+        ) : null}
         <View style={styles.filters}>
           <TextInput
             testID="worklist-search"

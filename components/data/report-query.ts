@@ -1,5 +1,6 @@
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import type { MissingItem } from '../../shared/report/completeness';
+import type { ReportDocument } from '../../shared/report/document';
 import type { StudyAction } from '../../shared/study/state-machine';
 import { apiFetch } from './api';
 
@@ -19,6 +20,8 @@ export interface ReportPreview {
   kind: string;
   html: string;
   text: string;
+  /** The narrative as structured data: laid out as text, never as markup. */
+  document: ReportDocument;
   completeness: { complete: boolean; missing: MissingItem[] };
   versions: SignedVersion[];
   actions: StudyAction[];

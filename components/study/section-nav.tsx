@@ -15,8 +15,11 @@ export const studySections = [
   { slug: 'report', label: 'Report & signature', testID: 'section-report' },
 ] as const;
 
-/** The study's sections: a sticky scrolling row on phones, a column on wide screens. Each is its own URL. */
-export function SectionNav({ studyId, vertical }: { studyId: string; vertical: boolean }) {
+/**
+ * The study's sections: a sticky scrolling row on phones, a column on wide screens, rows that wrap
+ * above the form when the report preview takes the side. Each is its own URL.
+ */
+export function SectionNav({ studyId, vertical, wrap = false }: { studyId: string; vertical: boolean; wrap?: boolean }) {
   const pathname = usePathname();
   const base = `/studies/${studyId}`;
   const hrefOf = (slug: string) => (slug ? `${base}/${slug}` : base);
@@ -48,6 +51,13 @@ export function SectionNav({ studyId, vertical }: { studyId: string; vertical: b
       </View>
     );
   }
+  if (wrap) {
+    return (
+      <View role="navigation" aria-label="Study sections" style={[styles.bar, styles.wrap]}>
+        {links}
+      </View>
+    );
+  }
   return (
     <View role="navigation" aria-label="Study sections" style={styles.bar}>
       <ScrollView
@@ -68,6 +78,7 @@ export function SectionNav({ studyId, vertical }: { studyId: string; vertical: b
 const styles = StyleSheet.create({
   bar: { backgroundColor: color.paper, borderBottomWidth: 1, borderBottomColor: color.line },
   row: { paddingHorizontal: space.sm, gap: space.xs },
+  wrap: { flexDirection: 'row', flexWrap: 'wrap', columnGap: space.xs },
   tab: { minHeight: touchTarget, justifyContent: 'center', paddingHorizontal: space.md, borderBottomWidth: 3, borderBottomColor: 'transparent' },
   tabActive: { borderBottomColor: color.brand },
   column: { width: 188, gap: space.xs },

@@ -5,6 +5,7 @@ import { buildReportView, type ReportInput, type ReportStudy, type ReportView } 
 
 export { canonicalContent, fingerprint, fingerprintInPdf, renderReportPdf, sha256Hex, warmUpPdf, PAGE } from './pdf';
 export { renderNarrative, htmlDocument, type Narrative } from './render';
+export { reportDocument } from './document';
 export { buildReportView, reportKindOf, shortFingerprint, type ReportInput, type ReportStudy, type ReportView, type ReportSignature, type ReportKind } from './view-model';
 export { REPORT_TEMPLATE_VERSION } from './template-version';
 

@@ -4,7 +4,8 @@ import { checkCompleteness, type CompletenessResult } from '../../shared/report/
 import { availableActions, type StudyAction } from '../../shared/study/state-machine';
 import { ReportVersion } from '../db/entities/report-version.entity';
 import { NotFoundError } from '../http/problem';
-import { previewReport, reportKindOf } from '../report';
+import type { ReportDocument } from '../../shared/report/document';
+import { previewReport, reportDocument, reportKindOf } from '../report';
 import { loadStudy } from '../studies/repository';
 import { reportInputFor } from './report-input';
 import { summariseVersion, type SignedVersionSummary } from './sign-study';
@@ -17,6 +18,8 @@ export interface ReportPreview {
   kind: string;
   html: string;
   text: string;
+  /** The same narrative as structured data, for a preview laid out as text (never as markup). */
+  document: ReportDocument;
   completeness: CompletenessResult;
   versions: SignedVersionSummary[];
   actions: StudyAction[];
@@ -27,7 +30,7 @@ export async function previewStudyReport(dataSource: DataSource, studyId: string
   const record = await loadStudy(dataSource, studyId);
   if (!record) throw new NotFoundError('No study has this id.');
   const input = await reportInputFor(dataSource.manager, record, hospital);
-  const { narrative } = previewReport(input);
+  const { view, narrative } = previewReport(input);
   const versions = await dataSource.manager.find(ReportVersion, {
     where: { studyId },
     order: { versionNo: 'ASC' },
@@ -40,6 +43,7 @@ export async function previewStudyReport(dataSource: DataSource, studyId: string
     kind: reportKindOf(input.study),
     html: narrative.html,
     text: narrative.text,
+    document: reportDocument(view),
     completeness: checkCompleteness(record),
     versions: versions.map(summariseVersion),
     actions: availableActions(record.state, role),

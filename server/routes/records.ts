@@ -3,10 +3,25 @@ import { auditContext, recordAudit } from '../audit/audit';
 import type { ApiRoute } from '../http/routes';
 import { defaultSignatureTargetHours, waitingSince } from '../../shared/turnaround/overdue';
 import { summarySelect, toSummary } from '../studies/worklist';
+import { listAwaitingSignature } from '../studies/awaiting-signature';
 
-/** Reads of overdue studies and users. Every read is audited. */
+/** Reads of studies awaiting signature, overdue studies and users. Every read is audited. */
 export function recordRoutes({ dataSource }: { dataSource: DataSource }): ApiRoute[] {
   return [
+    {
+      method: 'get',
+      path: '/awaiting-signature',
+      access: 'study:read',
+      summary: 'Studies awaiting signature, oldest first: those you operated, and all of them',
+      handlers: [
+        async (req, res) => {
+          const result = await listAwaitingSignature(dataSource, req.session.auth!.userId);
+          const studyIds = [...new Set([...result.mine.items, ...result.all.items].map((s) => s.id))];
+          await recordAudit(dataSource, { ...auditContext(req), action: 'search', entityType: 'study', outcome: 'success', detail: { view: 'awaiting-my-signature', returned: studyIds.length, studyIds } });
+          res.json(result);
+        },
+      ],
+    },
     {
       method: 'get',
       path: '/turnaround/awaiting-signature',

@@ -1,6 +1,6 @@
 import { useState, type ReactNode } from 'react';
 import { Pressable, ScrollView, StyleSheet, View } from 'react-native';
-import { Link, Slot, useLocalSearchParams } from 'expo-router';
+import { Link, Slot, useLocalSearchParams, usePathname } from 'expo-router';
 import { FormProvider, useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import { studySectionsSchema, type StudyRecord, type StudySections } from '../../../../shared/study/schema';
@@ -16,11 +16,12 @@ import { ConflictChooser, SaveStatus } from '../../../../components/study/save-s
 import { StudyResults } from '../../../../components/study/live-results';
 import { DriftAlert } from '../../../../components/study/quality-alert';
 import { StudyContext } from '../../../../components/study/study-context';
+import { ReportPane, useHasRoomForReportPane, useReportPaneHidden } from '../../../../components/study/report-pane';
 import { clearDraft, takeDraft, toStableJson } from '../../../../components/study/draft-store';
 import { useMeQuery, useSignOut } from '../../../../components/data/me-query';
 import { studyStateLabel } from '../../../../shared/study/vocabulary';
 import { sectionsOf, useAutosave } from '../../../../components/study/use-autosave';
-import { color, space, touchTarget } from '../../../../components/theme';
+import { color, radius, space, touchTarget } from '../../../../components/theme';
 
 /** One study: loads it once, owns its form and autosave; sections are child routes. */
 export default function StudyLayout() {
@@ -55,6 +56,12 @@ export default function StudyLayout() {
 
 function StudyEditor({ study, userId, canWrite, home }: { study: StudyRecord; userId: string; canWrite: boolean; home: string }) {
   const wide = useIsWide();
+  const roomForPane = useHasRoomForReportPane();
+  const [paneHidden, setPaneHidden] = useReportPaneHidden();
+  // The Report section shows the preview itself; elsewhere on a wide screen it stands beside the form.
+  const onReportSection = usePathname().endsWith('/report');
+  const paneAvailable = wide && roomForPane && !onReportSection;
+  const showPane = paneAvailable && !paneHidden;
   const signOut = useSignOut();
   const signed = study.state === 'signed' || study.state === 'amended';
   const locked = signed || !canWrite;
@@ -110,6 +117,13 @@ function StudyEditor({ study, userId, canWrite, home }: { study: StudyRecord; us
         <StudyStateChip state={study.state} />
         {status}
       </View>
+      {paneAvailable && paneHidden ? (
+        <Pressable testID="report-pane-show" role="button" accessibilityLabel="Show the report preview beside the form" onPress={() => setPaneHidden(false)} style={styles.showPane}>
+          <Text variant="caption" weight="semibold" tone="brand">
+            Show report preview
+          </Text>
+        </Pressable>
+      ) : null}
     </View>
   ) : (
     // A phone keeps the form in view: one compact bar (the app's own bar steps aside on a study).
@@ -190,7 +204,24 @@ function StudyEditor({ study, userId, canWrite, home }: { study: StudyRecord; us
         <View style={styles.root} testID="study-editor">
           {header}
           {wide ? banners : null}
-          {wide ? (
+          {showPane ? (
+            // Form and report preview side by side: the section tabs wrap above the form, and the live
+            // results follow the section, as on a phone.
+            <View style={styles.panes}>
+              <View style={styles.formColumn}>
+                <SectionNav studyId={study.id} vertical={false} wrap />
+                <ScrollView style={styles.formPane} contentContainerStyle={styles.formContentBesidePreview} keyboardShouldPersistTaps="handled">
+                  <Locked locked={locked}>
+                    <Slot />
+                  </Locked>
+                  <StudyResults />
+                </ScrollView>
+              </View>
+              <View style={styles.previewColumn}>
+                <ReportPane studyId={study.id} onHide={() => setPaneHidden(true)} />
+              </View>
+            </View>
+          ) : wide ? (
             <View style={styles.panes}>
               <SectionNav studyId={study.id} vertical />
               <ScrollView style={styles.formPane} contentContainerStyle={styles.formContent} keyboardShouldPersistTaps="handled">
@@ -260,5 +291,9 @@ const styles = StyleSheet.create({
   formContent: { paddingBottom: space.xxxl, paddingRight: space.xs, gap: space.xl, maxWidth: 760 },
   formContentPhone: { padding: space.lg, gap: space.xl, paddingBottom: space.xxxl },
   resultsPane: { width: 380, flexGrow: 0, paddingRight: space.xl },
+  formColumn: { flex: 1, minWidth: 360, maxWidth: 760 },
+  formContentBesidePreview: { paddingTop: space.lg, paddingBottom: space.xxxl, paddingRight: space.xs, gap: space.xl },
+  previewColumn: { flex: 1, minWidth: 340, maxWidth: 640, paddingRight: space.xl, paddingBottom: space.xl },
+  showPane: { minHeight: touchTarget, justifyContent: 'center', paddingHorizontal: space.sm, borderRadius: radius.md, borderWidth: 1, borderColor: color.line },
   resultsContent: { paddingBottom: space.xxxl },
 });

@@ -1,5 +1,5 @@
 import { useState } from 'react';
-import { ScrollView, StyleSheet, TextInput, View } from 'react-native';
+import { StyleSheet, TextInput, View } from 'react-native';
 import { Link, useLocalSearchParams } from 'expo-router';
 import { useReportAction, useReportPreview } from '../../../../components/data/report-query';
 import { ApiError } from '../../../../components/data/api';
@@ -8,6 +8,7 @@ import { Button } from '../../../../components/ui/button';
 import { ErrorState, LoadingState } from '../../../../components/ui/async-states';
 import { Text } from '../../../../components/ui/text';
 import { CautionNote } from '../../../../components/caution-note';
+import { ReportDocumentView } from '../../../../components/report/report-document';
 import { color, font, radius, space, type } from '../../../../components/theme';
 import { transitions, type StudyAction } from '../../../../shared/study/state-machine';
 import { studyStateLabel, type StudyState } from '../../../../shared/study/vocabulary';
@@ -100,11 +101,10 @@ export default function ReportSection() {
         </SectionCard>
       ) : null}
       <SectionCard title="Preview" testID="card-preview">
-        <ScrollView horizontal>
-          <Text style={styles.narrative} testID="report-preview-text" selectable>
-            {p.text}
-          </Text>
-        </ScrollView>
+        <Text variant="caption" tone="muted" testID="report-preview-version">
+          The report as it would be signed now, from the saved record (version {p.studyVersion}).
+        </Text>
+        <ReportDocumentView doc={p.document} testID="report-preview-text" />
       </SectionCard>
     </>
   );
@@ -114,5 +114,4 @@ const styles = StyleSheet.create({
   missing: { gap: space.xs, backgroundColor: color.abnormalSoft, borderRadius: radius.md, padding: space.md },
   actions: { flexDirection: 'row', flexWrap: 'wrap', gap: space.sm },
   reason: { borderWidth: 1, borderColor: color.inkFaint, borderRadius: radius.md, padding: space.sm, fontFamily: font.regular, fontSize: type.body.fontSize },
-  narrative: { fontFamily: 'monospace', fontSize: 12, lineHeight: 18 },
 });

@@ -1,0 +1,32 @@
+import type { DataSource } from 'typeorm';
+import type { AwaitingList, AwaitingSignature } from '../../shared/study/awaiting-signature';
+import { defaultSignatureTargetHours, waitingSince } from '../../shared/turnaround/overdue';
+import { summarySelect, toSummary } from './worklist';
+
+/** At most this many rows per list; `total` says how many there are. */
+export const awaitingListLimit = 100;
+
+/**
+ * The studies awaiting signature, oldest first (by the end of the procedure, else the record's list
+ * time): those `operatorId` operated, and all of them.
+ */
+export async function listAwaitingSignature(dataSource: DataSource, operatorId: string, now = new Date()): Promise<AwaitingSignature> {
+  const list = async (mineOnly: boolean): Promise<AwaitingList> => {
+    const rows: Record<string, never>[] = await dataSource.query(
+      `SELECT q.*, coalesce(q.procedure_ended_at, q.sort_at) AS waiting_since, count(*) OVER () AS total
+       FROM (${summarySelect} WHERE s.state = 'awaiting-signature'${mineOnly ? ' AND s.operator_id = $2' : ''}) q
+       ORDER BY waiting_since ASC, q.id
+       LIMIT $1`,
+      mineOnly ? [awaitingListLimit, operatorId] : [awaitingListLimit],
+    );
+    return {
+      total: rows.length ? Number(rows[0].total) : 0,
+      items: rows.map((row) => {
+        const since = row.waiting_since as Date;
+        return { ...toSummary(row), waitingSince: since.toISOString(), ...waitingSince(since, now) };
+      }),
+    };
+  };
+  const [mine, all] = await Promise.all([list(true), list(false)]);
+  return { targetHours: defaultSignatureTargetHours, limit: awaitingListLimit, mine, all };
+}
