@@ -60,6 +60,22 @@ export interface ReportInput {
   signature?: ReportSignature | null;
   /** IANA time zone for printed times (the hospital's); UTC by default. */
   timeZone?: string;
+  /** The template version to lay the report out with (the lab's active one); the built-in version by default. */
+  templateVersion?: string;
+  /** Which thresholds judge this report, for the sentence templates from v2 print under them. */
+  thresholdsBasis?: ThresholdsBasisInfo | null;
+}
+
+/** Where a report's thresholds come from. */
+export interface ThresholdsBasisInfo {
+  /** `in-force`: the set in force at signing; for an addendum `original` (the amended version's) or `current`. */
+  basis: 'in-force' | 'original' | 'current';
+  /** When the set began to apply; null for the published defaults (or unknown for older versions). */
+  effectiveFrom: string | null;
+  /** The set's id; null for the published defaults. */
+  setId: number | null;
+  /** The version an addendum amends. */
+  amendedVersion: number | null;
 }
 
 export interface Cell {
@@ -112,6 +128,8 @@ export interface ReportView {
   impression: string[];
   plan: string[];
   thresholds: Array<{ label: string; value: string; source: string }>;
+  /** One sentence on which thresholds judged the report (template v2 and later); null otherwise. */
+  thresholdsBasis: string | null;
   caution: string;
   signature: null | {
     signedBy: string;
@@ -660,6 +678,14 @@ function thresholdSource(key: ThresholdKey, t: Thresholds): string {
   return keys.every((k) => t[k] === defaultThresholds[k]) ? thresholdCitations[key] : 'lab setting';
 }
 
+/** The sentence under the thresholds table (template v2 and later). */
+export function thresholdsBasisSentence(b: ThresholdsBasisInfo, tz: string): string {
+  const set = b.setId === null ? 'the published default thresholds' : `the lab's thresholds in force from ${b.effectiveFrom ? formatDateTime(b.effectiveFrom, tz) : 'an earlier date'}`;
+  if (b.basis === 'original') return `This addendum keeps the thresholds of report version ${b.amendedVersion ?? 1}: ${set}.`;
+  if (b.basis === 'current') return `This addendum applies the thresholds in force when it was signed, not those of report version ${b.amendedVersion ?? 1}: ${set}.`;
+  return `Judged by ${set}.`;
+}
+
 /** Builds the report's view model. Pure: the same input gives the same view. */
 export function buildReportView(input: ReportInput): ReportView {
   const { study, analysis, thresholds: t } = input;
@@ -712,8 +738,9 @@ export function buildReportView(input: ReportInput): ReportView {
       }
     : null;
 
+  const templateVersion = input.templateVersion ?? REPORT_TEMPLATE_VERSION;
   return {
-    templateVersion: REPORT_TEMPLATE_VERSION,
+    templateVersion,
     kind,
     title: kind === 'lesion' ? 'Coronary physiology report' : 'Coronary function testing report',
     hospital: input.hospital ?? null,
@@ -747,6 +774,7 @@ export function buildReportView(input: ReportInput): ReportView {
     impression: paragraphs(study.findings.impression),
     plan: paragraphs(study.findings.plan),
     thresholds: used.keys.map((k) => ({ ...thresholdText(k, t), source: thresholdSource(k, t) })),
+    thresholdsBasis: templateVersion === 'v1' || !input.thresholdsBasis ? null : thresholdsBasisSentence(input.thresholdsBasis, tz),
     caution: reportCaution[kind],
     signature,
   };
