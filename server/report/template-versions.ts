@@ -1,5 +1,6 @@
 import { existsSync, readdirSync, readFileSync, statSync } from 'node:fs';
 import { join, resolve } from 'node:path';
+import type { TemplateVersionDetail, TemplateVersionSummary } from '../../shared/settings/admin';
 import { templateVersionPattern } from '../../shared/settings/lab-settings';
 
 /**
@@ -8,18 +9,7 @@ import { templateVersionPattern } from '../../shared/settings/lab-settings';
  * release that ships a new folder offers it without a code change.
  */
 
-export interface TemplateVersionSummary {
-  version: string;
-  /** The first paragraph of the folder's ABOUT.md, when there is one. */
-  description: string | null;
-  files: number;
-}
-
-export interface TemplateVersionDetail extends TemplateVersionSummary {
-  files: number;
-  /** Every template file, entry first, with its text. */
-  sources: Array<{ medium: 'html' | 'text'; name: string; text: string }>;
-}
+export type { TemplateVersionSummary, TemplateVersionDetail } from '../../shared/settings/admin';
 
 const root = (dir = process.cwd()) => resolve(dir, 'templates', 'report');
 const versionNumber = (v: string) => Number(v.slice(1));
