@@ -64,7 +64,7 @@ async function readyStudy(): Promise<StudyRecord> {
   const res = await send('patch', `/api/studies/${study.id}`, staff)
     .send({
       version: study.version,
-      details: { ...study.details, indication: 'Intermediate LAD lesion', clinicalQuestion: 'intermediate-lesion', operatorId: operators.body.items[0].id, referringEmail: 'referrer@hospital.example' },
+      details: { ...study.details, encounter: `ENC-${study.accession}`, procedureStartedAt: new Date(Date.now() - 3 * 3_600_000).toISOString(), procedureEndedAt: new Date(Date.now() - 2 * 3_600_000).toISOString(), indication: 'Intermediate LAD lesion', clinicalQuestion: 'intermediate-lesion', operatorId: operators.body.items[0].id, referringEmail: 'referrer@hospital.example' },
       vessels: [
         {
           ...emptyVessel(randomUUID(), 'LAD'),
@@ -194,8 +194,8 @@ describe('thresholds: effective date, signed reports and addenda', () => {
     expect(again.content_sha256).toBe(oldRow.content_sha256);
     expect(again.thresholds.cfr).toBe(2.0);
     expect(cfrOf(again).cfrFlag).toBe('normal');
-    expect(again.narrative_text).toMatch(/CFR cut-off: < 2\.00 \(EAPCI 2020\)/);
-    expect(again.narrative_text).not.toMatch(/2\.20 \(abnormal\)/);
+    expect(again.narrative_text).toMatch(/CFR 2\.20: normal \(cut-off < 2\.00, EAPCI 2020\)/);
+    expect(again.narrative_text).toMatch(/CFR abnormal: < 2\.00 \(EAPCI 2020\)/);
     const pdf = await api().get(`/api/reports/${signedA.body.id}/pdf`).set('Cookie', physician).buffer(true).parse((res, cb) => {
       const chunks: Buffer[] = [];
       res.on('data', (c: Buffer) => chunks.push(c));
@@ -211,9 +211,9 @@ describe('thresholds: effective date, signed reports and addenda', () => {
     expect(newRow.thresholds.cfr).toBe(2.5);
     expect(newRow.threshold_set_id).toBe(changeSetId);
     expect(cfrOf(newRow).cfrFlag).toBe('abnormal');
-    expect(newRow.narrative_text).toMatch(/CFR cut-off: < 2\.50 \(lab setting\)/);
-    expect(newRow.narrative_text).toMatch(/2\.20 \(abnormal\)/);
-  });
+    expect(newRow.narrative_text).toMatch(/CFR 2\.20: abnormal \(cut-off < 2\.50, lab setting\)/);
+    expect(newRow.narrative_text).toMatch(/CFR abnormal: < 2\.50 \(lab setting\)/);
+  }, 180_000);
 
   it('records the change in the audit trail with every value before and after', async () => {
     const row = await lastSettingsAudit('thresholds');
@@ -248,7 +248,7 @@ describe('thresholds: effective date, signed reports and addenda', () => {
     await send('post', `/api/studies/${before2.studyId}/transitions`, physician).send({ action: 'open-addendum', version }).expect(200);
     const preview = await api().get(`/api/studies/${before2.studyId}/report`).query({ thresholds: 'current' }).set('Cookie', physician).expect(200);
     expect(preview.body.thresholds).toMatchObject({ basis: 'current', choice: { chosen: 'current' } });
-    expect(preview.body.text).toMatch(/2\.20 \(abnormal\)/);
+    expect(preview.body.text).toMatch(/CFR 2\.20: abnormal \(cut-off < 2\.50, lab setting\)/);
     await api().get(`/api/studies/${before2.studyId}/report`).query({ thresholds: 'newest' }).set('Cookie', physician).expect(400);
     const bad = await sign(before2.studyId, { reason: 'Lab cut-off applied', thresholds: 'latest' });
     expect(bad.status).toBe(400);
@@ -350,7 +350,7 @@ describe('lab settings', () => {
     } finally {
       await smtp.close();
     }
-  });
+  }, 120_000);
 });
 
 describe('report templates', () => {
