@@ -57,7 +57,8 @@ function ThresholdsForm({ rows, inForce, scheduled, history }: { rows: Threshold
   const [summary, setSummary] = useState<{ tone: 'ok' | 'error'; lines: string[] } | null>(null);
   useEffect(() => form.reset({ values: inForceValues, effectiveFrom: null, note: null }), [inForceValues, form]);
 
-  const submit = form.handleSubmit(async (v) => {
+  const submit = form.handleSubmit(
+    async (v) => {
     setSummary(null);
     const changed = Object.fromEntries(thresholdKeys.filter((k) => v.values[k] !== inForceValues[k]).map((k) => [k, v.values[k]])) as Partial<Thresholds>;
     if (Object.keys(changed).length === 0) return setSummary({ tone: 'error', lines: ['Change at least one threshold before saving a new set.'] });
@@ -74,7 +75,12 @@ function ThresholdsForm({ rows, inForce, scheduled, history }: { rows: Threshold
       }
       setSummary({ tone: 'error', lines: other.length ? other : ['Correct the marked fields.'] });
     }
-  });
+    },
+    (errors) => {
+      const labels = thresholdKeys.filter((k) => errors.values?.[k]).map((k) => rows.find((r) => r.key === k)?.label ?? k);
+      setSummary({ tone: 'error', lines: [labels.length ? `Correct the marked field${labels.length === 1 ? '' : 's'}: ${labels.join(', ')}.` : 'Correct the marked fields.'] });
+    },
+  );
 
   return (
     <FormProvider {...form}>
@@ -96,10 +102,10 @@ function ThresholdsForm({ rows, inForce, scheduled, history }: { rows: Threshold
             <View style={styles.about}>
               <Text weight="semibold">{r.label}</Text>
               <Text variant="caption" tone={r.source === 'lab setting' ? 'brand' : 'muted'} testID={`threshold-source-${r.key}`}>
-                {r.source === 'lab setting' ? `Lab setting (published default ${fmt(r.defaultValue, r.range.step)}: ${r.defaultSource})` : `Source: ${r.source}`}
+                {r.source === 'lab setting' ? `Lab setting (published default ${fmt(r.defaultValue, r.range.step)}: ${readable(r.defaultSource)})` : `Source: ${readable(r.source)}`}
               </Text>
               <Text variant="caption" tone="faint">
-                Allowed {fmt(r.range.min, r.range.step)}–{fmt(r.range.max, r.range.step)} ({r.range.basis})
+                Allowed {fmt(r.range.min, r.range.step)}–{fmt(r.range.max, r.range.step)} ({readable(r.range.basis)})
               </Text>
             </View>
             <View style={styles.input}>
@@ -145,6 +151,9 @@ function ThresholdsForm({ rows, inForce, scheduled, history }: { rows: Threshold
     </FormProvider>
   );
 }
+
+/** Source notes in words: "[practice]" is common practice, "[memory]" a value recalled rather than looked up. */
+const readable = (s: string) => s.replace(/\[practice\]/g, 'common practice:').replace(/\[memory(: ([^\]]+))?\]/g, (_m, _g, what) => (what ? `from memory (${what})` : 'from memory')).replace(/:\s*;/g, ';').replace(/:\s*$/, '');
 
 function describeOverrides(overrides: Partial<Record<ThresholdKey, number>>, rows: ThresholdRow[]): string {
   const keys = Object.keys(overrides) as ThresholdKey[];

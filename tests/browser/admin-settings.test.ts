@@ -46,6 +46,8 @@ describe("the admin's page", () => {
       await visible(page, 'threshold-cfr').fill('2.7');
       await visible(page, 'threshold-save').click();
       await expect(visible(page, 'threshold-cfr-error').innerText()).resolves.toMatch(/CFR cut-off must be between 2\.00 and 2\.50/);
+      await expect(visible(page, 'threshold-save-error').innerText()).resolves.toMatch(/CFR cut-off/);
+      await visible(page, 'threshold-row-cfr').scrollIntoViewIfNeeded();
       await page.screenshot({ path: screenshotPath('admin-threshold-error-desktop') });
 
       await visible(page, 'threshold-cfr').fill('2.4');
@@ -53,6 +55,8 @@ describe("the admin's page", () => {
       await visible(page, 'threshold-save').click();
       await expect(visible(page, 'threshold-saved').innerText()).resolves.toMatch(/1 change, in force from/);
       await expect(visible(page, 'threshold-source-cfr').innerText()).resolves.toMatch(/^Lab setting \(published default 2\.00/);
+      await visible(page, 'threshold-row-cfr').scrollIntoViewIfNeeded();
+      await page.screenshot({ path: screenshotPath('admin-threshold-saved-desktop') });
       expect((await thresholdsInForce(db)).values.cfr).toBe(2.4);
       const [audit] = await db.query(`SELECT actor_role, detail FROM audit_event WHERE entity_type = 'settings' AND entity_id = 'thresholds' ORDER BY id DESC LIMIT 1`);
       expect(audit.actor_role).toBe('admin');
@@ -61,7 +65,8 @@ describe("the admin's page", () => {
       // A template version's files can be read.
       await visible(page, 'template-view-v2').click();
       await visible(page, 'template-sources-v2').waitFor();
-      await page.screenshot({ path: screenshotPath('admin-after-change-desktop'), fullPage: true });
+      await visible(page, 'admin-templates').scrollIntoViewIfNeeded();
+      await page.screenshot({ path: screenshotPath('admin-templates-desktop') });
     } finally {
       await context.close();
     }
@@ -77,10 +82,14 @@ describe("the admin's page", () => {
       await visible(page, 'setting-time-zone').waitFor();
       const overflow = await page.evaluate(() => document.documentElement.scrollWidth - document.documentElement.clientWidth);
       expect(overflow).toBeLessThanOrEqual(0);
+      await page.screenshot({ path: screenshotPath('admin-phone-top') });
+      await visible(page, 'threshold-row-cfr').scrollIntoViewIfNeeded();
+      await page.screenshot({ path: screenshotPath('admin-phone-thresholds') });
       await visible(page, 'setting-time-zone').fill('Mars/Olympus');
       await visible(page, 'lab-settings-save').click();
       await expect(visible(page, 'setting-time-zone-error').innerText()).resolves.toMatch(/IANA time zone/);
-      await page.screenshot({ path: screenshotPath('admin-phone'), fullPage: true });
+      await visible(page, 'setting-time-zone').scrollIntoViewIfNeeded();
+      await page.screenshot({ path: screenshotPath('admin-phone-settings-error') });
     } finally {
       await context.close();
     }
