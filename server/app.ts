@@ -18,6 +18,7 @@ import { recordRoutes } from './routes/records';
 import { auditRoutes } from './routes/audit';
 import { studyRoutes } from './routes/studies';
 import { settingsRoutes } from './routes/settings';
+import { adminRoutes } from './routes/admin';
 import { reportRoutes } from './routes/reports';
 import { deliveryRoutes } from './routes/delivery';
 import { codingRoutes } from './routes/coding';
@@ -45,6 +46,7 @@ export function apiRoutes(deps: Required<Pick<AppDeps, 'config' | 'dataSource' |
     ...authRoutes(deps),
     ...studyRoutes(deps),
     ...settingsRoutes(deps),
+    ...adminRoutes(deps),
     ...reportRoutes(deps),
     ...recordRoutes(deps),
     ...auditRoutes(deps),

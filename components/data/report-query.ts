@@ -25,22 +25,37 @@ export interface ReportPreview {
   completeness: { complete: boolean; missing: MissingItem[] };
   versions: SignedVersion[];
   actions: StudyAction[];
+  /** Which thresholds judge this preview; for an open addendum the choice between the amended version's and those in force now. */
+  thresholds?: {
+    basis: 'in-force' | 'original' | 'current';
+    effectiveFrom: string | null;
+    setId: number | null;
+    amendedVersion: number | null;
+    choice: null | { chosen: ThresholdsChoice; differences: Array<{ key: string; label: string; original: number; current: number }> };
+  };
 }
 
-export const reportKeys = { preview: (studyId: string) => ['studies', 'report', studyId] as const };
+/** An addendum keeps the amended version's thresholds (`original`) unless the physician chooses those in force now (`current`). */
+export type ThresholdsChoice = 'original' | 'current';
+
+export const reportKeys = { preview: (studyId: string, thresholds: ThresholdsChoice = 'original') => ['studies', 'report', studyId, thresholds] as const };
 
 /** The report as it would be signed now, what is missing, the versions signed so far, and what you may do. */
-export function useReportPreview(studyId: string) {
-  return useQuery({ queryKey: reportKeys.preview(studyId), queryFn: () => apiFetch<ReportPreview>(`/studies/${studyId}/report`) });
+export function useReportPreview(studyId: string, thresholds: ThresholdsChoice = 'original') {
+  return useQuery({
+    queryKey: reportKeys.preview(studyId, thresholds),
+    queryFn: () => apiFetch<ReportPreview>(`/studies/${studyId}/report${thresholds === 'current' ? '?thresholds=current' : ''}`),
+    placeholderData: (previous) => previous,
+  });
 }
 
 /** Moves the study along (ready for review, send back, addendum) or signs it; then everything about the study is read again. */
 export function useReportAction(studyId: string) {
   const client = useQueryClient();
   return useMutation({
-    mutationFn: ({ action, version, reason }: { action: StudyAction; version: number; reason?: string }) =>
+    mutationFn: ({ action, version, reason, thresholds }: { action: StudyAction; version: number; reason?: string; thresholds?: ThresholdsChoice }) =>
       action === 'sign' || action === 'sign-addendum'
-        ? apiFetch(`/studies/${studyId}/sign`, { method: 'POST', body: JSON.stringify({ version, ...(reason ? { reason } : {}) }) })
+        ? apiFetch(`/studies/${studyId}/sign`, { method: 'POST', body: JSON.stringify({ version, ...(reason ? { reason } : {}), ...(thresholds ? { thresholds } : {}) }) })
         : apiFetch(`/studies/${studyId}/transitions`, { method: 'POST', body: JSON.stringify({ action, version, ...(reason ? { reason } : {}) }) }),
     retry: false,
     onSettled: () => client.invalidateQueries({ queryKey: ['studies'] }),

@@ -13,7 +13,8 @@ import { EhrClient } from './ehr-client';
 const payloadSchema = z.object({ reportVersionId: z.uuid() });
 
 export interface DeliveryTaskOptions {
-  send: DeliverDeps['send'];
+  /** Sends to the EHR at `fhirBaseUrl` when the lab has set one, else to the configured endpoint. */
+  send: (bundle: Parameters<DeliverDeps['send']>[0], fhirBaseUrl?: string) => ReturnType<DeliverDeps['send']>;
   limitMs: number;
   leaseMs: number;
   identifierSystems: DeliverDeps['identifierSystems'];
@@ -28,8 +29,11 @@ export function createDeliveryTasks(options: DeliveryTaskOptions): TaskList {
       return;
     }
     const { reportVersionId } = parsed.data;
+    // The lab's EHR endpoint, read at each try: a change applies to the next delivery and retry.
+    const { rows } = await helpers.query<{ ehr_base_url: string | null }>(`SELECT ehr_base_url FROM lab_settings WHERE id = 1`);
+    const fhirBaseUrl = rows[0]?.ehr_base_url ?? undefined;
     const outcome = await deliverReport(
-      { ...options, query: async (sql, params) => (await helpers.query(sql, params as unknown[])).rows },
+      { ...options, send: (bundle) => options.send(bundle, fhirBaseUrl), query: async (sql, params) => (await helpers.query(sql, params as unknown[])).rows },
       reportVersionId,
       { attempts: helpers.job.attempts, maxAttempts: helpers.job.max_attempts },
     );
@@ -38,18 +42,29 @@ export function createDeliveryTasks(options: DeliveryTaskOptions): TaskList {
   return { 'deliver-report': deliver };
 }
 
-/** The task options from the server's settings: one EHR client (its token is reused until it expires). */
+/**
+ * The task options from the server's settings: one EHR client per endpoint (the configured one, or
+ * the lab's setting), each reusing its token until it expires (a token is asked for one endpoint).
+ */
 export function deliveryTaskOptions(config: Config): DeliveryTaskOptions {
-  const client = new EhrClient({
-    fhirBaseUrl: config.ehr.fhirBaseUrl,
-    issuer: config.oidc.issuer,
-    clientId: config.ehr.clientId,
-    clientSecret: config.ehr.clientSecret,
-    scope: config.ehr.scope,
-    timeoutMs: config.ehr.timeoutMs,
-  });
+  const clients = new Map<string, EhrClient>();
+  const clientFor = (fhirBaseUrl: string) => {
+    let client = clients.get(fhirBaseUrl);
+    if (!client) {
+      client = new EhrClient({
+        fhirBaseUrl,
+        issuer: config.oidc.issuer,
+        clientId: config.ehr.clientId,
+        clientSecret: config.ehr.clientSecret,
+        scope: config.ehr.scope,
+        timeoutMs: config.ehr.timeoutMs,
+      });
+      clients.set(fhirBaseUrl, client);
+    }
+    return client;
+  };
   return {
-    send: (bundle) => client.sendTransaction(bundle),
+    send: (bundle, fhirBaseUrl) => clientFor((fhirBaseUrl ?? config.ehr.fhirBaseUrl).replace(/\/$/, '')).sendTransaction(bundle),
     limitMs: config.ehr.deliveryLimitMs,
     // A send is at most two token requests and two transactions, each bounded by the timeout.
     leaseMs: 4 * config.ehr.timeoutMs + 60_000,

@@ -22,14 +22,15 @@ export function sendReportNoticeTask(dataSource: DataSource, mail: MailSettings)
   return async (payload) => {
     const { reportVersionId } = payloadSchema.parse(payload);
     const [row] = await dataSource.query(
-      `SELECT s.accession, s.referring_email, v.version_no, v.status
+      `SELECT s.accession, s.referring_email, v.version_no, v.status, (SELECT mail_from FROM lab_settings WHERE id = 1) AS mail_from
        FROM report_version v JOIN study s ON s.id = v.study_id WHERE v.id = $1`,
       [reportVersionId],
     );
     if (!row || !row.referring_email) return; // nobody to tell
     const amended = row.status === 'amended';
     await transport.sendMail({
-      from: mail.from,
+      // The lab's sender when set (read at each send), else the configured one.
+      from: row.mail_from ?? mail.from,
       to: row.referring_email,
       subject: `${amended ? 'Amended report' : 'Report'} signed: accession ${row.accession}`,
       text: [

@@ -1,12 +1,12 @@
 import type { PhysiologyResult, Thresholds } from '../../shared/physiology';
 import { fingerprint, renderReportPdf, sha256Hex } from './pdf';
 import { htmlDocument, renderNarrative, type Narrative } from './render';
-import { buildReportView, type ReportInput, type ReportStudy, type ReportView } from './view-model';
+import { buildReportView, type ReportInput, type ReportStudy, type ReportView, type ThresholdsBasisInfo } from './view-model';
 
 export { canonicalContent, fingerprint, fingerprintInPdf, renderReportPdf, sha256Hex, warmUpPdf, PAGE } from './pdf';
 export { renderNarrative, htmlDocument, type Narrative } from './render';
 export { reportDocument } from './document';
-export { buildReportView, reportKindOf, shortFingerprint, type ReportInput, type ReportStudy, type ReportView, type ReportSignature, type ReportKind } from './view-model';
+export { buildReportView, reportKindOf, shortFingerprint, type ThresholdsBasisInfo, type ReportInput, type ReportStudy, type ReportView, type ReportSignature, type ReportKind } from './view-model';
 export { REPORT_TEMPLATE_VERSION } from './template-version';
 
 /** The statement the signer makes, stored with each version. */
@@ -32,6 +32,8 @@ export interface SignedContent {
   record: ReportStudy;
   analysis: PhysiologyResult;
   thresholds: Thresholds;
+  /** Which thresholds judged it (in force at signing, or an addendum's choice) and the set they came from. */
+  thresholdsBasis?: ThresholdsBasisInfo | null;
   signer: { id: string; name: string };
   signedAt: string;
   attestation: string;
@@ -86,6 +88,7 @@ export async function prepareSignedReport(input: Omit<ReportInput, 'signature'>,
     record: input.study,
     analysis: input.analysis,
     thresholds: input.thresholds,
+    ...(input.thresholdsBasis ? { thresholdsBasis: input.thresholdsBasis } : {}),
     signer: sign.signer,
     signedAt: sign.signedAt,
     attestation: sign.attestation ?? ATTESTATION,

@@ -260,8 +260,9 @@ export function reportDocument(view: ReportView, createdAt: Date): TDocumentDefi
       },
       layout: 'report',
       fontSize: 8,
-      margin: [0, 2, 0, 8],
+      margin: [0, 2, 0, view.thresholdsBasis ? 2 : 8],
     });
+    if (view.thresholdsBasis) content.push({ text: view.thresholdsBasis, fontSize: 8, margin: [0, 0, 0, 8] });
   }
   content.push({
     table: { widths: ['*'], body: [[{ text: view.caution, fontSize: 8.5, color: ink, margin: [6, 4, 6, 4] }]] },

@@ -61,6 +61,22 @@ export interface ReportInput {
   signature?: ReportSignature | null;
   /** IANA time zone for printed times (the hospital's); UTC by default. */
   timeZone?: string;
+  /** The template version to lay the report out with (the lab's active one); the built-in version by default. */
+  templateVersion?: string;
+  /** Which thresholds judge this report, for the sentence templates from v2 print under them. */
+  thresholdsBasis?: ThresholdsBasisInfo | null;
+}
+
+/** Where a report's thresholds come from. */
+export interface ThresholdsBasisInfo {
+  /** `in-force`: the set in force at signing; for an addendum `original` (the amended version's) or `current`. */
+  basis: 'in-force' | 'original' | 'current';
+  /** When the set began to apply; null for the published defaults (or unknown for older versions). */
+  effectiveFrom: string | null;
+  /** The set's id; null for the published defaults. */
+  setId: number | null;
+  /** The version an addendum amends. */
+  amendedVersion: number | null;
 }
 
 export interface Cell {
@@ -113,6 +129,8 @@ export interface ReportView {
   impression: string[];
   plan: string[];
   thresholds: Array<{ label: string; value: string; source: string }>;
+  /** One sentence on which thresholds judged the report (template v2 and later); null otherwise. */
+  thresholdsBasis: string | null;
   caution: string;
   signature: null | {
     signedBy: string;
@@ -661,6 +679,14 @@ function thresholdSource(key: ThresholdKey, t: Thresholds): string {
   return keys.every((k) => t[k] === defaultThresholds[k]) ? thresholdCitations[key] : 'lab setting';
 }
 
+/** The sentence under the thresholds table (template v2 and later). */
+export function thresholdsBasisSentence(b: ThresholdsBasisInfo, tz: string): string {
+  const set = b.setId === null ? 'the published default thresholds' : `the lab's thresholds in force from ${b.effectiveFrom ? formatDateTime(b.effectiveFrom, tz) : 'an earlier date'}`;
+  if (b.basis === 'original') return `This addendum keeps the thresholds of report version ${b.amendedVersion ?? 1}: ${set}.`;
+  if (b.basis === 'current') return `This addendum applies the thresholds in force when it was signed, not those of report version ${b.amendedVersion ?? 1}: ${set}.`;
+  return `Judged by ${set}.`;
+}
+
 /** Builds the report's view model. Pure: the same input gives the same view. */
 export function buildReportView(input: ReportInput): ReportView {
   const { study, analysis, thresholds: t } = input;
@@ -716,8 +742,9 @@ export function buildReportView(input: ReportInput): ReportView {
   // "Angina" in the endotype's name only when the record says the patient has angina (COVADIS).
   const endotypeWords = endotypeName(analysis.endotype, d.anginaPresent ?? undefined, endotypeLabel);
 
+  const templateVersion = input.templateVersion ?? REPORT_TEMPLATE_VERSION;
   return {
-    templateVersion: REPORT_TEMPLATE_VERSION,
+    templateVersion,
     kind,
     title: kind === 'lesion' ? 'Coronary physiology report' : 'Coronary function testing report',
     hospital: input.hospital ?? null,
@@ -751,6 +778,7 @@ export function buildReportView(input: ReportInput): ReportView {
     impression: paragraphs(study.findings.impression),
     plan: paragraphs(study.findings.plan),
     thresholds: used.keys.map((k) => ({ ...thresholdText(k, t), source: thresholdSource(k, t) })),
+    thresholdsBasis: templateVersion === 'v1' || !input.thresholdsBasis ? null : thresholdsBasisSentence(input.thresholdsBasis, tz),
     caution: reportCaution[kind],
     signature,
   };

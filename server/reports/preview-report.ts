@@ -7,7 +7,10 @@ import { NotFoundError } from '../http/problem';
 import type { ReportDocument } from '../../shared/report/document';
 import { previewReport, reportDocument, reportKindOf } from '../report';
 import { loadStudy } from '../studies/repository';
-import { reportInputFor } from './report-input';
+import type { ThresholdsBasisInfo } from '../report/view-model';
+import { thresholdLabels } from '../../shared/physiology/thresholds';
+import { thresholdKeys } from '../../shared/settings/threshold-ranges';
+import { reportInputFor, thresholdsFor, type ThresholdsChoice } from './report-input';
 import { summariseVersion, type SignedVersionSummary } from './sign-study';
 
 export interface ReportPreview {
@@ -23,13 +26,38 @@ export interface ReportPreview {
   completeness: CompletenessResult;
   versions: SignedVersionSummary[];
   actions: StudyAction[];
+  /** The thresholds that judge this preview, and for an open addendum the choice between the amended version's and those in force now. */
+  thresholds: ThresholdsBasisInfo & {
+    choice: null | {
+      chosen: ThresholdsChoice;
+      /** Cut-offs whose value differs between the two; empty when the choice changes nothing. */
+      differences: Array<{ key: string; label: string; original: number; current: number }>;
+    };
+  };
 }
 
 /** The report as it would be signed now, whether it can be signed, and the versions signed so far. */
-export async function previewStudyReport(dataSource: DataSource, studyId: string, role: Role | null, hospital: { name: string; lab: string } | null): Promise<ReportPreview> {
+export async function previewStudyReport(
+  dataSource: DataSource,
+  studyId: string,
+  role: Role | null,
+  hospital: { name: string; lab: string } | null,
+  choice: ThresholdsChoice = 'original',
+): Promise<ReportPreview> {
   const record = await loadStudy(dataSource, studyId);
   if (!record) throw new NotFoundError('No study has this id.');
-  const input = await reportInputFor(dataSource.manager, record, hospital);
+  const now = new Date();
+  const input = await reportInputFor(dataSource.manager, record, hospital, now, choice);
+  let thresholdChoice: ReportPreview['thresholds']['choice'] = null;
+  if (record.state === 'amending') {
+    const [original, current] = await Promise.all([thresholdsFor(dataSource.manager, record, now, 'original'), thresholdsFor(dataSource.manager, record, now, 'current')]);
+    thresholdChoice = {
+      chosen: choice,
+      differences: thresholdKeys
+        .filter((k) => original.values[k] !== current.values[k])
+        .map((k) => ({ key: k, label: thresholdLabels[k][0], original: original.values[k], current: current.values[k] })),
+    };
+  }
   const { view, narrative } = previewReport(input);
   const versions = await dataSource.manager.find(ReportVersion, {
     where: { studyId },
@@ -47,5 +75,6 @@ export async function previewStudyReport(dataSource: DataSource, studyId: string
     completeness: checkCompleteness(record),
     versions: versions.map(summariseVersion),
     actions: availableActions(record.state, role),
+    thresholds: { ...input.thresholdsBasis, choice: thresholdChoice },
   };
 }

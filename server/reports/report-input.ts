@@ -1,8 +1,12 @@
 import type { EntityManager } from 'typeorm';
-import { analyzeStudy } from '../../shared/physiology';
+import { analyzeStudy, thresholdsSchema, type Thresholds } from '../../shared/physiology';
+import { resolveThresholds } from '../../shared/physiology/thresholds';
 import type { StudyRecord } from '../../shared/study/schema';
 import { toPhysiologyInput } from '../../shared/study/to-physiology';
+import { ReportVersion } from '../db/entities/report-version.entity';
 import type { ReportInput, ReportStudy } from '../report';
+import type { ThresholdsBasisInfo } from '../report/view-model';
+import { labSettings } from '../settings/lab-settings';
 import { thresholdsInForce } from '../settings/thresholds';
 
 /** The parts of a study record a report is built from (and that a signed version keeps). */
@@ -11,15 +15,53 @@ export function reportStudyOf(record: StudyRecord): ReportStudy {
   return { id, accession, patient, details, setup, vessels, vasoreactivity, findings };
 }
 
-/** Everything the report needs: the record, its analysis with the thresholds in force, and names. */
+/**
+ * For an addendum: keep the thresholds of the version it amends (`original`, the default), or apply
+ * those in force at its signature (`current`). A first signature always uses those in force.
+ */
+export type ThresholdsChoice = 'original' | 'current';
+
+export type ReportInputWithBasis = Omit<ReportInput, 'signature'> & { thresholdsBasis: ThresholdsBasisInfo };
+
+/** The thresholds that judge a report signed at `at`: those in force, or an addendum's choice. */
+export async function thresholdsFor(
+  manager: EntityManager,
+  record: Pick<StudyRecord, 'id' | 'state'>,
+  at: Date,
+  choice: ThresholdsChoice = 'original',
+): Promise<{ values: Thresholds; basis: ThresholdsBasisInfo }> {
+  const amended = record.state === 'amending' ? await manager.findOne(ReportVersion, { where: { studyId: record.id }, order: { versionNo: 'DESC' }, select: { versionNo: true, thresholds: true, thresholdSetId: true } }) : null;
+  if (amended && choice === 'original') {
+    const parsed = thresholdsSchema.safeParse(amended.thresholds);
+    if (parsed.success) {
+      const [set] = amended.thresholdSetId === null ? [] : await manager.query(`SELECT effective_from FROM threshold_set WHERE id = $1`, [amended.thresholdSetId]);
+      return {
+        values: resolveThresholds(parsed.data as Partial<Thresholds>),
+        basis: { basis: 'original', setId: amended.thresholdSetId, effectiveFrom: set?.effective_from?.toISOString() ?? null, amendedVersion: amended.versionNo },
+      };
+    }
+  }
+  const inForce = await thresholdsInForce(manager, at);
+  return {
+    values: inForce.values,
+    basis: { basis: amended ? 'current' : 'in-force', setId: inForce.setId, effectiveFrom: inForce.effectiveFrom, amendedVersion: amended?.versionNo ?? null },
+  };
+}
+
+/**
+ * Everything the report needs: the record, its analysis with the thresholds that judge it (those in
+ * force at `at`, or an addendum's choice), names, and the lab's template version and time zone.
+ */
 export async function reportInputFor(
   manager: EntityManager,
   record: StudyRecord,
   hospital: { name: string; lab: string } | null,
   at = new Date(),
-): Promise<Omit<ReportInput, 'signature'>> {
-  const thresholds = await thresholdsInForce(manager, at);
-  const analysis = analyzeStudy({ ...toPhysiologyInput(record), thresholds: thresholds.overrides });
+  choice: ThresholdsChoice = 'original',
+): Promise<ReportInputWithBasis> {
+  const thresholds = await thresholdsFor(manager, record, at, choice);
+  const settings = await labSettings(manager);
+  const analysis = analyzeStudy({ ...toPhysiologyInput(record), thresholds: thresholds.values });
   const [operator] = record.details.operatorId
     ? await manager.query(`SELECT display_name FROM app_user WHERE id = $1`, [record.details.operatorId])
     : [];
@@ -27,7 +69,10 @@ export async function reportInputFor(
     study: reportStudyOf(record),
     analysis,
     thresholds: thresholds.values,
+    thresholdsBasis: thresholds.basis,
     people: { operator: operator?.display_name ?? null },
     hospital,
+    templateVersion: settings.templateVersion,
+    timeZone: settings.timeZone,
   };
 }

@@ -5,12 +5,12 @@ import { checkTransition } from '../../shared/study/state-machine';
 import type { StudyState } from '../../shared/study/vocabulary';
 import { recordAudit, type AuditEntry } from '../audit/audit';
 import { ReportVersion } from '../db/entities/report-version.entity';
-import { NotFoundError } from '../http/problem';
+import { BadRequestError, NotFoundError } from '../http/problem';
 import { ATTESTATION, prepareSignedReport } from '../report';
 import { loadStudy, StaleVersionError } from '../studies/repository';
 import { IncompleteStudyError, TransitionRefusedError } from './errors';
 import { onReportSigned } from './on-report-signed';
-import { reportInputFor } from './report-input';
+import { reportInputFor, type ThresholdsChoice } from './report-input';
 
 export interface Signer {
   userId: string;
@@ -25,6 +25,8 @@ export interface SignStudyRequest {
   signer: Signer;
   /** Required for an addendum: why the signed report changes. */
   reason?: string | null;
+  /** An addendum keeps the amended version's thresholds unless the physician chooses those now in force. */
+  thresholds?: ThresholdsChoice;
   hospital: { name: string; lab: string } | null;
   audit: Pick<AuditEntry, 'actorUserId' | 'actorName' | 'actorRole' | 'clientAddress'>;
   /** The signing time; the transaction's clock by default. */
@@ -69,13 +71,16 @@ export async function signStudy(dataSource: DataSource, req: SignStudyRequest): 
     if (refusal) throw new TransitionRefusedError(refusal, refusal === 'wrong-state' ? `A ${state} study cannot be signed.` : refusal === 'reason-required' ? 'An addendum needs the reason for the change.' : 'Only a physician may sign.');
     const record = (await loadStudy(manager, req.studyId))!;
     if (record.version !== req.studyVersion) throw new StaleVersionError(record);
+    if (!addendum && req.thresholds === 'original') {
+      throw new BadRequestError('Only an addendum can keep the thresholds of an earlier version.', [{ pointer: '/thresholds', detail: 'A first signature uses the thresholds in force; leave thresholds out or send "current".' }]);
+    }
     const completeness = checkCompleteness(record);
     if (!completeness.complete) throw new IncompleteStudyError(completeness.missing);
 
     const previous = await latestVersion(manager, req.studyId);
     const [{ now }] = await manager.query(`SELECT now() AS now`);
     const signedAt: Date = req.now ?? now;
-    const input = await reportInputFor(manager, record, req.hospital, signedAt);
+    const input = await reportInputFor(manager, record, req.hospital, signedAt, req.thresholds ?? 'original');
     const prepared = await prepareSignedReport(input, {
       signer: { id: req.signer.userId, name: req.signer.displayName },
       signedAt: signedAt.toISOString(),
@@ -96,6 +101,8 @@ export async function signStudy(dataSource: DataSource, req: SignStudyRequest): 
       analysis: prepared.content.analysis,
       thresholds: prepared.content.thresholds,
       templateVersion: prepared.content.templateVersion,
+      thresholdsBasis: input.thresholdsBasis.basis,
+      thresholdSetId: input.thresholdsBasis.setId,
       pdf: prepared.pdf,
       pdfSha256: prepared.pdfSha256,
       contentSha256: prepared.fingerprint,
@@ -112,7 +119,14 @@ export async function signStudy(dataSource: DataSource, req: SignStudyRequest): 
       entityType: 'study',
       entityId: req.studyId,
       outcome: 'success',
-      detail: { reportVersion: saved.versionNo, reportVersionId: saved.id, fromStudyVersion: record.version, contentSha256: saved.contentSha256 },
+      detail: {
+        reportVersion: saved.versionNo,
+        reportVersionId: saved.id,
+        fromStudyVersion: record.version,
+        contentSha256: saved.contentSha256,
+        templateVersion: saved.templateVersion,
+        thresholds: { basis: input.thresholdsBasis.basis, thresholdSetId: input.thresholdsBasis.setId, ...(addendum ? { choice: req.thresholds ?? 'original' } : {}) },
+      },
     });
     await onReportSigned(manager, saved.id);
     return summariseVersion(saved);

@@ -22,7 +22,9 @@ const idParam = (req: Request, what = 'study') => {
 
 const reasonSchema = z.string({ error: 'reason must be text.' }).trim().max(1000, { error: 'The reason is too long (at most 1000 characters).' }).nullable().optional();
 const versionSchema = z.number({ error: 'version is required: the study version you previewed.' }).int().min(1);
-const signSchema = z.strictObject({ version: versionSchema, reason: reasonSchema });
+const thresholdsChoiceSchema = z.enum(['original', 'current'], { error: 'thresholds must be "original" (keep the amended version\'s) or "current" (those in force now).' });
+const signSchema = z.strictObject({ version: versionSchema, reason: reasonSchema, thresholds: thresholdsChoiceSchema.optional() });
+const previewQuerySchema = z.object({ thresholds: thresholdsChoiceSchema.optional() });
 const transitionSchema = z.strictObject({
   action: z.enum(['mark-ready', 'send-back', 'open-addendum', 'discard-addendum'], { error: 'action must be mark-ready, send-back, open-addendum or discard-addendum.' }),
   version: versionSchema,
@@ -41,7 +43,8 @@ export function reportRoutes({ config, dataSource }: { config: Config; dataSourc
       handlers: [
         async (req, res) => {
           const id = idParam(req);
-          const preview = await previewStudyReport(dataSource, id, req.session.auth!.role, config.hospital);
+          const query = parseOrThrow(previewQuerySchema, req.query, 'The address');
+          const preview = await previewStudyReport(dataSource, id, req.session.auth!.role, config.hospital, query.thresholds ?? 'original');
           await recordAudit(dataSource, { ...auditContext(req), action: 'read', entityType: 'study', entityId: id, outcome: 'success', detail: { view: 'report' } });
           res.json(preview);
         },
@@ -78,6 +81,7 @@ export function reportRoutes({ config, dataSource }: { config: Config; dataSourc
             studyId: id,
             studyVersion: body.version,
             reason: body.reason,
+            thresholds: body.thresholds,
             signer: { userId: auth.userId, displayName: auth.displayName, role: auth.role },
             hospital: config.hospital,
             audit: auditContext(req),

@@ -1,6 +1,19 @@
 import type { DataSource, EntityManager } from 'typeorm';
 import { defaultThresholds, resolveThresholds, thresholdsSchema, type Thresholds } from '../../shared/physiology';
+import { thresholdLabels, thresholdSources } from '../../shared/physiology/thresholds';
+import {
+  thresholdKeys,
+  thresholdRanges,
+  thresholdRelationProblems,
+  thresholdSourceOf,
+  type ThresholdOverview,
+  type ThresholdSetRequest,
+  type ThresholdSetSummary,
+} from '../../shared/settings/threshold-ranges';
+import { recordAudit, type AuditEntry } from '../audit/audit';
 import { ThresholdSet } from '../db/entities/measurement.entities';
+import { BadRequestError } from '../http/problem';
+import { labSettings } from './lab-settings';
 
 export interface ThresholdsInForce {
   /** The lab's values where they differ from the published defaults. */
@@ -29,4 +42,108 @@ export async function thresholdsInForce(db: DataSource | EntityManager, at: Date
   const parsed = thresholdsSchema.safeParse(set.values);
   const overrides = parsed.success ? (parsed.data as Partial<Thresholds>) : {};
   return { overrides, values: resolveThresholds(overrides), setId: set.id, effectiveFrom: set.effectiveFrom.toISOString() };
+}
+
+type Actor = Pick<AuditEntry, 'actorUserId' | 'actorName' | 'actorRole' | 'clientAddress'>;
+
+const managerOf = (db: DataSource | EntityManager): EntityManager => ('manager' in db ? db.manager : db);
+
+function summaryOf(row: { id: number; effective_from: Date; values: unknown; note: string | null; created_by_name: string | null; created_at: Date }): ThresholdSetSummary {
+  const parsed = thresholdsSchema.safeParse(row.values);
+  return {
+    id: row.id,
+    effectiveFrom: row.effective_from.toISOString(),
+    overrides: parsed.success ? (parsed.data as Partial<Thresholds>) : {},
+    note: row.note,
+    createdBy: row.created_by_name,
+    createdAt: row.created_at.toISOString(),
+  };
+}
+
+/** Every cut-off with the value in force now, its source and allowed range; the sets scheduled and past. */
+export async function thresholdOverview(db: DataSource | EntityManager, now = new Date()): Promise<ThresholdOverview> {
+  const inForce = await thresholdsInForce(db, now);
+  const rows = await managerOf(db).query(
+    `SELECT t.id, t.effective_from, t.values, t.note, t.created_at, u.display_name AS created_by_name
+     FROM threshold_set t LEFT JOIN app_user u ON u.id = t.created_by
+     ORDER BY t.effective_from DESC, t.id DESC LIMIT 200`,
+  );
+  const history = rows.map(summaryOf);
+  return {
+    rows: thresholdKeys.map((key) => {
+      const [label, unit] = thresholdLabels[key];
+      const value = inForce.values[key];
+      return { key, label, unit, value, defaultValue: defaultThresholds[key], source: thresholdSourceOf(key, value).source, defaultSource: thresholdSources[key], range: thresholdRanges[key] };
+    }),
+    inForce: { setId: inForce.setId, effectiveFrom: inForce.effectiveFrom },
+    scheduled: history.filter((s: ThresholdSetSummary) => new Date(s.effectiveFrom) > now).reverse(),
+    history,
+  };
+}
+
+/** The furthest ahead a set may be scheduled. */
+const MAX_DAYS_AHEAD = 366;
+/** Clock and typing allowance for a time given as "now". */
+const GRACE_MS = 60_000;
+
+/**
+ * Adds a set of thresholds, in force from its effective date for studies signed from then on.
+ * Values left out keep those in force at that date. The date is today or later: a date in the past
+ * is refused, because reports signed since then were judged by the set in force when they were
+ * signed and stay so. One audit row carries every value before and after.
+ */
+export async function createThresholdSet(dataSource: DataSource, request: ThresholdSetRequest, actor: Actor): Promise<{ set: ThresholdSetSummary; overview: ThresholdOverview }> {
+  return dataSource.transaction(async (manager) => {
+    // One change at a time, so "the set in force at that date" cannot move under a concurrent change.
+    await manager.query(`SELECT pg_advisory_xact_lock(hashtext('threshold_set'))`);
+    const { timeZone } = await labSettings(manager);
+    const [{ now, today }] = await manager.query(`SELECT now() AS now, (now() AT TIME ZONE $1)::date::text AS today`, [timeZone]);
+    let effective: Date;
+    if (!request.effectiveFrom) effective = now;
+    else if (/^\d{4}-\d{2}-\d{2}$/.test(request.effectiveFrom)) {
+      if (request.effectiveFrom < today) throw new BadRequestError('The thresholds cannot take effect in the past.', [{ pointer: '/effectiveFrom', detail: `effectiveFrom must be today (${today}, ${timeZone}) or later: reports signed before now keep the thresholds they were judged by.` }]);
+      if (request.effectiveFrom === today) effective = now;
+      else [{ effective }] = await manager.query(`SELECT ($1::date)::timestamp AT TIME ZONE $2 AS effective`, [request.effectiveFrom, timeZone]);
+    } else {
+      effective = new Date(request.effectiveFrom);
+      if (effective.getTime() < now.getTime() - GRACE_MS) throw new BadRequestError('The thresholds cannot take effect in the past.', [{ pointer: '/effectiveFrom', detail: 'effectiveFrom must be now or later: reports signed before now keep the thresholds they were judged by.' }]);
+      if (effective < now) effective = now;
+    }
+    if (effective.getTime() > now.getTime() + MAX_DAYS_AHEAD * 86_400_000) {
+      throw new BadRequestError('The effective date is too far ahead.', [{ pointer: '/effectiveFrom', detail: `effectiveFrom must be within ${MAX_DAYS_AHEAD} days from today.` }]);
+    }
+
+    const before = (await thresholdsInForce(manager, effective)).values;
+    const after: Thresholds = { ...before };
+    for (const key of thresholdKeys) {
+      const v = request.values[key];
+      if (v !== undefined) after[key] = v;
+    }
+    const relations = thresholdRelationProblems(after);
+    if (relations.length) {
+      throw new BadRequestError(`The thresholds have ${relations.length === 1 ? 'a field' : `${relations.length} fields`} to correct.`, relations.map((p) => ({ pointer: `/values/${p.key}`, detail: p.message })));
+    }
+    const changed: Record<string, { before: number; after: number }> = {};
+    for (const key of thresholdKeys) if (before[key] !== after[key]) changed[key] = { before: before[key], after: after[key] };
+    if (Object.keys(changed).length === 0) {
+      throw new BadRequestError('Nothing to change: every value is already in force at that date.', [{ pointer: '/values', detail: 'Change at least one threshold.' }]);
+    }
+    const overrides: Partial<Thresholds> = {};
+    for (const key of thresholdKeys) if (after[key] !== defaultThresholds[key]) overrides[key] = after[key];
+
+    const [row] = await manager.query(
+      `INSERT INTO threshold_set (effective_from, "values", note, created_by) VALUES ($1, $2, $3, $4)
+       RETURNING id, effective_from, "values", note, created_at`,
+      [effective, JSON.stringify(overrides), request.note ?? null, actor.actorUserId ?? null],
+    );
+    await recordAudit(manager, {
+      ...actor,
+      action: 'create',
+      entityType: 'settings',
+      entityId: 'thresholds',
+      outcome: 'success',
+      detail: { setting: 'thresholds', thresholdSetId: row.id, effectiveFrom: row.effective_from.toISOString(), changed, before, after, note: request.note ?? null },
+    });
+    return { set: summaryOf({ ...row, created_by_name: actor.actorName ?? null }), overview: await thresholdOverview(manager, now) };
+  });
 }

@@ -146,7 +146,8 @@ export const thresholdCitations: Readonly<Record<ThresholdKey, string>> = Object
   pdPaMaxPlausible: 'common practice',
 });
 
-const thresholdLabels: Record<ThresholdKey, [label: string, unit: string]> = {
+/** Each setting's label and unit, as forms and error messages name it. */
+export const thresholdLabels: Readonly<Record<ThresholdKey, [label: string, unit: string]>> = {
   ffr: ['FFR cut-off', '(ratio)'],
   restingPdPa: ['Resting whole-cycle Pd/Pa cut-off', '(ratio)'],
   nhprWholeCycle: ['Whole-cycle resting ratio cut-off', '(ratio)'],

@@ -26,6 +26,10 @@ export class ReportVersion {
   @Column('jsonb') analysis!: unknown;
   @Column('jsonb') thresholds!: unknown;
   @Column('text', { name: 'template_version' }) templateVersion!: string;
+  /** Which thresholds judged it: those in force at signing, or for an addendum the original's or the current ones. Null before this was recorded. */
+  @Column('text', { name: 'thresholds_basis', nullable: true }) thresholdsBasis!: 'in-force' | 'original' | 'current' | null;
+  /** The threshold set those values came from; null for the published defaults. */
+  @Column('integer', { name: 'threshold_set_id', nullable: true }) thresholdSetId!: number | null;
   @Column('bytea') pdf!: Buffer;
   @Column('char', { name: 'pdf_sha256', length: 64 }) pdfSha256!: string;
   @Column('char', { name: 'content_sha256', length: 64 }) contentSha256!: string;

@@ -1,7 +1,8 @@
 import { useState } from 'react';
 import { StyleSheet, TextInput, View } from 'react-native';
 import { Link, useLocalSearchParams } from 'expo-router';
-import { useReportAction, useReportPreview } from '../../../../components/data/report-query';
+import { useReportAction, useReportPreview, type ThresholdsChoice } from '../../../../components/data/report-query';
+import { RadioChips } from '../../../../components/ui/radio-chips';
 import { ApiError } from '../../../../components/data/api';
 import { SectionCard } from '../../../../components/study/section-card';
 import { Button } from '../../../../components/ui/button';
@@ -16,7 +17,8 @@ import { studyStateLabel, type StudyState } from '../../../../shared/study/vocab
 /** Report: the preview as it would be signed, what is missing, the hand-off and the signature. */
 export default function ReportSection() {
   const { id } = useLocalSearchParams<{ id: string }>();
-  const preview = useReportPreview(id);
+  const [thresholdsChoice, setThresholdsChoice] = useState<ThresholdsChoice>('original');
+  const preview = useReportPreview(id, thresholdsChoice);
   const act = useReportAction(id);
   const [reason, setReason] = useState('');
   if (preview.isPending) return <LoadingState label="Building the report preview…" testID="report-loading" />;
@@ -49,6 +51,28 @@ export default function ReportSection() {
             ))}
           </View>
         )}
+        {p.state === 'amending' && p.thresholds?.choice && p.thresholds.choice.differences.length > 0 ? (
+          <View style={styles.choice} testID="report-thresholds-choice">
+            <Text weight="semibold" nativeID="report-thresholds-label">
+              Thresholds for this addendum
+            </Text>
+            <Text variant="caption" tone="muted">
+              The lab's thresholds have changed since version {p.thresholds.amendedVersion ?? 1} was signed:{' '}
+              {p.thresholds.choice.differences.map((d) => `${d.label} ${d.original} then, ${d.current} now`).join('; ')}. The addendum keeps the original's unless you choose those in force now; your
+              choice is recorded.
+            </Text>
+            <RadioChips
+              testID="report-thresholds"
+              labelledBy="report-thresholds-label"
+              options={[
+                { value: 'original' as ThresholdsChoice, label: `Keep version ${p.thresholds.amendedVersion ?? 1}'s` },
+                { value: 'current' as ThresholdsChoice, label: 'Use those in force now' },
+              ]}
+              value={thresholdsChoice}
+              onChange={setThresholdsChoice}
+            />
+          </View>
+        ) : null}
         {actions.some(needsReason) ? (
           <TextInput
             testID="report-reason"
@@ -70,7 +94,9 @@ export default function ReportSection() {
                 kind={a === 'sign' || a === 'sign-addendum' ? 'primary' : 'secondary'}
                 disabled={act.isPending || blocked(action)}
                 accessibilityLabel={blocked(action) ? `${transitions[action].label}: not possible until the missing items are entered` : undefined}
-                onPress={() => act.mutate({ action, version: p.studyVersion, reason: reason.trim() || undefined })}
+                onPress={() =>
+                  act.mutate({ action, version: p.studyVersion, reason: reason.trim() || undefined, ...(action === 'sign-addendum' ? { thresholds: thresholdsChoice } : {}) })
+                }
               />
             );
           })}
@@ -113,5 +139,6 @@ export default function ReportSection() {
 const styles = StyleSheet.create({
   missing: { gap: space.xs, backgroundColor: color.abnormalSoft, borderRadius: radius.md, padding: space.md },
   actions: { flexDirection: 'row', flexWrap: 'wrap', gap: space.sm },
+  choice: { gap: space.xs, backgroundColor: color.accentSoft, borderRadius: radius.md, padding: space.md },
   reason: { borderWidth: 1, borderColor: color.inkFaint, borderRadius: radius.md, padding: space.sm, fontFamily: font.regular, fontSize: type.body.fontSize },
 });

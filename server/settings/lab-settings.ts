@@ -1,0 +1,154 @@
+import type { DataSource, EntityManager } from 'typeorm';
+import type { LabSettings, LabSettingsForm, LabSettingsView } from '../../shared/settings/lab-settings';
+import { recordAudit, type AuditEntry } from '../audit/audit';
+import { loadConfig } from '../config';
+import { HttpError, NotFoundError } from '../http/problem';
+import { REPORT_TEMPLATE_VERSION } from '../report/template-version';
+import { isShippedTemplateVersion } from '../report/template-versions';
+
+export type { LabSettings } from '../../shared/settings/lab-settings';
+
+/** What applies where the lab has stored nothing: the server's configuration. */
+export interface ConfiguredDefaults {
+  ehrBaseUrl: string;
+  mailFrom: string;
+}
+
+let fromEnvironment: ConfiguredDefaults | undefined;
+const configured = (given?: ConfiguredDefaults): ConfiguredDefaults => {
+  if (given) return given;
+  if (!fromEnvironment) {
+    const c = loadConfig();
+    fromEnvironment = { ehrBaseUrl: c.ehr.fhirBaseUrl, mailFrom: c.mail.from };
+  }
+  return fromEnvironment;
+};
+
+/** The configuration's values, for `labSettings(db, defaultsFrom(config))`. */
+export const defaultsFrom = (config: { ehr: { fhirBaseUrl: string }; mail: { from: string } }): ConfiguredDefaults => ({ ehrBaseUrl: config.ehr.fhirBaseUrl, mailFrom: config.mail.from });
+
+interface Row {
+  time_zone: string;
+  signature_target_hours: string;
+  ehr_base_url: string | null;
+  mail_from: string | null;
+  template_version: string;
+  version: number;
+  updated_at: Date | null;
+  updated_by_name: string | null;
+}
+
+const managerOf = (db: DataSource | EntityManager): EntityManager => ('manager' in db ? db.manager : db);
+
+async function readRow(db: DataSource | EntityManager, lock = false): Promise<Row> {
+  const [row] = await managerOf(db).query(
+    `SELECT l.time_zone, l.signature_target_hours::text AS signature_target_hours, l.ehr_base_url, l.mail_from, l.template_version, l.version, l.updated_at,
+            u.display_name AS updated_by_name
+     FROM lab_settings l LEFT JOIN app_user u ON u.id = l.updated_by WHERE l.id = 1${lock ? ' FOR UPDATE OF l' : ''}`,
+  );
+  // The migration writes the row; a database restored without it still works on the defaults.
+  return row ?? { time_zone: 'UTC', signature_target_hours: '24', ehr_base_url: null, mail_from: null, template_version: REPORT_TEMPLATE_VERSION, version: 1, updated_at: null, updated_by_name: null };
+}
+
+const effectiveOf = (row: Row, defaults: ConfiguredDefaults): LabSettings => ({
+  timeZone: row.time_zone,
+  signatureTargetHours: Number(row.signature_target_hours),
+  ehrBaseUrl: row.ehr_base_url ?? defaults.ehrBaseUrl,
+  mailFrom: row.mail_from ?? defaults.mailFrom,
+  templateVersion: row.template_version,
+});
+
+/**
+ * The lab's settings as they apply now: time zone, signature target, EHR endpoint and mail sender
+ * (the stored ones, else the server's configuration), and the report template version new signatures use.
+ */
+export async function labSettings(db: DataSource | EntityManager, defaults?: ConfiguredDefaults): Promise<LabSettings> {
+  return effectiveOf(await readRow(db), configured(defaults));
+}
+
+/** The stored values beside what applies, for the admin screen. */
+export async function labSettingsView(db: DataSource | EntityManager, defaults?: ConfiguredDefaults): Promise<LabSettingsView> {
+  const row = await readRow(db);
+  const d = configured(defaults);
+  return {
+    stored: {
+      timeZone: row.time_zone,
+      signatureTargetHours: Number(row.signature_target_hours),
+      ehrBaseUrl: row.ehr_base_url,
+      mailFrom: row.mail_from,
+      templateVersion: row.template_version,
+    },
+    effective: effectiveOf(row, d),
+    configured: d,
+    updatedAt: row.updated_at?.toISOString() ?? null,
+    updatedBy: row.updated_by_name,
+    version: row.version,
+  };
+}
+
+export class StaleSettingsError extends HttpError {
+  constructor(current: LabSettingsView) {
+    super(409, 'stale-settings', 'The settings have changed since you opened them', `Someone saved version ${current.version} of the settings meanwhile. Review them and save again.`, undefined, { current });
+  }
+}
+
+type Actor = Pick<AuditEntry, 'actorUserId' | 'actorName' | 'actorRole' | 'clientAddress'>;
+
+/** What changed, as `{ field: { before, after } }`; unchanged fields are left out. */
+function changes<T extends Record<string, unknown>>(before: T, after: T): Record<string, { before: unknown; after: unknown }> {
+  const out: Record<string, { before: unknown; after: unknown }> = {};
+  for (const k of Object.keys(after)) if (before[k] !== after[k]) out[k] = { before: before[k], after: after[k] };
+  return out;
+}
+
+/** Saves the lab's settings (not the template version, which is activated on its own) with one audit row: before and after. */
+export async function updateLabSettings(dataSource: DataSource, input: { settings: LabSettingsForm; version: number }, actor: Actor, defaults?: ConfiguredDefaults): Promise<LabSettingsView> {
+  return dataSource.transaction(async (manager) => {
+    const row = await readRow(manager, true);
+    if (row.version !== input.version) throw new StaleSettingsError(await labSettingsView(manager, defaults));
+    const before: LabSettingsForm = { timeZone: row.time_zone, signatureTargetHours: Number(row.signature_target_hours), ehrBaseUrl: row.ehr_base_url, mailFrom: row.mail_from };
+    const after: LabSettingsForm = { ...input.settings, ehrBaseUrl: input.settings.ehrBaseUrl || null, mailFrom: input.settings.mailFrom || null };
+    const changed = changes(before, after);
+    if (Object.keys(changed).length === 0) return labSettingsView(manager, defaults);
+    await manager.query(
+      `INSERT INTO lab_settings (id, time_zone, signature_target_hours, ehr_base_url, mail_from, version, updated_at, updated_by)
+       VALUES (1, $1, $2, $3, $4, 2, now(), $5)
+       ON CONFLICT (id) DO UPDATE SET time_zone = $1, signature_target_hours = $2, ehr_base_url = $3, mail_from = $4,
+         version = lab_settings.version + 1, updated_at = now(), updated_by = $5`,
+      [after.timeZone, after.signatureTargetHours, after.ehrBaseUrl, after.mailFrom, actor.actorUserId ?? null],
+    );
+    await recordAudit(manager, {
+      ...actor,
+      action: 'update',
+      entityType: 'settings',
+      entityId: 'lab-settings',
+      outcome: 'success',
+      detail: { setting: 'lab-settings', before, after, changed },
+    });
+    return labSettingsView(manager, defaults);
+  });
+}
+
+/** Makes a shipped template version the one new signatures (and previews) use; signed versions keep theirs. */
+export async function activateTemplateVersion(dataSource: DataSource, version: string, actor: Actor, defaults?: ConfiguredDefaults): Promise<LabSettingsView> {
+  if (!isShippedTemplateVersion(version)) throw new NotFoundError(`No report template version "${version}" is shipped.`);
+  return dataSource.transaction(async (manager) => {
+    const row = await readRow(manager, true);
+    if (row.template_version !== version) {
+      await manager.query(
+        `INSERT INTO lab_settings (id, template_version, version, updated_at, updated_by) VALUES (1, $1, 2, now(), $2)
+         ON CONFLICT (id) DO UPDATE SET template_version = $1, version = lab_settings.version + 1, updated_at = now(), updated_by = $2`,
+        [version, actor.actorUserId ?? null],
+      );
+      await recordAudit(manager, {
+        ...actor,
+        action: 'update',
+        entityType: 'settings',
+        entityId: 'report-template',
+        outcome: 'success',
+        detail: { setting: 'report-template', before: { templateVersion: row.template_version }, after: { templateVersion: version } },
+      });
+    }
+    return labSettingsView(manager, defaults);
+  });
+}
