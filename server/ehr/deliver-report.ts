@@ -1,7 +1,10 @@
 import type { Bundle, OperationOutcome } from 'fhir/r4';
 import type { DeliveryIssue, DeliveryStatus, EhrResourceId } from '../../shared/delivery/status';
 import type { SendResult } from './ehr-client';
-import { BundleBuildError, buildReportBundle, bundleIdentifierOf, type StoredReportVersion } from './build-report-bundle';
+import { BundleBuildError, bundleIdentifierOf } from './build-report-bundle';
+import { bundleOfLoaded, loadReportVersion, type Query } from './load-report-version';
+
+export type { Query };
 
 /**
  * One try at delivering one signed report version to the EHR, and its record in `report_delivery`.
@@ -15,9 +18,6 @@ import { BundleBuildError, buildReportBundle, bundleIdentifierOf, type StoredRep
  *   with its backoff — until the time limit after the first try, then `given-up`.
  * - A delivered, rejected or given-up delivery is left alone: a second job for it does nothing.
  */
-
-/** Rows of a query (pg's `rows`): the task runs on the job queue's connection, routes on TypeORM's. */
-export type Query = (sql: string, params?: unknown[]) => Promise<Record<string, unknown>[]>;
 
 /**
  * A `Query` over TypeORM: its `query()` answers an UPDATE or DELETE with `[rows, affected]` rather
@@ -122,36 +122,13 @@ export async function deliverReport(deps: DeliverDeps, reportVersionId: string, 
   }
   const firstAttemptAt = claimed[0].first_attempt_at as Date;
 
-  const [row] = await query(
-    `SELECT rv.id, rv.study_id, rv.version_no, rv.status, rv.snapshot, rv.analysis, rv.thresholds, rv.pdf, rv.pdf_sha256,
-            rv.signer_name, rv.signed_at, prev.version_no AS previous_version_no, operator.display_name AS operator_name
-       FROM report_version rv
-       LEFT JOIN report_version prev ON prev.id = rv.supersedes_id
-       LEFT JOIN app_user operator ON operator.id::text = rv.snapshot -> 'details' ->> 'operatorId'
-      WHERE rv.id = $1`,
-    [reportVersionId],
-  );
-  const version: StoredReportVersion = {
-    id: row.id as string,
-    studyId: row.study_id as string,
-    versionNo: row.version_no as number,
-    status: row.status as 'final' | 'amended',
-    snapshot: row.snapshot,
-    analysis: row.analysis,
-    thresholds: row.thresholds,
-    pdf: row.pdf as Buffer,
-    pdfSha256: row.pdf_sha256 as string,
-    signerName: row.signer_name as string,
-    signedAt: row.signed_at as Date,
-  };
+  const loaded = await loadReportVersion(query, reportVersionId);
+  if (!loaded) return { result: 'no-such-version' };
+  const { version } = loaded;
 
   let bundle: Bundle;
   try {
-    bundle = buildReportBundle(version, {
-      previousVersionNo: (row.previous_version_no as number | null) ?? undefined,
-      operatorName: row.operator_name as string | null,
-      identifierSystems: deps.identifierSystems,
-    });
+    bundle = bundleOfLoaded(loaded, deps.identifierSystems);
   } catch (error) {
     if (!(error instanceof BundleBuildError)) throw error;
     await stop(query, reportVersionId, 'rejected', { error: error.message, httpStatus: null, issues: [] });

@@ -12,11 +12,17 @@ import { checkBundle, errorsOf, warmUpValidation, type Issue } from '../ehr/vali
  * it accepts in memory and answers as a FHIR server does: a `transaction-response` Bundle, or an
  * OperationOutcome naming the issues. Conditional creates and updates are applied by identifier, so a
  * resend updates rather than duplicates; a Bundle whose identifier it has already accepted, with the
- * same content, is answered from what it stored. It can be told to fail: answer 503, hang, or drop
- * the connection.
+ * same content, is answered from what it stored. It can be told to fail: answer 503, hang, drop
+ * the connection, or store a transaction and never answer.
  */
 
-export type EhrFault = 'none' | 'unavailable' | 'hang' | 'drop';
+/**
+ * `unavailable` answers 503; `hang` holds the request open without reading it; `drop` closes the
+ * connection; `hold-response` processes and stores the transaction as usual but never answers (the
+ * EHR committed, and the answer was lost on the way back).
+ */
+export type EhrFault = 'none' | 'unavailable' | 'hang' | 'drop' | 'hold-response';
+const FAULTS: EhrFault[] = ['none', 'unavailable', 'hang', 'drop', 'hold-response'];
 
 /** Scopes a sender needs (SMART backend services style: system/<type>.write). */
 export const EHR_WRITE_SCOPES = ['system/Patient.write', 'system/Encounter.write', 'system/Observation.write', 'system/DiagnosticReport.write'];
@@ -52,6 +58,8 @@ export interface FakeEhr {
   /** Stored resources by type and id (the latest version). */
   resources(type: string): Resource[];
   setFault(fault: EhrFault): void;
+  /** Bundle.identifier (system|value, empty when none) of each request a `hang` or `hold-response` fault held open. */
+  heldRequests(): string[];
   close(): Promise<void>;
 }
 
@@ -121,6 +129,12 @@ function parseConditional(url: string): { type: string; identifier: Identifier }
   return { type, identifier: { system: raw.slice(0, bar), value: raw.slice(bar + 1) } };
 }
 
+/** Bundle.identifier as system|value; empty when the body has none. */
+function bundleIdentifier(body: unknown): string {
+  const id = (body as Bundle | undefined)?.identifier;
+  return id?.system && id.value ? `${id.system}|${id.value}` : '';
+}
+
 const hasIdentifier = (r: Resource, id: Identifier) =>
   ((r as { identifier?: Identifier[] }).identifier ?? []).some((i) => i.system === id.system && i.value === id.value);
 
@@ -144,6 +158,7 @@ export async function startFakeEhr(options: FakeEhrOptions): Promise<FakeEhr> {
   /** Accepted bundles by identifier: content hash and the answer given. */
   const accepted = new Map<string, { hash: string; response: Bundle }>();
   let fault: EhrFault = 'none';
+  const held: string[] = [];
   const sockets = new Set<Socket>();
   httpServer.on('connection', (s) => {
     sockets.add(s);
@@ -153,13 +168,17 @@ export async function startFakeEhr(options: FakeEhrOptions): Promise<FakeEhr> {
   const app = express();
   app.disable('x-powered-by');
 
+  const jsonBody = express.json({ limit: options.bodyLimit ?? '30mb', type: ['application/fhir+json', 'application/json'] });
+
   // Faults first: a server that is down checks nothing.
   const faults = (req: Request, res: Response, next: NextFunction) => {
     if (fault === 'unavailable') {
       res.set('Retry-After', '5');
       sendFhir(res, 503, outcome([{ severity: 'error', code: 'transient', diagnostics: 'The EHR is temporarily unavailable' }]));
     } else if (fault === 'hang') {
-      // Never answer; the connection is closed when the server stops.
+      // Never answer (the connection is closed when the server stops); the body is read only to tell
+      // which bundle is held.
+      jsonBody(req, res, () => held.push(bundleIdentifier(req.body)));
     } else if (fault === 'drop') {
       req.socket.destroy();
     } else next();
@@ -211,14 +230,16 @@ export async function startFakeEhr(options: FakeEhrOptions): Promise<FakeEhr> {
     sendFhir(res, 200, capability);
   });
 
-  const jsonBody = express.json({ limit: options.bodyLimit ?? '30mb', type: ['application/fhir+json', 'application/json'] });
-
   app.post('/fhir', faults, authenticate, jsonBody, (req, res) => {
     const body: unknown = req.body;
     const receivedAt = new Date().toISOString();
     const b = body as Bundle;
-    const identifier = b?.identifier?.system && b.identifier.value ? `${b.identifier.system}|${b.identifier.value}` : '';
+    const identifier = bundleIdentifier(body);
     const record = (entry: Omit<ReceivedBundle, 'identifier' | 'receivedAt' | 'bundle'>) => received.push({ identifier, receivedAt, bundle: body, ...entry });
+    const reply = (status: number, resource: Resource) => {
+      if (fault === 'hold-response') held.push(identifier);
+      else sendFhir(res, status, resource);
+    };
 
     const issues = checkBundle(body, { requireType: ['transaction'] });
     if (!identifier && (body as Resource)?.resourceType === 'Bundle') {
@@ -229,7 +250,7 @@ export async function startFakeEhr(options: FakeEhrOptions): Promise<FakeEhr> {
       // Not FHIR, or against the FHIR rules → 400; valid FHIR with unknown codes or dangling references → 422.
       const status = errors.some((i) => ['structure', 'required', 'invariant', 'not-supported'].includes(i.code)) ? 400 : 422;
       record({ outcome: 'rejected', status, issues });
-      sendFhir(res, status, outcome(issues));
+      reply(status, outcome(issues));
       return;
     }
 
@@ -238,11 +259,11 @@ export async function startFakeEhr(options: FakeEhrOptions): Promise<FakeEhr> {
     if (before) {
       if (before.hash === hash) {
         record({ outcome: 'resend', status: 200, issues, response: before.response });
-        sendFhir(res, 200, before.response);
+        reply(200, before.response);
       } else {
         const conflict = [{ severity: 'error' as const, code: 'conflict' as const, diagnostics: `A different bundle with identifier ${identifier} was already accepted`, expression: ['Bundle.identifier'] }];
         record({ outcome: 'rejected', status: 409, issues: conflict });
-        sendFhir(res, 409, outcome(conflict));
+        reply(409, outcome(conflict));
       }
       return;
     }
@@ -250,12 +271,12 @@ export async function startFakeEhr(options: FakeEhrOptions): Promise<FakeEhr> {
     const result = applyTransaction(b);
     if ('error' in result) {
       record({ outcome: 'rejected', status: result.status, issues: [result.error] });
-      sendFhir(res, result.status, outcome([result.error]));
+      reply(result.status, outcome([result.error]));
       return;
     }
     accepted.set(identifier, { hash, response: result.response });
     record({ outcome: 'accepted', status: 200, issues, response: result.response });
-    sendFhir(res, 200, result.response);
+    reply(200, result.response);
   });
 
   /**
@@ -353,8 +374,8 @@ export async function startFakeEhr(options: FakeEhrOptions): Promise<FakeEhr> {
   });
   app.put('/_admin/fault', express.json(), (req, res) => {
     const next = req.body?.fault;
-    if (!['none', 'unavailable', 'hang', 'drop'].includes(next)) {
-      res.status(400).json({ error: 'fault must be none, unavailable, hang or drop' });
+    if (!FAULTS.includes(next)) {
+      res.status(400).json({ error: `fault must be one of ${FAULTS.join(', ')}` });
       return;
     }
     fault = next;
@@ -378,6 +399,7 @@ export async function startFakeEhr(options: FakeEhrOptions): Promise<FakeEhr> {
     setFault: (f) => {
       fault = f;
     },
+    heldRequests: () => [...held],
     close: () =>
       new Promise<void>((resolve) => {
         for (const s of sockets) s.destroy();
