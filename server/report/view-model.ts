@@ -35,6 +35,8 @@ export type ReportKind = 'lesion' | 'coronary-function';
 export interface ReportStudy extends Pick<StudySections, 'patient' | 'details' | 'setup' | 'vessels' | 'vasoreactivity' | 'findings'> {
   id: string;
   accession: string;
+  /** What coding and delivery need from the signed record (patient class for the EHR's Encounter). */
+  coding?: StudySections['coding'];
 }
 
 export interface ReportSignature {

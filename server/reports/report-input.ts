@@ -11,8 +11,9 @@ import { thresholdsInForce } from '../settings/thresholds';
 
 /** The parts of a study record a report is built from (and that a signed version keeps). */
 export function reportStudyOf(record: StudyRecord): ReportStudy {
-  const { id, accession, patient, details, setup, vessels, vasoreactivity, findings } = record;
-  return { id, accession, patient, details, setup, vessels, vasoreactivity, findings };
+  const { id, accession, patient, details, setup, vessels, vasoreactivity, findings, coding } = record;
+  // The whole record as signed: delivery builds the Encounter from the coding section's patient class.
+  return { id, accession, patient, details, setup, vessels, vasoreactivity, findings, coding };
 }
 
 /**
