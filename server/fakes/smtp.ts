@@ -1,6 +1,7 @@
 import { SMTPServer } from 'smtp-server';
 import express from 'express';
 import type { Server } from 'node:http';
+import type { AddressInfo } from 'node:net';
 
 export interface CaughtMail {
   id: number;
@@ -54,7 +55,8 @@ export async function startFakeSmtp(options: { port: number; httpPort: number; h
     const s = app.listen(options.httpPort, host, () => resolve(s));
   });
   return {
-    port: options.port,
+    /** The port it listens on (the one asked for, or the one the system chose for port 0). */
+    port: (smtp.server.address() as AddressInfo).port,
     listUrl: `http://${host}:${(http.address() as { port: number }).port}/messages`,
     caught,
     setDown(value: boolean) {
