@@ -4,7 +4,11 @@ import { isRole, type Role } from '../../shared/auth/permissions';
 
 /** The identity provider as Isobar sees it: discovered once, then reused. */
 export interface IdentityProvider {
-  authorizationUrl(params: { redirectUri: string; state: string; nonce: string; codeChallenge: string }): Promise<URL>;
+  /**
+   * `reauthenticate` asks the provider to confirm who the user is again, whatever session it holds
+   * (OpenID Connect Core 1.0 §3.1.2.1: `prompt=login` and `max_age=0`).
+   */
+  authorizationUrl(params: { redirectUri: string; state: string; nonce: string; codeChallenge: string; reauthenticate?: boolean }): Promise<URL>;
   exchange(callbackUrl: URL, expected: { state: string; nonce: string; codeVerifier: string }): Promise<{ claims: Record<string, unknown>; idToken?: string }>;
   /** Where to send the browser to end the provider's session too, when the provider supports it. */
   endSessionUrl(params: { idToken?: string; postLogoutRedirectUri: string }): Promise<URL | null>;
@@ -29,7 +33,7 @@ export function identityProvider(config: Config['oidc']): IdentityProvider {
   };
   return {
     issuer: config.issuer,
-    async authorizationUrl({ redirectUri, state, nonce, codeChallenge }) {
+    async authorizationUrl({ redirectUri, state, nonce, codeChallenge, reauthenticate }) {
       return oidc.buildAuthorizationUrl(await configuration(), {
         redirect_uri: redirectUri,
         scope: config.scope,
@@ -37,6 +41,7 @@ export function identityProvider(config: Config['oidc']): IdentityProvider {
         nonce,
         code_challenge: codeChallenge,
         code_challenge_method: 'S256',
+        ...(reauthenticate ? { prompt: 'login', max_age: '0' } : {}),
       });
     },
     async exchange(callbackUrl, expected) {
@@ -57,6 +62,15 @@ export function identityProvider(config: Config['oidc']): IdentityProvider {
       });
     },
   };
+}
+
+/**
+ * When the provider last authenticated the user (ms), from the ID token's `auth_time` (seconds since
+ * the epoch, OpenID Connect Core 1.0 §2), or null when the token does not say.
+ */
+export function authTimeOf(claims: Record<string, unknown>): number | null {
+  const t = claims.auth_time;
+  return typeof t === 'number' && Number.isFinite(t) && t > 0 ? t * 1000 : null;
 }
 
 export const pkce = {

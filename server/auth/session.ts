@@ -16,7 +16,13 @@ export interface SessionAuth {
   role: Role | null;
   /** Kept to end the session at the provider on sign-out. */
   idToken?: string;
+  /** When this session began (ms): the absolute session limit counts from here. */
   signedInAt: number;
+  /**
+   * When the identity provider last confirmed who the user is (ms, the ID token's `auth_time`):
+   * signing asks for a recent one. Sessions from before this field fall back to `signedInAt`.
+   */
+  authenticatedAt?: number;
 }
 
 /** An authorization request in flight (state, nonce and PKCE verifier bind the callback to it). */
@@ -26,6 +32,8 @@ export interface PendingSignIn {
   codeVerifier: string;
   returnTo: string | null;
   startedAt: number;
+  /** A renewed confirmation of who the user is (for signing): the provider must ask again. */
+  reauth?: boolean;
 }
 
 declare module 'express-session' {

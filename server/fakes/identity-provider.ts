@@ -23,6 +23,12 @@ export interface FakeIdpOptions {
    * one resource server, e.g. Isobar's client for the EHR's FHIR endpoint.
    */
   serviceClients?: ServiceClient[];
+  /**
+   * For tests of the client only: behave like a provider that ignores a request to confirm the user
+   * again (`prompt=login`, `max_age=0`) and answers at once from its existing session, reporting an
+   * `auth_time` this many seconds ago. Unset (the default), such a request shows the sign-in form again.
+   */
+  staleReauthSeconds?: number;
 }
 
 export interface ServiceClient {
@@ -96,6 +102,8 @@ export async function startFakeIdp(options: FakeIdpOptions): Promise<FakeIdp> {
         grant_types: ['authorization_code'],
         response_types: ['code'],
         token_endpoint_auth_method: 'client_secret_basic',
+        // Every ID token says when the user was last authenticated: Isobar asks for a recent one to sign.
+        require_auth_time: true,
       },
       ...services.map((s) => ({
         client_id: s.clientId,
@@ -164,6 +172,12 @@ export async function startFakeIdp(options: FakeIdpOptions): Promise<FakeIdp> {
   app.get('/interaction/:uid', async (req, res, next) => {
     try {
       const details = await provider.interactionDetails(req, res);
+      if (details.prompt.name === 'login' && options.staleReauthSeconds !== undefined && details.session?.accountId) {
+        const ts = Math.floor(Date.now() / 1000) - options.staleReauthSeconds;
+        await provider.interactionFinished(req, res, { login: { accountId: details.session.accountId, ts } }, { mergeWithLastSubmission: false });
+        return;
+      }
+      // A new sign-in, or a request to confirm the user again (prompt=login, max_age): the form, always.
       if (details.prompt.name === 'login') {
         res.type('html').send(signInPage(details.uid));
         return;

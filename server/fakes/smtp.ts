@@ -55,7 +55,7 @@ export async function startFakeSmtp(options: { port: number; httpPort: number; h
     const s = app.listen(options.httpPort, host, () => resolve(s));
   });
   return {
-    /** The port it listens on (the one asked for, or the one the system chose for 0). */
+    /** The port it listens on (the one asked for, or the one the system chose for port 0). */
     port: (smtp.server.address() as AddressInfo).port,
     listUrl: `http://${host}:${(http.address() as { port: number }).port}/messages`,
     caught,

@@ -1,4 +1,5 @@
 import { createHash } from 'node:crypto';
+import diagnosticsChannel from 'node:diagnostics_channel';
 import { readFileSync } from 'node:fs';
 import { createRequire } from 'node:module';
 import pdfmakeDefault from 'pdfmake';
@@ -92,16 +93,80 @@ const fontFiles = {
   bolditalics: '700Bold_Italic/PublicSans_700Bold_Italic.ttf',
 } as const;
 
+/**
+ * The fonts are parsed once per process and shared by every document. pdfmake hands pdfkit the bytes
+ * of each font, and pdfkit parses them with fontkit for every new document: its tables, then the
+ * shaping (kerning, ligatures) of every word, which is most of the time a report takes. So what
+ * pdfmake holds for each style is a short token instead of the TTF bytes, and a font format
+ * registered with fontkit (`registerFormat`, its extension point) answers the token with the one
+ * parsed font. Each document still embeds its own subset of the glyphs it uses.
+ */
+interface FontkitFont {
+  layout(text: string, features?: unknown, ...rest: unknown[]): GlyphRun;
+}
+interface GlyphRun {
+  glyphs: unknown[];
+  positions: Array<{ xAdvance: number; yAdvance: number; xOffset: number; yOffset: number }>;
+}
+interface Fontkit {
+  create(buffer: Uint8Array): FontkitFont;
+  registerFormat(format: { probe(buffer: Uint8Array): boolean; new (stream: { buffer: Uint8Array }): unknown }): void;
+}
+
+const fontToken = (style: string) => Buffer.from(`isobar-shared-font:${style}`, 'latin1');
+/** Words shaped per font, kept across documents; cleared when it grows past this many. */
+const LAYOUT_CACHE_LIMIT = 50_000;
+
+/**
+ * A parsed font whose shaping results are remembered across documents. pdfkit scales the positions of
+ * a run it receives in place, so each caller gets its own copy of the positions.
+ */
+function withSharedLayouts(font: FontkitFont): FontkitFont {
+  const layout = font.layout.bind(font);
+  const runs = new Map<string, GlyphRun>();
+  font.layout = (text: string, features?: unknown, ...rest: unknown[]) => {
+    if (features !== undefined || rest.length) return layout(text, features, ...rest);
+    let run = runs.get(text);
+    if (!run) {
+      if (runs.size >= LAYOUT_CACHE_LIMIT) runs.clear();
+      run = layout(text);
+      runs.set(text, run);
+    }
+    const copy: GlyphRun = Object.create(Object.getPrototypeOf(run));
+    Object.assign(copy, run);
+    copy.positions = run.positions.map(({ xAdvance, yAdvance, xOffset, yOffset }) => ({ xAdvance, yAdvance, xOffset, yOffset }));
+    return copy;
+  };
+  return font;
+}
+
 let ready = false;
 function setUp(): void {
   if (ready) return;
   const require = createRequire(import.meta.url);
+  // The fontkit that pdfkit itself loads (pdfmake → pdfkit → fontkit), so the format reaches it.
+  const fontkit = createRequire(require.resolve('pdfkit'))('fontkit') as Fontkit;
+  const shared = new Map<string, FontkitFont>();
   const family: Record<string, string> = {};
   for (const [style, file] of Object.entries(fontFiles)) {
+    const token = fontToken(style);
+    shared.set(token.toString('latin1'), withSharedLayouts(fontkit.create(readFileSync(require.resolve(`@expo-google-fonts/public-sans/${file}`)))));
     const name = `fonts/${file.split('/')[1]}`;
-    pdfmake.virtualfs.writeFileSync(name, readFileSync(require.resolve(`@expo-google-fonts/public-sans/${file}`)));
+    pdfmake.virtualfs.writeFileSync(name, token);
     family[style] = name;
   }
+  const tokenOf = (buffer: Uint8Array) => Buffer.from(buffer.buffer, buffer.byteOffset, buffer.byteLength).toString('latin1');
+  fontkit.registerFormat(
+    class SharedFont {
+      static probe(buffer: Uint8Array): boolean {
+        return buffer.byteLength < 64 && shared.has(tokenOf(buffer));
+      }
+      constructor(stream: { buffer: Uint8Array }) {
+        // A constructor may answer with another object: here the font parsed at start.
+        return shared.get(tokenOf(stream.buffer))!;
+      }
+    },
+  );
   pdfmake.setFonts({ [PDF_FONT]: family });
   pdfmake.setTableLayouts(tableLayouts);
   // Everything the report needs is in memory: no URL and no local file may be read while rendering.
@@ -338,11 +403,27 @@ export async function warmUpPdf(): Promise<void> {
   await pdfmake.createPdf({ content: [{ text: 'Isobar 0123456789 Pd/Pa µg ≤ ≥ –', bold: true }, 'Isobar'], defaultStyle: { font: PDF_FONT } }).getBuffer();
 }
 
+/**
+ * Each rendered report publishes `{ durationMs, cpuMs, bytes }` here (Node's diagnostics_channel: free
+ * when nobody listens), so a benchmark or a metrics exporter can time the PDF step inside a signature.
+ * `cpuMs` is the process's CPU time meanwhile: the render's own when nothing else runs beside it.
+ */
+export const pdfRenderedChannel = diagnosticsChannel.channel('isobar:report-pdf-rendered');
+
+const cpuMsSince = (start: NodeJS.CpuUsage) => {
+  const d = process.cpuUsage(start);
+  return (d.user + d.system) / 1000;
+};
+
 /** Renders the report as PDF bytes. */
 export async function renderReportPdf(view: ReportView, options: PdfOptions = {}): Promise<Buffer> {
+  const began = performance.now();
+  const cpu = pdfRenderedChannel.hasSubscribers ? process.cpuUsage() : null;
   setUp();
   const created = new Date(options.createdAt ?? view.signature?.signedAtIso ?? 0);
   if (Number.isNaN(created.getTime())) throw new TypeError('renderReportPdf: createdAt is not a valid time.');
   const doc = reportDocument(view, created);
-  return pdfmake.createPdf(doc).getBuffer();
+  const pdf = await pdfmake.createPdf(doc).getBuffer();
+  if (cpu && pdfRenderedChannel.hasSubscribers) pdfRenderedChannel.publish({ durationMs: performance.now() - began, cpuMs: cpuMsSince(cpu), bytes: pdf.length });
+  return pdf;
 }

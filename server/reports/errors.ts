@@ -28,9 +28,14 @@ export class TransitionRefusedError extends HttpError {
   }
 }
 
-/** The physician's sign-in is too old to sign: sign in again at the identity provider, then sign. */
+/**
+ * The physician's sign-in is too old to sign: confirm who they are at the identity provider, then sign.
+ * `reauthenticateUrl` starts that confirmation and comes back to `returnTo`.
+ */
 export class ReauthenticationRequiredError extends HttpError {
-  constructor(minutes: number) {
-    super(401, 'reauthentication-required', 'Confirm who you are to sign', `Signing needs a sign-in from the last ${minutes} minutes. Sign in again, then sign.`);
+  constructor(minutes: number, returnTo: string) {
+    super(401, 'reauthentication-required', 'Confirm who you are to sign', `Signing needs a sign-in from the last ${minutes} minutes. Sign in again, then sign.`, undefined, {
+      reauthenticateUrl: `/api/auth/sign-in?reauth=1&returnTo=${encodeURIComponent(returnTo)}`,
+    });
   }
 }

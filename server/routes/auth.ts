@@ -4,7 +4,7 @@ import type { DataSource } from 'typeorm';
 import type { Config } from '../config';
 import { homeOf, permissionsOf } from '../../shared/auth/permissions';
 import { auditContext, recordAudit } from '../audit/audit';
-import { mapRole, pkce, type IdentityProvider } from '../auth/oidc';
+import { authTimeOf, mapRole, pkce, type IdentityProvider } from '../auth/oidc';
 import { destroySession, regenerateSession, saveSession, sessionCookieName } from '../auth/session';
 import type { ApiRoute } from '../http/routes';
 import { HttpError } from '../http/problem';
@@ -17,6 +17,11 @@ export function safeReturnPath(value: unknown): string | null {
 }
 
 const pendingTtlMs = 10 * 60_000;
+/**
+ * A renewed confirmation counts when the provider authenticated the user no earlier than the request
+ * for it, give or take this much: `auth_time` is in whole seconds and the two clocks may differ a little.
+ */
+export const reauthClockSkewMs = 30_000;
 
 export function authRoutes(deps: { config: Config; dataSource: DataSource; idp: IdentityProvider }): ApiRoute[] {
   const { config, dataSource, idp } = deps;
@@ -41,17 +46,19 @@ export function authRoutes(deps: { config: Config; dataSource: DataSource; idp: 
       method: 'get',
       path: '/auth/sign-in',
       access: 'public',
-      summary: 'Start the authorization code flow with PKCE at the identity provider',
+      summary: 'Start the authorization code flow with PKCE at the identity provider; `reauth=1` makes the provider ask again (to sign)',
       handlers: [
         limiter,
         async (req, res) => {
           const codeVerifier = pkce.verifier();
+          const reauth = req.query.reauth === '1' || req.query.reauth === 'true';
           const pending = {
             state: pkce.state(),
             nonce: pkce.nonce(),
             codeVerifier,
             returnTo: safeReturnPath(req.query.returnTo),
             startedAt: Date.now(),
+            ...(reauth ? { reauth: true } : {}),
           };
           let url: URL;
           try {
@@ -60,6 +67,7 @@ export function authRoutes(deps: { config: Config; dataSource: DataSource; idp: 
               state: pending.state,
               nonce: pending.nonce,
               codeChallenge: await pkce.challenge(codeVerifier),
+              reauthenticate: reauth,
             });
           } catch {
             res.redirect(303, '/sign-in?error=provider-unavailable');
@@ -102,6 +110,20 @@ export function authRoutes(deps: { config: Config; dataSource: DataSource; idp: 
             return;
           }
           const subject = String(claims.sub);
+          const authTime = authTimeOf(claims);
+          const previous = req.session.auth;
+          if (pending.reauth) {
+            // A renewed confirmation must be one the provider has just made, for the same person.
+            const fresh = authTime !== null && authTime >= pending.startedAt - reauthClockSkewMs;
+            const samePerson = !previous || previous.subject === subject;
+            if (!fresh || !samePerson) {
+              delete req.session.pending;
+              await saveSession(req.session);
+              await failSignIn(req, fresh ? 'reauthentication-other-user' : 'reauthentication-not-fresh');
+              res.redirect(303, previous ? (pending.returnTo ?? '/') : '/sign-in?error=failed');
+              return;
+            }
+          }
           const role = mapRole(claims[config.oidc.roleClaim], config.oidc.roleMap);
           const email = typeof claims.email === 'string' ? claims.email : '';
           const displayName = typeof claims.name === 'string' && claims.name ? claims.name : email || subject;
@@ -116,9 +138,28 @@ export function authRoutes(deps: { config: Config; dataSource: DataSource; idp: 
           );
           // A new session id at sign-in: an id planted before sign-in is worth nothing after it.
           await regenerateSession(req.session);
-          req.session.auth = { userId: user.id, subject, displayName, email, role, idToken, signedInAt: Date.now() };
+          const now = Date.now();
+          // A renewed confirmation keeps the session's start (its absolute limit) and renews who-it-is.
+          const continuing = pending.reauth && previous?.subject === subject;
+          req.session.auth = {
+            userId: user.id,
+            subject,
+            displayName,
+            email,
+            role,
+            idToken,
+            signedInAt: continuing ? previous.signedInAt : now,
+            authenticatedAt: Math.min(authTime ?? now, now),
+          };
           await saveSession(req.session);
-          await recordAudit(dataSource, { ...auditContext(req), action: 'sign-in', entityType: 'user', entityId: user.id, outcome: 'success' });
+          await recordAudit(dataSource, {
+            ...auditContext(req),
+            action: 'sign-in',
+            entityType: 'user',
+            entityId: user.id,
+            outcome: 'success',
+            ...(pending.reauth ? { detail: { reauthentication: true } } : {}),
+          });
           res.redirect(303, pending.returnTo ?? (role ? homeOf[role] : '/'));
         },
       ],

@@ -11,6 +11,7 @@ import { changeStudyState } from '../reports/change-study-state';
 import { ReauthenticationRequiredError } from '../reports/errors';
 import { previewStudyReport } from '../reports/preview-report';
 import { signStudy } from '../reports/sign-study';
+import { SIGNING_SLOTS, slots } from '../reports/signing-slots';
 import { verifyReport } from '../reports/verify-report';
 
 const uuidPattern = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
@@ -34,6 +35,7 @@ const verifySchema = z.strictObject({ fingerprint: z.string({ error: 'fingerprin
 
 /** Report preview, hand-off, signing, addenda, signed PDFs and verification. */
 export function reportRoutes({ config, dataSource }: { config: Config; dataSource: DataSource }): ApiRoute[] {
+  const signing = slots(SIGNING_SLOTS);
   return [
     {
       method: 'get',
@@ -76,16 +78,20 @@ export function reportRoutes({ config, dataSource }: { config: Config; dataSourc
           const body = parseOrThrow(signSchema, req.body);
           const auth = req.session.auth!;
           // An electronic signature confirms who signs: a sign-in older than the limit must be renewed.
-          if (Date.now() - auth.signedInAt > config.signReauthMinutes * 60_000) throw new ReauthenticationRequiredError(config.signReauthMinutes);
-          const version = await signStudy(dataSource, {
-            studyId: id,
-            studyVersion: body.version,
-            reason: body.reason,
-            thresholds: body.thresholds,
-            signer: { userId: auth.userId, displayName: auth.displayName, role: auth.role },
-            hospital: config.hospital,
-            audit: auditContext(req),
-          });
+          if (Date.now() - (auth.authenticatedAt ?? auth.signedInAt) > config.signReauthMinutes * 60_000) {
+            throw new ReauthenticationRequiredError(config.signReauthMinutes, `/studies/${id}/report`);
+          }
+          const version = await signing.run(() =>
+            signStudy(dataSource, {
+              studyId: id,
+              studyVersion: body.version,
+              reason: body.reason,
+              thresholds: body.thresholds,
+              signer: { userId: auth.userId, displayName: auth.displayName, role: auth.role },
+              hospital: config.hospital,
+              audit: auditContext(req),
+            }),
+          );
           res.status(201).json(version);
         },
       ],

@@ -3,7 +3,7 @@ import { createServer, type Server } from 'node:http';
 import type { DataSource } from 'typeorm';
 import { createApp } from '../../server/app';
 import type { Config } from '../../server/config';
-import { startFakeIdp, type FakeIdp } from '../../server/fakes/identity-provider';
+import { startFakeIdp, type FakeIdp, type FakeIdpOptions } from '../../server/fakes/identity-provider';
 import { demoUsers } from '../../server/demo/scenario';
 import { testConfig } from './app';
 
@@ -15,12 +15,12 @@ export interface TestStack {
 }
 
 /** The real app on a free loopback port, signing in through the real fake identity provider. */
-export async function startStack(dataSource: DataSource, overrides: Partial<Config> = {}): Promise<TestStack> {
+export async function startStack(dataSource: DataSource, overrides: Partial<Config> = {}, idpOptions: Partial<FakeIdpOptions> = {}): Promise<TestStack> {
   const server: Server = createServer();
   await new Promise<void>((resolve) => server.listen(0, '127.0.0.1', resolve));
   const url = `http://127.0.0.1:${(server.address() as AddressInfo).port}`;
   const base = testConfig();
-  const idp = await startFakeIdp({ port: 0, clientId: base.oidc.clientId, clientSecret: base.oidc.clientSecret, appUrl: url });
+  const idp = await startFakeIdp({ port: 0, clientId: base.oidc.clientId, clientSecret: base.oidc.clientSecret, appUrl: url, ...idpOptions });
   const config: Config = {
     ...base,
     publicUrl: url,
@@ -82,10 +82,15 @@ export interface SignedIn {
  * Walks the authorization code flow as a browser would: app → provider → sign-in form →
  * provider → app callback. Fails the test if the flow does not end back at the app.
  */
-export async function signIn(stack: TestStack, username: string, options: { password?: string; returnTo?: string; jar?: CookieJar } = {}): Promise<SignedIn> {
+export async function signIn(
+  stack: TestStack,
+  username: string,
+  options: { password?: string; returnTo?: string; jar?: CookieJar; reauth?: boolean } = {},
+): Promise<SignedIn> {
   const jar = options.jar ?? new CookieJar();
   const hops: string[] = [];
-  let url = `${stack.url}/api/auth/sign-in${options.returnTo ? `?returnTo=${encodeURIComponent(options.returnTo)}` : ''}`;
+  const query = new URLSearchParams({ ...(options.reauth ? { reauth: '1' } : {}), ...(options.returnTo ? { returnTo: options.returnTo } : {}) }).toString();
+  let url = `${stack.url}/api/auth/sign-in${query ? `?${query}` : ''}`;
   let init: RequestInit = {};
   for (let i = 0; i < 20; i++) {
     hops.push(url);
@@ -113,6 +118,15 @@ export async function signIn(stack: TestStack, username: string, options: { pass
         headers: { 'content-type': 'application/x-www-form-urlencoded' },
         body: new URLSearchParams({ username, password: options.password ?? 'demo' }).toString(),
       };
+      continue;
+    }
+    // A page that posts itself at once (the provider's account switch), as a browser with scripts would.
+    const autoPost = body.match(/<form method="post" action="([^"]+)">([\s\S]*?)<\/form>/);
+    if (response.status === 200 && autoPost && body.includes('document.forms[0].submit()')) {
+      const unescape = (v: string) => v.replace(/&quot;/g, '"').replace(/&#39;/g, "'").replace(/&lt;/g, '<').replace(/&gt;/g, '>').replace(/&amp;/g, '&');
+      const fields = [...autoPost[2].matchAll(/<input type="hidden" name="([^"]+)" value="([^"]*)"\/?>/g)].map((m) => [m[1], unescape(m[2])]);
+      url = new URL(unescape(autoPost[1]), url).href;
+      init = { method: 'POST', headers: { 'content-type': 'application/x-www-form-urlencoded' }, body: new URLSearchParams(fields).toString() };
       continue;
     }
     const text = body.replace(/<style[\s\S]*?<\/style>/g, '').replace(/<[^>]+>/g, ' ').replace(/\s+/g, ' ');

@@ -1,3 +1,4 @@
+import { execFileSync } from 'node:child_process';
 import { readFileSync } from 'node:fs';
 import { createHash } from 'node:crypto';
 import { describe, expect, it } from 'vitest';
@@ -67,6 +68,20 @@ describe('the report PDF', () => {
     expect(pdfInfo(a).CreationDate).toBe('2026-11-30T10:15:00Z');
     const later = await renderReportPdf(viewOf(s, { signature: { ...signature, signedAt: '2026-11-30T10:16:00Z' } }));
     expect(sha256Hex(later)).not.toBe(sha256Hex(a));
+  });
+
+  it('gives the same bytes with its fonts shared by earlier documents as with fonts fresh in a new process', async () => {
+    const s = demoReportStudies()[5];
+    // Other documents first, so the parsed fonts and their remembered word shapes are in use.
+    for (const other of demoReportStudies().slice(0, 5)) await renderReportPdf(viewOf(other, { signature }));
+    const shared = sha256Hex(await renderReportPdf(viewOf(s, { signature })));
+    const script = `
+      import { renderReportPdf, sha256Hex } from './server/report/index.ts';
+      import { demoReportStudies, viewOf } from './tests/unit/report/fixtures.ts';
+      const s = demoReportStudies()[5];
+      process.stdout.write(sha256Hex(await renderReportPdf(viewOf(s, { signature: JSON.parse(process.argv[1]) }))));`;
+    const fresh = execFileSync(process.execPath, ['--import', 'tsx', '--input-type=module', '-e', script, JSON.stringify(signature)], { encoding: 'utf8' });
+    expect(fresh).toBe(shared);
   });
 
   it('a preview says it is not signed', async () => {

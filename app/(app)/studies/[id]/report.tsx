@@ -105,7 +105,8 @@ export default function ReportSection() {
           <Text tone="abnormal" role="alert" testID="report-action-error">
             ▲ {error.message}
             {error.problem.type.endsWith('/reauthentication-required') ? (
-              <Link href={`/api/auth/sign-in?returnTo=${encodeURIComponent(`/studies/${id}/report`)}` as '/'}>
+              // A full page load (target _self): the provider confirms who signs, then brings the physician back here.
+              <Link href={`/api/auth/sign-in?reauth=1&returnTo=${encodeURIComponent(`/studies/${id}/report`)}` as '/'} target="_self">
                 <Text tone="brand"> Sign in again</Text>
               </Link>
             ) : null}

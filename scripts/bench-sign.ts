@@ -1,0 +1,148 @@
+// Benchmark: POST /api/studies/:id/sign through HTTP with a real session, 200 signatures one after
+// another, then 200 more 20 at a time. Prints p50/p95 of the whole request and of the PDF step inside
+// it (timed by the renderer itself, see pdfRenderedChannel), and signatures per second.
+// Run: bash scripts/bench-sign.sh (makes the database and sets DATABASE_URL).
+// Exits 1 when the sequential run misses a target: p95 < 250 ms, whole request ≤ 1.5 × the PDF step.
+// BENCH_SIGN_PROFILE=FILE writes a CPU profile of the sequential run (open it in a browser's devtools).
+import diagnosticsChannel from 'node:diagnostics_channel';
+import { writeFileSync } from 'node:fs';
+import { Session } from 'node:inspector/promises';
+import os from 'node:os';
+import request from 'supertest';
+import { createDataSource } from '../server/db/data-source';
+import { prepareDatabase } from '../server/cli/prepare-database';
+import { demoStudies } from '../server/demo/scenario';
+import { pdfRenderedChannel } from '../server/report/pdf';
+import type { StudyRecord } from '../shared/study/schema';
+import { studyLikeDemo } from '../tests/support/reports';
+import { signIn, startStack, usernameOf } from '../tests/support/stack';
+
+const SEQUENTIAL = Number(process.env.BENCH_SIGN_SEQUENTIAL ?? 200);
+const CONCURRENT = Number(process.env.BENCH_SIGN_CONCURRENT ?? 200);
+const AT_ONCE = 20;
+const WARM_UP = 5;
+const TARGET_P95_MS = 250;
+const TARGET_RATIO = 1.5;
+
+const databaseUrl = process.env.DATABASE_URL;
+if (!databaseUrl || !/\/isobar_bench_sign$/.test(databaseUrl)) {
+  console.error('DATABASE_URL must point at the isobar_bench_sign database: run bash scripts/bench-sign.sh');
+  process.exit(2);
+}
+
+function summary(times: number[]): { p50: number; p95: number; max: number } {
+  const s = [...times].sort((a, b) => a - b);
+  const rank = (p: number) => s[Math.min(s.length - 1, Math.ceil(p * s.length) - 1)];
+  return { p50: rank(0.5), p95: rank(0.95), max: s[s.length - 1] };
+}
+const f = (ms: number) => ms.toFixed(1).padStart(7);
+
+/** Runs `fn` over `items` with at most `limit` at once. */
+async function pool<T>(items: T[], limit: number, fn: (item: T) => Promise<void>): Promise<void> {
+  let next = 0;
+  await Promise.all(Array.from({ length: Math.min(limit, items.length) }, async () => {
+    while (next < items.length) await fn(items[next++]);
+  }));
+}
+
+async function main(): Promise<void> {
+  await prepareDatabase(process.env.MIGRATION_DATABASE_URL!, databaseUrl!);
+  const ds = createDataSource(databaseUrl!, 10);
+  await ds.initialize();
+  // The session is confirmed once; a long benchmark must not run into the signing re-authentication.
+  const stack = await startStack(ds, { signReauthMinutes: 720 });
+  try {
+    const [pg] = await ds.query(`SELECT current_setting('server_version') AS v, current_setting('fsync') AS fsync, current_setting('synchronous_commit') AS sc`);
+    console.log(`Node ${process.version}, ${os.cpus().length} CPUs (${os.cpus()[0]?.model ?? '?'}), load ${os.loadavg()[0].toFixed(2)}; PostgreSQL ${pg.v}, fsync ${pg.fsync}, synchronous_commit ${pg.sc}`);
+    const staff = (await signIn(stack, usernameOf('staff'))).cookie;
+    const physician = (await signIn(stack, usernameOf('physician'))).cookie;
+
+    // The complete demo cases (a lesion study, a multivessel lesion study, a full coronary function
+    // work-up with acetylcholine), in turn.
+    const kinds = demoStudies.filter((d) => d.state === 'signed' || d.state === 'amended');
+    const total = WARM_UP + SEQUENTIAL + CONCURRENT;
+    const began = performance.now();
+    const studies: StudyRecord[] = new Array(total);
+    await pool([...Array(total).keys()], 4, async (i) => {
+      studies[i] = await studyLikeDemo(stack.url, staff, kinds[i % kinds.length]);
+    });
+    console.log(`made ${total} complete studies (${kinds.map((k) => k.accession).join(', ')} in turn) in ${((performance.now() - began) / 1000).toFixed(1)} s`);
+
+    const pdfTimes: number[] = [];
+    const pdfCpu: number[] = [];
+    const onPdf = (message: unknown) => {
+      const m = message as { durationMs: number; cpuMs: number };
+      pdfTimes.push(m.durationMs);
+      pdfCpu.push(m.cpuMs);
+    };
+    diagnosticsChannel.subscribe(pdfRenderedChannel.name, onPdf);
+    const signCpu: number[] = [];
+    const sign = async (study: StudyRecord): Promise<number> => {
+      const t = performance.now();
+      const cpu = process.cpuUsage();
+      const res = await request(stack.url).post(`/api/studies/${study.id}/sign`).set('Cookie', physician).set('Origin', stack.url).send({ version: study.version });
+      const ms = performance.now() - t;
+      const used = process.cpuUsage(cpu);
+      signCpu.push((used.user + used.system) / 1000);
+      if (res.status !== 201) throw new Error(`sign answered ${res.status}: ${JSON.stringify(res.body).slice(0, 300)}`);
+      return ms;
+    };
+
+    for (const s of studies.slice(0, WARM_UP)) await sign(s);
+    const run = async (label: string, batch: StudyRecord[], atOnce: number) => {
+      pdfTimes.length = 0;
+      pdfCpu.length = 0;
+      signCpu.length = 0;
+      const times: number[] = [];
+      const t = performance.now();
+      await pool(batch, atOnce, async (s) => void times.push(await sign(s)));
+      const seconds = (performance.now() - t) / 1000;
+      const whole = summary(times);
+      const pdf = summary(pdfTimes);
+      console.log(`${label.padEnd(30)} ${f(whole.p50)} ${f(whole.p95)} ${f(whole.max)}  | ${f(pdf.p50)} ${f(pdf.p95)} ${f(pdf.max)}  | ${(batch.length / seconds).toFixed(1).padStart(6)}   ${(whole.p50 / pdf.p50).toFixed(2)} / ${(whole.p95 / pdf.p95).toFixed(2)}`);
+      if (atOnce === 1) {
+        // CPU time of this process (client and server; PostgreSQL apart) — less sensitive than the
+        // clock to other programs sharing the machine.
+        const c = summary(signCpu);
+        const p = summary(pdfCpu);
+        console.log(`${'  (CPU time of this process)'.padEnd(30)} ${f(c.p50)} ${f(c.p95)} ${f(c.max)}  | ${f(p.p50)} ${f(p.p95)} ${f(p.max)}  |          ${(c.p50 / p.p50).toFixed(2)} / ${(c.p95 / p.p95).toFixed(2)}`);
+      }
+      return { whole, pdf };
+    };
+    console.log(`\n${WARM_UP} warm-up signatures, then the timed runs (ms); ratio = whole / PDF at p50 / p95`);
+    console.log(`${'run'.padEnd(30)}   whole p50    p95     max  |   PDF p50    p95     max  | signs/s   ratio`);
+    const profileFile = process.env.BENCH_SIGN_PROFILE;
+    const inspector = profileFile ? new Session() : null;
+    if (inspector) {
+      inspector.connect();
+      await inspector.post('Profiler.enable');
+      await inspector.post('Profiler.start');
+    }
+    const seq = await run(`${SEQUENTIAL} one after another`, studies.slice(WARM_UP, WARM_UP + SEQUENTIAL), 1);
+    if (inspector && profileFile) {
+      const { profile } = await inspector.post('Profiler.stop');
+      writeFileSync(profileFile, JSON.stringify(profile));
+      inspector.disconnect();
+      console.log(`  CPU profile of the sequential run: ${profileFile}`);
+    }
+    if (CONCURRENT > 0) await run(`${CONCURRENT}, ${AT_ONCE} at a time`, studies.slice(WARM_UP + SEQUENTIAL), AT_ONCE);
+    diagnosticsChannel.unsubscribe(pdfRenderedChannel.name, onPdf);
+
+    const checks = [
+      { name: `sequential p95 ${seq.whole.p95.toFixed(1)} ms < ${TARGET_P95_MS} ms`, pass: seq.whole.p95 < TARGET_P95_MS },
+      { name: `sequential whole p50 ${seq.whole.p50.toFixed(1)} ms ≤ ${TARGET_RATIO} × PDF p50 ${seq.pdf.p50.toFixed(1)} ms`, pass: seq.whole.p50 <= TARGET_RATIO * seq.pdf.p50 },
+      { name: `sequential whole p95 ${seq.whole.p95.toFixed(1)} ms ≤ ${TARGET_RATIO} × PDF p95 ${seq.pdf.p95.toFixed(1)} ms`, pass: seq.whole.p95 <= TARGET_RATIO * seq.pdf.p95 },
+    ];
+    console.log('');
+    for (const c of checks) console.log(`${c.pass ? 'PASS' : 'FAIL'}  ${c.name}`);
+    if (checks.some((c) => !c.pass)) process.exitCode = 1;
+  } finally {
+    await stack.close();
+    await ds.destroy();
+  }
+}
+
+main().catch((error) => {
+  console.error(error);
+  process.exit(1);
+});
