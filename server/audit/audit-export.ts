@@ -73,6 +73,8 @@ export interface ExportRequest {
   filters: AuditFilters;
   format: AuditExportFormat;
   cursor?: string;
+  /** FHIR: events per Bundle (at most FHIR_EXPORT_PAGE). */
+  count?: number;
   /** FHIR: the URL of this export and how to build the next one from a cursor. */
   selfUrl: string;
   nextUrl: (cursor: string) => string;
@@ -88,7 +90,7 @@ export interface ExportRequest {
  * a database outage still gets a proper error answer.
  */
 export async function streamAuditExport(db: DataSource, res: Response, req: ExportRequest): Promise<void> {
-  const batches = auditRowBatches(db, req.filters, { cursor: req.cursor, batchSize: BATCH, max: req.format === 'fhir' ? FHIR_EXPORT_PAGE : undefined });
+  const batches = auditRowBatches(db, req.filters, { cursor: req.cursor, batchSize: BATCH, max: req.format === 'fhir' ? Math.min(req.count ?? FHIR_EXPORT_PAGE, FHIR_EXPORT_PAGE) : undefined });
   let step = await batches.next();
   const stamp = new Date().toISOString().slice(0, 10);
   if (req.format === 'csv') {

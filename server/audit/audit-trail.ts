@@ -123,7 +123,10 @@ const keySelects = { studies: studySelect, users: userSelect } as const;
 
 async function resolveKeys(db: Db, f: AuditFilters): Promise<Resolved> {
   const resolved: Resolved = {};
+  // A study id alone needs no look-up (and its events outlive the study's row).
+  if (f.study && UUID.test(f.study) && !f.patient) resolved.studies = { ids: [f.study.toLowerCase()] };
   for (const name of ['studies', 'users'] as const) {
+    if (resolved[name]) continue;
     const params: unknown[] = [];
     const sql = keySelects[name](f, (v) => (params.push(v), `$${params.length}`));
     if (!sql) continue;

@@ -18,7 +18,7 @@ export function auditRoutes({ dataSource, config }: { dataSource: DataSource; co
     const filters: AuditFilters = query;
     const path = download ? '/api/audit-trail/export' : '/api/audit-events';
     const url = (cursor?: string) => {
-      const params = new URLSearchParams({ ...(filtersUsed(filters) as Record<string, string>), ...(download ? { format: query.format } : {}), ...(cursor ? { cursor } : {}) });
+      const params = new URLSearchParams({ ...(filtersUsed(filters) as Record<string, string>), ...(download ? { format: query.format } : {}), ...(query._count ? { _count: String(query._count) } : {}), ...(cursor ? { cursor } : {}) });
       return `${config.publicUrl}${path}?${params}`;
     };
     await recordAudit(dataSource, {
@@ -32,6 +32,7 @@ export function auditRoutes({ dataSource, config }: { dataSource: DataSource; co
       filters,
       format: query.format,
       cursor: query.cursor,
+      count: query._count,
       selfUrl: url(query.cursor),
       nextUrl: (cursor) => url(cursor),
       fhir: { patientIdSystem: config.ehr.identifierSystems.patient },

@@ -103,6 +103,8 @@ export type AuditExportFormat = (typeof auditExportFormats)[number];
 export const auditExportQuerySchema = filterFields
   .extend({
     format: z.enum(auditExportFormats, { error: 'format must be csv or fhir.' }).default('csv'),
+    /** FHIR: events per Bundle (FHIR search's `_count`); the Bundle's `next` link continues. */
+    _count: z.coerce.number().int({ error: '_count must be a whole number.' }).min(1, { error: '_count must be at least 1.' }).max(10_000, { error: '_count must be at most 10000.' }).optional(),
     cursor: z.string().max(200, { error: 'The page cursor is not valid.' }).optional(),
   })
   .refine(orderedRange, rangeError);
