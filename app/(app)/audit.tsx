@@ -348,7 +348,7 @@ const exportStyle: CSSProperties = {
 const styles = StyleSheet.create({
   form: { gap: space.md },
   filters: { flexDirection: 'row', flexWrap: 'wrap', gap: space.sm },
-  filter: { gap: space.xxs, flexGrow: 1, flexBasis: 150 },
+  filter: { gap: space.xxs, flexGrow: 1, flexBasis: 150, maxWidth: 360 },
   input: { minHeight: touchTarget, borderWidth: 1, borderColor: color.inkFaint, borderRadius: radius.md, backgroundColor: color.surface, paddingHorizontal: space.md, fontFamily: font.regular, fontSize: type.body.fontSize, color: color.ink },
   inputBad: { borderColor: color.abnormal, borderWidth: 2 },
   buttons: { flexDirection: 'row', flexWrap: 'wrap', gap: space.sm },
