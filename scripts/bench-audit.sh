@@ -1,7 +1,8 @@
 #!/usr/bin/env bash
 # Audit search benchmark: a fresh isobar_audit_bench database on the test cluster, the audit trail of
 # 1,000,000 studies, timed HTTP requests against the real app. Stops the cluster afterwards if this script started it.
-# ISOBAR_BENCH_KEEP=1 keeps the database for a closer look.
+# ISOBAR_BENCH_KEEP=1 keeps the database for a closer look; ISOBAR_BENCH_REUSE=1 times a kept one again
+# without seeding anew (a seed takes about a quarter of an hour on two cores).
 source "$(dirname "$0")/lib.sh"
 cd "$ROOT"
 
@@ -12,7 +13,7 @@ export MIGRATION_DATABASE_URL=postgres://isobar_owner@127.0.0.1:$PG_PORT/isobar_
 export ATTACHMENT_DIR="$DATA_DIR/bench-audit-attachments"
 
 cleanup() {
-  if [[ -z ${ISOBAR_BENCH_KEEP:-} && -n ${PG_BIN:-} ]]; then
+  if [[ -z ${ISOBAR_BENCH_KEEP:-}${ISOBAR_BENCH_REUSE:-} && -n ${PG_BIN:-} ]]; then
     psql_admin "$PG_PORT" "DROP DATABASE IF EXISTS isobar_audit_bench WITH (FORCE)" 2>/dev/null || true
   fi
   stop_cluster
@@ -23,5 +24,5 @@ trap 'exit 130' INT TERM
 ensure_node_modules
 ensure_postgres_installed
 start_cluster postgres-test "$PG_PORT"
-ensure_database "$PG_PORT" isobar_audit_bench fresh
+ensure_database "$PG_PORT" isobar_audit_bench "$([[ -n ${ISOBAR_BENCH_REUSE:-} ]] || echo fresh)"
 node_modules/.bin/tsx scripts/bench-audit.ts "$@"

@@ -14,13 +14,20 @@ type Db = DataSource | EntityManager;
  * Each first page is read from an index (migration AuditSearch1765410000000):
  * - no key filter: `audit_event_at_idx` (recorded_at, id), a date range being a range of it;
  * - by action: `audit_event_action_at_idx` (action, recorded_at, id);
- * - by user or by patient/study: the people or studies are looked up first, then for each one the
- *   newest rows of `audit_event_actor_at_idx` / `audit_event_study_at_idx` are read (a LATERAL
- *   join with the page size as limit) and merged, so a busy user costs a page, not their history.
+ * - by failure or refusal: `audit_event_unsuccessful_at_idx`, a partial index of the rare events;
+ * - by patient or study: the studies are looked up first (patient by MRN or family name, study by
+ *   accession), then their events read from `audit_event_study_at_idx` (a study has a handful);
+ * - by user: the people are looked up first, then for each one the newest rows of
+ *   `audit_event_actor_at_idx` are read (a LATERAL join with the page size as limit) and merged,
+ *   so a busy user costs a page, not their history.
  */
 
-/** A study or user filter matching more than this many keys is applied as a filter on the time index instead. */
-const MAX_DRIVING_KEYS = 200;
+/**
+ * A user filter matching at most this many people reads each one's newest rows (LATERAL); a study
+ * or patient filter matching at most this many studies reads their events through the study index
+ * (a study has a handful). Beyond either, the filter is applied along the time index instead.
+ */
+const MAX_KEYS = { users: 200, studies: 5000 } as const;
 
 const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 const UUID_SQL = `'^[0-9a-fA-F]{8}-[0-9a-fA-F]{4}-[0-9a-fA-F]{4}-[0-9a-fA-F]{4}-[0-9a-fA-F]{12}$'`;
@@ -130,26 +137,28 @@ async function resolveKeys(db: Db, f: AuditFilters): Promise<Resolved> {
     const params: unknown[] = [];
     const sql = keySelects[name](f, (v) => (params.push(v), `$${params.length}`));
     if (!sql) continue;
-    const rows: { id: string }[] = await db.query(`${sql} LIMIT ${MAX_DRIVING_KEYS + 1}`, params);
-    resolved[name] = rows.length > MAX_DRIVING_KEYS ? { many: true } : { ids: rows.map((r) => r.id) };
+    const rows: { id: string }[] = await db.query(`${sql} LIMIT ${MAX_KEYS[name] + 1}`, params);
+    resolved[name] = rows.length > MAX_KEYS[name] ? { many: true } : { ids: rows.map((r) => r.id) };
   }
   return resolved;
 }
 
-/** Columns the trail reads, joined to what they name: `page` is the page of audit rows. */
+/** Columns the trail reads, joined to what they name: `page` holds the ids of the page's rows. */
 const displaySelect = `
   SELECT a.id::text AS id, a.recorded_at, a.recorded_at::text AS at_key, a.actor_user_id, a.actor_name, a.actor_role,
          a.action, a.outcome, a.entity_type, a.entity_id, a.client_address, a.detail, a.study_id,
          s.accession, p.family_name, p.given_name, p.mrn, u.display_name AS user_name
-  FROM page a
+  FROM page JOIN audit_event a ON a.id = page.id
   LEFT JOIN study s ON s.id = a.study_id
   LEFT JOIN patient p ON p.id = s.patient_id
   LEFT JOIN app_user u ON a.entity_type = 'user' AND u.id = CASE WHEN a.entity_id ~ ${UUID_SQL} THEN a.entity_id::uuid END
   ORDER BY a.recorded_at DESC, a.id DESC`;
 
-const pageColumns = `a.id, a.recorded_at, a.actor_user_id, a.actor_name, a.actor_role, a.action, a.outcome, a.entity_type, a.entity_id, a.client_address, a.detail, a.study_id`;
-
-/** The SQL of one page (`limit` rows after `cursor`) under the filters, with the keys already resolved. */
+/**
+ * The SQL of one page (`limit` rows after `cursor`) under the filters, with the keys already resolved.
+ * The page itself selects only (id, recorded_at), so a search through an index whose key holds all it
+ * filters on never visits the table; the page's rows are then read by primary key and joined.
+ */
 export function pageQuery(f: AuditFilters, resolved: Resolved, cursor: AuditCursor | null, limit: number): { sql: string; params: unknown[] } {
   const params: unknown[] = [];
   const p = (value: unknown) => {
@@ -158,35 +167,37 @@ export function pageQuery(f: AuditFilters, resolved: Resolved, cursor: AuditCurs
   };
   const where: string[] = [];
   if (f.action) where.push(`a.action = ${p(f.action)}`);
-  if (f.outcome) where.push(`a.outcome = ${p(f.outcome)}`);
+  // Failures and refusals are rare: the literal lets the planner use the partial index of unsuccessful events.
+  if (f.outcome) where.push(`a.outcome = ${p(f.outcome)}${f.outcome === 'success' ? '' : ` AND a.outcome <> 'success'`}`);
   if (f.from) where.push(DAY.test(f.from) ? `a.recorded_at >= ${p(f.from)}::date` : `a.recorded_at >= ${p(f.from)}::timestamptz`);
   if (f.to) where.push(DAY.test(f.to) ? `a.recorded_at < (${p(f.to)}::date + 1)` : `a.recorded_at < ${p(f.to)}::timestamptz`);
   if (cursor) where.push(`(a.recorded_at, a.id) < (${p(cursor.at)}::timestamptz, ${p(cursor.id)}::bigint)`);
 
-  // Which key drives the search: studies (a patient's events are few), else users, else the time index.
   const columns = { studies: 'study_id', users: 'actor_user_id' } as const;
-  const driver = (['studies', 'users'] as const).find((k) => resolved[k] && 'ids' in resolved[k]!) ?? null;
+  // A few people (and no study filter) drive the search: each one's newest rows, merged.
+  const users = resolved.users;
+  const lateral = !resolved.studies && users && 'ids' in users ? users.ids : null;
   for (const name of ['studies', 'users'] as const) {
     const keys = resolved[name];
-    if (!keys || name === driver) continue;
+    if (!keys || (name === 'users' && lateral)) continue;
     if ('ids' in keys) where.push(`a.${columns[name]} = ANY(${p(keys.ids)}::uuid[])`);
     else where.push(`a.${columns[name]} IN (${keySelects[name](f, p)})`);
   }
   const n = p(limit);
   const order = `ORDER BY a.recorded_at DESC, a.id DESC`;
   let page: string;
-  if (driver) {
-    const keys = p((resolved[driver] as { ids: string[] }).ids);
+  if (lateral) {
+    const keys = p(lateral);
     page = `
-      SELECT a.* FROM unnest(${keys}::uuid[]) AS k(key)
+      SELECT a.id, a.recorded_at FROM unnest(${keys}::uuid[]) AS k(key)
       CROSS JOIN LATERAL (
-        SELECT ${pageColumns} FROM audit_event a
-        WHERE a.${columns[driver]} = k.key${where.length ? ` AND ${where.join(' AND ')}` : ''}
+        SELECT a.id, a.recorded_at FROM audit_event a
+        WHERE a.actor_user_id = k.key${where.length ? ` AND ${where.join(' AND ')}` : ''}
         ${order} LIMIT ${n}
       ) a
       ${order} LIMIT ${n}`;
   } else {
-    page = `SELECT ${pageColumns} FROM audit_event a ${where.length ? `WHERE ${where.join(' AND ')}` : ''} ${order} LIMIT ${n}`;
+    page = `SELECT a.id, a.recorded_at FROM audit_event a ${where.length ? `WHERE ${where.join(' AND ')}` : ''} ${order} LIMIT ${n}`;
   }
   return { sql: `WITH page AS (${page}) ${displaySelect}`, params };
 }
