@@ -1,11 +1,14 @@
 import { useInfiniteQuery } from '@tanstack/react-query';
-import type { AuditActionCode, AuditTrailPage } from '../../shared/audit/trail';
+import type { AuditActionCode, AuditExportFormat, AuditOutcomeCode, AuditTrailPage } from '../../shared/audit/trail';
 import { apiFetch } from './api';
 
 export interface AuditFilters {
   user?: string;
   patient?: string;
+  study?: string;
   action?: AuditActionCode;
+  outcome?: AuditOutcomeCode;
+  /** Instants with their offset (from inclusive, to exclusive), or days. */
   from?: string;
   to?: string;
 }
@@ -15,15 +18,20 @@ export const auditKeys = {
   list: (filters: AuditFilters) => [...auditKeys.all, filters] as const,
 };
 
-/** The audit trail newest first, one keyset page at a time. */
+const paramsOf = (values: Record<string, string | undefined>) => new URLSearchParams(Object.entries(values).filter((e): e is [string, string] => !!e[1]));
+
+/** The audit trail newest first, one keyset page at a time ("Load more" follows the server's cursor). */
 export function useAuditTrail(filters: AuditFilters) {
   return useInfiniteQuery({
     queryKey: auditKeys.list(filters),
-    queryFn: ({ pageParam }) => {
-      const params = new URLSearchParams(Object.entries({ ...filters, before: pageParam, limit: '50' }).filter((e): e is [string, string] => !!e[1]));
-      return apiFetch<AuditTrailPage>(`/audit-trail?${params.toString()}`);
-    },
+    queryFn: ({ pageParam }) => apiFetch<AuditTrailPage>(`/audit-trail?${paramsOf({ ...filters, cursor: pageParam, limit: '50' })}`),
     initialPageParam: undefined as string | undefined,
     getNextPageParam: (last) => last.nextCursor ?? undefined,
+    retry: (count, error) => count < 2 && !('status' in error && (error as { status: number }).status < 500 && (error as { status: number }).status > 0),
   });
+}
+
+/** The address of an export of the filtered trail (a download: the browser saves it). */
+export function auditExportUrl(filters: AuditFilters, format: AuditExportFormat): string {
+  return `/api/audit-trail/export?${paramsOf({ ...filters, format })}`;
 }

@@ -1,29 +1,60 @@
+import type { Request, Response } from 'express';
 import type { DataSource } from 'typeorm';
-import { toFhirAuditEvent } from '../../fhir/audit-event';
-import { auditTrailQuerySchema } from '../../shared/audit/trail';
-import { auditContext, recordAudit, type AuditRow } from '../audit/audit';
+import { auditExportQuerySchema, auditTrailQuerySchema, filtersUsed, type AuditExportFormat, type AuditFilters } from '../../shared/audit/trail';
+import { auditContext, recordAudit } from '../audit/audit';
 import { readAuditTrail } from '../audit/audit-trail';
+import { streamAuditExport } from '../audit/audit-export';
+import type { Config } from '../config';
 import type { ApiRoute } from '../http/routes';
 import { parseOrThrow } from '../http/validate';
 
-/** The audit trail: for people (filtered, in words) and as FHIR AuditEvent resources. Reading it is audited too. */
-export function auditRoutes({ dataSource }: { dataSource: DataSource }): ApiRoute[] {
+/**
+ * The audit trail: searched by people (a page in words), exported as CSV or as FHIR R4 AuditEvent
+ * resources. Viewing and exporting it are audited too, with the filters used.
+ */
+export function auditRoutes({ dataSource, config }: { dataSource: DataSource; config: Config }): ApiRoute[] {
+  const exportTo = (format: AuditExportFormat, download: boolean) => async (req: Request, res: Response) => {
+    const query = parseOrThrow(auditExportQuerySchema, { ...req.query, ...(download ? {} : { format }) }, 'The audit trail export');
+    const filters: AuditFilters = query;
+    const path = download ? '/api/audit-trail/export' : '/api/audit-events';
+    const url = (cursor?: string) => {
+      const params = new URLSearchParams({ ...(filtersUsed(filters) as Record<string, string>), ...(download ? { format: query.format } : {}), ...(query._count ? { _count: String(query._count) } : {}), ...(cursor ? { cursor } : {}) });
+      return `${config.publicUrl}${path}?${params}`;
+    };
+    await recordAudit(dataSource, {
+      ...auditContext(req),
+      action: 'export',
+      entityType: 'audit-event',
+      outcome: 'success',
+      detail: { format: query.format, filters: filtersUsed(filters), ...(query.cursor ? { continued: true } : {}) },
+    });
+    await streamAuditExport(dataSource, res, {
+      filters,
+      format: query.format,
+      cursor: query.cursor,
+      count: query._count,
+      selfUrl: url(query.cursor),
+      nextUrl: (cursor) => url(cursor),
+      fhir: { patientIdSystem: config.ehr.identifierSystems.patient },
+      download,
+    });
+  };
   return [
     {
       method: 'get',
       path: '/audit-trail',
       access: 'audit:read',
-      summary: 'Audit events newest first, keyset pages, filtered by user, patient, action and date',
+      summary: 'Audit events newest first, keyset pages, filtered by user, patient, study, action, outcome and date range',
       handlers: [
         async (req, res) => {
           const query = parseOrThrow(auditTrailQuerySchema, req.query, 'The audit trail filter');
-          const page = await readAuditTrail(dataSource, query);
+          const page = await readAuditTrail(dataSource, query, query.cursor, query.limit);
           await recordAudit(dataSource, {
             ...auditContext(req),
             action: 'search',
             entityType: 'audit-event',
             outcome: 'success',
-            detail: { returned: page.items.length, filters: { ...query, limit: undefined, before: undefined } },
+            detail: { filters: filtersUsed(query), returned: page.items.length, ...(query.cursor ? { nextPage: true } : {}) },
           });
           res.json(page);
         },
@@ -31,39 +62,17 @@ export function auditRoutes({ dataSource }: { dataSource: DataSource }): ApiRout
     },
     {
       method: 'get',
+      path: '/audit-trail/export',
+      access: 'audit:read',
+      summary: 'The filtered audit trail as a download: CSV (every event) or FHIR R4 AuditEvent resources in a searchset Bundle (format=fhir)',
+      handlers: [exportTo('csv', true)],
+    },
+    {
+      method: 'get',
       path: '/audit-events',
       access: 'audit:read',
-      summary: 'The newest audit events as FHIR R4 AuditEvent resources (a searchset Bundle)',
-      handlers: [
-        async (req, res) => {
-          const limit = Math.min(500, Math.max(1, Number(req.query.limit) || 100));
-          const rows: AuditRow[] = await dataSource.query(
-            `SELECT a.id::text AS id, recorded_at, actor_user_id, actor_name, actor_role, action, entity_type, entity_id, client_address, outcome, detail
-             FROM audit_event a ORDER BY a.id DESC LIMIT $1`,
-            [limit],
-          );
-          await recordAudit(dataSource, { ...auditContext(req), action: 'export', entityType: 'audit-event', outcome: 'success', detail: { returned: rows.length } });
-          res.json({
-            resourceType: 'Bundle',
-            type: 'searchset',
-            total: rows.length,
-            entry: rows.map((r) => ({
-              resource: toFhirAuditEvent({
-                id: r.id,
-                recordedAt: r.recorded_at,
-                actorUserId: r.actor_user_id,
-                actorName: r.actor_name,
-                actorRole: r.actor_role,
-                action: r.action,
-                entityType: r.entity_type,
-                entityId: r.entity_id,
-                clientAddress: r.client_address,
-                outcome: r.outcome,
-              }),
-            })),
-          });
-        },
-      ],
+      summary: 'The filtered audit trail as FHIR R4 AuditEvent resources (a searchset Bundle with a next link)',
+      handlers: [exportTo('fhir', false)],
     },
   ];
 }

@@ -81,29 +81,3 @@ describe('a study on a 390 px phone', () => {
     await page.close();
   });
 });
-
-describe('the audit trail screen', () => {
-  it('shows events newest first in words, filtered by patient, at both widths', async () => {
-    const study = await createStudy(db);
-    const staff = await phone.newPage();
-    await staff.goto(`${stack.url}/studies/${study.id}`);
-    await visible(staff, 'study-editor').waitFor();
-    await staff.close();
-    for (const [name, viewport] of Object.entries(viewports)) {
-      const context = await browser.context.browser()!.newContext({ viewport });
-      const page = await context.newPage();
-      try {
-        await signInInBrowser(page, stack, usernameOf('chief'));
-        await page.goto(`${stack.url}/audit`);
-        await visible(page, 'audit-filter-patient').fill(study.patient.mrn.toLowerCase());
-        const row = page.locator('[data-testid^="audit-row-"]:visible').first();
-        await expect.poll(() => row.innerText(), { timeout: 10_000 }).toContain(`MRN ${study.patient.mrn}`);
-        await expect(row.innerText()).resolves.toContain('Opened');
-        expect(await page.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(viewport.width);
-        await page.screenshot({ path: screenshotPath(`audit-${name}`) });
-      } finally {
-        await context.close();
-      }
-    }
-  });
-});
