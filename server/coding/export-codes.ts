@@ -1,5 +1,5 @@
 import { stringify } from 'csv-stringify/sync';
-import { neutraliseCell } from '../../shared/csv/neutralise';
+import { neutraliseCell, quoteAlsoWhen } from '../../shared/csv/neutralise';
 import type { Decision } from '../../shared/coding/review';
 import { loadLines } from './load-review';
 import type { Sql } from './sql';
@@ -90,6 +90,7 @@ export function codesToCsv(rows: ExportedCode[]): string {
       header: true,
       columns: columns.map(([, header]) => header),
       record_delimiter: 'windows',
+      quoted_match: quoteAlsoWhen,
       cast: { string: (value) => neutraliseCell(value), number: (value) => String(value) },
     },
   );

@@ -4,13 +4,22 @@
  * shows as text; a plain number (a trace's −3.2, +1.5e3) stays exactly as it is. OWASP, "CSV Injection".
  * Pure TypeScript: used by the server (downloads, exports) and usable by the app.
  */
-const formulaStart = /^[=+\-@\t\r]/;
+// Leading spaces (ASCII and ideographic) are skipped before the check, and the full-width forms of
+// = + - @ count too: spreadsheets read both as a formula's start.
+const formulaStart = /^[ \u3000]*[=+\-@\t\r\uFF1D\uFF0B\uFF0D\uFF20]/;
 const plainNumber = /^[+-]?(\d+([.,]\d*)?|[.,]\d+)([eE][+-]?\d+)?$/;
 
 export function neutraliseCell(cell: string): string {
   if (!formulaStart.test(cell) || plainNumber.test(cell)) return cell;
   return `'${cell}`;
 }
+
+/**
+ * Cells that hold a semicolon or a tab are quoted even in a comma-separated file: a spreadsheet set to
+ * split on them (many European locales) would otherwise start a new cell there — possibly a formula —
+ * that no check on the cell's first character can see. For csv-stringify's `quoted_match`.
+ */
+export const quoteAlsoWhen = /[;\t]/;
 
 /** Splits CSV text into rows of cells (RFC 4180 quoting), keeping each row's line ending. */
 export function parseCsv(text: string, delimiter: string): { cells: string[]; quoted: boolean[]; end: string }[] {
@@ -54,7 +63,7 @@ export function parseCsv(text: string, delimiter: string): { cells: string[]; qu
   return rows;
 }
 
-const needsQuotes = (cell: string, delimiter: string) => cell.includes(delimiter) || /["\r\n]/.test(cell);
+const needsQuotes = (cell: string, delimiter: string) => cell.includes(delimiter) || /["\r\n]/.test(cell) || quoteAlsoWhen.test(cell);
 const quote = (cell: string) => `"${cell.replaceAll('"', '""')}"`;
 
 /** One cell as written: neutralised, then quoted when it must be (or was). */

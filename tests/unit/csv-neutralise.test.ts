@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { neutraliseCell, neutraliseCsv, parseCsv, toCsv } from '../../shared/csv/neutralise';
+import { neutraliseCell, neutraliseCsv, parseCsv, quoteAlsoWhen, toCsv } from '../../shared/csv/neutralise';
+import { stringify } from 'csv-stringify/sync';
 
 // OWASP "CSV Injection": cells starting with = + - @, tab or carriage return are read as formulas
 // by spreadsheets; prefixing an apostrophe makes them text. Plain numbers are left alone.
@@ -10,6 +11,21 @@ describe('neutraliseCell', () => {
   });
   it('leaves plain numbers and ordinary text as they are', () => {
     for (const cell of ['-3.2', '+1.5e3', '-0,82', '0.78', 'LAD', '', 'a=b']) expect(neutraliseCell(cell)).toBe(cell);
+  });
+});
+
+// OWASP "CSV Injection": leading whitespace and full-width signs are read as a formula's start too, and
+// a semicolon or tab inside a comma-separated cell splits it for spreadsheets set to those delimiters.
+describe('cells a spreadsheet would still read as a formula', () => {
+  it('prefixes a formula behind leading spaces or with full-width signs', () => {
+    expect(neutraliseCell(' =1+1')).toBe("' =1+1");
+    expect(neutraliseCell('\u3000=1+1')).toBe("'\u3000=1+1");
+    expect(neutraliseCell('\uFF1DSUM(A1)')).toBe("'\uFF1DSUM(A1)");
+    expect(neutraliseCell(' 3.2')).toBe(' 3.2');
+  });
+  it('quotes a cell holding a semicolon or a tab even in a comma-separated file', () => {
+    expect(toCsv([["Bob;=cmd|' /C calc'!A0", 'x\ty', 'plain']])).toBe('"Bob;=cmd|\' /C calc\'!A0","x\ty",plain\r\n');
+    expect(stringify([["Bob;=cmd"]], { quoted_match: quoteAlsoWhen, cast: { string: neutraliseCell } })).toBe('"Bob;=cmd"\n');
   });
 });
 
