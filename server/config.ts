@@ -79,6 +79,8 @@ const configSchema = z
     EHR_CLIENT_SECRET: z.string().min(1).default('local-development-ehr-secret'),
     EHR_SCOPE: z.string().min(1).default('system/Patient.write system/Encounter.write system/Observation.write system/DiagnosticReport.write'),
     EHR_TIMEOUT_SECONDS: z.coerce.number().min(1).max(600).default(30),
+    /** Hosts the admin may point EHR delivery at (comma-separated), beside the configured endpoint's own. */
+    EHR_ALLOWED_HOSTS: z.string().default(''),
     EHR_DELIVERY_LIMIT_HOURS: z.coerce.number().min(0.01).max(24 * 30).default(24),
     // Identifier systems of the hospital's MRNs, encounters and accession numbers (defaults: HL7's example OID root).
     EHR_PATIENT_ID_SYSTEM: z.string().min(1).default('urn:oid:2.16.840.1.113883.19.5.1'),
@@ -125,6 +127,8 @@ export interface Config {
   /** The EHR's FHIR endpoint and Isobar's client-credentials client at the identity provider. */
   ehr: {
     fhirBaseUrl: string;
+    /** Hosts (host[:port]) an EHR endpoint set by the admin may name: the configured one's and EHR_ALLOWED_HOSTS. */
+    allowedHosts: string[];
     clientId: string;
     clientSecret: string;
     scope: string;
@@ -209,6 +213,7 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
     allowedOrigins: [new URL(publicUrl).origin, ...v.ALLOWED_ORIGINS.split(',').map((o) => o.trim()).filter(Boolean)],
     ehr: {
       fhirBaseUrl: v.EHR_FHIR_URL.replace(/\/$/, ''),
+      allowedHosts: [new URL(v.EHR_FHIR_URL).host, ...v.EHR_ALLOWED_HOSTS.split(',').map((h) => h.trim().toLowerCase()).filter(Boolean)],
       clientId: v.EHR_CLIENT_ID,
       clientSecret: v.EHR_CLIENT_SECRET,
       scope: v.EHR_SCOPE,

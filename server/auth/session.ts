@@ -20,7 +20,7 @@ export interface SessionAuth {
   signedInAt: number;
   /**
    * When the identity provider last confirmed who the user is (ms, the ID token's `auth_time`):
-   * signing asks for a recent one. Sessions from before this field fall back to `signedInAt`.
+   * signing asks for a recent one. Without it (no auth_time from the provider, or a session from before this field) signing asks again.
    */
   authenticatedAt?: number;
 }

@@ -149,7 +149,9 @@ export function authRoutes(deps: { config: Config; dataSource: DataSource; idp: 
             role,
             idToken,
             signedInAt: continuing ? previous.signedInAt : now,
-            authenticatedAt: Math.min(authTime ?? now, now),
+            // Only the provider's own auth_time proves when the person last confirmed who they are: a
+            // token without it (a silent single sign-on) leaves the field empty, and signing asks again.
+            ...(authTime !== null ? { authenticatedAt: Math.min(authTime, now) } : {}),
           };
           await saveSession(req.session);
           await recordAudit(dataSource, {

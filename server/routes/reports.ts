@@ -78,7 +78,7 @@ export function reportRoutes({ config, dataSource }: { config: Config; dataSourc
           const body = parseOrThrow(signSchema, req.body);
           const auth = req.session.auth!;
           // An electronic signature confirms who signs: a sign-in older than the limit must be renewed.
-          if (Date.now() - (auth.authenticatedAt ?? auth.signedInAt) > config.signReauthMinutes * 60_000) {
+          if (auth.authenticatedAt === undefined || Date.now() - auth.authenticatedAt > config.signReauthMinutes * 60_000) {
             throw new ReauthenticationRequiredError(config.signReauthMinutes, `/studies/${id}/report`);
           }
           const version = await signing.run(() =>

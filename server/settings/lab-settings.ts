@@ -2,7 +2,7 @@ import type { DataSource, EntityManager } from 'typeorm';
 import type { LabSettings, LabSettingsForm, LabSettingsView } from '../../shared/settings/lab-settings';
 import { recordAudit, type AuditEntry } from '../audit/audit';
 import { loadConfig } from '../config';
-import { HttpError, NotFoundError } from '../http/problem';
+import { BadRequestError, HttpError, NotFoundError } from '../http/problem';
 import { REPORT_TEMPLATE_VERSION } from '../report/template-version';
 import { isShippedTemplateVersion } from '../report/template-versions';
 
@@ -12,6 +12,8 @@ export type { LabSettings } from '../../shared/settings/lab-settings';
 export interface ConfiguredDefaults {
   ehrBaseUrl: string;
   mailFrom: string;
+  /** Hosts (host[:port]) an EHR endpoint setting may name. */
+  allowedEhrHosts?: string[];
 }
 
 let fromEnvironment: ConfiguredDefaults | undefined;
@@ -25,7 +27,24 @@ const configured = (given?: ConfiguredDefaults): ConfiguredDefaults => {
 };
 
 /** The configuration's values, for `labSettings(db, defaultsFrom(config))`. */
-export const defaultsFrom = (config: { ehr: { fhirBaseUrl: string }; mail: { from: string } }): ConfiguredDefaults => ({ ehrBaseUrl: config.ehr.fhirBaseUrl, mailFrom: config.mail.from });
+export const defaultsFrom = (config: { ehr: { fhirBaseUrl: string; allowedHosts?: string[] }; mail: { from: string } }): ConfiguredDefaults => ({
+  ehrBaseUrl: config.ehr.fhirBaseUrl,
+  mailFrom: config.mail.from,
+  allowedEhrHosts: config.ehr.allowedHosts ?? [new URL(config.ehr.fhirBaseUrl).host],
+});
+
+/**
+ * Signed reports go wherever this endpoint says, with patient identity: an admin may choose only among
+ * hosts the server's configuration names, so a changed setting cannot send them to another server or
+ * probe the hospital's internal network.
+ */
+export class EhrHostNotAllowedError extends BadRequestError {
+  constructor(host: string, allowed: string[]) {
+    super(`EHR endpoint: ${host} is not one of the hosts this server may deliver to (${allowed.join(', ')}). The server's configuration (EHR_ALLOWED_HOSTS) lists them.`, [
+      { pointer: '/settings/ehrBaseUrl', detail: `EHR endpoint must be on one of: ${allowed.join(', ')}.` },
+    ]);
+  }
+}
 
 interface Row {
   time_zone: string;
@@ -108,6 +127,8 @@ export async function updateLabSettings(dataSource: DataSource, input: { setting
     if (row.version !== input.version) throw new StaleSettingsError(await labSettingsView(manager, defaults));
     const before: LabSettingsForm = { timeZone: row.time_zone, signatureTargetHours: Number(row.signature_target_hours), ehrBaseUrl: row.ehr_base_url, mailFrom: row.mail_from };
     const after: LabSettingsForm = { ...input.settings, ehrBaseUrl: input.settings.ehrBaseUrl || null, mailFrom: input.settings.mailFrom || null };
+    const allowed = defaults?.allowedEhrHosts;
+    if (after.ehrBaseUrl && allowed && !allowed.includes(new URL(after.ehrBaseUrl).host.toLowerCase())) throw new EhrHostNotAllowedError(new URL(after.ehrBaseUrl).host, allowed);
     const changed = changes(before, after);
     if (Object.keys(changed).length === 0) return labSettingsView(manager, defaults);
     await manager.query(

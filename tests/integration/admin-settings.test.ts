@@ -21,7 +21,10 @@ let physician: string;
 let admin: string;
 let chief: string;
 
+const allowedHostsBefore = process.env.EHR_ALLOWED_HOSTS;
 beforeAll(async () => {
+  // The hosts these tests point EHR delivery at, as a hospital lists its EHR's hosts in the configuration.
+  process.env.EHR_ALLOWED_HOSTS = 'ehr.hospital.example,127.0.0.1:9';
   db = await openTestDatabase();
   stack = await startStack(db);
   staff = (await signIn(stack, usernameOf('staff'))).cookie;
@@ -31,6 +34,8 @@ beforeAll(async () => {
 });
 
 afterAll(async () => {
+  if (allowedHostsBefore === undefined) delete process.env.EHR_ALLOWED_HOSTS;
+  else process.env.EHR_ALLOWED_HOSTS = allowedHostsBefore;
   // Leave the lab as the next test file expects it: published thresholds, template v1, default settings.
   const inForce = await thresholdsInForce(db);
   const back = Object.fromEntries(Object.entries(defaultThresholds).filter(([k, v]) => inForce.values[k as keyof typeof defaultThresholds] !== v));
@@ -311,6 +316,17 @@ describe('lab settings', () => {
     // Cleared: the server's configuration applies again.
     await send('put', '/api/admin/lab-settings', admin).send({ version: saved.body.version, settings: { ...settings, ehrBaseUrl: null, mailFrom: null } }).expect(200);
     expect((await labSettings(db, { ehrBaseUrl: 'http://configured/fhir', mailFrom: 'configured@localhost' })).ehrBaseUrl).toBe('http://configured/fhir');
+  });
+
+  it('refuses an EHR endpoint on a host the configuration does not list (no delivery to another server, no probing inside)', async () => {
+    const view = await api().get('/api/admin/lab-settings').set('Cookie', admin).expect(200);
+    for (const ehrBaseUrl of ['https://attacker.example/fhir', 'http://169.254.169.254/latest', 'http://127.0.0.1:5432/x']) {
+      const res = await send('put', '/api/admin/lab-settings', admin).send({ version: view.body.version, settings: { ...view.body.stored, templateVersion: undefined, ehrBaseUrl } });
+      expect({ ehrBaseUrl, status: res.status }).toEqual({ ehrBaseUrl, status: 400 });
+      expect(res.body.errors.map((e: { pointer: string }) => e.pointer)).toEqual(['/settings/ehrBaseUrl']);
+    }
+    const after = await api().get('/api/admin/lab-settings').set('Cookie', admin).expect(200);
+    expect(after.body.version).toBe(view.body.version);
   });
 
   it('deliveries go to the lab\'s EHR endpoint and notices come from the lab\'s sender, read when they are sent', async () => {

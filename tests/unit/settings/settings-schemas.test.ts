@@ -78,6 +78,9 @@ describe('lab settings schema', () => {
     [{ mailFrom: 'cathlab@hospital.example' }, []],
     [{ mailFrom: 'Cath lab <cathlab@hospital.example' }, ['/mailFrom']],
     [{ mailFrom: 'nobody' }, ['/mailFrom']],
+    // RFC 5322 §3.4: a comma separates mailboxes — one sender only, so none in the name.
+    [{ mailFrom: 'evil@attacker.example, Lab <isobar@h.example>' }, ['/mailFrom']],
+    [{ mailFrom: 'Lab; x <isobar@h.example>' }, ['/mailFrom']],
     [{ colour: 'blue' }, ['/']],
   ])('%j → errors at %j', (change, expected) => {
     expect(pointers(labSettingsFormSchema.safeParse({ ...ok, ...change }))).toEqual(expected);
