@@ -146,8 +146,28 @@ ensure_web_build() {
   fi
   log "building the web app (expo export)"
   rm -rf "$ROOT/dist"
-  (cd "$ROOT" && CI=1 EXPO_NO_TELEMETRY=1 node_modules/.bin/expo export --platform web --output-dir dist >"$DATA_DIR/web-build.log" 2>&1) \
-    || { tail -n 40 "$DATA_DIR/web-build.log" >&2; fail "the web build failed (full log: .data/web-build.log)"; }
-  (cd "$ROOT" && node_modules/.bin/tsx scripts/precompress-web.ts dist >>"$DATA_DIR/web-build.log") || fail "compressing the web build failed"
+  web_export "$ROOT" "$ROOT/dist" "$DATA_DIR/web-build.log"
   echo "$want" >"$ROOT/dist/.build-hash"
+}
+
+# web_export PROJECT OUT LOG: the production web export of an Expo project, then its precompressed copies.
+web_export() {
+  local project=$1 out=$2 logfile=$3
+  (cd "$project" && CI=1 EXPO_NO_TELEMETRY=1 "$ROOT/node_modules/.bin/expo" export --platform web --output-dir "$out" >"$logfile" 2>&1) \
+    || { tail -n 40 "$logfile" >&2; fail "the web build of $project failed (full log: $logfile)"; }
+  (cd "$ROOT" && node_modules/.bin/tsx scripts/precompress-web.ts "$out" >>"$logfile") || fail "compressing the web build of $project failed"
+}
+
+# The first-load benchmark's baseline: a bare Expo Router app (scripts/bare-app) built with the
+# installed versions, into .data/bare-dist.
+ensure_bare_web_build() {
+  local want out="$DATA_DIR/bare-dist"
+  want=$(cd "$ROOT" && find scripts/bare-app package-lock.json scripts/precompress-web.ts -type f -print0 | sort -z | xargs -0 sha1sum | sha1sum | cut -c1-40)
+  if [[ -f $out/.build-hash && $(cat "$out/.build-hash") == "$want" ]]; then
+    return
+  fi
+  log "building the bare baseline app (expo export)"
+  rm -rf "$out"
+  web_export "$ROOT/scripts/bare-app" "$out" "$DATA_DIR/bare-build.log"
+  echo "$want" >"$out/.build-hash"
 }

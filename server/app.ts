@@ -116,9 +116,10 @@ export function createApp({
 /**
  * The exported web build: hashed bundles cached for a year, the page itself never cached. The build
  * step writes brotli and gzip copies beside each text file (scripts/precompress-web.ts); the copy the
- * browser accepts is sent with its Content-Encoding and `Vary: Accept-Encoding`.
+ * browser accepts is sent with its Content-Encoding and `Vary: Accept-Encoding`. Exported for the
+ * first-load benchmark, which serves its baseline app the same way.
  */
-function serveWebApp(app: Express, distDir: string): void {
+export function serveWebApp(app: Express, distDir: string): void {
   const indexFile = path.join(distDir, 'index.html');
   app.use(
     expressStaticGzip(distDir, {
