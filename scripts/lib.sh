@@ -139,7 +139,7 @@ ensure_database() {
 # Rebuild the web app only when its sources changed since the last export.
 ensure_web_build() {
   local want
-  want=$(cd "$ROOT" && find app components shared assets app.json babel.config.js tsconfig.json package-lock.json scripts/precompress-web.ts \
+  want=$(cd "$ROOT" && find app components shared assets metro app.json babel.config.js metro.config.cjs tsconfig.json package-lock.json scripts/precompress-web.ts \
     -type f -not -path '*/node_modules/*' -print0 2>/dev/null | sort -z | xargs -0 sha1sum | sha1sum | cut -c1-40)
   if [[ -f $ROOT/dist/.build-hash && $(cat "$ROOT/dist/.build-hash") == "$want" ]]; then
     return
@@ -162,7 +162,7 @@ web_export() {
 # installed versions, into .data/bare-dist.
 ensure_bare_web_build() {
   local want out="$DATA_DIR/bare-dist"
-  want=$(cd "$ROOT" && find scripts/bare-app package-lock.json scripts/precompress-web.ts -type f -print0 | sort -z | xargs -0 sha1sum | sha1sum | cut -c1-40)
+  want=$(cd "$ROOT" && find scripts/bare-app package-lock.json scripts/precompress-web.ts -type f -not -path '*/.expo/*' -print0 | sort -z | xargs -0 sha1sum | sha1sum | cut -c1-40)
   if [[ -f $out/.build-hash && $(cat "$out/.build-hash") == "$want" ]]; then
     return
   fi

@@ -142,6 +142,7 @@ export function serveWebApp(app: Express, distDir: string): void {
       res.status(503).type('text/plain').send('The web app has not been built yet. Run `npm start`.');
       return;
     }
-    res.set('Cache-Control', 'no-store').sendFile(indexFile);
+    // Relative to the build's folder, so a build kept under a dot-folder (e.g. .data/) is served too.
+    res.set('Cache-Control', 'no-store').sendFile('index.html', { root: distDir });
   });
 }
