@@ -139,22 +139,27 @@ ensure_database() {
 # Rebuild the web app only when its sources changed since the last export.
 ensure_web_build() {
   local want
-  want=$(cd "$ROOT" && find app components shared assets metro app.json babel.config.js metro.config.cjs tsconfig.json package-lock.json scripts/precompress-web.ts \
+  want=$(cd "$ROOT" && find app components shared assets metro app.json babel.config.js metro.config.cjs tsconfig.json package-lock.json scripts/precompress-web.ts scripts/preload-web.ts \
     -type f -not -path '*/node_modules/*' -print0 2>/dev/null | sort -z | xargs -0 sha1sum | sha1sum | cut -c1-40)
   if [[ -f $ROOT/dist/.build-hash && $(cat "$ROOT/dist/.build-hash") == "$want" ]]; then
     return
   fi
   log "building the web app (expo export)"
   rm -rf "$ROOT/dist"
-  web_export "$ROOT" "$ROOT/dist" "$DATA_DIR/web-build.log"
+  web_export "$ROOT" "$ROOT/dist" "$DATA_DIR/web-build.log" scripts/preload-web.ts
   echo "$want" >"$ROOT/dist/.build-hash"
 }
 
-# web_export PROJECT OUT LOG: the production web export of an Expo project, then its precompressed copies.
+# web_export PROJECT OUT LOG [STEP...]: the production web export of an Expo project, each STEP
+# (a script given the output folder) run over it, then its precompressed copies.
 web_export() {
-  local project=$1 out=$2 logfile=$3
+  local project=$1 out=$2 logfile=$3 step
+  shift 3
   (cd "$project" && CI=1 EXPO_NO_TELEMETRY=1 "$ROOT/node_modules/.bin/expo" export --platform web --output-dir "$out" >"$logfile" 2>&1) \
     || { tail -n 40 "$logfile" >&2; fail "the web build of $project failed (full log: $logfile)"; }
+  for step in "$@"; do
+    (cd "$ROOT" && node_modules/.bin/tsx "$step" "$out" >>"$logfile" 2>&1) || { tail -n 20 "$logfile" >&2; fail "$step failed on the web build of $project"; }
+  done
   (cd "$ROOT" && node_modules/.bin/tsx scripts/precompress-web.ts "$out" >>"$logfile") || fail "compressing the web build of $project failed"
 }
 

@@ -47,9 +47,10 @@ export function routeChunks(entry: string, routeFiles: string[]): string[] | nul
   }
   const paths = map.paths as Record<string, string> | undefined;
   if (!paths) return null;
+  const context = entry.slice(entry.lastIndexOf('__d(', first), first + mapStart);
   const chunks: string[] = [];
   for (const file of routeFiles) {
-    const m = entry.slice(first, first + mapStart).match(new RegExp(`${escape(JSON.stringify(file))}:\\{enumerable:!0,get:\\(\\)=>r\\(d\\[\\d+\\]\\)\\(d\\[(\\d+)\\],d\\.paths\\)\\}`));
+    const m = context.match(new RegExp(`${escape(JSON.stringify(file))}:\\{enumerable:!0,get:\\(\\)=>r\\(d\\[\\d+\\]\\)\\(d\\[(\\d+)\\],d\\.paths\\)\\}`));
     const chunk = m ? paths[String(map[m[1]])] : undefined;
     if (!chunk) return null;
     chunks.push(chunk);
