@@ -82,10 +82,15 @@ function probe(selector: string, marks: Record<string, string>): string {
   })();`;
 }
 
-async function measure(context: BrowserContext, url: string, selector: string, marks: Record<string, string> = {}): Promise<Sample> {
+async function measure(context: BrowserContext, url: string, selector: string, marks: Record<string, string> = {}, profile = false): Promise<Sample> {
   const page = await context.newPage();
   try {
     const cdp = await context.newCDPSession(page);
+    if (profile) {
+      await cdp.send('Profiler.enable');
+      await cdp.send('Profiler.setSamplingInterval', { interval: 1000 });
+      await cdp.send('Profiler.start');
+    }
     await cdp.send('Network.enable');
     await cdp.send('Network.setCacheDisabled', { cacheDisabled: true });
     await cdp.send('Network.emulateNetworkConditions', phone.network);
@@ -93,6 +98,7 @@ async function measure(context: BrowserContext, url: string, selector: string, m
     await page.addInitScript(probe(selector, marks));
     await page.goto(url, { waitUntil: 'commit', timeout: 120_000 });
     await page.waitForFunction(() => (window as unknown as { __firstRowAt?: number }).__firstRowAt !== undefined, null, { timeout: 120_000, polling: 50 });
+    if (profile) printProfile((await cdp.send('Profiler.stop')).profile);
     // LCP settles a frame or two after the content it names.
     await page.waitForTimeout(300);
     const raw = await page.evaluate(() => {
@@ -121,6 +127,33 @@ async function measure(context: BrowserContext, url: string, selector: string, m
   } finally {
     await page.close();
   }
+}
+
+interface CpuProfile {
+  nodes: { id: number; callFrame: { functionName: string; url: string; lineNumber: number }; children?: number[] }[];
+  samples?: number[];
+  timeDeltas?: number[];
+}
+
+/** Where the page's main thread spent its time until the first row: self time per script and per function. */
+function printProfile(profile: CpuProfile): void {
+  const byId = new Map(profile.nodes.map((n) => [n.id, n]));
+  const self = new Map<number, number>();
+  (profile.samples ?? []).forEach((id, i) => self.set(id, (self.get(id) ?? 0) + (profile.timeDeltas?.[i] ?? 0) / 1000));
+  const byScript = new Map<string, number>();
+  const byFunction = new Map<string, number>();
+  for (const [id, ms] of self) {
+    const frame = byId.get(id)!.callFrame;
+    const script = frame.url ? new URL(frame.url).pathname.replace(/-[0-9a-f]{32}\.js$/, '.js') : `(${frame.functionName || 'native'})`;
+    byScript.set(script, (byScript.get(script) ?? 0) + ms);
+    const fn = `${frame.functionName || '(anonymous)'} ${script}:${frame.lineNumber}`;
+    byFunction.set(fn, (byFunction.get(fn) ?? 0) + ms);
+  }
+  const top = (m: Map<string, number>, n: number) => [...m].sort((a, b) => b[1] - a[1]).slice(0, n);
+  console.log('  CPU self time by script (ms):');
+  for (const [k, v] of top(byScript, 12)) console.log(`    ${v.toFixed(0).padStart(6)}  ${k}`);
+  console.log('  CPU self time by function (ms):');
+  for (const [k, v] of top(byFunction, 15)) console.log(`    ${v.toFixed(0).padStart(6)}  ${k}`);
 }
 
 /** The bare app's server: its build through the same static handler as Isobar's, a JSON list compressed as Isobar's answers are. */
@@ -196,6 +229,12 @@ async function main(): Promise<void> {
     // One load each first, not counted: the servers' first answers are slower than any later one.
     await sides.bare();
     await sides.isobar();
+    if (process.env.ISOBAR_BENCH_PROFILE) {
+      console.log('CPU profile of one load, bare app:');
+      await measure(bareContext, `${bare.url}/`, '[data-testid^="row-"]', {}, true);
+      console.log('CPU profile of one load, Isobar:');
+      await measure(isobarContext, `${stack.url}/`, '[data-testid^="study-row-"]', isobarMarks, true);
+    }
     const samples: Record<keyof typeof sides, Sample[]> = { bare: [], isobar: [] };
     for (let i = 0; i < RUNS; i++) {
       for (const side of ['bare', 'isobar'] as const) {
