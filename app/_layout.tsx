@@ -15,14 +15,18 @@ import { prefetchFirstScreen } from '../components/data/first-screen';
 import { SessionSync } from '../components/session-sync';
 import { useFocusRing } from '../components/focus-ring';
 
+const newQueryClient = () => new QueryClient({ defaultOptions: { queries: { staleTime: 15_000, refetchOnWindowFocus: true, retry: shouldRetryRead } } });
+
+/**
+ * On the web, one client for the page, made when this module loads (the router loads it before it
+ * renders anything): the first screen's reads go out then, beside the fonts, not after them.
+ */
+const webQueryClient = Platform.OS === 'web' && typeof window !== 'undefined' ? newQueryClient() : null;
+if (webQueryClient) prefetchFirstScreen(webQueryClient, window.location);
+
 /** Providers and theme for every screen: data fetching, fonts bundled with the app, safe areas. */
 export default function RootLayout() {
-  const [queryClient] = useState(() => {
-    const client = new QueryClient({ defaultOptions: { queries: { staleTime: 15_000, refetchOnWindowFocus: true, retry: shouldRetryRead } } });
-    // The first screen's reads go out now, beside the fonts, not after them.
-    if (Platform.OS === 'web' && typeof window !== 'undefined') prefetchFirstScreen(client, window.location);
-    return client;
-  });
+  const [queryClient] = useState(() => webQueryClient ?? newQueryClient());
   useFocusRing();
   const [fontsLoaded, fontError] = useFonts({
     PublicSans_400Regular,
