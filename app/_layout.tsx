@@ -1,4 +1,5 @@
 import { useState } from 'react';
+import { Platform } from 'react-native';
 import { Stack } from 'expo-router';
 import { StatusBar } from 'expo-status-bar';
 import { useFonts } from 'expo-font';
@@ -10,14 +11,22 @@ import { PublicSans_600SemiBold } from '@expo-google-fonts/public-sans/600SemiBo
 import { PublicSans_700Bold } from '@expo-google-fonts/public-sans/700Bold';
 import { color } from '../components/theme';
 import { shouldRetryRead } from '../components/data/api';
+import { prefetchFirstScreen } from '../components/data/first-screen';
 import { SessionSync } from '../components/session-sync';
 import { useFocusRing } from '../components/focus-ring';
 
+const newQueryClient = () => new QueryClient({ defaultOptions: { queries: { staleTime: 15_000, refetchOnWindowFocus: true, retry: shouldRetryRead } } });
+
+/**
+ * On the web, one client for the page, made when this module loads (the router loads it before it
+ * renders anything): the first screen's reads go out then, beside the fonts, not after them.
+ */
+const webQueryClient = Platform.OS === 'web' && typeof window !== 'undefined' ? newQueryClient() : null;
+if (webQueryClient) prefetchFirstScreen(webQueryClient, window.location);
+
 /** Providers and theme for every screen: data fetching, fonts bundled with the app, safe areas. */
 export default function RootLayout() {
-  const [queryClient] = useState(
-    () => new QueryClient({ defaultOptions: { queries: { staleTime: 15_000, refetchOnWindowFocus: true, retry: shouldRetryRead } } }),
-  );
+  const [queryClient] = useState(() => webQueryClient ?? newQueryClient());
   useFocusRing();
   const [fontsLoaded, fontError] = useFonts({
     PublicSans_400Regular,

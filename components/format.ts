@@ -1,8 +1,13 @@
 /** Display formatting for the client (dates in the lab's local time). */
+
+// One formatter each, made once: building a formatter per call (what toLocaleString with options
+// does) costs more than the formatting, and a list formats several dates per row.
+const dateTimeFormat = new Intl.DateTimeFormat('en-GB', { day: '2-digit', month: 'short', year: 'numeric', hour: '2-digit', minute: '2-digit' });
+const dayFormat = new Intl.DateTimeFormat('en-GB', { weekday: 'short', day: 'numeric', month: 'short', year: 'numeric' });
+
 export function formatDateTime(iso: string | null): string {
   if (!iso) return 'not recorded';
-  const d = new Date(iso);
-  return d.toLocaleString('en-GB', { day: '2-digit', month: 'short', year: 'numeric', hour: '2-digit', minute: '2-digit' });
+  return dateTimeFormat.format(new Date(iso));
 }
 
 export function formatHours(hours: number): string {
@@ -23,5 +28,5 @@ export function dayLabel(iso: string | null, now = new Date()): string {
   const days = Math.round((start(now) - start(d)) / 86_400_000);
   if (days === 0) return 'Today';
   if (days === 1) return 'Yesterday';
-  return d.toLocaleDateString('en-GB', { weekday: 'short', day: 'numeric', month: 'short', year: 'numeric' });
+  return dayFormat.format(d);
 }

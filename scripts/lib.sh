@@ -139,15 +139,40 @@ ensure_database() {
 # Rebuild the web app only when its sources changed since the last export.
 ensure_web_build() {
   local want
-  want=$(cd "$ROOT" && find app components shared assets app.json babel.config.js tsconfig.json package-lock.json scripts/precompress-web.ts \
+  want=$(cd "$ROOT" && find app components shared assets metro app.json babel.config.js metro.config.cjs tsconfig.json package-lock.json scripts/precompress-web.ts scripts/preload-web.ts \
     -type f -not -path '*/node_modules/*' -print0 2>/dev/null | sort -z | xargs -0 sha1sum | sha1sum | cut -c1-40)
   if [[ -f $ROOT/dist/.build-hash && $(cat "$ROOT/dist/.build-hash") == "$want" ]]; then
     return
   fi
   log "building the web app (expo export)"
   rm -rf "$ROOT/dist"
-  (cd "$ROOT" && CI=1 EXPO_NO_TELEMETRY=1 node_modules/.bin/expo export --platform web --output-dir dist >"$DATA_DIR/web-build.log" 2>&1) \
-    || { tail -n 40 "$DATA_DIR/web-build.log" >&2; fail "the web build failed (full log: .data/web-build.log)"; }
-  (cd "$ROOT" && node_modules/.bin/tsx scripts/precompress-web.ts dist >>"$DATA_DIR/web-build.log") || fail "compressing the web build failed"
+  web_export "$ROOT" "$ROOT/dist" "$DATA_DIR/web-build.log" scripts/preload-web.ts
   echo "$want" >"$ROOT/dist/.build-hash"
+}
+
+# web_export PROJECT OUT LOG [STEP...]: the production web export of an Expo project, each STEP
+# (a script given the output folder) run over it, then its precompressed copies.
+web_export() {
+  local project=$1 out=$2 logfile=$3 step
+  shift 3
+  (cd "$project" && CI=1 EXPO_NO_TELEMETRY=1 "$ROOT/node_modules/.bin/expo" export --platform web --output-dir "$out" >"$logfile" 2>&1) \
+    || { tail -n 40 "$logfile" >&2; fail "the web build of $project failed (full log: $logfile)"; }
+  for step in "$@"; do
+    (cd "$ROOT" && node_modules/.bin/tsx "$step" "$out" >>"$logfile" 2>&1) || { tail -n 20 "$logfile" >&2; fail "$step failed on the web build of $project"; }
+  done
+  (cd "$ROOT" && node_modules/.bin/tsx scripts/precompress-web.ts "$out" >>"$logfile") || fail "compressing the web build of $project failed"
+}
+
+# The first-load benchmark's baseline: a bare Expo Router app (scripts/bare-app) built with the
+# installed versions, into .data/bare-dist.
+ensure_bare_web_build() {
+  local want out="$DATA_DIR/bare-dist"
+  want=$(cd "$ROOT" && find scripts/bare-app package-lock.json scripts/precompress-web.ts -type f -not -path '*/.expo/*' -print0 | sort -z | xargs -0 sha1sum | sha1sum | cut -c1-40)
+  if [[ -f $out/.build-hash && $(cat "$out/.build-hash") == "$want" ]]; then
+    return
+  fi
+  log "building the bare baseline app (expo export)"
+  rm -rf "$out"
+  web_export "$ROOT/scripts/bare-app" "$out" "$DATA_DIR/bare-build.log"
+  echo "$want" >"$out/.build-hash"
 }

@@ -120,9 +120,10 @@ export function createApp({
 /**
  * The exported web build: hashed bundles cached for a year, the page itself never cached. The build
  * step writes brotli and gzip copies beside each text file (scripts/precompress-web.ts); the copy the
- * browser accepts is sent with its Content-Encoding and `Vary: Accept-Encoding`.
+ * browser accepts is sent with its Content-Encoding and `Vary: Accept-Encoding`. Exported for the
+ * first-load benchmark, which serves its baseline app the same way.
  */
-function serveWebApp(app: Express, distDir: string): void {
+export function serveWebApp(app: Express, distDir: string): void {
   const indexFile = path.join(distDir, 'index.html');
   app.use(
     expressStaticGzip(distDir, {
@@ -145,6 +146,7 @@ function serveWebApp(app: Express, distDir: string): void {
       res.status(503).type('text/plain').send('The web app has not been built yet. Run `npm start`.');
       return;
     }
-    res.set('Cache-Control', 'no-store').sendFile(indexFile);
+    // Relative to the build's folder, so a build kept under a dot-folder (e.g. .data/) is served too.
+    res.set('Cache-Control', 'no-store').sendFile('index.html', { root: distDir });
   });
 }

@@ -1,4 +1,4 @@
-import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
+import { queryOptions, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import type { Permission, Role } from '../../shared/auth/permissions';
 import { apiFetch, ApiError } from './api';
 import { announceSignOut, clearAllDrafts, unsentStudies } from '../study/draft-store';
@@ -16,13 +16,16 @@ export interface Me {
 export const meKeys = { all: ['me'] as const };
 
 /** The signed-in user; a 401 means signed out (not an error worth retrying). */
-export function useMeQuery() {
-  return useQuery({
+export const meQueryOptions = () =>
+  queryOptions({
     queryKey: meKeys.all,
     queryFn: () => apiFetch<Me>('/me'),
     retry: (count, error) => !(error instanceof ApiError && (error.status === 401 || error.status === 403)) && count < 2,
     staleTime: 60_000,
   });
+
+export function useMeQuery() {
+  return useQuery(meQueryOptions());
 }
 
 /**

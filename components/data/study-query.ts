@@ -1,4 +1,4 @@
-import { useInfiniteQuery, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
+import { infiniteQueryOptions, useInfiniteQuery, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import type { AttachmentSummary, CreateStudy, StudyRecord } from '../../shared/study/schema';
 import type { WorklistItem, WorklistPage } from '../../shared/study/worklist';
 import type { StudyState } from '../../shared/study/vocabulary';
@@ -29,13 +29,16 @@ const queryString = (params: Record<string, string | number | undefined>) => {
 };
 
 /** The worklist, one keyset page at a time. */
-export function useWorklist(filters: WorklistFilters) {
-  return useInfiniteQuery({
+export const worklistQueryOptions = (filters: WorklistFilters) =>
+  infiniteQueryOptions({
     queryKey: studyKeys.list(filters),
     queryFn: ({ pageParam }) => apiFetch<WorklistPage>(`/studies${queryString({ ...filters, limit: 25, cursor: pageParam })}`),
     initialPageParam: undefined as string | undefined,
     getNextPageParam: (last) => last.nextCursor ?? undefined,
   });
+
+export function useWorklist(filters: WorklistFilters) {
+  return useInfiniteQuery(worklistQueryOptions(filters));
 }
 
 export function useStudy(id: string) {

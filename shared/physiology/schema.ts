@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { thresholdsSchema } from './thresholds';
+import { drugRoutes, hyperemicAgents } from './drugs';
 
 export const vesselCodes = [
   'LM',
@@ -81,8 +82,7 @@ function pressureSet(phase: 'Resting' | 'Hyperaemic') {
     });
 }
 
-export const hyperemicAgents = ['adenosine', 'papaverine', 'other', 'none'] as const;
-export const drugRoutes = ['intravenous', 'intracoronary'] as const;
+export { hyperemicAgents, drugRoutes };
 
 /**
  * Facts of the procedure that some quality checks need and the measurements do not carry: the

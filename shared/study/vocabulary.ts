@@ -1,4 +1,4 @@
-import { drugRoutes, hyperemicAgents } from '../physiology/schema';
+import { drugRoutes, hyperemicAgents } from '../physiology/drugs';
 
 /**
  * Pick-list values of the study record, with the words the screens and the report use.

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { dayLabel, formatHours } from '../../components/format';
+import { dayLabel, formatDateTime, formatHours } from '../../components/format';
 
 describe('worklist day headings (local days; common practice)', () => {
   const now = new Date(2026, 11, 1, 9, 30); // 1 Dec 2026, 09:30 local time
@@ -24,5 +24,15 @@ describe('hours waiting', () => {
     [50, '2 d 2 h'],
   ])('%s h → %s', (h, text) => {
     expect(formatHours(h)).toBe(text);
+  });
+});
+
+describe('date and time of a study (local time; common practice)', () => {
+  it('reads day, month, year and the 24-hour time', () => {
+    expect(formatDateTime(new Date(2026, 11, 1, 9, 5).toISOString())).toBe('01 Dec 2026, 09:05');
+    expect(formatDateTime(new Date(2026, 0, 31, 23, 59).toISOString())).toBe('31 Jan 2026, 23:59');
+  });
+  it('says when no time was recorded', () => {
+    expect(formatDateTime(null)).toBe('not recorded');
   });
 });

@@ -1,0 +1,83 @@
+/**
+ * Adds preload links to the exported index.html, so the browser fetches what the first screen needs
+ * while the main scripts download, not one after the other once they have run: the bundled fonts
+ * (the root layout waits for them) and the chunks of the worklist's route (root layout, signed-in
+ * layout, worklist screen; each is its own chunk and each would be asked for only after the one
+ * above it had rendered).
+ * Usage: tsx scripts/preload-web.ts dist
+ */
+import fs from 'node:fs';
+import path from 'node:path';
+
+/** The route files whose chunks the worklist's first render needs, outermost first. */
+const firstRouteFiles = ['./_layout.tsx', './(app)/_layout.tsx', './(app)/index.tsx'];
+const fontPattern = /^PublicSans_.*\.ttf$/;
+
+function* files(dir: string): Generator<string> {
+  for (const entry of fs.readdirSync(dir, { withFileTypes: true })) {
+    const full = path.join(dir, entry.name);
+    if (entry.isDirectory()) yield* files(full);
+    else yield full;
+  }
+}
+
+/**
+ * The chunk paths of `routeFiles`, read from the entry bundle's route context: each route is
+ * `"./file.tsx":{…get:()=>r(d[1])(d[N],d.paths)}` and the module's dependency map, after the module
+ * body, names module N and the chunk that holds it. Returns null when the bundle does not have
+ * that shape (a different bundler version): the page then works as before, without the preloads.
+ */
+export function routeChunks(entry: string, routeFiles: string[]): string[] | null {
+  const first = entry.indexOf(`${JSON.stringify(routeFiles[0])}:{`);
+  if (first < 0) return null;
+  const mapStart = entry.slice(first).search(/\},\d+,\{"0":/);
+  if (mapStart < 0) return null;
+  const open = entry.indexOf('{', first + mapStart + 2);
+  let depth = 0;
+  let close = open;
+  for (; close < entry.length; close++) {
+    if (entry[close] === '{') depth++;
+    else if (entry[close] === '}' && --depth === 0) break;
+  }
+  let map: Record<string, number | Record<string, string>>;
+  try {
+    map = JSON.parse(entry.slice(open, close + 1));
+  } catch {
+    return null;
+  }
+  const paths = map.paths as Record<string, string> | undefined;
+  if (!paths) return null;
+  const context = entry.slice(entry.lastIndexOf('__d(', first), first + mapStart);
+  const chunks: string[] = [];
+  for (const file of routeFiles) {
+    const m = context.match(new RegExp(`${escape(JSON.stringify(file))}:\\{enumerable:!0,get:\\(\\)=>r\\(d\\[\\d+\\]\\)\\(d\\[(\\d+)\\],d\\.paths\\)\\}`));
+    const chunk = m ? paths[String(map[m[1]])] : undefined;
+    if (!chunk) return null;
+    chunks.push(chunk);
+  }
+  return chunks;
+}
+
+const escape = (s: string) => s.replace(/[.*+?^${}()|[\]\\]/g, '\\$&');
+
+function main(): void {
+  const root = path.resolve(process.argv[2] ?? 'dist');
+  const indexFile = path.join(root, 'index.html');
+  let html = fs.readFileSync(indexFile, 'utf8');
+  const all = [...files(root)].map((f) => '/' + path.relative(root, f).split(path.sep).join('/'));
+  const links: string[] = [];
+
+  const entries = all.filter((f) => /\/_expo\/static\/js\/web\/entry-[0-9a-f]+\.js$/.test(f));
+  const chunks = entries.length === 1 ? routeChunks(fs.readFileSync(path.join(root, entries[0]), 'utf8'), firstRouteFiles) : null;
+  if (chunks) for (const href of chunks) links.push(`<link rel="preload" href="${href}" as="script">`);
+  else console.warn('preload-web: the route chunks were not found in the entry bundle; the page loads without their preloads');
+
+  for (const href of all.filter((f) => fontPattern.test(path.basename(f)))) {
+    links.push(`<link rel="preload" href="${href}" as="font" type="font/ttf" crossorigin>`);
+  }
+  html = html.replace(/<link rel="preload"[^>]*>\n?/g, '').replace('</head>', `${links.join('\n')}\n</head>`);
+  fs.writeFileSync(indexFile, html);
+  console.log(`preload-web: ${links.length} preload links in ${indexFile}`);
+}
+
+if (process.argv[1]?.endsWith('preload-web.ts')) main();
