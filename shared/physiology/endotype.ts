@@ -110,6 +110,8 @@ export function classifyStudy(
   let bothJudgedInOneVessel = false;
   const microGroups: MicroGroup[] = [];
   const unjudgedThermo: string[] = [];
+  /** Abnormal CFR or IMR in a vessel where obstruction was not excluded: not a finding, but not normal either. */
+  const unjudgedAbnormal: string[] = [];
   const caveats: string[] = [];
 
   const reasons: string[] = [];
@@ -186,8 +188,10 @@ export function classifyStudy(
         else microGroups.push({ kind, partnerMissing, labels: [label] });
       }
     } else if (!obstructed && (cfrLow || imrHigh)) {
+      const which = cfrLow && imrHigh ? `CFR ${ratio(v.cfr ?? 0)} and IMR ${imrText(v.imr ?? 0)}` : cfrLow ? `CFR ${ratio(v.cfr ?? 0)}` : `IMR ${imrText(v.imr ?? 0)}`;
+      unjudgedAbnormal.push(`${label} ${which}`);
       reasons.push(
-        `${label}: ${cfrLow ? 'CFR' : 'IMR'} is abnormal, but obstruction was not excluded in this vessel (no pressure index and no stenosis estimate), so it is not used for a microvascular finding (COVADIS; EAPCI 2020).`,
+        `${label}: ${which} ${cfrLow && imrHigh ? 'are' : 'is'} abnormal, but obstruction was not excluded in this vessel (no pressure index and no stenosis estimate), so it is not used for a microvascular finding (COVADIS; EAPCI 2020).`,
       );
     }
     if (v.imr !== undefined && imrHigh) {
@@ -341,7 +345,7 @@ export function classifyStudy(
     if (lowRrr) notes.push('a low RRR');
     if (lowMrr) notes.push('a low MRR');
     const noted = notes.length > 0 ? `; ${joinAnd(notes)} ${notes.length > 1 ? 'were' : 'was'} noted but ${notes.length > 1 ? 'do' : 'does'} not define an endotype` : '';
-    if (missing.length === 0 && bothJudgedInOneVessel && !equivocalAch) {
+    if (missing.length === 0 && bothJudgedInOneVessel && !equivocalAch && unjudgedAbnormal.length === 0 && unjudgedThermo.length === 0) {
       endotype = 'no-abnormality';
       if (endothelialDysfunction) {
         headline = 'No obstructive disease, microvascular dysfunction or spasm; endothelial dysfunction on acetylcholine testing';
@@ -356,10 +360,13 @@ export function classifyStudy(
       }
     } else {
       endotype = 'inconclusive';
-      const coronaryFunctionTested = cfrJudgedAny || imrJudgedAny || unjudgedThermo.length > 0 || vaso !== undefined;
+      const coronaryFunctionTested = cfrJudgedAny || imrJudgedAny || unjudgedThermo.length > 0 || unjudgedAbnormal.length > 0 || vaso !== undefined;
       const why = [
         ...(missing.length > 0 ? [`${joinAnd(missing)} ${missing.length > 1 ? 'were' : 'was'} not assessed`] : []),
         ...(unjudgedThermo.length > 0 ? [`the transit times in ${joinAnd(unjudgedThermo)} gave a CFR below 1 and were not judged`] : []),
+        ...(unjudgedAbnormal.length > 0
+          ? [`${joinAnd(unjudgedAbnormal)} ${unjudgedAbnormal.length > 1 ? 'are' : 'is'} abnormal but not judged, because obstruction was not excluded there`]
+          : []),
         ...(equivocalAch ? ['the acetylcholine test was equivocal'] : []),
       ];
       if (!coronaryFunctionTested) {
@@ -371,7 +378,8 @@ export function classifyStudy(
       } else {
         headline = `Endotype not determined: ${joinAnd(why)}${endothelialDysfunction ? '; endothelial dysfunction on acetylcholine testing' : ''}`;
       }
-      reasons.push(`Endotype: inconclusive — nothing abnormal was found, but ${joinAnd(why)}${noted}.`);
+      const lead = unjudgedAbnormal.length > 0 ? 'no abnormality can be concluded' : 'nothing abnormal was found';
+      reasons.push(`Endotype: inconclusive — ${lead}, but ${joinAnd(why)}${noted}.`);
     }
   }
   if (caveats.length > 0) headline += ` — caution: quality check failed in ${caveats.map((c) => c.slice(0, c.indexOf(' ('))).join(', ')}`;

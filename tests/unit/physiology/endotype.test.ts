@@ -512,3 +512,36 @@ describe('"angina" only when the record says angina — COVADIS: microvascular a
     expect(() => analyzeStudy({ vessels: [], angina: 'yes' as unknown as boolean })).toThrow(/Angina must be true or false/);
   });
 });
+
+describe('"no abnormality" needs every measured CFR and IMR to be normal — EAPCI 2020 INOCA consensus (Kunadian et al., EuroIntervention 2020 / Eur Heart J 2020: normal coronary function needs CFR and IMR normal); COVADIS (Beltrame et al., EHJ 2017; Ong et al., IJC 2018)', () => {
+  // LAD: FFR 0.94, CFR 3.0, IMR = Pd 94 × Tmn 0.2234 = 21.0 U (normal). LCx: transit times only, 0.45 / 0.30 s → CFR 1.50 (below 2.0).
+  const lad = (): VesselIn => vessel('lad', { ffrPd: 94, imrTmn: 0.2234 });
+  const lcxTransitOnly: VesselIn = { id: 'lcx', vessel: 'LCX', rest: { tmn: three(0.45) }, hyperemia: { tmn: three(0.3) } } as VesselIn;
+
+  it('a low CFR where obstruction was not excluded leaves the endotype open, naming that CFR', () => {
+    const r = study([lad(), lcxTransitOnly], negativeAch);
+    expect(r.vessels[0].imr).toBeCloseTo(21, 1);
+    expect(r.vessels[1].cfr).toBeCloseTo(1.5, 10);
+    expect(r.vessels[1].cfrFlag).toBe('abnormal');
+    expect(r.findings.microvascular).toBeNull();
+    expect(r.endotype).toBe('inconclusive');
+    expect(r.headline).toContain('LCx CFR 1.50 is abnormal but not judged, because obstruction was not excluded there');
+    expect(r.reasons.at(-1)).toMatch(/^Endotype: inconclusive — no abnormality can be concluded, but LCx CFR 1\.50 is abnormal/);
+    expect(r.reasons.some((s) => /no coronary abnormality/i.test(s))).toBe(false);
+  });
+
+  it('the same LCx with a stenosis estimate below 50% is judged: functional microvascular dysfunction is not hidden', () => {
+    const r = study([lad(), { ...lcxTransitOnly, visualStenosisPct: 20 }], negativeAch);
+    expect(r.endotype).toBe('microvascular-angina');
+  });
+
+  it('a vessel with CFR below 1 (swapped transit times) also keeps "no abnormality" away, naming the vessel', () => {
+    const swappedLcx: VesselIn = { id: 'lcx', vessel: 'LCX', rest: { pa: 100, pd: 97, tmn: three(0.3) }, hyperemia: { pa: 100, pd: 94, tmn: three(0.9) } };
+    const r = study([lad(), swappedLcx], negativeAch);
+    expect(r.vessels[1].warnings.map((w) => w.code)).toContain('cfr-below-one');
+    expect(r.endotype).toBe('inconclusive');
+    expect(r.headline).toContain('the transit times in LCx gave a CFR below 1 and were not judged');
+    // Without the faulty vessel the same study is normal.
+    expect(study([lad()], negativeAch).endotype).toBe('no-abnormality');
+  });
+});
