@@ -545,3 +545,28 @@ describe('"no abnormality" needs every measured CFR and IMR to be normal — EAP
     expect(study([lad()], negativeAch).endotype).toBe('no-abnormality');
   });
 });
+
+describe('nitrates before acetylcholine cast doubt only on a test without spasm — ESC 2024 chronic coronary syndromes (nitrates relieve spasm; protocol: nitroglycerin after acetylcholine); COVADIS (Beltrame et al., EHJ 2017; Ong et al., IJC 2018)', () => {
+  const before = { nitratesBeforeAcetylcholine: true } as const;
+  it('endothelial dysfunction (50% constriction, no symptoms, no ECG change) stands; spasm is said to be possibly masked, not the test falsely negative', () => {
+    const r = analyzeStudy({ vessels: [normalVessel()], vasoreactivity: { doses: endothelial }, procedure: before });
+    expect(r.vasoreactivity?.result).toBe('endothelial-dysfunction');
+    expect(r.findings.endothelialDysfunction).toBe(true);
+    expect(r.headline).not.toContain('falsely negative');
+    expect(r.headline).toMatch(/^Endothelial dysfunction on acetylcholine testing; .*spasm may have been masked/);
+    expect(r.reasons.at(-1)).toContain('endothelial dysfunction was found on acetylcholine testing and stands, but spasm cannot be excluded');
+    expect(r.endotype).toBe('inconclusive');
+  });
+  it('epicardial spasm provoked despite nitrates stands, and the warning says so', () => {
+    const r = analyzeStudy({ vessels: [normalVessel()], vasoreactivity: { doses: epicardialSpasm }, procedure: before, angina: true });
+    expect(r.endotype).toBe('vasospastic-angina');
+    expect(r.headline).toBe('Vasospastic angina: epicardial coronary spasm');
+    const w = r.warnings.find((x) => x.code === 'nitrates-before-acetylcholine');
+    expect(w?.message).toContain('the positive result stands');
+    expect(w?.message).not.toContain('falsely negative');
+  });
+  it('a negative test after nitrates is still called possibly falsely negative', () => {
+    const r = analyzeStudy({ vessels: [normalVessel()], vasoreactivity: { doses: negativeAch }, procedure: before });
+    expect(r.headline).toBe('Endotype not determined: the acetylcholine test may be falsely negative (nitroglycerin was given before acetylcholine)');
+  });
+});
