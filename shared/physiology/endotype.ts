@@ -55,10 +55,10 @@ function microPhrase(kind: MicroKind, partnerMissing: boolean): string {
   switch (kind) {
     case 'structural':
       return 'structural coronary microvascular dysfunction (low CFR, raised IMR)';
+    case 'type-unknown':
+      return 'coronary microvascular dysfunction with low CFR (IMR not measured, so its type is not known)';
     case 'functional':
-      return partnerMissing
-        ? 'coronary microvascular dysfunction with low CFR (IMR not measured, so its type is not known)'
-        : 'functional coronary microvascular dysfunction (low CFR, IMR not raised)';
+      return 'functional coronary microvascular dysfunction (low CFR, IMR not raised)';
     default:
       return partnerMissing
         ? 'raised microvascular resistance (CFR not measured)'
@@ -68,7 +68,7 @@ function microPhrase(kind: MicroKind, partnerMissing: boolean): string {
 
 const spasmWords = { epicardial: 'epicardial coronary spasm', microvascular: 'microvascular spasm' } as const;
 
-const microRank = { structural: 3, functional: 2, 'raised-imr': 1 } as const;
+const microRank = { structural: 4, functional: 3, 'type-unknown': 2, 'raised-imr': 1 } as const;
 
 interface MicroGroup {
   kind: MicroKind;
@@ -178,11 +178,13 @@ export function classifyStudy(
       if (cfrJudged) cfrJudgedAny = true;
       if (imrJudged) imrJudgedAny = true;
       if (cfrJudged && imrJudged) bothJudgedInOneVessel = true;
-      const kind: Findings['microvascular'] = cfrLow && imrHigh ? 'structural' : cfrLow ? 'functional' : imrHigh ? 'raised-imr' : null;
+      // Functional needs IMR measured and not raised (EAPCI 2020); a low CFR without IMR is of unknown type.
+      const kind: Findings['microvascular'] =
+        cfrLow && imrHigh ? 'structural' : cfrLow ? (v.imr === undefined ? 'type-unknown' : 'functional') : imrHigh ? 'raised-imr' : null;
       if (kind !== null) {
         v.microvascular = kind;
         if (microvascular === null || microRank[kind] > microRank[microvascular]) microvascular = kind;
-        const partnerMissing = kind === 'functional' ? v.imr === undefined : kind === 'raised-imr' ? v.cfr === undefined : false;
+        const partnerMissing = kind === 'type-unknown' ? true : kind === 'raised-imr' ? v.cfr === undefined : false;
         const group = microGroups.find((g) => g.kind === kind && g.partnerMissing === partnerMissing);
         if (group) group.labels.push(label);
         else microGroups.push({ kind, partnerMissing, labels: [label] });
@@ -258,10 +260,10 @@ export function classifyStudy(
     switch (g.kind) {
       case 'structural':
         return `structural microvascular dysfunction${where}: CFR below ${cutRatio(t.cfr)} with IMR at or above ${cutPlain(t.imr)}`;
+      case 'type-unknown':
+        return `microvascular dysfunction with low CFR${where}: CFR below ${cutRatio(t.cfr)} with IMR not measured`;
       case 'functional':
-        return g.partnerMissing
-          ? `microvascular dysfunction with low CFR${where}: CFR below ${cutRatio(t.cfr)} with IMR not measured`
-          : `functional microvascular dysfunction${where}: CFR below ${cutRatio(t.cfr)} with IMR below the cut-off`;
+        return `functional microvascular dysfunction${where}: CFR below ${cutRatio(t.cfr)} with IMR below the cut-off`;
       default:
         return g.partnerMissing
           ? `raised microvascular resistance${where}: IMR at or above ${cutPlain(t.imr)} with CFR not measured`

@@ -337,7 +337,7 @@ describe('microvascular findings need obstruction excluded in the same vessel �
   });
   it('with a visual stenosis below 50% the same vessel counts, and a missing IMR is said as such, not as "IMR not raised"', () => {
     const r = study([{ id: 'lad', vessel: 'LAD', visualStenosisPct: 20, rest: { tmn: three(0.6) }, hyperemia: { tmn: three(0.4) } } as VesselIn], negativeAch);
-    expect(r.findings.microvascular).toBe('functional');
+    expect(r.findings.microvascular).toBe('type-unknown');
     expect(r.headline).toContain('IMR not measured');
     expect(r.headline).not.toContain('IMR not raised');
   });
@@ -568,5 +568,27 @@ describe('nitrates before acetylcholine cast doubt only on a test without spasm 
   it('a negative test after nitrates is still called possibly falsely negative', () => {
     const r = analyzeStudy({ vessels: [normalVessel()], vasoreactivity: { doses: negativeAch }, procedure: before });
     expect(r.headline).toBe('Endotype not determined: the acetylcholine test may be falsely negative (nitroglycerin was given before acetylcholine)');
+  });
+});
+
+describe('functional microvascular dysfunction needs IMR measured and not raised — EAPCI 2020 INOCA consensus (Kunadian et al., EuroIntervention 2020 / Eur Heart J 2020: low CFR with normal IMR); COVADIS (Ong et al., IJC 2018)', () => {
+  it('LAD console FFR 0.90, CFR 1.67 (Tmn 0.50 / 0.30 s), no hyperaemic pressures so no IMR: dysfunction of unknown type, not functional', () => {
+    const r = study([{ id: 'lad', vessel: 'LAD', ffr: 0.9, rest: { tmn: three(0.5) }, hyperemia: { tmn: three(0.3) } } as VesselIn], negativeAch, undefined, true);
+    expect(r.vessels[0].cfr).toBeCloseTo(5 / 3, 10);
+    expect(r.vessels[0].imr).toBeUndefined();
+    expect(r.vessels[0].microvascular).toBe('type-unknown');
+    expect(r.findings.microvascular).toBe('type-unknown');
+    expect(r.endotype).toBe('microvascular-angina');
+    expect(r.headline).toBe('Microvascular angina: coronary microvascular dysfunction with low CFR (IMR not measured, so its type is not known) in LAD');
+    expect(r.reasons.join(' ')).not.toContain('functional microvascular dysfunction');
+  });
+  it('with IMR measured and normal (Pd 90 × Tmn 0.20 = 18 U) the same low CFR is functional', () => {
+    const r = study([vessel('lad', { cfr: 1.67 })], negativeAch, undefined, true);
+    expect(r.findings.microvascular).toBe('functional');
+  });
+  it('a known kind in one vessel outranks an unknown one in another; structural outranks both', () => {
+    const unknown = { id: 'lcx', vessel: 'LCX', visualStenosisPct: 20, rest: { tmn: three(0.5) }, hyperemia: { tmn: three(0.3) } } as VesselIn;
+    expect(study([vessel('lad', { cfr: 1.5 }), unknown], negativeAch).findings.microvascular).toBe('functional');
+    expect(study([vessel('lad', { cfr: 1.5, imrTmn: 0.4 }), unknown], negativeAch).findings.microvascular).toBe('structural');
   });
 });
