@@ -204,7 +204,10 @@ export function classifyStudy(
           ' U' +
           imrMethodName[v.imrMethod ?? 'pd-tmn'] +
           ctx.imrAbnormal +
-          (obstructed ? ctx.obstructedTail : cfrLow ? ' with impaired CFR (structural microvascular dysfunction).' : v.cfr !== undefined ? ' with CFR preserved — not structural dysfunction, which needs a low CFR as well.' : ' (CFR not measured).'),
+          (obstructed ? ctx.obstructedTail : cfrLow ? ' with impaired CFR (structural microvascular dysfunction).' : v.cfr !== undefined ? ' with CFR preserved — not structural dysfunction, which needs a low CFR as well.' : ' (CFR not measured).') +
+          (v.warnings.some((w) => w.code === 'hyperemia-inadequate')
+            ? ' Hyperaemia may have been inadequate: the hyperaemic transit time would then be too long, so this IMR may be overestimated.'
+            : ''),
       );
     }
     if (v.cfr !== undefined) {

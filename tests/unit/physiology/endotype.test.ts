@@ -592,3 +592,18 @@ describe('functional microvascular dysfunction needs IMR measured and not raised
     expect(study([vessel('lad', { cfr: 1.5, imrTmn: 0.4 }), unknown], negativeAch).findings.microvascular).toBe('structural');
   });
 });
+
+describe('inadequate hyperaemia lengthens the hyperaemic transit time and so raises IMR — EAPCI 2020 INOCA consensus (Kunadian et al., EuroIntervention 2020: IMR = Pd × Tmn at maximal hyperaemia); [memory] no fall in aortic pressure on intravenous adenosine suggests inadequate hyperaemia', () => {
+  it('IV adenosine with no fall in Pa and IMR 36 (Pd 90 × Tmn 0.40): the warning and the raised-IMR reason say IMR may be overestimated', () => {
+    const lad: VesselIn = { id: 'lad', vessel: 'LAD', rest: { pa: 100, pd: 97, tmn: three(1.2) }, hyperemia: { pa: 100, pd: 90, tmn: three(0.4) } };
+    const r = analyzeStudy({ vessels: [lad], vasoreactivity: { doses: negativeAch }, procedure: { hyperemicAgent: 'adenosine', hyperemicRoute: 'intravenous' } });
+    const v = r.vessels[0];
+    expect(v.imr).toBeCloseTo(36, 10);
+    expect(v.imrFlag).toBe('abnormal');
+    expect(v.warnings.find((w) => w.code === 'hyperemia-inadequate')?.message).toContain('overestimate IMR');
+    expect(r.reasons.find((s) => s.startsWith('LAD: IMR 36'))).toContain('this IMR may be overestimated');
+    // The same study with Pa falling on adenosine carries no such qualifier.
+    const fell = analyzeStudy({ vessels: [{ ...lad, hyperemia: { pa: 90, pd: 81, tmn: three(0.4) } }], vasoreactivity: { doses: negativeAch }, procedure: { hyperemicAgent: 'adenosine', hyperemicRoute: 'intravenous' } });
+    expect(fell.reasons.join(' ')).not.toContain('may be overestimated');
+  });
+});
