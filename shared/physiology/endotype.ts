@@ -55,10 +55,10 @@ function microPhrase(kind: MicroKind, partnerMissing: boolean): string {
   switch (kind) {
     case 'structural':
       return 'structural coronary microvascular dysfunction (low CFR, raised IMR)';
+    case 'type-unknown':
+      return 'coronary microvascular dysfunction with low CFR (IMR not measured, so its type is not known)';
     case 'functional':
-      return partnerMissing
-        ? 'coronary microvascular dysfunction with low CFR (IMR not measured, so its type is not known)'
-        : 'functional coronary microvascular dysfunction (low CFR, IMR not raised)';
+      return 'functional coronary microvascular dysfunction (low CFR, IMR not raised)';
     default:
       return partnerMissing
         ? 'raised microvascular resistance (CFR not measured)'
@@ -68,7 +68,7 @@ function microPhrase(kind: MicroKind, partnerMissing: boolean): string {
 
 const spasmWords = { epicardial: 'epicardial coronary spasm', microvascular: 'microvascular spasm' } as const;
 
-const microRank = { structural: 3, functional: 2, 'raised-imr': 1 } as const;
+const microRank = { structural: 4, functional: 3, 'type-unknown': 2, 'raised-imr': 1 } as const;
 
 interface MicroGroup {
   kind: MicroKind;
@@ -110,6 +110,8 @@ export function classifyStudy(
   let bothJudgedInOneVessel = false;
   const microGroups: MicroGroup[] = [];
   const unjudgedThermo: string[] = [];
+  /** Abnormal CFR or IMR in a vessel where obstruction was not excluded: not a finding, but not normal either. */
+  const unjudgedAbnormal: string[] = [];
   const caveats: string[] = [];
 
   const reasons: string[] = [];
@@ -176,18 +178,22 @@ export function classifyStudy(
       if (cfrJudged) cfrJudgedAny = true;
       if (imrJudged) imrJudgedAny = true;
       if (cfrJudged && imrJudged) bothJudgedInOneVessel = true;
-      const kind: Findings['microvascular'] = cfrLow && imrHigh ? 'structural' : cfrLow ? 'functional' : imrHigh ? 'raised-imr' : null;
+      // Functional needs IMR measured and not raised (EAPCI 2020); a low CFR without IMR is of unknown type.
+      const kind: Findings['microvascular'] =
+        cfrLow && imrHigh ? 'structural' : cfrLow ? (v.imr === undefined ? 'type-unknown' : 'functional') : imrHigh ? 'raised-imr' : null;
       if (kind !== null) {
         v.microvascular = kind;
         if (microvascular === null || microRank[kind] > microRank[microvascular]) microvascular = kind;
-        const partnerMissing = kind === 'functional' ? v.imr === undefined : kind === 'raised-imr' ? v.cfr === undefined : false;
+        const partnerMissing = kind === 'type-unknown' ? true : kind === 'raised-imr' ? v.cfr === undefined : false;
         const group = microGroups.find((g) => g.kind === kind && g.partnerMissing === partnerMissing);
         if (group) group.labels.push(label);
         else microGroups.push({ kind, partnerMissing, labels: [label] });
       }
     } else if (!obstructed && (cfrLow || imrHigh)) {
+      const which = cfrLow && imrHigh ? `CFR ${ratio(v.cfr ?? 0)} and IMR ${imrText(v.imr ?? 0)}` : cfrLow ? `CFR ${ratio(v.cfr ?? 0)}` : `IMR ${imrText(v.imr ?? 0)}`;
+      unjudgedAbnormal.push(`${label} ${which}`);
       reasons.push(
-        `${label}: ${cfrLow ? 'CFR' : 'IMR'} is abnormal, but obstruction was not excluded in this vessel (no pressure index and no stenosis estimate), so it is not used for a microvascular finding (COVADIS; EAPCI 2020).`,
+        `${label}: ${which} ${cfrLow && imrHigh ? 'are' : 'is'} abnormal, but obstruction was not excluded in this vessel (no pressure index and no stenosis estimate), so it is not used for a microvascular finding (COVADIS; EAPCI 2020).`,
       );
     }
     if (v.imr !== undefined && imrHigh) {
@@ -198,7 +204,10 @@ export function classifyStudy(
           ' U' +
           imrMethodName[v.imrMethod ?? 'pd-tmn'] +
           ctx.imrAbnormal +
-          (obstructed ? ctx.obstructedTail : cfrLow ? ' with impaired CFR (structural microvascular dysfunction).' : v.cfr !== undefined ? ' with CFR preserved — not structural dysfunction, which needs a low CFR as well.' : ' (CFR not measured).'),
+          (obstructed ? ctx.obstructedTail : cfrLow ? ' with impaired CFR (structural microvascular dysfunction).' : v.cfr !== undefined ? ' with CFR preserved — not structural dysfunction, which needs a low CFR as well.' : ' (CFR not measured).') +
+          (v.warnings.some((w) => w.code === 'hyperemia-inadequate')
+            ? ' Hyperaemia may have been inadequate: the hyperaemic transit time would then be too long, so this IMR may be overestimated.'
+            : ''),
       );
     }
     if (v.cfr !== undefined) {
@@ -254,10 +263,10 @@ export function classifyStudy(
     switch (g.kind) {
       case 'structural':
         return `structural microvascular dysfunction${where}: CFR below ${cutRatio(t.cfr)} with IMR at or above ${cutPlain(t.imr)}`;
+      case 'type-unknown':
+        return `microvascular dysfunction with low CFR${where}: CFR below ${cutRatio(t.cfr)} with IMR not measured`;
       case 'functional':
-        return g.partnerMissing
-          ? `microvascular dysfunction with low CFR${where}: CFR below ${cutRatio(t.cfr)} with IMR not measured`
-          : `functional microvascular dysfunction${where}: CFR below ${cutRatio(t.cfr)} with IMR below the cut-off`;
+        return `functional microvascular dysfunction${where}: CFR below ${cutRatio(t.cfr)} with IMR below the cut-off`;
       default:
         return g.partnerMissing
           ? `raised microvascular resistance${where}: IMR at or above ${cutPlain(t.imr)} with CFR not measured`
@@ -341,7 +350,7 @@ export function classifyStudy(
     if (lowRrr) notes.push('a low RRR');
     if (lowMrr) notes.push('a low MRR');
     const noted = notes.length > 0 ? `; ${joinAnd(notes)} ${notes.length > 1 ? 'were' : 'was'} noted but ${notes.length > 1 ? 'do' : 'does'} not define an endotype` : '';
-    if (missing.length === 0 && bothJudgedInOneVessel && !equivocalAch) {
+    if (missing.length === 0 && bothJudgedInOneVessel && !equivocalAch && unjudgedAbnormal.length === 0 && unjudgedThermo.length === 0) {
       endotype = 'no-abnormality';
       if (endothelialDysfunction) {
         headline = 'No obstructive disease, microvascular dysfunction or spasm; endothelial dysfunction on acetylcholine testing';
@@ -356,10 +365,13 @@ export function classifyStudy(
       }
     } else {
       endotype = 'inconclusive';
-      const coronaryFunctionTested = cfrJudgedAny || imrJudgedAny || unjudgedThermo.length > 0 || vaso !== undefined;
+      const coronaryFunctionTested = cfrJudgedAny || imrJudgedAny || unjudgedThermo.length > 0 || unjudgedAbnormal.length > 0 || vaso !== undefined;
       const why = [
         ...(missing.length > 0 ? [`${joinAnd(missing)} ${missing.length > 1 ? 'were' : 'was'} not assessed`] : []),
         ...(unjudgedThermo.length > 0 ? [`the transit times in ${joinAnd(unjudgedThermo)} gave a CFR below 1 and were not judged`] : []),
+        ...(unjudgedAbnormal.length > 0
+          ? [`${joinAnd(unjudgedAbnormal)} ${unjudgedAbnormal.length > 1 ? 'are' : 'is'} abnormal but not judged, because obstruction was not excluded there`]
+          : []),
         ...(equivocalAch ? ['the acetylcholine test was equivocal'] : []),
       ];
       if (!coronaryFunctionTested) {
@@ -371,7 +383,8 @@ export function classifyStudy(
       } else {
         headline = `Endotype not determined: ${joinAnd(why)}${endothelialDysfunction ? '; endothelial dysfunction on acetylcholine testing' : ''}`;
       }
-      reasons.push(`Endotype: inconclusive — nothing abnormal was found, but ${joinAnd(why)}${noted}.`);
+      const lead = unjudgedAbnormal.length > 0 ? 'no abnormality can be concluded' : 'nothing abnormal was found';
+      reasons.push(`Endotype: inconclusive — ${lead}, but ${joinAnd(why)}${noted}.`);
     }
   }
   if (caveats.length > 0) headline += ` — caution: quality check failed in ${caveats.map((c) => c.slice(0, c.indexOf(' ('))).join(', ')}`;

@@ -138,7 +138,7 @@ function okProcedure(x: unknown): boolean {
     } else if (k === 'hyperemicRoute') {
       if (v !== 'intravenous' && v !== 'intracoronary') return false;
     } else if (k === 'nitratesBeforeAcetylcholine') {
-      if (typeof v !== 'boolean') return false;
+      if (typeof v !== 'boolean' && v !== 'unknown') return false;
     } else return false;
   }
   return true;

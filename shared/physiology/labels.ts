@@ -74,6 +74,7 @@ export const microvascularLabel: Readonly<Record<NonNullable<Findings['microvasc
   structural: 'Structural microvascular dysfunction',
   functional: 'Functional microvascular dysfunction',
   'raised-imr': 'Raised microvascular resistance, CFR preserved',
+  'type-unknown': 'Microvascular dysfunction with low CFR, type not known (IMR not measured)',
 });
 
 /** The standing caution beside every computed value and suggestion. */

@@ -135,7 +135,7 @@ export function checkHyperemia(
   if (hypPa >= restPa) {
     warnings.push({
       code: 'hyperemia-inadequate',
-      message: `${label}: aortic pressure did not fall on intravenous adenosine (Pa ${restPa} mmHg at rest, ${hypPa} mmHg at hyperaemia); hyperaemia may have been inadequate, which would overestimate FFR and underestimate CFR.`,
+      message: `${label}: aortic pressure did not fall on intravenous adenosine (Pa ${restPa} mmHg at rest, ${hypPa} mmHg at hyperaemia); hyperaemia may have been inadequate, which would overestimate FFR, underestimate CFR and overestimate IMR (a longer hyperaemic transit time raises IMR).`,
     });
   }
 }

@@ -93,7 +93,10 @@ const procedureSchema = z.strictObject(
   {
     hyperemicAgent: z.enum(hyperemicAgents, { error: `Hyperaemic agent must be one of ${hyperemicAgents.join(', ')}.` }).optional(),
     hyperemicRoute: z.enum(drugRoutes, { error: `Hyperaemic route must be one of ${drugRoutes.join(', ')}.` }).optional(),
-    nitratesBeforeAcetylcholine: z.boolean({ error: 'Nitrates before acetylcholine must be true or false.' }).optional(),
+    /** 'unknown': nitrates were given, but whether before or after acetylcholine is not recorded. */
+    nitratesBeforeAcetylcholine: z
+      .union([z.boolean(), z.literal('unknown')], { error: "Nitrates before acetylcholine must be true, false or 'unknown'." })
+      .optional(),
   },
   { error: strictMessage('the procedure') },
 );

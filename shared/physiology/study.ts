@@ -46,17 +46,25 @@ export function analyzeValidated(data: PhysiologyOutput): PhysiologyResult {
   const classified = classifyStudy(vessels, labels, vasoreactivity, vasoReasons, ctx, data.angina);
   const { findings, reasons } = classified;
   let { endotype, headline } = classified;
-  // A negative test that may be falsely negative does not support "no abnormality" (ESC 2024): nitrates
-  // given before acetylcholine, or no dose reached the provocative range (100 µg left, 50 µg right).
-  if (endotype === 'no-abnormality' && doses !== undefined && doses.length > 0) {
+  // A test that may be falsely negative does not support "no abnormality" (ESC 2024): nitrates given
+  // before acetylcholine (or at a time not recorded), or no dose reached the provocative range (100 µg
+  // left, 50 µg right). Only a test without spasm is in doubt: endothelial dysfunction stays a finding,
+  // but spasm is not excluded beside it. A spasm provoked despite nitrates stands.
+  if (endotype === 'no-abnormality' && doses !== undefined && doses.length > 0 && vasoreactivity !== undefined) {
     const doubts: string[] = [];
     if (warnings.some((w) => w.code === 'nitrates-before-acetylcholine')) doubts.push('nitroglycerin was given before acetylcholine');
+    if (warnings.some((w) => w.code === 'nitrate-timing-unknown')) doubts.push('nitrates were given and their timing is not recorded');
     const provocative = doses.some((d) => d.micrograms >= (rightCoronaryVessels.has(d.vessel) ? PROVOCATIVE_RIGHT_UG : PROVOCATIVE_LEFT_UG));
     if (!provocative) doubts.push(`no dose reached the provocative range (${PROVOCATIVE_LEFT_UG} µg left, ${PROVOCATIVE_RIGHT_UG} µg right coronary)`);
     if (doubts.length > 0) {
       endotype = 'inconclusive';
-      headline = `Endotype not determined: the acetylcholine test may be falsely negative (${doubts.join('; ')})`;
-      reasons[reasons.length - 1] = `Endotype: inconclusive — no abnormality was found, but the acetylcholine test may be falsely negative: ${doubts.join('; ')} (ESC 2024).`;
+      if (vasoreactivity.result === 'endothelial-dysfunction') {
+        headline = `Endothelial dysfunction on acetylcholine testing; endotype not determined: spasm may have been masked or not provoked (${doubts.join('; ')})`;
+        reasons[reasons.length - 1] = `Endotype: inconclusive — endothelial dysfunction was found on acetylcholine testing and stands, but spasm cannot be excluded: ${doubts.join('; ')} (ESC 2024).`;
+      } else {
+        headline = `Endotype not determined: the acetylcholine test may be falsely negative (${doubts.join('; ')})`;
+        reasons[reasons.length - 1] = `Endotype: inconclusive — no abnormality was found, but the acetylcholine test may be falsely negative: ${doubts.join('; ')} (ESC 2024).`;
+      }
     }
   }
   const result: PhysiologyResult = { vessels, findings, endotype, headline, reasons, warnings };

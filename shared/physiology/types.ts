@@ -48,7 +48,7 @@ export interface VesselResult {
    * only where obstruction was excluded in the vessel. The study's `findings.microvascular` is the most
    * severe of these.
    */
-  microvascular?: 'structural' | 'functional' | 'raised-imr';
+  microvascular?: 'structural' | 'functional' | 'raised-imr' | 'type-unknown';
   warnings: PhysiologyWarning[];
 }
 
@@ -84,9 +84,11 @@ export interface Findings {
   obstructive: boolean;
   /**
    * Microvascular dysfunction in a non-obstructed vessel: structural (low CFR and high IMR),
-   * functional (low CFR, IMR not high), raised-imr (high IMR with CFR not low).
+   * functional (low CFR, IMR measured and not high), raised-imr (high IMR with CFR not low),
+   * type-unknown (low CFR with IMR not measured: dysfunction, but structural and functional cannot be
+   * told apart).
    */
-  microvascular: null | 'structural' | 'functional' | 'raised-imr';
+  microvascular: null | 'structural' | 'functional' | 'raised-imr' | 'type-unknown';
   /** Acetylcholine constriction without spasm (the study's acetylcholine result). */
   endothelialDysfunction: boolean;
   vasospasm: null | 'epicardial' | 'microvascular';

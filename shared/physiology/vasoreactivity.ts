@@ -87,11 +87,21 @@ export function analyzeVasoreactivity(
       });
     }
   }
+  // Nitrates relieve spasm: they can hide a spasm, never create one, so a spasm seen after them stands.
+  const spasmSeen = worst === 'epicardial-spasm' || worst === 'microvascular-spasm';
+  const protocol = '(ESC 2024 protocol: nitroglycerin after acetylcholine, nitrates stopped 24 h before)';
   if (procedure?.nitratesBeforeAcetylcholine === true && doses.length > 0) {
     warnings.push({
       code: 'nitrates-before-acetylcholine',
-      message:
-        'Nitrates were given before the acetylcholine test; they relieve spasm and can make the test falsely negative (ESC 2024 protocol: nitroglycerin after acetylcholine, nitrates stopped 24 h before).',
+      message: spasmSeen
+        ? `Nitrates were given before the acetylcholine test; they relieve spasm, yet spasm was provoked, so the positive result stands ${protocol}.`
+        : `Nitrates were given before the acetylcholine test; they relieve spasm and can make the test falsely negative — spasm may have been masked ${protocol}.`,
+    });
+  }
+  if (procedure?.nitratesBeforeAcetylcholine === 'unknown' && doses.length > 0 && !spasmSeen) {
+    warnings.push({
+      code: 'nitrate-timing-unknown',
+      message: `Nitrates were given, but when is not recorded; if before the acetylcholine test, they may have masked spasm and the test may be falsely negative — record the timing ${protocol}.`,
     });
   }
 

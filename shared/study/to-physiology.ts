@@ -58,10 +58,11 @@ function toProcedure(setup: StudySections['setup'], acetylcholineGiven: boolean)
   const out: ProcedureInput = {};
   if (setup.hyperemicAgent) out.hyperemicAgent = setup.hyperemicAgent;
   if (setup.hyperemicRoute) out.hyperemicRoute = setup.hyperemicRoute;
-  // Only meaningful when acetylcholine was tested; "given" with no timing is not assumed either way.
+  // Only meaningful when acetylcholine was tested; "given" with no timing is passed on as unknown
+  // (then a negative test cannot exclude spasm).
   if (acetylcholineGiven && setup.nitratesGiven !== null) {
     if (setup.nitratesGiven === false) out.nitratesBeforeAcetylcholine = false;
-    else if (setup.nitrateTiming) out.nitratesBeforeAcetylcholine = setup.nitrateTiming === 'before-measurements';
+    else out.nitratesBeforeAcetylcholine = setup.nitrateTiming ? setup.nitrateTiming === 'before-measurements' : 'unknown';
   }
   return out;
 }

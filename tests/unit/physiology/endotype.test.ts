@@ -337,7 +337,7 @@ describe('microvascular findings need obstruction excluded in the same vessel �
   });
   it('with a visual stenosis below 50% the same vessel counts, and a missing IMR is said as such, not as "IMR not raised"', () => {
     const r = study([{ id: 'lad', vessel: 'LAD', visualStenosisPct: 20, rest: { tmn: three(0.6) }, hyperemia: { tmn: three(0.4) } } as VesselIn], negativeAch);
-    expect(r.findings.microvascular).toBe('functional');
+    expect(r.findings.microvascular).toBe('type-unknown');
     expect(r.headline).toContain('IMR not measured');
     expect(r.headline).not.toContain('IMR not raised');
   });
@@ -510,5 +510,100 @@ describe('"angina" only when the record says angina — COVADIS: microvascular a
   });
   it('a value other than true or false is refused', () => {
     expect(() => analyzeStudy({ vessels: [], angina: 'yes' as unknown as boolean })).toThrow(/Angina must be true or false/);
+  });
+});
+
+describe('"no abnormality" needs every measured CFR and IMR to be normal — EAPCI 2020 INOCA consensus (Kunadian et al., EuroIntervention 2020 / Eur Heart J 2020: normal coronary function needs CFR and IMR normal); COVADIS (Beltrame et al., EHJ 2017; Ong et al., IJC 2018)', () => {
+  // LAD: FFR 0.94, CFR 3.0, IMR = Pd 94 × Tmn 0.2234 = 21.0 U (normal). LCx: transit times only, 0.45 / 0.30 s → CFR 1.50 (below 2.0).
+  const lad = (): VesselIn => vessel('lad', { ffrPd: 94, imrTmn: 0.2234 });
+  const lcxTransitOnly: VesselIn = { id: 'lcx', vessel: 'LCX', rest: { tmn: three(0.45) }, hyperemia: { tmn: three(0.3) } } as VesselIn;
+
+  it('a low CFR where obstruction was not excluded leaves the endotype open, naming that CFR', () => {
+    const r = study([lad(), lcxTransitOnly], negativeAch);
+    expect(r.vessels[0].imr).toBeCloseTo(21, 1);
+    expect(r.vessels[1].cfr).toBeCloseTo(1.5, 10);
+    expect(r.vessels[1].cfrFlag).toBe('abnormal');
+    expect(r.findings.microvascular).toBeNull();
+    expect(r.endotype).toBe('inconclusive');
+    expect(r.headline).toContain('LCx CFR 1.50 is abnormal but not judged, because obstruction was not excluded there');
+    expect(r.reasons.at(-1)).toMatch(/^Endotype: inconclusive — no abnormality can be concluded, but LCx CFR 1\.50 is abnormal/);
+    expect(r.reasons.some((s) => /no coronary abnormality/i.test(s))).toBe(false);
+  });
+
+  it('the same LCx with a stenosis estimate below 50% is judged: functional microvascular dysfunction is not hidden', () => {
+    const r = study([lad(), { ...lcxTransitOnly, visualStenosisPct: 20 }], negativeAch);
+    expect(r.endotype).toBe('microvascular-angina');
+  });
+
+  it('a vessel with CFR below 1 (swapped transit times) also keeps "no abnormality" away, naming the vessel', () => {
+    const swappedLcx: VesselIn = { id: 'lcx', vessel: 'LCX', rest: { pa: 100, pd: 97, tmn: three(0.3) }, hyperemia: { pa: 100, pd: 94, tmn: three(0.9) } };
+    const r = study([lad(), swappedLcx], negativeAch);
+    expect(r.vessels[1].warnings.map((w) => w.code)).toContain('cfr-below-one');
+    expect(r.endotype).toBe('inconclusive');
+    expect(r.headline).toContain('the transit times in LCx gave a CFR below 1 and were not judged');
+    // Without the faulty vessel the same study is normal.
+    expect(study([lad()], negativeAch).endotype).toBe('no-abnormality');
+  });
+});
+
+describe('nitrates before acetylcholine cast doubt only on a test without spasm — ESC 2024 chronic coronary syndromes (nitrates relieve spasm; protocol: nitroglycerin after acetylcholine); COVADIS (Beltrame et al., EHJ 2017; Ong et al., IJC 2018)', () => {
+  const before = { nitratesBeforeAcetylcholine: true } as const;
+  it('endothelial dysfunction (50% constriction, no symptoms, no ECG change) stands; spasm is said to be possibly masked, not the test falsely negative', () => {
+    const r = analyzeStudy({ vessels: [normalVessel()], vasoreactivity: { doses: endothelial }, procedure: before });
+    expect(r.vasoreactivity?.result).toBe('endothelial-dysfunction');
+    expect(r.findings.endothelialDysfunction).toBe(true);
+    expect(r.headline).not.toContain('falsely negative');
+    expect(r.headline).toMatch(/^Endothelial dysfunction on acetylcholine testing; .*spasm may have been masked/);
+    expect(r.reasons.at(-1)).toContain('endothelial dysfunction was found on acetylcholine testing and stands, but spasm cannot be excluded');
+    expect(r.endotype).toBe('inconclusive');
+  });
+  it('epicardial spasm provoked despite nitrates stands, and the warning says so', () => {
+    const r = analyzeStudy({ vessels: [normalVessel()], vasoreactivity: { doses: epicardialSpasm }, procedure: before, angina: true });
+    expect(r.endotype).toBe('vasospastic-angina');
+    expect(r.headline).toBe('Vasospastic angina: epicardial coronary spasm');
+    const w = r.warnings.find((x) => x.code === 'nitrates-before-acetylcholine');
+    expect(w?.message).toContain('the positive result stands');
+    expect(w?.message).not.toContain('falsely negative');
+  });
+  it('a negative test after nitrates is still called possibly falsely negative', () => {
+    const r = analyzeStudy({ vessels: [normalVessel()], vasoreactivity: { doses: negativeAch }, procedure: before });
+    expect(r.headline).toBe('Endotype not determined: the acetylcholine test may be falsely negative (nitroglycerin was given before acetylcholine)');
+  });
+});
+
+describe('functional microvascular dysfunction needs IMR measured and not raised — EAPCI 2020 INOCA consensus (Kunadian et al., EuroIntervention 2020 / Eur Heart J 2020: low CFR with normal IMR); COVADIS (Ong et al., IJC 2018)', () => {
+  it('LAD console FFR 0.90, CFR 1.67 (Tmn 0.50 / 0.30 s), no hyperaemic pressures so no IMR: dysfunction of unknown type, not functional', () => {
+    const r = study([{ id: 'lad', vessel: 'LAD', ffr: 0.9, rest: { tmn: three(0.5) }, hyperemia: { tmn: three(0.3) } } as VesselIn], negativeAch, undefined, true);
+    expect(r.vessels[0].cfr).toBeCloseTo(5 / 3, 10);
+    expect(r.vessels[0].imr).toBeUndefined();
+    expect(r.vessels[0].microvascular).toBe('type-unknown');
+    expect(r.findings.microvascular).toBe('type-unknown');
+    expect(r.endotype).toBe('microvascular-angina');
+    expect(r.headline).toBe('Microvascular angina: coronary microvascular dysfunction with low CFR (IMR not measured, so its type is not known) in LAD');
+    expect(r.reasons.join(' ')).not.toContain('functional microvascular dysfunction');
+  });
+  it('with IMR measured and normal (Pd 90 × Tmn 0.20 = 18 U) the same low CFR is functional', () => {
+    const r = study([vessel('lad', { cfr: 1.67 })], negativeAch, undefined, true);
+    expect(r.findings.microvascular).toBe('functional');
+  });
+  it('a known kind in one vessel outranks an unknown one in another; structural outranks both', () => {
+    const unknown = { id: 'lcx', vessel: 'LCX', visualStenosisPct: 20, rest: { tmn: three(0.5) }, hyperemia: { tmn: three(0.3) } } as VesselIn;
+    expect(study([vessel('lad', { cfr: 1.5 }), unknown], negativeAch).findings.microvascular).toBe('functional');
+    expect(study([vessel('lad', { cfr: 1.5, imrTmn: 0.4 }), unknown], negativeAch).findings.microvascular).toBe('structural');
+  });
+});
+
+describe('inadequate hyperaemia lengthens the hyperaemic transit time and so raises IMR — EAPCI 2020 INOCA consensus (Kunadian et al., EuroIntervention 2020: IMR = Pd × Tmn at maximal hyperaemia); [memory] no fall in aortic pressure on intravenous adenosine suggests inadequate hyperaemia', () => {
+  it('IV adenosine with no fall in Pa and IMR 36 (Pd 90 × Tmn 0.40): the warning and the raised-IMR reason say IMR may be overestimated', () => {
+    const lad: VesselIn = { id: 'lad', vessel: 'LAD', rest: { pa: 100, pd: 97, tmn: three(1.2) }, hyperemia: { pa: 100, pd: 90, tmn: three(0.4) } };
+    const r = analyzeStudy({ vessels: [lad], vasoreactivity: { doses: negativeAch }, procedure: { hyperemicAgent: 'adenosine', hyperemicRoute: 'intravenous' } });
+    const v = r.vessels[0];
+    expect(v.imr).toBeCloseTo(36, 10);
+    expect(v.imrFlag).toBe('abnormal');
+    expect(v.warnings.find((w) => w.code === 'hyperemia-inadequate')?.message).toContain('overestimate IMR');
+    expect(r.reasons.find((s) => s.startsWith('LAD: IMR 36'))).toContain('this IMR may be overestimated');
+    // The same study with Pa falling on adenosine carries no such qualifier.
+    const fell = analyzeStudy({ vessels: [{ ...lad, hyperemia: { pa: 90, pd: 81, tmn: three(0.4) } }], vasoreactivity: { doses: negativeAch }, procedure: { hyperemicAgent: 'adenosine', hyperemicRoute: 'intravenous' } });
+    expect(fell.reasons.join(' ')).not.toContain('may be overestimated');
   });
 });

@@ -37,7 +37,31 @@ describe('the study record → physiology input', () => {
     const after = toPhysiologyInput({ vessels: [], vasoreactivity: vaso, setup: { ...emptySetup(), nitratesGiven: true, nitrateTiming: 'after-acetylcholine' } });
     expect(after.procedure?.nitratesBeforeAcetylcholine).toBe(false);
     const unknownTiming = toPhysiologyInput({ vessels: [], vasoreactivity: vaso, setup: { ...emptySetup(), nitratesGiven: true } });
-    expect(unknownTiming.procedure?.nitratesBeforeAcetylcholine).toBeUndefined();
+    expect(unknownTiming.procedure?.nitratesBeforeAcetylcholine).toBe('unknown');
+    const none = toPhysiologyInput({ vessels: [], vasoreactivity: vaso, setup: { ...emptySetup(), nitratesGiven: false } });
+    expect(none.procedure?.nitratesBeforeAcetylcholine).toBe(false);
+  });
+
+  it('nitrates given at a time not recorded: a negative acetylcholine test is flagged as possibly falsely negative and the endotype stays open; a positive test stays positive (ESC 2024 chronic coronary syndromes: nitrates relieve spasm; EAPCI 2020, Kunadian et al., EHJ 2020: no abnormality needs a negative test)', () => {
+    // LAD: FFR 0.90 (Pd 90 / Pa 100), CFR 3.0 (Tmn 0.60 / 0.20), IMR 18 (Pd 90 × 0.20) — all normal.
+    const vessel = { ...emptyVessel(ID, 'LAD'), restPa: 100, restPd: 97, hyperemiaPa: 100, hyperemiaPd: 90, restTransit: [0.6, 0.6, 0.6], hyperemiaTransit: [0.2, 0.2, 0.2] };
+    const setup = { ...emptySetup(), nitratesGiven: true, nitrateTiming: null };
+    const negative = { ...emptyDose(ID, 'LAD'), micrograms: 100, constrictionPct: 10, symptoms: false, ischemicEcg: false };
+    const r = analyzeStudy(toPhysiologyInput({ vessels: [vessel], vasoreactivity: { ...emptyVasoreactivity(), doses: [negative] }, setup }));
+    expect(r.endotype).toBe('inconclusive');
+    expect(r.headline).not.toBe('No coronary abnormality found');
+    expect(r.headline).toContain('may be falsely negative (nitrates were given and their timing is not recorded)');
+    const w = r.warnings.find((x) => x.code === 'nitrate-timing-unknown');
+    expect(w?.message).toMatch(/when is not recorded.*falsely negative/);
+    // The same study with nitrates after acetylcholine is normal.
+    const after = analyzeStudy(toPhysiologyInput({ vessels: [vessel], vasoreactivity: { ...emptyVasoreactivity(), doses: [negative] }, setup: { ...setup, nitrateTiming: 'after-acetylcholine' } }));
+    expect(after.endotype).toBe('no-abnormality');
+    // Spasm provoked: positive whatever the nitrate timing.
+    const spasm = { ...negative, constrictionPct: 95, symptoms: true, ischemicEcg: true };
+    const s = analyzeStudy(toPhysiologyInput({ vessels: [vessel], vasoreactivity: { ...emptyVasoreactivity(), doses: [spasm] }, setup }));
+    expect(s.vasoreactivity?.result).toBe('epicardial-spasm');
+    expect(s.endotype).toBe('vasospastic-angina');
+    expect(s.warnings.map((x) => x.code)).not.toContain('nitrate-timing-unknown');
   });
 
   it('passes the angina field: "angina" words only when the record says angina (COVADIS microvascular angina criteria — Ong et al., Int J Cardiol 2018;250:16-20)', () => {
