@@ -135,7 +135,7 @@ describe('the structured study form on a phone', () => {
     } finally {
       await context.close();
     }
-  });
+  }, 120_000);
 
   it('keeps edits typed while offline and sends them when the network returns', async () => {
     const context = await browser.context.browser()!.newContext({ viewport: viewports.phone });

@@ -1,4 +1,4 @@
-import { afterAll, beforeAll, beforeEach, expect, it } from 'vitest';
+import { afterAll, afterEach, beforeAll, beforeEach, expect, it } from 'vitest';
 import { deliveryJobKey } from '../../server/ehr/enqueue-delivery';
 import { bundleIdOf, DeliveryHarness, reportVersionIds, until } from '../support/delivery-harness';
 import type { WorkerProcess } from '../support/worker-process';
@@ -10,6 +10,7 @@ import type { WorkerProcess } from '../support/worker-process';
 const h = new DeliveryHarness();
 beforeAll(() => h.start());
 beforeEach(() => h.ehr.setFault('none'));
+afterEach(() => h.killWorkers());
 afterAll(() => h.stop());
 
 it('a worker killed (SIGKILL) mid-delivery: after a restart each report is delivered once and the EHR keeps one report', async () => {
@@ -18,12 +19,12 @@ it('a worker killed (SIGKILL) mid-delivery: after a restart each report is deliv
   // X: the EHR holds the request open without processing it.
   h.ehr.setFault('hang');
   const [x] = await h.signMany(1);
-  await until('the EHR holding the request for X', () => h.ehr.heldRequests().includes(bundleIdOf(x)));
+  await until('the EHR holding the request for X', () => h.ehr.heldRequests().includes(bundleIdOf(x)), 60_000);
 
   // Y: the EHR stores the transaction but its answer never leaves (the EHR committed, the sender never hears).
   h.ehr.setFault('hold-response');
   const [y] = await h.signMany(1);
-  await until('the EHR storing Y without answering', () => h.ehr.heldRequests().includes(bundleIdOf(y)));
+  await until('the EHR storing Y without answering', () => h.ehr.heldRequests().includes(bundleIdOf(y)), 60_000);
   expect(h.receivedFor(x)).toEqual([]);
   expect(h.receivedFor(y)).toEqual(['accepted']);
   expect(h.reportsFor(y)).toHaveLength(1);
@@ -44,7 +45,7 @@ it('a worker killed (SIGKILL) mid-delivery: after a restart each report is deliv
   );
 
   const second = await h.spawnWorker();
-  await until('X and Y delivered after the restart', () => h.allDelivered([x, y]));
+  await until('X and Y delivered after the restart', () => h.allDelivered([x, y]), 60_000);
   // X reaches the EHR for the first time; Y is sent again and recognised by its Bundle.identifier
   // (and would be a conditional update by identifier anyway): one DiagnosticReport each.
   expect(h.receivedFor(x)).toEqual(['accepted']);
@@ -56,12 +57,12 @@ it('a worker killed (SIGKILL) mid-delivery: after a restart each report is deliv
   expect(dy).toMatchObject({ status: 'delivered', attempts: 2, ehr_report_id: `DiagnosticReport/${h.reportsFor(y)[0].id}` });
   expect(second.events.some((e) => e.event === 'finished' && e.id === y.reportVersionId)).toBe(true);
   await second.kill('SIGTERM');
-}, 60_000);
+}, 200_000);
 
 it('two worker processes on one queue: a backlog of 20 signed reports, each sent once', async () => {
   const signed = await h.signMany(20);
   const [a, b] = await Promise.all([h.spawnWorker(), h.spawnWorker()]);
-  await until('all 20 delivered', () => h.allDelivered(signed), 30_000);
+  await until('all 20 delivered', () => h.allDelivered(signed), 60_000);
 
   for (const s of signed) {
     expect(h.receivedFor(s), s.accession).toEqual(['accepted']);
@@ -76,4 +77,4 @@ it('two worker processes on one queue: a backlog of 20 signed reports, each sent
   expect(byA.length).toBeGreaterThan(0);
   expect(byB.length).toBeGreaterThan(0);
   await Promise.all([a.kill('SIGTERM'), b.kill('SIGTERM')]);
-}, 60_000);
+}, 200_000);

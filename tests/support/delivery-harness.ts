@@ -123,8 +123,13 @@ export class DeliveryHarness {
     return (this.ehr.resources('DiagnosticReport') as DiagnosticReport[]).filter((r) => r.identifier?.some((i) => i.system === IDENTIFIER_SYSTEMS.report && i.value === s.studyId));
   }
 
+  /** Ends every worker process this harness started, so none of them takes the next test's jobs. */
+  async killWorkers(): Promise<void> {
+    for (const p of this.processes.splice(0)) await p.kill('SIGKILL');
+  }
+
   async stop(): Promise<void> {
-    for (const p of this.processes) await p.kill('SIGKILL');
+    await this.killWorkers();
     await this.ehr?.close();
     await this.idp?.close();
     await this.db?.destroy();
