@@ -19,6 +19,7 @@ import { settingsRoutes } from './routes/settings';
 import { reportRoutes } from './routes/reports';
 import { deliveryRoutes } from './routes/delivery';
 import { codingRoutes } from './routes/coding';
+import { turnaroundRoutes } from './routes/turnaround';
 import { diskStorage, type AttachmentStorage } from './attachments/storage';
 import { createLogger, requestLogger, type Logger } from './log';
 
@@ -47,6 +48,7 @@ export function apiRoutes(deps: Required<Pick<AppDeps, 'config' | 'dataSource' |
     ...auditRoutes(deps),
     ...deliveryRoutes(deps),
     ...codingRoutes(deps),
+    ...turnaroundRoutes(deps),
   ];
 }
 

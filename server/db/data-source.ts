@@ -20,6 +20,7 @@ import { SignedStudyGuard1765131313000 } from './migrations/1765131313000-signed
 import { PatientMrnSearch1765100000000 } from './migrations/1765100000000-patient-mrn-search';
 import { CodeDecision, CodeLine, CodeSuggestionSet, CodingReview, CoronaryIntervention } from './entities/coding.entities';
 import { CodeReview1765238400000 } from './migrations/1765238400000-code-review';
+import { Turnaround1765400000000 } from './migrations/1765400000000-turnaround';
 
 /** Entities and migrations are listed, not globbed, so tsx, vitest and a bundler all see the same set. */
 export const entities = [User, Patient, Study, VesselAssessment, ThermodilutionInjection, AcetylcholineDose, Attachment, ThresholdSet, ReportVersion, ReportDelivery, CoronaryIntervention, CodeSuggestionSet, CodeLine, CodeDecision, CodingReview];
@@ -35,6 +36,7 @@ export const migrations = [
   ReportVersions1765152000000,
   CodeReview1765238400000,
   ReportDelivery1765324800000,
+  Turnaround1765400000000,
 ];
 
 /** Failing queries are logged by their SQL text and SQLSTATE only (see server/log.ts). */

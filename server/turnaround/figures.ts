@@ -1,0 +1,165 @@
+import type { DataSource } from 'typeorm';
+import type { Endotype } from '../../shared/physiology/types';
+import {
+  driftBinEdges,
+  driftBins,
+  intervalKeys,
+  startBases,
+  type EndotypeMonth,
+  type IntervalSet,
+  type QualityFigures,
+  type StartBasis,
+  type TurnaroundFigures,
+  type TurnaroundQuery,
+} from '../../shared/turnaround/figures';
+import type { TurnaroundSettings } from './settings';
+
+/**
+ * The studies of a range of days in the lab's time zone (both ends included), by the time their
+ * clock starts. $1 from, $2 to (dates), $3 the time zone.
+ */
+export const rangeCondition = `t.started_at >= ($1::date)::timestamp AT TIME ZONE $3::text
+  AND t.started_at < ($2::date + 1)::timestamp AT TIME ZONE $3::text`;
+
+/** The four intervals of one study in hours; NULL while a step is missing (the interval is open). */
+export const intervalColumns = `
+  extract(epoch FROM t.signed_at - t.started_at) / 3600 AS to_signature,
+  extract(epoch FROM t.coded_at - t.signed_at) / 3600 AS to_coded,
+  extract(epoch FROM t.delivered_at - t.signed_at) / 3600 AS to_delivered,
+  CASE WHEN t.signed_at IS NOT NULL AND t.coded_at IS NOT NULL AND t.delivered_at IS NOT NULL
+       THEN extract(epoch FROM GREATEST(t.signed_at, t.coded_at, t.delivered_at) - t.started_at) / 3600 END AS to_done`;
+
+const columnOf = { toSignature: 'to_signature', toCoded: 'to_coded', toDelivered: 'to_delivered', toDone: 'to_done' } as const;
+
+// Median and 90th percentile by continuous interpolation (percentile_cont), of closed intervals only.
+const statsSelect = intervalKeys
+  .map((k) => {
+    const c = columnOf[k];
+    return `count(${c})::int AS ${c}_closed, (count(*) - count(${c}))::int AS ${c}_open,
+      percentile_cont(0.5) WITHIN GROUP (ORDER BY ${c}) AS ${c}_median,
+      percentile_cont(0.9) WITHIN GROUP (ORDER BY ${c}) AS ${c}_p90`;
+  })
+  .join(',\n');
+
+function intervalsOf(row: Record<string, unknown>): IntervalSet {
+  const num = (v: unknown) => (v === null || v === undefined ? null : Number(v));
+  return Object.fromEntries(
+    intervalKeys.map((k) => {
+      const c = columnOf[k];
+      return [k, { closed: Number(row[`${c}_closed`]), open: Number(row[`${c}_open`]), median: num(row[`${c}_median`]), p90: num(row[`${c}_p90`]) }];
+    }),
+  ) as IntervalSet;
+}
+
+/**
+ * Turnaround and quality figures of a range, all computed by PostgreSQL from `study_turnaround`
+ * (kept by triggers; see its migration): per ISO week (weeks of the lab's time zone), per physician
+ * (the first signer, or the operator while unsigned) and over the whole range, in one grouping-sets
+ * pass; then the quality counts, the drift distribution and the endotype mix per month.
+ */
+export async function turnaroundFigures(db: DataSource, query: TurnaroundQuery, settings: TurnaroundSettings, now = new Date()): Promise<TurnaroundFigures> {
+  const params = [query.from, query.to, settings.timeZone];
+  const [grouped, quality, drift, endotypes] = await Promise.all([
+    db.query(
+      `WITH r AS (
+         SELECT t.physician_id, t.start_basis, t.signed_at, t.started_at,
+                date_trunc('week', t.started_at AT TIME ZONE $3::text)::date AS week_start,
+                ${intervalColumns}
+         FROM study_turnaround t
+         WHERE ${rangeCondition}
+       )
+       SELECT GROUPING(week_start) AS by_all_weeks, GROUPING(physician_id) AS by_all_physicians,
+              to_char(week_start, 'YYYY-MM-DD') AS week_start, to_char(week_start, 'IYYY-"W"IW') AS week, physician_id,
+              count(*)::int AS studies,
+              count(*) FILTER (WHERE signed_at IS NULL AND started_at < $4::timestamptz - make_interval(secs => $5::float8 * 3600))::int AS overdue,
+              count(*) FILTER (WHERE start_basis = 'procedure-end')::int AS basis_procedure_end,
+              count(*) FILTER (WHERE start_basis = 'procedure-start')::int AS basis_procedure_start,
+              count(*) FILTER (WHERE start_basis = 'opened')::int AS basis_opened,
+              ${statsSelect}
+       FROM r
+       GROUP BY GROUPING SETS ((week_start), (physician_id), ())`,
+      [...params, now, settings.signatureTargetHours],
+    ),
+    db.query(
+      `SELECT count(*)::int AS signed,
+              count(*) FILTER (WHERE pressure_vessels > 0)::int AS pressure_studies,
+              count(*) FILTER (WHERE pressure_vessels > 0 AND drift_vessels = pressure_vessels)::int AS drift_documented,
+              COALESCE(sum(drift_vessels), 0)::int AS drift_vessels,
+              COALESCE(sum(drift_outside_vessels), 0)::int AS drift_outside,
+              count(*) FILTER (WHERE thermo_vessels > 0)::int AS thermo_studies,
+              count(*) FILTER (WHERE thermo_vessels > 0 AND thermo_complete_vessels = thermo_vessels)::int AS thermo_complete,
+              COALESCE(sum(vessels), 0)::int AS vessels,
+              COALESCE(sum(warned_vessels), 0)::int AS warned
+       FROM study_turnaround t WHERE ${rangeCondition} AND t.signed_at IS NOT NULL`,
+      params,
+    ),
+    db.query(
+      `SELECT width_bucket(round(d::numeric, 3), $4::numeric[]) AS bin, count(*)::int AS vessels
+       FROM study_turnaround t CROSS JOIN LATERAL unnest(t.drift_values) d
+       WHERE ${rangeCondition} AND t.signed_at IS NOT NULL AND cardinality(t.drift_values) > 0
+       GROUP BY 1`,
+      [...params, driftBinEdges],
+    ),
+    db.query(
+      `SELECT to_char(date_trunc('month', t.started_at AT TIME ZONE $3::text), 'YYYY-MM') AS month, COALESCE(t.endotype, 'unknown') AS endotype, count(*)::int AS n
+       FROM study_turnaround t WHERE ${rangeCondition} AND t.signed_at IS NOT NULL
+       GROUP BY 1, 2 ORDER BY 1, 2`,
+      params,
+    ),
+  ]);
+
+  const all = grouped.find((r: Record<string, unknown>) => r.by_all_weeks === 1 && r.by_all_physicians === 1) ?? null;
+  const weekRows = grouped.filter((r: Record<string, unknown>) => r.by_all_weeks === 0).sort((a: { week_start: string }, b: { week_start: string }) => a.week_start.localeCompare(b.week_start));
+  const physicianRows = grouped.filter((r: Record<string, unknown>) => r.by_all_physicians === 0);
+
+  const ids = physicianRows.map((r: { physician_id: string | null }) => r.physician_id).filter((id: string | null): id is string => !!id);
+  const names = new Map<string, string>(
+    ids.length ? (await db.query(`SELECT id, display_name FROM app_user WHERE id = ANY($1)`, [ids])).map((u: { id: string; display_name: string }) => [u.id, u.display_name]) : [],
+  );
+
+  const q = quality[0];
+  const months = new Map<string, EndotypeMonth>();
+  for (const r of endotypes as { month: string; endotype: Endotype | 'unknown'; n: number }[]) {
+    const m = months.get(r.month) ?? { month: r.month, counts: {} };
+    m.counts[r.endotype] = r.n;
+    months.set(r.month, m);
+  }
+  const qualityFigures: QualityFigures = {
+    signedStudies: q.signed,
+    pressureStudies: q.pressure_studies,
+    driftDocumentedStudies: q.drift_documented,
+    driftVessels: q.drift_vessels,
+    driftOutsideVessels: q.drift_outside,
+    driftBins: driftBins(new Map(drift.map((r: { bin: number; vessels: number }) => [Number(r.bin), r.vessels]))),
+    thermoStudies: q.thermo_studies,
+    thermoCompleteStudies: q.thermo_complete,
+    vessels: q.vessels,
+    warnedVessels: q.warned,
+    endotypes: [...months.values()],
+  };
+
+  const empty = { closed: 0, open: 0, median: null, p90: null };
+  return {
+    from: query.from,
+    to: query.to,
+    timeZone: settings.timeZone,
+    targetHours: settings.signatureTargetHours,
+    studies: all?.studies ?? 0,
+    startBasis: Object.fromEntries(startBases.map((b) => [b, all ? all[`basis_${b.replace('-', '_')}`] : 0])) as Record<StartBasis, number>,
+    totals: all ? intervalsOf(all) : { toSignature: empty, toCoded: empty, toDelivered: empty, toDone: empty },
+    weeks: weekRows.map((r: Record<string, unknown>) => ({ week: r.week as string, weekStart: r.week_start as string, studies: r.studies as number, intervals: intervalsOf(r) })),
+    physicians: physicianRows
+      .map((r: Record<string, unknown>) => ({
+        physicianId: (r.physician_id as string | null) ?? null,
+        name: r.physician_id ? (names.get(r.physician_id as string) ?? 'Unknown user') : 'No physician recorded',
+        studies: r.studies as number,
+        overdue: r.overdue as number,
+        intervals: intervalsOf(r),
+      }))
+      .sort(
+        (a: { overdue: number; intervals: IntervalSet; name: string }, b: { overdue: number; intervals: IntervalSet; name: string }) =>
+          b.overdue - a.overdue || (b.intervals.toSignature.median ?? -1) - (a.intervals.toSignature.median ?? -1) || a.name.localeCompare(b.name),
+      ),
+    quality: qualityFigures,
+  };
+}
