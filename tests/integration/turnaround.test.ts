@@ -1,16 +1,15 @@
-import { createHash, randomUUID } from 'node:crypto';
+import { randomUUID } from 'node:crypto';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { DataSource } from 'typeorm';
 import { Logger, parseCronItems, runOnce } from 'graphile-worker';
-import { analyzeStudy, type PhysiologyInput } from '../../shared/physiology';
-import { defaultThresholds } from '../../shared/physiology/thresholds';
+import type { PhysiologyInput } from '../../shared/physiology';
 import type { TurnaroundFigures } from '../../shared/turnaround/figures';
 import { startFakeSmtp } from '../../server/fakes/smtp';
 import { turnaroundFigures } from '../../server/turnaround/figures';
 import { overdueCronItems, queueOverdueNotices, queueOverdueNoticesTask, sendOverdueNoticeTask } from '../../server/turnaround/overdue-notices';
 import { turnaroundSettings } from '../../server/turnaround/settings';
 import { openTestDatabase } from '../support/app';
-import { createPatient } from '../support/factories';
+import { turnaroundSeeder } from '../support/turnaround';
 import { signIn, startStack, usernameOf, type TestStack } from '../support/stack';
 
 // Everything here is invented. The figures are checked against values worked out by hand:
@@ -19,75 +18,12 @@ import { signIn, startStack, usernameOf, type TestStack } from '../support/stack
 // (Monday first; week 1 holds the year's first Thursday).
 
 let db: DataSource;
+let seedStudy: ReturnType<typeof turnaroundSeeder>['seedStudy'];
+let user: ReturnType<typeof turnaroundSeeder>['user'];
 let stack: TestStack;
 let cookie: string;
 const H = 3_600_000;
 const tag = randomUUID().slice(0, 6).toUpperCase();
-
-async function user(name: string, role: string, email: string | null): Promise<string> {
-  const [row] = await db.query(
-    `INSERT INTO app_user (issuer, subject, email, display_name, role) VALUES ('test-turnaround', $1, $2, $3, $4) RETURNING id`,
-    [randomUUID(), email ?? '', name, role],
-  );
-  return row.id;
-}
-
-interface StudySeed {
-  accession?: string;
-  operatorId?: string | null;
-  endedAt?: Date | null;
-  startedAt?: Date | null;
-  createdAt?: Date;
-  signedAfterH?: number;
-  signerId?: string;
-  codedAfterSignH?: number;
-  deliveredAfterSignH?: number;
-  /** Vessels as the record stores them (snapshot) and as the physiology core reads them. */
-  vessels?: { snapshot: Record<string, unknown>; input: PhysiologyInput['vessels'][number] }[];
-}
-
-/** A study with its first signature, completed code review and EHR delivery stored as the product stores them. */
-async function seedStudy(s: StudySeed): Promise<{ id: string; accession: string }> {
-  const patient = await createPatient(db);
-  const accession = s.accession ?? `TA-${tag}-${randomUUID().slice(0, 6)}`;
-  const signed = s.signedAfterH !== undefined;
-  const [study] = await db.query(
-    `INSERT INTO study (accession, patient_id, state, procedure_started_at, procedure_ended_at, operator_id, created_at)
-     VALUES ($1, $2, $3, $4, $5, $6, COALESCE($7::timestamptz, now())) RETURNING id`,
-    [accession, patient.id, signed ? 'signed' : 'draft', s.startedAt ?? null, s.endedAt ?? null, s.operatorId ?? null, s.createdAt ?? null],
-  );
-  if (!signed) return { id: study.id, accession };
-  const start = (s.endedAt ?? s.startedAt ?? s.createdAt)!;
-  const signedAt = new Date(start.getTime() + s.signedAfterH! * H);
-  const vessels = s.vessels ?? [];
-  const analysis = analyzeStudy({ vessels: vessels.map((v) => v.input) });
-  const [version] = await db.query(
-    `INSERT INTO report_version (study_id, version_no, study_version, status, narrative_html, narrative_text, snapshot, analysis, thresholds,
-                                 template_version, pdf, pdf_sha256, content_sha256, signed_by, signer_name, signed_at, attestation)
-     VALUES ($1, 1, 1, 'final', '<p>Invented</p>', 'Invented', $2::jsonb, $3::jsonb, $4::jsonb, 'v1', $5, $6, $6, $7, 'Invented signer', $8, 'Invented attestation')
-     RETURNING id`,
-    [study.id, JSON.stringify({ vessels: vessels.map((v) => v.snapshot) }), JSON.stringify(analysis), JSON.stringify(defaultThresholds), Buffer.from('%PDF-invented'), createHash('sha256').update(study.id).digest('hex'), s.signerId ?? s.operatorId, signedAt],
-  );
-  if (s.codedAfterSignH !== undefined) {
-    const [set] = await db.query(
-      `INSERT INTO code_suggestion_set (report_version_id, study_id, version_no, warnings, caution) VALUES ($1, $2, 1, '[]', 'Invented caution') RETURNING id`,
-      [version.id, study.id],
-    );
-    // Queued first, completed later: the completion is an UPDATE, as the coder's review makes it.
-    await db.query(`INSERT INTO coding_review (study_id, status, current_set_id, queued_at) VALUES ($1, 'to-code', $2, $3)`, [study.id, set.id, signedAt]);
-    await db.query(`UPDATE coding_review SET status = 'coded', completed_at = $2, completer_name = 'Invented coder' WHERE study_id = $1`, [
-      study.id,
-      new Date(signedAt.getTime() + s.codedAfterSignH * H),
-    ]);
-  }
-  if (s.deliveredAfterSignH !== undefined) {
-    await db.query(
-      `INSERT INTO report_delivery (report_version_id, study_id, status, attempts, delivered_at) VALUES ($1, $2, 'delivered', 1, $3)`,
-      [version.id, study.id, new Date(signedAt.getTime() + s.deliveredAfterSignH * H)],
-    );
-  }
-  return { id: study.id, accession };
-}
 
 const get = (path: string) => fetch(`${stack.url}${path}`, { headers: { cookie } });
 const figures = async (from: string, to: string): Promise<TurnaroundFigures> => {
@@ -116,6 +52,7 @@ const at = (iso: string) => new Date(iso);
 
 beforeAll(async () => {
   db = await openTestDatabase();
+  ({ seedStudy, user } = turnaroundSeeder(db, tag));
   stack = await startStack(db);
   ({ cookie } = await signIn(stack, usernameOf('chief')));
   lateId = await user(`Dr Late ${tag}`, 'physician', null);
