@@ -11,7 +11,7 @@ import { color, font } from '../theme';
  * beside it carries the numbers for screen readers and for copying.
  */
 
-const margin = { top: 12, right: 12, bottom: 28, left: 44 };
+const margin = { top: 12, right: 24, bottom: 28, left: 44 };
 const axisText = { fontSize: 11, fontFamily: font.regular, fill: color.inkMuted };
 
 /** Measures the width it is given, so the chart fills its column at 390 px and at 1440 px. */
@@ -55,7 +55,7 @@ export function TrendChart({ points, targetHours, label, testID }: { points: Tre
             .x((p) => x(new Date(`${p.weekStart}T00:00:00Z`)))
             .y((p) => y(p[key] as number))(points) ?? '';
         const xTicks = x.ticks(Math.max(2, Math.floor(width / 110)));
-        const xFormat = x.tickFormat(xTicks.length, '%d %b %y');
+        const xFormat = x.tickFormat(xTicks.length, '%d %b');
         return (
           <Svg width={width} height={height}>
             {y.ticks(4).map((t) => (

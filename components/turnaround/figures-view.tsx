@@ -60,7 +60,7 @@ export default function FiguresView({ figures }: { figures: TurnaroundFigures })
           <DataTable
             caption={`${intervalLabel[interval]} per ISO week`}
             testID="trend-table"
-            columns={[{ title: 'Week', width: 84 }, { title: 'Studies', numeric: true, width: 64 }, { title: 'Median', numeric: true, width: 76 }, { title: '90th pct', numeric: true, width: 76 }, { title: 'Open', numeric: true, width: 56 }]}
+            columns={[{ title: 'Week', width: 84 }, { title: 'Studies', numeric: true, width: 64 }, { title: 'Median', numeric: true, width: 88 }, { title: '90th pct', numeric: true, width: 88 }, { title: 'Open', numeric: true, width: 56 }]}
             rows={figures.weeks.map((w) => [w.week, String(w.studies), late(w.intervals[interval], interval), hours(w.intervals[interval].p90), String(w.intervals[interval].open)])}
           />
         </Pair>

@@ -24,9 +24,18 @@ beforeAll(async () => {
   const late = await user(lateName, 'physician', null);
   const prompt = await user(`Dr Swift ${tag}`, 'physician', null);
   const now = Date.now();
+  // A pressure-wire vessel with a drift check (Pd/Pa at the guide tip) and thermodilution injections.
+  const vessel = (drift: number | null, restInjections: number) => {
+    const id = randomUUID();
+    const rest = Array.from({ length: restInjections }, () => 0.9);
+    return {
+      snapshot: { id, vessel: 'LAD', restPa: 100, restPd: 95, hyperemiaPa: 90, hyperemiaPd: 72, driftPdPa: drift, restTransit: rest, hyperemiaTransit: [0.3, 0.3, 0.3] },
+      input: { id, vessel: 'LAD' as const, ...(drift === null ? {} : { driftPdPa: drift }), rest: { pa: 100, pd: 95, tmn: rest }, hyperemia: { pa: 90, pd: 72, tmn: [0.3, 0.3, 0.3] } },
+    };
+  };
   for (let i = 0; i < 6; i++) {
-    await seedStudy({ operatorId: late, endedAt: new Date(now - (8 + i * 9) * DAY), signedAfterH: 40 + i * 12, codedAfterSignH: 20, deliveredAfterSignH: 1 });
-    await seedStudy({ operatorId: prompt, endedAt: new Date(now - (9 + i * 9) * DAY), signedAfterH: 3 + i, codedAfterSignH: 8, deliveredAfterSignH: 1 });
+    await seedStudy({ operatorId: late, endedAt: new Date(now - (8 + i * 9) * DAY), signedAfterH: 40 + i * 12, codedAfterSignH: 20, deliveredAfterSignH: 1, vessels: [vessel(i % 3 === 0 ? null : 0.97 + i * 0.01, 2 + (i % 2))] });
+    await seedStudy({ operatorId: prompt, endedAt: new Date(now - (9 + i * 9) * DAY), signedAfterH: 3 + i, codedAfterSignH: 8, deliveredAfterSignH: 1, vessels: [vessel(0.99 + (i % 3) * 0.01, 3)] });
   }
   overdue = await seedStudy({ operatorId: late, endedAt: new Date(now - 3 * DAY) });
   stack = await startStack(db);
@@ -59,7 +68,12 @@ describe('the chief’s turnaround page', () => {
       // Overdue and slow: both figures carry the alert mark.
       await expect(lateRow.innerText()).resolves.toMatch(/▲ 1/);
       await visible(page, 'trend-chart').waitFor();
-      await page.screenshot({ path: screenshotPath('turnaround-figures-phone'), fullPage: true });
+      await page.screenshot({ path: screenshotPath('turnaround-figures-phone') });
+      // The page scrolls inside the app shell: a tall window shows all of it in one picture.
+      await page.setViewportSize({ width: viewports.phone.width, height: 4600 });
+      await page.waitForTimeout(300);
+      await page.screenshot({ path: screenshotPath('turnaround-figures-phone-full') });
+      await page.setViewportSize(viewports.phone);
       // The charts arrived as their own script, after the first load.
       const scripts = await scriptsOf(page);
       expect(scripts.some((s) => s.name.startsWith('figures-view'))).toBe(true);
@@ -83,7 +97,11 @@ describe('the chief’s turnaround page', () => {
       const chart = (await visible(page, 'trend-chart').boundingBox())!;
       const tableBox = (await visible(page, 'trend-table').boundingBox())!;
       expect(tableBox.x).toBeGreaterThan(chart.x + chart.width - 1); // beside, not below
-      await page.screenshot({ path: screenshotPath('turnaround-figures-desktop'), fullPage: true });
+      await page.screenshot({ path: screenshotPath('turnaround-figures-desktop') });
+      await page.setViewportSize({ width: viewports.desktop.width, height: 2600 });
+      await page.waitForTimeout(300);
+      await page.screenshot({ path: screenshotPath('turnaround-figures-desktop-full') });
+      await page.setViewportSize(viewports.desktop);
 
       await visible(page, 'range-custom').click();
       await visible(page, 'range-from').fill('2003-02-30');
