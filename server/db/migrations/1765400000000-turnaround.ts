@@ -37,8 +37,13 @@ export class Turnaround1765400000000 implements MigrationInterface {
         thermo_vessels smallint NOT NULL DEFAULT 0,
         thermo_complete_vessels smallint NOT NULL DEFAULT 0
       )`);
-    // The figures read a date range of started_at; the overdue list and notices read the unsigned ones.
-    await db.query(`CREATE INDEX study_turnaround_started_idx ON study_turnaround (started_at)`);
+    // The figures read a date range of started_at: the index carries every column they need, so a
+    // range is read in order from the index alone (index-only scan) however the rows' updates have
+    // scattered them over the table. The overdue list and notices read the unsigned ones.
+    await db.query(`
+      CREATE INDEX study_turnaround_started_idx ON study_turnaround (started_at)
+      INCLUDE (physician_id, start_basis, signed_at, coded_at, delivered_at, endotype, vessels, warned_vessels,
+               pressure_vessels, drift_vessels, drift_outside_vessels, drift_values, thermo_vessels, thermo_complete_vessels)`);
     await db.query(`CREATE INDEX study_turnaround_unsigned_idx ON study_turnaround (started_at) WHERE signed_at IS NULL`);
 
     await db.query(`
