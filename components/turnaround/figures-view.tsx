@@ -113,7 +113,7 @@ export default function FiguresView({ figures }: { figures: TurnaroundFigures })
               label="Distribution of the drift check Pd/Pa over vessels. The table beside lists the counts."
               testID="drift-chart"
             />
-            <Legend items={[{ color: color.normal, label: 'Within 0.98–1.02' }, { color: color.borderline, label: 'Outside' }]} />
+            <Legend items={[{ color: color.normal, label: 'Bands 0.98 to under 1.02' }, { color: color.borderline, label: 'Other bands (the tile above counts 1.02 itself as within)' }]} />
           </View>
           <DataTable
             caption="Drift check Pd/Pa: vessels per band"
