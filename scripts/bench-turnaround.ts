@@ -6,11 +6,13 @@
 import type { DataSource } from 'typeorm';
 import { createDataSource } from '../server/db/data-source';
 import { prepareDatabase } from '../server/cli/prepare-database';
-import { figuresQueries, turnaroundFigures } from '../server/turnaround/figures';
+import { figuresQuery, figuresWorkMem, turnaroundFigures } from '../server/turnaround/figures';
 import { turnaroundSettings } from '../server/turnaround/settings';
 import { signIn, startStack, usernameOf } from '../tests/support/stack';
 
 const STUDIES = Number(process.env.BENCH_STUDIES ?? 1_000_000);
+// Ten years by default; fewer (BENCH_YEARS) packs more studies into the timed 12-month range.
+const YEARS = Number(process.env.BENCH_YEARS ?? 10);
 const CHUNKS = 10;
 const PATIENTS = 200_000;
 const PHYSICIANS = 12;
@@ -46,11 +48,16 @@ async function seed(ds: DataSource): Promise<void> {
     const hi = Math.min(STUDIES, (c + 1) * per);
     const t0 = performance.now();
     const steps: string[] = [];
-    await ds.transaction(async (tx) => {
+    // Each step commits on its own, as a study's steps do in production (signature, review and
+    // delivery come hours apart), so the summary's superseded row versions are dead when the next
+    // step comes and the index can drop them instead of splitting pages. One connection keeps setseed.
+    const runner = ds.createQueryRunner();
+    await runner.connect();
+    try {
       const db = {
         query: async (sql: string, params?: unknown[]) => {
           const s0 = performance.now();
-          const out = await tx.query(sql, params);
+          const out = await runner.query(sql, params);
           steps.push(`${((performance.now() - s0) / 1000).toFixed(1)}`);
           return out;
         },
@@ -62,7 +69,7 @@ async function seed(ds: DataSource): Promise<void> {
         `WITH pids AS (SELECT array_agg(id ORDER BY mrn) AS a FROM patient WHERE mrn LIKE 'BT-%'),
               ops AS (SELECT array_agg(id ORDER BY subject) AS a FROM app_user WHERE issuer = 'bench'),
               g AS (SELECT i, random() AS r, random() AS kind,
-                           now() - interval '3650 days' * (1 - i::float8 / $3) - random() * interval '8 hours' AS started
+                           now() - interval '365 days' * $4::float8 * (1 - i::float8 / $3) - random() * interval '8 hours' AS started
                     FROM generate_series($1::int, $2::int) i)
          INSERT INTO study (accession, patient_id, state, procedure_started_at, procedure_ended_at, operator_id, created_at, updated_at)
          SELECT 'BT-' || lpad(g.i::text, 7, '0'),
@@ -74,7 +81,7 @@ async function seed(ds: DataSource): Promise<void> {
                 ops.a[1 + floor(power(random(), 1.5) * array_length(ops.a, 1))::int],
                 g.started - interval '20 minutes', g.started
          FROM g, pids, ops`,
-        [lo, hi, STUDIES],
+        [lo, hi, STUDIES, YEARS],
       );
       const range = [`BT-${String(lo).padStart(7, '0')}`, `BT-${String(hi).padStart(7, '0')}`];
       // One signed version each: a pressure-wire vessel with thermodilution; 85% with a drift check,
@@ -117,7 +124,9 @@ async function seed(ds: DataSource): Promise<void> {
          FROM report_version v JOIN (SELECT id, random() AS r FROM study WHERE accession BETWEEN $1 AND $2) x ON x.id = v.study_id`,
         range,
       );
-    });
+    } finally {
+      await runner.release();
+    }
     console.log(`  chunk ${c + 1}/${CHUNKS}: studies ${lo}–${hi} in ${((performance.now() - t0) / 1000).toFixed(1)} s (studies, signatures, reviews, deliveries: ${steps.slice(1).join(', ')} s)`);
   }
   for (const table of ['app_user', 'patient', 'study', 'report_version', 'coding_review', 'report_delivery', 'study_turnaround']) await ds.query(`VACUUM (ANALYZE) ${table}`);
@@ -142,7 +151,7 @@ async function main(): Promise<void> {
   const ds = createDataSource(databaseUrl!, 10);
   await ds.initialize();
   const [pg] = await ds.query(`SELECT current_setting('server_version') AS v, current_setting('shared_buffers') AS sb, current_setting('work_mem') AS wm`);
-  console.log(`PostgreSQL ${pg.v}, shared_buffers ${pg.sb}, work_mem ${pg.wm}; ${STUDIES} studies`);
+  console.log(`PostgreSQL ${pg.v}, shared_buffers ${pg.sb}, work_mem ${pg.wm}; ${STUDIES} studies over ${YEARS} years`);
   await seed(ds);
 
   const today = new Date();
@@ -199,12 +208,18 @@ async function main(): Promise<void> {
     console.log(`GET /api/turnaround/awaiting-signature    ${f(w.p50)} ${f(w.p95)} ${f(w.max)}`);
     console.log(`GET /api/turnaround/export (12 months, once): ${csv.split('\r\n').length - 2} rows, ${(csv.length / 1e6).toFixed(1)} MB in ${csvMs.toFixed(0)} ms`);
 
-    console.log('\nplans (EXPLAIN ANALYZE, BUFFERS) of the statements behind the figures:');
-    for (const q of figuresQueries(query, settings)) {
-      const plan: { 'QUERY PLAN': string }[] = await ds.query(`EXPLAIN (ANALYZE, BUFFERS) ${q.sql}`, q.params);
-      console.log(`\n-- ${q.name}`);
-      for (const line of plan) console.log(line['QUERY PLAN']);
-    }
+    console.log(`\nplan (EXPLAIN ANALYZE, BUFFERS) of the statement behind the figures (work_mem ${figuresWorkMem}):`);
+    const q = figuresQuery(query, settings);
+    const plan: { 'QUERY PLAN': string }[] = await ds.transaction(async (tx) => {
+      await tx.query(`SET LOCAL work_mem = '${figuresWorkMem}'`);
+      return tx.query(`EXPLAIN (ANALYZE, BUFFERS) ${q.sql}`, q.params);
+    });
+    for (const line of plan) console.log(line['QUERY PLAN']);
+    const sizes = await ds.query(
+      `SELECT c.relname AS name, pg_size_pretty(pg_relation_size(c.oid)) AS size FROM pg_class c
+       WHERE c.relname IN ('study_turnaround', 'study_turnaround_started_idx', 'study_turnaround_unsigned_idx', 'study_turnaround_pkey') ORDER BY 1`,
+    );
+    console.log(`\nsizes: ${sizes.map((r: { name: string; size: string }) => `${r.name} ${r.size}`).join(', ')}`);
   } finally {
     await stack.close();
     await ds.destroy();

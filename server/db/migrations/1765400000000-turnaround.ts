@@ -125,19 +125,18 @@ export class Turnaround1765400000000 implements MigrationInterface {
     await db.query(`
       CREATE FUNCTION study_turnaround_on_signature() RETURNS trigger LANGUAGE plpgsql AS $$
       BEGIN
+        -- One UPDATE per study (each update leaves a row version behind until vacuum).
         UPDATE study_turnaround t
         SET signed_at = LEAST(COALESCE(t.signed_at, f.signed_at), f.signed_at),
-            physician_id = CASE WHEN t.signed_at IS NULL OR f.signed_at < t.signed_at THEN f.signed_by ELSE t.physician_id END
-        FROM (SELECT DISTINCT ON (study_id) study_id, signed_at, signed_by FROM signed ORDER BY study_id, version_no, signed_at) f
-        WHERE t.study_id = f.study_id;
-        UPDATE study_turnaround t
-        SET endotype = q.endotype, vessels = q.vessels, warned_vessels = q.warned_vessels,
+            physician_id = CASE WHEN t.signed_at IS NULL OR f.signed_at < t.signed_at THEN f.signed_by ELSE t.physician_id END,
+            endotype = q.endotype, vessels = q.vessels, warned_vessels = q.warned_vessels,
             pressure_vessels = q.pressure_vessels, drift_vessels = q.drift_vessels,
             drift_outside_vessels = q.drift_outside_vessels, drift_values = q.drift_values,
             thermo_vessels = q.thermo_vessels, thermo_complete_vessels = q.thermo_complete_vessels
-        FROM (SELECT DISTINCT ON (study_id) study_id, snapshot, analysis, thresholds FROM signed ORDER BY study_id, version_no DESC) l
+        FROM (SELECT DISTINCT ON (study_id) study_id, signed_at, signed_by FROM signed ORDER BY study_id, version_no, signed_at) f
+        JOIN (SELECT DISTINCT ON (study_id) study_id, snapshot, analysis, thresholds FROM signed ORDER BY study_id, version_no DESC) l ON l.study_id = f.study_id
         CROSS JOIN LATERAL study_turnaround_quality(l.snapshot, l.analysis, l.thresholds) q
-        WHERE t.study_id = l.study_id;
+        WHERE t.study_id = f.study_id;
         RETURN NULL;
       END $$`);
     await db.query(`
