@@ -23,6 +23,7 @@ import { reportRoutes } from './routes/reports';
 import { deliveryRoutes } from './routes/delivery';
 import { codingRoutes } from './routes/coding';
 import { mailRoutes } from './routes/mail';
+import { turnaroundRoutes } from './routes/turnaround';
 import { diskStorage, type AttachmentStorage } from './attachments/storage';
 import { createLogger, requestLogger, type Logger } from './log';
 
@@ -53,6 +54,7 @@ export function apiRoutes(deps: Required<Pick<AppDeps, 'config' | 'dataSource' |
     ...deliveryRoutes(deps),
     ...codingRoutes(deps),
     ...mailRoutes(deps),
+    ...turnaroundRoutes(deps),
   ];
 }
 

@@ -4,7 +4,7 @@ import { createDataSource } from './db/data-source';
 import { createApp } from './app';
 import { createLogger, safeError } from './log';
 import { startWorker } from './jobs/worker';
-import { taskList } from './jobs/tasks';
+import { cronItems, taskList } from './jobs/tasks';
 
 /** Starts the server: connects to the database, serves `/api` and the web build, stops cleanly. */
 async function main(): Promise<void> {
@@ -19,7 +19,7 @@ async function main(): Promise<void> {
 
   // Background work (notices, code suggestions, EHR delivery) runs beside the server, from the queue in
   // PostgreSQL; its schema was migrated by the owner role (npm start runs that first).
-  const worker = config.jobWorker ? await startWorker(taskList(dataSource, config), { databaseUrl: config.databaseUrl, logger }) : null;
+  const worker = config.jobWorker ? await startWorker(taskList(dataSource, config), { databaseUrl: config.databaseUrl, logger, cronItems }) : null;
   const server = createServer(createApp({ config, dataSource, logger }));
   server.requestTimeout = 60_000;
   await new Promise<void>((resolve, reject) => {

@@ -1,20 +1,46 @@
-import { useQuery } from '@tanstack/react-query';
+import { keepPreviousData, useQuery } from '@tanstack/react-query';
 import { apiFetch } from './api';
 import type { StudySummary } from './study-query';
+import type { StartBasis, TurnaroundFigures, TurnaroundQuery } from '../../shared/turnaround/figures';
 
 export interface WaitingStudy extends StudySummary {
+  /** When its clock started: procedure end, else start, else when the record was opened. */
+  startedAt: string;
+  startBasis: StartBasis;
+  ownerId: string | null;
+  ownerName: string | null;
   hoursWaiting: number;
   overdue: boolean;
+}
+
+export interface AwaitingSignature {
+  targetHours: number;
+  total: number;
+  overdueTotal: number;
+  items: WaitingStudy[];
 }
 
 export const turnaroundKeys = {
   all: ['turnaround'] as const,
   awaitingSignature: () => [...turnaroundKeys.all, 'awaiting-signature'] as const,
+  figures: (range: TurnaroundQuery) => [...turnaroundKeys.all, 'figures', range.from, range.to] as const,
 };
 
-/** Unsigned studies with the hours each has waited since the procedure ended. */
+/** Unsigned studies, longest waiting first, with their age and owner against the target. */
 export const useAwaitingSignatureQuery = () =>
   useQuery({
     queryKey: turnaroundKeys.awaitingSignature(),
-    queryFn: () => apiFetch<{ targetHours: number; items: WaitingStudy[] }>('/turnaround/awaiting-signature'),
+    queryFn: () => apiFetch<AwaitingSignature>('/turnaround/awaiting-signature'),
+  });
+
+export const figuresPath = (range: TurnaroundQuery) => `/turnaround/figures?${new URLSearchParams({ from: range.from, to: range.to }).toString()}`;
+export const exportHref = (range: TurnaroundQuery) => `/api/turnaround/export?${new URLSearchParams({ from: range.from, to: range.to }).toString()}`;
+
+/** Turnaround and quality figures of a range of days; the last figures stay on screen while a new range loads. */
+export const useTurnaroundFigures = (range: TurnaroundQuery | null) =>
+  useQuery({
+    queryKey: range ? turnaroundKeys.figures(range) : [...turnaroundKeys.all, 'figures', 'none'],
+    queryFn: () => apiFetch<TurnaroundFigures>(figuresPath(range!)),
+    enabled: !!range,
+    placeholderData: keepPreviousData,
   });

@@ -20,6 +20,7 @@ import { SignedStudyGuard1765131313000 } from './migrations/1765131313000-signed
 import { PatientMrnSearch1765100000000 } from './migrations/1765100000000-patient-mrn-search';
 import { CodeDecision, CodeLine, CodeSuggestionSet, CodingReview, CoronaryIntervention } from './entities/coding.entities';
 import { CodeReview1765238400000 } from './migrations/1765238400000-code-review';
+import { Turnaround1765400000000 } from './migrations/1765400000000-turnaround';
 import { AuditSearch1765410000000 } from './migrations/1765410000000-audit-search';
 import { LabSettings1765420000000 } from './migrations/1765420000000-lab-settings';
 
@@ -37,6 +38,7 @@ export const migrations = [
   ReportVersions1765152000000,
   CodeReview1765238400000,
   ReportDelivery1765324800000,
+  Turnaround1765400000000,
   AuditSearch1765410000000,
   LabSettings1765420000000,
 ];

@@ -3,7 +3,11 @@ import type { Config } from '../config';
 import { deliveryTasks } from '../ehr/tasks';
 import { codingTasks } from '../coding/tasks';
 import { sendReportNoticeTask } from '../mail/send-report-notice';
-import type { TaskList } from './worker';
+import { overdueCronItems, queueOverdueNoticesTask, sendOverdueNoticeTask } from '../turnaround/overdue-notices';
+import type { CronItem, TaskList } from './worker';
+
+/** Recurring tasks, scheduled by the queue itself (graphile-worker's cron): no polling loop of our own. */
+export const cronItems: CronItem[] = [...overdueCronItems];
 
 /**
  * Every background task the worker runs, by the name it is queued under (see `jobNames`). A task
@@ -19,5 +23,7 @@ export function taskList(dataSource: DataSource, config: Config): TaskList {
       from: config.mail.from,
       hospitalName: config.hospital.name,
     }),
+    'queue-overdue-notices': queueOverdueNoticesTask(dataSource),
+    'send-overdue-notice': sendOverdueNoticeTask(dataSource, { host: config.mail.host, port: config.mail.port, from: config.mail.from, publicUrl: config.publicUrl }),
   };
 }

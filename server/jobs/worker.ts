@@ -1,8 +1,8 @@
-import { Logger as WorkerLogger, run, runMigrations, type Runner, type TaskList } from 'graphile-worker';
+import { Logger as WorkerLogger, parseCronItems, run, runMigrations, type CronItem, type Runner, type TaskList } from 'graphile-worker';
 import pg from 'pg';
 import { defaultLogger, safeError, type Logger } from '../log';
 
-export type { TaskList };
+export type { CronItem, TaskList };
 
 /** graphile-worker's log lines through ours, as data (its messages carry no request text). */
 function workerLogger(logger: Logger): WorkerLogger {
@@ -28,13 +28,19 @@ export interface WorkerHandle {
  */
 export async function startWorker(
   taskList: TaskList,
-  { databaseUrl, logger = defaultLogger(), concurrency = 2, pollInterval = 1000 }: { databaseUrl: string; logger?: Logger; concurrency?: number; pollInterval?: number },
+  {
+    databaseUrl,
+    logger = defaultLogger(),
+    concurrency = 2,
+    pollInterval = 1000,
+    cronItems = [],
+  }: { databaseUrl: string; logger?: Logger; concurrency?: number; pollInterval?: number; cronItems?: CronItem[] },
 ): Promise<WorkerHandle> {
   const pool = new pg.Pool({ connectionString: databaseUrl, max: concurrency + 2, connectionTimeoutMillis: 3000 });
   pool.on('error', (error) => logger.warn({ err: safeError(error) }, 'job queue connection failed'));
   let runner: Runner;
   try {
-    runner = await run({ pgPool: pool, taskList, concurrency, pollInterval, noHandleSignals: true, logger: workerLogger(logger) });
+    runner = await run({ pgPool: pool, taskList, concurrency, pollInterval, noHandleSignals: true, logger: workerLogger(logger), parsedCronItems: parseCronItems(cronItems) });
   } catch (error) {
     await pool.end();
     throw error;

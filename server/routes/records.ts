@@ -1,9 +1,9 @@
 import type { DataSource } from 'typeorm';
 import { auditContext, recordAudit } from '../audit/audit';
 import type { ApiRoute } from '../http/routes';
-import { defaultSignatureTargetHours, waitingSince } from '../../shared/turnaround/overdue';
-import { summarySelect, toSummary } from '../studies/worklist';
 import { listAwaitingSignature } from '../studies/awaiting-signature';
+import { awaitingSignature } from '../turnaround/awaiting-signature';
+import { turnaroundSettings } from '../turnaround/settings';
 
 /** Reads of studies awaiting signature, overdue studies and users. Every read is audited. */
 export function recordRoutes({ dataSource }: { dataSource: DataSource }): ApiRoute[] {
@@ -26,19 +26,12 @@ export function recordRoutes({ dataSource }: { dataSource: DataSource }): ApiRou
       method: 'get',
       path: '/turnaround/awaiting-signature',
       access: 'turnaround:read',
-      summary: 'Studies not yet signed, with hours since the procedure ended against the target',
+      summary: 'Studies not yet signed, longest waiting first, with their age and owner against the signature target',
       handlers: [
         async (req, res) => {
-          const now = new Date();
-          const rows: Record<string, never>[] = await dataSource.query(
-            `${summarySelect} WHERE s.state IN ('draft', 'awaiting-signature') AND s.procedure_ended_at IS NOT NULL
-             ORDER BY s.procedure_ended_at ASC, s.id LIMIT 200`,
-          );
-          await recordAudit(dataSource, { ...auditContext(req), action: 'search', entityType: 'study', outcome: 'success', detail: { view: 'awaiting-signature', returned: rows.length, studyIds: rows.map((r) => r.id) } });
-          res.json({
-            targetHours: defaultSignatureTargetHours,
-            items: rows.map((row) => ({ ...toSummary(row), ...waitingSince(row.procedure_ended_at as Date, now) })),
-          });
+          const waiting = await awaitingSignature(dataSource, await turnaroundSettings(dataSource));
+          await recordAudit(dataSource, { ...auditContext(req), action: 'search', entityType: 'study', outcome: 'success', detail: { view: 'awaiting-signature', returned: waiting.items.length, studyIds: waiting.items.map((s) => s.id) } });
+          res.json(waiting);
         },
       ],
     },
