@@ -82,6 +82,9 @@ describe('the report and signature screen', () => {
       await page.screenshot({ path: screenshotPath('report-signed-desktop') });
       const [row] = await db.query(`SELECT count(*)::int AS n FROM report_version WHERE study_id = $1`, [study.id]);
       expect(row.n).toBe(1);
+      // The delivery of the signed version to the EHR is shown on the study's page (queued with the signature).
+      await visible(page, 'delivery-panel').waitFor({ timeout: 20_000 });
+      await visible(page, 'delivery-v1').waitFor({ timeout: 20_000 });
     } finally {
       await context.close();
     }

@@ -10,6 +10,8 @@ import { ErrorState, LoadingState } from '../../../../components/ui/async-states
 import { Text } from '../../../../components/ui/text';
 import { CautionNote } from '../../../../components/caution-note';
 import { ReportDocumentView } from '../../../../components/report/report-document';
+import { DeliveryStatusPanel } from '../../../../components/delivery/delivery-status';
+import { useMeQuery } from '../../../../components/data/me-query';
 import { color, font, radius, space, type } from '../../../../components/theme';
 import { transitions, type StudyAction } from '../../../../shared/study/state-machine';
 import { studyStateLabel, type StudyState } from '../../../../shared/study/vocabulary';
@@ -20,6 +22,7 @@ export default function ReportSection() {
   const [thresholdsChoice, setThresholdsChoice] = useState<ThresholdsChoice>('original');
   const preview = useReportPreview(id, thresholdsChoice);
   const act = useReportAction(id);
+  const me = useMeQuery();
   const [reason, setReason] = useState('');
   if (preview.isPending) return <LoadingState label="Building the report preview…" testID="report-loading" />;
   if (preview.isError) return <ErrorState title="The report preview could not be built" detail={preview.error.message} onRetry={() => void preview.refetch()} testID="report-error" />;
@@ -127,6 +130,7 @@ export default function ReportSection() {
           ))}
         </SectionCard>
       ) : null}
+      {p.versions.length ? <DeliveryStatusPanel studyId={id} role={me.data?.role ?? null} /> : null}
       <SectionCard title="Preview" testID="card-preview">
         <Text variant="caption" tone="muted" testID="report-preview-version">
           The report as it would be signed now, from the saved record (version {p.studyVersion}).
