@@ -1,7 +1,6 @@
 import type { DataSource } from 'typeorm';
 import type { Endotype } from '../../shared/physiology/types';
 import {
-  driftBinEdges,
   driftBins,
   intervalKeys,
   startBases,
@@ -58,13 +57,14 @@ export const figuresWorkMem = '32MB';
 /**
  * The one statement behind the figures: the range is read once (an index-only scan of the covering
  * index on `started_at`) into a materialised set, which the four aggregates then share.
- * $1 from, $2 to, $3 time zone, $4 now, $5 target hours, $6 the drift band edges.
+ * $1 from, $2 to, $3 time zone, $4 now, $5 target hours.
  */
 export function figuresQuery(query: TurnaroundQuery, settings: TurnaroundSettings, now = new Date()): { sql: string; params: unknown[] } {
   return {
     sql: `WITH r AS MATERIALIZED (
          SELECT t.physician_id, t.start_basis, t.signed_at, t.started_at, t.endotype, t.vessels, t.warned_vessels,
-                t.pressure_vessels, t.drift_vessels, t.drift_outside_vessels, t.drift_values, t.thermo_vessels, t.thermo_complete_vessels,
+                t.pressure_vessels, t.drift_vessels, t.drift_outside_vessels, t.drift_bins, t.thermo_vessels, t.thermo_complete_vessels,
+                (t.started_at AT TIME ZONE $3::text)::date AS local_day,
                 date_trunc('week', t.started_at AT TIME ZONE $3::text)::date AS week_start,
                 ${intervalColumns}
          FROM study_turnaround t
@@ -95,21 +95,21 @@ export function figuresQuery(query: TurnaroundQuery, settings: TurnaroundSetting
          FROM r WHERE signed_at IS NOT NULL
        ),
        d AS (
-         SELECT width_bucket(round(v::numeric, 3), $6::numeric[]) AS bin, count(*)::int AS vessels
-         FROM r CROSS JOIN LATERAL unnest(r.drift_values) v
-         WHERE r.signed_at IS NOT NULL
+         SELECT b AS bin, count(*)::int AS vessels
+         FROM r CROSS JOIN LATERAL unnest(r.drift_bins) b
+         WHERE r.signed_at IS NOT NULL AND cardinality(r.drift_bins) > 0
          GROUP BY 1
        ),
        e AS (
-         SELECT to_char(date_trunc('month', started_at AT TIME ZONE $3::text), 'YYYY-MM') AS month, COALESCE(endotype, 'unknown') AS endotype, count(*)::int AS n
-         FROM r WHERE signed_at IS NOT NULL
-         GROUP BY 1, 2
+         SELECT to_char(month, 'YYYY-MM') AS month, endotype, n
+         FROM (SELECT date_trunc('month', local_day)::date AS month, COALESCE(endotype, 'unknown') AS endotype, count(*)::int AS n
+               FROM r WHERE signed_at IS NOT NULL GROUP BY 1, 2) m
        )
        SELECT (SELECT COALESCE(json_agg(g), '[]') FROM g) AS grouped,
               (SELECT row_to_json(q) FROM q) AS quality,
               (SELECT COALESCE(json_agg(d), '[]') FROM d) AS drift,
               (SELECT COALESCE(json_agg(e ORDER BY e.month, e.endotype), '[]') FROM e) AS endotypes`,
-    params: [query.from, query.to, settings.timeZone, now, settings.signatureTargetHours, driftBinEdges],
+    params: [query.from, query.to, settings.timeZone, now, settings.signatureTargetHours],
   };
 }
 

@@ -113,7 +113,10 @@ export const turnaroundQuerySchema = z
   .refine((q) => daysBetween(q.from, q.to) < maxRangeDays, { path: ['to'], error: 'The range may cover at most five years.' });
 export type TurnaroundQuery = z.infer<typeof turnaroundQuerySchema>;
 
-/** Drift bins of 0.01 from 0.95 to 1.05, with open tails; the window is common practice (0.98–1.02). */
+/**
+ * Drift bins of 0.01 from 0.95 to 1.05, with open tails; the window is common practice (0.98–1.02).
+ * The database files each vessel's band with these same edges (study_turnaround_quality).
+ */
 export const driftBinEdges = [0.95, 0.96, 0.97, 0.98, 0.99, 1.0, 1.01, 1.02, 1.03, 1.04, 1.05] as const;
 
 export function driftBins(counts: ReadonlyMap<number, number>): DriftBin[] {

@@ -33,7 +33,8 @@ export class Turnaround1765400000000 implements MigrationInterface {
         pressure_vessels smallint NOT NULL DEFAULT 0,
         drift_vessels smallint NOT NULL DEFAULT 0,
         drift_outside_vessels smallint NOT NULL DEFAULT 0,
-        drift_values real[] NOT NULL DEFAULT '{}',
+        -- The drift band of each checked vessel (width_bucket over the edges in shared/turnaround/figures.ts).
+        drift_bins smallint[] NOT NULL DEFAULT '{}',
         thermo_vessels smallint NOT NULL DEFAULT 0,
         thermo_complete_vessels smallint NOT NULL DEFAULT 0
       )`);
@@ -43,7 +44,7 @@ export class Turnaround1765400000000 implements MigrationInterface {
     await db.query(`
       CREATE INDEX study_turnaround_started_idx ON study_turnaround (started_at)
       INCLUDE (physician_id, start_basis, signed_at, coded_at, delivered_at, endotype, vessels, warned_vessels,
-               pressure_vessels, drift_vessels, drift_outside_vessels, drift_values, thermo_vessels, thermo_complete_vessels)`);
+               pressure_vessels, drift_vessels, drift_outside_vessels, drift_bins, thermo_vessels, thermo_complete_vessels)`);
     await db.query(`CREATE INDEX study_turnaround_unsigned_idx ON study_turnaround (started_at) WHERE signed_at IS NULL`);
 
     await db.query(`
@@ -94,7 +95,7 @@ export class Turnaround1765400000000 implements MigrationInterface {
     await db.query(`
       CREATE FUNCTION study_turnaround_quality(snapshot jsonb, analysis jsonb, thresholds jsonb,
         OUT endotype text, OUT vessels integer, OUT warned_vessels integer, OUT pressure_vessels integer,
-        OUT drift_vessels integer, OUT drift_outside_vessels integer, OUT drift_values real[],
+        OUT drift_vessels integer, OUT drift_outside_vessels integer, OUT drift_bins smallint[],
         OUT thermo_vessels integer, OUT thermo_complete_vessels integer)
       LANGUAGE sql IMMUTABLE AS $$
         SELECT analysis->>'endotype',
@@ -104,7 +105,8 @@ export class Turnaround1765400000000 implements MigrationInterface {
                count(*) FILTER (WHERE v.pressure)::int,
                count(*) FILTER (WHERE v.pressure AND v.drift IS NOT NULL)::int,
                count(*) FILTER (WHERE v.pressure AND (v.drift < v.low OR v.drift > v.high))::int,
-               COALESCE(array_agg(v.drift::real) FILTER (WHERE v.pressure AND v.drift IS NOT NULL), '{}'),
+               COALESCE(array_agg(width_bucket(v.drift, '{0.95,0.96,0.97,0.98,0.99,1.00,1.01,1.02,1.03,1.04,1.05}'::numeric[])::smallint)
+                          FILTER (WHERE v.pressure AND v.drift IS NOT NULL), '{}'),
                count(*) FILTER (WHERE v.rest_n + v.hyp_n > 0)::int,
                count(*) FILTER (WHERE v.rest_n + v.hyp_n > 0 AND v.rest_n >= v.min_n AND v.hyp_n >= v.min_n)::int
         FROM (
@@ -131,7 +133,7 @@ export class Turnaround1765400000000 implements MigrationInterface {
             physician_id = CASE WHEN t.signed_at IS NULL OR f.signed_at < t.signed_at THEN f.signed_by ELSE t.physician_id END,
             endotype = q.endotype, vessels = q.vessels, warned_vessels = q.warned_vessels,
             pressure_vessels = q.pressure_vessels, drift_vessels = q.drift_vessels,
-            drift_outside_vessels = q.drift_outside_vessels, drift_values = q.drift_values,
+            drift_outside_vessels = q.drift_outside_vessels, drift_bins = q.drift_bins,
             thermo_vessels = q.thermo_vessels, thermo_complete_vessels = q.thermo_complete_vessels
         FROM (SELECT DISTINCT ON (study_id) study_id, signed_at, signed_by FROM signed ORDER BY study_id, version_no, signed_at) f
         JOIN (SELECT DISTINCT ON (study_id) study_id, snapshot, analysis, thresholds FROM signed ORDER BY study_id, version_no DESC) l ON l.study_id = f.study_id
@@ -182,7 +184,7 @@ export class Turnaround1765400000000 implements MigrationInterface {
       UPDATE study_turnaround t
       SET endotype = q.endotype, vessels = q.vessels, warned_vessels = q.warned_vessels,
           pressure_vessels = q.pressure_vessels, drift_vessels = q.drift_vessels,
-          drift_outside_vessels = q.drift_outside_vessels, drift_values = q.drift_values,
+          drift_outside_vessels = q.drift_outside_vessels, drift_bins = q.drift_bins,
           thermo_vessels = q.thermo_vessels, thermo_complete_vessels = q.thermo_complete_vessels
       FROM (SELECT DISTINCT ON (study_id) study_id, snapshot, analysis, thresholds FROM report_version ORDER BY study_id, version_no DESC) l
       CROSS JOIN LATERAL study_turnaround_quality(l.snapshot, l.analysis, l.thresholds) q
