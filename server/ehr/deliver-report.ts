@@ -173,11 +173,18 @@ export async function deliverReport(deps: DeliverDeps, reportVersionId: string, 
 }
 
 async function stop(query: Query, reportVersionId: string, status: 'rejected' | 'given-up', failure: { error: string; httpStatus: number | null; issues: DeliveryIssue[] }) {
+  // One statement: the delivery stops and the administrators' notice is queued together (its job key
+  // keeps it to one notice per version, however often the stop is reached).
   await query(
-    `UPDATE report_delivery
-        SET status = $2, last_error = $3, http_status = $4, issues = $5::jsonb, stopped_at = now(),
-            lease_until = NULL, next_attempt_at = NULL, updated_at = now()
-      WHERE report_version_id = $1`,
+    `WITH stopped AS (
+       UPDATE report_delivery
+          SET status = $2, last_error = $3, http_status = $4, issues = $5::jsonb, stopped_at = now(),
+              lease_until = NULL, next_attempt_at = NULL, updated_at = now()
+        WHERE report_version_id = $1
+        RETURNING report_version_id)
+     SELECT graphile_worker.add_job(identifier => 'send-delivery-failure-notice', payload => json_build_object('reportVersionId', report_version_id),
+                                    job_key => 'delivery-failed:' || report_version_id, max_attempts => 25)
+       FROM stopped`,
     [reportVersionId, status, failure.error, failure.httpStatus, JSON.stringify(failure.issues)],
   );
 }

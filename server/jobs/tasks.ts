@@ -3,6 +3,7 @@ import type { Config } from '../config';
 import { deliveryTasks } from '../ehr/tasks';
 import { codingTasks } from '../coding/tasks';
 import { sendReportNoticeTask } from '../mail/send-report-notice';
+import { sendDeliveryFailureNoticeTask } from '../mail/send-delivery-failure-notice';
 import { overdueCronItems, queueOverdueNoticesTask, sendOverdueNoticeTask } from '../turnaround/overdue-notices';
 import type { CronItem, TaskList } from './worker';
 
@@ -23,6 +24,7 @@ export function taskList(dataSource: DataSource, config: Config): TaskList {
       from: config.mail.from,
       hospitalName: config.hospital.name,
     }),
+    'send-delivery-failure-notice': sendDeliveryFailureNoticeTask(dataSource, { host: config.mail.host, port: config.mail.port, from: config.mail.from }),
     'queue-overdue-notices': queueOverdueNoticesTask(dataSource),
     'send-overdue-notice': sendOverdueNoticeTask(dataSource, { host: config.mail.host, port: config.mail.port, from: config.mail.from, publicUrl: config.publicUrl }),
   };

@@ -16,6 +16,8 @@ import { resendDelivery } from '../../server/ehr/resend-delivery';
 import { createDeliveryTasks } from '../../server/ehr/tasks';
 import { EHR_WRITE_SCOPES, startFakeEhr, type FakeEhr } from '../../server/fakes/ehr';
 import { startFakeIdp, type FakeIdp } from '../../server/fakes/identity-provider';
+import { startFakeSmtp } from '../../server/fakes/smtp';
+import { sendDeliveryFailureNoticeTask } from '../../server/mail/send-delivery-failure-notice';
 import { openTestDatabase } from '../support/app';
 import { createStudy } from '../support/factories';
 
@@ -310,6 +312,29 @@ describe('a bundle the EHR refuses', () => {
     const listed = (await listDeliveriesNeedingAttention(db, { statuses: ['rejected'] })).find((i) => i.reportVersionId === s.id)!;
     expect(listed).toMatchObject({ accession: s.accession, status: 'rejected', httpStatus: 409 });
     expect(listed.issues.every((i) => !('diagnostics' in i))).toBe(true);
+
+    // The administrators are told once: one notice job per version, however often the stop is reached.
+    const notices = await db.query(
+      `SELECT j.payload FROM graphile_worker._private_jobs j JOIN graphile_worker._private_tasks t ON t.id = j.task_id
+        WHERE t.identifier = 'send-delivery-failure-notice' AND j.key = $1`,
+      [`delivery-failed:${s.id}`],
+    );
+    expect(notices).toEqual([{ payload: { reportVersionId: s.id } }]);
+    // The notice itself: to every administrator, accession and the EHR's answer, nothing clinical.
+    const adminEmail = `admin-${randomUUID().slice(0, 8)}@hospital.example`;
+    await db.query(`INSERT INTO app_user (issuer, subject, email, display_name, role) VALUES ('test', $1, $1, 'Invented Admin', 'admin')`, [adminEmail]);
+    const smtp = await startFakeSmtp({ port: 0, httpPort: 0 });
+    try {
+      await sendDeliveryFailureNoticeTask(db, { host: '127.0.0.1', port: smtp.port, from: 'isobar@localhost' })({ reportVersionId: s.id }, {} as never);
+      expect(smtp.caught).toHaveLength(1);
+      expect(smtp.caught[0].to).toContain(adminEmail);
+      expect(smtp.caught[0].raw).toContain(s.accession);
+      expect(smtp.caught[0].raw).toMatch(/refused the report \(HTTP 409\)/);
+      expect(smtp.caught[0].raw).not.toMatch(/Testperson|impression|FFR/i);
+    } finally {
+      await smtp.close();
+      await db.query(`DELETE FROM app_user WHERE email = $1`, [adminEmail]).catch(() => undefined);
+    }
   });
 
   it('a signed version that cannot be made into a bundle is rejected before anything is sent', async () => {
