@@ -1,3 +1,4 @@
+import { driftOutOfRange } from '../../shared/physiology/quality';
 import {
   defaultThresholds,
   endotypeName,
@@ -311,9 +312,12 @@ function techniqueSentences(study: ReportStudy, t: Thresholds): string[] {
     if (!hasPressureIndex(v)) return;
     const name = vesselShortName[v.vessel];
     if (isNum(v.driftPdPa)) {
-      const shown = Number(q(v.driftPdPa, 'ratio'));
-      const inside = shown >= t.driftLow && shown <= t.driftHigh;
-      drift.push(`${name} ${q(v.driftPdPa, 'ratio')} (${inside ? 'within' : 'outside'} ${window})`);
+      // Judged as entered, by the same rule as the screens' drift banner; a value outside the window
+      // that would print as a bound (1.024 → "1.02") is printed to three decimals so the words agree.
+      const outside = driftOutOfRange(v.driftPdPa, t);
+      const shown = q(v.driftPdPa, 'ratio');
+      const printed = outside && Number(shown) >= t.driftLow && Number(shown) <= t.driftHigh ? v.driftPdPa.toFixed(3) : shown;
+      drift.push(`${name} ${printed} (${outside ? 'outside' : 'within'} ${window})`);
     } else {
       const reason = (v as { driftNotDoneReason?: string | null }).driftNotDoneReason;
       if (filled(reason)) drift.push(`${name} not done (${reason.trim()})`);

@@ -1,6 +1,7 @@
 import type { DataSource } from 'typeorm';
 import type { AwaitingList, AwaitingSignature } from '../../shared/study/awaiting-signature';
-import { defaultSignatureTargetHours, waitingSince } from '../../shared/turnaround/overdue';
+import { waitingSince } from '../../shared/turnaround/overdue';
+import { labSettings } from '../settings/lab-settings';
 import { summarySelect, toSummary } from './worklist';
 
 /** At most this many rows per list; `total` says how many there are. */
@@ -11,6 +12,8 @@ export const awaitingListLimit = 100;
  * time): those `operatorId` operated, and all of them.
  */
 export async function listAwaitingSignature(dataSource: DataSource, operatorId: string, now = new Date()): Promise<AwaitingSignature> {
+  // The lab's own signature target (admin settings), the same the turnaround page judges by.
+  const { signatureTargetHours: targetHours } = await labSettings(dataSource);
   const list = async (mineOnly: boolean): Promise<AwaitingList> => {
     const rows: Record<string, never>[] = await dataSource.query(
       `SELECT q.*, coalesce(q.procedure_ended_at, q.sort_at) AS waiting_since, count(*) OVER () AS total
@@ -23,10 +26,10 @@ export async function listAwaitingSignature(dataSource: DataSource, operatorId: 
       total: rows.length ? Number(rows[0].total) : 0,
       items: rows.map((row) => {
         const since = row.waiting_since as Date;
-        return { ...toSummary(row), waitingSince: since.toISOString(), ...waitingSince(since, now) };
+        return { ...toSummary(row), waitingSince: since.toISOString(), ...waitingSince(since, now, targetHours) };
       }),
     };
   };
   const [mine, all] = await Promise.all([list(true), list(false)]);
-  return { targetHours: defaultSignatureTargetHours, limit: awaitingListLimit, mine, all };
+  return { targetHours, limit: awaitingListLimit, mine, all };
 }

@@ -94,6 +94,13 @@ describe('template sections', () => {
     s.vessels[1].driftPdPa = null;
     (s.vessels[1] as { driftNotDoneReason?: string }).driftNotDoneReason = 'Wire lost distal position';
     expect(section(render(s).text, 'PROCEDURE AND TECHNIQUE')).toContain('LCx not done (Wire lost distal position)');
+    // Judged as entered, like the screens' drift banner (window 0.98–1.02, common practice): 1.024 is
+    // outside, and printed to three decimals so the number and the word agree.
+    const edge = demoReportStudies()[5];
+    edge.vessels[1].driftPdPa = 1.024;
+    expect(section(render(edge).text, 'PROCEDURE AND TECHNIQUE')).toContain('LCx 1.024 (outside 0.98–1.02)');
+    edge.vessels[1].driftPdPa = 1.02;
+    expect(section(render(edge).text, 'PROCEDURE AND TECHNIQUE')).toContain('LCx 1.02 (within 0.98–1.02)');
   });
 
   it('technique: intracoronary adenosine in µg and thermodilution injections', () => {
