@@ -90,8 +90,8 @@ describe('the live report preview', () => {
       expect(pane.y).toBeLessThan(300);
       expect(pane.width).toBeGreaterThan(340);
       expect(form.width).toBeGreaterThan(300);
-      await expect(visible(page, 'report-pane-document-impression').innerText()).resolves.toContain('Significant LAD lesion.');
-      await expect(visible(page, 'report-pane-document-indices').innerText()).resolves.toMatch(/0\.80/);
+      await expect.poll(async () => visible(page, 'report-pane-document-impression').innerText(), { timeout: 15_000 }).toContain('Significant LAD lesion.');
+      await expect.poll(async () => visible(page, 'report-pane-document-indices').innerText(), { timeout: 15_000 }).toMatch(/0\.80/);
       const versionBefore = await visible(page, 'report-pane-status').innerText();
 
       // Markup typed by the physician is shown as the characters typed, never run or rendered.
@@ -100,7 +100,7 @@ describe('the live report preview', () => {
       await expect
         .poll(async () => visible(page, 'report-pane-document-impression').innerText(), { timeout: 15_000 })
         .toContain(typed);
-      await expect(visible(page, 'report-pane-status').innerText()).resolves.not.toBe(versionBefore);
+      await expect.poll(async () => visible(page, 'report-pane-status').innerText(), { timeout: 15_000 }).not.toBe(versionBefore);
       expect(await page.evaluate(() => (window as unknown as { __ran?: number }).__ran)).toBeUndefined();
       expect(await page.locator('[data-testid="report-pane"] img, [data-testid="report-pane"] b').count()).toBe(0);
       await page.screenshot({ path: screenshotPath('report-preview-beside-form-desktop') });
@@ -114,6 +114,7 @@ describe('the live report preview', () => {
       await visible(page, 'report-pane-show').waitFor();
       expect(await visible(page, 'report-pane').count()).toBe(0);
       // The live results have their column beside the form again.
+      await visible(page, 'study-results').waitFor();
       const results = await box(page, 'study-results');
       const formAgain = await box(page, 'findings-impression');
       expect(results.x).toBeGreaterThanOrEqual(formAgain.x + formAgain.width);
@@ -123,6 +124,7 @@ describe('the live report preview', () => {
 
       // The narrowest screen that keeps both side by side, and just below it none.
       await page.setViewportSize({ width: 1100, height: 800 });
+      await visible(page, 'report-pane').waitFor();
       const narrowForm = await box(page, 'findings-impression');
       const narrowPane = await box(page, 'report-pane');
       expect(narrowPane.x).toBeGreaterThanOrEqual(narrowForm.x + narrowForm.width);
@@ -130,7 +132,8 @@ describe('the live report preview', () => {
       await page.screenshot({ path: screenshotPath('report-preview-beside-form-1100') });
       await page.setViewportSize({ width: 1060, height: 800 });
       await visible(page, 'findings-impression').waitFor();
-      expect(await visible(page, 'report-pane').count()).toBe(0);
+      // The layout follows the resize on the next render: wait for it rather than read at once.
+      await expect.poll(async () => visible(page, 'report-pane').count(), { timeout: 10_000 }).toBe(0);
     } finally {
       await context.close();
     }
