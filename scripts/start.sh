@@ -41,6 +41,8 @@ ensure_web_build
 
 # The local stand-ins for hospital services (identity provider), unless a real one is configured.
 if [[ -z ${ISOBAR_NO_FAKES:-} ]]; then
+  # The admin may read what the local mail stand-in caught (a development aid, off unless asked for).
+  export CAUGHT_MAIL_PAGE=${CAUGHT_MAIL_PAGE:-on}
   node_modules/.bin/tsx server/fakes/main.ts &
   FAKES_PID=$!
   for _ in $(seq 1 100); do

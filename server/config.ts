@@ -96,6 +96,8 @@ const configSchema = z
     FAKE_SMTP_HTTP_PORT: port.default(8426),
     /** Set by whoever runs real hospital services instead of the local stand-ins (see scripts/start.sh). */
     ISOBAR_NO_FAKES: z.string().optional(),
+    /** The admin's caught-mail page is a development aid: on only when asked for (scripts/start.sh does). */
+    CAUGHT_MAIL_PAGE: z.enum(['on', 'off']).default('off'),
     JOB_WORKER: z.enum(['on', 'off']).default('on'),
     ATTACHMENT_MAX_CONCURRENT: z.coerce.number().int().min(1).max(100).default(4),
     LOG_LEVEL: z.enum(logLevels).optional(),
@@ -176,8 +178,8 @@ export class ConfigError extends Error {
 }
 
 /** The local mail stand-in catches the mail: not in production, not with real services, only on loopback. */
-function fakeMailInUse(v: { NODE_ENV: string; ISOBAR_NO_FAKES?: string; SMTP_HOST: string }): boolean {
-  return v.NODE_ENV !== 'production' && !v.ISOBAR_NO_FAKES && ['127.0.0.1', 'localhost', '::1'].includes(v.SMTP_HOST);
+function fakeMailInUse(v: { NODE_ENV: string; ISOBAR_NO_FAKES?: string; CAUGHT_MAIL_PAGE: 'on' | 'off'; SMTP_HOST: string }): boolean {
+  return v.CAUGHT_MAIL_PAGE === 'on' && v.NODE_ENV !== 'production' && !v.ISOBAR_NO_FAKES && ['127.0.0.1', 'localhost', '::1'].includes(v.SMTP_HOST);
 }
 
 export function loadConfig(env: Record<string, string | undefined> = process.env): Config {

@@ -44,13 +44,17 @@ describe('readMessage', () => {
 });
 
 describe('where caught mail can be listed', () => {
-  it('locally the mail stand-in’s list on its HTTP port', () => {
-    expect(loadConfig({}).mail.caughtMailUrl).toBe('http://127.0.0.1:8426/messages');
-    expect(loadConfig({ FAKE_SMTP_HTTP_PORT: '9001', SMTP_HOST: 'localhost' }).mail.caughtMailUrl).toBe('http://localhost:9001/messages');
+  it('locally the mail stand-in’s list on its HTTP port, when the page is asked for', () => {
+    expect(loadConfig({ CAUGHT_MAIL_PAGE: 'on' }).mail.caughtMailUrl).toBe('http://127.0.0.1:8426/messages');
+    expect(loadConfig({ CAUGHT_MAIL_PAGE: 'on', FAKE_SMTP_HTTP_PORT: '9001', SMTP_HOST: 'localhost' }).mail.caughtMailUrl).toBe('http://localhost:9001/messages');
+  });
+  it('nowhere unless asked for: a local relay alone does not open the page', () => {
+    expect(loadConfig({}).mail.caughtMailUrl).toBeNull();
+    expect(loadConfig({ CAUGHT_MAIL_PAGE: 'off' }).mail.caughtMailUrl).toBeNull();
   });
   it('nowhere in production, with real services, or with a relay that is not on this machine', () => {
-    expect(loadConfig({ NODE_ENV: 'production', SESSION_SECRET: 'x'.repeat(40) }).mail.caughtMailUrl).toBeNull();
-    expect(loadConfig({ ISOBAR_NO_FAKES: '1' }).mail.caughtMailUrl).toBeNull();
-    expect(loadConfig({ SMTP_HOST: 'relay.hospital.example' }).mail.caughtMailUrl).toBeNull();
+    expect(loadConfig({ CAUGHT_MAIL_PAGE: 'on', NODE_ENV: 'production', SESSION_SECRET: 'x'.repeat(40) }).mail.caughtMailUrl).toBeNull();
+    expect(loadConfig({ CAUGHT_MAIL_PAGE: 'on', ISOBAR_NO_FAKES: '1' }).mail.caughtMailUrl).toBeNull();
+    expect(loadConfig({ CAUGHT_MAIL_PAGE: 'on', SMTP_HOST: 'relay.hospital.example' }).mail.caughtMailUrl).toBeNull();
   });
 });
