@@ -3,10 +3,11 @@ import { roleLabel } from '../../shared/auth/permissions';
 import type { RoleMapping } from '../../shared/settings/admin';
 import { labSettingsUpdateSchema, templateActivationSchema } from '../../shared/settings/lab-settings';
 import { thresholdSetRequestSchema } from '../../shared/settings/threshold-ranges';
-import { auditContext } from '../audit/audit';
+import { auditContext, recordAudit } from '../audit/audit';
 import { defaultRoleMap, type Config } from '../config';
 import { NotFoundError } from '../http/problem';
 import type { ApiRoute } from '../http/routes';
+import type { Request } from 'express';
 import { parseOrThrow } from '../http/validate';
 import { listTemplateVersions, readTemplateVersion } from '../report/template-versions';
 import { activateTemplateVersion, defaultsFrom, labSettings, labSettingsView, updateLabSettings } from '../settings/lab-settings';
@@ -15,6 +16,9 @@ import { createThresholdSet, thresholdOverview } from '../settings/thresholds';
 /** The admin's settings: thresholds with effective dates, lab settings, report templates, the role mapping. Every change is audited. */
 export function adminRoutes({ config, dataSource }: { config: Config; dataSource: DataSource }): ApiRoute[] {
   const defaults = defaultsFrom(config);
+  // Reading the lab's settings is audited too: the trail answers who looked at what, not only who changed it.
+  const auditRead = (req: Request, entityId: string, extra: Record<string, unknown> = {}) =>
+    recordAudit(dataSource, { ...auditContext(req), action: 'read', entityType: 'settings', entityId, outcome: 'success', ...(Object.keys(extra).length ? { detail: extra } : {}) });
   return [
     {
       method: 'get',
@@ -22,7 +26,8 @@ export function adminRoutes({ config, dataSource }: { config: Config; dataSource
       access: 'admin:manage',
       summary: 'The identity provider claim and the group → role table in force (read only: set by ROLE_CLAIM and ROLE_MAP)',
       handlers: [
-        (_req, res) => {
+        async (req, res) => {
+          await auditRead(req, 'role-mapping');
           const body: RoleMapping = {
             claim: config.oidc.roleClaim,
             rules: Object.entries(config.oidc.roleMap).map(([group, role]) => ({ group, role, roleLabel: roleLabel[role] })),
@@ -38,8 +43,10 @@ export function adminRoutes({ config, dataSource }: { config: Config; dataSource
       access: 'admin:manage',
       summary: 'Every cut-off with its source, the value in force and since when; the sets scheduled and past',
       handlers: [
-        async (_req, res) => {
-          res.json(await thresholdOverview(dataSource));
+        async (req, res) => {
+          const overview = await thresholdOverview(dataSource);
+          await auditRead(req, 'thresholds');
+          res.json(overview);
         },
       ],
     },
@@ -61,8 +68,10 @@ export function adminRoutes({ config, dataSource }: { config: Config; dataSource
       access: 'admin:manage',
       summary: 'The lab settings stored, what applies (configuration where nothing is stored) and who changed them last',
       handlers: [
-        async (_req, res) => {
-          res.json(await labSettingsView(dataSource, defaults));
+        async (req, res) => {
+          const view = await labSettingsView(dataSource, defaults);
+          await auditRead(req, 'lab-settings');
+          res.json(view);
         },
       ],
     },
@@ -84,8 +93,10 @@ export function adminRoutes({ config, dataSource }: { config: Config; dataSource
       access: 'admin:manage',
       summary: 'The report template versions shipped, and the one new signatures use',
       handlers: [
-        async (_req, res) => {
-          res.json({ active: (await labSettings(dataSource, defaults)).templateVersion, versions: listTemplateVersions() });
+        async (req, res) => {
+          const body = { active: (await labSettings(dataSource, defaults)).templateVersion, versions: listTemplateVersions() };
+          await auditRead(req, 'report-templates');
+          res.json(body);
         },
       ],
     },
@@ -95,9 +106,10 @@ export function adminRoutes({ config, dataSource }: { config: Config; dataSource
       access: 'admin:manage',
       summary: 'One shipped template version with the text of each file',
       handlers: [
-        (req, res) => {
+        async (req, res) => {
           const detail = readTemplateVersion(String(req.params.version));
           if (!detail) throw new NotFoundError(`No report template version "${String(req.params.version).slice(0, 20)}" is shipped.`);
+          await auditRead(req, 'report-template', { version: detail.version });
           res.json(detail);
         },
       ],

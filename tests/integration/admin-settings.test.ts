@@ -52,7 +52,7 @@ afterAll(async () => {
 const api = () => request(stack.url);
 const send = (method: 'post' | 'put' | 'patch', path: string, cookie: string) => api()[method](path).set('Cookie', cookie).set('Origin', stack.url);
 const lastSettingsAudit = async (entityId: string) =>
-  (await db.query(`SELECT * FROM audit_event WHERE entity_type = 'settings' AND entity_id = $1 ORDER BY id DESC LIMIT 1`, [entityId]))[0];
+  (await db.query(`SELECT * FROM audit_event WHERE entity_type = 'settings' AND entity_id = $1 AND action <> 'read' ORDER BY id DESC LIMIT 1`, [entityId]))[0];
 
 /**
  * A complete lesion study, ready to sign: FFR 81/90 = 0.90 (not significant, > 0.80 — ESC 2024), CFR
@@ -400,6 +400,21 @@ describe('report templates', () => {
     const old = await versionRow(signedV1.body.id);
     expect(old.template_version).toBe('v1');
     expect(old.narrative_text).not.toMatch(/Judged by/);
+  });
+});
+
+describe('reading the settings', () => {
+  it('is audited too: who looked at which settings, and when', async () => {
+    const before = Number((await db.query(`SELECT max(id) AS id FROM audit_event`))[0].id);
+    await api().get('/api/admin/role-mapping').set('Cookie', admin).expect(200);
+    await api().get('/api/admin/thresholds').set('Cookie', admin).expect(200);
+    await api().get('/api/admin/lab-settings').set('Cookie', admin).expect(200);
+    await api().get('/api/admin/report-templates').set('Cookie', admin).expect(200);
+    await api().get('/api/admin/report-templates/v2').set('Cookie', admin).expect(200);
+    const rows = await db.query(`SELECT action, entity_type, entity_id, actor_role, detail FROM audit_event WHERE id > $1 ORDER BY id`, [before]);
+    expect(rows.map((r: { entity_id: string }) => r.entity_id)).toEqual(['role-mapping', 'thresholds', 'lab-settings', 'report-templates', 'report-template']);
+    for (const r of rows) expect(r).toMatchObject({ action: 'read', entity_type: 'settings', actor_role: 'admin' });
+    expect(rows[4].detail).toEqual({ version: 'v2' });
   });
 });
 
