@@ -2,7 +2,8 @@ import { stringify } from 'csv-stringify/sync';
 import { neutraliseCell, quoteAlsoWhen } from '../../shared/csv/neutralise';
 import type { Decision } from '../../shared/coding/review';
 import { loadLines } from './load-review';
-import type { Sql } from './sql';
+import { auditTarget, type Sql } from './sql';
+import { labSettings } from '../settings/lab-settings';
 
 export interface ExportedCode {
   accession: string;
@@ -27,16 +28,18 @@ export interface ExportedCode {
  * per code as it is reported — accepted, edited (the edit), added; rejected codes are not codes.
  */
 export async function exportCodes(sql: Sql, from: string, to: string): Promise<ExportedCode[]> {
+  // Days and dates of service are the lab's calendar days, not the database server's.
+  const { timeZone } = await labSettings(auditTarget(sql));
   const reviews = await sql(
     `SELECT r.current_set_id, r.completer_name, r.completed_at, cs.version_no, s.accession, p.mrn, p.family_name, p.given_name,
-            to_char(s.procedure_started_at AT TIME ZONE 'UTC', 'YYYY-MM-DD') AS date_of_service
+            to_char(s.procedure_started_at AT TIME ZONE $3, 'YYYY-MM-DD') AS date_of_service
      FROM coding_review r
      JOIN code_suggestion_set cs ON cs.id = r.current_set_id
      JOIN study s ON s.id = r.study_id
      JOIN patient p ON p.id = s.patient_id
-     WHERE r.status = 'coded' AND r.completed_at >= $1::date AND r.completed_at < $2::date + 1
+     WHERE r.status = 'coded' AND r.completed_at >= ($1::date)::timestamp AT TIME ZONE $3 AND r.completed_at < ($2::date + 1)::timestamp AT TIME ZONE $3
      ORDER BY r.completed_at, r.study_id`,
-    [from, to],
+    [from, to, timeZone],
   );
   const out: ExportedCode[] = [];
   for (const r of reviews) {

@@ -4,6 +4,7 @@ import { inputChanges } from '../../shared/coding/review';
 import type { PhysiologyResult } from '../../shared/physiology/types';
 import type { StudySections } from '../../shared/study/schema';
 import { recordAudit } from '../audit/audit';
+import { labSettings } from '../settings/lab-settings';
 import { auditTarget, type Sql } from './sql';
 
 export interface StoredSuggestions {
@@ -25,10 +26,10 @@ const snapshotSchema = z.looseObject({
 });
 
 /** The engine on a signed record: its input and result, or why it could not run. */
-export function suggestFromSnapshot(snapshot: unknown, analysis: unknown): { input: CodingInput | null; result: CodingResult | null; failure: string | null } {
+export function suggestFromSnapshot(snapshot: unknown, analysis: unknown, timeZone = 'UTC'): { input: CodingInput | null; result: CodingResult | null; failure: string | null } {
   try {
     const record = snapshotSchema.parse(snapshot) as unknown as StudySections;
-    const input = toCodingInput({ ...record, coding: record.coding ?? emptyStudyCoding() }, analysis as PhysiologyResult);
+    const input = toCodingInput({ ...record, coding: record.coding ?? emptyStudyCoding() }, analysis as PhysiologyResult, { timeZone });
     return { input, result: suggestCodes(input), failure: null };
   } catch (error) {
     const detail = error instanceof z.ZodError ? error.issues.slice(0, 5).map((i) => `${i.path.join('.') || 'record'}: ${i.message}`).join('; ') : String((error as Error)?.message ?? error);
@@ -56,7 +57,8 @@ export async function storeSuggestions(sql: Sql, reportVersionId: string): Promi
   const [existing] = await sql(`SELECT id FROM code_suggestion_set WHERE report_version_id = $1`, [reportVersionId]);
   if (existing) return { setId: existing.id, created: false, queued: false, codes: 0 };
 
-  const { input, result, failure } = suggestFromSnapshot(version.snapshot, version.analysis);
+  const { timeZone } = await labSettings(auditTarget(sql));
+  const { input, result, failure } = suggestFromSnapshot(version.snapshot, version.analysis, timeZone);
   const [previous] = await sql(
     `SELECT id, input FROM code_suggestion_set WHERE study_id = $1 AND version_no < $2 ORDER BY version_no DESC LIMIT 1`,
     [version.study_id, version.version_no],

@@ -3,6 +3,7 @@ import { vesselCodes } from '../physiology/schema';
 import type { PhysiologyResult } from '../physiology/types';
 import type { StudySections } from '../study/schema';
 import { billingContexts, interventionKinds, patientClasses, settings, stentTypes, type CodingInput, type MeasuredIndex } from './schema';
+import { localDate } from '../time/local-date';
 import { listNames, shortName } from './vessels';
 
 /**
@@ -64,6 +65,7 @@ const present = (v: number | null | undefined): v is number => typeof v === 'num
 export function toCodingInput(
   record: Pick<StudySections, 'details' | 'setup' | 'vessels' | 'vasoreactivity'> & { coding: StudyCoding },
   analysis: PhysiologyResult,
+  options: { timeZone?: string } = {},
 ): CodingInput {
   const coding = studyCodingSchema.parse(record.coding);
   const notes: Note[] = [];
@@ -155,7 +157,8 @@ export function toCodingInput(
       microvascularDysfunction: f.microvascular !== null,
       vasospasm: f.vasospasm,
     },
-    dateOfService: record.details.procedureStartedAt ? record.details.procedureStartedAt.slice(0, 10) : null,
+    // The lab's calendar day, not UTC's: it picks the code-set release and is the claim's date.
+    dateOfService: record.details.procedureStartedAt ? localDate(record.details.procedureStartedAt, options.timeZone ?? 'UTC') : null,
     ...(notes.length ? { notes } : {}),
   };
 }

@@ -83,7 +83,9 @@ const detailsFields = z.object({
     anginaCharacter: choice('Angina character', anginaCharacters),
     guideFrench: z.number({ error: 'Guide catheter size must be a number in French.' }).int({ error: 'Guide catheter size must be a whole number of French.' }).min(4, { error: 'Guide catheter size must be at least 4 French.' }).max(8, { error: 'Guide catheter size must be at most 8 French.' }).nullable(),
 });
-const endAfterStart = (d: Partial<z.infer<typeof detailsFields>>) => !d.procedureStartedAt || !d.procedureEndedAt || d.procedureEndedAt >= d.procedureStartedAt;
+// Compared as instants: "10:00+02:00" is before "09:00Z", whatever the strings say.
+const endAfterStart = (d: Partial<z.infer<typeof detailsFields>>) =>
+  !d.procedureStartedAt || !d.procedureEndedAt || Date.parse(d.procedureEndedAt) >= Date.parse(d.procedureStartedAt);
 export const detailsSchema = detailsFields.refine(endAfterStart, {
   path: ['procedureEndedAt'],
   error: 'Procedure end must be after its start.',

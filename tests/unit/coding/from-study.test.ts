@@ -96,6 +96,21 @@ describe('a study record and its analysis become the coding input', () => {
     expect(input.notes?.map((n) => n.code)).toContain('pci-decision-without-intervention');
   });
 
+  it('the date of service is the lab\'s calendar day, not UTC\'s: it picks the code-set release (CPT by calendar year — AMA CPT release cycle)', () => {
+    // 19:30 in New York on 31 December 2025 is 00:30 UTC on 1 January 2026.
+    const rec = study({ start: '2026-01-01T00:30:00.000Z' });
+    const analysis = analyzeStudy(toPhysiologyInput(rec));
+    const newYork = toCodingInput(rec, analysis, { timeZone: 'America/New_York' });
+    expect(newYork.dateOfService).toBe('2025-12-31');
+    expect(suggestCodes(newYork).codeSets.CPT.year).toBe(2025);
+    expect(toCodingInput(rec, analysis, { timeZone: 'UTC' }).dateOfService).toBe('2026-01-01');
+    expect(toCodingInput(rec, analysis).dateOfService).toBe('2026-01-01');
+    // East of Greenwich the day turns earlier: 23:30 UTC on 30 September is 1 October in Tokyo (ICD-10 FY starts 1 October — CMS).
+    const tokyo = toCodingInput(study({ start: '2025-09-30T23:30:00Z' }), analysis, { timeZone: 'Asia/Tokyo' });
+    expect(tokyo.dateOfService).toBe('2025-10-01');
+    expect(suggestCodes(tokyo).codeSets['ICD-10-CM'].year).toBe(2026);
+  });
+
   it('no procedure date → dateOfService null, which is warned — CPT releases by date of service (CMS)', () => {
     const input = map(study({ start: null }));
     expect(input.dateOfService).toBeNull();
