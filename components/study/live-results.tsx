@@ -20,6 +20,7 @@ import { useThresholds } from '../data/thresholds-query';
 import { Text } from '../ui/text';
 import { CautionNote } from '../caution-note';
 import { color, radius, space } from '../theme';
+import { reportKindOf } from '../../shared/report/kind';
 import { FlagBadge } from './flag-badge';
 
 export interface LiveAnalysis {
@@ -131,9 +132,6 @@ export function VesselResults({ result, testID }: { result: VesselResult | undef
   );
 }
 
-/** Clinical questions about a lesion: the result speaks of the lesions and the decision, not of an endotype. */
-const lesionQuestions = new Set(['intermediate-lesion', 'post-pci']);
-
 /**
  * The study's result: the headline (every coexisting finding, with any quality caveat), the
  * acetylcholine result once, the rules that produced it, and the standing caution right beside it.
@@ -141,8 +139,9 @@ const lesionQuestions = new Set(['intermediate-lesion', 'post-pci']);
 export function StudyResults({ testID = 'study-results' }: { testID?: string }) {
   const { result, problem } = useLiveAnalysis();
   const { control } = useFormContext<StudySections>();
-  const question = useWatch({ control, name: 'details.clinicalQuestion' });
-  const lesion = question !== null && question !== undefined && lesionQuestions.has(question);
+  // The same rule as the report's: a lesion study speaks of the lesions and the decision, not of an endotype.
+  const [clinicalQuestion, vessels, doses] = useWatch({ control, name: ['details.clinicalQuestion', 'vessels', 'vasoreactivity.doses'] });
+  const lesion = reportKindOf({ details: { clinicalQuestion: clinicalQuestion ?? null }, vessels: vessels ?? [], vasoreactivity: { doses: doses ?? [] } }) === 'lesion';
   const reasons = result ? (lesion ? result.reasons.filter((r) => !r.startsWith('Endotype:')) : result.reasons) : [];
   return (
     <View style={styles.panel} testID={testID}>

@@ -18,9 +18,12 @@ import {
 import { cite } from '../../shared/physiology/thresholds';
 import { endotypeLabel, flagLabel, imrMethodLabel, nhprKindLabel, reportCaution, vasoreactivityOutcomeLabel } from '../../shared/report/labels';
 import { hasPressureIndex } from '../../shared/report/completeness';
+import { reportKindOf, type ReportKind } from '../../shared/report/kind';
 import type { StudySections } from '../../shared/study/schema';
 import * as vocabulary from '../../shared/study/vocabulary';
 import { REPORT_TEMPLATE_VERSION } from './template-version';
+
+export { reportKindOf, type ReportKind };
 
 /**
  * The report's view model: everything the narrative templates and the PDF print, already in words.
@@ -31,7 +34,6 @@ import { REPORT_TEMPLATE_VERSION } from './template-version';
  */
 
 /** What the report is about, from the study's clinical question. */
-export type ReportKind = 'lesion' | 'coronary-function';
 
 export interface ReportStudy extends Pick<StudySections, 'patient' | 'details' | 'setup' | 'vessels' | 'vasoreactivity' | 'findings'> {
   id: string;
@@ -231,23 +233,6 @@ const vesselTitle = (code: VesselCode, segment: unknown) => {
   const seg = segmentLabel(segment);
   return seg ? `${vesselLongName[code]} (${seg})` : vesselLongName[code];
 };
-
-// ---------------------------------------------------------------------------------------------
-// Report kind
-
-/**
- * The clinical question decides the kind of report: an intermediate lesion or a result after
- * intervention is a lesion report; angina without obstruction is a coronary function report. When
- * the question is "other" or not recorded, the data decide: transit times or acetylcholine doses
- * make it a coronary function report.
- */
-export function reportKindOf(study: Pick<StudySections, 'details' | 'vessels' | 'vasoreactivity'>): ReportKind {
-  const qn = study.details.clinicalQuestion;
-  if (qn === 'intermediate-lesion' || qn === 'post-pci') return 'lesion';
-  if (qn === 'angina-no-obstruction') return 'coronary-function';
-  const thermo = study.vessels.some((v) => v.restTransit.length > 0 || v.hyperemiaTransit.length > 0);
-  return thermo || study.vasoreactivity.doses.length > 0 ? 'coronary-function' : 'lesion';
-}
 
 // ---------------------------------------------------------------------------------------------
 // Technique
