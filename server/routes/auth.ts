@@ -5,6 +5,7 @@ import type { Config } from '../config';
 import { homeOf, permissionsOf } from '../../shared/auth/permissions';
 import { auditContext, recordAudit } from '../audit/audit';
 import { authTimeOf, mapRole, pkce, type IdentityProvider } from '../auth/oidc';
+import { provisionUser } from '../auth/provision-user';
 import { destroySession, regenerateSession, saveSession, sessionCookieName } from '../auth/session';
 import type { ApiRoute } from '../http/routes';
 import { HttpError } from '../http/problem';
@@ -127,15 +128,7 @@ export function authRoutes(deps: { config: Config; dataSource: DataSource; idp: 
           const role = mapRole(claims[config.oidc.roleClaim], config.oidc.roleMap);
           const email = typeof claims.email === 'string' ? claims.email : '';
           const displayName = typeof claims.name === 'string' && claims.name ? claims.name : email || subject;
-          const [user] = await dataSource.query(
-            `INSERT INTO app_user (issuer, subject, email, display_name, role, last_sign_in_at)
-             VALUES ($1, $2, $3, $4, $5, now())
-             ON CONFLICT (issuer, subject) DO UPDATE
-               SET email = EXCLUDED.email, display_name = EXCLUDED.display_name, role = EXCLUDED.role,
-                   last_sign_in_at = now(), updated_at = now()
-             RETURNING id`,
-            [idp.issuer, subject, email, displayName, role],
-          );
+          const user = await provisionUser(dataSource, { issuer: idp.issuer, subject, email, displayName, role });
           // A new session id at sign-in: an id planted before sign-in is worth nothing after it.
           await regenerateSession(req.session);
           const now = Date.now();
