@@ -5,6 +5,7 @@ import type { PhysiologyResult } from '../../shared/physiology/types';
 import type { StudySections } from '../../shared/study/schema';
 import { recordAudit } from '../audit/audit';
 import { auditTarget, type Sql } from './sql';
+import { lockStudy } from '../studies/lock-study';
 
 export interface StoredSuggestions {
   setId: string;
@@ -51,7 +52,7 @@ export async function storeSuggestions(sql: Sql, reportVersionId: string): Promi
   );
   if (!version) throw new Error(`No report version ${reportVersionId}`);
   // One writer per study at a time: concurrent jobs for two versions of a study queue here.
-  await sql(`SELECT id FROM study WHERE id = $1 FOR UPDATE`, [version.study_id]);
+  await lockStudy({ query: sql }, version.study_id);
 
   const [existing] = await sql(`SELECT id FROM code_suggestion_set WHERE report_version_id = $1`, [reportVersionId]);
   if (existing) return { setId: existing.id, created: false, queued: false, codes: 0 };
