@@ -26,7 +26,7 @@ const snapshotSchema = z.looseObject({
 });
 
 /** The engine on a signed record: its input and result, or why it could not run. */
-export function suggestFromSnapshot(snapshot: unknown, analysis: unknown): { input: CodingInput | null; result: CodingResult | null; failure: string | null } {
+function suggestFromSnapshot(snapshot: unknown, analysis: unknown): { input: CodingInput | null; result: CodingResult | null; failure: string | null } {
   try {
     const record = snapshotSchema.parse(snapshot) as unknown as StudySections;
     const input = toCodingInput({ ...record, coding: record.coding ?? emptyStudyCoding() }, analysis as PhysiologyResult);

@@ -11,7 +11,7 @@ import type { ApiRoute } from '../http/routes';
 import { HttpError } from '../http/problem';
 
 /** Only same-site paths may be returned to after sign-in (no open redirects). */
-export function safeReturnPath(value: unknown): string | null {
+function safeReturnPath(value: unknown): string | null {
   if (typeof value !== 'string' || !value.startsWith('/') || value.startsWith('//') || value.startsWith('/\\')) return null;
   if (value.startsWith('/api/')) return null;
   return value.slice(0, 500);
@@ -22,7 +22,7 @@ const pendingTtlMs = 10 * 60_000;
  * A renewed confirmation counts when the provider authenticated the user no earlier than the request
  * for it, give or take this much: `auth_time` is in whole seconds and the two clocks may differ a little.
  */
-export const reauthClockSkewMs = 30_000;
+const reauthClockSkewMs = 30_000;
 
 export function authRoutes(deps: { config: Config; dataSource: DataSource; idp: IdentityProvider }): ApiRoute[] {
   const { config, dataSource, idp } = deps;

@@ -39,7 +39,7 @@ export const defaultsFrom = (config: { ehr: { fhirBaseUrl: string; allowedHosts?
  * hosts the server's configuration names, so a changed setting cannot send them to another server or
  * probe the hospital's internal network.
  */
-export class EhrHostNotAllowedError extends BadRequestError {
+class EhrHostNotAllowedError extends BadRequestError {
   constructor(host: string, allowed: string[]) {
     super(`EHR endpoint: ${host} is not one of the hosts this server may deliver to (${allowed.join(', ')}). The server's configuration (EHR_ALLOWED_HOSTS) lists them.`, [
       { pointer: '/settings/ehrBaseUrl', detail: `EHR endpoint must be on one of: ${allowed.join(', ')}.` },
@@ -109,7 +109,7 @@ export async function labSettingsView(db: DataSource | EntityManager, defaults?:
   };
 }
 
-export class StaleSettingsError extends HttpError {
+class StaleSettingsError extends HttpError {
   constructor(current: LabSettingsView) {
     super(409, 'stale-settings', 'The settings have changed since you opened them', `Someone saved version ${current.version} of the settings meanwhile. Review them and save again.`, undefined, { current });
   }
