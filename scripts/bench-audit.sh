@@ -6,23 +6,7 @@
 source "$(dirname "$0")/lib.sh"
 cd "$ROOT"
 
-PG_PORT=${ISOBAR_TEST_PG_PORT:-54471}
-export NODE_ENV=test
-export DATABASE_URL=postgres://isobar@127.0.0.1:$PG_PORT/isobar_audit_bench
-export MIGRATION_DATABASE_URL=postgres://isobar_owner@127.0.0.1:$PG_PORT/isobar_audit_bench
 export ATTACHMENT_DIR="$DATA_DIR/bench-audit-attachments"
-
-cleanup() {
-  if [[ -z ${ISOBAR_BENCH_KEEP:-}${ISOBAR_BENCH_REUSE:-} && -n ${PG_BIN:-} ]]; then
-    psql_admin "$PG_PORT" "DROP DATABASE IF EXISTS isobar_audit_bench WITH (FORCE)" 2>/dev/null || true
-  fi
-  stop_cluster
-}
-trap cleanup EXIT
-trap 'exit 130' INT TERM
-
-ensure_node_modules
-ensure_postgres_installed
-start_cluster postgres-test "$PG_PORT"
-ensure_database "$PG_PORT" isobar_audit_bench "$([[ -n ${ISOBAR_BENCH_REUSE:-} ]] || echo fresh)"
+SCRATCH_KEEP=${ISOBAR_BENCH_KEEP:-}${ISOBAR_BENCH_REUSE:-}
+with_scratch_database isobar_audit_bench "$([[ -n ${ISOBAR_BENCH_REUSE:-} ]] || echo fresh)"
 node_modules/.bin/tsx scripts/bench-audit.ts "$@"

@@ -7,8 +7,9 @@ import type { DataSource } from 'typeorm';
 import { auditTrailQuerySchema, type AuditTrailPage } from '../shared/audit/trail';
 import { createDataSource } from '../server/db/data-source';
 import { prepareDatabase } from '../server/cli/prepare-database';
-import { pageQuery, prepareSearch, readAuditTrail } from '../server/audit/audit-trail';
+import { decodeAuditCursor, pageQuery, prepareSearch, readAuditTrail } from '../server/audit/audit-trail';
 import { signIn, startStack } from '../tests/support/stack';
+import { summary, timeRequests } from './bench-timing';
 
 const STUDIES = Number(process.env.BENCH_STUDIES ?? 1_000_000);
 const PATIENTS = Math.round(STUDIES * 0.4);
@@ -149,12 +150,6 @@ async function seedFailures(db: Pick<DataSource, 'query'>): Promise<void> {
   );
 }
 
-function summary(times: number[]): { p50: number; p95: number; max: number } {
-  const s = [...times].sort((a, b) => a - b);
-  const rank = (p: number) => s[Math.min(s.length - 1, Math.ceil(p * s.length) - 1)];
-  return { p50: rank(0.5), p95: rank(0.95), max: s[s.length - 1] };
-}
-
 async function main(): Promise<void> {
   await prepareDatabase(ownerUrl!, databaseUrl!);
   const owner = createDataSource(ownerUrl!, 2);
@@ -216,35 +211,16 @@ async function main(): Promise<void> {
     {
       // Reference: a signed-in request that reads no audit data (session load and renewal only).
       const me = async () => fetch(`${stack.url}/api/me`, { headers: { cookie: session.cookie } }).then((r) => r.text());
-      for (let i = 0; i < WARM_UP; i++) await me();
-      const t: number[] = [];
-      for (let i = 0; i < TIMED; i++) {
-        const t0 = performance.now();
-        await me();
-        t.push(performance.now() - t0);
-      }
-      const h = summary(t);
+      const h = summary(await timeRequests(me, { warmUp: WARM_UP, timed: TIMED }));
       console.log(`${'(ref) GET /api/me, session only'.padEnd(40)}      | ${f(h.p50)} ${f(h.p95)} ${f(h.max)} |`);
     }
     for (const c of cases) {
       const path = `/api/audit-trail?${new URLSearchParams(c.query)}`;
       const first = await get(path);
-      for (let i = 0; i < WARM_UP; i++) await get(path);
-      const http: number[] = [];
-      for (let i = 0; i < TIMED; i++) {
-        const t0 = performance.now();
-        await get(path);
-        http.push(performance.now() - t0);
-      }
+      const http = await timeRequests(() => get(path), { warmUp: WARM_UP, timed: TIMED });
       // The same search without HTTP, session and the audit row it writes.
       const q = auditTrailQuerySchema.parse(c.query);
-      for (let i = 0; i < WARM_UP; i++) await readAuditTrail(ds, q, q.cursor, q.limit);
-      const direct: number[] = [];
-      for (let i = 0; i < TIMED; i++) {
-        const t0 = performance.now();
-        await readAuditTrail(ds, q, q.cursor, q.limit);
-        direct.push(performance.now() - t0);
-      }
+      const direct = await timeRequests(() => readAuditTrail(ds, q, q.cursor, q.limit), { warmUp: WARM_UP, timed: TIMED });
       const h = summary(http);
       const d = summary(direct);
       const pass = h.p95 < TARGET_P95_MS;
@@ -256,8 +232,7 @@ async function main(): Promise<void> {
     for (const c of cases) {
       const q = auditTrailQuerySchema.parse(c.query);
       const search = await prepareSearch(ds, q);
-      const cursorValue = q.cursor ? JSON.parse(Buffer.from(q.cursor, 'base64url').toString('utf8')) : null;
-      const { sql, params } = pageQuery(q, search.resolved, cursorValue ? { at: cursorValue[0], id: cursorValue[1] } : null, q.limit + 1);
+      const { sql, params } = pageQuery(q, search.resolved, q.cursor ? decodeAuditCursor(q.cursor) : null, q.limit + 1);
       const plan: { 'QUERY PLAN': string }[] = await ds.query(`EXPLAIN (ANALYZE, BUFFERS) ${sql}`, params);
       const lines = plan.map((p) => p['QUERY PLAN']);
       const keys = Object.entries(search.resolved).map(([k, v]) => `${k}: ${'ids' in v! ? `${v!.ids.length} ids` : 'many (subquery)'}`);

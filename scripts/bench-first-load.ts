@@ -16,6 +16,7 @@ import { seedDemo } from '../server/demo/seed';
 import { serveWebApp } from '../server/app';
 import { launchBrowser, signInInBrowser, viewports } from '../tests/support/browser';
 import { startStack } from '../tests/support/stack';
+import { median } from './bench-timing';
 
 const RUNS = Number(process.env.ISOBAR_BENCH_RUNS ?? 5);
 const ROWS = 25;
@@ -196,10 +197,6 @@ async function seedStudies(ds: ReturnType<typeof createDataSource>): Promise<voi
   );
 }
 
-const median = (xs: number[]) => {
-  const s = [...xs].sort((a, b) => a - b);
-  return s.length % 2 ? s[(s.length - 1) / 2] : (s[s.length / 2 - 1] + s[s.length / 2]) / 2;
-};
 const kb = (bytes: number) => `${(bytes / 1024).toFixed(0)} KB`;
 const sec = (ms: number) => `${(ms / 1000).toFixed(2)} s`;
 const load = () => os.loadavg().map((l) => l.toFixed(2)).join(' / ');

@@ -2,6 +2,7 @@
 // Run: node_modules/.bin/tsx scripts/bench-physiology.ts
 import { analyzeStudy, physiologyInputSchema, type PhysiologyInput, type VesselCode } from '../shared/physiology';
 import { analyzeValidated } from '../shared/physiology/study';
+import { median } from './bench-timing';
 
 const TOTAL = 100_000;
 const PER_STUDY = 4;
@@ -69,11 +70,10 @@ function measure(label: string, fn: () => void): number {
   fn();
   const ms: number[] = [];
   for (let r = 0; r < RUNS; r++) ms.push(time(fn));
-  ms.sort((a, b) => a - b);
-  const median = ms[Math.floor(RUNS / 2)];
-  const rate = TOTAL / (median / 1000);
+  const mid = median(ms);
+  const rate = TOTAL / (mid / 1000);
   console.log(
-    `${label.padEnd(46)} median ${median.toFixed(1).padStart(7)} ms  best ${ms[0].toFixed(1).padStart(7)} ms  → ${Math.round(rate).toLocaleString('en-US').padStart(10)} vessels/s`,
+    `${label.padEnd(46)} median ${mid.toFixed(1).padStart(7)} ms  best ${Math.min(...ms).toFixed(1).padStart(7)} ms  → ${Math.round(rate).toLocaleString('en-US').padStart(10)} vessels/s`,
   );
   return rate;
 }

@@ -5,23 +5,7 @@
 source "$(dirname "$0")/lib.sh"
 cd "$ROOT"
 
-PG_PORT=${ISOBAR_TEST_PG_PORT:-54471}
-export NODE_ENV=test
-export DATABASE_URL=postgres://isobar@127.0.0.1:$PG_PORT/isobar_bench_sign
-export MIGRATION_DATABASE_URL=postgres://isobar_owner@127.0.0.1:$PG_PORT/isobar_bench_sign
 export ATTACHMENT_DIR="$DATA_DIR/bench-attachments"
-
-cleanup() {
-  if [[ -z ${ISOBAR_BENCH_KEEP:-} && -n ${PG_BIN:-} ]]; then
-    psql_admin "$PG_PORT" "DROP DATABASE IF EXISTS isobar_bench_sign WITH (FORCE)" 2>/dev/null || true
-  fi
-  stop_cluster
-}
-trap cleanup EXIT
-trap 'exit 130' INT TERM
-
-ensure_node_modules
-ensure_postgres_installed
-start_cluster postgres-test "$PG_PORT"
-ensure_database "$PG_PORT" isobar_bench_sign fresh
+SCRATCH_KEEP=${ISOBAR_BENCH_KEEP:-}
+with_scratch_database isobar_bench_sign fresh
 node_modules/.bin/tsx scripts/bench-sign.ts "$@"

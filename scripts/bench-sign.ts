@@ -16,6 +16,7 @@ import { pdfRenderedChannel } from '../server/report/pdf';
 import type { StudyRecord } from '../shared/study/schema';
 import { studyLikeDemo } from '../tests/support/reports';
 import { signIn, startStack, usernameOf } from '../tests/support/stack';
+import { summary } from './bench-timing';
 
 const SEQUENTIAL = Number(process.env.BENCH_SIGN_SEQUENTIAL ?? 200);
 const CONCURRENT = Number(process.env.BENCH_SIGN_CONCURRENT ?? 200);
@@ -30,11 +31,6 @@ if (!databaseUrl || !/\/isobar_bench_sign$/.test(databaseUrl)) {
   process.exit(2);
 }
 
-function summary(times: number[]): { p50: number; p95: number; max: number } {
-  const s = [...times].sort((a, b) => a - b);
-  const rank = (p: number) => s[Math.min(s.length - 1, Math.ceil(p * s.length) - 1)];
-  return { p50: rank(0.5), p95: rank(0.95), max: s[s.length - 1] };
-}
 const f = (ms: number) => ms.toFixed(1).padStart(7);
 
 /** Runs `fn` over `items` with at most `limit` at once. */

@@ -9,6 +9,7 @@ import { prepareDatabase } from '../server/cli/prepare-database';
 import { figuresQuery, figuresWorkMem, turnaroundFigures } from '../server/turnaround/figures';
 import { turnaroundSettings } from '../server/turnaround/settings';
 import { signIn, startStack, usernameOf } from '../tests/support/stack';
+import { summary, timeRequests } from './bench-timing';
 
 const STUDIES = Number(process.env.BENCH_STUDIES ?? 1_000_000);
 // Ten years by default; fewer (BENCH_YEARS) packs more studies into the timed 12-month range.
@@ -140,12 +141,6 @@ async function seed(ds: DataSource): Promise<void> {
   console.log(`seeded in ${((performance.now() - began) / 1000).toFixed(1)} s: ${JSON.stringify(counts)}`);
 }
 
-function summary(times: number[]): { p50: number; p95: number; max: number } {
-  const s = [...times].sort((a, b) => a - b);
-  const rank = (p: number) => s[Math.min(s.length - 1, Math.ceil(p * s.length) - 1)];
-  return { p50: rank(0.5), p95: rank(0.95), max: s[s.length - 1] };
-}
-
 async function main(): Promise<void> {
   await prepareDatabase(process.env.MIGRATION_DATABASE_URL!, databaseUrl!);
   const ds = createDataSource(databaseUrl!, 10);
@@ -172,26 +167,12 @@ async function main(): Promise<void> {
     };
     const first = await get();
     console.log(`\n12-month range ${from} … ${to}: ${first.studies} studies, ${first.weeks.length} weeks, ${first.physicians.length} physicians`);
-    for (let i = 0; i < WARM_UP; i++) await get();
-    const http: number[] = [];
-    for (let i = 0; i < TIMED; i++) {
-      const t0 = performance.now();
-      await get();
-      http.push(performance.now() - t0);
-    }
-    const direct: number[] = [];
-    for (let i = 0; i < TIMED; i++) {
-      const t0 = performance.now();
-      await turnaroundFigures(ds, query, settings);
-      direct.push(performance.now() - t0);
-    }
-    const waiting: number[] = [];
-    for (let i = 0; i < TIMED; i++) {
-      const t0 = performance.now();
+    const http = await timeRequests(get, { warmUp: WARM_UP, timed: TIMED });
+    const direct = await timeRequests(() => turnaroundFigures(ds, query, settings), { timed: TIMED });
+    const waiting = await timeRequests(async () => {
       const res = await fetch(`${stack.url}/api/turnaround/awaiting-signature`, { headers: { cookie: session.cookie } });
       await res.text();
-      waiting.push(performance.now() - t0);
-    }
+    }, { timed: TIMED });
     const t0 = performance.now();
     const csv = await fetch(`${stack.url}/api/turnaround/export?from=${from}&to=${to}`, { headers: { cookie: session.cookie } }).then((r) => r.text());
     const csvMs = performance.now() - t0;

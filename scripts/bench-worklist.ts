@@ -7,6 +7,7 @@ import { createDataSource } from '../server/db/data-source';
 import { prepareDatabase } from '../server/cli/prepare-database';
 import { listStudies } from '../server/studies/worklist';
 import { signIn, startStack } from '../tests/support/stack';
+import { summary, timeRequests } from './bench-timing';
 
 const STUDIES = 100_000;
 const PATIENTS = 4_000;
@@ -98,12 +99,6 @@ async function seed(ds: DataSource): Promise<void> {
   console.log(`  states: ${mix.map((m: { state: string; n: number }) => `${m.state} ${m.n}`).join(', ')}; dates ${span.first} … ${span.last}`);
 }
 
-function summary(times: number[]): { p50: number; p95: number; max: number } {
-  const s = [...times].sort((a, b) => a - b);
-  const rank = (p: number) => s[Math.min(s.length - 1, Math.ceil(p * s.length) - 1)];
-  return { p50: rank(0.5), p95: rank(0.95), max: s[s.length - 1] };
-}
-
 async function main(): Promise<void> {
   await prepareDatabase(process.env.MIGRATION_DATABASE_URL!, databaseUrl!);
   const ds = createDataSource(databaseUrl!, 10);
@@ -158,14 +153,8 @@ async function main(): Promise<void> {
     const f = (x: number) => x.toFixed(2).padStart(6);
     {
       // Reference: a signed-in request that does no worklist query (session load and renewal only).
-      for (let i = 0; i < WARM_UP; i++) await fetch(`${stack.url}/api/me`, { headers: { cookie: session.cookie } }).then((r) => r.text());
-      const t: number[] = [];
-      for (let i = 0; i < TIMED; i++) {
-        const t0 = performance.now();
-        await fetch(`${stack.url}/api/me`, { headers: { cookie: session.cookie } }).then((r) => r.text());
-        t.push(performance.now() - t0);
-      }
-      const h = summary(t);
+      const me = async () => fetch(`${stack.url}/api/me`, { headers: { cookie: session.cookie } }).then((r) => r.text());
+      const h = summary(await timeRequests(me, { warmUp: WARM_UP, timed: TIMED }));
       console.log(`${'(ref) GET /api/me, session only'.padEnd(36)} ${f(h.p50)} ${f(h.p95)} ${f(h.max)}  |`);
     }
     for (const c of cases) {
@@ -174,22 +163,10 @@ async function main(): Promise<void> {
       if (first.items.length === 0 && !c.name.includes('no match')) throw new Error(`${c.name}: no rows`);
       const warmUp = c.warmUp ?? WARM_UP;
       const timed = c.timed ?? TIMED;
-      for (let i = 0; i < warmUp; i++) await get(path);
-      const http: number[] = [];
-      for (let i = 0; i < timed; i++) {
-        const t0 = performance.now();
-        await get(path);
-        http.push(performance.now() - t0);
-      }
+      const http = await timeRequests(() => get(path), { warmUp, timed });
       // The same query without HTTP, session and audit, to tell where the time goes.
       const query = worklistQuerySchema.parse(c.query);
-      for (let i = 0; i < warmUp; i++) await listStudies(ds, query);
-      const direct: number[] = [];
-      for (let i = 0; i < timed; i++) {
-        const t0 = performance.now();
-        await listStudies(ds, query);
-        direct.push(performance.now() - t0);
-      }
+      const direct = await timeRequests(() => listStudies(ds, query), { warmUp, timed });
       const h = summary(http);
       const d = summary(direct);
       const pass = h.p95 < TARGET_P95_MS;

@@ -176,3 +176,30 @@ ensure_bare_web_build() {
   web_export "$ROOT/scripts/bare-app" "$out" "$DATA_DIR/bare-build.log"
   echo "$want" >"$out/.build-hash"
 }
+
+# with_scratch_database NAME [fresh]: a database of its own for a benchmark or an export, on the
+# test cluster. Exports NODE_ENV=test, DATABASE_URL and MIGRATION_DATABASE_URL for NAME on PG_PORT
+# (SCRATCH_PG_PORT when set, else ISOBAR_TEST_PG_PORT, else 54471), starts the cluster SCRATCH_CLUSTER (default postgres-test)
+# and makes the database (`fresh`: dropped first). On exit the database is dropped, unless
+# SCRATCH_KEEP is non-empty, and the cluster stopped if this script started it.
+with_scratch_database() {
+  SCRATCH_DB=$1
+  local fresh=${2:-}
+  PG_PORT=${SCRATCH_PG_PORT:-${ISOBAR_TEST_PG_PORT:-54471}}
+  export NODE_ENV=test
+  export DATABASE_URL=postgres://isobar@127.0.0.1:$PG_PORT/$SCRATCH_DB
+  export MIGRATION_DATABASE_URL=postgres://isobar_owner@127.0.0.1:$PG_PORT/$SCRATCH_DB
+  trap scratch_cleanup EXIT
+  trap 'exit 130' INT TERM
+  ensure_node_modules
+  ensure_postgres_installed
+  start_cluster "${SCRATCH_CLUSTER:-postgres-test}" "$PG_PORT"
+  ensure_database "$PG_PORT" "$SCRATCH_DB" "$fresh"
+}
+
+scratch_cleanup() {
+  if [[ -z ${SCRATCH_KEEP:-} && -n ${PG_BIN:-} && -n ${SCRATCH_DB:-} ]]; then
+    psql_admin "$PG_PORT" "DROP DATABASE IF EXISTS $SCRATCH_DB WITH (FORCE)" 2>/dev/null || true
+  fi
+  stop_cluster
+}

@@ -13,22 +13,5 @@ case $1 in
   *) OUT_DIR="${INIT_CWD:-$PWD}/$1" ;;
 esac
 
-PG_PORT=${ISOBAR_TEST_PG_PORT:-54471}
-export NODE_ENV=test
-export DATABASE_URL=postgres://isobar@127.0.0.1:$PG_PORT/isobar_export
-export MIGRATION_DATABASE_URL=postgres://isobar_owner@127.0.0.1:$PG_PORT/isobar_export
-
-cleanup() {
-  if [[ -n ${PG_BIN:-} ]]; then
-    psql_admin "$PG_PORT" "DROP DATABASE IF EXISTS isobar_export WITH (FORCE)" 2>/dev/null || true
-  fi
-  stop_cluster
-}
-trap cleanup EXIT
-trap 'exit 130' INT TERM
-
-ensure_node_modules
-ensure_postgres_installed
-start_cluster postgres-test "$PG_PORT"
-ensure_database "$PG_PORT" isobar_export fresh
+with_scratch_database isobar_export fresh
 node_modules/.bin/tsx scripts/report-export.ts "$OUT_DIR"

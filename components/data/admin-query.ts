@@ -5,7 +5,7 @@ import type { ThresholdOverview, ThresholdSetRequest, ThresholdSetSummary } from
 import { apiFetch } from './api';
 import { thresholdKeys } from './thresholds-query';
 
-export const adminKeys = {
+const adminKeys = {
   all: ['admin'] as const,
   roleMapping: () => [...adminKeys.all, 'role-mapping'] as const,
   thresholds: () => [...adminKeys.all, 'thresholds'] as const,

@@ -13,7 +13,7 @@ export interface AuditFilters {
   to?: string;
 }
 
-export const auditKeys = {
+const auditKeys = {
   all: ['audit-trail'] as const,
   list: (filters: AuditFilters) => [...auditKeys.all, filters] as const,
 };

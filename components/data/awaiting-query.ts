@@ -3,7 +3,7 @@ import type { AwaitingSignature } from '../../shared/study/awaiting-signature';
 import { apiFetch } from './api';
 
 /** Under the studies key, so any change to a study (a save, a signature) reads the lists again. */
-export const awaitingKeys = { all: ['studies', 'awaiting-signature'] as const };
+const awaitingKeys = { all: ['studies', 'awaiting-signature'] as const };
 
 /** Studies awaiting signature, oldest first: the signed-in physician's own, and all of them. */
 export function useAwaitingSignature(enabled = true) {

@@ -4,7 +4,7 @@ import { apiFetch } from './api';
 
 export type QueueFilters = Partial<Pick<CodingQueueQuery, 'operatorId' | 'from' | 'to' | 'status'>>;
 
-export const codingKeys = {
+const codingKeys = {
   all: ['coding'] as const,
   queues: () => [...codingKeys.all, 'queue'] as const,
   queue: (filters: QueueFilters) => [...codingKeys.queues(), filters] as const,

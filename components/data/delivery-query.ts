@@ -2,7 +2,7 @@ import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import type { DeliveryListItem, DeliveryStatus, StudyDelivery } from '../../shared/delivery/status';
 import { apiFetch } from './api';
 
-export const deliveryKeys = {
+const deliveryKeys = {
   all: ['deliveries'] as const,
   study: (studyId: string) => ['deliveries', 'study', studyId] as const,
   attention: (status?: DeliveryStatus) => ['deliveries', 'attention', status ?? 'all'] as const,

@@ -7,7 +7,7 @@ export interface Health {
   time: string;
 }
 
-export const healthKeys = { all: ['health'] as const };
+const healthKeys = { all: ['health'] as const };
 
 /** Whether the server and its database answer; polled gently so the start page stays honest. */
 export function useHealthQuery() {

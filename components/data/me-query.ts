@@ -13,7 +13,7 @@ export interface Me {
   sessionExpiresAt: string;
 }
 
-export const meKeys = { all: ['me'] as const };
+const meKeys = { all: ['me'] as const };
 
 /** The signed-in user; a 401 means signed out (not an error worth retrying). */
 export const meQueryOptions = () =>

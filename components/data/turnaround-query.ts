@@ -20,7 +20,7 @@ export interface AwaitingSignature {
   items: WaitingStudy[];
 }
 
-export const turnaroundKeys = {
+const turnaroundKeys = {
   all: ['turnaround'] as const,
   awaitingSignature: () => [...turnaroundKeys.all, 'awaiting-signature'] as const,
   figures: (range: TurnaroundQuery) => [...turnaroundKeys.all, 'figures', range.from, range.to] as const,
@@ -33,7 +33,7 @@ export const useAwaitingSignatureQuery = () =>
     queryFn: () => apiFetch<AwaitingSignature>('/turnaround/awaiting-signature'),
   });
 
-export const figuresPath = (range: TurnaroundQuery) => `/turnaround/figures?${new URLSearchParams({ from: range.from, to: range.to }).toString()}`;
+const figuresPath = (range: TurnaroundQuery) => `/turnaround/figures?${new URLSearchParams({ from: range.from, to: range.to }).toString()}`;
 export const exportHref = (range: TurnaroundQuery) => `/api/turnaround/export?${new URLSearchParams({ from: range.from, to: range.to }).toString()}`;
 
 /** Turnaround and quality figures of a range of days; the last figures stay on screen while a new range loads. */

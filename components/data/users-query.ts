@@ -9,7 +9,7 @@ export interface UserSummary {
   lastSignInAt: string | null;
 }
 
-export const userKeys = {
+const userKeys = {
   all: ['users'] as const,
   list: () => [...userKeys.all, 'list'] as const,
 };

@@ -14,7 +14,7 @@ const toLocalText = (iso: string | null) => {
 };
 
 /** "YYYY-MM-DD HH:MM" in the lab's local time, stored as an ISO instant. */
-export function parseLocalDateTime(text: string): { ok: true; value: string | null } | { ok: false } {
+function parseLocalDateTime(text: string): { ok: true; value: string | null } | { ok: false } {
   const t = text.trim();
   if (!t) return { ok: true, value: null };
   const m = t.match(/^(\d{4})-(\d{2})-(\d{2})[ T](\d{1,2}):(\d{2})$/);

@@ -45,7 +45,7 @@ export function FieldShell({ label, error, hint, children, testID }: { label: st
  * A number as text at `decimals` places at least (what was typed as "0.60" comes back as "0.60", not
  * "0.6"); more decimals than that are kept as they are.
  */
-export function numberText(value: number | null | undefined, decimals?: number): string {
+function numberText(value: number | null | undefined, decimals?: number): string {
   if (value == null || Number.isNaN(value)) return '';
   if (decimals === undefined) return String(value);
   const fixed = value.toFixed(decimals);

@@ -10,7 +10,7 @@ import { sameValue } from '../../shared/study/merge';
 /** A path inside the sections: section name, then keys and row indexes. */
 export type FieldPath = (string | number)[];
 
-export const pointerOf = (path: FieldPath) => '/' + path.map((s) => String(s).replaceAll('~', '~0').replaceAll('/', '~1')).join('/');
+const pointerOf = (path: FieldPath) => '/' + path.map((s) => String(s).replaceAll('~', '~0').replaceAll('/', '~1')).join('/');
 export const pathOfPointer = (pointer: string): FieldPath =>
   pointer
     .split('/')
@@ -166,7 +166,7 @@ export function decideOnSaveError(failure: SaveFailure): SaveDecision {
 }
 
 /** No answer (0), a timeout, too many requests, or a server fault: worth sending again. */
-export const isTransient = (status: number) => status === 0 || status === 408 || status === 429 || status >= 500;
+const isTransient = (status: number) => status === 0 || status === 408 || status === 429 || status >= 500;
 
 /** Sends of one save before autosave stops trying on its own (about 40 s with the delays below). */
 export const maxSaveRetries = 8;

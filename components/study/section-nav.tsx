@@ -4,7 +4,7 @@ import { Text } from '../ui/text';
 import { useActiveInView } from '../ui/use-active-in-view';
 import { color, radius, space, touchTarget } from '../theme';
 
-export const studySections = [
+const studySections = [
   { slug: '', label: 'Patient & indication', testID: 'section-overview' },
   { slug: 'setup', label: 'Setup & quality', testID: 'section-setup' },
   { slug: 'vessels', label: 'Vessels', testID: 'section-vessels' },

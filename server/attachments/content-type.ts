@@ -2,7 +2,7 @@ import fs from 'node:fs/promises';
 import { fileTypeFromBuffer } from 'file-type';
 
 /** What the lab may attach: console printouts and images, and exported traces. */
-export const acceptedMediaTypes = ['application/pdf', 'image/png', 'image/jpeg', 'text/csv'] as const;
+const acceptedMediaTypes = ['application/pdf', 'image/png', 'image/jpeg', 'text/csv'] as const;
 export type AcceptedMediaType = (typeof acceptedMediaTypes)[number];
 
 /**
@@ -82,7 +82,7 @@ export function withExtension(fileName: string, mediaType: AcceptedMediaType): s
  * multipart file names arrive decoded as Latin-1 (busboy's default for a plain `filename=`), though
  * browsers send UTF-8 bytes: decode them again as UTF-8 when they are valid UTF-8.
  */
-export function utf8FileName(name: string): string {
+function utf8FileName(name: string): string {
   if (!/^[\u0000-\u00FF]*$/.test(name) || !/[\u0080-\u00FF]/.test(name)) return name;
   const bytes = Buffer.from(name, 'latin1');
   try {

@@ -1,7 +1,6 @@
 import type { DataSource, EntityManager } from 'typeorm';
 import { labelOfAction, type AuditFilters, type AuditOutcomeCode, type AuditTrailItem, type AuditTrailPage } from '../../shared/audit/trail';
-import { BadRequestError } from '../http/problem';
-import { problemOfText } from '../http/input-safety';
+import { bigintIdPattern, decodeKeysetCursor, encodeKeysetCursor, type KeysetCursor } from '../db/keyset-cursor';
 
 type Db = DataSource | EntityManager;
 
@@ -55,35 +54,15 @@ export interface AuditTrailRow {
   user_name: string | null;
 }
 
-export interface AuditCursor {
-  at: string;
-  id: string;
-}
+export type AuditCursor = KeysetCursor;
 
 /** The cursor is the last row's recorded_at (as PostgreSQL prints it, so microseconds survive) and id. */
 export function encodeAuditCursor(row: { at_key: string; id: string }): string {
-  return Buffer.from(JSON.stringify([row.at_key, row.id])).toString('base64url');
+  return encodeKeysetCursor(row.at_key, row.id);
 }
 
 export function decodeAuditCursor(cursor: string): AuditCursor {
-  try {
-    const value = JSON.parse(Buffer.from(cursor, 'base64url').toString('utf8'));
-    if (
-      Array.isArray(value) &&
-      value.length === 2 &&
-      typeof value[0] === 'string' &&
-      /^\d{4}-\d{2}-\d{2} \d{2}:\d{2}:\d{2}(\.\d{1,6})?[+-]\d{2}(:?\d{2})?$/.test(value[0]) &&
-      // Well formed is not enough: 30 February or hour 99 would reach the database as a data error.
-      problemOfText(value[0].replace(/([+-]\d{2})$/, '$1:00')) === null &&
-      typeof value[1] === 'string' &&
-      /^[1-9]\d{0,17}$/.test(value[1])
-    ) {
-      return { at: value[0], id: value[1] };
-    }
-  } catch {
-    /* fall through */
-  }
-  throw new BadRequestError('The page cursor is not valid: start again from the first page.', [{ pointer: '/cursor', detail: 'Not a cursor this server issued.' }]);
+  return decodeKeysetCursor(cursor, bigintIdPattern);
 }
 
 /** Keys a filter resolved to: the ids (maybe none: nothing matches), or `many` when there are too many to drive the search. */

@@ -7,7 +7,7 @@ import { loadReview } from './load-review';
 import { lockOpenReview } from './lock-review';
 import { sqlOf } from './sql';
 
-export class ReviewIncompleteError extends HttpError {
+class ReviewIncompleteError extends HttpError {
   constructor(blockers: string[]) {
     super(409, 'review-incomplete', 'The review cannot be completed yet', blockers.join(' '), blockers.map((b) => ({ pointer: '', detail: b })));
   }

@@ -57,7 +57,7 @@ export async function loadLines(sql: Sql, setId: string): Promise<ReviewLine[]> 
 }
 
 /** Why the review cannot be completed yet: blocking warnings and lines without a decision. */
-export function blockersOf(warnings: CodingWarning[], lines: ReviewLine[]): string[] {
+function blockersOf(warnings: CodingWarning[], lines: ReviewLine[]): string[] {
   const out = warnings.filter((w) => w.blocking).map((w) => w.message);
   const undecided = lines.filter((l) => !l.decision).length;
   if (undecided) out.push(`${undecided} suggested code${undecided === 1 ? ' has' : 's have'} no decision yet: accept, edit or reject each.`);

@@ -1,13 +1,13 @@
 import { HttpError, NotFoundError } from '../http/problem';
 import type { Sql } from './sql';
 
-export class SetSupersededError extends HttpError {
+class SetSupersededError extends HttpError {
   constructor(versionNo: number) {
     super(409, 'suggestions-superseded', 'An addendum changed the suggestions', `The report has been amended (version ${versionNo}) and the codes were suggested again. Reload the review.`);
   }
 }
 
-export class ReviewCompletedError extends HttpError {
+class ReviewCompletedError extends HttpError {
   constructor() {
     super(409, 'review-completed', 'The review is complete', 'This study has been coded; its codes change only when an addendum puts it back on the queue.');
   }

@@ -6,6 +6,7 @@ import type { StudySections } from '../../shared/study/schema';
 import { recordAudit } from '../audit/audit';
 import { labSettings } from '../settings/lab-settings';
 import { auditTarget, type Sql } from './sql';
+import { lockStudy } from '../studies/lock-study';
 
 export interface StoredSuggestions {
   setId: string;
@@ -26,7 +27,7 @@ const snapshotSchema = z.looseObject({
 });
 
 /** The engine on a signed record: its input and result, or why it could not run. */
-export function suggestFromSnapshot(snapshot: unknown, analysis: unknown, timeZone = 'UTC'): { input: CodingInput | null; result: CodingResult | null; failure: string | null } {
+function suggestFromSnapshot(snapshot: unknown, analysis: unknown, timeZone = 'UTC'): { input: CodingInput | null; result: CodingResult | null; failure: string | null } {
   try {
     const record = snapshotSchema.parse(snapshot) as unknown as StudySections;
     const input = toCodingInput({ ...record, coding: record.coding ?? emptyStudyCoding() }, analysis as PhysiologyResult, { timeZone });
@@ -52,7 +53,7 @@ export async function storeSuggestions(sql: Sql, reportVersionId: string): Promi
   );
   if (!version) throw new Error(`No report version ${reportVersionId}`);
   // One writer per study at a time: concurrent jobs for two versions of a study queue here.
-  await sql(`SELECT id FROM study WHERE id = $1 FOR UPDATE`, [version.study_id]);
+  await lockStudy({ query: sql }, version.study_id);
 
   const [existing] = await sql(`SELECT id FROM code_suggestion_set WHERE report_version_id = $1`, [reportVersionId]);
   if (existing) return { setId: existing.id, created: false, queued: false, codes: 0 };

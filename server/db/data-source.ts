@@ -25,8 +25,8 @@ import { AuditSearch1765410000000 } from './migrations/1765410000000-audit-searc
 import { LabSettings1765420000000 } from './migrations/1765420000000-lab-settings';
 
 /** Entities and migrations are listed, not globbed, so tsx, vitest and a bundler all see the same set. */
-export const entities = [User, Patient, Study, VesselAssessment, ThermodilutionInjection, AcetylcholineDose, Attachment, ThresholdSet, ReportVersion, ReportDelivery, CoronaryIntervention, CodeSuggestionSet, CodeLine, CodeDecision, CodingReview];
-export const migrations = [
+const entities = [User, Patient, Study, VesselAssessment, ThermodilutionInjection, AcetylcholineDose, Attachment, ThresholdSet, ReportVersion, ReportDelivery, CoronaryIntervention, CodeSuggestionSet, CodeLine, CodeDecision, CodingReview];
+const migrations = [
   InitialSchema1764633600000,
   SessionsAndAudit1764720000000,
   StudyRecord1764806400000,

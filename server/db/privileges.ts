@@ -11,7 +11,7 @@ import type { DataSource } from 'typeorm';
  * Applied by the owner after every migration run (GRANT and REVOKE are idempotent), so tables
  * added by later migrations get the same treatment; append-only tables are listed here.
  */
-export const appendOnlyTables: Record<string, string[]> = {
+const appendOnlyTables: Record<string, string[]> = {
   audit_event: ['actor_user_id', 'actor_name', 'actor_role', 'action', 'entity_type', 'entity_id', 'client_address', 'outcome', 'detail'],
   // Signed report versions: written once by the signature, never changed (a trigger refuses it too).
   report_version: [
@@ -23,8 +23,8 @@ export const appendOnlyTables: Record<string, string[]> = {
   // reports stay as they were (created_at is the database's clock, so a set cannot be back-dated).
   threshold_set: ['effective_from', '"values"', 'note', 'created_by'],
 };
-export const readOnlyTables = ['schema_migration'];
-export const jobSchema = 'graphile_worker';
+const readOnlyTables = ['schema_migration'];
+const jobSchema = 'graphile_worker';
 
 const ident = (name: string) => {
   if (!/^[a-z_][a-z0-9_]*$/.test(name)) throw new Error(`Not a plain role name: ${name}`);

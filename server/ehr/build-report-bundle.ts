@@ -73,7 +73,7 @@ export class BundleBuildError extends Error {
 const problemsOf = (error: z.ZodError, prefix: string) => error.issues.map((i) => `${[prefix, ...i.path].join('.')}: ${i.message}`);
 
 /** When no impression was written, the conclusion points to the signed report itself. */
-export const NO_IMPRESSION_CONCLUSION = 'See the signed report (attached PDF).';
+const NO_IMPRESSION_CONCLUSION = 'See the signed report (attached PDF).';
 
 export function reportBundleInputOf(version: StoredReportVersion, context: BundleContext): ReportBundleInput {
   const snap = snapshotSchema.safeParse(version.snapshot);

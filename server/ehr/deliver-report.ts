@@ -62,12 +62,12 @@ export class TransientDeliveryError extends Error {
 }
 
 /** graphile-worker's retry delay after the n-th failed attempt: exp(min(n, 10)) seconds. */
-export const retryDelayMs = (attempts: number) => Math.round(Math.exp(Math.min(Math.max(attempts, 1), 10)) * 1000);
+const retryDelayMs = (attempts: number) => Math.round(Math.exp(Math.min(Math.max(attempts, 1), 10)) * 1000);
 
 const MAX_DIAGNOSTICS = 500;
 
 /** The OperationOutcome's issues as stored: severity, code, FHIRPath locations, diagnostics (shortened). */
-export function issuesOf(outcome: OperationOutcome | undefined): DeliveryIssue[] {
+function issuesOf(outcome: OperationOutcome | undefined): DeliveryIssue[] {
   return (outcome?.issue ?? []).slice(0, 50).map((i) => ({
     severity: i.severity,
     code: i.code,
@@ -77,7 +77,7 @@ export function issuesOf(outcome: OperationOutcome | undefined): DeliveryIssue[]
 }
 
 /** The resources the EHR answered with, from each entry's `response.location` (FHIR R4 Bundle.entry.response). */
-export function ehrIdsOf(response: Bundle): EhrResourceId[] {
+function ehrIdsOf(response: Bundle): EhrResourceId[] {
   const ids: EhrResourceId[] = [];
   for (const entry of response.entry ?? []) {
     const location = entry.response?.location;
@@ -90,7 +90,7 @@ export function ehrIdsOf(response: Bundle): EhrResourceId[] {
 }
 
 /** Makes sure the version has its delivery row (signing may add only the job). */
-export async function ensureDeliveryRow(query: Query, reportVersionId: string): Promise<boolean> {
+async function ensureDeliveryRow(query: Query, reportVersionId: string): Promise<boolean> {
   await query(
     `INSERT INTO report_delivery (report_version_id, study_id)
      SELECT id, study_id FROM report_version WHERE id = $1

@@ -2,7 +2,7 @@ import type { DataSource } from 'typeorm';
 import { HttpError, NotFoundError } from '../http/problem';
 import { enqueueDelivery } from './enqueue-delivery';
 
-export class DeliveryBusyError extends HttpError {
+class DeliveryBusyError extends HttpError {
   constructor() {
     super(409, 'delivery-in-progress', 'Being sent now', 'This report is being sent to the EHR right now; look again in a minute.');
   }

@@ -3,6 +3,7 @@ import { z } from 'zod';
 import { loadConfig, type Config } from '../config';
 import { deliverReport, type DeliverDeps } from './deliver-report';
 import { EhrClient } from './ehr-client';
+import { labSettings, type ConfiguredDefaults } from '../settings/lab-settings';
 
 /**
  * The job queue's tasks for EHR delivery. `deliver-report` (payload `{ reportVersionId }`) sends one
@@ -18,6 +19,8 @@ export interface DeliveryTaskOptions {
   limitMs: number;
   leaseMs: number;
   identifierSystems: DeliverDeps['identifierSystems'];
+  /** Where the lab has stored no EHR endpoint: the configured one (else the server's configuration from the environment). */
+  settingsDefaults?: Partial<ConfiguredDefaults>;
 }
 
 export function createDeliveryTasks(options: DeliveryTaskOptions): TaskList {
@@ -30,8 +33,7 @@ export function createDeliveryTasks(options: DeliveryTaskOptions): TaskList {
     }
     const { reportVersionId } = parsed.data;
     // The lab's EHR endpoint, read at each try: a change applies to the next delivery and retry.
-    const { rows } = await helpers.query<{ ehr_base_url: string | null }>(`SELECT ehr_base_url FROM lab_settings WHERE id = 1`);
-    const fhirBaseUrl = rows[0]?.ehr_base_url ?? undefined;
+    const { ehrBaseUrl: fhirBaseUrl } = await labSettings({ query: async (sql: string, params?: unknown[]) => (await helpers.query(sql, params)).rows }, options.settingsDefaults);
     const outcome = await deliverReport(
       { ...options, send: (bundle) => options.send(bundle, fhirBaseUrl), query: async (sql, params) => (await helpers.query(sql, params as unknown[])).rows },
       reportVersionId,
@@ -69,6 +71,7 @@ export function deliveryTaskOptions(config: Config): DeliveryTaskOptions {
     // A send is at most two token requests and two transactions, each bounded by the timeout.
     leaseMs: 4 * config.ehr.timeoutMs + 60_000,
     identifierSystems: config.ehr.identifierSystems,
+    settingsDefaults: { ehrBaseUrl: config.ehr.fhirBaseUrl, mailFrom: config.mail.from },
   };
 }
 

@@ -116,7 +116,7 @@ const referenceTargets: Record<string, string[]> = {
 };
 
 /** Checks one resource's codes and units. */
-export function checkResourceTerminology(resource: Resource, at: string): Issue[] {
+function checkResourceTerminology(resource: Resource, at: string): Issue[] {
   const { codeSystems } = load();
   const issues: Issue[] = [];
   for (const [field, system] of requiredCodes[resource.resourceType] ?? []) {

@@ -1,5 +1,6 @@
 import type { ErrorRequestHandler, RequestHandler } from 'express';
 import { isDatabaseUnavailable, retryAfterSeconds } from '../db/availability';
+import { httpErrorOf } from './domain-errors';
 
 /** One field-level problem, located by a JSON pointer into the request body (RFC 6901). */
 export interface FieldProblem {
@@ -144,7 +145,7 @@ export function problemHandler(log: (message: string, error: unknown, fields?: R
       return next(err);
     }
     const e: ErrorLike = err ?? {};
-    let known: HttpError | undefined = err instanceof HttpError ? err : (fromZod(e) ?? fromBodyParser(e) ?? fromClientError(e));
+    let known: HttpError | undefined = err instanceof HttpError ? err : (httpErrorOf(err) ?? fromZod(e) ?? fromBodyParser(e) ?? fromClientError(e));
     if (!known && isDatabaseUnavailable(err)) {
       known = new ServiceUnavailableError('The database is not answering. Try again in a few seconds.');
     }

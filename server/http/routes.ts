@@ -17,19 +17,19 @@ export interface ApiRoute {
   handlers: RequestHandler[];
 }
 
-export class UnauthorizedError extends HttpError {
+class UnauthorizedError extends HttpError {
   constructor(detail = 'Sign in to continue.') {
     super(401, 'unauthorized', 'Not signed in', detail);
   }
 }
-export class ForbiddenError extends HttpError {
+class ForbiddenError extends HttpError {
   constructor(detail = 'Your role does not allow this.') {
     super(403, 'forbidden', 'Not allowed', detail);
   }
 }
 
 /** The guard every route passes: 401 without a session, 403 (audited) without the permission. */
-export function guard(access: Access, dataSource: DataSource): RequestHandler {
+function guard(access: Access, dataSource: DataSource): RequestHandler {
   return async (req, _res, next) => {
     if (access === 'public') return next();
     const auth = req.session?.auth;

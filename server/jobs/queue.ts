@@ -6,7 +6,7 @@ import type { EntityManager } from 'typeorm';
  * exists exactly when the change commits: a rolled-back signature sends no mail, and a committed one
  * never loses its mail to a crash between commit and enqueue.
  */
-export const jobNames = ['send-report-notice', 'deliver-report', 'suggest-codes', 'queue-overdue-notices', 'send-overdue-notice', 'send-delivery-failure-notice'] as const;
+const jobNames = ['send-report-notice', 'deliver-report', 'suggest-codes', 'queue-overdue-notices', 'send-overdue-notice', 'send-delivery-failure-notice'] as const;
 export type JobName = (typeof jobNames)[number];
 
 export interface JobOptions {

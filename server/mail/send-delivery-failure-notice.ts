@@ -2,6 +2,7 @@ import nodemailer from 'nodemailer';
 import type { DataSource } from 'typeorm';
 import type { Task } from 'graphile-worker';
 import { z } from 'zod';
+import { labSettings } from '../settings/lab-settings';
 
 const payloadSchema = z.object({ reportVersionId: z.uuid() });
 
@@ -15,7 +16,7 @@ export function sendDeliveryFailureNoticeTask(dataSource: DataSource, mail: { ho
   return async (payload) => {
     const { reportVersionId } = payloadSchema.parse(payload);
     const [row] = await dataSource.query(
-      `SELECT s.accession, v.version_no, d.status, d.last_error, d.http_status, (SELECT mail_from FROM lab_settings WHERE id = 1) AS mail_from
+      `SELECT s.accession, v.version_no, d.status, d.last_error, d.http_status
          FROM report_delivery d JOIN report_version v ON v.id = d.report_version_id JOIN study s ON s.id = v.study_id
         WHERE d.report_version_id = $1`,
       [reportVersionId],
@@ -24,8 +25,10 @@ export function sendDeliveryFailureNoticeTask(dataSource: DataSource, mail: { ho
     const admins: Array<{ email: string }> = await dataSource.query(`SELECT email FROM app_user WHERE role = 'admin' AND email IS NOT NULL AND email <> '' ORDER BY email`);
     if (admins.length === 0) return;
     const what = row.status === 'rejected' ? `The EHR refused the report${row.http_status ? ` (HTTP ${row.http_status})` : ''}` : 'The EHR could not be reached before the delivery time limit';
+    // The lab's sender when set (read at each send), else the configured one.
+    const { mailFrom } = await labSettings(dataSource, { mailFrom: mail.from });
     await transport.sendMail({
-      from: row.mail_from ?? mail.from,
+      from: mailFrom,
       to: admins.map((a) => a.email),
       subject: `EHR delivery stopped: accession ${row.accession}, version ${row.version_no}`,
       text: [

@@ -2,6 +2,7 @@ import nodemailer from 'nodemailer';
 import type { DataSource } from 'typeorm';
 import type { Task } from 'graphile-worker';
 import { z } from 'zod';
+import { labSettings } from '../settings/lab-settings';
 
 export interface MailSettings {
   host: string;
@@ -22,15 +23,16 @@ export function sendReportNoticeTask(dataSource: DataSource, mail: MailSettings)
   return async (payload) => {
     const { reportVersionId } = payloadSchema.parse(payload);
     const [row] = await dataSource.query(
-      `SELECT s.accession, s.referring_email, v.version_no, v.status, (SELECT mail_from FROM lab_settings WHERE id = 1) AS mail_from
+      `SELECT s.accession, s.referring_email, v.version_no, v.status
        FROM report_version v JOIN study s ON s.id = v.study_id WHERE v.id = $1`,
       [reportVersionId],
     );
     if (!row || !row.referring_email) return; // nobody to tell
     const amended = row.status === 'amended';
+    // The lab's sender when set (read at each send), else the configured one.
+    const { mailFrom } = await labSettings(dataSource, { mailFrom: mail.from });
     await transport.sendMail({
-      // The lab's sender when set (read at each send), else the configured one.
-      from: row.mail_from ?? mail.from,
+      from: mailFrom,
       to: row.referring_email,
       subject: `${amended ? 'Amended report' : 'Report'} signed: accession ${row.accession}`,
       text: [

@@ -3,11 +3,10 @@ import { fingerprint, renderReportPdf, sha256Hex } from './pdf';
 import { htmlDocument, renderNarrative, type Narrative } from './render';
 import { buildReportView, type ReportInput, type ReportStudy, type ReportView, type ThresholdsBasisInfo } from './view-model';
 
-export { canonicalContent, fingerprint, fingerprintInPdf, renderReportPdf, sha256Hex, warmUpPdf, PAGE } from './pdf';
+export { canonicalContent, fingerprint, fingerprintInPdf, renderReportPdf, sha256Hex, PAGE } from './pdf';
 export { renderNarrative, htmlDocument, type Narrative } from './render';
 export { reportDocument } from './document';
-export { buildReportView, reportKindOf, shortFingerprint, type ThresholdsBasisInfo, type ReportInput, type ReportStudy, type ReportView, type ReportSignature, type ReportKind } from './view-model';
-export { REPORT_TEMPLATE_VERSION } from './template-version';
+export { buildReportView, reportKindOf, type ThresholdsBasisInfo, type ReportInput, type ReportStudy, type ReportView } from './view-model';
 
 /** The statement the signer makes, stored with each version. */
 export const ATTESTATION =

@@ -84,7 +84,7 @@ interface PdfMake {
 }
 const pdfmake = pdfmakeDefault as unknown as PdfMake;
 
-export const PDF_FONT = 'PublicSans';
+const PDF_FONT = 'PublicSans';
 
 const fontFiles = {
   normal: '400Regular/PublicSans_400Regular.ttf',
@@ -266,7 +266,7 @@ function footer(view: ReportView, page: number, pages: number): Content {
 }
 
 /** The pdfmake document definition of a report (exposed for tests). */
-export function reportDocument(view: ReportView, createdAt: Date): TDocumentDefinitions {
+function reportDocument(view: ReportView, createdAt: Date): TDocumentDefinitions {
   const content: Content[] = [];
   if (view.hospital) content.push({ text: `${view.hospital.name} · ${view.hospital.lab}`, color: muted, fontSize: 8.5 });
   content.push({ text: view.title, style: 'h1' });
@@ -392,15 +392,6 @@ export interface PdfOptions {
    * a preview without one gets 1970-01-01, so the same preview always gives the same bytes.
    */
   createdAt?: string | Date;
-}
-
-/**
- * Loads the fonts and compiles pdfmake's code paths once, so the first report signed after a start
- * does not pay for them (the first render in a process takes several times longer than the next).
- */
-export async function warmUpPdf(): Promise<void> {
-  setUp();
-  await pdfmake.createPdf({ content: [{ text: 'Isobar 0123456789 Pd/Pa µg ≤ ≥ –', bold: true }, 'Isobar'], defaultStyle: { font: PDF_FONT } }).getBuffer();
 }
 
 /**

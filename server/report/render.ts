@@ -25,7 +25,7 @@ interface Compiled {
 const cache = new Map<string, Compiled>();
 
 /** The folder that holds the templates of one version (resolved from the project root). */
-export function templateDir(version: string, root = process.cwd()): string {
+function templateDir(version: string, root = process.cwd()): string {
   if (!/^v\d+$/.test(version)) throw new Error(`Unknown report template version "${version}".`);
   return resolve(root, 'templates', 'report', version);
 }

@@ -198,7 +198,7 @@ function formatter(timeZone: string, style: 'date-time' | 'time'): Intl.DateTime
 }
 
 /** A time in the report's zone, e.g. "2 Dec 2026, 14:05 UTC". */
-export function formatDateTime(iso: string, timeZone = 'UTC'): string {
+function formatDateTime(iso: string, timeZone = 'UTC'): string {
   const d = new Date(iso);
   if (Number.isNaN(d.getTime())) return iso;
   const parts = formatter(timeZone, 'date-time').formatToParts(d);
@@ -597,7 +597,7 @@ function acetylcholineSection(study: ReportStudy, analysis: PhysiologyResult, t:
 // Complications, free text
 
 /** Free text split into paragraphs (blank lines) with single line breaks kept as spaces. */
-export function paragraphs(text: string | null | undefined): string[] {
+function paragraphs(text: string | null | undefined): string[] {
   if (!filled(text)) return [];
   return text
     .replace(/\r\n?/g, '\n')

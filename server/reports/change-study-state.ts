@@ -8,6 +8,7 @@ import { loadStudy, StaleVersionError, writeSections } from '../studies/reposito
 import type { StudyRecord } from '../../shared/study/schema';
 import { TransitionRefusedError } from './errors';
 import { latestVersion } from './sign-study';
+import { lockStudy } from '../studies/lock-study';
 
 export type StateChange = Exclude<StudyAction, 'sign' | 'sign-addendum'>;
 
@@ -26,7 +27,7 @@ export interface ChangeStateRequest {
  */
 export async function changeStudyState(dataSource: DataSource, req: ChangeStateRequest): Promise<StudyRecord> {
   return dataSource.transaction(async (manager) => {
-    const [row] = await manager.query(`SELECT state, version FROM study WHERE id = $1 FOR UPDATE`, [req.studyId]);
+    const row = await lockStudy(manager, req.studyId);
     if (!row) throw new NotFoundError('No study has this id.');
     const state = row.state as StudyState;
     const refusal = checkTransition(state, req.action, req.role, req.reason);

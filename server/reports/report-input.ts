@@ -10,7 +10,7 @@ import { labSettings } from '../settings/lab-settings';
 import { thresholdsInForce } from '../settings/thresholds';
 
 /** The parts of a study record a report is built from (and that a signed version keeps). */
-export function reportStudyOf(record: StudyRecord): ReportStudy {
+function reportStudyOf(record: StudyRecord): ReportStudy {
   const { id, accession, patient, details, setup, vessels, vasoreactivity, findings, coding } = record;
   // The whole record as signed: delivery builds the Encounter from the coding section's patient class.
   return { id, accession, patient, details, setup, vessels, vasoreactivity, findings, coding };

@@ -11,6 +11,7 @@ import { loadStudy, StaleVersionError } from '../studies/repository';
 import { IncompleteStudyError, TransitionRefusedError } from './errors';
 import { onReportSigned } from './on-report-signed';
 import { reportInputFor, type ThresholdsChoice } from './report-input';
+import { lockStudy } from '../studies/lock-study';
 
 export interface Signer {
   userId: string;
@@ -63,7 +64,7 @@ export const summariseVersion = (v: ReportVersion): SignedVersionSummary => ({
  */
 export async function signStudy(dataSource: DataSource, req: SignStudyRequest): Promise<SignedVersionSummary> {
   return dataSource.transaction(async (manager) => {
-    const [row] = await manager.query(`SELECT state, version FROM study WHERE id = $1 FOR UPDATE`, [req.studyId]);
+    const row = await lockStudy(manager, req.studyId);
     if (!row) throw new NotFoundError('No study has this id.');
     const state = row.state as StudyState;
     const addendum = state === 'amending';

@@ -5,12 +5,13 @@ import type { Config } from '../config';
 import { homeOf, permissionsOf } from '../../shared/auth/permissions';
 import { auditContext, recordAudit } from '../audit/audit';
 import { authTimeOf, mapRole, pkce, type IdentityProvider } from '../auth/oidc';
+import { provisionUser } from '../auth/provision-user';
 import { destroySession, regenerateSession, saveSession, sessionCookieName } from '../auth/session';
 import type { ApiRoute } from '../http/routes';
 import { HttpError } from '../http/problem';
 
 /** Only same-site paths may be returned to after sign-in (no open redirects). */
-export function safeReturnPath(value: unknown): string | null {
+function safeReturnPath(value: unknown): string | null {
   if (typeof value !== 'string' || !value.startsWith('/') || value.startsWith('//') || value.startsWith('/\\')) return null;
   if (value.startsWith('/api/')) return null;
   return value.slice(0, 500);
@@ -21,7 +22,7 @@ const pendingTtlMs = 10 * 60_000;
  * A renewed confirmation counts when the provider authenticated the user no earlier than the request
  * for it, give or take this much: `auth_time` is in whole seconds and the two clocks may differ a little.
  */
-export const reauthClockSkewMs = 30_000;
+const reauthClockSkewMs = 30_000;
 
 export function authRoutes(deps: { config: Config; dataSource: DataSource; idp: IdentityProvider }): ApiRoute[] {
   const { config, dataSource, idp } = deps;
@@ -127,15 +128,7 @@ export function authRoutes(deps: { config: Config; dataSource: DataSource; idp: 
           const role = mapRole(claims[config.oidc.roleClaim], config.oidc.roleMap);
           const email = typeof claims.email === 'string' ? claims.email : '';
           const displayName = typeof claims.name === 'string' && claims.name ? claims.name : email || subject;
-          const [user] = await dataSource.query(
-            `INSERT INTO app_user (issuer, subject, email, display_name, role, last_sign_in_at)
-             VALUES ($1, $2, $3, $4, $5, now())
-             ON CONFLICT (issuer, subject) DO UPDATE
-               SET email = EXCLUDED.email, display_name = EXCLUDED.display_name, role = EXCLUDED.role,
-                   last_sign_in_at = now(), updated_at = now()
-             RETURNING id`,
-            [idp.issuer, subject, email, displayName, role],
-          );
+          const user = await provisionUser(dataSource, { issuer: idp.issuer, subject, email, displayName, role });
           // A new session id at sign-in: an id planted before sign-in is worth nothing after it.
           await regenerateSession(req.session);
           const now = Date.now();

@@ -6,7 +6,8 @@ import { auditContext, recordAudit } from '../audit/audit';
 import { NotFoundError } from '../http/problem';
 import type { ApiRoute } from '../http/routes';
 import { parseOrThrow } from '../http/validate';
-import { listDeliveriesNeedingAttention, listStudyDeliveries } from '../ehr/list-deliveries';
+import { listDeliveriesNeedingAttention } from '../ehr/list-deliveries';
+import { readStudyDeliveries } from '../ehr/read-study-deliveries';
 import { resendDelivery } from '../ehr/resend-delivery';
 
 const uuidPattern = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
@@ -31,11 +32,7 @@ export function deliveryRoutes({ dataSource }: { dataSource: DataSource }): ApiR
       handlers: [
         async (req, res) => {
           const id = idOf(req);
-          const [study] = await dataSource.query(`SELECT id FROM study WHERE id = $1`, [id]);
-          if (!study) throw new NotFoundError('No study has this id.');
-          const deliveries = await listStudyDeliveries(dataSource, id);
-          await recordAudit(dataSource, { ...auditContext(req), action: 'read', entityType: 'study', entityId: id, outcome: 'success', detail: { view: 'deliveries' } });
-          res.json({ items: deliveries });
+          res.json({ items: await readStudyDeliveries(dataSource, id, auditContext(req)) });
         },
       ],
     },

@@ -2,6 +2,7 @@ import type { DataSource } from 'typeorm';
 import { auditContext, recordAudit } from '../audit/audit';
 import type { ApiRoute } from '../http/routes';
 import { listAwaitingSignature } from '../studies/awaiting-signature';
+import { listUsers } from '../users/list-users';
 import { awaitingSignature } from '../turnaround/awaiting-signature';
 import { turnaroundSettings } from '../turnaround/settings';
 
@@ -42,19 +43,7 @@ export function recordRoutes({ dataSource }: { dataSource: DataSource }): ApiRou
       summary: 'Everyone who has an account, with their role',
       handlers: [
         async (req, res) => {
-          const rows = await dataSource.query(
-            `SELECT id, display_name, email, role, last_sign_in_at FROM app_user ORDER BY display_name, id`,
-          );
-          await recordAudit(dataSource, { ...auditContext(req), action: 'search', entityType: 'user', outcome: 'success', detail: { returned: rows.length, userIds: rows.map((u: { id: string }) => u.id) } });
-          res.json({
-            items: rows.map((u: { id: string; display_name: string; email: string; role: string | null; last_sign_in_at: Date | null }) => ({
-              id: u.id,
-              displayName: u.display_name,
-              email: u.email,
-              role: u.role,
-              lastSignInAt: u.last_sign_in_at?.toISOString() ?? null,
-            })),
-          });
+          res.json(await listUsers(dataSource, auditContext(req)));
         },
       ],
     },

@@ -3,11 +3,11 @@ import type { DataSource } from 'typeorm';
 import { z } from 'zod';
 import { auditContext, recordAudit } from '../audit/audit';
 import type { Config } from '../config';
-import { ReportVersion } from '../db/entities/report-version.entity';
 import { NotFoundError } from '../http/problem';
 import type { ApiRoute } from '../http/routes';
 import { parseOrThrow } from '../http/validate';
 import { changeStudyState } from '../reports/change-study-state';
+import { exportReportPdf } from '../reports/export-report-pdf';
 import { ReauthenticationRequiredError } from '../reports/errors';
 import { previewStudyReport } from '../reports/preview-report';
 import { signStudy } from '../reports/sign-study';
@@ -104,14 +104,11 @@ export function reportRoutes({ config, dataSource }: { config: Config; dataSourc
       handlers: [
         async (req, res) => {
           const id = idParam(req, 'report version');
-          const version = await dataSource.getRepository(ReportVersion).findOne({ where: { id }, select: { id: true, studyId: true, versionNo: true, pdf: true, pdfSha256: true } });
-          if (!version) throw new NotFoundError('No report version has this id.');
-          const [study] = await dataSource.query(`SELECT accession FROM study WHERE id = $1`, [version.studyId]);
-          await recordAudit(dataSource, { ...auditContext(req), action: 'export', entityType: 'study', entityId: version.studyId, outcome: 'success', detail: { reportVersion: version.versionNo, format: 'pdf' } });
+          const { fileName, pdf, sha256 } = await exportReportPdf(dataSource, id, auditContext(req));
           res.setHeader('Content-Type', 'application/pdf');
-          res.setHeader('Content-Disposition', `inline; filename="${String(study?.accession ?? 'report').replace(/[^A-Za-z0-9._-]/g, '_')}-v${version.versionNo}.pdf"`);
-          res.setHeader('X-Content-SHA256', version.pdfSha256);
-          res.send(version.pdf);
+          res.setHeader('Content-Disposition', `inline; filename="${fileName}"`);
+          res.setHeader('X-Content-SHA256', sha256);
+          res.send(pdf);
         },
       ],
     },

@@ -17,13 +17,14 @@ export interface ConfiguredDefaults {
 }
 
 let fromEnvironment: ConfiguredDefaults | undefined;
-const configured = (given?: ConfiguredDefaults): ConfiguredDefaults => {
-  if (given) return given;
+/** The defaults given; what is not given comes from the server's configuration (read once). */
+const configured = (given?: Partial<ConfiguredDefaults>): ConfiguredDefaults => {
+  if (given?.ehrBaseUrl !== undefined && given.mailFrom !== undefined) return given as ConfiguredDefaults;
   if (!fromEnvironment) {
     const c = loadConfig();
     fromEnvironment = { ehrBaseUrl: c.ehr.fhirBaseUrl, mailFrom: c.mail.from };
   }
-  return fromEnvironment;
+  return { ...fromEnvironment, ...given };
 };
 
 /** The configuration's values, for `labSettings(db, defaultsFrom(config))`. */
@@ -38,7 +39,7 @@ export const defaultsFrom = (config: { ehr: { fhirBaseUrl: string; allowedHosts?
  * hosts the server's configuration names, so a changed setting cannot send them to another server or
  * probe the hospital's internal network.
  */
-export class EhrHostNotAllowedError extends BadRequestError {
+class EhrHostNotAllowedError extends BadRequestError {
   constructor(host: string, allowed: string[]) {
     super(`EHR endpoint: ${host} is not one of the hosts this server may deliver to (${allowed.join(', ')}). The server's configuration (EHR_ALLOWED_HOSTS) lists them.`, [
       { pointer: '/settings/ehrBaseUrl', detail: `EHR endpoint must be on one of: ${allowed.join(', ')}.` },
@@ -57,9 +58,12 @@ interface Row {
   updated_by_name: string | null;
 }
 
-const managerOf = (db: DataSource | EntityManager): EntityManager => ('manager' in db ? db.manager : db);
+/** Anything that runs a query and answers its rows: a data source, a transaction, or a job's connection. */
+export type SettingsReader = DataSource | EntityManager | { query(sql: string, params?: unknown[]): Promise<unknown[]> };
 
-async function readRow(db: DataSource | EntityManager, lock = false): Promise<Row> {
+const managerOf = (db: SettingsReader): Pick<EntityManager, 'query'> => ('manager' in db ? db.manager : db) as Pick<EntityManager, 'query'>;
+
+async function readRow(db: SettingsReader, lock = false): Promise<Row> {
   const [row] = await managerOf(db).query(
     `SELECT l.time_zone, l.signature_target_hours::text AS signature_target_hours, l.ehr_base_url, l.mail_from, l.template_version, l.version, l.updated_at,
             u.display_name AS updated_by_name
@@ -81,7 +85,7 @@ const effectiveOf = (row: Row, defaults: ConfiguredDefaults): LabSettings => ({
  * The lab's settings as they apply now: time zone, signature target, EHR endpoint and mail sender
  * (the stored ones, else the server's configuration), and the report template version new signatures use.
  */
-export async function labSettings(db: DataSource | EntityManager, defaults?: ConfiguredDefaults): Promise<LabSettings> {
+export async function labSettings(db: SettingsReader, defaults?: Partial<ConfiguredDefaults>): Promise<LabSettings> {
   return effectiveOf(await readRow(db), configured(defaults));
 }
 
@@ -105,7 +109,7 @@ export async function labSettingsView(db: DataSource | EntityManager, defaults?:
   };
 }
 
-export class StaleSettingsError extends HttpError {
+class StaleSettingsError extends HttpError {
   constructor(current: LabSettingsView) {
     super(409, 'stale-settings', 'The settings have changed since you opened them', `Someone saved version ${current.version} of the settings meanwhile. Review them and save again.`, undefined, { current });
   }

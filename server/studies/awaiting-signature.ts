@@ -5,7 +5,7 @@ import { labSettings } from '../settings/lab-settings';
 import { summarySelect, toSummary } from './worklist';
 
 /** At most this many rows per list; `total` says how many there are. */
-export const awaitingListLimit = 100;
+const awaitingListLimit = 100;
 
 /**
  * The studies awaiting signature, oldest first (by the end of the procedure, else the record's list

@@ -15,6 +15,7 @@ import { HttpError, NotFoundError, UnprocessableError } from '../http/problem';
 import { recordAudit, type AuditEntry } from '../audit/audit';
 import { assignments, codingColumns, detailsColumns, findingsColumns, readSection, selectList, setupColumns, vasoreactivityColumns } from './columns';
 import { loadInterventions, replaceInterventions } from '../coding/study-interventions';
+import { lockStudy } from './lock-study';
 import {
   AcetylcholineDose as DoseRow,
   ThermodilutionInjection as InjectionRow,
@@ -211,10 +212,10 @@ export class StudyLockedError extends HttpError {
 
 /** Locks the study row for the rest of the transaction and refuses when it is signed. */
 export async function lockEditableStudy(db: EntityManager, id: string): Promise<{ patientId: string; version: number }> {
-  const [row] = await db.query(`SELECT patient_id, version, state FROM study WHERE id = $1 FOR UPDATE`, [id]);
+  const row = await lockStudy(db, id);
   if (!row) throw new NotFoundError('No study has this id.');
   if (!isEditable(row.state)) throw new StudyLockedError(row.state);
-  return { patientId: row.patient_id, version: row.version };
+  return { patientId: row.patientId, version: row.version };
 }
 
 /** Who did it, for the audit row written inside the change's transaction. */

@@ -1,7 +1,6 @@
 import type { DataSource } from 'typeorm';
 import type { WorklistItem, WorklistPage, WorklistQuery } from '../../shared/study/worklist';
-import { BadRequestError } from '../http/problem';
-import { problemOfText } from '../http/input-safety';
+import { decodeKeysetCursor, encodeKeysetCursor, uuidIdPattern } from '../db/keyset-cursor';
 import { parseSearch, type ParsedSearch } from '../../shared/study/search';
 
 /**
@@ -28,32 +27,6 @@ export function toSummary(r: Record<string, never>): WorklistItem {
     version: r.version,
     patient: { mrn: r.mrn, familyName: r.family_name, givenName: r.given_name, birthDate: r.birth_date, sex: r.sex },
   };
-}
-
-/** The cursor is the last row's sort key (text, so microseconds survive) and id. */
-function encodeCursor(sortKey: string, id: string): string {
-  return Buffer.from(JSON.stringify([sortKey, id])).toString('base64url');
-}
-
-function decodeCursor(cursor: string): [string, string] {
-  try {
-    const value = JSON.parse(Buffer.from(cursor, 'base64url').toString('utf8'));
-    if (
-      Array.isArray(value) &&
-      value.length === 2 &&
-      typeof value[0] === 'string' &&
-      /^\d{4}-\d{2}-\d{2} \d{2}:\d{2}:\d{2}(\.\d{1,6})?[+-]\d{2}(:?\d{2})?$/.test(value[0]) &&
-      typeof value[1] === 'string' &&
-      /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/.test(value[1]) &&
-      // Well formed is not enough: 30 February or hour 99 would reach the database as a data error.
-      problemOfText(value[0].replace(/([+-]\d{2})$/, '$1:00')) === null
-    ) {
-      return value as [string, string];
-    }
-  } catch {
-    /* fall through */
-  }
-  throw new BadRequestError('The page cursor is not valid: start again from the first page.', [{ pointer: '/cursor', detail: 'Not a cursor this server issued.' }]);
 }
 
 const escapeLike = (s: string) => s.replace(/[\\%_]/g, (c) => `\\${c}`);
@@ -111,7 +84,7 @@ export async function listStudies(db: DataSource, query: WorklistQuery): Promise
     }
   }
   if (query.cursor) {
-    const [sortKey, id] = decodeCursor(query.cursor);
+    const { at: sortKey, id } = decodeKeysetCursor(query.cursor, uuidIdPattern);
     where.push(`(s.sort_at, s.id) < (${param(sortKey)}::timestamptz, ${param(id)}::uuid)`);
   }
   const rows = await db.query(
@@ -125,6 +98,6 @@ export async function listStudies(db: DataSource, query: WorklistQuery): Promise
   const last = page[page.length - 1];
   return {
     items: page.map(toSummary),
-    nextCursor: rows.length > query.limit && last ? encodeCursor(last.sort_key, last.id) : null,
+    nextCursor: rows.length > query.limit && last ? encodeKeysetCursor(last.sort_key, last.id) : null,
   };
 }

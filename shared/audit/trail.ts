@@ -79,7 +79,7 @@ const filterFields = z.object({
 const orderedRange = (f: { from?: string; to?: string }) => !f.from || !f.to || rangeStart(f.from) <= rangeStart(f.to);
 const rangeError = { error: 'from must not be after to.', path: ['to'] };
 
-export const auditFiltersSchema = filterFields.refine(orderedRange, rangeError);
+const auditFiltersSchema = filterFields.refine(orderedRange, rangeError);
 export type AuditFilters = z.infer<typeof auditFiltersSchema>;
 
 /** Compares a day and an instant by where each starts (a day as UTC midnight; close enough to order a range). */
@@ -96,7 +96,7 @@ export const auditTrailQuerySchema = filterFields
   .refine(orderedRange, rangeError);
 export type AuditTrailQuery = z.infer<typeof auditTrailQuerySchema>;
 
-export const auditExportFormats = ['csv', 'fhir'] as const;
+const auditExportFormats = ['csv', 'fhir'] as const;
 export type AuditExportFormat = (typeof auditExportFormats)[number];
 
 /** GET /api/audit-trail/export: the filters and the format (CSV, or FHIR R4 AuditEvent resources in a Bundle). */

@@ -5,7 +5,7 @@
 export const roles = ['staff', 'physician', 'coder', 'chief', 'admin'] as const;
 export type Role = (typeof roles)[number];
 
-export const permissionTable = {
+const permissionTable = {
   /** Worklist, study records and the patient details on them. */
   'study:read': ['staff', 'physician', 'coder', 'chief'],
   'study:write': ['staff', 'physician'],
@@ -24,7 +24,7 @@ export const permissionTable = {
 } as const satisfies Record<string, readonly Role[]>;
 
 export type Permission = keyof typeof permissionTable;
-export const permissions = Object.keys(permissionTable) as Permission[];
+const permissions = Object.keys(permissionTable) as Permission[];
 
 export function can(role: Role | null | undefined, permission: Permission): boolean {
   return !!role && (permissionTable[permission] as readonly Role[]).includes(role);

@@ -15,7 +15,7 @@ const choice = <T extends readonly [string, ...string[]]>(label: string, values:
   z.enum(values, { error: `${label}: choose one of the listed options.` }).nullable();
 const tick = (label: string) => z.boolean({ error: `${label}: answer yes or no.` });
 
-export const studyInterventionSchema = z.object({
+const studyInterventionSchema = z.object({
   id: z.uuid({ error: 'Intervention row id must be a UUID.' }),
   vessel: z.enum(vesselCodes, { error: 'Vessel: choose one of the listed vessels.' }),
   kind: z.enum(interventionKinds, { error: 'Intervention: choose balloon, stent, atherectomy or atherectomy with stent.' }),

@@ -8,7 +8,7 @@ import { codeSystems, type CodeSystem, type CodingWarning, type CodeSetChoice } 
  * report version. Pure: no React, Express or TypeORM.
  */
 
-export const reviewStatuses = ['to-code', 'in-review', 'coded'] as const;
+const reviewStatuses = ['to-code', 'in-review', 'coded'] as const;
 export type ReviewStatus = (typeof reviewStatuses)[number];
 export const reviewStatusLabel: Record<ReviewStatus, string> = { 'to-code': 'To code', 'in-review': 'In review', coded: 'Coded' };
 

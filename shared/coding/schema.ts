@@ -77,7 +77,7 @@ export const diagnosesSchema = z.strictObject(
 
 const isoDate = z.iso.date({ error: 'dateOfService must be a date (YYYY-MM-DD).' });
 
-export const noteSchema = z.strictObject({ code: z.string().min(1).max(80), message: z.string().min(1).max(2000), blocking: z.boolean().optional() });
+const noteSchema = z.strictObject({ code: z.string().min(1).max(80), message: z.string().min(1).max(2000), blocking: z.boolean().optional() });
 
 export const codingInputSchema = z.strictObject(
   {

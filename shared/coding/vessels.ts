@@ -1,4 +1,4 @@
-import { vesselLongName, vesselShortName } from '../physiology/vessels';
+import { vesselShortName } from '../physiology/vessels';
 import type { VesselCode } from './schema';
 
 /**
@@ -8,8 +8,6 @@ import type { VesselCode } from './schema';
  * family. [CPT coronary intervention guidelines, as summarised in coding articles]
  */
 export type MajorArtery = 'LM' | 'LAD' | 'LCX' | 'RCA' | 'RAMUS';
-
-export const majorArteries: readonly MajorArtery[] = ['LM', 'LAD', 'LCX', 'RCA', 'RAMUS'];
 
 /** The HCPCS coronary artery modifier of each major artery [memory]. */
 export const arteryModifier: Readonly<Record<MajorArtery, string>> = Object.freeze({ LM: 'LM', LAD: 'LD', LCX: 'LC', RCA: 'RC', RAMUS: 'RI' });
@@ -40,7 +38,6 @@ export function anatomyOf(vessel: VesselCode): { kind: 'major'; artery: MajorArt
 }
 
 export const shortName = (v: VesselCode) => vesselShortName[v];
-export const longName = (v: VesselCode) => vesselLongName[v];
 
 /** "LAD", "LAD and LCx", "LAD, LCx and RCA". */
 export function listNames(names: readonly string[]): string {

@@ -67,7 +67,7 @@ const needsQuotes = (cell: string, delimiter: string) => cell.includes(delimiter
 const quote = (cell: string) => `"${cell.replaceAll('"', '""')}"`;
 
 /** One cell as written: neutralised, then quoted when it must be (or was). */
-export function writeCell(cell: string, delimiter = ',', forceQuotes = false): string {
+function writeCell(cell: string, delimiter = ',', forceQuotes = false): string {
   const safe = neutraliseCell(cell);
   return forceQuotes || needsQuotes(safe, delimiter) ? quote(safe) : safe;
 }
@@ -78,7 +78,7 @@ export function toCsv(rows: ReadonlyArray<ReadonlyArray<string | number | null |
 }
 
 /** The first of , ; or tab that splits the first line into at least two fields. */
-export function guessDelimiter(text: string): string {
+function guessDelimiter(text: string): string {
   const first = text.split(/\r?\n/, 1)[0] ?? '';
   return [',', ';', '\t'].map((d) => [d, parseCsv(first, d)[0]?.cells.length ?? 0] as const).sort((a, b) => b[1] - a[1])[0]?.[0] ?? ',';
 }

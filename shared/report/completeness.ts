@@ -69,7 +69,7 @@ export function hasPressureIndex(v: StudySections['vessels'][number]): boolean {
 }
 
 /** Whether the row carries any measurement: a pressure index, or thermodilution transit times. */
-export function hasMeasurement(v: StudySections['vessels'][number]): boolean {
+function hasMeasurement(v: StudySections['vessels'][number]): boolean {
   return hasPressureIndex(v) || v.restTransit.some(num) || v.hyperemiaTransit.some(num);
 }
 

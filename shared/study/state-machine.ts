@@ -29,11 +29,8 @@ export const transitions: Readonly<Record<StudyAction, Transition>> = Object.fre
 });
 
 /** States whose record may be edited: before signing, and inside an open addendum. */
-export const editableStates: readonly StudyState[] = ['draft', 'awaiting-signature', 'amending'];
+const editableStates: readonly StudyState[] = ['draft', 'awaiting-signature', 'amending'];
 export const isEditable = (state: StudyState) => editableStates.includes(state);
-
-/** States that have at least one signed report version. */
-export const reportedStates: readonly StudyState[] = ['signed', 'amending', 'amended'];
 
 export type TransitionRefusal = 'wrong-state' | 'not-permitted' | 'reason-required';
 

@@ -66,7 +66,7 @@ interface MeasuredVessel {
 }
 
 /** Vessels with at least one measured index, one per vessel code (repeated rows are merged). */
-export function measuredVessels(ctx: RuleContext): MeasuredVessel[] {
+function measuredVessels(ctx: RuleContext): MeasuredVessel[] {
   const map = new Map<VesselCode, MeasuredVessel>();
   for (const p of ctx.input.physiology) {
     if (p.measured.length === 0) continue;

@@ -18,7 +18,7 @@ export interface Rule {
   rationale: string;
 }
 
-export const fill = (template: string, values: Record<string, string | number>) =>
+const fill = (template: string, values: Record<string, string | number>) =>
   template.replace(/\{(\w+)\}/g, (m, k: string) => (k in values ? String(values[k]) : m));
 
 /** What the rules share while they run over one input. */

@@ -1,0 +1,28 @@
+import type { DataSource } from 'typeorm';
+import type { PatchStudy, StudyRecord } from '../../shared/study/schema';
+import { recordAudit } from '../audit/audit';
+import { DuplicateRowIdError } from './errors';
+import { patchStudy, PatientMismatchError, StaleVersionError, type AuditActor } from './repository';
+
+/** pg's unique-violation code: a client reused a row id that belongs elsewhere. */
+const isUniqueViolation = (e: unknown) => (e as { code?: string })?.code === '23505';
+
+/**
+ * Replaces whole sections of a draft, named by the version it was read at. A stale version or an
+ * MRN on file for someone else is refused and recorded in the audit trail; a vessel or dose row id
+ * that belongs to another study is refused.
+ */
+export async function editStudy(dataSource: DataSource, id: string, patch: PatchStudy, actor: AuditActor): Promise<StudyRecord> {
+  try {
+    return (await patchStudy(dataSource, id, patch, actor)).record;
+  } catch (error) {
+    if (error instanceof StaleVersionError) {
+      await recordAudit(dataSource, { ...actor, action: 'update', entityType: 'study', entityId: id, outcome: 'failure', detail: { reason: 'stale-version', fromVersion: patch.version, current: error.current.version } });
+    }
+    if (error instanceof PatientMismatchError) {
+      await recordAudit(dataSource, { ...actor, action: 'update', entityType: 'study', entityId: id, outcome: 'failure', detail: { reason: 'patient-mismatch', mrn: error.mrn, differs: error.fields } });
+    }
+    if (isUniqueViolation(error)) throw new DuplicateRowIdError();
+    throw error;
+  }
+}

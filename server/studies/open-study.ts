@@ -1,0 +1,22 @@
+import type { DataSource } from 'typeorm';
+import type { CreateStudy, StudyRecord } from '../../shared/study/schema';
+import { recordAudit } from '../audit/audit';
+import { createStudy, loadStudy, PatientMismatchError, type AuditActor } from './repository';
+
+/**
+ * Opens a new study for a patient and returns it as stored. An MRN on file for someone else is
+ * refused, and who tried which MRN against which differing fields goes to the audit trail (never
+ * into the answer).
+ */
+export async function openStudy(dataSource: DataSource, input: CreateStudy, createdBy: string | null, actor: AuditActor): Promise<StudyRecord> {
+  let id: string;
+  try {
+    id = await createStudy(dataSource, input, createdBy, actor);
+  } catch (error) {
+    if (error instanceof PatientMismatchError) {
+      await recordAudit(dataSource, { ...actor, action: 'create', entityType: 'study', outcome: 'failure', detail: { reason: 'patient-mismatch', mrn: error.mrn, differs: error.fields } });
+    }
+    throw error;
+  }
+  return (await loadStudy(dataSource, id))!;
+}
