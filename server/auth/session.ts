@@ -6,6 +6,7 @@ import type { DataSource } from 'typeorm';
 import type { Config } from '../config';
 import type { Role } from '../../shared/auth/permissions';
 import { defaultLogger, safeError, type Logger } from '../log';
+import { poolOf } from '../db/prepared';
 
 /** What a signed-in session holds. */
 export interface SessionAuth {
@@ -64,7 +65,8 @@ function endedSessionAwareStore(Base: PgStoreClass, pool: Pool, maxAgeMs: number
   return class EndedSessionAwareStore extends Base {
     override get(sid: string, fn: (err: unknown, sess?: session.SessionData | null) => void): void {
       pool
-        .query(`SELECT sess, extract(epoch FROM expire) * 1000 AS expire_ms FROM http_session WHERE sid = $1 AND expire >= now()`, [sid])
+        // Read on every request: a named statement, planned once per pooled connection.
+        .query({ name: 'isobar_session_read', text: `SELECT sess, extract(epoch FROM expire) * 1000 AS expire_ms FROM http_session WHERE sid = $1 AND expire >= now()`, values: [sid] })
         .then(
           ({ rows: [row] }) => {
             if (!row) return fn(null, null);
@@ -135,10 +137,6 @@ function endedSessionAwareStore(Base: PgStoreClass, pool: Pool, maxAgeMs: number
   };
 }
 
-/** The pg pool TypeORM already holds, so sessions need no second pool. */
-function poolOf(dataSource: DataSource): Pool {
-  return (dataSource.driver as unknown as { master: Pool }).master;
-}
 
 /**
  * Sessions in PostgreSQL: HttpOnly, SameSite=Lax cookie (Lax, not Strict, so the provider's redirect

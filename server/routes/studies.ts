@@ -47,9 +47,9 @@ export function studyRoutes({ config, dataSource, storage }: { config: Config; d
       handlers: [
         async (req, res) => {
           const query = parseOrThrow(worklistQuerySchema, req.query, 'The worklist query');
-          const page = await listStudies(dataSource, query);
-          // The ids shown, so "who saw this patient" has an answer, not only the filters used.
-          await recordAudit(dataSource, { ...auditContext(req), action: 'search', entityType: 'study', outcome: 'success', detail: { ...query, returned: page.items.length, studyIds: page.items.map((s) => s.id) } });
+          // Audited in the same statement: the filters and the ids shown, so "who saw this patient"
+          // has an answer, not only the filters used.
+          const page = await listStudies(dataSource, query, auditContext(req));
           res.json(page);
         },
       ],

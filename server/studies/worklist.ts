@@ -3,6 +3,11 @@ import type { WorklistItem, WorklistPage, WorklistQuery } from '../../shared/stu
 import { BadRequestError } from '../http/problem';
 import { problemOfText } from '../http/input-safety';
 import { parseSearch, type ParsedSearch } from '../../shared/study/search';
+import type { AuditEntry } from '../audit/audit';
+import { preparedQuery } from '../db/prepared';
+
+/** Who is shown a page, for its audit row. */
+export type WorklistViewer = Pick<AuditEntry, 'actorUserId' | 'actorName' | 'actorRole' | 'clientAddress'>;
 
 /**
  * One study as lists show it (worklist, coding queue, turnaround): `SELECT … FROM` a study with its
@@ -80,8 +85,12 @@ const patientLookupCap = 200;
 /**
  * Studies newest first (procedure start, or when the record was opened), filtered, one page at a
  * time by keyset: `(sort_at, id) < cursor` rides the worklist indexes however deep the page.
+ *
+ * With a viewer, the same statement appends the page's audit row (action `search`: the filters, the
+ * number of studies returned and their ids, in the order shown), so the row is committed before the
+ * page is answered and costs no round trip of its own; without one (benchmarks) it only reads.
  */
-export async function listStudies(db: DataSource, query: WorklistQuery): Promise<WorklistPage> {
+export async function listStudies(db: DataSource, query: WorklistQuery, viewer?: WorklistViewer): Promise<WorklistPage> {
   const where: string[] = [];
   const values: unknown[] = [];
   const param = (v: unknown) => {
@@ -114,13 +123,36 @@ export async function listStudies(db: DataSource, query: WorklistQuery): Promise
     const [sortKey, id] = decodeCursor(query.cursor);
     where.push(`(s.sort_at, s.id) < (${param(sortKey)}::timestamptz, ${param(id)}::uuid)`);
   }
-  const rows = await db.query(
-    `${summarySelect}
+  const pageSql = `${summarySelect}
      ${where.length ? `WHERE ${where.join(' AND ')}` : ''}
      ORDER BY s.sort_at DESC, s.id DESC
-     LIMIT ${param(query.limit + 1)}`,
-    values,
-  );
+     LIMIT ${param(query.limit + 1)}`;
+  let rows: Record<string, never>[];
+  if (viewer) {
+    // One row more than the page is read (to know whether a next page exists); the audit row names
+    // only the studies shown. A data-modifying CTE runs exactly once, whether or not it is read.
+    const detail = param(JSON.stringify(query));
+    const shown = param(query.limit);
+    rows = await preparedQuery(
+      db,
+      `WITH page AS MATERIALIZED (${pageSql}),
+       shown AS (SELECT id, sort_at FROM page ORDER BY sort_at DESC, id DESC LIMIT ${shown}),
+       audit AS (
+         INSERT INTO audit_event (actor_user_id, actor_name, actor_role, action, entity_type, client_address, outcome, detail)
+         SELECT ${param(viewer.actorUserId ?? null)}::uuid, ${param(viewer.actorName ?? null)}::text, ${param(viewer.actorRole ?? null)}::text,
+                'search', 'study', ${param(viewer.clientAddress ?? null)}::text, 'success',
+                ${detail}::jsonb || jsonb_build_object('returned', count(*), 'studyIds', coalesce(jsonb_agg(id ORDER BY sort_at DESC, id DESC), '[]'::jsonb))
+         FROM shown
+       )
+       SELECT * FROM page ORDER BY sort_at DESC, id DESC`,
+      values,
+      // The plain worklist and its filters ride one index whatever the values; a search's plan
+      // depends on how many patients it found, so it is planned for its values each time.
+      { prepare: !query.q },
+    );
+  } else {
+    rows = await db.query(pageSql, values);
+  }
   const page = rows.slice(0, query.limit);
   const last = page[page.length - 1];
   return {
