@@ -14,7 +14,7 @@ import { HttpError, NotFoundError } from '../http/problem';
 import type { ApiRoute } from '../http/routes';
 import { parseOrThrow } from '../http/validate';
 import { createStudy, loadStudy, lockEditableStudy, patchStudy, PatientMismatchError, StaleVersionError } from '../studies/repository';
-import { listStudies } from '../studies/worklist';
+import { worklistPageJson } from '../studies/worklist';
 import { thresholdsInForce } from '../settings/thresholds';
 
 const uuidPattern = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
@@ -49,8 +49,7 @@ export function studyRoutes({ config, dataSource, storage }: { config: Config; d
           const query = parseOrThrow(worklistQuerySchema, req.query, 'The worklist query');
           // Audited in the same statement: the filters and the ids shown, so "who saw this patient"
           // has an answer, not only the filters used.
-          const page = await listStudies(dataSource, query, auditContext(req));
-          res.json(page);
+          res.type('application/json').send(await worklistPageJson(dataSource, query, auditContext(req)));
         },
       ],
     },
