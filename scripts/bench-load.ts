@@ -72,21 +72,24 @@ function summary(t: Target) {
   };
 }
 
-/** CPU time (ms) used so far by the PostgreSQL backends serving this database (from /proc; 0 where it cannot be read). */
-async function backendCpuMs(pool: pg.Pool): Promise<number> {
+/** CPU time (ms) used so far by each PostgreSQL backend serving this database (from /proc; none where it cannot be read). */
+async function backendCpuMs(pool: pg.Pool): Promise<Map<number, number>> {
   const { rows } = await pool.query<{ pid: number }>(`SELECT pid FROM pg_stat_activity WHERE datname = current_database()`);
   const tick = 100; // USER_HZ on Linux
-  let ms = 0;
+  const byPid = new Map<number, number>();
   for (const { pid } of rows) {
     try {
       const fields = readFileSync(`/proc/${pid}/stat`, 'utf8').split(') ')[1].split(' ');
-      ms += ((Number(fields[11]) + Number(fields[12])) * 1000) / tick; // utime, stime
+      byPid.set(pid, ((Number(fields[11]) + Number(fields[12])) * 1000) / tick); // utime, stime
     } catch {
       /* gone, or another machine */
     }
   }
-  return ms;
+  return byPid;
 }
+
+/** CPU time the backends used between two readings (a backend that began in between counts whole). */
+const cpuBetween = (before: Map<number, number>, after: Map<number, number>) => [...after].reduce((ms, [pid, t]) => ms + t - (before.get(pid) ?? 0), 0);
 
 async function main(): Promise<void> {
   await prepareDatabase(process.env.MIGRATION_DATABASE_URL!, databaseUrl);
@@ -155,7 +158,7 @@ async function main(): Promise<void> {
       const db0 = await backendCpuMs(pool);
       const result = await run(t.url, t.headers);
       const cpu = process.cpuUsage(cpu0);
-      const dbMs = (await backendCpuMs(pool)) - db0;
+      const dbMs = cpuBetween(db0, await backendCpuMs(pool));
       t.rounds.push({ result, serverCpuMs: (cpu.user + cpu.system) / 1000, dbCpuMs: dbMs });
       if (profiling) {
         const { profile } = await profiler.post('Profiler.stop');
