@@ -6,6 +6,11 @@
 import type { AddressInfo } from 'node:net';
 import { createServer } from 'node:http';
 import { execFile } from 'node:child_process';
+import { readFileSync, writeFileSync } from 'node:fs';
+import { cpus, loadavg } from 'node:os';
+import path from 'node:path';
+import type { DataSource } from 'typeorm';
+import { Session } from 'node:inspector/promises';
 import type autocannon from 'autocannon';
 import express from 'express';
 import pg from 'pg';
@@ -15,6 +20,7 @@ import { signIn, startStack } from '../tests/support/stack';
 
 const CONNECTIONS = Number(process.env.BENCH_CONNECTIONS ?? 50);
 const SECONDS = Number(process.env.BENCH_SECONDS ?? 10);
+const ROUNDS = Number(process.env.BENCH_ROUNDS ?? 1);
 const STUDIES = Number(process.env.BENCH_STUDIES ?? 5000);
 const databaseUrl = process.env.DATABASE_URL!;
 
@@ -37,17 +43,53 @@ async function seed(): Promise<void> {
   await ds.destroy();
 }
 
-function summary(name: string, r: autocannon.Result) {
+interface Target {
+  name: string;
+  url: string;
+  headers: Record<string, string>;
+  rounds: { result: autocannon.Result; serverCpuMs: number; dbCpuMs: number }[];
+}
+
+const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)];
+
+/**
+ * Per target over its rounds: requests per second (mean), median p50 and p99, the worst p99, and the
+ * CPU spent per request by this process (the servers) and by the database's backends.
+ */
+function summary(t: Target) {
+  const requests = t.rounds.reduce((n, r) => n + r.result.requests.total, 0);
   return {
-    name,
-    reqPerSec: Math.round(r.requests.average),
-    p50ms: r.latency.p50,
-    p99ms: r.latency.p99,
-    errors: r.errors + r.timeouts,
-    non2xx: r.non2xx,
-    requests: r.requests.total,
+    name: t.name,
+    reqPerSec: Math.round(t.rounds.reduce((n, r) => n + r.result.requests.average, 0) / t.rounds.length),
+    p50ms: median(t.rounds.map((r) => r.result.latency.p50)),
+    p99ms: median(t.rounds.map((r) => r.result.latency.p99)),
+    worstP99ms: Math.max(...t.rounds.map((r) => r.result.latency.p99)),
+    nodeCpuMsPerReq: +(t.rounds.reduce((n, r) => n + r.serverCpuMs, 0) / requests).toFixed(3),
+    dbCpuMsPerReq: +(t.rounds.reduce((n, r) => n + r.dbCpuMs, 0) / requests).toFixed(3),
+    errors: t.rounds.reduce((n, r) => n + r.result.errors + r.result.timeouts, 0),
+    non2xx: t.rounds.reduce((n, r) => n + r.result.non2xx, 0),
+    requests,
   };
 }
+
+/** CPU time (ms) used so far by each PostgreSQL backend serving this database (from /proc; none where it cannot be read). */
+async function backendCpuMs(pool: pg.Pool): Promise<Map<number, number>> {
+  const { rows } = await pool.query<{ pid: number }>(`SELECT pid FROM pg_stat_activity WHERE datname = current_database()`);
+  const tick = 100; // USER_HZ on Linux
+  const byPid = new Map<number, number>();
+  for (const { pid } of rows) {
+    try {
+      const fields = readFileSync(`/proc/${pid}/stat`, 'utf8').split(') ')[1].split(' ');
+      byPid.set(pid, ((Number(fields[11]) + Number(fields[12])) * 1000) / tick); // utime, stime
+    } catch {
+      /* gone, or another machine */
+    }
+  }
+  return byPid;
+}
+
+/** CPU time the backends used between two readings (a backend that began in between counts whole). */
+const cpuBetween = (before: Map<number, number>, after: Map<number, number>) => [...after].reduce((ms, [pid, t]) => ms + t - (before.get(pid) ?? 0), 0);
 
 async function main(): Promise<void> {
   await prepareDatabase(process.env.MIGRATION_DATABASE_URL!, databaseUrl);
@@ -71,24 +113,73 @@ async function main(): Promise<void> {
     throw new Error('sign-in failed');
   });
 
+  // BENCH_BASELINE=<folder>: an earlier checkout of this repository (bench-load.sh fills it from
+  // BENCH_BASELINE_REF), served beside this one on the same database, so before and after are
+  // measured in the same run, under the same load.
+  const baselineDir = process.env.BENCH_BASELINE;
+  let baseline: { url: string; cookie: string; close(): Promise<void> } | null = null;
+  if (baselineDir) {
+    const { createDataSource: baselineDataSource } = await import(path.join(baselineDir, 'server/db/data-source.ts'));
+    const { startStack: baselineStack, signIn: baselineSignIn } = await import(path.join(baselineDir, 'tests/support/stack.ts'));
+    const bds: DataSource = baselineDataSource(databaseUrl, 10);
+    await bds.initialize();
+    const bstack = await baselineStack(bds);
+    const { cookie: bcookie } = await baselineSignIn(bstack, 'ivarga');
+    baseline = { url: bstack.url, cookie: bcookie, close: async () => (await bstack.close(), await bds.destroy()) };
+  }
+
   // autocannon in its own process, so the load generator does not share the servers' event loop.
   const run = (url: string, headers: Record<string, string> = {}, connections = CONNECTIONS, seconds = SECONDS) =>
     new Promise<autocannon.Result>((resolve, reject) => {
       const args = ['-j', '-c', String(connections), '-d', String(seconds), ...Object.entries(headers).flatMap(([k, v]) => ['-H', `${k}=${v}`]), url];
       execFile('node_modules/.bin/autocannon', args, { maxBuffer: 16 * 1024 * 1024 }, (error, stdout) => (error ? reject(error) : resolve(JSON.parse(stdout))));
     });
-  // Warm both, then measure one after the other in the same run.
-  await run(bareUrl, {}, 10, 2);
-  await run(`${stack.url}/api/studies`, { cookie }, 10, 2);
-  const bareResult = summary('bare Express + pg SELECT 1', await run(bareUrl));
-  const worklistResult = summary('worklist GET /api/studies (session, query, audit)', await run(`${stack.url}/api/studies`, { cookie }));
 
-  console.log(`${CONNECTIONS} connections, ${SECONDS} s each, ${STUDIES} studies`);
-  console.table([bareResult, worklistResult]);
-  const ratio = worklistResult.reqPerSec / bareResult.reqPerSec;
-  console.log(`worklist / bare: ${(ratio * 100).toFixed(0)}% (target ≥ 25%), worklist p99 ${worklistResult.p99ms} ms (target < 100 ms)`);
+  const targets: Target[] = [
+    { name: 'bare Express + pg SELECT 1', url: bareUrl, headers: {}, rounds: [] },
+    ...(baseline ? [{ name: `worklist before (${process.env.BENCH_BASELINE_REF ?? 'baseline'})`, url: `${baseline.url}/api/studies`, headers: { cookie: baseline.cookie }, rounds: [] }] : []),
+    { name: 'worklist GET /api/studies (session, query, audit)', url: `${stack.url}/api/studies`, headers: { cookie }, rounds: [] },
+  ];
+  // Warm each, then measure them in turn, ROUNDS times over, so a change in the machine's load
+  // falls on every target alike.
+  for (const t of targets) await run(t.url, t.headers, 10, 2);
+  const load = [loadavg()];
+  const profiler = process.env.BENCH_PROFILE ? new Session() : null;
+  for (let round = 0; round < ROUNDS; round++) {
+    for (const t of targets) {
+      const profiling = profiler && round === 0 && t === targets[targets.length - 1];
+      if (profiling) {
+        // BENCH_PROFILE=file.cpuprofile: the server's CPU profile over the first measured worklist run.
+        profiler.connect();
+        await profiler.post('Profiler.enable');
+        await profiler.post('Profiler.start');
+      }
+      const cpu0 = process.cpuUsage();
+      const db0 = await backendCpuMs(pool);
+      const result = await run(t.url, t.headers);
+      const cpu = process.cpuUsage(cpu0);
+      const dbMs = cpuBetween(db0, await backendCpuMs(pool));
+      t.rounds.push({ result, serverCpuMs: (cpu.user + cpu.system) / 1000, dbCpuMs: dbMs });
+      if (profiling) {
+        const { profile } = await profiler.post('Profiler.stop');
+        writeFileSync(process.env.BENCH_PROFILE!, JSON.stringify(profile));
+        profiler.disconnect();
+      }
+    }
+    load.push(loadavg());
+  }
+
+  console.log(`${CONNECTIONS} connections, ${ROUNDS} rounds of ${SECONDS} s per target, ${STUDIES} studies, ${cpus().length} cores`);
+  console.log(`load average (1 min) before and after each round: ${load.map((l) => l[0].toFixed(1)).join(', ')}`);
+  const rows = targets.map(summary);
+  console.table(rows);
+  const bareRow = rows[0];
+  for (const row of rows.slice(1)) {
+    console.log(`${row.name} / bare: ${((row.reqPerSec / bareRow.reqPerSec) * 100).toFixed(0)}% (target ≥ 25%), p99 ${row.p99ms} ms (target < 100 ms)`);
+  }
 
   await stack.close();
+  await baseline?.close();
   await ds.destroy();
   bareServer.close();
   await pool.end();

@@ -1,4 +1,4 @@
-import fs from 'node:fs/promises';
+import { createReadStream } from 'node:fs';
 import { fileTypeFromBuffer } from 'file-type';
 
 /** What the lab may attach: console printouts and images, and exported traces. */
@@ -17,11 +17,18 @@ export async function detectMediaType(bytes: Buffer): Promise<AcceptedMediaType 
   return looksLikeCsv(bytes) ? 'text/csv' : null;
 }
 
-/** The same judgement for a file on disk: its first bytes, and the whole text only for a CSV candidate. */
+/**
+ * The same judgement for a file on disk: its first bytes, and for a CSV candidate the whole text,
+ * read in chunks, so judging a large export holds one chunk in memory, not the file.
+ */
 export async function detectMediaTypeOfFile(file: string, head: Buffer): Promise<AcceptedMediaType | null> {
   const detected = await fileTypeFromBuffer(head);
   if (detected) return (acceptedMediaTypes as readonly string[]).includes(detected.mime) ? (detected.mime as AcceptedMediaType) : null;
-  return looksLikeCsv(await fs.readFile(file)) ? 'text/csv' : null;
+  const judge = new CsvJudge();
+  for await (const chunk of createReadStream(file, { highWaterMark: 64 * 1024 })) {
+    if (!judge.push(chunk as Buffer)) return null; // refused already: no need to read on
+  }
+  return judge.end() ? 'text/csv' : null;
 }
 
 /**
@@ -29,33 +36,123 @@ export async function detectMediaTypeOfFile(file: string, head: Buffer): Promise
  * split into the same number of fields, at least two, on one delimiter. Quoted delimiters are honoured.
  */
 function looksLikeCsv(bytes: Buffer): boolean {
-  if (bytes.length === 0) return false;
-  let text: string;
-  try {
-    text = new TextDecoder('utf-8', { fatal: true }).decode(bytes);
-  } catch {
-    return false;
-  }
-  // eslint-disable-next-line no-control-regex
-  if (/[\u0000-\u0008\u000B\u000C\u000E-\u001F\u007F]/.test(text)) return false;
-  text = text.replace(/^\uFEFF/, '');
-  if (/^\s*</.test(text) || /<\s*(script|html|body|iframe|svg)\b/i.test(text)) return false;
-  const lines = text.split(/\r?\n/).filter((l) => l.trim() !== '').slice(0, 20);
-  if (lines.length < 2) return false;
-  return [',', ';', '\t'].some((d) => {
-    const counts = lines.map((l) => fieldCount(l, d));
-    return counts[0] >= 2 && counts.every((c) => c === counts[0]);
-  });
+  return looksLikeCsvInPieces([bytes]);
 }
 
-function fieldCount(line: string, delimiter: string): number {
-  let fields = 1;
-  let quoted = false;
-  for (const ch of line) {
-    if (ch === '"') quoted = !quoted;
-    else if (ch === delimiter && !quoted) fields++;
+/** The CSV judgement of a text that arrives in pieces (as a file read in chunks): the same answer as for the whole. */
+export function looksLikeCsvInPieces(pieces: Iterable<Buffer>): boolean {
+  const judge = new CsvJudge();
+  for (const piece of pieces) if (!judge.push(piece)) return false;
+  return judge.end();
+}
+
+// eslint-disable-next-line no-control-regex
+const controlCharacter = /[\u0000-\u0008\u000B\u000C\u000E-\u001F\u007F]/;
+const markup = /<\s*(script|html|body|iframe|svg)\b/i;
+/** The end of a text that could still become markup with the next piece (`<`, `< scr`, …). */
+const openMarkup = /<\s*[a-z]*$/i;
+const delimiters = [',', ';', '\t'] as const;
+const linesJudged = 20;
+
+/**
+ * The CSV judgement over text arriving in pieces, holding no more than a piece: each is checked as
+ * it comes (UTF-8, control characters, markup; a piece of markup split across two pieces is held
+ * back until the next), and of the first 20 non-empty lines only their field counts per delimiter
+ * are kept. `push` answers false once the text is refused.
+ */
+class CsvJudge {
+  private decoder = new TextDecoder('utf-8', { fatal: true });
+  private bytes = 0;
+  private refused = false;
+  /** The end of the text so far that could still become markup: searched again with the next piece. */
+  private unsearched = '';
+  /** White space seen before the first other character (null once the text has begun). */
+  private leading: string | null = '';
+  /** Field counts per delimiter of the first non-empty lines, and of the line being read. */
+  private counts: number[][] = [];
+  private fields = [1, 1, 1];
+  private quoted = false;
+  private lineHasText = false;
+
+  push(chunk: Buffer): boolean {
+    if (this.refused) return false;
+    this.bytes += chunk.length;
+    let text: string;
+    try {
+      text = this.decoder.decode(chunk, { stream: true });
+    } catch {
+      return this.refuse();
+    }
+    return this.take(text, false);
   }
-  return fields;
+
+  end(): boolean {
+    if (this.refused || this.bytes === 0) return false;
+    let rest: string;
+    try {
+      rest = this.decoder.decode();
+    } catch {
+      return false;
+    }
+    if (!this.take(rest, true)) return false;
+    this.endLine();
+    const counts = this.counts;
+    if (counts.length < 2) return false;
+    return delimiters.some((_, d) => counts[0][d] >= 2 && counts.every((c) => c[d] === counts[0][d]));
+  }
+
+  private refuse(): false {
+    this.refused = true;
+    return false;
+  }
+
+  private take(text: string, last: boolean): boolean {
+    if (controlCharacter.test(text)) return this.refuse();
+    if (this.leading !== null) {
+      // The decoder drops one byte-order mark; a second one is dropped here. Text that begins with
+      // `<` (after white space) is markup, not a trace.
+      const begun = (this.leading + text).replace(/^\uFEFF/, '');
+      if (/^\s*</.test(begun)) return this.refuse();
+      if (!/\S/.test(begun) && !last) {
+        this.leading = begun;
+        return true;
+      }
+      this.leading = null;
+      text = begun;
+    }
+    let searched = this.unsearched + text;
+    const open = last ? null : openMarkup.exec(searched);
+    this.unsearched = open ? searched.slice(open.index) : '';
+    if (open) searched = searched.slice(0, open.index);
+    if (markup.test(searched)) return this.refuse();
+    if (this.counts.length < linesJudged) this.countFields(text);
+    return true;
+  }
+
+  /** Lines end at `\n` (a `\r` before it is white space and no delimiter, so it changes nothing). */
+  private countFields(text: string): void {
+    for (let i = 0; i < text.length && this.counts.length < linesJudged; i++) {
+      const ch = text[i];
+      if (ch === '\n') this.endLine();
+      else if (ch === '"') {
+        this.quoted = !this.quoted;
+        this.lineHasText = true;
+      } else {
+        if (!this.quoted) {
+          const d = delimiters.indexOf(ch as (typeof delimiters)[number]);
+          if (d >= 0) this.fields[d]++;
+        }
+        if (!this.lineHasText && /\S/.test(ch)) this.lineHasText = true;
+      }
+    }
+  }
+
+  private endLine(): void {
+    if (this.lineHasText && this.counts.length < linesJudged) this.counts.push(this.fields);
+    this.fields = [1, 1, 1];
+    this.quoted = false;
+    this.lineHasText = false;
+  }
 }
 
 const extensionsOf: Record<AcceptedMediaType, string[]> = {

@@ -6,6 +6,7 @@ import type { DataSource } from 'typeorm';
 import type { Config } from '../config';
 import type { Role } from '../../shared/auth/permissions';
 import { defaultLogger, safeError, type Logger } from '../log';
+import { poolOf } from '../db/prepared';
 
 /** What a signed-in session holds. */
 export interface SessionAuth {
@@ -55,16 +56,21 @@ type PgStoreClass = ReturnType<typeof connectPgSimple>;
  * a save never writes an id found there, so a late save cannot bring an ended session back.
  */
 function endedSessionAwareStore(Base: PgStoreClass, pool: Pool, maxAgeMs: number, touchStepMs: number) {
-  /** The expiry stored for a session id when a request read it, until that request touches it. */
+  /**
+   * The expiry last known to be stored for a session id: as read by each request, and as written by
+   * a touch. It is kept after a touch (not forgotten), so that of several requests of one session in
+   * flight at once (a page loading its data in parallel) only the first writes a moved expiry.
+   */
   const storedExpiry = new Map<string, number>();
   const remember = (sid: string, expiresMs: number) => {
-    if (storedExpiry.size > 100_000) storedExpiry.clear(); // requests that never finished: forget them all
+    if (storedExpiry.size > 100_000) storedExpiry.clear(); // one entry per recent session: a bound, then start again
     storedExpiry.set(sid, expiresMs);
   };
   return class EndedSessionAwareStore extends Base {
     override get(sid: string, fn: (err: unknown, sess?: session.SessionData | null) => void): void {
       pool
-        .query(`SELECT sess, extract(epoch FROM expire) * 1000 AS expire_ms FROM http_session WHERE sid = $1 AND expire >= now()`, [sid])
+        // Read on every request: a named statement, planned once per pooled connection.
+        .query({ name: 'isobar_session_read', text: `SELECT sess, extract(epoch FROM expire) * 1000 AS expire_ms FROM http_session WHERE sid = $1 AND expire >= now()`, values: [sid] })
         .then(
           ({ rows: [row] }) => {
             if (!row) return fn(null, null);
@@ -88,12 +94,16 @@ function endedSessionAwareStore(Base: PgStoreClass, pool: Pool, maxAgeMs: number
      */
     override touch(sid: string, sess: session.SessionData, fn?: Callback): void {
       const known = storedExpiry.get(sid);
-      storedExpiry.delete(sid);
       const next = sess.cookie?.expires ? new Date(sess.cookie.expires).getTime() : Date.now() + maxAgeMs;
       if (known !== undefined && next - known < touchStepMs) return fn?.();
-      pool
-        .query(`UPDATE http_session SET expire = to_timestamp($1) WHERE sid = $2`, [next / 1000, sid])
-        .then(() => fn?.(), (err) => fn?.(err));
+      remember(sid, next); // the requests of this session that follow need not write it again
+      pool.query(`UPDATE http_session SET expire = to_timestamp($1) WHERE sid = $2`, [next / 1000, sid]).then(
+        () => fn?.(),
+        (err) => {
+          storedExpiry.delete(sid); // not written: the next request tries again
+          fn?.(err);
+        },
+      );
     }
 
     override set(sid: string, sess: session.SessionData, fn?: Callback): void {
@@ -135,10 +145,6 @@ function endedSessionAwareStore(Base: PgStoreClass, pool: Pool, maxAgeMs: number
   };
 }
 
-/** The pg pool TypeORM already holds, so sessions need no second pool. */
-function poolOf(dataSource: DataSource): Pool {
-  return (dataSource.driver as unknown as { master: Pool }).master;
-}
 
 /**
  * Sessions in PostgreSQL: HttpOnly, SameSite=Lax cookie (Lax, not Strict, so the provider's redirect

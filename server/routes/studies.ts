@@ -2,7 +2,7 @@ import type { Request } from 'express';
 import type { DataSource } from 'typeorm';
 import { createStudySchema, patchStudySchema } from '../../shared/study/schema';
 import { worklistQuerySchema } from '../../shared/study/worklist';
-import { auditContext, recordAudit } from '../audit/audit';
+import { auditContext } from '../audit/audit';
 import { attachFile } from '../attachments/attach-file';
 import { readAttachment } from '../attachments/read-attachment';
 import { removeAttachment } from '../attachments/remove-attachment';
@@ -17,7 +17,7 @@ import { editStudy } from '../studies/edit-study';
 import { listOperators } from '../studies/list-operators';
 import { openStudy } from '../studies/open-study';
 import { readStudy } from '../studies/read-study';
-import { listStudies } from '../studies/worklist';
+import { worklistPageJson } from '../studies/worklist';
 
 const uuidPattern = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 const idOf = (req: Request) => {
@@ -38,10 +38,9 @@ export function studyRoutes({ config, dataSource, storage }: { config: Config; d
       handlers: [
         async (req, res) => {
           const query = parseOrThrow(worklistQuerySchema, req.query, 'The worklist query');
-          const page = await listStudies(dataSource, query);
-          // The ids shown, so "who saw this patient" has an answer, not only the filters used.
-          await recordAudit(dataSource, { ...auditContext(req), action: 'search', entityType: 'study', outcome: 'success', detail: { ...query, returned: page.items.length, studyIds: page.items.map((s) => s.id) } });
-          res.json(page);
+          // Audited in the same statement: the filters and the ids shown, so "who saw this patient"
+          // has an answer, not only the filters used.
+          res.type('application/json').send(await worklistPageJson(dataSource, query, auditContext(req)));
         },
       ],
     },

@@ -1,5 +1,8 @@
 import { describe, expect, it } from 'vitest';
-import { cleanFileName, detectMediaType, nameDisagreesWith } from '../../server/attachments/content-type';
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import { cleanFileName, detectMediaType, detectMediaTypeOfFile, looksLikeCsvInPieces, nameDisagreesWith } from '../../server/attachments/content-type';
 
 // File signatures: PDF "%PDF-" (ISO 32000-1 §7.5.2), PNG 89 50 4E 47 0D 0A 1A 0A (PNG specification §5.2),
 // JPEG SOI FF D8 FF (ITU T.81 / JFIF); CSV by its structure (RFC 4180).
@@ -27,6 +30,45 @@ describe('detectMediaType judges by content', () => {
     ['empty', Buffer.alloc(0)],
   ])('refuses %s', async (_n, bytes) => {
     await expect(detectMediaType(bytes)).resolves.toBeNull();
+  });
+});
+
+// A file is judged in chunks (so a large export is never held whole): every split of a text must get
+// the answer the whole text gets, including splits inside a UTF-8 sequence, a CRLF, a BOM or markup.
+describe('CSV judged in pieces', () => {
+  const cases: [string, Buffer, boolean][] = [
+    ['CSV with CRLF lines and quotes', Buffer.from('time_s,pa,pd\r\n0.00,92,88\r\n0.01,93,"8,8"\r\n'), true],
+    ['CSV with two BOMs and leading blank lines', Buffer.from('\uFEFF\uFEFF\n  \nt;pa\n0;92\n'), true],
+    ['CSV with accented text (two-byte UTF-8)', Buffer.from('Vaisseau,Média\nIVA,0.81\nCx,0.92\n'), true],
+    ['markup after white space', Buffer.from('  \n <html>a,b\n1,2\n'), false],
+    ['markup in a later line', Buffer.from('a,b\n1,2\n3,< Script >\n'), false],
+    ['a look-alike that is not markup', Buffer.from('a,b\n1,<scripted\n2,x\n'), true],
+    ['a control character at the end', Buffer.from('a,b\n1,2\n3,4\u0007'), false],
+    ['ragged lines', Buffer.from('a,b,c\n1,2\n3\n'), false],
+    ['UTF-8 cut short at the end', Buffer.concat([Buffer.from('a,b\n1,2\n3,'), Buffer.from([0xc3])]), false],
+  ];
+  it.each(cases)('%s: the same answer for every split point', (_n, bytes, expected) => {
+    expect(looksLikeCsvInPieces([bytes])).toBe(expected);
+    for (let i = 0; i <= bytes.length; i++) {
+      expect(looksLikeCsvInPieces([bytes.subarray(0, i), bytes.subarray(i)]), `split at ${i}`).toBe(expected);
+    }
+    expect(looksLikeCsvInPieces([...bytes].map((b) => Buffer.from([b]))), 'one byte at a time').toBe(expected);
+  });
+
+  it('judges a file larger than one chunk, with only its first 20 non-empty lines counted', async () => {
+    const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'csv-judge-'));
+    try {
+      const file = path.join(dir, 'trace');
+      // 20 lines of three fields, then ragged lines beyond the first 20 (not counted), over ~200 kB.
+      const text = 'a,b,c\n'.repeat(20) + '1,2\n'.repeat(50_000);
+      fs.writeFileSync(file, text);
+      const bytes = Buffer.from(text);
+      await expect(detectMediaTypeOfFile(file, bytes.subarray(0, 4100))).resolves.toBe('text/csv');
+      fs.writeFileSync(file, text + '<svg>\n');
+      await expect(detectMediaTypeOfFile(file, bytes.subarray(0, 4100))).resolves.toBeNull();
+    } finally {
+      fs.rmSync(dir, { recursive: true, force: true });
+    }
   });
 });
 
