@@ -1,7 +1,7 @@
 import type { Request } from 'express';
 import type { DataSource } from 'typeorm';
 import { addCodeSchema, codeExportQuerySchema, codingQueueQuerySchema, completeReviewSchema, decideCodeSchema } from '../../shared/coding/review';
-import { auditContext, recordAudit } from '../audit/audit';
+import { auditContext } from '../audit/audit';
 import { NotFoundError } from '../http/problem';
 import type { ApiRoute } from '../http/routes';
 import { parseOrThrow } from '../http/validate';
@@ -9,10 +9,10 @@ import type { CodingActor } from '../coding/actor';
 import { addCode } from '../coding/add-code';
 import { completeReview } from '../coding/complete-review';
 import { decideCode } from '../coding/decide-code';
-import { codesToCsv, exportCodes } from '../coding/export-codes';
-import { listQueue } from '../coding/list-queue';
-import { loadReview } from '../coding/load-review';
-import { sqlOf } from '../coding/sql';
+import { codesToCsv } from '../coding/export-codes';
+import { exportReviewedCodes } from '../coding/export-reviewed-codes';
+import { readReview } from '../coding/read-review';
+import { searchCodingQueue } from '../coding/search-queue';
 
 const uuidPattern = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 const studyIdOf = (req: Request) => {
@@ -36,9 +36,7 @@ export function codingRoutes({ dataSource }: { dataSource: DataSource }): ApiRou
       handlers: [
         async (req, res) => {
           const query = parseOrThrow(codingQueueQuerySchema, req.query, 'The queue query');
-          const items = await listQueue(sqlOf(dataSource), query);
-          await recordAudit(dataSource, { ...auditContext(req), action: 'search', entityType: 'study', outcome: 'success', detail: { queue: 'coding', ...query, returned: items.length } });
-          res.json({ items });
+          res.json({ items: await searchCodingQueue(dataSource, query, auditContext(req)) });
         },
       ],
     },
@@ -49,10 +47,7 @@ export function codingRoutes({ dataSource }: { dataSource: DataSource }): ApiRou
       summary: "A study's code review: suggestions with their rule and reason, decisions, the signed report, changes since the previous version",
       handlers: [
         async (req, res) => {
-          const id = studyIdOf(req);
-          const review = await loadReview(sqlOf(dataSource), id);
-          await recordAudit(dataSource, { ...auditContext(req), action: 'read', entityType: 'study', entityId: id, outcome: 'success', detail: { view: 'coding' } });
-          res.json(review);
+          res.json(await readReview(dataSource, studyIdOf(req), auditContext(req)));
         },
       ],
     },
@@ -103,8 +98,7 @@ export function codingRoutes({ dataSource }: { dataSource: DataSource }): ApiRou
       handlers: [
         async (req, res) => {
           const { from, to, format } = parseOrThrow(codeExportQuerySchema, req.query, 'The export query');
-          const rows = await exportCodes(sqlOf(dataSource), from, to);
-          await recordAudit(dataSource, { ...auditContext(req), action: 'export', entityType: 'study-coding', outcome: 'success', detail: { from, to, format, codes: rows.length } });
+          const rows = await exportReviewedCodes(dataSource, { from, to, format }, auditContext(req));
           if (format === 'json') {
             res.json({ from, to, items: rows });
             return;

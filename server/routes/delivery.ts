@@ -2,13 +2,13 @@ import type { Request } from 'express';
 import type { DataSource } from 'typeorm';
 import { z } from 'zod';
 import { deliveryStatuses } from '../../shared/delivery/status';
-import { auditContext, recordAudit } from '../audit/audit';
+import { auditContext } from '../audit/audit';
 import { NotFoundError } from '../http/problem';
 import type { ApiRoute } from '../http/routes';
 import { parseOrThrow } from '../http/validate';
 import { listDeliveriesNeedingAttention } from '../ehr/list-deliveries';
 import { readStudyDeliveries } from '../ehr/read-study-deliveries';
-import { resendDelivery } from '../ehr/resend-delivery';
+import { requestResend } from '../ehr/request-resend';
 
 const uuidPattern = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 const idOf = (req: Request) => {
@@ -56,9 +56,7 @@ export function deliveryRoutes({ dataSource }: { dataSource: DataSource }): ApiR
       handlers: [
         async (req, res) => {
           const id = idOf(req);
-          const context = auditContext(req);
-          const { previousStatus } = await resendDelivery(dataSource, id, context.actorUserId ?? null);
-          await recordAudit(dataSource, { ...context, action: 'update', entityType: 'report-delivery', entityId: id, outcome: 'success', detail: { resend: true, previousStatus } });
+          await requestResend(dataSource, id, auditContext(req));
           res.status(202).json({ reportVersionId: id, status: 'queued' });
         },
       ],

@@ -1,8 +1,8 @@
 import type { DataSource } from 'typeorm';
 import type { Config } from '../config';
 import type { ApiRoute } from '../http/routes';
-import { auditContext, recordAudit } from '../audit/audit';
-import { listCaughtMail } from '../mail/caught-mail';
+import { auditContext } from '../audit/audit';
+import { readCaughtMail } from '../mail/read-caught-mail';
 
 /** Development aid: what the local mail stand-in caught. Not found where the stand-in is not in use. */
 export function mailRoutes({ config, dataSource }: { config: Config; dataSource: DataSource }): ApiRoute[] {
@@ -14,9 +14,7 @@ export function mailRoutes({ config, dataSource }: { config: Config; dataSource:
       summary: 'Mail caught by the local mail stand-in, newest first (development and tests only)',
       handlers: [
         async (req, res) => {
-          const result = await listCaughtMail(config.mail.caughtMailUrl);
-          await recordAudit(dataSource, { ...auditContext(req), action: 'search', entityType: 'mail', outcome: 'success', detail: { view: 'caught-mail', returned: result.items.length } });
-          res.json(result);
+          res.json(await readCaughtMail(dataSource, config.mail.caughtMailUrl, auditContext(req)));
         },
       ],
     },

@@ -1,7 +1,7 @@
 import type { DataSource } from 'typeorm';
 import { auditContext, recordAudit } from '../audit/audit';
 import type { ApiRoute } from '../http/routes';
-import { listAwaitingSignature } from '../studies/awaiting-signature';
+import { readAwaitingSignature } from '../studies/read-awaiting-signature';
 import { listUsers } from '../users/list-users';
 import { awaitingSignature } from '../turnaround/awaiting-signature';
 import { turnaroundSettings } from '../turnaround/settings';
@@ -16,10 +16,7 @@ export function recordRoutes({ dataSource }: { dataSource: DataSource }): ApiRou
       summary: 'Studies awaiting signature, oldest first: those you operated, and all of them',
       handlers: [
         async (req, res) => {
-          const result = await listAwaitingSignature(dataSource, req.session.auth!.userId);
-          const studyIds = [...new Set([...result.mine.items, ...result.all.items].map((s) => s.id))];
-          await recordAudit(dataSource, { ...auditContext(req), action: 'search', entityType: 'study', outcome: 'success', detail: { view: 'awaiting-my-signature', returned: studyIds.length, studyIds } });
-          res.json(result);
+          res.json(await readAwaitingSignature(dataSource, req.session.auth!.userId, auditContext(req)));
         },
       ],
     },

@@ -1,7 +1,7 @@
 import express, { type Request } from 'express';
 import type { DataSource } from 'typeorm';
 import { z } from 'zod';
-import { auditContext, recordAudit } from '../audit/audit';
+import { auditContext } from '../audit/audit';
 import type { Config } from '../config';
 import { NotFoundError } from '../http/problem';
 import type { ApiRoute } from '../http/routes';
@@ -9,10 +9,10 @@ import { parseOrThrow } from '../http/validate';
 import { changeStudyState } from '../reports/change-study-state';
 import { exportReportPdf } from '../reports/export-report-pdf';
 import { ReauthenticationRequiredError } from '../reports/errors';
-import { previewStudyReport } from '../reports/preview-report';
+import { identifyReport } from '../reports/identify-report';
+import { readReportPreview } from '../reports/read-report-preview';
 import { signStudy } from '../reports/sign-study';
 import { SIGNING_SLOTS, slots } from '../reports/signing-slots';
-import { verifyReport } from '../reports/verify-report';
 
 const uuidPattern = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 const idParam = (req: Request, what = 'study') => {
@@ -46,9 +46,7 @@ export function reportRoutes({ config, dataSource }: { config: Config; dataSourc
         async (req, res) => {
           const id = idParam(req);
           const query = parseOrThrow(previewQuerySchema, req.query, 'The address');
-          const preview = await previewStudyReport(dataSource, id, req.session.auth!.role, config.hospital, query.thresholds ?? 'original');
-          await recordAudit(dataSource, { ...auditContext(req), action: 'read', entityType: 'study', entityId: id, outcome: 'success', detail: { view: 'report' } });
-          res.json(preview);
+          res.json(await readReportPreview(dataSource, id, { role: req.session.auth!.role, hospital: config.hospital, thresholds: query.thresholds ?? 'original', actor: auditContext(req) }));
         },
       ],
     },
@@ -121,9 +119,7 @@ export function reportRoutes({ config, dataSource }: { config: Config; dataSourc
         express.raw({ type: 'application/pdf', limit: config.attachments.maxBytes }),
         async (req, res) => {
           const evidence = Buffer.isBuffer(req.body) ? { pdf: req.body } : parseOrThrow(verifySchema, req.body);
-          const result = await verifyReport(dataSource, evidence);
-          await recordAudit(dataSource, { ...auditContext(req), action: 'verify', entityType: 'study', entityId: result.studyId ?? null, outcome: 'success', detail: { found: result.found } });
-          res.json(result);
+          res.json(await identifyReport(dataSource, evidence, auditContext(req)));
         },
       ],
     },

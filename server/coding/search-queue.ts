@@ -1,0 +1,13 @@
+import type { DataSource } from 'typeorm';
+import type { CodingQueueQuery, QueueItem } from '../../shared/coding/review';
+import { recordAudit } from '../audit/audit';
+import type { AuditActor } from '../studies/repository';
+import { listQueue } from './list-queue';
+import { sqlOf } from './sql';
+
+/** The coding queue under the filters, the search recorded in the audit trail. */
+export async function searchCodingQueue(dataSource: DataSource, query: CodingQueueQuery, actor: AuditActor): Promise<QueueItem[]> {
+  const items = await listQueue(sqlOf(dataSource), query);
+  await recordAudit(dataSource, { ...actor, action: 'search', entityType: 'study', outcome: 'success', detail: { queue: 'coding', ...query, returned: items.length } });
+  return items;
+}

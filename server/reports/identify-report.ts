@@ -1,0 +1,11 @@
+import type { DataSource } from 'typeorm';
+import { recordAudit } from '../audit/audit';
+import type { AuditActor } from '../studies/repository';
+import { verifyReport, type Verification } from './verify-report';
+
+/** Which study and version a PDF or a printed fingerprint is; the check is recorded in the audit trail. */
+export async function identifyReport(dataSource: DataSource, evidence: { pdf?: Buffer; fingerprint?: string }, actor: AuditActor): Promise<Verification> {
+  const result = await verifyReport(dataSource, evidence);
+  await recordAudit(dataSource, { ...actor, action: 'verify', entityType: 'study', entityId: result.studyId ?? null, outcome: 'success', detail: { found: result.found } });
+  return result;
+}
