@@ -66,6 +66,23 @@ describe('a study record and its analysis become the coding input', () => {
     expect(r.warnings.find((w) => w.code === 'encounter-not-recorded')?.blocking).toBe(true);
   });
 
+  it.each([
+    { agent: 'adenosine', vessel: 'LAD', counts: true, note: null },
+    { agent: 'papaverine', vessel: 'LAD', counts: true, note: null },
+    { agent: 'other', vessel: 'LAD', counts: true, note: null },
+    { agent: 'none', vessel: 'LAD', counts: false, note: 'hyperemic-agent-none' },
+    { agent: null, vessel: 'LAD', counts: false, note: 'hyperemic-agent-not-recorded' },
+    { agent: 'adenosine', vessel: 'RCA (resting ratio only)', counts: false, note: null },
+  ] as const)(
+    'agent $agent, $vessel → hyperaemic drug counts: $counts — the drug counts for a vessel when the study\'s agent was given and that vessel has hyperaemic measurements (CPT 93571/93572 "pharmacologically induced stress" wording [memory])',
+    ({ agent, vessel, counts, note }) => {
+      const input = map(study({ agent, vessels: [vessel === 'LAD' ? ladFull() : rcaResting()] }));
+      expect(input.physiology[0].hyperemicAgent).toBe(counts);
+      const codes = (input.notes ?? []).map((n) => n.code).filter((c) => c.startsWith('hyperemic-agent'));
+      expect(codes).toEqual(note ? [note] : []);
+    },
+  );
+
   it('hyperaemic data with no agent recorded: not counted as hyperaemic, with a note — common practice', () => {
     const input = map(study({ agent: null, vessels: [ladFull()] }));
     expect(input.physiology[0].hyperemicAgent).toBe(false);
