@@ -273,6 +273,26 @@ describe('the coding queue and a study review', () => {
     ]);
   });
 
+  it.each([
+    // CPT Category I: five digits (AMA CPT code structure); 93463 is the drug-with-haemodynamics code [memory].
+    { system: 'CPT', good: '93463', modifiers: ['26'], bad: '9346' },
+    // HCPCS Level II: a letter and four digits (CMS HCPCS Level II code structure); C9600 drug-eluting stent [memory].
+    { system: 'HCPCS', good: 'C9600', modifiers: ['LD'], bad: 'C96000' },
+    // ICD-10-CM: letter, digit, letter or digit, then a point and up to four more (CMS ICD-10-CM conventions); Z95.5 coronary stent present [memory].
+    { system: 'ICD-10-CM', good: 'Z95.5', modifiers: [], bad: 'Z9' },
+    // ICD-10-PCS: seven characters without I or O (CMS ICD-10-PCS conventions); 4A033BC coronary pressure measurement [memory — check against the CMS PCS tables].
+    { system: 'ICD-10-PCS', good: '4A033BC', modifiers: [], bad: '4A033IC' },
+  ] as const)('adds a missed $system code, checked against its system\'s format with a message naming it', async ({ system, good, modifiers, bad }) => {
+    const { record } = await signedStudy();
+    const r = await review(record.id);
+    const refused = await post(`/api/coding/studies/${record.id}/codes`, coder, { setId: r.set.id, system, code: bad, units: 1, modifiers, reason: 'Missed by the suggestions' }).expect(400);
+    expect(refused.body.errors).toEqual([{ pointer: '/code', detail: expect.stringContaining(`${system} codes are`) }]);
+    const added = (await post(`/api/coding/studies/${record.id}/codes`, coder, { setId: r.set.id, system, code: good, units: 1, modifiers, reason: 'Missed by the suggestions' }).expect(201)).body as ReviewView;
+    expect(added.lines.at(-1)).toMatchObject({ origin: 'added', system, code: good, modifiers, final: { system, code: good, units: 1, modifiers }, decision: { decision: 'add' } });
+    // A physician cannot add one.
+    await post(`/api/coding/studies/${record.id}/codes`, physician, { setId: r.set.id, system, code: good, units: 1, modifiers, reason: 'Missed by the suggestions' }).expect(403);
+  });
+
   it('refuses to complete while a blocking warning stands, even with every code decided', async () => {
     const { record } = await signedStudy(sections({ patientClass: null }));
     let r = await review(record.id);
