@@ -27,14 +27,16 @@ export interface ExportedCode {
  * per code as it is reported — accepted, edited (the edit), added; rejected codes are not codes.
  */
 export async function exportCodes(sql: Sql, from: string, to: string): Promise<ExportedCode[]> {
+  // Days (of completion and of service) are the lab's, in its time zone (UTC until the lab sets one).
   const reviews = await sql(
-    `SELECT r.current_set_id, r.completer_name, r.completed_at, cs.version_no, s.accession, p.mrn, p.family_name, p.given_name,
-            to_char(s.procedure_started_at AT TIME ZONE 'UTC', 'YYYY-MM-DD') AS date_of_service
-     FROM coding_review r
+    `WITH lab AS (SELECT coalesce((SELECT time_zone FROM lab_settings WHERE id = 1), 'UTC') AS tz)
+     SELECT r.current_set_id, r.completer_name, r.completed_at, cs.version_no, s.accession, p.mrn, p.family_name, p.given_name,
+            to_char(s.procedure_started_at AT TIME ZONE lab.tz, 'YYYY-MM-DD') AS date_of_service
+     FROM lab, coding_review r
      JOIN code_suggestion_set cs ON cs.id = r.current_set_id
      JOIN study s ON s.id = r.study_id
      JOIN patient p ON p.id = s.patient_id
-     WHERE r.status = 'coded' AND r.completed_at >= $1::date AND r.completed_at < $2::date + 1
+     WHERE r.status = 'coded' AND r.completed_at >= ($1::date)::timestamp AT TIME ZONE lab.tz AND r.completed_at < ($2::date + 1)::timestamp AT TIME ZONE lab.tz
      ORDER BY r.completed_at, r.study_id`,
     [from, to],
   );

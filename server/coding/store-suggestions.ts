@@ -25,10 +25,10 @@ const snapshotSchema = z.looseObject({
 });
 
 /** The engine on a signed record: its input and result, or why it could not run. */
-export function suggestFromSnapshot(snapshot: unknown, analysis: unknown): { input: CodingInput | null; result: CodingResult | null; failure: string | null } {
+export function suggestFromSnapshot(snapshot: unknown, analysis: unknown, timeZone?: string): { input: CodingInput | null; result: CodingResult | null; failure: string | null } {
   try {
     const record = snapshotSchema.parse(snapshot) as unknown as StudySections;
-    const input = toCodingInput({ ...record, coding: record.coding ?? emptyStudyCoding() }, analysis as PhysiologyResult);
+    const input = toCodingInput({ ...record, coding: record.coding ?? emptyStudyCoding() }, analysis as PhysiologyResult, { timeZone });
     return { input, result: suggestCodes(input), failure: null };
   } catch (error) {
     const detail = error instanceof z.ZodError ? error.issues.slice(0, 5).map((i) => `${i.path.join('.') || 'record'}: ${i.message}`).join('; ') : String((error as Error)?.message ?? error);
@@ -56,7 +56,9 @@ export async function storeSuggestions(sql: Sql, reportVersionId: string): Promi
   const [existing] = await sql(`SELECT id FROM code_suggestion_set WHERE report_version_id = $1`, [reportVersionId]);
   if (existing) return { setId: existing.id, created: false, queued: false, codes: 0 };
 
-  const { input, result, failure } = suggestFromSnapshot(version.snapshot, version.analysis);
+  // The date of service is the procedure's day in the lab's time zone (UTC until the lab sets one).
+  const [lab] = await sql(`SELECT time_zone FROM lab_settings WHERE id = 1`);
+  const { input, result, failure } = suggestFromSnapshot(version.snapshot, version.analysis, lab?.time_zone ?? 'UTC');
   const [previous] = await sql(
     `SELECT id, input FROM code_suggestion_set WHERE study_id = $1 AND version_no < $2 ORDER BY version_no DESC LIMIT 1`,
     [version.study_id, version.version_no],

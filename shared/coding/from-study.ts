@@ -54,6 +54,18 @@ export const emptyStudyCoding = (): StudyCoding => ({
 });
 
 type Note = NonNullable<CodingInput['notes']>[number];
+
+/**
+ * The date of service: the day the procedure started in the lab's time zone (an IANA name), which
+ * decides the code-set release; without a time zone, the day as the time was written.
+ */
+export function dayOfService(startedAt: string, timeZone?: string): string {
+  if (!timeZone) return startedAt.slice(0, 10);
+  const at = new Date(startedAt);
+  if (Number.isNaN(at.getTime())) return startedAt.slice(0, 10);
+  // en-CA writes dates as YYYY-MM-DD.
+  return new Intl.DateTimeFormat('en-CA', { timeZone, year: 'numeric', month: '2-digit', day: '2-digit' }).format(at);
+}
 const present = (v: number | null | undefined): v is number => typeof v === 'number' && Number.isFinite(v);
 
 /**
@@ -64,6 +76,7 @@ const present = (v: number | null | undefined): v is number => typeof v === 'num
 export function toCodingInput(
   record: Pick<StudySections, 'details' | 'setup' | 'vessels' | 'vasoreactivity'> & { coding: StudyCoding },
   analysis: PhysiologyResult,
+  options: { timeZone?: string } = {},
 ): CodingInput {
   const coding = studyCodingSchema.parse(record.coding);
   const notes: Note[] = [];
@@ -162,7 +175,7 @@ export function toCodingInput(
       microvascularDysfunction: f.microvascular !== null,
       vasospasm: f.vasospasm,
     },
-    dateOfService: record.details.procedureStartedAt ? record.details.procedureStartedAt.slice(0, 10) : null,
+    dateOfService: record.details.procedureStartedAt ? dayOfService(record.details.procedureStartedAt, options.timeZone) : null,
     ...(notes.length ? { notes } : {}),
   };
 }

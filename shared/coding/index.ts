@@ -36,4 +36,4 @@ export { encodedReleases, chooseCodeSets, releaseOf, releaseLabel, releaseSpan }
 export { checkCodeFormat, checkCodeLine, type FormatProblem } from './format';
 export type { Rule } from './rules/rule';
 export { anatomyOf, arteryModifier, majorArteries, type MajorArtery } from './vessels';
-export { studyCodingSchema, emptyStudyCoding, toCodingInput, type StudyCoding } from './from-study';
+export { studyCodingSchema, emptyStudyCoding, toCodingInput, dayOfService, type StudyCoding } from './from-study';

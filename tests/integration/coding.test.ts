@@ -145,6 +145,23 @@ describe('suggest-codes for a signed report version', () => {
     expect(sets).toBe(1);
   });
 
+  it('takes the date of service in the lab\'s time zone: a New Year\'s Eve evening in Chicago is coded with that year\'s CPT release — CPT releases take effect 1 January (AMA)', async () => {
+    const [{ time_zone: before }] = await db.query(`SELECT time_zone FROM lab_settings WHERE id = 1`);
+    await db.query(`UPDATE lab_settings SET time_zone = 'America/Chicago' WHERE id = 1`);
+    try {
+      const base = sections();
+      // 21:00 on 31 December 2024 in Chicago is 03:00 UTC on 1 January 2025.
+      const { record, versionId } = await signedStudy({ ...base, details: { ...base.details!, procedureStartedAt: '2025-01-01T03:00:00.000Z', procedureEndedAt: '2025-01-01T04:00:00.000Z' } });
+      const [set] = await db.query(`SELECT input->>'dateOfService' AS day, code_sets->'CPT'->>'label' AS cpt FROM code_suggestion_set WHERE report_version_id = $1`, [versionId]);
+      expect(set).toEqual({ day: '2024-12-31', cpt: 'CPT 2024' });
+      const [line93458] = await db.query(`SELECT l.code_set FROM code_line l JOIN code_suggestion_set s ON s.id = l.set_id WHERE s.report_version_id = $1 AND l.code = '93458'`, [versionId]);
+      expect(line93458.code_set).toBe('CPT 2024');
+      expect(record.details.procedureStartedAt).toBe('2025-01-01T03:00:00.000Z');
+    } finally {
+      await db.query(`UPDATE lab_settings SET time_zone = $1 WHERE id = 1`, [before]);
+    }
+  });
+
   it('reads a version signed before the coding section existed as nothing recorded: blocking warnings', async () => {
     const record = await recordedStudy(sections());
     const { coding: _none, ...older } = record;
