@@ -6,9 +6,10 @@ import { storeSuggestions } from './store-suggestions';
 const payloadSchema = z.object({ reportVersionId: z.uuid() });
 
 /**
- * `suggest-codes { reportVersionId }`: enqueued in the transaction that signs a report (or an
- * addendum); makes the version's code suggestions and puts the study on the coding queue. Safe to
- * repeat: a version that already has its suggestions is left alone.
+ * `suggest-codes { reportVersionId }`: makes a version's code suggestions and puts the study on the
+ * coding queue. Signing does this itself, inside its transaction (`onReportSigned`); the task stays
+ * for jobs queued before that and for making a version's suggestions again by hand. Safe to repeat:
+ * a version that already has its suggestions is left alone.
  */
 export const codingTasks: TaskList = {
   'suggest-codes': async (payload, helpers) => {

@@ -55,6 +55,7 @@ export const emptyStudyCoding = (): StudyCoding => ({
 });
 
 type Note = NonNullable<CodingInput['notes']>[number];
+
 const present = (v: number | null | undefined): v is number => typeof v === 'number' && Number.isFinite(v);
 
 /**
@@ -90,11 +91,14 @@ export function toCodingInput(
     ...(i.stent !== null && (i.kind === 'stent' || i.kind === 'atherectomy-stent') ? { stent: i.stent } : {}),
   }));
 
+  // A hyperaemic drug counts for a vessel when the study's agent was given (any agent but "none")
+  // and that vessel has hyperaemic measurements.
   const agent = record.setup.hyperemicAgent;
-  const agentGiven = agent === 'adenosine' || agent === 'papaverine';
+  const agentGiven = agent !== null && agent !== 'none';
   const byId = new Map(analysis.vessels.map((v) => [v.id, v]));
   const physiology: CodingInput['physiology'] = [];
   const agentUnknown: string[] = [];
+  const agentNone: string[] = [];
   for (const row of record.vessels) {
     const r = byId.get(row.id);
     if (!r) continue;
@@ -107,10 +111,14 @@ export function toCodingInput(
     const hyperaemicData =
       (present(row.hyperemiaPa) && present(row.hyperemiaPd)) || present(row.consoleFfr) || row.hyperemiaTransit.some(present);
     if (hyperaemicData && agent === null) agentUnknown.push(shortName(row.vessel));
+    if (hyperaemicData && agent === 'none') agentNone.push(shortName(row.vessel));
     physiology.push({ vessel: row.vessel, measured, hyperemicAgent: agentGiven && hyperaemicData });
   }
   if (agentUnknown.length) {
     notes.push({ code: 'hyperemic-agent-not-recorded', message: `Hyperaemic measurements are recorded in ${listNames([...new Set(agentUnknown)])} but the hyperaemic agent is not; they were treated as measured without a hyperaemic drug. Record the agent in the study.` });
+  }
+  if (agentNone.length) {
+    notes.push({ code: 'hyperemic-agent-none', message: `Hyperaemic measurements are recorded in ${listNames([...new Set(agentNone)])} but the study says no hyperaemic agent was given; they were treated as measured without a hyperaemic drug. Check the study.` });
   }
 
   const undecided = record.vessels.filter((v) => v.decision === 'pci');

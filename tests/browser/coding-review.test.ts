@@ -1,3 +1,5 @@
+import fs from 'node:fs';
+import { parse } from 'csv-parse/sync';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Page } from 'playwright-core';
 import type { DataSource } from 'typeorm';
@@ -138,12 +140,23 @@ describe("the coder's review", () => {
       await expect.poll(async () => (await visible(page, 'coding-queue').count()) === 0 || (await visible(page, `queue-row-${study.accession}`).count()) === 0).toBe(true);
       await visible(page, 'queue-status-coded').click();
       await visible(page, `queue-row-${study.accession}`).waitFor();
+
+      // The CSV downloaded from the queue's export (today by default) holds exactly these codes too.
+      const [download] = await Promise.all([page.waitForEvent('download'), visible(page, 'export-csv').click()]);
+      const csv = fs.readFileSync((await download.path())!, 'utf8');
+      const rows: Record<string, string>[] = parse(csv, { columns: true });
+      expect(rows.filter((c) => c.accession === study.accession).map((c) => `${c.system} ${[c.code, ...c.modifiers.split(' ').filter(Boolean)].join('-')} x${c.units} ${c.decision}`)).toEqual([
+        'CPT 93458-26 x1 accept',
+        'CPT 93571-26 x1 accept',
+        'ICD-10-CM I25.10 x1 edit',
+        'ICD-10-CM Z95.5 x1 add',
+      ]);
     } finally {
       await context.close();
     }
   });
 
-  it('on a phone: codes above the report, large targets, and a code accepted', async () => {
+  it('on a phone: codes above the report, large targets, a code accepted and one edited', async () => {
     const study = await signedCodingStudy(db, physicianId, 'Phonecase');
     const context = await browser.context.browser()!.newContext({ viewport: viewports.phone });
     const page = await context.newPage();
@@ -162,6 +175,24 @@ describe("the coder's review", () => {
       await expect.poll(() => visible(page, 'code-93458-26-decision').innerText()).toMatch(/Accepted/);
       await page.screenshot({ path: screenshotPath('coding-review-phone') });
       expect((await stored(study.id)).status).toBe('in-review');
+
+      // Editing on the phone: the form's fields wrap, and its buttons stay inside the code's card.
+      const inside = async (child: string, parent: string) => {
+        const c = (await visible(page, child).boundingBox())!;
+        const p = (await visible(page, parent).boundingBox())!;
+        return c.y >= p.y && c.y + c.height <= p.y + p.height && c.x >= p.x && c.x + c.width <= p.x + p.width;
+      };
+      await visible(page, 'code-I25.119-edit').click();
+      await visible(page, 'code-I25.119-edit-code').fill('I25.10');
+      await visible(page, 'code-I25.119-edit-reason').fill('Angina is not documented in the signed report');
+      await expect.poll(() => inside('code-I25.119-edit-save', 'code-I25.119')).toBe(true);
+      await page.screenshot({ path: screenshotPath('coding-review-phone-edit') });
+      await visible(page, 'code-I25.119-edit-save').click();
+      await expect(visible(page, 'code-I25.119-final').innerText()).resolves.toMatch(/Reported as ICD-10-CM I25\.10/);
+      await visible(page, 'add-code-open').click();
+      await visible(page, 'add-code-system-HCPCS').click();
+      await expect.poll(() => inside('add-code-save', 'add-code')).toBe(true);
+      await visible(page, 'add-code-cancel').click();
     } finally {
       await context.close();
     }

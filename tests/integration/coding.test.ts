@@ -145,6 +145,23 @@ describe('suggest-codes for a signed report version', () => {
     expect(sets).toBe(1);
   });
 
+  it('takes the date of service in the lab\'s time zone: a New Year\'s Eve evening in Chicago is coded with that year\'s CPT release — CPT releases take effect 1 January (AMA)', async () => {
+    const [{ time_zone: before }] = await db.query(`SELECT time_zone FROM lab_settings WHERE id = 1`);
+    await db.query(`UPDATE lab_settings SET time_zone = 'America/Chicago' WHERE id = 1`);
+    try {
+      const base = sections();
+      // 21:00 on 31 December 2024 in Chicago is 03:00 UTC on 1 January 2025.
+      const { record, versionId } = await signedStudy({ ...base, details: { ...base.details!, procedureStartedAt: '2025-01-01T03:00:00.000Z', procedureEndedAt: '2025-01-01T04:00:00.000Z' } });
+      const [set] = await db.query(`SELECT input->>'dateOfService' AS day, code_sets->'CPT'->>'label' AS cpt FROM code_suggestion_set WHERE report_version_id = $1`, [versionId]);
+      expect(set).toEqual({ day: '2024-12-31', cpt: 'CPT 2024' });
+      const [line93458] = await db.query(`SELECT l.code_set FROM code_line l JOIN code_suggestion_set s ON s.id = l.set_id WHERE s.report_version_id = $1 AND l.code = '93458'`, [versionId]);
+      expect(line93458.code_set).toBe('CPT 2024');
+      expect(record.details.procedureStartedAt).toBe('2025-01-01T03:00:00.000Z');
+    } finally {
+      await db.query(`UPDATE lab_settings SET time_zone = $1 WHERE id = 1`, [before]);
+    }
+  });
+
   it('reads a version signed before the coding section existed as nothing recorded: blocking warnings', async () => {
     const record = await recordedStudy(sections());
     const { coding: _none, ...older } = record;
@@ -271,6 +288,26 @@ describe('the coding queue and a study review', () => {
       ...r.lines.filter((l) => l.decision?.decision === 'accept' && l.code !== '93458').map(() => 'accept'),
       'complete',
     ]);
+  });
+
+  it.each([
+    // CPT Category I: five digits (AMA CPT code structure); 93463 is the drug-with-haemodynamics code [memory].
+    { system: 'CPT', good: '93463', modifiers: ['26'], bad: '9346' },
+    // HCPCS Level II: a letter and four digits (CMS HCPCS Level II code structure); C9600 drug-eluting stent [memory].
+    { system: 'HCPCS', good: 'C9600', modifiers: ['LD'], bad: 'C96000' },
+    // ICD-10-CM: letter, digit, letter or digit, then a point and up to four more (CMS ICD-10-CM conventions); Z95.5 coronary stent present [memory].
+    { system: 'ICD-10-CM', good: 'Z95.5', modifiers: [], bad: 'Z9' },
+    // ICD-10-PCS: seven characters without I or O (CMS ICD-10-PCS conventions); 4A033BC coronary pressure measurement [memory — check against the CMS PCS tables].
+    { system: 'ICD-10-PCS', good: '4A033BC', modifiers: [], bad: '4A033IC' },
+  ] as const)('adds a missed $system code, checked against its system\'s format with a message naming it', async ({ system, good, modifiers, bad }) => {
+    const { record } = await signedStudy();
+    const r = await review(record.id);
+    const refused = await post(`/api/coding/studies/${record.id}/codes`, coder, { setId: r.set.id, system, code: bad, units: 1, modifiers, reason: 'Missed by the suggestions' }).expect(400);
+    expect(refused.body.errors).toEqual([{ pointer: '/code', detail: expect.stringContaining(`${system} codes are`) }]);
+    const added = (await post(`/api/coding/studies/${record.id}/codes`, coder, { setId: r.set.id, system, code: good, units: 1, modifiers, reason: 'Missed by the suggestions' }).expect(201)).body as ReviewView;
+    expect(added.lines.at(-1)).toMatchObject({ origin: 'added', system, code: good, modifiers, final: { system, code: good, units: 1, modifiers }, decision: { decision: 'add' } });
+    // A physician cannot add one.
+    await post(`/api/coding/studies/${record.id}/codes`, physician, { setId: r.set.id, system, code: good, units: 1, modifiers, reason: 'Missed by the suggestions' }).expect(403);
   });
 
   it('refuses to complete while a blocking warning stands, even with every code decided', async () => {

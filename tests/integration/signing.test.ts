@@ -88,7 +88,20 @@ describe('report preview and signing', () => {
        WHERE j.payload->>'reportVersionId' = $1 ORDER BY t.identifier`,
       [signed.body.id],
     );
-    expect(jobs.map((j: { identifier: string }) => j.identifier)).toEqual(['deliver-report', 'send-report-notice', 'suggest-codes']);
+    expect(jobs.map((j: { identifier: string }) => j.identifier)).toEqual(['deliver-report', 'send-report-notice']);
+    // The code suggestions were made in the signing transaction itself: stored with their rule ids
+    // when the answer arrives, no job needed, and the study is on the coding queue.
+    const lines = await db.query(
+      `SELECT l.code, l.rule_id FROM code_line l JOIN code_suggestion_set s ON s.id = l.set_id WHERE s.report_version_id = $1 ORDER BY l.position`,
+      [signed.body.id],
+    );
+    expect(lines.length).toBeGreaterThan(0);
+    for (const l of lines) expect(l.rule_id).toMatch(/^[a-z0-9-]+(\.[a-z0-9-]+)+$/);
+    // FFR measured in the LAD: the first-vessel physiology code (CPT 93571 descriptor).
+    expect(lines).toContainEqual({ code: '93571', rule_id: 'cpt.physiology.first-vessel' });
+    const [queued] = await db.query(`SELECT status, queued_at FROM coding_review WHERE study_id = $1`, [study.id]);
+    expect(queued.status).toBe('to-code');
+    expect(new Date(queued.queued_at).toISOString()).toBe(signed.body.signedAt);
     // Verify: by the PDF's bytes and by the printed fingerprint.
     const byPdf = await send('post', '/api/reports/verify', coder).set('Content-Type', 'application/pdf').send(pdf.body).expect(200);
     expect(byPdf.body).toMatchObject({ found: true, studyId: study.id, versionNo: 1, supersededBy: null });
@@ -112,6 +125,9 @@ describe('report preview and signing', () => {
     expect(results.map((r) => r.status).sort()).toEqual([201, 409]);
     const [{ n }] = await db.query(`SELECT count(*)::int AS n FROM report_version WHERE study_id = $1`, [study.id]);
     expect(n).toBe(1);
+    // The refused signature stored no suggestions of its own: one set, for the one version.
+    const [{ sets }] = await db.query(`SELECT count(*)::int AS sets FROM code_suggestion_set WHERE study_id = $1`, [study.id]);
+    expect(sets).toBe(1);
   });
 
   it('changes after signing go through an addendum with a reason, making version 2 that supersedes version 1; edits are refused while signed', async () => {
@@ -127,6 +143,9 @@ describe('report preview and signing', () => {
     expect(v2.body).toMatchObject({ versionNo: 2, status: 'amended' });
     const [row] = await db.query(`SELECT supersedes_id, reason FROM report_version WHERE id = $1`, [v2.body.id]);
     expect(row).toEqual({ supersedes_id: v1.body.id, reason: 'Plan completed' });
+    // The addendum's signature made its own suggestion set, linked to the first version's.
+    const sets = await db.query(`SELECT version_no, previous_set_id IS NOT NULL AS linked FROM code_suggestion_set WHERE study_id = $1 ORDER BY version_no`, [study.id]);
+    expect(sets).toEqual([{ version_no: 1, linked: false }, { version_no: 2, linked: true }]);
     const verify = await send('post', '/api/reports/verify', coder).send({ fingerprint: v1.body.contentSha256 }).expect(200);
     expect(verify.body.supersededBy).toMatchObject({ versionNo: 2 });
   });

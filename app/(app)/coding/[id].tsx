@@ -1,5 +1,5 @@
 import { useState } from 'react';
-import { Pressable, ScrollView, StyleSheet, TextInput, View } from 'react-native';
+import { Platform, Pressable, ScrollView, StyleSheet, TextInput, View, useWindowDimensions, type ViewStyle } from 'react-native';
 import { Link, useLocalSearchParams } from 'expo-router';
 import { Center, Content, useIsWide } from '../../../components/ui/layout';
 import { ErrorState, LoadingState } from '../../../components/ui/async-states';
@@ -43,6 +43,8 @@ export default function CodingReviewPage() {
   const review = useCodingReview(id);
   const me = useMeQuery();
   const wide = useIsWide();
+  // On a large screen the report gets half the width, enough for its fixed-width tables.
+  const roomy = useWindowDimensions().width >= 1280;
   if (review.isPending || !me.data) {
     return (
       <Content>
@@ -64,15 +66,15 @@ export default function CodingReviewPage() {
   const r = review.data;
   const mayReview = can(me.data.role, 'coding:review') && r.status !== 'coded';
   const codes = <Codes review={r} mayReview={mayReview} />;
-  const report = <Report review={r} />;
+  const report = <Report review={r} beside={wide} fixedWidth={wide && roomy} />;
   return (
     <Content>
       <Center style={{ gap: space.xl }}>
         <Header review={r} />
         {wide ? (
           <View style={styles.panes}>
-            <View style={styles.codesPane}>{codes}</View>
-            <View style={styles.reportPane}>{report}</View>
+            <View style={[styles.codesPane, roomy && styles.half]}>{codes}</View>
+            <View style={[styles.reportPane, roomy && styles.half, stickyOnWeb]}>{report}</View>
           </View>
         ) : (
           <>
@@ -286,7 +288,7 @@ function CodeCard({ line: l, review: r, mayReview }: { line: ReviewLine; review:
     <View role="listitem" aria-label={name} style={[styles.card, decision === 'reject' && styles.cardRejected]} testID={tid}>
       <View style={styles.cardHead}>
         <View style={styles.codeTitle}>
-          <Text variant="lead" weight="bold" style={decision === 'reject' ? styles.struck : undefined}>
+          <Text variant="lead" weight="bold" style={decision === 'reject' || decision === 'edit' ? styles.struck : undefined} aria-label={decision === 'edit' ? `Suggested ${name}, edited` : undefined}>
             {l.system} {lineLabel(l)}
           </Text>
           {l.addOn ? (
@@ -321,9 +323,14 @@ function CodeCard({ line: l, review: r, mayReview }: { line: ReviewLine; review:
         </Text>
       ) : null}
       {decision === 'edit' && l.final ? (
-        <Text variant="caption" weight="medium" testID={`${tid}-final`}>
-          Reported as {l.system} {lineLabel(l.final)} — {l.decision!.reason}
-        </Text>
+        <View style={styles.finalBox} testID={`${tid}-final`}>
+          <Text weight="bold">
+            Reported as {l.system} {lineLabel(l.final)}
+          </Text>
+          <Text variant="caption" tone="muted">
+            Edited: {l.decision!.reason}
+          </Text>
+        </View>
       ) : null}
       {(decision === 'reject' || decision === 'add') && l.decision?.reason ? (
         <Text variant="caption" tone="muted">
@@ -350,9 +357,9 @@ function CodeCard({ line: l, review: r, mayReview }: { line: ReviewLine; review:
       {mayReview && mode === 'edit' ? (
         <View style={styles.form} role="group" aria-label={`Edit ${name}`}>
           <View style={styles.fieldRow}>
-            <Field label={`${l.system} code`} value={code} onChange={setCode} error={problems.code} testID={`${tid}-edit-code`} autoFocus />
-            <Field label="Units" value={units} onChange={setUnits} error={problems.units} testID={`${tid}-edit-units`} numeric />
-            <Field label="Modifiers" hint="Separated by commas, e.g. 26, XU" value={modifiers} onChange={setModifiers} error={problems.modifiers} testID={`${tid}-edit-modifiers`} />
+            <Field label={`${l.system} code`} value={code} onChange={setCode} error={problems.code} testID={`${tid}-edit-code`} inRow autoFocus />
+            <Field label="Units" value={units} onChange={setUnits} error={problems.units} testID={`${tid}-edit-units`} inRow numeric />
+            <Field label="Modifiers" hint="Separated by commas, e.g. 26, XU" value={modifiers} onChange={setModifiers} error={problems.modifiers} testID={`${tid}-edit-modifiers`} inRow />
           </View>
           <Field label="Reason for the edit" value={reason} onChange={setReason} error={problems.reason} testID={`${tid}-edit-reason`} multiline />
           <FormError message={problems.form} />
@@ -436,9 +443,9 @@ function AddCode({ review: r }: { review: ReviewView }) {
         ))}
       </View>
       <View style={styles.fieldRow}>
-        <Field label={`${system} code`} value={code} onChange={setCode} error={problems.code} testID="add-code-code" autoFocus />
-        <Field label="Units" value={units} onChange={setUnits} error={problems.units} testID="add-code-units" numeric />
-        <Field label="Modifiers" hint="Separated by commas" value={modifiers} onChange={setModifiers} error={problems.modifiers} testID="add-code-modifiers" />
+        <Field label={`${system} code`} value={code} onChange={setCode} error={problems.code} testID="add-code-code" inRow autoFocus />
+        <Field label="Units" value={units} onChange={setUnits} error={problems.units} testID="add-code-units" inRow numeric />
+        <Field label="Modifiers" hint="Separated by commas" value={modifiers} onChange={setModifiers} error={problems.modifiers} testID="add-code-modifiers" inRow />
       </View>
       <Field label="Reason for adding it" value={reason} onChange={setReason} error={problems.reason} testID="add-code-reason" multiline />
       <FormError message={problems.form} />
@@ -460,6 +467,7 @@ function Field({
   numeric = false,
   multiline = false,
   autoFocus = false,
+  inRow = false,
 }: {
   label: string;
   value: string;
@@ -470,9 +478,11 @@ function Field({
   numeric?: boolean;
   multiline?: boolean;
   autoFocus?: boolean;
+  /** Sits in a wrapping row of fields (shares the width); otherwise it takes the form's width. */
+  inRow?: boolean;
 }) {
   return (
-    <View style={[styles.field, multiline && styles.fieldWide]}>
+    <View style={[styles.field, inRow && styles.fieldInRow]}>
       <Text variant="caption" weight="medium" nativeID={`${testID}-label`}>
         {label}
       </Text>
@@ -513,7 +523,17 @@ function FormError({ message }: { message?: string }) {
   );
 }
 
-function Report({ review: r }: { review: ReviewView }) {
+/**
+ * The signed report: beside the codes (its own scrolling box, kept in view) on a wide screen; in the
+ * page's flow, whole, below the codes on a phone. Its plain text is laid out in fixed-width columns,
+ * shown in a fixed-width font where the pane is wide enough for them.
+ */
+function Report({ review: r, beside, fixedWidth }: { review: ReviewView; beside: boolean; fixedWidth: boolean }) {
+  const text = (
+    <Text variant="caption" selectable style={fixedWidth ? styles.narrative : undefined} testID="review-report-text">
+      {r.report.narrativeText}
+    </Text>
+  );
   return (
     <View style={[styles.box, styles.report]} testID="review-report">
       <Text weight="semibold" role="heading" aria-level={2}>
@@ -524,11 +544,13 @@ function Report({ review: r }: { review: ReviewView }) {
           Addendum: {r.report.reason}
         </Text>
       ) : null}
-      <ScrollView style={styles.reportScroll} nestedScrollEnabled>
-        <Text variant="caption" selectable>
-          {r.report.narrativeText}
-        </Text>
-      </ScrollView>
+      {beside ? (
+        <ScrollView style={styles.reportScroll} nestedScrollEnabled>
+          {text}
+        </ScrollView>
+      ) : (
+        text
+      )}
     </View>
   );
 }
@@ -540,6 +562,7 @@ const styles = StyleSheet.create({
   panes: { flexDirection: 'row', gap: space.xl, alignItems: 'flex-start' },
   codesPane: { flex: 3, minWidth: 0 },
   reportPane: { flex: 2, minWidth: 0 },
+  half: { flex: 1 },
   stack: { gap: space.md },
   caution: { borderLeftWidth: 3, borderLeftColor: color.accent, backgroundColor: color.accentSoft, borderRadius: radius.sm, padding: space.md, gap: space.xs },
   box: { backgroundColor: color.surface, borderRadius: radius.lg, borderWidth: 1, borderColor: color.line, padding: space.lg, gap: space.sm },
@@ -558,13 +581,19 @@ const styles = StyleSheet.create({
   actions: { flexDirection: 'row', flexWrap: 'wrap', gap: space.sm },
   form: { gap: space.md, paddingTop: space.sm },
   fieldRow: { flexDirection: 'row', flexWrap: 'wrap', gap: space.md },
-  field: { gap: space.xs, flexGrow: 1, flexBasis: 140 },
-  fieldWide: { flexBasis: '100%' },
+  field: { gap: space.xs },
+  // Only inside a row: a flex basis in the form's column would be a height, and the card would not hold its buttons.
+  fieldInRow: { flexGrow: 1, flexBasis: 140 },
   input: { minHeight: touchTarget, borderWidth: 1, borderColor: color.inkFaint, borderRadius: radius.md, backgroundColor: color.surface, paddingHorizontal: space.md, fontFamily: font.regular, fontSize: type.body.fontSize, color: color.ink },
   multiline: { minHeight: 80, paddingVertical: space.sm, textAlignVertical: 'top' },
   inputBad: { borderColor: color.abnormal, borderWidth: 2 },
   chip: { minHeight: touchTarget, justifyContent: 'center', paddingHorizontal: space.md, borderRadius: radius.md, borderWidth: 1, borderColor: color.line, backgroundColor: color.surface },
   chipSelected: { backgroundColor: color.brand, borderColor: color.brand },
+  finalBox: { borderLeftWidth: 3, borderLeftColor: color.brand, paddingLeft: space.sm, gap: space.xxs },
   report: {},
-  reportScroll: { maxHeight: 640 },
+  narrative: { fontFamily: Platform.select({ web: 'ui-monospace, Menlo, Consolas, "Liberation Mono", monospace', ios: 'Menlo', default: 'monospace' }), fontSize: 12, lineHeight: 17 },
+  reportScroll: { maxHeight: Platform.OS === 'web' ? ('calc(100vh - 160px)' as unknown as number) : 640 },
 });
+
+/** On the web the report stays in view beside the codes while the coder scrolls through them. */
+const stickyOnWeb = (Platform.OS === 'web' ? { position: 'sticky', top: space.lg } : {}) as unknown as ViewStyle;

@@ -64,7 +64,7 @@ export default function CodingQueuePage() {
         ) : (
           <QueueList items={queue.data.items} />
         )}
-        <ExportCodes from={filters.from} to={filters.to} />
+        <ExportCodes />
         <CautionNote />
       </Center>
     </Content>
@@ -119,22 +119,34 @@ function QueueList({ items }: { items: QueueItem[] }) {
   );
 }
 
-/** The reviewed codes of the chosen days (today when none is chosen), as CSV or JSON. */
-function ExportCodes({ from, to }: { from?: string; to?: string }) {
+/** The reviewed codes of the days chosen here (the day the review was completed; today when none), as CSV or JSON. */
+function ExportCodes() {
+  const [from, setFrom] = useState<string | undefined>();
+  const [to, setTo] = useState<string | undefined>();
   const today = new Date().toISOString().slice(0, 10);
   const range = { from: from ?? to ?? today, to: to ?? from ?? today };
+  const backwards = range.from > range.to;
   const open = (format: 'csv' | 'json') => {
     const url = `/api/coding/export?${new URLSearchParams({ ...range, format }).toString()}`;
     if (typeof window !== 'undefined') window.location.assign(url);
   };
   return (
     <View style={styles.exportBox} role="group" aria-label="Export reviewed codes">
-      <Text variant="caption" tone="muted" testID="export-range">
-        Export the codes of the studies coded {range.from === range.to ? `on ${range.from}` : `from ${range.from} to ${range.to}`} (set the days above).
+      <Text weight="semibold" role="heading" aria-level={2}>
+        Export reviewed codes
       </Text>
       <View style={styles.dates}>
-        <Button label="Download CSV" kind="secondary" testID="export-csv" onPress={() => open('csv')} />
-        <Button label="Download JSON" kind="secondary" testID="export-json" onPress={() => open('json')} />
+        <DayInput label="Coded from" testID="export-from" onDay={setFrom} />
+        <DayInput label="Coded to" testID="export-to" onDay={setTo} />
+      </View>
+      <Text variant="caption" tone={backwards ? 'abnormal' : 'muted'} testID="export-range" role={backwards ? 'alert' : undefined}>
+        {backwards
+          ? `▲ The last day (${range.to}) is before the first (${range.from}).`
+          : `The codes as reported of the studies whose review was completed ${range.from === range.to ? `on ${range.from}` : `from ${range.from} to ${range.to}`}.`}
+      </Text>
+      <View style={styles.dates}>
+        <Button label="Download CSV" kind="secondary" testID="export-csv" disabled={backwards} onPress={() => open('csv')} />
+        <Button label="Download JSON" kind="secondary" testID="export-json" disabled={backwards} onPress={() => open('json')} />
       </View>
     </View>
   );
@@ -216,5 +228,5 @@ const styles = StyleSheet.create({
   rowWide: { flexDirection: 'row', alignItems: 'center', gap: space.xl },
   divider: { borderTopWidth: 1, borderTopColor: color.line },
   cell: { gap: space.xxs },
-  exportBox: { gap: space.sm },
+  exportBox: { gap: space.sm, backgroundColor: color.surface, borderRadius: radius.lg, borderWidth: 1, borderColor: color.line, padding: space.lg },
 });

@@ -21,6 +21,9 @@ export interface Rule {
 const fill = (template: string, values: Record<string, string | number>) =>
   template.replace(/\{(\w+)\}/g, (m, k: string) => (k in values ? String(values[k]) : m));
 
+/** A description inside a sentence: its first letter in lower case, unless it begins an abbreviation. */
+const inSentence = (d: string) => (/^[A-Z][a-z]/.test(d) ? d[0].toLowerCase() + d.slice(1) : d);
+
 /** What the rules share while they run over one input. */
 export class RuleContext {
   readonly codes: SuggestedCode[] = [];
@@ -53,7 +56,7 @@ export class RuleContext {
       return null;
     }
     const modifiers = [...(o.modifiers ?? [])];
-    let rationale = fill(rule.rationale, { code, description: entry.description, units: o.units ?? 1, ...(o.values ?? {}) });
+    let rationale = fill(rule.rationale, { code, description: inSentence(entry.description), units: o.units ?? 1, ...(o.values ?? {}) });
     if (entry.professionalComponent && this.professionalInHospital && !modifiers.includes('26')) {
       modifiers.push('26');
       rationale = `${rationale.replace(/\.$/, '')}; modifier 26 because the physician bills the professional component of work done in a hospital.`;

@@ -17,7 +17,7 @@ export const sessionRules = {
     id: 'review.code-set-year',
     title: 'Date of service against the encoded code-set releases',
     system: 'review',
-    source: 'CPT and HCPCS releases take effect on 1 January; ICD-10-CM and ICD-10-PCS on 1 October (CMS)',
+    source: 'CPT and HCPCS releases take effect on 1 January; ICD-10-CM and ICD-10-PCS on 1 October (CMS); CPT 2026 intervention changes as reported by coding publications summarising the release (not checked against the CPT 2026 code set)',
     release: 'CPT 2025; ICD-10-CM FY2026',
     rationale: 'Codes are valid for the release in force on the date of service.',
   },
@@ -99,7 +99,7 @@ export function applyCodeSetYear(ctx: RuleContext): void {
   }
   if (after.length) {
     const pci = ctx.input.pci.length > 0 && releaseOf('CPT', date) > encodedReleases.CPT[encodedReleases.CPT.length - 1]
-      ? ' Reports of the CPT 2026 release describe changes to coronary intervention reporting, including the branch add-on codes: check every intervention code.'
+      ? ' Published summaries of the CPT 2026 release report new coronary intervention codes (complex stenting, chronic total occlusion), and one describes a redesign of the intervention family; these rules do not encode it, so check every intervention code against the CPT release in force.'
       : '';
     ctx.warn(
       sessionRules.codeSetYear,

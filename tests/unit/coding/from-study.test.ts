@@ -66,6 +66,47 @@ describe('a study record and its analysis become the coding input', () => {
     expect(r.warnings.find((w) => w.code === 'encounter-not-recorded')?.blocking).toBe(true);
   });
 
+  it.each([
+    { agent: 'adenosine', vessel: 'LAD', counts: true, note: null },
+    { agent: 'papaverine', vessel: 'LAD', counts: true, note: null },
+    { agent: 'other', vessel: 'LAD', counts: true, note: null },
+    { agent: 'none', vessel: 'LAD', counts: false, note: 'hyperemic-agent-none' },
+    { agent: null, vessel: 'LAD', counts: false, note: 'hyperemic-agent-not-recorded' },
+    { agent: 'adenosine', vessel: 'RCA (resting ratio only)', counts: false, note: null },
+  ] as const)(
+    'agent $agent, $vessel → hyperaemic drug counts: $counts — the drug counts for a vessel when the study\'s agent was given and that vessel has hyperaemic measurements (CPT 93571/93572 "pharmacologically induced stress" wording [memory])',
+    ({ agent, vessel, counts, note }) => {
+      const input = map(study({ agent, vessels: [vessel === 'LAD' ? ladFull() : rcaResting()] }));
+      expect(input.physiology[0].hyperemicAgent).toBe(counts);
+      const codes = (input.notes ?? []).map((n) => n.code).filter((c) => c.startsWith('hyperemic-agent'));
+      expect(codes).toEqual(note ? [note] : []);
+    },
+  );
+
+  it.each([
+    // 22:00 on New Year's Eve in New York is 03:00 UTC on 1 January: the lab's day decides.
+    { start: '2026-01-01T03:00:00.000Z', timeZone: 'America/New_York', day: '2025-12-31' },
+    { start: '2026-01-01T03:00:00.000Z', timeZone: 'UTC', day: '2026-01-01' },
+    { start: '2025-09-30T23:30:00.000Z', timeZone: 'Europe/Berlin', day: '2025-10-01' },
+    { start: '2025-05-06T09:30:00+02:00', timeZone: undefined, day: '2025-05-06' },
+  ])(
+    'procedure started $start, lab in $timeZone → date of service $day — code sets apply by date of service (CMS: CPT from 1 January, ICD-10 from 1 October)',
+    ({ start, timeZone, day }) => {
+      const rec = study({ start });
+      const input = toCodingInput(rec, analyzeStudy(toPhysiologyInput(rec)), { timeZone });
+      expect(input.dateOfService).toBe(day);
+    },
+  );
+
+  it('a New Year\'s Eve evening procedure in a lab west of UTC is coded with that year\'s releases — CPT releases take effect 1 January (AMA); ICD-10-CM FY from 1 October (CMS)', () => {
+    const rec = study({ start: '2025-01-01T03:00:00.000Z' });
+    const local = suggestCodes(toCodingInput(rec, analyzeStudy(toPhysiologyInput(rec)), { timeZone: 'America/Chicago' }));
+    expect(local.codeSets.dateOfService).toBe('2024-12-31');
+    expect(local.codeSets.CPT.label).toBe('CPT 2024');
+    const utc = suggestCodes(toCodingInput(rec, analyzeStudy(toPhysiologyInput(rec)), { timeZone: 'UTC' }));
+    expect(utc.codeSets.CPT.label).toBe('CPT 2025');
+  });
+
   it('hyperaemic data with no agent recorded: not counted as hyperaemic, with a note — common practice', () => {
     const input = map(study({ agent: null, vessels: [ladFull()] }));
     expect(input.physiology[0].hyperemicAgent).toBe(false);

@@ -41,11 +41,12 @@ describe('the code-set release follows the date of service', () => {
     expect(w?.message).toContain('ICD-10-CM FY2027');
   });
 
-  it(`a date in CPT 2026 with interventions adds the intervention caution — ${SRC.releases}`, () => {
+  it(`a date in CPT 2026 with interventions adds the intervention caution — ${SRC.releases}; coding publications summarising CPT 2026 report new coronary intervention codes (not checked against the code set)`, () => {
     const r = suggestCodes(input({ dateOfService: '2026-02-01', pci: [{ vessel: 'LAD', kind: 'stent' }] }));
     const w = r.warnings.find((x) => x.code === 'code-set-after-encoded');
     expect(w?.message).toContain('CPT 2026');
     expect(w?.message).toContain('intervention');
+    expect(w?.message).toContain('these rules do not encode it');
     expect(w?.message).not.toContain('ICD-10-CM FY2027'); // February 2026 is still FY2026
   });
 
