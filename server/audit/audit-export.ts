@@ -3,7 +3,7 @@ import type { Response } from 'express';
 import type { DataSource } from 'typeorm';
 import { stringify } from 'csv-stringify/sync';
 import { auditBundleWriter, toFhirAuditEvent, type AuditEventContext } from '../../fhir/audit-event';
-import { neutraliseCell, quoteAlsoWhen } from '../../shared/csv/neutralise';
+import { csvExportOptions } from '../../shared/csv/neutralise';
 import { labelOfAction, type AuditExportFormat, type AuditFilters } from '../../shared/audit/trail';
 import { auditRowBatches, targetOf, type AuditTrailRow } from './audit-trail';
 
@@ -36,9 +36,7 @@ const csvColumns: [header: string, cell: (r: AuditTrailRow) => string | null][] 
 export function auditRowsToCsv(rows: AuditTrailRow[], header: boolean): string {
   const records = rows.map((r) => csvColumns.map(([, cell]) => cell(r) ?? ''));
   return stringify(header ? [csvColumns.map(([h]) => h), ...records] : records, {
-    record_delimiter: 'windows',
-    quoted_match: quoteAlsoWhen,
-    cast: { string: (value) => neutraliseCell(value) },
+    ...csvExportOptions,
   });
 }
 

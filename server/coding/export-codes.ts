@@ -1,5 +1,5 @@
 import { stringify } from 'csv-stringify/sync';
-import { neutraliseCell, quoteAlsoWhen } from '../../shared/csv/neutralise';
+import { csvExportOptions } from '../../shared/csv/neutralise';
 import type { Decision } from '../../shared/coding/review';
 import { loadLines } from './load-review';
 import { auditTarget, type Sql } from './sql';
@@ -92,9 +92,8 @@ export function codesToCsv(rows: ExportedCode[]): string {
     {
       header: true,
       columns: columns.map(([, header]) => header),
-      record_delimiter: 'windows',
-      quoted_match: quoteAlsoWhen,
-      cast: { string: (value) => neutraliseCell(value), number: (value) => String(value) },
+      ...csvExportOptions,
+      cast: { ...csvExportOptions.cast, number: (value: number) => String(value) },
     },
   );
 }

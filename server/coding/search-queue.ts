@@ -5,9 +5,9 @@ import type { AuditActor } from '../studies/repository';
 import { listQueue } from './list-queue';
 import { sqlOf } from './sql';
 
-/** The coding queue under the filters, the search recorded in the audit trail. */
+/** The coding queue under the filters, the search recorded in the audit trail with the studies it showed. */
 export async function searchCodingQueue(dataSource: DataSource, query: CodingQueueQuery, actor: AuditActor): Promise<QueueItem[]> {
   const items = await listQueue(sqlOf(dataSource), query);
-  await recordAudit(dataSource, { ...actor, action: 'search', entityType: 'study', outcome: 'success', detail: { queue: 'coding', ...query, returned: items.length } });
+  await recordAudit(dataSource, { ...actor, action: 'search', entityType: 'study', outcome: 'success', detail: { queue: 'coding', ...query, returned: items.length, studyIds: items.map((i) => i.studyId) } });
   return items;
 }

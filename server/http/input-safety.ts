@@ -61,7 +61,8 @@ const loneSurrogate = /[\uD800-\uDBFF](?![\uDC00-\uDFFF])|(?<![\uD800-\uDBFF])[\
 export function problemOfText(text: string, checkDates = true): string | null {
   if (text.includes('\u0000')) return 'Text may not contain the NUL character.';
   if (loneSurrogate.test(text)) return 'Text contains an unpaired surrogate: it is not valid Unicode.';
-  if (!checkDates || text.length > 40 || !/^\d{4}-/.test(text)) return null;
+  // No length bound: a long fraction of a second must not carry a bad year or offset past the check.
+  if (!checkDates || !/^\d{4}-/.test(text)) return null;
   const date = isoDate.exec(text);
   // A date alone: its calendar is the schema's to judge (so every field error comes back together);
   // only the year PostgreSQL cannot store is refused here.

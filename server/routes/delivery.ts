@@ -6,7 +6,7 @@ import { auditContext } from '../audit/audit';
 import { NotFoundError } from '../http/problem';
 import type { ApiRoute } from '../http/routes';
 import { parseOrThrow } from '../http/validate';
-import { listDeliveriesNeedingAttention } from '../ehr/list-deliveries';
+import { searchDeliveries } from '../ehr/search-deliveries';
 import { readStudyDeliveries } from '../ehr/read-study-deliveries';
 import { requestResend } from '../ehr/request-resend';
 
@@ -44,7 +44,7 @@ export function deliveryRoutes({ dataSource }: { dataSource: DataSource }): ApiR
       handlers: [
         async (req, res) => {
           const query = parseOrThrow(listQuerySchema, req.query);
-          res.json({ items: await listDeliveriesNeedingAttention(dataSource, { statuses: query.status ? [query.status] : undefined }) });
+          res.json({ items: await searchDeliveries(dataSource, query.status ? [query.status] : undefined, auditContext(req)) });
         },
       ],
     },

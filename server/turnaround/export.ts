@@ -1,7 +1,7 @@
 import { stringify } from 'csv-stringify';
 import type { Writable } from 'node:stream';
 import type { DataSource } from 'typeorm';
-import { neutraliseCell } from '../../shared/csv/neutralise';
+import { csvExportOptions } from '../../shared/csv/neutralise';
 import type { TurnaroundQuery } from '../../shared/turnaround/figures';
 import { intervalColumns, rangeCondition } from './figures';
 import type { TurnaroundSettings } from './settings';
@@ -36,8 +36,7 @@ export async function writeTurnaroundCsv(db: DataSource, query: TurnaroundQuery,
   const csv = stringify({
     header: true,
     columns: [...columns],
-    record_delimiter: 'windows',
-    cast: { string: (value) => neutraliseCell(value) },
+    ...csvExportOptions,
   });
   csv.pipe(out);
   // The key as text: microseconds survive (a Date would drop them and repeat a row).

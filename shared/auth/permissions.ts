@@ -5,7 +5,7 @@
 export const roles = ['staff', 'physician', 'coder', 'chief', 'admin'] as const;
 export type Role = (typeof roles)[number];
 
-const permissionTable = {
+export const permissionTable = {
   /** Worklist, study records and the patient details on them. */
   'study:read': ['staff', 'physician', 'coder', 'chief'],
   'study:write': ['staff', 'physician'],

@@ -15,11 +15,19 @@ export function neutraliseCell(cell: string): string {
 }
 
 /**
- * Cells that hold a semicolon or a tab are quoted even in a comma-separated file: a spreadsheet set to
- * split on them (many European locales) would otherwise start a new cell there — possibly a formula —
- * that no check on the cell's first character can see. For csv-stringify's `quoted_match`.
+ * Cells that hold a comma, a semicolon or a tab are quoted whatever the file's own delimiter: a
+ * spreadsheet set to split on another of them (many European locales split on semicolons; a `.csv`
+ * opens split on commas) would otherwise start a new cell there — possibly a formula — that no check
+ * on the cell's first character can see. For csv-stringify's `quoted_match`.
  */
-export const quoteAlsoWhen = /[;\t]/;
+export const quoteAlsoWhen = /[,;\t]/;
+
+/** The options every CSV export gives csv-stringify: Windows line ends, the quoting above, every text cell neutralised. */
+export const csvExportOptions = Object.freeze({
+  record_delimiter: 'windows' as const,
+  quoted_match: quoteAlsoWhen,
+  cast: { string: (value: string) => neutraliseCell(value) },
+});
 
 /** Splits CSV text into rows of cells (RFC 4180 quoting), keeping each row's line ending. */
 export function parseCsv(text: string, delimiter: string): { cells: string[]; quoted: boolean[]; end: string }[] {
