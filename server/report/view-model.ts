@@ -427,8 +427,18 @@ function vesselSentences(
   afterPci: boolean,
   t: Thresholds,
   used: UsedThresholds,
+  qualifyUnused: boolean,
 ): string[] {
   const out: string[] = [];
+  // CFR, IMR, RRR and MRR draw no microvascular finding where obstruction was not excluded (COVADIS);
+  // from template v3 their sentences say so.
+  const unused = !qualifyUnused
+    ? ''
+    : r.obstructive === true
+      ? ' Not used for the microvascular finding: the vessel has an obstructive stenosis.'
+      : r.obstructive === undefined
+        ? ' Not used for the microvascular finding: obstruction was not excluded in this vessel.'
+        : '';
   const against = (op: string, key: ThresholdKey, kind: QuantityKind = 'ratio', unit = '') => `(cut-off ${op} ${q(t[key], kind)}${unit}, ${cite(t, key)})`;
 
   if (r.ffr !== undefined) {
@@ -450,24 +460,24 @@ function vesselSentences(
     used.add('cfr');
     const band = t.cfrBorderline > t.cfr ? `; borderline from ${q(t.cfr, 'ratio')} to below ${q(t.cfrBorderline, 'ratio')}` : '';
     if (band) used.add('cfrBorderline');
-    out.push(`CFR ${q(r.cfr, 'ratio')}: ${judged(r.cfrFlag)} ${against('<', 'cfr')}${band}.`);
+    out.push(`CFR ${q(r.cfr, 'ratio')}: ${judged(r.cfrFlag)} ${against('<', 'cfr')}${band}.${unused}`);
   }
   if (r.imr !== undefined) {
     used.add('imr');
     const method = r.imrMethod && r.imrMethod !== 'pd-tmn' ? `, ${imrMethodLabel[r.imrMethod]}` : '';
     const raw = r.imrMethod && r.imrMethod !== 'pd-tmn' && r.imrUncorrected !== undefined ? `; uncorrected ${withUnit(r.imrUncorrected, 'imr')}` : '';
-    out.push(`IMR ${withUnit(r.imr, 'imr')}${method}: ${judged(r.imrFlag)} ${against('≥', 'imr', 'imr', ' U')}${raw}.`);
+    out.push(`IMR ${withUnit(r.imr, 'imr')}${method}: ${judged(r.imrFlag)} ${against('≥', 'imr', 'imr', ' U')}${raw}.${unused}`);
   }
   if (r.rrr !== undefined) {
     used.add('rrr');
-    out.push(`RRR ${q(r.rrr, 'ratio')}: ${judged(r.rrrFlag)} ${against('<', 'rrr')}.`);
+    out.push(`RRR ${q(r.rrr, 'ratio')}: ${judged(r.rrrFlag)} ${against('<', 'rrr')}.${unused}`);
   }
   if (r.mrr !== undefined) {
     used.add('mrr');
     used.add('mrrBorderline');
     const method = r.mrrMethod === 'bolus-thermodilution' ? ' Computed from bolus thermodilution; these cut-offs were set with continuous thermodilution.' : '';
     out.push(
-      `MRR ${q(r.mrr, 'ratio')}: ${judged(r.mrrFlag)} ${against('<', 'mrr')}; borderline from ${q(t.mrr, 'ratio')} to ${q(t.mrrBorderline, 'ratio')}.${method}`,
+      `MRR ${q(r.mrr, 'ratio')}: ${judged(r.mrrFlag)} ${against('<', 'mrr')}; borderline from ${q(t.mrr, 'ratio')} to ${q(t.mrrBorderline, 'ratio')}.${method}${unused}`,
     );
   }
 
@@ -693,6 +703,9 @@ export function thresholdsBasisSentence(b: ThresholdsBasisInfo, tz: string): str
   return `Judged by ${set}.`;
 }
 
+/** A template version's number ("v3" → 3). */
+const templateNumber = (version: string): number => Number(version.slice(1));
+
 /** Builds the report's view model. Pure: the same input gives the same view. */
 export function buildReportView(input: ReportInput): ReportView {
   const { study, analysis, thresholds: t } = input;
@@ -719,11 +732,12 @@ export function buildReportView(input: ReportInput): ReportView {
   idn('Operator', input.people.operator);
   idn('Referring clinician', d.referringName);
 
+  const templateVersion = input.templateVersion ?? REPORT_TEMPLATE_VERSION;
   const interpretation: VesselInterpretation[] = [];
   const rows = new Map(study.vessels.map((v) => [v.id, v]));
   for (const r of analysis.vessels) {
     const row = rows.get(r.id);
-    const sentences = vesselSentences(r, row, kind, afterPci, t, used);
+    const sentences = vesselSentences(r, row, kind, afterPci, t, used, templateNumber(templateVersion) >= 3);
     if (sentences.length) interpretation.push({ vessel: vesselTitle(r.vessel, row?.segment), sentences });
   }
 
@@ -748,7 +762,6 @@ export function buildReportView(input: ReportInput): ReportView {
   // "Angina" in the endotype's name only when the record says the patient has angina (COVADIS).
   const endotypeWords = endotypeName(analysis.endotype, d.anginaPresent ?? undefined, endotypeLabel);
 
-  const templateVersion = input.templateVersion ?? REPORT_TEMPLATE_VERSION;
   return {
     templateVersion,
     kind,

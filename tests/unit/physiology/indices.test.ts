@@ -73,7 +73,7 @@ describe('check case A', () => {
     expect(v.rrrFlag).toBe('normal');
     expect(v.mrrFlag).toBe('normal');
     expect(v.warnings).toEqual([]);
-    expect(r.findings).toEqual({ obstructive: true, microvascular: null, endothelialDysfunction: false, vasospasm: null });
+    expect(r.findings).toEqual({ obstructive: true, microvascular: null, microvascularDysfunction: false, endothelialDysfunction: false, vasospasm: null });
     expect(r.endotype).toBe('obstructive');
   });
 
