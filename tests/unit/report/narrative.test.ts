@@ -151,7 +151,7 @@ describe('template sections', () => {
     s.vessels = [{ ...emptyVessel(s.vessels[0].id, 'LAD'), restPa: 100, restPd: 95, hyperemiaPa: 90, hyperemiaPd: 72, restTransit: [0.9, 0.9, 0.9], hyperemiaTransit: [0.3, 0.3, 0.3], driftPdPa: 1 }];
     s.vasoreactivity.doses = [];
     const i = section(render(s).text, 'INTERPRETATION BY VESSEL')!;
-    expect(i).toContain('FFR 0.80: abnormal (cut-off ≤ 0.80, ESC 2024); in the grey zone 0.75–0.80.');
+    expect(i).toContain('FFR 0.80: abnormal (cut-off ≤ 0.80, ESC 2024); in the grey zone 0.76–0.80.');
     expect(i).toContain('CFR 3.00: normal');
     expect(i).toContain('IMR 21 U, corrected without wedge pressure: normal (cut-off ≥ 25 U, ESC 2024; EAPCI 2020); uncorrected 22 U.');
     expect(i).toContain('RRR 3.96: normal');
