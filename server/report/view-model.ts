@@ -1,4 +1,6 @@
-import { driftOutOfRange } from '../../shared/physiology/quality';
+import { driftOutOfRange, driftText } from '../../shared/physiology/quality';
+import { stenosisText } from '../../shared/physiology/endotype';
+import { constrictionText } from '../../shared/physiology/vasoreactivity';
 import {
   defaultThresholds,
   endotypeName,
@@ -313,11 +315,9 @@ function techniqueSentences(study: ReportStudy, t: Thresholds): string[] {
     const name = vesselShortName[v.vessel];
     if (isNum(v.driftPdPa)) {
       // Judged as entered, by the same rule as the screens' drift banner; a value outside the window
-      // that would print as a bound (1.024 → "1.02") is printed to three decimals so the words agree.
+      // that would print as a bound (1.024 → "1.02") is printed with the decimals that keep it outside.
       const outside = driftOutOfRange(v.driftPdPa, t);
-      const shown = q(v.driftPdPa, 'ratio');
-      const printed = outside && Number(shown) >= t.driftLow && Number(shown) <= t.driftHigh ? v.driftPdPa.toFixed(3) : shown;
-      drift.push(`${name} ${printed} (${outside ? 'outside' : 'within'} ${window})`);
+      drift.push(`${name} ${driftText(v.driftPdPa, t)} (${outside ? 'outside' : 'within'} ${window})`);
     } else {
       const reason = (v as { driftNotDoneReason?: string | null }).driftNotDoneReason;
       if (filled(reason)) drift.push(`${name} not done (${reason.trim()})`);
@@ -361,7 +361,7 @@ function compact(columns: string[], rows: Array<Array<Cell | null>>): Table | nu
   };
 }
 
-function measurementTable(study: ReportStudy, analysis: PhysiologyResult): Table | null {
+function measurementTable(study: ReportStudy, analysis: PhysiologyResult, t: Thresholds): Table | null {
   const byId = new Map(analysis.vessels.map((v) => [v.id, v]));
   const rows = study.vessels.map((v) => {
     const r = byId.get(v.id);
@@ -369,7 +369,7 @@ function measurementTable(study: ReportStudy, analysis: PhysiologyResult): Table
     return [
       { text: vesselShortName[v.vessel] },
       segmentLabel(v.segment) ? { text: segmentLabel(v.segment)! } : null,
-      isNum(v.visualStenosisPct) ? { text: withUnit(v.visualStenosisPct, 'percent') } : null,
+      isNum(v.visualStenosisPct) ? { text: `${stenosisText(v.visualStenosisPct, t)} %` } : null,
       pair(v.restPa, v.restPd),
       pair(v.hyperemiaPa, v.hyperemiaPd),
       r?.tmnRest !== undefined ? { text: q(r.tmnRest, 'transit') } : null,
@@ -485,7 +485,7 @@ function vesselSentences(
   if (r.obstructive !== undefined) {
     const by =
       r.judgedBy === 'visual-stenosis'
-        ? `visual stenosis ${withUnit(r.visualStenosisPct ?? 0, 'percent')}, no pressure index`
+        ? `visual stenosis ${stenosisText(r.visualStenosisPct ?? 0, t)} %, no pressure index`
         : r.judgedBy === 'ffr'
           ? 'FFR'
           : r.judgedBy === 'nhpr' && r.nhprKind
@@ -518,7 +518,7 @@ function vesselSentences(
   return out;
 }
 
-function lesionSummary(study: ReportStudy, analysis: PhysiologyResult, afterPci: boolean): string[] {
+function lesionSummary(study: ReportStudy, analysis: PhysiologyResult, afterPci: boolean, t: Thresholds): string[] {
   const rows = new Map(study.vessels.map((v) => [v.id, v]));
   const out: string[] = [];
   for (const r of analysis.vessels) {
@@ -531,7 +531,7 @@ function lesionSummary(study: ReportStudy, analysis: PhysiologyResult, afterPci:
           ? `${lowerFirst(nhprKindLabel[r.nhprKind])} ${q(r.nhpr, 'ratio')}`
           : r.restingPdPa !== undefined
             ? `resting Pd/Pa ${q(r.restingPdPa, 'ratio')}`
-            : `visual stenosis ${withUnit(r.visualStenosisPct ?? 0, 'percent')}`;
+            : `visual stenosis ${stenosisText(r.visualStenosisPct ?? 0, t)} %`;
     const where = vesselTitle(r.vessel, row?.segment);
     const decision = row?.decision ? `; ${lowerFirst(vocabulary.decisionLabel[row.decision])}` : '';
     const verdict = afterPci
@@ -579,7 +579,7 @@ function acetylcholineSection(study: ReportStudy, analysis: PhysiologyResult, t:
     return {
       dose: isNum(d.micrograms) ? withUnit(d.micrograms, 'dose') : '—',
       vessel: vesselShortName[d.vessel],
-      constriction: isNum(d.constrictionPct) ? withUnit(d.constrictionPct, 'percent') : '—',
+      constriction: isNum(d.constrictionPct) ? `${constrictionText(d.constrictionPct, t)} %` : '—',
       symptoms: yesNo(d.symptoms),
       ecg: yesNo(d.ischemicEcg),
       result: res ? vasoreactivityOutcomeLabel[res.result] : '—',
@@ -774,10 +774,10 @@ export function buildReportView(input: ReportInput): ReportView {
       question: d.clinicalQuestion ? vocabulary.clinicalQuestionLabel[d.clinicalQuestion] : null,
     },
     technique,
-    measurements: measurementTable(study, analysis),
+    measurements: measurementTable(study, analysis, t),
     indices: indexTable(analysis),
     interpretation,
-    lesionSummary: kind === 'lesion' ? lesionSummary(study, analysis, afterPci) : [],
+    lesionSummary: kind === 'lesion' ? lesionSummary(study, analysis, afterPci, t) : [],
     acetylcholine,
     endotype:
       kind === 'coronary-function'

@@ -1,5 +1,7 @@
 import type { Ctx } from './context';
+import { atOrAbove } from './compare';
 import { cutPlain, cutRatio, imrText, joinAnd, ratio } from './format';
+import { formatAgreeing } from './precision';
 import { nhprCutoffKey, nhprName } from './indices';
 import { cite, type Thresholds } from './thresholds';
 import type { Endotype, Findings, Flag, VasoreactivityResult, VesselResult } from './types';
@@ -30,6 +32,11 @@ function restingIndex(v: VesselResult, t: Thresholds): RestingIndex | undefined 
     };
   }
   return undefined;
+}
+
+/** A visual stenosis as text on the same side of the obstructive cut-off as the value judged. */
+export function stenosisText(pct: number, t: Pick<Thresholds, 'obstructiveStenosisPct'>): string {
+  return formatAgreeing(pct, 'percent', (x) => atOrAbove(x, t.obstructiveStenosisPct, 'raw'));
 }
 
 const imrMethodName = {
@@ -104,6 +111,11 @@ export interface Classification {
   endotype: Endotype;
   headline: string;
   reasons: string[];
+  /**
+   * Everything else needed for "no coronary abnormality" was met, but acetylcholine showed endothelial
+   * dysfunction: the test is not negative, so the endotype is left open (the caller may add doubts).
+   */
+  normalButEndothelial: boolean;
 }
 
 /**
@@ -167,7 +179,7 @@ export function classifyStudy(
     } else if (v.visualStenosisPct !== undefined) {
       v.judgedBy = 'visual-stenosis';
       v.obstructive = v.visualStenosisPct >= t.obstructiveStenosisPct;
-      if (v.obstructive) reasons.push(`${label}: visual stenosis ${cutPlain(v.visualStenosisPct)}%${ctx.stenosisObstructive}`);
+      if (v.obstructive) reasons.push(`${label}: visual stenosis ${stenosisText(v.visualStenosisPct, t)}%${ctx.stenosisObstructive}`);
     }
     if (v.judgedBy !== undefined && v.judgedBy !== 'visual-stenosis') epicardialAssessed = true;
     if (
@@ -178,7 +190,7 @@ export function classifyStudy(
       v.visualStenosisPct >= t.obstructiveStenosisPct
     ) {
       reasons.push(
-        `${label}: visual stenosis ${cutPlain(v.visualStenosisPct)}% is at or above ${ctx.stenosisCut}%, but the pressure index is above its cut-off; the pressure index decides (COVADIS), so the vessel is not obstructive.`,
+        `${label}: visual stenosis ${stenosisText(v.visualStenosisPct, t)}% is at or above ${ctx.stenosisCut}%, but the pressure index is above its cut-off; the pressure index decides (COVADIS), so the vessel is not obstructive.`,
       );
     }
     if (v.obstructive) obstructiveLabels.push(label);
@@ -357,6 +369,7 @@ export function classifyStudy(
 
   let endotype: Endotype;
   let headline: string;
+  let normalButEndothelial = false;
   if (obstructive) {
     endotype = 'obstructive';
     headline = `Obstructive coronary disease (${obstructiveLabels.join(', ')})${coexisting.length ? `, with ${joinAnd(coexisting)}` : ''}`;
@@ -412,13 +425,17 @@ export function classifyStudy(
     if (lowMrr) notes.push('a low MRR');
     const noted = notes.length > 0 ? `; ${joinAnd(notes)} ${notes.length > 1 ? 'were' : 'was'} noted but ${notes.length > 1 ? 'do' : 'does'} not define an endotype` : '';
     if (missing.length === 0 && bothJudgedInOneVessel && !equivocalAch && unjudgedAbnormal.length === 0 && unjudgedThermo.length === 0) {
-      endotype = 'no-abnormality';
       if (endothelialDysfunction) {
+        // "No coronary abnormality" needs a negative acetylcholine test (EAPCI 2020); endothelial
+        // dysfunction is a finding, not spasm, and not one of the endotypes.
+        endotype = 'inconclusive';
+        normalButEndothelial = true;
         headline = 'No obstructive disease, microvascular dysfunction or spasm; endothelial dysfunction on acetylcholine testing';
         reasons.push(
-          `Endotype: no obstructive stenosis, CFR and IMR within the lab's thresholds and no spasm on acetylcholine testing, but endothelial dysfunction was found — reported as a finding, not spasm${noted} (EAPCI 2020; COVADIS).`,
+          `Endotype: inconclusive — no obstructive stenosis, CFR and IMR within the lab's thresholds and no spasm on acetylcholine testing, but endothelial dysfunction was found — reported as a finding, not spasm; the acetylcholine test is not negative, so the study cannot be called free of coronary abnormality${noted} (EAPCI 2020; COVADIS).`,
         );
       } else {
+        endotype = 'no-abnormality';
         headline = 'No coronary abnormality found';
         reasons.push(
           `Endotype: no coronary abnormality — no obstructive stenosis, CFR and IMR within the lab's thresholds and no spasm on acetylcholine testing${noted} (EAPCI 2020).`,
@@ -449,5 +466,5 @@ export function classifyStudy(
     }
   }
   if (caveats.length > 0) headline += ` — caution: quality check failed in ${caveats.map((c) => c.slice(0, c.indexOf(' ('))).join(', ')}`;
-  return { findings: { obstructive, microvascular, microvascularDysfunction, endothelialDysfunction, vasospasm }, endotype, headline, reasons };
+  return { findings: { obstructive, microvascular, microvascularDysfunction, endothelialDysfunction, vasospasm }, endotype, headline, reasons, normalButEndothelial };
 }

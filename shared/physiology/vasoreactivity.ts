@@ -1,5 +1,6 @@
 import { above, atOrAbove } from './compare';
 import { cutPlain } from './format';
+import { formatAgreeing } from './precision';
 import type { DoseInput, ProcedureInput } from './schema';
 import { cite, type Thresholds } from './thresholds';
 import type { DoseResult, PhysiologyWarning, VasoreactivityOutcome } from './types';
@@ -37,6 +38,16 @@ export function classifyDose(d: DoseInput, t: Thresholds): VasoreactivityOutcome
   if (both) return severe ? 'epicardial-spasm' : 'microvascular-spasm';
   if (one || severe) return 'equivocal';
   return atOrAbove(d.constrictionPct, t.endothelialDysfunctionPct, 'raw') ? 'endothelial-dysfunction' : 'negative';
+}
+
+/** The band of the COVADIS table a constriction falls in, judged as entered. */
+export function constrictionBand(pct: number, t: Pick<Thresholds, 'spasmConstrictionPct' | 'endothelialDysfunctionPct'>): 0 | 1 | 2 {
+  return atOrAbove(pct, t.spasmConstrictionPct, 'raw') ? 2 : atOrAbove(pct, t.endothelialDysfunctionPct, 'raw') ? 1 : 0;
+}
+
+/** A constriction as text in the same band as the value judged: 89.6% prints "89.6", never "90". */
+export function constrictionText(pct: number, t: Pick<Thresholds, 'spasmConstrictionPct' | 'endothelialDysfunctionPct'>): string {
+  return formatAgreeing(pct, 'percent', (x) => constrictionBand(x, t));
 }
 
 function doseName(d: DoseInput): string {
@@ -83,7 +94,7 @@ export function analyzeVasoreactivity(
     if (outcome === 'equivocal') {
       warnings.push({
         code: 'spasm-criteria-not-met',
-        message: `Acetylcholine dose ${i + 1} (${doseName(d)}): ${cutPlain(d.constrictionPct)}% constriction with ${criteriaSeen(d)} meets only part of the COVADIS criteria for spasm — equivocal (suspected, not proven).`,
+        message: `Acetylcholine dose ${i + 1} (${doseName(d)}): ${constrictionText(d.constrictionPct, t)}% constriction with ${criteriaSeen(d)} meets only part of the COVADIS criteria for spasm — equivocal (suspected, not proven).`,
       });
     }
   }
@@ -112,27 +123,27 @@ export function analyzeVasoreactivity(
   switch (worst) {
     case 'epicardial-spasm':
       reasons.push(
-        `Acetylcholine ${doseName(d)}: ${cutPlain(d.constrictionPct)}% constriction with reproduced symptoms and ischaemic ECG changes meets the ≥ ${spasmPct}% criterion for epicardial spasm (${src}).`,
+        `Acetylcholine ${doseName(d)}: ${constrictionText(d.constrictionPct, t)}% constriction with reproduced symptoms and ischaemic ECG changes meets the ≥ ${spasmPct}% criterion for epicardial spasm (${src}).`,
       );
       break;
     case 'microvascular-spasm':
       reasons.push(
-        `Acetylcholine ${doseName(d)}: reproduced symptoms and ischaemic ECG changes with ${cutPlain(d.constrictionPct)}% constriction (below ${spasmPct}%) — microvascular spasm (${src}).`,
+        `Acetylcholine ${doseName(d)}: reproduced symptoms and ischaemic ECG changes with ${constrictionText(d.constrictionPct, t)}% constriction (below ${spasmPct}%) — microvascular spasm (${src}).`,
       );
       break;
     case 'equivocal':
       reasons.push(
-        `Acetylcholine ${doseName(d)}: ${cutPlain(d.constrictionPct)}% constriction with ${criteriaSeen(d)} — equivocal: part of the criteria for spasm, not all (${src}).`,
+        `Acetylcholine ${doseName(d)}: ${constrictionText(d.constrictionPct, t)}% constriction with ${criteriaSeen(d)} — equivocal: part of the criteria for spasm, not all (${src}).`,
       );
       break;
     case 'endothelial-dysfunction':
       reasons.push(
-        `Acetylcholine ${doseName(d)}: ${cutPlain(d.constrictionPct)}% constriction without symptoms or ischaemic ECG changes, at or above ${edPct}% (${cite(t, 'endothelialDysfunctionPct')}) — endothelial dysfunction, not spasm (${src}).`,
+        `Acetylcholine ${doseName(d)}: ${constrictionText(d.constrictionPct, t)}% constriction without symptoms or ischaemic ECG changes, at or above ${edPct}% (${cite(t, 'endothelialDysfunctionPct')}) — endothelial dysfunction, not spasm (${src}).`,
       );
       break;
     default:
       reasons.push(
-        `Acetylcholine testing was negative: maximum constriction ${cutPlain(maxPct)}% (below ${edPct}%, ${cite(t, 'endothelialDysfunctionPct')}) and no dose reproduced symptoms or ischaemic ECG changes (${src}).`,
+        `Acetylcholine testing was negative: maximum constriction ${constrictionText(maxPct, t)}% (below ${edPct}%, ${cite(t, 'endothelialDysfunctionPct')}) and no dose reproduced symptoms or ischaemic ECG changes (${src}).`,
       );
   }
   return { result: worst, doses: out, warnings };

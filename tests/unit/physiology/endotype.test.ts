@@ -142,10 +142,10 @@ describe('endotypes', () => {
       source: SRC.endotypes,
     },
     {
-      name: 'no abnormality with endothelial dysfunction only',
+      name: 'endothelial dysfunction with everything else normal is not "no abnormality" (that needs a negative acetylcholine test)',
       vessels: [normalVessel()],
       doses: endothelial,
-      endotype: 'no-abnormality',
+      endotype: 'inconclusive',
       findings: { obstructive: false, microvascular: null, microvascularDysfunction: false, endothelialDysfunction: true, vasospasm: null },
       source: `${SRC.endotypes}; ${SRC.covadis} (endothelial dysfunction is not spasm)`,
     },
@@ -728,5 +728,28 @@ describe('RRR and MRR in a vessel where no microvascular finding is drawn say so
     expect(r.reasons.some((s) => s.startsWith('LAD: MRR ') && s.includes(`${tail};`))).toBe(true);
     expect(r.reasons.join(' ')).not.toMatch(/functional microvascular dysfunction|structural microvascular dysfunction/);
     expect(r.findings.microvascularDysfunction).toBe(false);
+  });
+});
+
+describe('"no coronary abnormality" needs a negative acetylcholine test — EAPCI 2020 INOCA consensus; CorMicA (Ford et al. 2019): normal coronary function needs FFR, CFR and IMR normal and no spasm or abnormal acetylcholine response; COVADIS: constriction without symptoms or ECG change is endothelial dysfunction, not spasm', () => {
+  it('endothelial dysfunction with FFR 0.90, CFR 3.00 and IMR 18 leaves the endotype open and names the finding', () => {
+    const r = study([normalVessel()], endothelial, undefined, true);
+    expect(r.vasoreactivity?.result).toBe('endothelial-dysfunction');
+    expect(r.endotype).toBe('inconclusive');
+    expect(r.findings.endothelialDysfunction).toBe(true);
+    expect(r.headline).toBe('No obstructive disease, microvascular dysfunction or spasm; endothelial dysfunction on acetylcholine testing');
+    expect(r.reasons.at(-1)).toContain('the acetylcholine test is not negative, so the study cannot be called free of coronary abnormality');
+  });
+  it('a negative test with the same physiology is "no coronary abnormality"', () => {
+    expect(study([normalVessel()], negativeAch).endotype).toBe('no-abnormality');
+  });
+});
+
+describe('a visual stenosis is printed on the side of the cut-off it was judged on — COVADIS (Ong et al., Int J Cardiol 2018): obstructive at ≥ 50% without a pressure index', () => {
+  it('49.996% is not obstructive; 50% is, and its sentence prints 50%', () => {
+    expect(study([{ id: 'lad', vessel: 'LAD', visualStenosisPct: 49.996 } as VesselIn]).findings.obstructive).toBe(false);
+    const r = study([{ id: 'lad', vessel: 'LAD', visualStenosisPct: 50 } as VesselIn]);
+    expect(r.findings.obstructive).toBe(true);
+    expect(r.reasons[0]).toBe('LAD: visual stenosis 50% with no pressure index is at or above 50% (COVADIS) — obstructive by angiography.');
   });
 });

@@ -128,3 +128,20 @@ describe('reasons and thresholds', () => {
     expect('vasoreactivity' in analyzeStudy({ vessels: [] })).toBe(false);
   });
 });
+
+describe('a constriction is printed in the band it was judged in — COVADIS (≥ 90% with symptoms and ischaemic ECG is epicardial spasm); common practice: judged as entered, never printed onto the cut-off', () => {
+  it.each([
+    { pct: 89.996, result: 'microvascular-spasm', text: 'with 89.996% constriction (below 90%)' },
+    { pct: 89.6, result: 'microvascular-spasm', text: 'with 89.6% constriction (below 90%)' },
+    { pct: 90, result: 'epicardial-spasm', text: '90% constriction with reproduced symptoms' },
+  ])(`$pct% with symptoms and ECG changes → $result — ${SRC.covadis}`, ({ pct, result, text }) => {
+    const r = run([dose(pct, true, true)]);
+    expect(r.vasoreactivity?.result).toBe(result);
+    expect(r.reasons[0]).toContain(text);
+  });
+  it(`19.996% without symptoms is negative and prints below 20% — ${SRC.endothelial}`, () => {
+    const r = run([dose(19.996, false, false)]);
+    expect(r.vasoreactivity?.result).toBe('negative');
+    expect(r.reasons[0]).toContain('maximum constriction 19.996% (below 20%');
+  });
+});

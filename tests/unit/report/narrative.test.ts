@@ -421,3 +421,20 @@ describe('microvascular dysfunction of a type not known is worded as such in the
     expect(text).not.toMatch(/preserved/i);
   });
 });
+
+describe('entered percentages are printed on the side of the cut-off they were judged on — COVADIS (Ong et al., Int J Cardiol 2018: ≥ 50% visual stenosis is obstructive; ≥ 90% constriction with symptoms and ECG changes is epicardial spasm)', () => {
+  it('a 49.6% visual stenosis, not obstructive, prints 49.6 %, never 50 %', () => {
+    const s = demoReportStudies()[0];
+    s.vessels = [{ ...emptyVessel(s.vessels[0].id, 'LAD'), visualStenosisPct: 49.6, driftNotDoneReason: 'No wire used' }];
+    const text = render(s).text;
+    expect(text).toContain('not angiographically obstructive by visual estimate (visual stenosis 49.6 %');
+    expect(text).not.toContain('50 %');
+  });
+  it('an 89.6% constriction with symptoms and ECG changes (microvascular spasm) prints 89.6 % in the dose table', () => {
+    const s = demoReportStudies()[3];
+    const last = s.vasoreactivity.doses.length - 1;
+    s.vasoreactivity.doses[last] = { ...s.vasoreactivity.doses[last], constrictionPct: 89.6, symptoms: true, ischemicEcg: true };
+    const a = section(render(s).text, 'ACETYLCHOLINE TESTING')!;
+    expect(a).toMatch(/89\.6 %\s+Yes\s+Yes\s+Microvascular spasm/);
+  });
+});
