@@ -178,7 +178,7 @@ export function classifyStudy(
       if (v.obstructive) reasons.push(label + ': ' + rest.name + ' ' + ratio(rest.value) + ctx.restAbnormal[rest.key]);
     } else if (v.visualStenosisPct !== undefined) {
       v.judgedBy = 'visual-stenosis';
-      v.obstructive = v.visualStenosisPct >= t.obstructiveStenosisPct;
+      v.obstructive = atOrAbove(v.visualStenosisPct, t.obstructiveStenosisPct, 'raw');
       if (v.obstructive) reasons.push(`${label}: visual stenosis ${stenosisText(v.visualStenosisPct, t)}%${ctx.stenosisObstructive}`);
     }
     if (v.judgedBy !== undefined && v.judgedBy !== 'visual-stenosis') epicardialAssessed = true;
@@ -187,7 +187,7 @@ export function classifyStudy(
       v.judgedBy !== 'visual-stenosis' &&
       !v.obstructive &&
       v.visualStenosisPct !== undefined &&
-      v.visualStenosisPct >= t.obstructiveStenosisPct
+      atOrAbove(v.visualStenosisPct, t.obstructiveStenosisPct, 'raw')
     ) {
       reasons.push(
         `${label}: visual stenosis ${stenosisText(v.visualStenosisPct, t)}% is at or above ${ctx.stenosisCut}%, but the pressure index is above its cut-off; the pressure index decides (COVADIS), so the vessel is not obstructive.`,

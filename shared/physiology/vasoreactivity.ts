@@ -84,11 +84,13 @@ export function analyzeVasoreactivity(
     const right = rightCoronaryVessels.has(d.vessel);
     const ceiling = right ? t.achMaxMicrogramsRight : t.achMaxMicrograms;
     if (above(d.micrograms, ceiling, 'raw')) {
+      // Printed with the decimals that keep it above the ceiling (200.4 µg is not "200 µg").
+      const high = `${formatAgreeing(d.micrograms, 'dose', (x) => above(x, ceiling, 'raw'))} µg into the ${vesselShortName[d.vessel]}`;
       warnings.push({
         code: 'ach-dose-high',
         message: right
-          ? `Acetylcholine dose ${i + 1} (${doseName(d)}) is above the usual ceiling of ${cutPlain(ceiling)} µg for the right coronary (${cite(t, 'achMaxMicrogramsRight')}; ESC 2024 warns of bradycardia); accepted — check the entry.`
-          : `Acetylcholine dose ${i + 1} (${doseName(d)}) is above the usual maximum of ${cutPlain(ceiling)} µg (${cite(t, 'achMaxMicrograms')}); accepted — check the entry.`,
+          ? `Acetylcholine dose ${i + 1} (${high}) is above the usual ceiling of ${cutPlain(ceiling)} µg for the right coronary (${cite(t, 'achMaxMicrogramsRight')}; ESC 2024 warns of bradycardia); accepted — check the entry.`
+          : `Acetylcholine dose ${i + 1} (${high}) is above the usual maximum of ${cutPlain(ceiling)} µg (${cite(t, 'achMaxMicrograms')}); accepted — check the entry.`,
       });
     }
     if (outcome === 'equivocal') {

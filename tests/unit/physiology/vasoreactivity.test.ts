@@ -145,3 +145,15 @@ describe('a constriction is printed in the band it was judged in — COVADIS (�
     expect(r.reasons[0]).toContain('maximum constriction 19.996% (below 20%');
   });
 });
+
+describe('a dose above the ceiling is printed above it — ESC 2024 protocol figure (up to 200 µg into the left coronary); common practice: never printed onto the ceiling', () => {
+  it.each([
+    { micrograms: 200.4, warn: true, text: '(200.4 µg into the LAD) is above the usual maximum of 200 µg' },
+    { micrograms: 201, warn: true, text: '(201 µg into the LAD) is above the usual maximum of 200 µg' },
+    { micrograms: 200, warn: false, text: '' },
+  ])(`$micrograms µg → warn $warn — ${SRC.ceiling}`, ({ micrograms, warn, text }) => {
+    const w = run([dose(10, false, false, micrograms)]).warnings.find((x) => x.code === 'ach-dose-high');
+    expect(w !== undefined).toBe(warn);
+    if (warn) expect(w!.message).toContain(text);
+  });
+});
