@@ -1,4 +1,6 @@
-import { driftOutOfRange } from '../../shared/physiology/quality';
+import { driftOutOfRange, driftText } from '../../shared/physiology/quality';
+import { stenosisText } from '../../shared/physiology/endotype';
+import { constrictionText } from '../../shared/physiology/vasoreactivity';
 import {
   defaultThresholds,
   endotypeName,
@@ -298,11 +300,9 @@ function techniqueSentences(study: ReportStudy, t: Thresholds): string[] {
     const name = vesselShortName[v.vessel];
     if (isNum(v.driftPdPa)) {
       // Judged as entered, by the same rule as the screens' drift banner; a value outside the window
-      // that would print as a bound (1.024 → "1.02") is printed to three decimals so the words agree.
+      // that would print as a bound (1.024 → "1.02") is printed with the decimals that keep it outside.
       const outside = driftOutOfRange(v.driftPdPa, t);
-      const shown = q(v.driftPdPa, 'ratio');
-      const printed = outside && Number(shown) >= t.driftLow && Number(shown) <= t.driftHigh ? v.driftPdPa.toFixed(3) : shown;
-      drift.push(`${name} ${printed} (${outside ? 'outside' : 'within'} ${window})`);
+      drift.push(`${name} ${driftText(v.driftPdPa, t)} (${outside ? 'outside' : 'within'} ${window})`);
     } else {
       const reason = (v as { driftNotDoneReason?: string | null }).driftNotDoneReason;
       if (filled(reason)) drift.push(`${name} not done (${reason.trim()})`);
@@ -346,7 +346,7 @@ function compact(columns: string[], rows: Array<Array<Cell | null>>): Table | nu
   };
 }
 
-function measurementTable(study: ReportStudy, analysis: PhysiologyResult): Table | null {
+function measurementTable(study: ReportStudy, analysis: PhysiologyResult, t: Thresholds): Table | null {
   const byId = new Map(analysis.vessels.map((v) => [v.id, v]));
   const rows = study.vessels.map((v) => {
     const r = byId.get(v.id);
@@ -354,7 +354,7 @@ function measurementTable(study: ReportStudy, analysis: PhysiologyResult): Table
     return [
       { text: vesselShortName[v.vessel] },
       segmentLabel(v.segment) ? { text: segmentLabel(v.segment)! } : null,
-      isNum(v.visualStenosisPct) ? { text: withUnit(v.visualStenosisPct, 'percent') } : null,
+      isNum(v.visualStenosisPct) ? { text: `${stenosisText(v.visualStenosisPct, t)} %` } : null,
       pair(v.restPa, v.restPd),
       pair(v.hyperemiaPa, v.hyperemiaPd),
       r?.tmnRest !== undefined ? { text: q(r.tmnRest, 'transit') } : null,
@@ -412,8 +412,18 @@ function vesselSentences(
   afterPci: boolean,
   t: Thresholds,
   used: UsedThresholds,
+  qualifyUnused: boolean,
 ): string[] {
   const out: string[] = [];
+  // CFR, IMR, RRR and MRR draw no microvascular finding where obstruction was not excluded (COVADIS);
+  // from template v3 their sentences say so.
+  const unused = !qualifyUnused
+    ? ''
+    : r.obstructive === true
+      ? ' Not used for the microvascular finding: the vessel has an obstructive stenosis.'
+      : r.obstructive === undefined
+        ? ' Not used for the microvascular finding: obstruction was not excluded in this vessel.'
+        : '';
   const against = (op: string, key: ThresholdKey, kind: QuantityKind = 'ratio', unit = '') => `(cut-off ${op} ${q(t[key], kind)}${unit}, ${cite(t, key)})`;
 
   if (r.ffr !== undefined) {
@@ -435,24 +445,24 @@ function vesselSentences(
     used.add('cfr');
     const band = t.cfrBorderline > t.cfr ? `; borderline from ${q(t.cfr, 'ratio')} to below ${q(t.cfrBorderline, 'ratio')}` : '';
     if (band) used.add('cfrBorderline');
-    out.push(`CFR ${q(r.cfr, 'ratio')}: ${judged(r.cfrFlag)} ${against('<', 'cfr')}${band}.`);
+    out.push(`CFR ${q(r.cfr, 'ratio')}: ${judged(r.cfrFlag)} ${against('<', 'cfr')}${band}.${unused}`);
   }
   if (r.imr !== undefined) {
     used.add('imr');
     const method = r.imrMethod && r.imrMethod !== 'pd-tmn' ? `, ${imrMethodLabel[r.imrMethod]}` : '';
     const raw = r.imrMethod && r.imrMethod !== 'pd-tmn' && r.imrUncorrected !== undefined ? `; uncorrected ${withUnit(r.imrUncorrected, 'imr')}` : '';
-    out.push(`IMR ${withUnit(r.imr, 'imr')}${method}: ${judged(r.imrFlag)} ${against('≥', 'imr', 'imr', ' U')}${raw}.`);
+    out.push(`IMR ${withUnit(r.imr, 'imr')}${method}: ${judged(r.imrFlag)} ${against('≥', 'imr', 'imr', ' U')}${raw}.${unused}`);
   }
   if (r.rrr !== undefined) {
     used.add('rrr');
-    out.push(`RRR ${q(r.rrr, 'ratio')}: ${judged(r.rrrFlag)} ${against('<', 'rrr')}.`);
+    out.push(`RRR ${q(r.rrr, 'ratio')}: ${judged(r.rrrFlag)} ${against('<', 'rrr')}.${unused}`);
   }
   if (r.mrr !== undefined) {
     used.add('mrr');
     used.add('mrrBorderline');
     const method = r.mrrMethod === 'bolus-thermodilution' ? ' Computed from bolus thermodilution; these cut-offs were set with continuous thermodilution.' : '';
     out.push(
-      `MRR ${q(r.mrr, 'ratio')}: ${judged(r.mrrFlag)} ${against('<', 'mrr')}; borderline from ${q(t.mrr, 'ratio')} to ${q(t.mrrBorderline, 'ratio')}.${method}`,
+      `MRR ${q(r.mrr, 'ratio')}: ${judged(r.mrrFlag)} ${against('<', 'mrr')}; borderline from ${q(t.mrr, 'ratio')} to ${q(t.mrrBorderline, 'ratio')}.${method}${unused}`,
     );
   }
 
@@ -460,7 +470,7 @@ function vesselSentences(
   if (r.obstructive !== undefined) {
     const by =
       r.judgedBy === 'visual-stenosis'
-        ? `visual stenosis ${withUnit(r.visualStenosisPct ?? 0, 'percent')}, no pressure index`
+        ? `visual stenosis ${stenosisText(r.visualStenosisPct ?? 0, t)} %, no pressure index`
         : r.judgedBy === 'ffr'
           ? 'FFR'
           : r.judgedBy === 'nhpr' && r.nhprKind
@@ -493,7 +503,7 @@ function vesselSentences(
   return out;
 }
 
-function lesionSummary(study: ReportStudy, analysis: PhysiologyResult, afterPci: boolean): string[] {
+function lesionSummary(study: ReportStudy, analysis: PhysiologyResult, afterPci: boolean, t: Thresholds): string[] {
   const rows = new Map(study.vessels.map((v) => [v.id, v]));
   const out: string[] = [];
   for (const r of analysis.vessels) {
@@ -506,7 +516,7 @@ function lesionSummary(study: ReportStudy, analysis: PhysiologyResult, afterPci:
           ? `${lowerFirst(nhprKindLabel[r.nhprKind])} ${q(r.nhpr, 'ratio')}`
           : r.restingPdPa !== undefined
             ? `resting Pd/Pa ${q(r.restingPdPa, 'ratio')}`
-            : `visual stenosis ${withUnit(r.visualStenosisPct ?? 0, 'percent')}`;
+            : `visual stenosis ${stenosisText(r.visualStenosisPct ?? 0, t)} %`;
     const where = vesselTitle(r.vessel, row?.segment);
     const decision = row?.decision ? `; ${lowerFirst(vocabulary.decisionLabel[row.decision])}` : '';
     const verdict = afterPci
@@ -554,7 +564,7 @@ function acetylcholineSection(study: ReportStudy, analysis: PhysiologyResult, t:
     return {
       dose: isNum(d.micrograms) ? withUnit(d.micrograms, 'dose') : '—',
       vessel: vesselShortName[d.vessel],
-      constriction: isNum(d.constrictionPct) ? withUnit(d.constrictionPct, 'percent') : '—',
+      constriction: isNum(d.constrictionPct) ? `${constrictionText(d.constrictionPct, t)} %` : '—',
       symptoms: yesNo(d.symptoms),
       ecg: yesNo(d.ischemicEcg),
       result: res ? vasoreactivityOutcomeLabel[res.result] : '—',
@@ -678,6 +688,9 @@ export function thresholdsBasisSentence(b: ThresholdsBasisInfo, tz: string): str
   return `Judged by ${set}.`;
 }
 
+/** A template version's number ("v3" → 3). */
+const templateNumber = (version: string): number => Number(version.slice(1));
+
 /** Builds the report's view model. Pure: the same input gives the same view. */
 export function buildReportView(input: ReportInput): ReportView {
   const { study, analysis, thresholds: t } = input;
@@ -704,11 +717,12 @@ export function buildReportView(input: ReportInput): ReportView {
   idn('Operator', input.people.operator);
   idn('Referring clinician', d.referringName);
 
+  const templateVersion = input.templateVersion ?? REPORT_TEMPLATE_VERSION;
   const interpretation: VesselInterpretation[] = [];
   const rows = new Map(study.vessels.map((v) => [v.id, v]));
   for (const r of analysis.vessels) {
     const row = rows.get(r.id);
-    const sentences = vesselSentences(r, row, kind, afterPci, t, used);
+    const sentences = vesselSentences(r, row, kind, afterPci, t, used, templateNumber(templateVersion) >= 3);
     if (sentences.length) interpretation.push({ vessel: vesselTitle(r.vessel, row?.segment), sentences });
   }
 
@@ -733,7 +747,6 @@ export function buildReportView(input: ReportInput): ReportView {
   // "Angina" in the endotype's name only when the record says the patient has angina (COVADIS).
   const endotypeWords = endotypeName(analysis.endotype, d.anginaPresent ?? undefined, endotypeLabel);
 
-  const templateVersion = input.templateVersion ?? REPORT_TEMPLATE_VERSION;
   return {
     templateVersion,
     kind,
@@ -746,10 +759,10 @@ export function buildReportView(input: ReportInput): ReportView {
       question: d.clinicalQuestion ? vocabulary.clinicalQuestionLabel[d.clinicalQuestion] : null,
     },
     technique,
-    measurements: measurementTable(study, analysis),
+    measurements: measurementTable(study, analysis, t),
     indices: indexTable(analysis),
     interpretation,
-    lesionSummary: kind === 'lesion' ? lesionSummary(study, analysis, afterPci) : [],
+    lesionSummary: kind === 'lesion' ? lesionSummary(study, analysis, afterPci, t) : [],
     acetylcholine,
     endotype:
       kind === 'coronary-function'

@@ -1,6 +1,6 @@
 import { z } from 'zod';
 import { vesselCodes } from '../physiology/schema';
-import type { PhysiologyResult } from '../physiology/types';
+import type { Findings, PhysiologyResult } from '../physiology/types';
 import type { StudySections } from '../study/schema';
 import { billingContexts, interventionKinds, patientClasses, settings, stentTypes, type CodingInput, type MeasuredIndex } from './schema';
 import { localDate } from '../time/local-date';
@@ -162,7 +162,9 @@ export function toCodingInput(
     diagnoses: {
       obstructiveCad: f.obstructive,
       angina,
-      microvascularDysfunction: f.microvascular !== null,
+      // Dysfunction whether or not its type could be decided; an analysis stored before the field
+      // existed had a subtype for every finding it made.
+      microvascularDysfunction: (f as Partial<Findings>).microvascularDysfunction ?? f.microvascular !== null,
       vasospasm: f.vasospasm,
     },
     // The lab's calendar day, not UTC's: it picks the code-set release and is the claim's date.

@@ -15,10 +15,16 @@ export interface Ctx {
   imrAbnormal: string;
   cfrAbnormal: string;
   obstructedTail: string;
+  /** Qualifiers (no final stop) for an index in a vessel where no microvascular finding is drawn. */
+  notUsedObstructed: string;
+  notUsedUnexcluded: string;
   cfrBorderline: string;
+  /** RRR and MRR sentence parts, without the final stop (a qualifier may follow). */
   rrrAbnormal: string;
   mrrAbnormal: string;
   mrrBorderline: string;
+  /** How MRR was measured here (a clause for the end of an MRR sentence). */
+  mrrMethod: string;
   stenosisObstructive: string;
   stenosisCut: string;
 }
@@ -42,10 +48,13 @@ function build(t: Thresholds): Ctx {
     imrAbnormal: ` is at or above the ${cutPlain(t.imr)} cut-off (${cite(t, 'imr')}) — raised microvascular resistance`,
     cfrAbnormal: ` is below the ${cutRatio(t.cfr)} cut-off (${cite(t, 'cfr')}) — impaired coronary flow reserve`,
     obstructedTail: ' — in a vessel with an obstructive stenosis, so not used for the microvascular finding.',
+    notUsedObstructed: ' — in a vessel with an obstructive stenosis, so not used for the microvascular finding',
+    notUsedUnexcluded: ' — obstruction was not excluded in this vessel, so not used for the microvascular finding',
     cfrBorderline: ` is in the borderline band ${cutRatio(t.cfr)}–${cutRatio(t.cfrBorderline)} (${cite(t, 'cfr')} uses ${cutRatio(t.cfr)}, ${cite(t, 'cfrBorderline')} uses ${cutRatio(t.cfrBorderline)}) — not enough on its own for microvascular dysfunction.`,
-    rrrAbnormal: ` is below the ${cutRatio(t.rrr)} cut-off (${cite(t, 'rrr')}) — reduced resistive reserve.`,
-    mrrAbnormal: ` is below the ${cutRatio(t.mrr)} cut-off — reduced microvascular resistance reserve; ${mrrMethod}.`,
-    mrrBorderline: ` is in the ${cutRatio(t.mrr)}–${cutRatio(t.mrrBorderline)} borderline band — ${mrrMethod}.`,
+    rrrAbnormal: ` is below the ${cutRatio(t.rrr)} cut-off (${cite(t, 'rrr')}) — reduced resistive reserve`,
+    mrrAbnormal: ` is below the ${cutRatio(t.mrr)} cut-off — reduced microvascular resistance reserve`,
+    mrrBorderline: ` is in the ${cutRatio(t.mrr)}–${cutRatio(t.mrrBorderline)} borderline band`,
+    mrrMethod,
     stenosisObstructive: ` with no pressure index is at or above ${cutPlain(t.obstructiveStenosisPct)}% (${cite(t, 'obstructiveStenosisPct')}) — obstructive by angiography.`,
     stenosisCut: cutPlain(t.obstructiveStenosisPct),
   };

@@ -1,5 +1,7 @@
 import type { Ctx } from './context';
+import { atOrAbove } from './compare';
 import { cutPlain, cutRatio, imrText, joinAnd, ratio } from './format';
+import { formatAgreeing } from './precision';
 import { nhprCutoffKey, nhprName } from './indices';
 import { cite, type Thresholds } from './thresholds';
 import type { Endotype, Findings, Flag, VasoreactivityResult, VesselResult } from './types';
@@ -32,6 +34,11 @@ function restingIndex(v: VesselResult, t: Thresholds): RestingIndex | undefined 
   return undefined;
 }
 
+/** A visual stenosis as text on the same side of the obstructive cut-off as the value judged. */
+export function stenosisText(pct: number, t: Pick<Thresholds, 'obstructiveStenosisPct'>): string {
+  return formatAgreeing(pct, 'percent', (x) => atOrAbove(x, t.obstructiveStenosisPct, 'raw'));
+}
+
 const imrMethodName = {
   'pd-tmn': ' (Pd × Tmn)',
   wedge: ' (wedge-corrected)',
@@ -48,31 +55,54 @@ const doubtfulQuality: Record<string, string> = {
   'ffr-mismatch': 'entered FFR disagrees with the pressures',
 };
 
-type MicroKind = NonNullable<Findings['microvascular']>;
+/**
+ * One vessel's microvascular finding as it is worded. The first three are the contract's subtypes; the
+ * other three are dysfunction whose type cannot be decided (the partner index was not measured), or
+ * raised resistance beside a borderline CFR, worded as such.
+ */
+type MicroWording =
+  | 'structural'
+  | 'functional'
+  | 'raised-imr'
+  | 'raised-imr-cfr-borderline'
+  | 'low-cfr-imr-missing'
+  | 'raised-imr-cfr-missing';
 
-/** One vessel's microvascular finding in words; `partnerMissing`: the other of CFR and IMR was not measured there. */
-function microPhrase(kind: MicroKind, partnerMissing: boolean): string {
+/** The contract's subtype for each wording; null where the type cannot be decided. */
+const microSubtype: Record<MicroWording, NonNullable<Findings['microvascular']> | null> = {
+  structural: 'structural',
+  functional: 'functional',
+  'raised-imr': 'raised-imr',
+  'raised-imr-cfr-borderline': 'raised-imr',
+  'low-cfr-imr-missing': null,
+  'raised-imr-cfr-missing': null,
+};
+
+/** One vessel's microvascular finding in words. */
+function microPhrase(kind: MicroWording): string {
   switch (kind) {
     case 'structural':
       return 'structural coronary microvascular dysfunction (low CFR, raised IMR)';
-    case 'type-unknown':
-      return 'coronary microvascular dysfunction with low CFR (IMR not measured, so its type is not known)';
     case 'functional':
       return 'functional coronary microvascular dysfunction (low CFR, IMR not raised)';
+    case 'low-cfr-imr-missing':
+      return 'coronary microvascular dysfunction with low CFR (IMR not measured, so its type is not known)';
+    case 'raised-imr-cfr-missing':
+      return 'coronary microvascular dysfunction with raised IMR (CFR not measured, so its type is not known)';
+    case 'raised-imr-cfr-borderline':
+      return 'raised microvascular resistance with borderline CFR';
     default:
-      return partnerMissing
-        ? 'raised microvascular resistance (CFR not measured)'
-        : 'raised microvascular resistance with preserved CFR';
+      return 'raised microvascular resistance with preserved CFR';
   }
 }
 
 const spasmWords = { epicardial: 'epicardial coronary spasm', microvascular: 'microvascular spasm' } as const;
 
-const microRank = { structural: 4, functional: 3, 'type-unknown': 2, 'raised-imr': 1 } as const;
+/** The study's subtype is the most severe typed one found in any vessel. */
+const microRank = { structural: 3, functional: 2, 'raised-imr': 1 } as const;
 
 interface MicroGroup {
-  kind: MicroKind;
-  partnerMissing: boolean;
+  kind: MicroWording;
   labels: string[];
 }
 
@@ -81,6 +111,11 @@ export interface Classification {
   endotype: Endotype;
   headline: string;
   reasons: string[];
+  /**
+   * Everything else needed for "no coronary abnormality" was met, but acetylcholine showed endothelial
+   * dysfunction: the test is not negative, so the endotype is left open (the caller may add doubts).
+   */
+  normalButEndothelial: boolean;
 }
 
 /**
@@ -100,6 +135,7 @@ export function classifyStudy(
   const obstructiveLabels: string[] = [];
   const clearLabels: string[] = [];
   let microvascular: Findings['microvascular'] = null;
+  let microvascularDysfunction = false;
   let borderlineCfr = false;
   let lowRrr = false;
   let lowMrr = false;
@@ -142,8 +178,8 @@ export function classifyStudy(
       if (v.obstructive) reasons.push(label + ': ' + rest.name + ' ' + ratio(rest.value) + ctx.restAbnormal[rest.key]);
     } else if (v.visualStenosisPct !== undefined) {
       v.judgedBy = 'visual-stenosis';
-      v.obstructive = v.visualStenosisPct >= t.obstructiveStenosisPct;
-      if (v.obstructive) reasons.push(`${label}: visual stenosis ${cutPlain(v.visualStenosisPct)}%${ctx.stenosisObstructive}`);
+      v.obstructive = atOrAbove(v.visualStenosisPct, t.obstructiveStenosisPct, 'raw');
+      if (v.obstructive) reasons.push(`${label}: visual stenosis ${stenosisText(v.visualStenosisPct, t)}%${ctx.stenosisObstructive}`);
     }
     if (v.judgedBy !== undefined && v.judgedBy !== 'visual-stenosis') epicardialAssessed = true;
     if (
@@ -151,10 +187,10 @@ export function classifyStudy(
       v.judgedBy !== 'visual-stenosis' &&
       !v.obstructive &&
       v.visualStenosisPct !== undefined &&
-      v.visualStenosisPct >= t.obstructiveStenosisPct
+      atOrAbove(v.visualStenosisPct, t.obstructiveStenosisPct, 'raw')
     ) {
       reasons.push(
-        `${label}: visual stenosis ${cutPlain(v.visualStenosisPct)}% is at or above ${ctx.stenosisCut}%, but the pressure index is above its cut-off; the pressure index decides (COVADIS), so the vessel is not obstructive.`,
+        `${label}: visual stenosis ${stenosisText(v.visualStenosisPct, t)}% is at or above ${ctx.stenosisCut}%, but the pressure index is above its cut-off; the pressure index decides (COVADIS), so the vessel is not obstructive.`,
       );
     }
     if (v.obstructive) obstructiveLabels.push(label);
@@ -178,16 +214,33 @@ export function classifyStudy(
       if (cfrJudged) cfrJudgedAny = true;
       if (imrJudged) imrJudgedAny = true;
       if (cfrJudged && imrJudged) bothJudgedInOneVessel = true;
-      // Functional needs IMR measured and not raised (EAPCI 2020); a low CFR without IMR is of unknown type.
-      const kind: Findings['microvascular'] =
-        cfrLow && imrHigh ? 'structural' : cfrLow ? (v.imr === undefined ? 'type-unknown' : 'functional') : imrHigh ? 'raised-imr' : null;
+      // Functional needs IMR measured and not raised, structural a low CFR with a raised IMR (EAPCI 2020;
+      // ILIAS): a low CFR without IMR, or a raised IMR without CFR, is dysfunction of a type not known.
+      const kind: MicroWording | null =
+        cfrLow && imrHigh
+          ? 'structural'
+          : cfrLow
+            ? imrJudged
+              ? 'functional'
+              : 'low-cfr-imr-missing'
+            : imrHigh
+              ? !cfrJudged
+                ? 'raised-imr-cfr-missing'
+                : v.cfrFlag === 'borderline'
+                  ? 'raised-imr-cfr-borderline'
+                  : 'raised-imr'
+              : null;
       if (kind !== null) {
-        v.microvascular = kind;
-        if (microvascular === null || microRank[kind] > microRank[microvascular]) microvascular = kind;
-        const partnerMissing = kind === 'type-unknown' ? true : kind === 'raised-imr' ? v.cfr === undefined : false;
-        const group = microGroups.find((g) => g.kind === kind && g.partnerMissing === partnerMissing);
+        microvascularDysfunction = true;
+        v.microvascularDysfunction = true;
+        const subtype = microSubtype[kind];
+        if (subtype !== null) {
+          v.microvascular = subtype;
+          if (microvascular === null || microRank[subtype] > microRank[microvascular]) microvascular = subtype;
+        }
+        const group = microGroups.find((g) => g.kind === kind);
         if (group) group.labels.push(label);
-        else microGroups.push({ kind, partnerMissing, labels: [label] });
+        else microGroups.push({ kind, labels: [label] });
       }
     } else if (!obstructed && (cfrLow || imrHigh)) {
       const which = cfrLow && imrHigh ? `CFR ${ratio(v.cfr ?? 0)} and IMR ${imrText(v.imr ?? 0)}` : cfrLow ? `CFR ${ratio(v.cfr ?? 0)}` : `IMR ${imrText(v.imr ?? 0)}`;
@@ -196,6 +249,9 @@ export function classifyStudy(
         `${label}: ${which} ${cfrLow && imrHigh ? 'are' : 'is'} abnormal, but obstruction was not excluded in this vessel (no pressure index and no stenosis estimate), so it is not used for a microvascular finding (COVADIS; EAPCI 2020).`,
       );
     }
+    // Where no microvascular finding is drawn, every CFR, IMR, RRR and MRR sentence says so.
+    const excluded = !obstructed && v.judgedBy !== undefined;
+    const notUsed = obstructed ? ctx.notUsedObstructed : excluded ? '' : ctx.notUsedUnexcluded;
     if (v.imr !== undefined && imrHigh) {
       reasons.push(
         label +
@@ -204,7 +260,15 @@ export function classifyStudy(
           ' U' +
           imrMethodName[v.imrMethod ?? 'pd-tmn'] +
           ctx.imrAbnormal +
-          (obstructed ? ctx.obstructedTail : cfrLow ? ' with impaired CFR (structural microvascular dysfunction).' : v.cfr !== undefined ? ' with CFR preserved — not structural dysfunction, which needs a low CFR as well.' : ' (CFR not measured).') +
+          (!excluded
+            ? notUsed + '.'
+            : cfrLow
+              ? ' with impaired CFR (structural microvascular dysfunction).'
+              : v.cfrFlag === 'borderline'
+                ? ` with CFR ${ratio(v.cfr ?? 0)} borderline, not low — not structural dysfunction, which needs a low CFR as well.`
+                : v.cfrFlag === 'normal'
+                  ? ' with CFR preserved — not structural dysfunction, which needs a low CFR as well.'
+                  : '; CFR was not measured, so its type cannot be decided (structural dysfunction needs a low CFR as well).') +
           (v.warnings.some((w) => w.code === 'hyperemia-inadequate')
             ? ' Hyperaemia may have been inadequate: the hyperaemic transit time would then be too long, so this IMR may be overestimated.'
             : ''),
@@ -217,22 +281,28 @@ export function classifyStudy(
             ': CFR ' +
             ratio(v.cfr) +
             ctx.cfrAbnormal +
-            (obstructed ? ctx.obstructedTail : imrHigh ? '.' : v.imr !== undefined ? ' with IMR not raised (functional microvascular dysfunction).' : '; IMR was not measured, so structural dysfunction cannot be told apart.'),
+            (!excluded
+              ? notUsed + '.'
+              : imrHigh
+                ? '.'
+                : imrJudged
+                  ? ' with IMR not raised (functional microvascular dysfunction).'
+                  : '; IMR was not measured, so whether it is structural or functional cannot be decided.'),
         );
       } else if (v.cfrFlag === 'borderline') {
-        if (!obstructed) borderlineCfr = true;
+        if (excluded) borderlineCfr = true;
         reasons.push(label + ': CFR ' + ratio(v.cfr) + ctx.cfrBorderline);
       }
     }
     if (v.rrr !== undefined && v.rrrFlag === 'abnormal') {
-      if (!obstructed) lowRrr = true;
-      reasons.push(label + ': RRR ' + ratio(v.rrr) + ctx.rrrAbnormal);
+      if (excluded) lowRrr = true;
+      reasons.push(label + ': RRR ' + ratio(v.rrr) + ctx.rrrAbnormal + notUsed + '.');
     }
     if (v.mrr !== undefined && v.mrrFlag === 'abnormal') {
-      if (!obstructed) lowMrr = true;
-      reasons.push(label + ': MRR ' + ratio(v.mrr) + ctx.mrrAbnormal);
+      if (excluded) lowMrr = true;
+      reasons.push(`${label}: MRR ${ratio(v.mrr)}${ctx.mrrAbnormal}${notUsed}; ${ctx.mrrMethod}.`);
     } else if (v.mrr !== undefined && v.mrrFlag === 'borderline') {
-      reasons.push(label + ': MRR ' + ratio(v.mrr) + ctx.mrrBorderline);
+      reasons.push(`${label}: MRR ${ratio(v.mrr)}${ctx.mrrBorderline}${notUsed ? `${notUsed};` : ' —'} ${ctx.mrrMethod}.`);
     }
 
     // A judged value that failed a quality check qualifies what is said about it.
@@ -257,20 +327,23 @@ export function classifyStudy(
   const equivocalAch = vr === 'equivocal';
 
   // Each vessel's microvascular finding is named with its vessels, never merged into one.
-  const microParts = microGroups.map((g) => `${microPhrase(g.kind, g.partnerMissing)} in ${joinAnd(g.labels)}`);
+  const microParts = microGroups.map((g) => `${microPhrase(g.kind)} in ${joinAnd(g.labels)}`);
+  const cfrNormalFrom = cutRatio(Math.max(t.cfr, t.cfrBorderline));
   const cmdParts = microGroups.map((g) => {
     const where = ` in ${joinAnd(g.labels)}`;
     switch (g.kind) {
       case 'structural':
         return `structural microvascular dysfunction${where}: CFR below ${cutRatio(t.cfr)} with IMR at or above ${cutPlain(t.imr)}`;
-      case 'type-unknown':
-        return `microvascular dysfunction with low CFR${where}: CFR below ${cutRatio(t.cfr)} with IMR not measured`;
       case 'functional':
         return `functional microvascular dysfunction${where}: CFR below ${cutRatio(t.cfr)} with IMR below the cut-off`;
+      case 'low-cfr-imr-missing':
+        return `microvascular dysfunction with low CFR${where}: CFR below ${cutRatio(t.cfr)} with IMR not measured, so whether it is structural or functional cannot be decided`;
+      case 'raised-imr-cfr-missing':
+        return `microvascular dysfunction with raised IMR${where}: IMR at or above ${cutPlain(t.imr)} with CFR not measured, so its type cannot be decided`;
+      case 'raised-imr-cfr-borderline':
+        return `raised microvascular resistance${where}: IMR at or above ${cutPlain(t.imr)} with CFR borderline (${cutRatio(t.cfr)} to below ${cfrNormalFrom}), not low`;
       default:
-        return g.partnerMissing
-          ? `raised microvascular resistance${where}: IMR at or above ${cutPlain(t.imr)} with CFR not measured`
-          : `raised microvascular resistance${where}: IMR at or above ${cutPlain(t.imr)} with CFR not below ${cutRatio(t.cfr)}`;
+        return `raised microvascular resistance${where}: IMR at or above ${cutPlain(t.imr)} with CFR not below ${cfrNormalFrom}`;
     }
   });
   const coexisting: string[] = [...microParts];
@@ -296,13 +369,14 @@ export function classifyStudy(
 
   let endotype: Endotype;
   let headline: string;
+  let normalButEndothelial = false;
   if (obstructive) {
     endotype = 'obstructive';
     headline = `Obstructive coronary disease (${obstructiveLabels.join(', ')})${coexisting.length ? `, with ${joinAnd(coexisting)}` : ''}`;
     reasons.push(
       `Endotype: obstructive — abnormal pressure index or obstructive stenosis in ${obstructiveLabels.join(', ')}${coexisting.length ? `; coexisting ${joinAnd(coexisting)} ${coexisting.length > 1 ? 'are' : 'is'} reported as well (ESC 2024)` : ''}.`,
     );
-  } else if (microvascular !== null || vasospasm === 'microvascular') {
+  } else if (microvascularDysfunction || vasospasm === 'microvascular') {
     const parts: string[] = [...cmdParts];
     if (vasospasm === 'microvascular') parts.push('microvascular spasm');
     if (vasospasm === 'epicardial') {
@@ -351,13 +425,17 @@ export function classifyStudy(
     if (lowMrr) notes.push('a low MRR');
     const noted = notes.length > 0 ? `; ${joinAnd(notes)} ${notes.length > 1 ? 'were' : 'was'} noted but ${notes.length > 1 ? 'do' : 'does'} not define an endotype` : '';
     if (missing.length === 0 && bothJudgedInOneVessel && !equivocalAch && unjudgedAbnormal.length === 0 && unjudgedThermo.length === 0) {
-      endotype = 'no-abnormality';
       if (endothelialDysfunction) {
+        // "No coronary abnormality" needs a negative acetylcholine test (EAPCI 2020); endothelial
+        // dysfunction is a finding, not spasm, and not one of the endotypes.
+        endotype = 'inconclusive';
+        normalButEndothelial = true;
         headline = 'No obstructive disease, microvascular dysfunction or spasm; endothelial dysfunction on acetylcholine testing';
         reasons.push(
-          `Endotype: no obstructive stenosis, CFR and IMR within the lab's thresholds and no spasm on acetylcholine testing, but endothelial dysfunction was found — reported as a finding, not spasm${noted} (EAPCI 2020; COVADIS).`,
+          `Endotype: inconclusive — no obstructive stenosis, CFR and IMR within the lab's thresholds and no spasm on acetylcholine testing, but endothelial dysfunction was found — reported as a finding, not spasm; the acetylcholine test is not negative, so the study cannot be called free of coronary abnormality${noted} (EAPCI 2020; COVADIS).`,
         );
       } else {
+        endotype = 'no-abnormality';
         headline = 'No coronary abnormality found';
         reasons.push(
           `Endotype: no coronary abnormality — no obstructive stenosis, CFR and IMR within the lab's thresholds and no spasm on acetylcholine testing${noted} (EAPCI 2020).`,
@@ -388,5 +466,5 @@ export function classifyStudy(
     }
   }
   if (caveats.length > 0) headline += ` — caution: quality check failed in ${caveats.map((c) => c.slice(0, c.indexOf(' ('))).join(', ')}`;
-  return { findings: { obstructive, microvascular, endothelialDysfunction, vasospasm }, endotype, headline, reasons };
+  return { findings: { obstructive, microvascular, microvascularDysfunction, endothelialDysfunction, vasospasm }, endotype, headline, reasons, normalButEndothelial };
 }

@@ -7,7 +7,9 @@ export { physiologyInputSchema, vesselCodes, nhprKinds } from './schema';
 export type { PhysiologyInput, PhysiologyOutput, VesselCode, NhprKind, VesselInput, DoseInput, ProcedureInput } from './schema';
 export { hyperemicAgents, drugRoutes } from './schema';
 export { vesselShortName, vesselLongName, rightCoronaryVessels } from './vessels';
-export { driftOutOfRange } from './quality';
+export { driftOutOfRange, driftText } from './quality';
+export { stenosisText } from './endotype';
+export { constrictionText } from './vasoreactivity';
 export {
   flagLabel,
   indexLabel,
@@ -20,7 +22,7 @@ export {
   microvascularLabel,
   decisionSupportCaution,
 } from './labels';
-export { roundForDisplay, formatQuantity, formatWithUnit, displayDecimals, displayUnit, type QuantityKind } from './precision';
+export { roundForDisplay, formatQuantity, formatWithUnit, formatAgreeing, displayDecimals, displayUnit, type QuantityKind } from './precision';
 export {
   defaultThresholds,
   thresholdSources,

@@ -1,5 +1,6 @@
 import { above, atOrAbove, atOrBelow, below } from './compare';
 import { imrText, ratio } from './format';
+import { roundForDisplay } from './precision';
 import type { ProcedureInput, VesselInput } from './schema';
 import type { Thresholds } from './thresholds';
 import type { Flag, PhysiologyWarning, VesselResult } from './types';
@@ -69,7 +70,9 @@ export function analyzeVessel(v: VesselInput, t: Thresholds, label: string, proc
     // Typed whole-mmHg means are coarser than the console's tracing: a difference beyond the tolerance,
     // or one that puts the two values on opposite sides of the cut-off, is said and qualifies the verdict.
     if (v.ffr !== undefined) {
-      const apart = Math.abs(v.ffr - ffr) > FFR_MISMATCH_TOLERANCE + 1e-9;
+      // Judged on the two values as printed (two decimals), so the message never says "by more than
+      // 0.02" of two numbers printed 0.02 apart.
+      const apart = Math.abs(roundForDisplay(v.ffr, 'ratio') - roundForDisplay(ffr, 'ratio')) > FFR_MISMATCH_TOLERANCE + 1e-9;
       const acrossCut = lowIsAbnormal(v.ffr, t.ffr) !== lowIsAbnormal(ffr, t.ffr);
       if (apart || acrossCut) {
         warnings.push({
@@ -214,7 +217,8 @@ export function analyzeVessel(v: VesselInput, t: Thresholds, label: string, proc
   if (hypPa !== undefined && hypPd !== undefined) checkPdAbovePa(hypPd, hypPa, 'hyperaemia', t, label, warnings);
   if (restingPdPa !== undefined && hypPa !== undefined && hypPd !== undefined) {
     const hypRatio = hypPd / hypPa;
-    if (hypRatio - restingPdPa > t.hyperemicAboveRestingTolerance + 1e-9) {
+    // Judged on the two ratios as printed, like every ratio.
+    if (roundForDisplay(hypRatio, 'ratio') - roundForDisplay(restingPdPa, 'ratio') > t.hyperemicAboveRestingTolerance + 1e-9) {
       warnings.push({
         code: 'hyperemic-above-resting',
         message: `${label}: hyperaemic Pd/Pa ${ratio(hypRatio)} is higher than resting Pd/Pa ${ratio(restingPdPa)} by more than ${t.hyperemicAboveRestingTolerance.toFixed(2)}, which is physiologically unexpected; check hyperaemia and equalization.`,

@@ -73,8 +73,7 @@ export function endotypeName(endotype: Endotype, angina: boolean | undefined, la
 export const microvascularLabel: Readonly<Record<NonNullable<Findings['microvascular']>, string>> = Object.freeze({
   structural: 'Structural microvascular dysfunction',
   functional: 'Functional microvascular dysfunction',
-  'raised-imr': 'Raised microvascular resistance, CFR preserved',
-  'type-unknown': 'Microvascular dysfunction with low CFR, type not known (IMR not measured)',
+  'raised-imr': 'Raised microvascular resistance, CFR not low',
 });
 
 /** The standing caution beside every computed value and suggestion. */

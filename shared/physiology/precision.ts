@@ -60,3 +60,18 @@ export function formatWithUnit(value: number, kind: QuantityKind): string {
   const unit = displayUnit[kind];
   return unit ? `${formatQuantity(value, kind)} ${unit}` : formatQuantity(value, kind);
 }
+
+/**
+ * A value judged as entered (a visual stenosis, a constriction, the drift check), as text that agrees
+ * with its verdict: at its display precision when that reads on the same side of the cut-off, else
+ * with as many more decimals as it takes (89.6% judged below 90% prints "89.6", never "90").
+ * `verdict` returns the category a number falls in; the printed number falls in the value's own.
+ */
+export function formatAgreeing(value: number, kind: QuantityKind, verdict: (x: number) => unknown): string {
+  const own = verdict(value);
+  for (let d = displayDecimals[kind]; d <= 9; d++) {
+    const shown = roundHalfAway(value, d);
+    if (verdict(shown) === own) return shown.toFixed(d);
+  }
+  return String(value);
+}

@@ -1,5 +1,6 @@
 import { above, below } from './compare';
-import { cutRatio, ratio } from './format';
+import { formatAgreeing, roundForDisplay } from './precision';
+import { cutPlain, cutRatio, ratio } from './format';
 import { cite, type Thresholds } from './thresholds';
 import type { ProcedureInput } from './schema';
 import type { PhysiologyWarning } from './types';
@@ -25,14 +26,16 @@ export function checkInjections(
   let sum = 0;
   for (let i = 0; i < n; i++) sum += tmn[i];
   const spread = t.injectionSpread;
+  // The spread is printed as a whole percentage and judged as printed, so "30%" is never "more than 30%".
+  const limitPct = spread * 100;
   for (let i = 0; i < n; i++) {
     const x = tmn[i];
     const others = (sum - x) / (n - 1);
-    if (above(Math.abs(x - others), spread * others, 'raw')) {
-      const pct = Math.round((Math.abs(x - others) / others) * 100);
+    const pct = roundForDisplay((Math.abs(x - others) / others) * 100, 'percent');
+    if (above(pct, limitPct, 'raw')) {
       warnings.push({
         code: 'injection-spread',
-        message: `${label}: ${phase} injection ${i + 1} (Tmn ${x.toFixed(2)} s) differs by ${pct}% from the mean of the other ${phase} injections (${others.toFixed(2)} s), more than ${Math.round(spread * 100)}% (${cite(t, 'injectionSpread')}); consider repeating it.`,
+        message: `${label}: ${phase} injection ${i + 1} (Tmn ${x.toFixed(2)} s) differs by ${pct}% from the mean of the other ${phase} injections (${others.toFixed(2)} s), more than ${cutPlain(limitPct)}% (${cite(t, 'injectionSpread')}); consider repeating it.`,
       });
     }
   }
@@ -66,11 +69,16 @@ export function driftOutOfRange(drift: number, t: Pick<Thresholds, 'driftLow' | 
   return below(drift, t.driftLow, 'raw') || above(drift, t.driftHigh, 'raw');
 }
 
+/** The drift Pd/Pa as text that agrees with its verdict: 0.975 is outside 0.98–1.02 and prints "0.975", not "0.98". */
+export function driftText(drift: number, t: Pick<Thresholds, 'driftLow' | 'driftHigh'>): string {
+  return formatAgreeing(drift, 'ratio', (x) => driftOutOfRange(x, t));
+}
+
 export function checkDrift(drift: number, t: Thresholds, label: string, warnings: PhysiologyWarning[]): void {
   if (driftOutOfRange(drift, t)) {
     warnings.push({
       code: 'drift-out-of-range',
-      message: `${label}: Pd/Pa at the guide tip after pull-back was ${ratio(drift)}, outside ${cutRatio(t.driftLow)}–${cutRatio(t.driftHigh)} (${cite(t, 'driftLow')}); sensor drift may have shifted the values — repeat the measurement.`,
+      message: `${label}: Pd/Pa at the guide tip after pull-back was ${driftText(drift, t)}, outside ${cutRatio(t.driftLow)}–${cutRatio(t.driftHigh)} (${cite(t, 'driftLow')}); sensor drift may have shifted the values — repeat the measurement.`,
     });
   }
 }

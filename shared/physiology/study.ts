@@ -50,7 +50,7 @@ export function analyzeValidated(data: PhysiologyOutput): PhysiologyResult {
   // before acetylcholine (or at a time not recorded), or no dose reached the provocative range (100 µg
   // left, 50 µg right). Only a test without spasm is in doubt: endothelial dysfunction stays a finding,
   // but spasm is not excluded beside it. A spasm provoked despite nitrates stands.
-  if (endotype === 'no-abnormality' && doses !== undefined && doses.length > 0 && vasoreactivity !== undefined) {
+  if ((endotype === 'no-abnormality' || classified.normalButEndothelial) && doses !== undefined && doses.length > 0 && vasoreactivity !== undefined) {
     const doubts: string[] = [];
     if (warnings.some((w) => w.code === 'nitrates-before-acetylcholine')) doubts.push('nitroglycerin was given before acetylcholine');
     if (warnings.some((w) => w.code === 'nitrate-timing-unknown')) doubts.push('nitrates were given and their timing is not recorded');

@@ -27,7 +27,10 @@ export interface Thresholds {
   mrr: number;
   /** MRR borderline when mrr ≥ the MRR cut-off and ≤ value (normal above it). */
   mrrBorderline: number;
-  /** Lower edge of the FFR grey zone (FFR from this value up to the FFR cut-off): a note only. */
+  /**
+   * Lower edge of the FFR grey zone (FFR from this value up to the FFR cut-off, both included, judged at
+   * the display precision): a note only. Default 0.76: the band 0.76–0.80.
+   */
   ffrGreyZoneLow: number;
   /** Drift check: Pd/Pa at the guide tip after pull-back should lie in [driftLow, driftHigh]. */
   driftLow: number;
@@ -68,7 +71,7 @@ export const defaultThresholds: Readonly<Thresholds> = Object.freeze({
   rrr: 2.0,
   mrr: 2.1,
   mrrBorderline: 2.7,
-  ffrGreyZoneLow: 0.75,
+  ffrGreyZoneLow: 0.76,
   driftLow: 0.98,
   driftHigh: 1.02,
   injectionSpread: 0.3,
@@ -99,7 +102,7 @@ export const thresholdSources: Readonly<Record<ThresholdKey, string>> = Object.f
   mrr: 'de Vos et al., JACC Cardiovasc Imaging 2023 (continuous thermodilution: < 2.1 rules in); De Bruyne et al. 2021 (formula)',
   mrrBorderline:
     'de Vos et al., JACC Cardiovasc Imaging 2023 (continuous thermodilution: > 2.7 rules out); the cut-off for bolus thermodilution is not settled (ILIAS, EHJ 2023, found 3.0)',
-  ffrGreyZoneLow: 'DEFER/FAME history, Interv Cardiol Rev 2016',
+  ffrGreyZoneLow: 'DEFER/FAME history, Interv Cardiol Rev 2016 (grey zone 0.76–0.80, judged at two decimals)',
   driftLow:
     '[memory] 0.98–1.02 window; drift > 2 mmHg means repeat (interventional cardiology textbook; Cook et al., Circ Cardiovasc Interv 2016)',
   driftHigh:

@@ -45,10 +45,15 @@ export interface VesselResult {
   judgedBy?: 'ffr' | 'nhpr' | 'resting-pd-pa' | 'visual-stenosis';
   /**
    * This vessel's microvascular finding, from its own CFR and IMR (never combined across vessels); set
-   * only where obstruction was excluded in the vessel. The study's `findings.microvascular` is the most
-   * severe of these.
+   * only where obstruction was excluded in the vessel and the type can be decided. The study's
+   * `findings.microvascular` is the most severe of these.
    */
-  microvascular?: 'structural' | 'functional' | 'raised-imr' | 'type-unknown';
+  microvascular?: 'structural' | 'functional' | 'raised-imr';
+  /**
+   * True when this vessel's CFR or IMR shows coronary microvascular dysfunction where obstruction was
+   * excluded, whether or not its type can be decided (absent otherwise).
+   */
+  microvascularDysfunction?: true;
   warnings: PhysiologyWarning[];
 }
 
@@ -83,12 +88,15 @@ export interface Findings {
   /** Any vessel obstructive: judged by its pressure index, else by ≥ 50% visual stenosis (COVADIS). */
   obstructive: boolean;
   /**
-   * Microvascular dysfunction in a non-obstructed vessel: structural (low CFR and high IMR),
-   * functional (low CFR, IMR measured and not high), raised-imr (high IMR with CFR not low),
-   * type-unknown (low CFR with IMR not measured: dysfunction, but structural and functional cannot be
-   * told apart).
+   * The subtype of microvascular dysfunction in a non-obstructed vessel (the most severe over the
+   * vessels): structural (low CFR and high IMR), functional (low CFR, IMR measured and not high),
+   * raised-imr (high IMR with CFR measured and not low: normal or borderline). Null when no vessel has a
+   * subtype — also when dysfunction was found but its type cannot be decided (low CFR with IMR not
+   * measured, or high IMR with CFR not measured): `microvascularDysfunction` says that.
    */
-  microvascular: null | 'structural' | 'functional' | 'raised-imr' | 'type-unknown';
+  microvascular: null | 'structural' | 'functional' | 'raised-imr';
+  /** Coronary microvascular dysfunction shown by CFR or IMR in a non-obstructed vessel, typed or not. */
+  microvascularDysfunction: boolean;
   /** Acetylcholine constriction without spasm (the study's acetylcholine result). */
   endothelialDysfunction: boolean;
   vasospasm: null | 'epicardial' | 'microvascular';

@@ -1,5 +1,6 @@
 import { above, atOrAbove } from './compare';
 import { cutPlain } from './format';
+import { formatAgreeing } from './precision';
 import type { DoseInput, ProcedureInput } from './schema';
 import { cite, type Thresholds } from './thresholds';
 import type { DoseResult, PhysiologyWarning, VasoreactivityOutcome } from './types';
@@ -39,6 +40,16 @@ export function classifyDose(d: DoseInput, t: Thresholds): VasoreactivityOutcome
   return atOrAbove(d.constrictionPct, t.endothelialDysfunctionPct, 'raw') ? 'endothelial-dysfunction' : 'negative';
 }
 
+/** The band of the COVADIS table a constriction falls in, judged as entered. */
+export function constrictionBand(pct: number, t: Pick<Thresholds, 'spasmConstrictionPct' | 'endothelialDysfunctionPct'>): 0 | 1 | 2 {
+  return atOrAbove(pct, t.spasmConstrictionPct, 'raw') ? 2 : atOrAbove(pct, t.endothelialDysfunctionPct, 'raw') ? 1 : 0;
+}
+
+/** A constriction as text in the same band as the value judged: 89.6% prints "89.6", never "90". */
+export function constrictionText(pct: number, t: Pick<Thresholds, 'spasmConstrictionPct' | 'endothelialDysfunctionPct'>): string {
+  return formatAgreeing(pct, 'percent', (x) => constrictionBand(x, t));
+}
+
 function doseName(d: DoseInput): string {
   return `${cutPlain(d.micrograms)} µg into the ${vesselShortName[d.vessel]}`;
 }
@@ -73,17 +84,19 @@ export function analyzeVasoreactivity(
     const right = rightCoronaryVessels.has(d.vessel);
     const ceiling = right ? t.achMaxMicrogramsRight : t.achMaxMicrograms;
     if (above(d.micrograms, ceiling, 'raw')) {
+      // Printed with the decimals that keep it above the ceiling (200.4 µg is not "200 µg").
+      const high = `${formatAgreeing(d.micrograms, 'dose', (x) => above(x, ceiling, 'raw'))} µg into the ${vesselShortName[d.vessel]}`;
       warnings.push({
         code: 'ach-dose-high',
         message: right
-          ? `Acetylcholine dose ${i + 1} (${doseName(d)}) is above the usual ceiling of ${cutPlain(ceiling)} µg for the right coronary (${cite(t, 'achMaxMicrogramsRight')}; ESC 2024 warns of bradycardia); accepted — check the entry.`
-          : `Acetylcholine dose ${i + 1} (${doseName(d)}) is above the usual maximum of ${cutPlain(ceiling)} µg (${cite(t, 'achMaxMicrograms')}); accepted — check the entry.`,
+          ? `Acetylcholine dose ${i + 1} (${high}) is above the usual ceiling of ${cutPlain(ceiling)} µg for the right coronary (${cite(t, 'achMaxMicrogramsRight')}; ESC 2024 warns of bradycardia); accepted — check the entry.`
+          : `Acetylcholine dose ${i + 1} (${high}) is above the usual maximum of ${cutPlain(ceiling)} µg (${cite(t, 'achMaxMicrograms')}); accepted — check the entry.`,
       });
     }
     if (outcome === 'equivocal') {
       warnings.push({
         code: 'spasm-criteria-not-met',
-        message: `Acetylcholine dose ${i + 1} (${doseName(d)}): ${cutPlain(d.constrictionPct)}% constriction with ${criteriaSeen(d)} meets only part of the COVADIS criteria for spasm — equivocal (suspected, not proven).`,
+        message: `Acetylcholine dose ${i + 1} (${doseName(d)}): ${constrictionText(d.constrictionPct, t)}% constriction with ${criteriaSeen(d)} meets only part of the COVADIS criteria for spasm — equivocal (suspected, not proven).`,
       });
     }
   }
@@ -112,27 +125,27 @@ export function analyzeVasoreactivity(
   switch (worst) {
     case 'epicardial-spasm':
       reasons.push(
-        `Acetylcholine ${doseName(d)}: ${cutPlain(d.constrictionPct)}% constriction with reproduced symptoms and ischaemic ECG changes meets the ≥ ${spasmPct}% criterion for epicardial spasm (${src}).`,
+        `Acetylcholine ${doseName(d)}: ${constrictionText(d.constrictionPct, t)}% constriction with reproduced symptoms and ischaemic ECG changes meets the ≥ ${spasmPct}% criterion for epicardial spasm (${src}).`,
       );
       break;
     case 'microvascular-spasm':
       reasons.push(
-        `Acetylcholine ${doseName(d)}: reproduced symptoms and ischaemic ECG changes with ${cutPlain(d.constrictionPct)}% constriction (below ${spasmPct}%) — microvascular spasm (${src}).`,
+        `Acetylcholine ${doseName(d)}: reproduced symptoms and ischaemic ECG changes with ${constrictionText(d.constrictionPct, t)}% constriction (below ${spasmPct}%) — microvascular spasm (${src}).`,
       );
       break;
     case 'equivocal':
       reasons.push(
-        `Acetylcholine ${doseName(d)}: ${cutPlain(d.constrictionPct)}% constriction with ${criteriaSeen(d)} — equivocal: part of the criteria for spasm, not all (${src}).`,
+        `Acetylcholine ${doseName(d)}: ${constrictionText(d.constrictionPct, t)}% constriction with ${criteriaSeen(d)} — equivocal: part of the criteria for spasm, not all (${src}).`,
       );
       break;
     case 'endothelial-dysfunction':
       reasons.push(
-        `Acetylcholine ${doseName(d)}: ${cutPlain(d.constrictionPct)}% constriction without symptoms or ischaemic ECG changes, at or above ${edPct}% (${cite(t, 'endothelialDysfunctionPct')}) — endothelial dysfunction, not spasm (${src}).`,
+        `Acetylcholine ${doseName(d)}: ${constrictionText(d.constrictionPct, t)}% constriction without symptoms or ischaemic ECG changes, at or above ${edPct}% (${cite(t, 'endothelialDysfunctionPct')}) — endothelial dysfunction, not spasm (${src}).`,
       );
       break;
     default:
       reasons.push(
-        `Acetylcholine testing was negative: maximum constriction ${cutPlain(maxPct)}% (below ${edPct}%, ${cite(t, 'endothelialDysfunctionPct')}) and no dose reproduced symptoms or ischaemic ECG changes (${src}).`,
+        `Acetylcholine testing was negative: maximum constriction ${constrictionText(maxPct, t)}% (below ${edPct}%, ${cite(t, 'endothelialDysfunctionPct')}) and no dose reproduced symptoms or ischaemic ECG changes (${src}).`,
       );
   }
   return { result: worst, doses: out, warnings };

@@ -26,7 +26,7 @@ export const thresholdRanges: Readonly<Record<ThresholdKey, ThresholdRange>> = O
   rrr: { min: 1.5, max: 3.0, step: 0.01, basis: '[practice] around the 2.0 cut-off [memory: CorMicA]' },
   mrr: { min: 2.0, max: 3.0, step: 0.01, basis: 'de Vos et al. 2023 (2.1, continuous thermodilution); ILIAS, EHJ 2023 (3.0, bolus)' },
   mrrBorderline: { min: 2.1, max: 3.0, step: 0.01, basis: 'de Vos et al. 2023 (2.7); ILIAS, EHJ 2023 (3.0)' },
-  ffrGreyZoneLow: { min: 0.7, max: 0.8, step: 0.01, basis: 'DEFER/FAME history (grey zone 0.75–0.80); [practice] width' },
+  ffrGreyZoneLow: { min: 0.7, max: 0.8, step: 0.01, basis: 'DEFER/FAME history, Interv Cardiol Rev 2016 (grey zone 0.76–0.80); [practice] width' },
   driftLow: { min: 0.95, max: 1.0, step: 0.01, basis: '[practice] about ±2 mmHg drift (Cook et al. 2016); 0.98 [memory]' },
   driftHigh: { min: 1.0, max: 1.05, step: 0.01, basis: '[practice] about ±2 mmHg drift (Cook et al. 2016); 1.02 [memory]' },
   injectionSpread: { min: 0.1, max: 0.5, step: 0.01, basis: '[practice] around the ~30% spread [memory]' },

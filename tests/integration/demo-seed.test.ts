@@ -149,7 +149,7 @@ describe('the demo studies come out of the physiology core as intended', () => {
     expect(rca.ffr).toBeCloseTo(0.86, 2);
     expect(rca.ffrFlag).toBe('normal');
     // Pressures only: no microvascular index and no acetylcholine, so the core calls it inconclusive.
-    expect(analyses.get('SBR-26-0412')!.findings).toEqual({ obstructive: false, microvascular: null, endothelialDysfunction: false, vasospasm: null });
+    expect(analyses.get('SBR-26-0412')!.findings).toEqual({ obstructive: false, microvascular: null, microvascularDysfunction: false, endothelialDysfunction: false, vasospasm: null });
     expect(analyses.get('SBR-26-0412')!.endotype).toBe('inconclusive');
     expect(r.vessels[0]).toMatchObject({ segment: '2', decision: 'defer' });
   });
@@ -170,7 +170,7 @@ describe('the demo studies come out of the physiology core as intended', () => {
     expect(lad.imrFlag).toBe('abnormal');
     // Low CFR with high IMR = structural microvascular angina — EAPCI 2020; COVADIS.
     expect(a.endotype).toBe('microvascular-angina');
-    expect(a.findings).toEqual({ obstructive: false, microvascular: 'structural', endothelialDysfunction: false, vasospasm: null });
+    expect(a.findings).toEqual({ obstructive: false, microvascular: 'structural', microvascularDysfunction: true, endothelialDysfunction: false, vasospasm: null });
     // Acetylcholine 2/20/100 µg (ESC 2024 protocol), < 20% constriction and no symptoms — negative (from memory: 20%; COVADIS).
     expect(r.vasoreactivity.doses.map((d) => d.micrograms)).toEqual([2, 20, 100]);
     expect(a.vasoreactivity?.result).toBe('negative');
@@ -193,7 +193,7 @@ describe('the demo studies come out of the physiology core as intended', () => {
     expect(d100.constrictionPct).toBeGreaterThanOrEqual(90);
     expect(a.doseResults?.find((d) => d.micrograms === 100)?.result).toBe('epicardial-spasm');
     expect(a.endotype).toBe('vasospastic-angina');
-    expect(a.findings).toEqual({ obstructive: false, microvascular: null, endothelialDysfunction: false, vasospasm: 'epicardial' });
+    expect(a.findings).toEqual({ obstructive: false, microvascular: null, microvascularDysfunction: false, endothelialDysfunction: false, vasospasm: 'epicardial' });
     expect(r.vasoreactivity.nitrateReversal).toBe(true);
   });
 
@@ -210,7 +210,7 @@ describe('the demo studies come out of the physiology core as intended', () => {
     expect(a.vasoreactivity?.result).toBe('negative');
     // Epicardial, microvascular and acetylcholine all assessed and normal — no abnormality (EAPCI 2020).
     expect(a.endotype).toBe('no-abnormality');
-    expect(a.findings).toEqual({ obstructive: false, microvascular: null, endothelialDysfunction: false, vasospasm: null });
+    expect(a.findings).toEqual({ obstructive: false, microvascular: null, microvascularDysfunction: false, endothelialDysfunction: false, vasospasm: null });
   });
 
   it('SBR-26-0416: functional microvascular dysfunction, overdue for signature', () => {
@@ -229,7 +229,7 @@ describe('the demo studies come out of the physiology core as intended', () => {
     expect(lad.imr).toBeCloseTo(16.72, 2);
     // Low CFR with normal IMR = functional microvascular angina — EAPCI 2020; CorMicA.
     expect(a.endotype).toBe('microvascular-angina');
-    expect(a.findings).toEqual({ obstructive: false, microvascular: 'functional', endothelialDysfunction: true, vasospasm: null });
+    expect(a.findings).toEqual({ obstructive: false, microvascular: 'functional', microvascularDysfunction: true, endothelialDysfunction: true, vasospasm: null });
     // 40% constriction without symptoms or ECG changes: endothelial dysfunction, not spasm — COVADIS; ≥ 20% from memory.
     expect(a.vasoreactivity?.result).toBe('endothelial-dysfunction');
   });

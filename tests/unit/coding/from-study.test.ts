@@ -164,3 +164,24 @@ describe('a study record and its analysis become the coding input', () => {
     expect(() => toCodingInput({ ...study(), coding: bad as never }, analyzeStudy({ vessels: [] }))).toThrow();
   });
 });
+
+describe('microvascular dysfunction whose type cannot be decided is still coded as microvascular dysfunction — CMS ICD-10-CM tabular FY2024–FY2026: I20.81 angina with coronary microvascular dysfunction; EAPCI 2020 INOCA consensus: the subtype needs both CFR and IMR', () => {
+  it('LAD FFR 0.90 (not obstructive, ESC 2024) and IMR 90 × 0.40 = 36 U (≥ 25) with no CFR: no subtype, dysfunction true → I20.81 with angina', () => {
+    const lad: VesselAssessment = { ...emptyVessel(ids[0], 'LAD'), hyperemiaPa: 100, hyperemiaPd: 90, hyperemiaTransit: [0.4, 0.4, 0.4] };
+    const rec = study({ vessels: [lad] });
+    const analysis = analyzeStudy(toPhysiologyInput(rec));
+    expect(analysis.findings.microvascular).toBeNull();
+    expect(analysis.findings.microvascularDysfunction).toBe(true);
+    const input = toCodingInput(rec, analysis);
+    expect(input.diagnoses).toEqual({ obstructiveCad: false, angina: true, microvascularDysfunction: true, vasospasm: null });
+    expect(suggestCodes(input).codes.filter((c) => c.system === 'ICD-10-CM').map((c) => c.code)).toEqual(['I20.81']);
+  });
+  it('an analysis stored before the field existed is read by its subtype (common practice: a stored signed analysis is read as stored)', () => {
+    const rec = study({ vessels: [ladFull()] });
+    const analysis = analyzeStudy(toPhysiologyInput(rec));
+    const stored = { ...analysis, findings: { obstructive: false, microvascular: 'structural', endothelialDysfunction: false, vasospasm: null } } as unknown as typeof analysis;
+    expect(toCodingInput(rec, stored).diagnoses.microvascularDysfunction).toBe(true);
+    const storedNone = { ...analysis, findings: { obstructive: false, microvascular: null, endothelialDysfunction: false, vasospasm: null } } as unknown as typeof analysis;
+    expect(toCodingInput(rec, storedNone).diagnoses.microvascularDysfunction).toBe(false);
+  });
+});

@@ -269,6 +269,38 @@ describe('acetylcholine result and endotype', () => {
     expect(texts(undefined)).toEqual(['Coronary microvascular dysfunction', 'Coronary microvascular dysfunction']);
   });
 
+  // EAPCI 2020 INOCA consensus (Kunadian et al.): the subtype needs both CFR and IMR; COVADIS (Ong et al., IJC 2018):
+  // IMR ≥ 25 alone is impaired microvascular function. Dysfunction of a type not known is still the microvascular endotype.
+  it('raised IMR with CFR not measured is sent as the microvascular endotype, abnormal', () => {
+    // LCX Pa 100, Pd 90 (FFR 0.90), hyperaemic Tmn 0.40 s → IMR 36 U; no resting Tmn, so no CFR.
+    const imrOnly: PhysiologyInput = {
+      vessels: [{ id: 'vessel-lcx', vessel: 'LCX', hyperemia: { pa: 100, pd: 90, tmn: [0.4, 0.4, 0.4] } }],
+      vasoreactivity: { doses: [{ vessel: 'LAD', micrograms: 100, constrictionPct: 10, symptoms: false, ischemicEcg: false }] },
+      angina: true,
+    };
+    const a = analyzeStudy(imrOnly);
+    expect(a.findings).toMatchObject({ microvascular: null, microvascularDysfunction: true });
+    const b = toReportBundle(reportInput(imrOnly, { analysis: { ...a, angina: true } }));
+    const endotype = studyObservation(b, 'endotype')!;
+    expect(endotype.valueCodeableConcept!.coding![0].code).toBe('endotype-microvascular-angina');
+    expect(endotype.valueCodeableConcept!.text).toBe('Microvascular angina');
+    expect(endotype.interpretation![0].coding![0].code).toBe('A');
+  });
+
+  // EAPCI 2020; CorMicA: "no coronary abnormality" needs a negative acetylcholine test; COVADIS: constriction without
+  // symptoms or ECG changes is endothelial dysfunction, not spasm.
+  it('endothelial dysfunction with everything else normal is not sent as "no coronary abnormality" or Normal', () => {
+    const ed: PhysiologyInput = {
+      vessels: [{ id: 'vessel-lad', vessel: 'LAD', rest: { pa: 100, pd: 97, tmn: [0.6, 0.6, 0.6] }, hyperemia: { pa: 100, pd: 90, tmn: [0.2, 0.2, 0.2] } }],
+      vasoreactivity: { doses: [{ vessel: 'LAD', micrograms: 100, constrictionPct: 50, symptoms: false, ischemicEcg: false }] },
+    };
+    const b = toReportBundle(reportInput(ed));
+    const endotype = studyObservation(b, 'endotype')!;
+    expect(endotype.valueCodeableConcept!.coding![0].code).toBe('endotype-inconclusive');
+    expect(endotype.interpretation).toBeUndefined();
+    expect(studyObservation(b, 'acetylcholine-test')!.valueCodeableConcept!.coding![0].code).toBe('ach-endothelial-dysfunction');
+  });
+
   it('a plain pressure-wire study sends no endotype and no acetylcholine result', () => {
     const b = toReportBundle(reportInput({ vessels: [{ id: 'vessel-lad', vessel: 'LAD', ffr: 0.75 }] }));
     expect(studyObservation(b, 'endotype')).toBeUndefined();

@@ -50,7 +50,7 @@ describe('endotypes', () => {
       vessels: [vessel('lad', { ffrPd: 75, cfr: 1.5, imrTmn: 0.4 })],
       doses: epicardialSpasm,
       endotype: 'obstructive',
-      findings: { obstructive: true, microvascular: null, endothelialDysfunction: false, vasospasm: 'epicardial' },
+      findings: { obstructive: true, microvascular: null, microvascularDysfunction: false, endothelialDysfunction: false, vasospasm: 'epicardial' },
       source: `${SRC.endotypes}; ${SRC.ffr}`,
     },
     {
@@ -58,7 +58,7 @@ describe('endotypes', () => {
       vessels: [{ id: 'rca', vessel: 'RCA', nhpr: { kind: 'diastolic', value: 0.85 } } as VesselIn],
       doses: undefined,
       endotype: 'obstructive',
-      findings: { obstructive: true, microvascular: null, endothelialDysfunction: false, vasospasm: null},
+      findings: { obstructive: true, microvascular: null, microvascularDysfunction: false, endothelialDysfunction: false, vasospasm: null },
       source: `${SRC.endotypes}; ${SRC.nhpr}`,
     },
     {
@@ -66,7 +66,7 @@ describe('endotypes', () => {
       vessels: [{ id: 'rca', vessel: 'RCA', rest: { pa: 100, pd: 88 } } as VesselIn],
       doses: undefined,
       endotype: 'obstructive',
-      findings: { obstructive: true, microvascular: null, endothelialDysfunction: false, vasospasm: null},
+      findings: { obstructive: true, microvascular: null, microvascularDysfunction: false, endothelialDysfunction: false, vasospasm: null },
       source: `${SRC.endotypes}; CONTRAST (whole-cycle Pd/Pa ≤ 0.91)`,
     },
     {
@@ -74,7 +74,7 @@ describe('endotypes', () => {
       vessels: [vessel('lad', { imrTmn: 0.4, cfr: 1.5 })],
       doses: negativeAch,
       endotype: 'microvascular-angina',
-      findings: { obstructive: false, microvascular: 'structural', endothelialDysfunction: false, vasospasm: null},
+      findings: { obstructive: false, microvascular: 'structural', microvascularDysfunction: true, endothelialDysfunction: false, vasospasm: null },
       source: `${SRC.endotypes}; ${SRC.imr}`,
     },
     {
@@ -82,7 +82,7 @@ describe('endotypes', () => {
       vessels: [vessel('lad', { imrTmn: 0.4, cfr: 3.0 })],
       doses: negativeAch,
       endotype: 'microvascular-angina',
-      findings: { obstructive: false, microvascular: 'raised-imr', endothelialDysfunction: false, vasospasm: null},
+      findings: { obstructive: false, microvascular: 'raised-imr', microvascularDysfunction: true, endothelialDysfunction: false, vasospasm: null },
       source: `${SRC.endotypes}; ${SRC.imr}`,
     },
     {
@@ -90,7 +90,7 @@ describe('endotypes', () => {
       vessels: [vessel('lad', { cfr: 1.5 })],
       doses: negativeAch,
       endotype: 'microvascular-angina',
-      findings: { obstructive: false, microvascular: 'functional', endothelialDysfunction: false, vasospasm: null},
+      findings: { obstructive: false, microvascular: 'functional', microvascularDysfunction: true, endothelialDysfunction: false, vasospasm: null },
       source: `${SRC.endotypes}; ${SRC.cfr}`,
     },
     {
@@ -98,7 +98,7 @@ describe('endotypes', () => {
       vessels: [normalVessel()],
       doses: microSpasm,
       endotype: 'microvascular-angina',
-      findings: { obstructive: false, microvascular: null, endothelialDysfunction: false, vasospasm: 'microvascular'},
+      findings: { obstructive: false, microvascular: null, microvascularDysfunction: false, endothelialDysfunction: false, vasospasm: 'microvascular' },
       source: SRC.covadis,
     },
     {
@@ -106,7 +106,7 @@ describe('endotypes', () => {
       vessels: [vessel('lad', { cfr: 1.5 })],
       doses: microSpasm,
       endotype: 'microvascular-angina',
-      findings: { obstructive: false, microvascular: 'functional', endothelialDysfunction: false, vasospasm: 'microvascular'},
+      findings: { obstructive: false, microvascular: 'functional', microvascularDysfunction: true, endothelialDysfunction: false, vasospasm: 'microvascular' },
       source: SRC.covadis,
     },
     {
@@ -114,7 +114,7 @@ describe('endotypes', () => {
       vessels: [vessel('lad', { cfr: 1.5 })],
       doses: epicardialSpasm,
       endotype: 'mixed',
-      findings: { obstructive: false, microvascular: 'functional', endothelialDysfunction: false, vasospasm: 'epicardial'},
+      findings: { obstructive: false, microvascular: 'functional', microvascularDysfunction: true, endothelialDysfunction: false, vasospasm: 'epicardial' },
       source: SRC.endotypes,
     },
     {
@@ -122,7 +122,7 @@ describe('endotypes', () => {
       vessels: [normalVessel()],
       doses: epicardialSpasm,
       endotype: 'vasospastic-angina',
-      findings: { obstructive: false, microvascular: null, endothelialDysfunction: false, vasospasm: 'epicardial'},
+      findings: { obstructive: false, microvascular: null, microvascularDysfunction: false, endothelialDysfunction: false, vasospasm: 'epicardial' },
       source: `${SRC.endotypes}; ${SRC.covadis}`,
     },
     {
@@ -130,7 +130,7 @@ describe('endotypes', () => {
       vessels: [],
       doses: epicardialSpasm,
       endotype: 'vasospastic-angina',
-      findings: { obstructive: false, microvascular: null, endothelialDysfunction: false, vasospasm: 'epicardial'},
+      findings: { obstructive: false, microvascular: null, microvascularDysfunction: false, endothelialDysfunction: false, vasospasm: 'epicardial' },
       source: SRC.endotypes,
     },
     {
@@ -138,15 +138,15 @@ describe('endotypes', () => {
       vessels: [normalVessel()],
       doses: negativeAch,
       endotype: 'no-abnormality',
-      findings: { obstructive: false, microvascular: null, endothelialDysfunction: false, vasospasm: null},
+      findings: { obstructive: false, microvascular: null, microvascularDysfunction: false, endothelialDysfunction: false, vasospasm: null },
       source: SRC.endotypes,
     },
     {
-      name: 'no abnormality with endothelial dysfunction only',
+      name: 'endothelial dysfunction with everything else normal is not "no abnormality" (that needs a negative acetylcholine test)',
       vessels: [normalVessel()],
       doses: endothelial,
-      endotype: 'no-abnormality',
-      findings: { obstructive: false, microvascular: null, endothelialDysfunction: true, vasospasm: null},
+      endotype: 'inconclusive',
+      findings: { obstructive: false, microvascular: null, microvascularDysfunction: false, endothelialDysfunction: true, vasospasm: null },
       source: `${SRC.endotypes}; ${SRC.covadis} (endothelial dysfunction is not spasm)`,
     },
     {
@@ -154,7 +154,7 @@ describe('endotypes', () => {
       vessels: [vessel('lad', { cfr: 2.2 })],
       doses: negativeAch,
       endotype: 'no-abnormality',
-      findings: { obstructive: false, microvascular: null, endothelialDysfunction: false, vasospasm: null},
+      findings: { obstructive: false, microvascular: null, microvascularDysfunction: false, endothelialDysfunction: false, vasospasm: null },
       source: `${SRC.endotypes}; ${SRC.cfr} (borderline alone is not CMD)`,
     },
     {
@@ -162,7 +162,7 @@ describe('endotypes', () => {
       vessels: [normalVessel()],
       doses: undefined,
       endotype: 'inconclusive',
-      findings: { obstructive: false, microvascular: null, endothelialDysfunction: false, vasospasm: null},
+      findings: { obstructive: false, microvascular: null, microvascularDysfunction: false, endothelialDysfunction: false, vasospasm: null },
       source: SRC.endotypes,
     },
     {
@@ -170,7 +170,7 @@ describe('endotypes', () => {
       vessels: [{ id: 'lad', vessel: 'LAD', hyperemia: { pa: 100, pd: 90 } } as VesselIn],
       doses: negativeAch,
       endotype: 'inconclusive',
-      findings: { obstructive: false, microvascular: null, endothelialDysfunction: false, vasospasm: null},
+      findings: { obstructive: false, microvascular: null, microvascularDysfunction: false, endothelialDysfunction: false, vasospasm: null },
       source: SRC.endotypes,
     },
     {
@@ -178,7 +178,7 @@ describe('endotypes', () => {
       vessels: [],
       doses: undefined,
       endotype: 'inconclusive',
-      findings: { obstructive: false, microvascular: null, endothelialDysfunction: false, vasospasm: null},
+      findings: { obstructive: false, microvascular: null, microvascularDysfunction: false, endothelialDysfunction: false, vasospasm: null },
       source: SRC.endotypes,
     },
   ] as const)('$name — $source', ({ vessels, doses, endotype, findings }) => {
@@ -207,7 +207,7 @@ describe('findings rules', () => {
   it(`CMD in an obstructed vessel does not count; another vessel's CMD does — ${SRC.covadis}`, () => {
     const obstructedWithCmd = vessel('lad', { ffrPd: 75, imrTmn: 0.6, cfr: 1.5 });
     const r1 = study([obstructedWithCmd, normalVessel('lcx', 'LCX')], negativeAch);
-    expect(r1.findings).toEqual({ obstructive: true, microvascular: null, endothelialDysfunction: false, vasospasm: null });
+    expect(r1.findings).toEqual({ obstructive: true, microvascular: null, microvascularDysfunction: false, endothelialDysfunction: false, vasospasm: null });
     expect(r1.reasons.some((s) => s.includes('not used for the microvascular finding'))).toBe(true);
     const r2 = study([obstructedWithCmd, vessel('lcx', { vessel: 'LCX', cfr: 1.5 })], negativeAch);
     expect(r2.findings.microvascular).toBe('functional');
@@ -337,7 +337,9 @@ describe('microvascular findings need obstruction excluded in the same vessel �
   });
   it('with a visual stenosis below 50% the same vessel counts, and a missing IMR is said as such, not as "IMR not raised"', () => {
     const r = study([{ id: 'lad', vessel: 'LAD', visualStenosisPct: 20, rest: { tmn: three(0.6) }, hyperemia: { tmn: three(0.4) } } as VesselIn], negativeAch);
-    expect(r.findings.microvascular).toBe('type-unknown');
+    // The subtype cannot be decided without IMR (EAPCI 2020): no subtype, but dysfunction all the same.
+    expect(r.findings.microvascular).toBeNull();
+    expect(r.findings.microvascularDysfunction).toBe(true);
     expect(r.headline).toContain('IMR not measured');
     expect(r.headline).not.toContain('IMR not raised');
   });
@@ -370,7 +372,7 @@ describe('a CFR below 1 is a measurement error: shown, not judged, and decides n
     expect([v.cfrFlag, v.imrFlag, v.rrrFlag, v.mrrFlag]).toEqual([undefined, undefined, undefined, undefined]);
     expect(v.microvascular).toBeUndefined();
     expect(v.warnings.map((w) => w.code)).toContain('cfr-below-one');
-    expect(r.findings).toEqual({ obstructive: false, microvascular: null, endothelialDysfunction: false, vasospasm: null });
+    expect(r.findings).toEqual({ obstructive: false, microvascular: null, microvascularDysfunction: false, endothelialDysfunction: false, vasospasm: null });
     expect(r.endotype).toBe('inconclusive');
     expect(r.headline).toBe('Endotype not determined: the transit times in LAD gave a CFR below 1 and were not judged — caution: quality check failed in LAD');
     expect(r.headline).not.toMatch(/microvascular|angina/i);
@@ -436,9 +438,10 @@ describe('CFR and IMR are combined only within one vessel — EAPCI 2020 / ILIAS
     const ladCfrOnly = { id: 'lad', vessel: 'LAD', visualStenosisPct: 20, rest: { tmn: three(0.6) }, hyperemia: { tmn: three(0.4) } } as VesselIn;
     const lcxImrOnly = { id: 'lcx', vessel: 'LCX', hyperemia: { pa: 100, pd: 90, tmn: three(0.4) } } as VesselIn;
     const r = study([ladCfrOnly, lcxImrOnly], negativeAch, undefined, true);
-    expect(r.findings.microvascular).not.toBe('structural');
+    expect(r.findings.microvascular).toBeNull();
+    expect(r.findings.microvascularDysfunction).toBe(true);
     expect(r.headline).toBe(
-      'Microvascular angina: coronary microvascular dysfunction with low CFR (IMR not measured, so its type is not known) in LAD and raised microvascular resistance (CFR not measured) in LCx',
+      'Microvascular angina: coronary microvascular dysfunction with low CFR (IMR not measured, so its type is not known) in LAD and coronary microvascular dysfunction with raised IMR (CFR not measured, so its type is not known) in LCx',
     );
   });
 
@@ -576,8 +579,10 @@ describe('functional microvascular dysfunction needs IMR measured and not raised
     const r = study([{ id: 'lad', vessel: 'LAD', ffr: 0.9, rest: { tmn: three(0.5) }, hyperemia: { tmn: three(0.3) } } as VesselIn], negativeAch, undefined, true);
     expect(r.vessels[0].cfr).toBeCloseTo(5 / 3, 10);
     expect(r.vessels[0].imr).toBeUndefined();
-    expect(r.vessels[0].microvascular).toBe('type-unknown');
-    expect(r.findings.microvascular).toBe('type-unknown');
+    expect(r.vessels[0].microvascular).toBeUndefined();
+    expect(r.vessels[0].microvascularDysfunction).toBe(true);
+    expect(r.findings.microvascular).toBeNull();
+    expect(r.findings.microvascularDysfunction).toBe(true);
     expect(r.endotype).toBe('microvascular-angina');
     expect(r.headline).toBe('Microvascular angina: coronary microvascular dysfunction with low CFR (IMR not measured, so its type is not known) in LAD');
     expect(r.reasons.join(' ')).not.toContain('functional microvascular dysfunction');
@@ -605,5 +610,146 @@ describe('inadequate hyperaemia lengthens the hyperaemic transit time and so rai
     // The same study with Pa falling on adenosine carries no such qualifier.
     const fell = analyzeStudy({ vessels: [{ ...lad, hyperemia: { pa: 90, pd: 81, tmn: three(0.4) } }], vasoreactivity: { doses: negativeAch }, procedure: { hyperemicAgent: 'adenosine', hyperemicRoute: 'intravenous' } });
     expect(fell.reasons.join(' ')).not.toContain('may be overestimated');
+  });
+});
+
+describe('microvascular dysfunction whose type cannot be decided: no subtype, but dysfunction — EAPCI 2020 INOCA consensus (Kunadian et al., EuroIntervention 2020 / Eur Heart J 2020): structural = low CFR with IMR ≥ 25, functional = low CFR with normal IMR; COVADIS (Ong et al., Int J Cardiol 2018): impaired microvascular function is CFR below the cut-off or IMR ≥ 25', () => {
+  // LAD console FFR 0.90 (above 0.80: not obstructive, ESC 2024), Tmn 0.60 / 0.40 s → CFR 1.50 (< 2.0, EAPCI 2020); no hyperaemic pressures, so no IMR.
+  const lowCfrNoImr = { id: 'lad', vessel: 'LAD', ffr: 0.9, rest: { tmn: three(0.6) }, hyperemia: { tmn: three(0.4) } } as VesselIn;
+  // LAD Pa 100, Pd 90 (FFR 0.90), Tmn 0.40 s at hyperaemia only → IMR 90 × 0.40 = 36 U (≥ 25, EAPCI 2020); no resting Tmn, so no CFR.
+  const highImrNoCfr = { id: 'lad', vessel: 'LAD', hyperemia: { pa: 100, pd: 90, tmn: three(0.4) } } as VesselIn;
+
+  it('low CFR with IMR not measured: dysfunction true, subtype null, microvascular angina, the reason says IMR was not measured', () => {
+    const r = study([lowCfrNoImr], negativeAch, undefined, true);
+    expect(r.vessels[0].cfr).toBeCloseTo(1.5, 10);
+    expect(r.vessels[0].imr).toBeUndefined();
+    expect(r.findings).toEqual({ obstructive: false, microvascular: null, microvascularDysfunction: true, endothelialDysfunction: false, vasospasm: null });
+    expect(r.endotype).toBe('microvascular-angina');
+    expect(r.reasons).toContain(
+      'LAD: CFR 1.50 is below the 2.00 cut-off (EAPCI 2020) — impaired coronary flow reserve; IMR was not measured, so whether it is structural or functional cannot be decided.',
+    );
+    expect(r.reasons.at(-1)).toBe(
+      'Endotype: microvascular angina (microvascular dysfunction with low CFR in LAD: CFR below 2.00 with IMR not measured, so whether it is structural or functional cannot be decided) with no obstructive stenosis (COVADIS; EAPCI 2020).',
+    );
+  });
+
+  it('the same without angina in the record keeps the non-angina wording (COVADIS names angina only with the symptom)', () => {
+    const r = study([lowCfrNoImr], negativeAch, undefined, false);
+    expect(r.endotype).toBe('microvascular-angina');
+    expect(endotypeName(r.endotype, false)).toBe('Coronary microvascular dysfunction');
+    expect(r.headline).toBe('Coronary microvascular dysfunction with low CFR (IMR not measured, so its type is not known) in LAD');
+    expect(r.reasons.at(-1)).toMatch(/^Endotype: coronary microvascular dysfunction \(microvascular dysfunction with low CFR in LAD: .*named microvascular angina only in a patient with angina, and the record says the patient has no angina/);
+  });
+
+  it('raised IMR with CFR not measured is not "raised IMR with CFR preserved": dysfunction true, subtype null, the reason says CFR was not measured', () => {
+    const r = study([highImrNoCfr], negativeAch, undefined, true);
+    expect(r.vessels[0].imr).toBeCloseTo(36, 10);
+    expect(r.vessels[0].cfr).toBeUndefined();
+    expect(r.vessels[0].microvascular).toBeUndefined();
+    expect(r.vessels[0].microvascularDysfunction).toBe(true);
+    expect(r.findings.microvascular).toBeNull();
+    expect(r.findings.microvascularDysfunction).toBe(true);
+    expect(r.endotype).toBe('microvascular-angina');
+    expect(r.reasons).toContain(
+      'LAD: IMR 36 U (Pd × Tmn) is at or above the 25 cut-off (ESC 2024; EAPCI 2020) — raised microvascular resistance; CFR was not measured, so its type cannot be decided (structural dysfunction needs a low CFR as well).',
+    );
+    expect(r.headline).toBe('Microvascular angina: coronary microvascular dysfunction with raised IMR (CFR not measured, so its type is not known) in LAD');
+    expect(r.reasons.join(' ')).not.toMatch(/preserved/);
+  });
+
+  it('a borderline CFR alone is not dysfunction (EAPCI 2020; ESC 2024 < 2.5 as a lab band)', () => {
+    const r = study([vessel('lad', { cfr: 2.2 })], negativeAch, { cfrBorderline: 2.5 });
+    expect(r.findings.microvascularDysfunction).toBe(false);
+  });
+});
+
+describe('raised IMR beside a borderline CFR is worded as borderline, never "preserved" — ILIAS (Boerhout et al., EuroIntervention 2022): raised IMR with a CFR that is not low is not structural; ESC 2024 (CFR < 2.5) as the lab band 2.0–2.5', () => {
+  // LAD FFR 0.90, IMR 90 × 0.40 = 36 U; CFR set by the resting Tmn. The lab's borderline band: 2.00 to below 2.50.
+  const band = { cfrBorderline: 2.5 };
+  it('CFR 2.20 (borderline) with IMR 36: subtype raised-imr, and the words say borderline', () => {
+    const r = study([vessel('lad', { cfr: 2.2, imrTmn: 0.4 })], negativeAch, band, true);
+    expect(r.vessels[0].cfrFlag).toBe('borderline');
+    expect(r.findings.microvascular).toBe('raised-imr');
+    expect(r.findings.microvascularDysfunction).toBe(true);
+    expect(r.headline).toBe('Microvascular angina: raised microvascular resistance with borderline CFR in LAD');
+    expect(r.reasons).toContain(
+      'LAD: IMR 36 U (Pd × Tmn) is at or above the 25 cut-off (ESC 2024; EAPCI 2020) — raised microvascular resistance with CFR 2.20 borderline, not low — not structural dysfunction, which needs a low CFR as well.',
+    );
+    expect(r.reasons.at(-1)).toBe(
+      'Endotype: microvascular angina (raised microvascular resistance in LAD: IMR at or above 25 with CFR borderline (2.00 to below 2.50), not low) with no obstructive stenosis (COVADIS; EAPCI 2020).',
+    );
+    expect([r.headline, ...r.reasons].join(' ')).not.toMatch(/preserved/i);
+  });
+  it.each([
+    // Judged at the display precision (2 decimals): 2.49 is borderline, 2.50 normal.
+    { cfr: 2.49, flag: 'borderline', words: 'borderline CFR' },
+    { cfr: 2.5, flag: 'normal', words: 'preserved CFR' },
+  ])('CFR $cfr → $flag, headline says "$words"', ({ cfr, flag, words }) => {
+    const r = study([vessel('lad', { cfr, imrTmn: 0.4 })], negativeAch, band, true);
+    expect(r.vessels[0].cfrFlag).toBe(flag);
+    expect(r.findings.microvascular).toBe('raised-imr');
+    expect(r.headline).toBe(`Microvascular angina: raised microvascular resistance with ${words} in LAD`);
+  });
+  it('a low CFR with raised IMR stays structural, not raised-imr', () => {
+    const r = study([vessel('lad', { cfr: 1.99, imrTmn: 0.4 })], negativeAch, band, true);
+    expect(r.findings.microvascular).toBe('structural');
+  });
+});
+
+describe('RRR and MRR in a vessel where no microvascular finding is drawn say so — COVADIS (Ong et al., Int J Cardiol 2018) and EAPCI 2020: microvascular function is judged only where obstruction is excluded; RRR (Lee et al., JAHA 2020), MRR (De Bruyne et al. 2021)', () => {
+  it('LAD FFR 0.75 (obstructive, ≤ 0.80 ESC 2024), CFR 1.50: RRR 1.94 and MRR 2.00 carry the qualifier', () => {
+    // RRR = CFR × Pd rest / Pd hyp = 1.5 × 97 / 75 = 1.94; MRR = (CFR / FFR) × (Pa rest / Pa hyp) = (1.5 / 0.75) × 1 = 2.00.
+    const r = study([vessel('lad', { ffrPd: 75, cfr: 1.5 })], negativeAch);
+    expect(r.vessels[0].rrr).toBeCloseTo(1.94, 10);
+    expect(r.vessels[0].mrr).toBeCloseTo(2, 10);
+    expect(r.reasons).toContain(
+      'LAD: RRR 1.94 is below the 2.00 cut-off (cut-off source not confirmed) — reduced resistive reserve — in a vessel with an obstructive stenosis, so not used for the microvascular finding.',
+    );
+    expect(r.reasons).toContain(
+      'LAD: MRR 2.00 is below the 2.10 cut-off — reduced microvascular resistance reserve — in a vessel with an obstructive stenosis, so not used for the microvascular finding; MRR here comes from bolus thermodilution, while its cut-offs were set with continuous thermodilution (de Vos 2023); the bolus cut-off is not settled.',
+    );
+  });
+  it('a borderline MRR in an obstructed vessel carries it too', () => {
+    // FFR 0.75, CFR 1.65 → MRR (1.65 / 0.75) × 1 = 2.20, in the 2.10–2.70 band (de Vos et al. 2023).
+    const r = study([vessel('lad', { ffrPd: 75, cfr: 1.65 })], negativeAch);
+    expect(r.vessels[0].mrrFlag).toBe('borderline');
+    expect(r.reasons).toContain(
+      'LAD: MRR 2.20 is in the 2.10–2.70 borderline band — in a vessel with an obstructive stenosis, so not used for the microvascular finding; MRR here comes from bolus thermodilution, while its cut-offs were set with continuous thermodilution (de Vos 2023); the bolus cut-off is not settled.',
+    );
+  });
+  it('where obstruction was not excluded (no pressure index judged, no stenosis estimate) the CFR, RRR and MRR sentences say so, and name no subtype', () => {
+    // Pd/Pa above 1.05 at rest (1.08) and hyperaemia (1.07) gets no verdict (common practice); CFR 0.60 / 0.40 = 1.50.
+    const v = { id: 'lad', vessel: 'LAD', rest: { pa: 100, pd: 108, tmn: three(0.6) }, hyperemia: { pa: 100, pd: 107, tmn: three(0.4) } } as VesselIn;
+    const r = study([v], negativeAch);
+    expect(r.vessels[0].obstructive).toBeUndefined();
+    const tail = ' — obstruction was not excluded in this vessel, so not used for the microvascular finding';
+    expect(r.reasons).toContain(`LAD: CFR 1.50 is below the 2.00 cut-off (EAPCI 2020) — impaired coronary flow reserve${tail}.`);
+    expect(r.reasons.some((s) => s.startsWith('LAD: RRR ') && s.endsWith(`${tail}.`))).toBe(true);
+    expect(r.reasons.some((s) => s.startsWith('LAD: MRR ') && s.includes(`${tail};`))).toBe(true);
+    expect(r.reasons.join(' ')).not.toMatch(/functional microvascular dysfunction|structural microvascular dysfunction/);
+    expect(r.findings.microvascularDysfunction).toBe(false);
+  });
+});
+
+describe('"no coronary abnormality" needs a negative acetylcholine test — EAPCI 2020 INOCA consensus; CorMicA (Ford et al. 2019): normal coronary function needs FFR, CFR and IMR normal and no spasm or abnormal acetylcholine response; COVADIS: constriction without symptoms or ECG change is endothelial dysfunction, not spasm', () => {
+  it('endothelial dysfunction with FFR 0.90, CFR 3.00 and IMR 18 leaves the endotype open and names the finding', () => {
+    const r = study([normalVessel()], endothelial, undefined, true);
+    expect(r.vasoreactivity?.result).toBe('endothelial-dysfunction');
+    expect(r.endotype).toBe('inconclusive');
+    expect(r.findings.endothelialDysfunction).toBe(true);
+    expect(r.headline).toBe('No obstructive disease, microvascular dysfunction or spasm; endothelial dysfunction on acetylcholine testing');
+    expect(r.reasons.at(-1)).toContain('the acetylcholine test is not negative, so the study cannot be called free of coronary abnormality');
+  });
+  it('a negative test with the same physiology is "no coronary abnormality"', () => {
+    expect(study([normalVessel()], negativeAch).endotype).toBe('no-abnormality');
+  });
+});
+
+describe('a visual stenosis is printed on the side of the cut-off it was judged on — COVADIS (Ong et al., Int J Cardiol 2018): obstructive at ≥ 50% without a pressure index', () => {
+  it('49.996% is not obstructive; 50% is, and its sentence prints 50%', () => {
+    expect(study([{ id: 'lad', vessel: 'LAD', visualStenosisPct: 49.996 } as VesselIn]).findings.obstructive).toBe(false);
+    const r = study([{ id: 'lad', vessel: 'LAD', visualStenosisPct: 50 } as VesselIn]);
+    expect(r.findings.obstructive).toBe(true);
+    expect(r.reasons[0]).toBe('LAD: visual stenosis 50% with no pressure index is at or above 50% (COVADIS) — obstructive by angiography.');
   });
 });

@@ -2,6 +2,7 @@ import { describe, expect, it } from 'vitest';
 import {
   analyzeStudy,
   defaultThresholds,
+  formatQuantity,
   thresholdSources,
   type PhysiologyInput,
   type VesselResult,
@@ -13,7 +14,7 @@ const SRC = {
   precision: 'common practice: an index is judged at the precision it is displayed and reported (ratios 2 decimals, IMR whole number)',
   caseA: 'hand-computed from the published formulas (FFR = Pd/Pa, Pijls et al., NEJM 1996; CFR = Tmn rest / Tmn hyp, EAPCI 2020; IMR with the Yong correction, Yong et al.; RRR, Lee et al., JAHA 2020; MRR, De Bruyne et al. 2021) — not a worked example from a paper',
   ffr: 'ESC 2024 chronic coronary syndromes guideline; EAPCI 2020; FAME (FFR ≤ 0.80)',
-  grey: 'DEFER/FAME history, Interv Cardiol Rev 2016 (grey zone 0.75–0.80)',
+  grey: 'DEFER/FAME history, Interv Cardiol Rev 2016 (grey zone 0.76–0.80)',
   restPdPa: 'CONTRAST (whole-cycle resting Pd/Pa ≤ 0.91)',
   diastolic: 'DEFINE-FLAIR and the SWEDEHEART-based trial, 2017; EAPCI 2020 (≤ 0.89)',
   fullCycle: 'validation studies summarised in an Open Heart review; EAPCI 2020 (≤ 0.89)',
@@ -73,7 +74,7 @@ describe('check case A', () => {
     expect(v.rrrFlag).toBe('normal');
     expect(v.mrrFlag).toBe('normal');
     expect(v.warnings).toEqual([]);
-    expect(r.findings).toEqual({ obstructive: true, microvascular: null, endothelialDysfunction: false, vasospasm: null });
+    expect(r.findings).toEqual({ obstructive: true, microvascular: null, microvascularDysfunction: false, endothelialDysfunction: false, vasospasm: null });
     expect(r.endotype).toBe('obstructive');
   });
 
@@ -91,7 +92,7 @@ describe('FFR boundaries', () => {
     { pd: 79, ffr: 0.79, flag: 'abnormal', grey: true, source: SRC.ffr },
     { pd: 81, ffr: 0.81, flag: 'normal', grey: undefined, source: SRC.ffr },
     { pd: 76, ffr: 0.76, flag: 'abnormal', grey: true, source: SRC.grey },
-    { pd: 75, ffr: 0.75, flag: 'abnormal', grey: true, source: SRC.grey },
+    { pd: 75, ffr: 0.75, flag: 'abnormal', grey: undefined, source: SRC.grey },
     { pd: 74, ffr: 0.74, flag: 'abnormal', grey: undefined, source: SRC.grey },
   ])('hyperaemic Pd $pd / Pa 100 → FFR $ffr $flag — $source', ({ pd, ffr, flag, grey }) => {
     const v = one({ hyperemia: { pa: 100, pd } });
@@ -114,7 +115,26 @@ describe('FFR boundaries', () => {
   it(`grey zone adds a reason but keeps the flag abnormal — ${SRC.grey}`, () => {
     const r = analyzeStudy({ vessels: [{ id: 'v', vessel: 'LAD', hyperemia: { pa: 100, pd: 78 } }] });
     expect(r.vessels[0].ffrFlag).toBe('abnormal');
-    expect(r.reasons.some((s) => s.includes('0.75–0.80 grey zone'))).toBe(true);
+    expect(r.reasons.some((s) => s.includes('0.76–0.80 grey zone'))).toBe(true);
+  });
+
+  // The band 0.76–0.80, both ends included, judged by the one precision rule (two decimals), like the flag.
+  it.each([
+    { pd: 75, ffr: '0.75', grey: undefined, flag: 'abnormal' },
+    { pd: 75.4, ffr: '0.75', grey: undefined, flag: 'abnormal' },
+    { pd: 75.5, ffr: '0.76', grey: true, flag: 'abnormal' },
+    { pd: 76, ffr: '0.76', grey: true, flag: 'abnormal' },
+    { pd: 80, ffr: '0.80', grey: true, flag: 'abnormal' },
+    { pd: 80.4, ffr: '0.80', grey: true, flag: 'abnormal' },
+    { pd: 80.5, ffr: '0.81', grey: undefined, flag: 'normal' },
+    { pd: 81, ffr: '0.81', grey: undefined, flag: 'normal' },
+  ])(`FFR $pd / 100 shown $ffr: grey zone $grey, flag $flag — ${SRC.grey}; ESC 2024 (FFR ≤ 0.80)`, ({ pd, ffr, grey, flag }) => {
+    const r = analyzeStudy({ vessels: [{ id: 'v', vessel: 'LAD', hyperemia: { pa: 100, pd } }] });
+    const v = r.vessels[0];
+    expect(formatQuantity(v.ffr!, 'ratio')).toBe(ffr);
+    expect(v.ffrGreyZone).toBe(grey);
+    expect(v.ffrFlag).toBe(flag);
+    expect(r.reasons.some((s) => s.includes(`FFR ${ffr} lies in the 0.76–0.80 grey zone`))).toBe(grey === true);
   });
 
   it(`pressures win over an entered FFR within 0.02 on the same side of the cut-off — ${SRC.practice}`, () => {

@@ -297,3 +297,47 @@ describe('ach-dose-high (vasoreactivity warnings)', () => {
     expect(r.warnings.some((w) => w.code === 'ach-dose-high')).toBe(warn);
   });
 });
+
+describe('a warning never contradicts the numbers it prints — common practice: a value is judged at the precision it is printed, or printed with the decimals that carry its verdict', () => {
+  it.each([
+    // Judged as entered (Cook et al., Circ Cardiovasc Interv 2016: > 2 mmHg of drift → repeat); printed so the words agree.
+    { drift: 0.975, shown: '0.975' },
+    { drift: 1.0249, shown: '1.025' },
+    { drift: 0.97999, shown: '0.97999' },
+    { drift: 0.97, shown: '0.97' },
+  ])(`drift $drift outside 0.98–1.02 prints $shown, never a value inside the window — ${SRC.drift}`, ({ drift, shown }) => {
+    const w = one({ driftPdPa: drift }).warnings.find((x) => x.code === 'drift-out-of-range');
+    expect(w?.message).toContain(`after pull-back was ${shown}, outside 0.98–1.02`);
+  });
+
+  it.each([
+    // The spread printed as a whole percentage is judged as printed: 30.04% prints "30%", which is not more than 30%.
+    { tmn: [1.0, 1.0, 1.3004], warn: false, pct: '30' },
+    { tmn: [1.0, 1.0, 1.3049], warn: false, pct: '30' },
+    { tmn: [1.0, 1.0, 1.305], warn: true, pct: '31' },
+  ])(`resting Tmn $tmn → spread $pct%, warn $warn — ${SRC.spread}`, ({ tmn, warn, pct }) => {
+    const w = one({ rest: { pa: 100, pd: 95, tmn } }).warnings.filter((x) => x.code === 'injection-spread');
+    expect(w.length > 0).toBe(warn);
+    if (warn) expect(w[0].message).toContain(`differs by ${pct}% from the mean of the other rest injections (1.00 s), more than 30%`);
+  });
+
+  it.each([
+    // Resting Pd/Pa 93.44 / 100 prints 0.93; hyperaemic 95.45 / 100 prints 0.95: 0.02 apart as printed, not more.
+    { hypPd: 95.45, warn: false },
+    { hypPd: 95.5, warn: true }, // prints 0.96: 0.03 above 0.93
+  ])(`resting Pd/Pa 0.9344, hyperaemic Pd $hypPd / 100 → warn $warn — ${SRC.ratioTolerance}`, ({ hypPd, warn }) => {
+    const v = one({ rest: { pa: 100, pd: 93.44 }, hyperemia: { pa: 100, pd: hypPd } });
+    expect(codes(v).includes('hyperemic-above-resting')).toBe(warn);
+    if (warn) expect(v.warnings.find((x) => x.code === 'hyperemic-above-resting')?.message).toContain('hyperaemic Pd/Pa 0.96 is higher than resting Pd/Pa 0.93 by more than 0.02');
+  });
+
+  it.each([
+    // Pd/Pa 84.9 / 100 prints 0.85; an entered 0.87 is 0.02 from it as printed (0.021 unrounded), both above 0.80.
+    { entered: 0.87, warn: false },
+    { entered: 0.88, warn: true },
+  ])(`entered FFR $entered vs Pd/Pa 0.849 → warn $warn — ${SRC.practice}`, ({ entered, warn }) => {
+    const v = one({ rest: undefined, hyperemia: { pa: 100, pd: 84.9 }, ffr: entered });
+    expect(codes(v).includes('ffr-mismatch')).toBe(warn);
+    if (warn) expect(v.warnings.find((x) => x.code === 'ffr-mismatch')?.message).toContain(`entered FFR ${entered.toFixed(2)} differs from hyperaemic Pd/Pa 0.85 by more than 0.02`);
+  });
+});

@@ -128,3 +128,32 @@ describe('reasons and thresholds', () => {
     expect('vasoreactivity' in analyzeStudy({ vessels: [] })).toBe(false);
   });
 });
+
+describe('a constriction is printed in the band it was judged in — COVADIS (≥ 90% with symptoms and ischaemic ECG is epicardial spasm); common practice: judged as entered, never printed onto the cut-off', () => {
+  it.each([
+    { pct: 89.996, result: 'microvascular-spasm', text: 'with 89.996% constriction (below 90%)' },
+    { pct: 89.6, result: 'microvascular-spasm', text: 'with 89.6% constriction (below 90%)' },
+    { pct: 90, result: 'epicardial-spasm', text: '90% constriction with reproduced symptoms' },
+  ])(`$pct% with symptoms and ECG changes → $result — ${SRC.covadis}`, ({ pct, result, text }) => {
+    const r = run([dose(pct, true, true)]);
+    expect(r.vasoreactivity?.result).toBe(result);
+    expect(r.reasons[0]).toContain(text);
+  });
+  it(`19.996% without symptoms is negative and prints below 20% — ${SRC.endothelial}`, () => {
+    const r = run([dose(19.996, false, false)]);
+    expect(r.vasoreactivity?.result).toBe('negative');
+    expect(r.reasons[0]).toContain('maximum constriction 19.996% (below 20%');
+  });
+});
+
+describe('a dose above the ceiling is printed above it — ESC 2024 protocol figure (up to 200 µg into the left coronary); common practice: never printed onto the ceiling', () => {
+  it.each([
+    { micrograms: 200.4, warn: true, text: '(200.4 µg into the LAD) is above the usual maximum of 200 µg' },
+    { micrograms: 201, warn: true, text: '(201 µg into the LAD) is above the usual maximum of 200 µg' },
+    { micrograms: 200, warn: false, text: '' },
+  ])(`$micrograms µg → warn $warn — ${SRC.ceiling}`, ({ micrograms, warn, text }) => {
+    const w = run([dose(10, false, false, micrograms)]).warnings.find((x) => x.code === 'ach-dose-high');
+    expect(w !== undefined).toBe(warn);
+    if (warn) expect(w!.message).toContain(text);
+  });
+});

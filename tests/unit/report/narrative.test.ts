@@ -151,7 +151,7 @@ describe('template sections', () => {
     s.vessels = [{ ...emptyVessel(s.vessels[0].id, 'LAD'), restPa: 100, restPd: 95, hyperemiaPa: 90, hyperemiaPd: 72, restTransit: [0.9, 0.9, 0.9], hyperemiaTransit: [0.3, 0.3, 0.3], driftPdPa: 1 }];
     s.vasoreactivity.doses = [];
     const i = section(render(s).text, 'INTERPRETATION BY VESSEL')!;
-    expect(i).toContain('FFR 0.80: abnormal (cut-off ≤ 0.80, ESC 2024); in the grey zone 0.75–0.80.');
+    expect(i).toContain('FFR 0.80: abnormal (cut-off ≤ 0.80, ESC 2024); in the grey zone 0.76–0.80.');
     expect(i).toContain('CFR 3.00: normal');
     expect(i).toContain('IMR 21 U, corrected without wedge pressure: normal (cut-off ≥ 25 U, ESC 2024; EAPCI 2020); uncorrected 22 U.');
     expect(i).toContain('RRR 3.96: normal');
@@ -371,5 +371,70 @@ describe('what a visual estimate and endothelial dysfunction are called', () => 
     const text = render(s).text;
     expect(text).toContain('endothelial dysfunction');
     expect(text).not.toContain('No coronary abnormality found');
+  });
+});
+
+describe('CFR, IMR, RRR and MRR in an obstructed vessel are said not to be used for the microvascular finding — COVADIS (Ong et al., Int J Cardiol 2018); EAPCI 2020 INOCA consensus', () => {
+  // LAD Pa/Pd rest 100/97, hyperaemia 100/75, Tmn 0.60 / 0.40 s, hand-computed: FFR 0.75 (≤ 0.80, ESC 2024: obstructive),
+  // CFR 1.50, RRR 1.5 × 97 / 75 = 1.94 (Lee et al., JAHA 2020), MRR (1.5 / 0.75) × 1 = 2.00 (De Bruyne et al. 2021).
+  const obstructed = () => {
+    const s = demoReportStudies()[2];
+    s.vessels = [{ ...emptyVessel(s.vessels[0].id, 'LAD'), restPa: 100, restPd: 97, hyperemiaPa: 100, hyperemiaPd: 75, restTransit: [0.6, 0.6, 0.6], hyperemiaTransit: [0.4, 0.4, 0.4], driftPdPa: 1 }];
+    return s;
+  };
+  it('template v3: each of those sentences carries the qualifier; the reasons carry it in every version', () => {
+    const text = render(obstructed(), { templateVersion: 'v3' }).text;
+    const i = section(text, 'INTERPRETATION BY VESSEL')!;
+    const q = ' Not used for the microvascular finding: the vessel has an obstructive stenosis.';
+    expect(i).toContain(`RRR 1.94: abnormal (cut-off < 2.00, cut-off source not confirmed).${q}`);
+    expect(i).toMatch(new RegExp(`MRR 2\\.00: abnormal .*thermodilution\\.${q.replace(/[.:]/g, (c) => `\\${c}`)}`));
+    expect(i).toContain(`CFR 1.50: abnormal (cut-off < 2.00, EAPCI 2020).${q}`);
+    const d = section(text, 'DIAGNOSIS: CORONARY FUNCTION')!;
+    expect(d).toContain('- LAD: RRR 1.94 is below the 2.00 cut-off (cut-off source not confirmed) — reduced resistive reserve — in a vessel with an obstructive stenosis, so not used for the microvascular finding.');
+  });
+  it('template v1 keeps its interpretation wording, and its reasons still say it', () => {
+    const text = render(obstructed(), { templateVersion: 'v1' }).text;
+    const i = section(text, 'INTERPRETATION BY VESSEL')!;
+    expect(i).toContain('RRR 1.94: abnormal (cut-off < 2.00, cut-off source not confirmed).');
+    expect(i).not.toContain('Not used for the microvascular finding');
+    expect(section(text, 'DIAGNOSIS: CORONARY FUNCTION')).toContain('reduced resistive reserve — in a vessel with an obstructive stenosis, so not used for the microvascular finding.');
+  });
+  it('a non-obstructed vessel gets no qualifier', () => {
+    const s = obstructed();
+    s.vessels[0].hyperemiaPd = 90;
+    const i = section(render(s, { templateVersion: 'v3' }).text, 'INTERPRETATION BY VESSEL')!;
+    expect(i).toContain('RRR ');
+    expect(i).not.toContain('Not used for the microvascular finding');
+  });
+});
+
+describe('microvascular dysfunction of a type not known is worded as such in the report — EAPCI 2020 INOCA consensus (structural = low CFR with IMR ≥ 25; functional = low CFR with normal IMR)', () => {
+  it('raised IMR with CFR not measured: no "preserved CFR", the reason says CFR was not measured', () => {
+    // LAD FFR 90/100 = 0.90, hyperaemic Tmn 0.40 s → IMR 36 U (≥ 25, EAPCI 2020); no resting Tmn, so no CFR.
+    const s = demoReportStudies()[2];
+    s.details.anginaPresent = true;
+    s.vessels = [{ ...emptyVessel(s.vessels[0].id, 'LAD'), hyperemiaPa: 100, hyperemiaPd: 90, hyperemiaTransit: [0.4, 0.4, 0.4], driftPdPa: 1 }];
+    const text = render(s).text;
+    const d = section(text, 'DIAGNOSIS: CORONARY FUNCTION')!;
+    expect(d).toContain('Microvascular angina: coronary microvascular dysfunction with raised IMR (CFR not measured, so its type is not known) in LAD.');
+    expect(d).toContain('CFR was not measured, so its type cannot be decided');
+    expect(text).not.toMatch(/preserved/i);
+  });
+});
+
+describe('entered percentages are printed on the side of the cut-off they were judged on — COVADIS (Ong et al., Int J Cardiol 2018: ≥ 50% visual stenosis is obstructive; ≥ 90% constriction with symptoms and ECG changes is epicardial spasm)', () => {
+  it('a 49.6% visual stenosis, not obstructive, prints 49.6 %, never 50 %', () => {
+    const s = demoReportStudies()[0];
+    s.vessels = [{ ...emptyVessel(s.vessels[0].id, 'LAD'), visualStenosisPct: 49.6, driftNotDoneReason: 'No wire used' }];
+    const text = render(s).text;
+    expect(text).toContain('not angiographically obstructive by visual estimate (visual stenosis 49.6 %');
+    expect(text).not.toContain('50 %');
+  });
+  it('an 89.6% constriction with symptoms and ECG changes (microvascular spasm) prints 89.6 % in the dose table', () => {
+    const s = demoReportStudies()[3];
+    const last = s.vasoreactivity.doses.length - 1;
+    s.vasoreactivity.doses[last] = { ...s.vasoreactivity.doses[last], constrictionPct: 89.6, symptoms: true, ischemicEcg: true };
+    const a = section(render(s).text, 'ACETYLCHOLINE TESTING')!;
+    expect(a).toMatch(/89\.6 %\s+Yes\s+Yes\s+Microvascular spasm/);
   });
 });

@@ -49,6 +49,10 @@ describe('threshold ranges', () => {
     const t: Thresholds = { ...defaultThresholds, ffr: 0.77, ffrGreyZoneLow: 0.78, mrr: 2.8, mrrBorderline: 2.7 };
     expect(thresholdRelationProblems(t).map((p) => p.key).sort()).toEqual(['ffrGreyZoneLow', 'mrrBorderline']);
     expect(thresholdRelationProblems(defaultThresholds)).toEqual([]);
+    // DEFER's 0.75 cut-off lies below the default grey zone 0.76–0.80 (DEFER/FAME history, Interv Cardiol Rev 2016):
+    // the lab is told to lower the grey zone with it.
+    expect(thresholdRelationProblems({ ...defaultThresholds, ffr: 0.75 }).map((p) => p.key)).toEqual(['ffrGreyZoneLow']);
+    expect(thresholdRelationProblems({ ...defaultThresholds, ffr: 0.75, ffrGreyZoneLow: 0.75 })).toEqual([]);
   });
 
   it('calls a value other than the published default a lab setting', () => {
