@@ -7,7 +7,7 @@ import os from 'node:os';
 import type { DataSource } from 'typeorm';
 import { createDataSource } from '../server/db/data-source';
 import { prepareDatabase } from '../server/cli/prepare-database';
-import { figuresQueries, figuresWorkMem, turnaroundFigures } from '../server/turnaround/figures';
+import { figuresQueries, figuresSettings, turnaroundFigures } from '../server/turnaround/figures';
 import { turnaroundSettings } from '../server/turnaround/settings';
 import { signIn, startStack, usernameOf } from '../tests/support/stack';
 
@@ -214,9 +214,9 @@ async function main(): Promise<void> {
 
     // Each statement alone (the endpoint runs them at once on separate connections, one snapshot).
     for (const part of figuresQueries(query, settings)) {
-      console.log(`\nplan (EXPLAIN ANALYZE, BUFFERS) of the ${part.name} statement (work_mem ${figuresWorkMem}):`);
+      console.log(`\nplan (EXPLAIN ANALYZE, BUFFERS) of the ${part.name} statement (${figuresSettings}):`);
       const plan: { 'QUERY PLAN': string }[] = await ds.transaction(async (tx) => {
-        await tx.query(`SET LOCAL work_mem = '${figuresWorkMem}'`);
+        await tx.query(figuresSettings);
         return tx.query(`EXPLAIN (ANALYZE, BUFFERS) ${part.sql}`, part.params);
       });
       for (const line of plan) console.log(line['QUERY PLAN']);

@@ -1,3 +1,4 @@
+import type pg from 'pg';
 import type { DataSource, QueryRunner } from 'typeorm';
 import { slots, type Slots } from '../reports/signing-slots';
 import type { Endotype } from '../../shared/physiology/types';
@@ -90,9 +91,10 @@ const monthsOfRange = `
 /**
  * The statements behind the figures, each independent of the others so they can run at once on
  * separate connections (`turnaroundFigures` gives them one snapshot). Each reads the range from the
- * covering index on `started_at` (index-only), and each sort is of the few columns it needs:
- * - weeks: per ISO week of the lab's time zone, a range of the index each (no sort of the range by week);
+ * covering index on `started_at` (index-only), and each sort is of the few columns it needs. In the
+ * order they start (the longest first):
  * - physicians: grouped by physician, with the overdue count now and the physician's name;
+ * - weeks: per ISO week of the lab's time zone, a range of the index each (no sort of the range by week);
  * - totals: the whole range, and the clock's start basis;
  * - quality: signed studies counted per local month, endotype and set of drift bands (a hash
  *   aggregate of a few hundred groups), then summed into the quality counts, the drift
@@ -102,18 +104,6 @@ const monthsOfRange = `
 export function figuresQueries(query: TurnaroundQuery, settings: TurnaroundSettings, now = new Date()): FiguresPart[] {
   const range = [query.from, query.to, settings.timeZone];
   return [
-    {
-      name: 'weeks',
-      sql: `SELECT to_char(w.week_start, 'YYYY-MM-DD') AS week_start, to_char(w.week_start, 'IYYY-"W"IW') AS week, s.*
-            FROM (${weeksOfRange}) w
-            CROSS JOIN LATERAL (
-              SELECT count(*)::int AS studies, ${statsSelect}
-              FROM (SELECT ${intervalColumns} FROM study_turnaround t WHERE t.started_at >= w.lo AND t.started_at < w.hi) t
-            ) s
-            WHERE s.studies > 0
-            ORDER BY w.week_start`,
-      params: range,
-    },
     {
       name: 'physicians',
       sql: `SELECT g.*, u.display_name AS physician_name
@@ -125,6 +115,18 @@ export function figuresQueries(query: TurnaroundQuery, settings: TurnaroundSetti
               GROUP BY t.physician_id
             ) g LEFT JOIN app_user u ON u.id = g.physician_id`,
       params: [...range, now, settings.signatureTargetHours],
+    },
+    {
+      name: 'weeks',
+      sql: `SELECT to_char(w.week_start, 'YYYY-MM-DD') AS week_start, to_char(w.week_start, 'IYYY-"W"IW') AS week, s.*
+            FROM (${weeksOfRange}) w
+            CROSS JOIN LATERAL (
+              SELECT count(*)::int AS studies, ${statsSelect}
+              FROM (SELECT ${intervalColumns} FROM study_turnaround t WHERE t.started_at >= w.lo AND t.started_at < w.hi) t
+            ) s
+            WHERE s.studies > 0
+            ORDER BY w.week_start`,
+      params: range,
     },
     {
       name: 'totals',
@@ -175,8 +177,12 @@ export function figuresQueries(query: TurnaroundQuery, settings: TurnaroundSetti
 type Rows = Record<string, unknown>[];
 type PartRows = Record<FiguresPart['name'], Rows>;
 
-/** Statement settings of each figures transaction: sorts in memory. */
-const partSetup = `SET LOCAL work_mem = '${figuresWorkMem}'`;
+/**
+ * Settings of each figures transaction: sorts in memory; no JIT compilation, which the planner's
+ * estimate of the per-week reads (a thousand weeks, not the range's 53) would otherwise ask for and
+ * which takes far longer than these statements run.
+ */
+export const figuresSettings = `SET LOCAL work_mem = '${figuresWorkMem}'; SET LOCAL jit = off`;
 
 /**
  * Connections one figures request may hold beside the pool's other users: the statements run at once
@@ -195,7 +201,7 @@ function poolSizeOf(db: DataSource): number {
 /** Runs the parts in one REPEATABLE READ READ ONLY transaction on one connection. */
 async function runSequentially(db: DataSource, parts: FiguresPart[]): Promise<PartRows> {
   return db.transaction('REPEATABLE READ', async (tx) => {
-    await tx.query(partSetup);
+    await tx.query(figuresSettings);
     const out = {} as PartRows;
     for (const part of parts) out[part.name] = await tx.query(part.sql, part.params);
     return out;
@@ -210,39 +216,41 @@ async function runSequentially(db: DataSource, parts: FiguresPart[]): Promise<Pa
 async function runConcurrently(db: DataSource, parts: FiguresPart[], connections: number): Promise<PartRows> {
   const runners = Array.from({ length: Math.min(connections, parts.length) }, () => db.createQueryRunner('slave'));
   const open: QueryRunner[] = [];
+  // Each connection's setup is one round trip (several statements, no parameters: the simple protocol).
+  const setup = async (runner: QueryRunner, statements: string): Promise<pg.QueryResult[]> => {
+    const client = (await runner.connect()) as pg.PoolClient;
+    open.push(runner);
+    return (await client.query(statements)) as unknown as pg.QueryResult[];
+  };
   try {
     const [first, ...others] = runners;
-    await first.connect();
-    open.push(first);
-    await first.query(`BEGIN ISOLATION LEVEL REPEATABLE READ READ ONLY`);
-    await first.query(partSetup);
-    const [{ snapshot }] = await first.query(`SELECT pg_export_snapshot() AS snapshot`);
+    const began = await setup(first, `BEGIN ISOLATION LEVEL REPEATABLE READ READ ONLY; ${figuresSettings}; SELECT pg_export_snapshot() AS snapshot`);
+    const snapshot = String(began[began.length - 1].rows[0].snapshot);
     if (!/^[0-9A-F-]+$/i.test(snapshot)) throw new Error('unexpected snapshot identifier');
-    // The others take the snapshot while the first one already works on its share.
-    await Promise.all(
-      others.map(async (runner) => {
-        await runner.connect();
-        open.push(runner);
-        await runner.query(`BEGIN ISOLATION LEVEL REPEATABLE READ READ ONLY`);
-        await runner.query(`SET TRANSACTION SNAPSHOT '${snapshot}'`);
-        await runner.query(partSetup);
-      }),
-    );
-    // Longest first, each connection taking the next statement when it is free.
+    // Longest first, each connection taking the next statement when it is free; the first one starts
+    // at once, the others as soon as they hold the snapshot (the first one's transaction is still open).
     const queue = [...parts];
     const out = {} as PartRows;
-    await Promise.all(
-      runners.map(async (runner) => {
-        for (let part = queue.shift(); part; part = queue.shift()) out[part.name] = await runner.query(part.sql, part.params);
+    const work = async (runner: QueryRunner) => {
+      for (let part = queue.shift(); part; part = queue.shift()) out[part.name] = await runner.query(part.sql, part.params);
+    };
+    // Every connection settles before any is given back, whichever fails.
+    const settled = await Promise.allSettled([
+      work(first),
+      ...others.map(async (runner) => {
+        await setup(runner, `BEGIN ISOLATION LEVEL REPEATABLE READ READ ONLY; SET TRANSACTION SNAPSHOT '${snapshot}'; ${figuresSettings}`);
+        await work(runner);
       }),
-    );
+    ]);
+    const failure = settled.find((r): r is PromiseRejectedResult => r.status === 'rejected');
+    if (failure) throw failure.reason;
     await Promise.all(runners.map((runner) => runner.query('COMMIT')));
     return out;
   } catch (error) {
     await Promise.all(open.map((runner) => runner.query('ROLLBACK').catch(() => undefined)));
     throw error;
   } finally {
-    await Promise.all(open.map((runner) => runner.release()));
+    await Promise.all(runners.map((runner) => runner.release()));
   }
 }
 
