@@ -1,5 +1,6 @@
 import type pg from 'pg';
 import type { DataSource, QueryRunner } from 'typeorm';
+import type { AuditEntry } from '../audit/audit';
 import { slots, type Slots } from '../reports/signing-slots';
 import type { Endotype } from '../../shared/physiology/types';
 import {
@@ -88,6 +89,28 @@ const monthsOfRange = `
          ${localMidnight('LEAST((m + interval \'1 month\')::date, $2::date + 1)')} AS hi
   FROM generate_series(date_trunc('month', ($1::date)::timestamp), ($2::date)::timestamp, interval '1 month') m`;
 
+/** The audit entry's values, after the statement's own parameters. */
+const auditParams = (e: AuditEntry) => [
+  e.actorUserId ?? null,
+  e.actorName ?? null,
+  e.actorRole ?? null,
+  e.action,
+  e.entityType ?? null,
+  e.entityId ?? null,
+  e.clientAddress ?? null,
+  e.outcome,
+  JSON.stringify(e.detail ?? {}),
+];
+
+/** The audit row of a request for the figures, its detail completed with the range's studies (`totals`). */
+function auditInsert(e: AuditEntry, after: number): string {
+  const $ = (i: number) => `$${after + i}`;
+  return `INSERT INTO audit_event (actor_user_id, actor_name, actor_role, action, entity_type, entity_id, client_address, outcome, detail)
+          SELECT ${$(1)}::uuid, ${$(2)}::text, ${$(3)}::text, ${$(4)}::text, ${$(5)}::text, ${$(6)}::text, ${$(7)}::text, ${$(8)}::text,
+                 ${$(9)}::jsonb || jsonb_build_object('studies', totals.studies)
+          FROM totals`;
+}
+
 /**
  * The statements behind the figures, each independent of the others so they can run at once on
  * separate connections (`turnaroundFigures` gives them one snapshot). Each reads the range from the
@@ -99,9 +122,11 @@ const monthsOfRange = `
  * - quality: signed studies counted per local month, endotype and set of drift bands (a hash
  *   aggregate of a few hundred groups), then summed into the quality counts, the drift
  *   distribution and the endotype mix, all of which are sums of counts.
+ * With `audit`, the totals statement also records the request (the studies counted in its detail),
+ * so the row commits with the figures or not at all.
  * Medians and 90th percentiles are `percentile_cont` of the closed intervals (open ones are counted apart).
  */
-export function figuresQueries(query: TurnaroundQuery, settings: TurnaroundSettings, now = new Date()): FiguresPart[] {
+export function figuresQueries(query: TurnaroundQuery, settings: TurnaroundSettings, now = new Date(), audit?: AuditEntry): FiguresPart[] {
   const range = [query.from, query.to, settings.timeZone];
   return [
     {
@@ -130,13 +155,16 @@ export function figuresQueries(query: TurnaroundQuery, settings: TurnaroundSetti
     },
     {
       name: 'totals',
-      sql: `SELECT count(*)::int AS studies,
-                   count(*) FILTER (WHERE t.start_basis = 'procedure-end')::int AS basis_procedure_end,
-                   count(*) FILTER (WHERE t.start_basis = 'procedure-start')::int AS basis_procedure_start,
-                   count(*) FILTER (WHERE t.start_basis = 'opened')::int AS basis_opened,
-                   ${statsSelect}
-            FROM (SELECT t.start_basis, ${intervalColumns} FROM study_turnaround t WHERE ${rangeCondition}) t`,
-      params: range,
+      sql: `WITH totals AS (
+              SELECT count(*)::int AS studies,
+                     count(*) FILTER (WHERE t.start_basis = 'procedure-end')::int AS basis_procedure_end,
+                     count(*) FILTER (WHERE t.start_basis = 'procedure-start')::int AS basis_procedure_start,
+                     count(*) FILTER (WHERE t.start_basis = 'opened')::int AS basis_opened,
+                     ${statsSelect}
+              FROM (SELECT t.start_basis, ${intervalColumns} FROM study_turnaround t WHERE ${rangeCondition}) t
+            )${audit ? `, logged AS (${auditInsert(audit, range.length)})` : ''}
+            SELECT * FROM totals`,
+      params: audit ? [...range, ...auditParams(audit)] : range,
     },
     {
       name: 'quality',
@@ -198,7 +226,7 @@ function poolSizeOf(db: DataSource): number {
   return typeof max === 'number' ? max : 10;
 }
 
-/** Runs the parts in one REPEATABLE READ READ ONLY transaction on one connection. */
+/** Runs the parts in one REPEATABLE READ transaction on one connection. */
 async function runSequentially(db: DataSource, parts: FiguresPart[]): Promise<PartRows> {
   return db.transaction('REPEATABLE READ', async (tx) => {
     await tx.query(figuresSettings);
@@ -224,7 +252,7 @@ async function runConcurrently(db: DataSource, parts: FiguresPart[], connections
   };
   try {
     const [first, ...others] = runners;
-    const began = await setup(first, `BEGIN ISOLATION LEVEL REPEATABLE READ READ ONLY; ${figuresSettings}; SELECT pg_export_snapshot() AS snapshot`);
+    const began = await setup(first, `BEGIN ISOLATION LEVEL REPEATABLE READ; ${figuresSettings}; SELECT pg_export_snapshot() AS snapshot`);
     const snapshot = String(began[began.length - 1].rows[0].snapshot);
     if (!/^[0-9A-F-]+$/i.test(snapshot)) throw new Error('unexpected snapshot identifier');
     // Longest first, each connection taking the next statement when it is free; the first one starts
@@ -238,7 +266,7 @@ async function runConcurrently(db: DataSource, parts: FiguresPart[], connections
     const settled = await Promise.allSettled([
       work(first),
       ...others.map(async (runner) => {
-        await setup(runner, `BEGIN ISOLATION LEVEL REPEATABLE READ READ ONLY; SET TRANSACTION SNAPSHOT '${snapshot}'; ${figuresSettings}`);
+        await setup(runner, `BEGIN ISOLATION LEVEL REPEATABLE READ; SET TRANSACTION SNAPSHOT '${snapshot}'; ${figuresSettings}`);
         await work(runner);
       }),
     ]);
@@ -270,8 +298,14 @@ export async function readFigureParts(db: DataSource, parts: FiguresPart[]): Pro
  * (the first signer, or the operator while unsigned) and over the whole range; then the quality
  * counts, the drift distribution and the endotype mix per month (`figuresQueries`).
  */
-export async function turnaroundFigures(db: DataSource, query: TurnaroundQuery, settings: TurnaroundSettings, now = new Date()): Promise<TurnaroundFigures> {
-  const rows = await readFigureParts(db, figuresQueries(query, settings, now));
+export async function turnaroundFigures(
+  db: DataSource,
+  query: TurnaroundQuery,
+  settings: TurnaroundSettings,
+  now = new Date(),
+  audit?: AuditEntry,
+): Promise<TurnaroundFigures> {
+  const rows = await readFigureParts(db, figuresQueries(query, settings, now, audit));
   const all = (rows.totals[0] ?? null) as Record<string, number> | null;
   const q = rows.quality[0].quality as Record<string, number>;
   const drift = rows.quality[0].drift as { bin: number; vessels: number }[];

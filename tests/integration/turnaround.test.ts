@@ -205,6 +205,14 @@ describe('GET /api/turnaround/figures', () => {
     }
   });
 
+  it('records each request for the figures with the range and the studies counted', async () => {
+    const f = await figures('2003-03-03', '2003-03-16');
+    const [row] = await db.query(`SELECT * FROM audit_event WHERE detail->>'view' = 'turnaround-figures' ORDER BY id DESC LIMIT 1`);
+    expect(row).toMatchObject({ action: 'search', entity_type: 'study', outcome: 'success', actor_role: 'chief' });
+    expect(row.detail).toEqual({ view: 'turnaround-figures', from: '2003-03-03', to: '2003-03-16', studies: f.studies });
+    expect(f.studies).toBeGreaterThan(0);
+  });
+
   it('answers 400 with the field for a bad range', async () => {
     for (const [query, pointer] of [
       ['', '/from'],
