@@ -17,11 +17,25 @@ import {
 import type { TurnaroundSettings } from './settings';
 
 /**
- * The studies of a range of days in the lab's time zone (both ends included), by the time their
- * clock starts. $1 from, $2 to (dates), $3 the time zone.
+ * The first instant of a local date (SQL of type date) in the time zone $3: its local midnight.
+ * `timestamp AT TIME ZONE` alone takes the later of two instants when midnight happens twice (a zone
+ * that falls back at midnight, such as one that goes from 01:00 summer time back to 00:00), which would
+ * leave that date's first hour in the day before; so the midnight is read with the offset in force
+ * just before that instant, which gives the first one. Where midnight does not happen (the clock
+ * jumps over it) both give the instant of the jump, the first of that date.
  */
-export const rangeCondition = `t.started_at >= ($1::date)::timestamp AT TIME ZONE $3::text
-  AND t.started_at < ($2::date + 1)::timestamp AT TIME ZONE $3::text`;
+export const localMidnight = (date: string): string => {
+  const later = `((${date})::timestamp AT TIME ZONE $3::text)`;
+  const before = `(${later} - interval '1 microsecond')`;
+  return `(((${date})::timestamp - ((${before} AT TIME ZONE $3::text) - (${before} AT TIME ZONE 'UTC'))) AT TIME ZONE 'UTC')`;
+};
+
+/**
+ * The studies of a range of days in the lab's time zone (both ends included), by the time their
+ * clock starts: from the first local midnight to the one after the last day. $1 from, $2 to (dates), $3 the time zone.
+ */
+export const rangeCondition = `t.started_at >= ${localMidnight('$1::date')}
+  AND t.started_at < ${localMidnight('$2::date + 1')}`;
 
 /** The four intervals of one study in hours (float8); NULL while a step is missing (the interval is open). */
 export const intervalColumns = `
@@ -65,16 +79,11 @@ export interface FiguresPart {
 }
 
 /**
- * Local boundaries as instants, the way `rangeCondition` makes a day's: local midnight of a date in
- * the zone $3. Week and month boundaries inside the range are clipped to it.
- */
-const localMidnight = (date: string) => `(${date})::timestamp AT TIME ZONE $3::text`;
-
-/**
  * The ISO weeks of the range in the lab's time zone: each one's Monday and the instants of its local
  * Monday 00:00 and the next (clipped to the range), so each week reads its own part of the index on
  * `started_at` and no study's local time is worked out row by row. A study is in the week whose local
- * midnights enclose its start, as it is in the range whose local midnights enclose it. $1 from, $2 to, $3 zone.
+ * midnights (`localMidnight`) enclose its start, as it is in the range whose local midnights enclose it.
+ * $1 from, $2 to, $3 zone.
  */
 const weeksOfRange = `
   SELECT m::date AS week_start,
@@ -242,7 +251,7 @@ async function runSequentially(db: DataSource, parts: FiguresPart[]): Promise<Pa
  * (SET TRANSACTION SNAPSHOT), so the weeks, physicians, totals and quality agree with each other.
  */
 async function runConcurrently(db: DataSource, parts: FiguresPart[], connections: number): Promise<PartRows> {
-  const runners = Array.from({ length: Math.min(connections, parts.length) }, () => db.createQueryRunner('slave'));
+  const runners = Array.from({ length: Math.min(connections, parts.length) }, () => db.createQueryRunner());
   const open: QueryRunner[] = [];
   // Each connection's setup is one round trip (several statements, no parameters: the simple protocol).
   const setup = async (runner: QueryRunner, statements: string): Promise<pg.QueryResult[]> => {
