@@ -1,6 +1,7 @@
 import type { DataSource, EntityManager } from 'typeorm';
 import { labelOfAction, type AuditFilters, type AuditOutcomeCode, type AuditTrailItem, type AuditTrailPage } from '../../shared/audit/trail';
 import { bigintIdPattern, decodeKeysetCursor, encodeKeysetCursor, type KeysetCursor } from '../db/keyset-cursor';
+import { recordAudit, type AuditEntry } from './audit';
 
 type Db = DataSource | EntityManager;
 
@@ -138,7 +139,13 @@ const displaySelect = `
  * The page itself selects only (id, recorded_at), so a search through an index whose key holds all it
  * filters on never visits the table; the page's rows are then read by primary key and joined.
  */
-export function pageQuery(f: AuditFilters, resolved: Resolved, cursor: AuditCursor | null, limit: number): { sql: string; params: unknown[] } {
+export function pageQuery(
+  f: AuditFilters,
+  resolved: Resolved,
+  cursor: AuditCursor | null,
+  limit: number,
+  audit?: { entry: AuditEntry; shown: number },
+): { sql: string; params: unknown[] } {
   const params: unknown[] = [];
   const p = (value: unknown) => {
     params.push(value);
@@ -178,7 +185,21 @@ export function pageQuery(f: AuditFilters, resolved: Resolved, cursor: AuditCurs
   } else {
     page = `SELECT a.id, a.recorded_at FROM audit_event a ${where.length ? `WHERE ${where.join(' AND ')}` : ''} ${order} LIMIT ${n}`;
   }
-  return { sql: `WITH page AS (${page}) ${displaySelect}`, params };
+  return { sql: `WITH page AS (${page})${audit ? `, ${auditInsert(audit.entry, audit.shown, p)}` : ''} ${displaySelect}`, params };
+}
+
+/**
+ * The audit row of a search, written by the statement that reads the page (one round trip, one
+ * commit): its detail gets `returned`, the rows shown (at most `shown`; the page reads one more to
+ * know whether another page follows). A statement that fails writes neither.
+ */
+function auditInsert(entry: AuditEntry, shown: number, p: Param): string {
+  return `logged AS (
+    INSERT INTO audit_event (actor_user_id, actor_name, actor_role, action, entity_type, entity_id, client_address, outcome, detail)
+    SELECT ${p(entry.actorUserId ?? null)}::uuid, ${p(entry.actorName ?? null)}::text, ${p(entry.actorRole ?? null)}::text, ${p(entry.action)}::text,
+           ${p(entry.entityType ?? null)}::text, ${p(entry.entityId ?? null)}::text, ${p(entry.clientAddress ?? null)}::text, ${p(entry.outcome)}::text,
+           ${p(JSON.stringify(entry.detail ?? {}))}::jsonb || jsonb_build_object('returned', LEAST((SELECT count(*) FROM page), ${p(shown)}::int))
+  )`;
 }
 
 /** Filters and keys, resolved once for a search or an export. */
@@ -195,18 +216,33 @@ export async function prepareSearch(db: Db, filters: AuditFilters): Promise<Prep
   return { filters, resolved, empty };
 }
 
-/** `limit` rows after the cursor (null: from the newest). */
-export async function readAuditRows(db: Db, search: PreparedSearch, cursor: AuditCursor | null, limit: number): Promise<AuditTrailRow[]> {
-  if (search.empty) return [];
-  const { sql, params } = pageQuery(search.filters, search.resolved, cursor, limit);
+/**
+ * `limit` rows after the cursor (null: from the newest). With `audit`, the same statement records
+ * the search (see `auditInsert`); a search that needs no statement records it on its own.
+ */
+export async function readAuditRows(
+  db: Db,
+  search: PreparedSearch,
+  cursor: AuditCursor | null,
+  limit: number,
+  audit?: { entry: AuditEntry; shown: number },
+): Promise<AuditTrailRow[]> {
+  if (search.empty) {
+    if (audit) await recordAudit(db, { ...audit.entry, detail: { ...audit.entry.detail, returned: 0 } });
+    return [];
+  }
+  const { sql, params } = pageQuery(search.filters, search.resolved, cursor, limit, audit);
   return db.query(sql, params);
 }
 
-/** One page of the trail for people: in words, with the cursor of the next page. */
-export async function readAuditTrail(db: Db, filters: AuditFilters, cursor: string | undefined, limit: number): Promise<AuditTrailPage> {
+/**
+ * One page of the trail for people: in words, with the cursor of the next page. With `audit`, the
+ * search is recorded (its detail completed with the rows returned) by the statement that reads the page.
+ */
+export async function readAuditTrail(db: Db, filters: AuditFilters, cursor: string | undefined, limit: number, audit?: AuditEntry): Promise<AuditTrailPage> {
   const after = cursor ? decodeAuditCursor(cursor) : null;
   const search = await prepareSearch(db, filters);
-  const rows = await readAuditRows(db, search, after, limit + 1);
+  const rows = await readAuditRows(db, search, after, limit + 1, audit ? { entry: audit, shown: limit } : undefined);
   const page = rows.slice(0, limit);
   return {
     items: page.map(toTrailItem),

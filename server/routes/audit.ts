@@ -48,13 +48,13 @@ export function auditRoutes({ dataSource, config }: { dataSource: DataSource; co
       handlers: [
         async (req, res) => {
           const query = parseOrThrow(auditTrailQuerySchema, req.query, 'The audit trail filter');
-          const page = await readAuditTrail(dataSource, query, query.cursor, query.limit);
-          await recordAudit(dataSource, {
+          // The search is recorded by the statement that reads the page; `returned` is added there.
+          const page = await readAuditTrail(dataSource, query, query.cursor, query.limit, {
             ...auditContext(req),
             action: 'search',
             entityType: 'audit-event',
             outcome: 'success',
-            detail: { filters: filtersUsed(query), returned: page.items.length, ...(query.cursor ? { nextPage: true } : {}) },
+            detail: { filters: filtersUsed(query), ...(query.cursor ? { nextPage: true } : {}) },
           });
           res.json(page);
         },

@@ -221,6 +221,21 @@ describe('reading the trail is itself audited', () => {
     expect(mine.items[0]).toMatchObject({ actionLabel: 'Listed or searched', target: 'Audit trail', actorRole: 'admin' });
   });
 
+  it('records the rows shown (not the one read ahead), a next page, and a search that matched nobody', async () => {
+    const first = await trail({ limit: '2' });
+    expect(first.items).toHaveLength(2);
+    expect(first.nextCursor).toBeTruthy();
+    const own = await lastOwn();
+    expect(own.detail).toEqual({ filters: {}, returned: 2 });
+    // The search's own row is written by the statement that reads the page: it is not on that page.
+    expect(first.items.map((item) => item.id)).not.toContain(String(own.id));
+    const second = await trail({ limit: '2', cursor: first.nextCursor! });
+    expect((await lastOwn()).detail).toEqual({ filters: {}, returned: second.items.length, nextPage: true });
+    const none = await trail({ user: `nobody-${randomUUID()}` });
+    expect(none.items).toEqual([]);
+    expect((await lastOwn()).detail).toMatchObject({ returned: 0 });
+  });
+
   it('records an export with its format and filters, before the first byte is sent', async () => {
     await request(stack.url).get('/api/audit-trail/export').query({ format: 'fhir', user: 'varga', outcome: 'denied' }).set('Cookie', chief).expect(200);
     expect(await lastOwn()).toMatchObject({ action: 'export', actor_role: 'chief', detail: { format: 'fhir', filters: { user: 'varga', outcome: 'denied' } } });

@@ -8,6 +8,7 @@ import { startFakeSmtp } from '../../server/fakes/smtp';
 import { turnaroundFigures } from '../../server/turnaround/figures';
 import { overdueCronItems, queueOverdueNotices, queueOverdueNoticesTask, sendOverdueNoticeTask } from '../../server/turnaround/overdue-notices';
 import { turnaroundSettings } from '../../server/turnaround/settings';
+import { createDataSource } from '../../server/db/data-source';
 import { openTestDatabase } from '../support/app';
 import { turnaroundSeeder } from '../support/turnaround';
 import { signIn, startStack, usernameOf, type TestStack } from '../support/stack';
@@ -167,6 +168,69 @@ describe('GET /api/turnaround/figures', () => {
     // The day range too: 4 January in New York holds the study, 4 January in UTC does not.
     expect((await turnaroundFigures(db, { from: '2004-01-04', to: '2004-01-04' }, { ...settings, timeZone: 'America/New_York' })).studies).toBe(1);
     expect((await turnaroundFigures(db, { from: '2004-01-04', to: '2004-01-04' }, { ...settings, timeZone: 'UTC' })).studies).toBe(0);
+  });
+
+  it('starts weeks and months at local midnight, and gives the same figures on one connection as on several', async () => {
+    // Sunday 1 February 2004 02:00 UTC is Saturday 31 January 21:00 in New York; Monday 2 February
+    // 03:00 UTC is Sunday 1 February 22:00 there. ISO 8601 weeks start on Monday.
+    await seedStudy({ operatorId: promptId, endedAt: at('2004-02-01T02:00:00Z'), signedAfterH: 1, vessels: [visualOnly()] });
+    await seedStudy({ operatorId: lateId, endedAt: at('2004-02-02T03:00:00Z'), signedAfterH: 5, vessels: [visualOnly()] });
+    const settings = await turnaroundSettings(db);
+    const range = { from: '2004-01-26', to: '2004-02-08' };
+    const utc = await turnaroundFigures(db, range, { ...settings, timeZone: 'UTC' });
+    expect(utc.weeks.map((w) => [w.week, w.weekStart, w.studies])).toEqual([
+      ['2004-W05', '2004-01-26', 1],
+      ['2004-W06', '2004-02-02', 1],
+    ]);
+    expect(utc.quality.endotypes.map((m) => m.month)).toEqual(['2004-02']);
+    const ny = await turnaroundFigures(db, range, { ...settings, timeZone: 'America/New_York' });
+    expect(ny.weeks.map((w) => [w.week, w.weekStart, w.studies])).toEqual([['2004-W05', '2004-01-26', 2]]);
+    // percentile_cont of {1, 5}: median 1 + 0.5 × 4 = 3, 90th 1 + 0.9 × 4 = 4.6 (linear interpolation).
+    expect(ny.weeks[0].intervals.toSignature).toEqual({ closed: 2, open: 0, median: 3, p90: 4.6 });
+    expect(ny.quality.endotypes.map((m) => [m.month, Object.values(m.counts).reduce((a, b) => a + (b ?? 0), 0)])).toEqual([
+      ['2004-01', 1],
+      ['2004-02', 1],
+    ]);
+    // A pool of two runs the statements one after another in one transaction; a larger one at once.
+    const small = createDataSource(process.env.DATABASE_URL!, 2);
+    await small.initialize();
+    try {
+      const now = new Date();
+      for (const timeZone of ['UTC', 'America/New_York']) {
+        const wide = { from: '2003-03-01', to: '2004-02-29' };
+        expect(await turnaroundFigures(small, wide, { ...settings, timeZone }, now)).toEqual(await turnaroundFigures(db, wide, { ...settings, timeZone }, now));
+      }
+    } finally {
+      await small.destroy();
+    }
+  });
+
+  it('counts the first hour of a day whose midnight happens twice in that day, week and month', async () => {
+    // Cuba leaves summer time on the first Sunday of November at 0:00 standard time (01:00 summer time
+    // back to 00:00), so on Sunday 1 November 2026 local midnight happens twice: 04:00 and 05:00 UTC
+    // (IANA time zone database, northamerica, Rule Cuba [memory]). 04:30 UTC is 00:30 on 1 November there.
+    await seedStudy({ operatorId: promptId, endedAt: at('2026-11-01T04:30:00Z'), signedAfterH: 2, vessels: [visualOnly()] });
+    const settings = { ...(await turnaroundSettings(db)), timeZone: 'America/Havana' };
+    const [{ first, later }] = await db.query(
+      `SELECT (timestamptz '2026-11-01T04:30:00Z' AT TIME ZONE 'America/Havana')::text AS first, (timestamp '2026-11-01 00:00' AT TIME ZONE 'America/Havana')::text AS later`,
+    );
+    expect(first).toBe('2026-11-01 00:30:00');
+    expect(later).toBe('2026-11-01 05:00:00+00'); // the later midnight, which alone would leave the study in 31 October
+    const day = await turnaroundFigures(db, { from: '2026-11-01', to: '2026-11-01' }, settings);
+    expect(day.studies).toBe(1);
+    expect((await turnaroundFigures(db, { from: '2026-10-31', to: '2026-10-31' }, settings)).studies).toBe(0);
+    const range = await turnaroundFigures(db, { from: '2026-10-26', to: '2026-11-08' }, settings);
+    // Sunday 1 November 2026 closes ISO week 2026-W44 (26 October – 1 November).
+    expect(range.weeks.map((w) => [w.week, w.weekStart, w.studies])).toEqual([['2026-W44', '2026-10-26', 1]]);
+    expect(range.quality.endotypes.map((m) => m.month)).toEqual(['2026-11']);
+  });
+
+  it('records each request for the figures with the range and the studies counted', async () => {
+    const f = await figures('2003-03-03', '2003-03-16');
+    const [row] = await db.query(`SELECT * FROM audit_event WHERE detail->>'view' = 'turnaround-figures' ORDER BY id DESC LIMIT 1`);
+    expect(row).toMatchObject({ action: 'search', entity_type: 'study', outcome: 'success', actor_role: 'chief' });
+    expect(row.detail).toEqual({ view: 'turnaround-figures', from: '2003-03-03', to: '2003-03-16', studies: f.studies });
+    expect(f.studies).toBeGreaterThan(0);
   });
 
   it('answers 400 with the field for a bad range', async () => {
