@@ -10,6 +10,7 @@ import { permissionTable, type Permission, type Role } from '../../shared/auth/p
 import { openTestDatabase } from '../support/app';
 import { signedCodingStudy } from '../support/coding';
 import { completeStudy } from '../support/reports';
+import { parseCsv } from '../../shared/csv/neutralise';
 import { signIn, startStack, usernameOf, type TestStack } from '../support/stack';
 
 // What a client with a valid account of each role, or none, can make the server do. Each refusal is a
@@ -325,8 +326,8 @@ describe('3. uploads', () => {
     expect(text).toContain('-3.2');
     expect(text).toContain("'  =2+2");
     expect(text).toContain("'\uFF1D3+3");
-    // Split as a spreadsheet opening a .csv with a comma separator would: no cell may start a formula.
-    const cells = text.split(/\r?\n/).flatMap((line) => line.split(/[,\t;]/)).map((c) => c.replace(/^"/, ''));
+    // Read as a spreadsheet would with each separator it may choose (quotes honoured, RFC 4180): no cell may start a formula.
+    const cells = [',', ';', '\t'].flatMap((d) => parseCsv(text, d).flatMap((row) => row.cells));
     expect(cells.filter((c) => /^[ \u3000]*[=+@\uFF1D\uFF0B\uFF20]/.test(c))).toEqual([]);
   });
 });
@@ -345,8 +346,8 @@ describe('3b. CSV exports', () => {
     expect(res.status).toBe(200);
     const text = res.body as string;
     expect(text).toContain('Dr Probe');
-    // Split on ";" as a spreadsheet set to a semicolon list separator does: no cell may start a formula.
-    const cells = text.split(/\r?\n/).flatMap((line) => line.split(';'));
+    // Read as a spreadsheet set to a semicolon list separator does (quotes honoured, RFC 4180): no cell may start a formula.
+    const cells = parseCsv(text, ';').flatMap((row) => row.cells);
     expect(cells.filter((c) => /^[ \u3000]*[=+@]/.test(c))).toEqual([]);
   });
 
@@ -420,7 +421,9 @@ describe('4. audit', () => {
     await api().get('/api/audit-trail').set('Cookie', as('chief')).expect(200);
     await api().get('/api/audit-trail/export').set('Cookie', as('chief')).expect(200);
     const view = await api().get('/api/admin/lab-settings').set('Cookie', as('admin')).expect(200);
-    await api().put('/api/admin/lab-settings').set('Cookie', as('admin')).set('Origin', stack.url).send({ settings: { ...view.body.stored, templateVersion: undefined, signatureTargetHours: view.body.stored.signatureTargetHours === 24 ? 25 : 24 }, version: view.body.version }).expect(200);
+    const changed = await api().put('/api/admin/lab-settings').set('Cookie', as('admin')).set('Origin', stack.url).send({ settings: { ...view.body.stored, templateVersion: undefined, signatureTargetHours: view.body.stored.signatureTargetHours === 24 ? 25 : 24 }, version: view.body.version }).expect(200);
+    // Put the target back: other test files share this database.
+    await api().put('/api/admin/lab-settings').set('Cookie', as('admin')).set('Origin', stack.url).send({ settings: { ...view.body.stored, templateVersion: undefined }, version: changed.body.version }).expect(200);
     const rows: { action: string; entity_type: string | null }[] = await db.query(`SELECT action, entity_type FROM audit_event WHERE id > $1 ORDER BY id`, [before]);
     const seen = rows.map((r) => `${r.action}:${r.entity_type}`);
     expect(seen).toContain('search:audit-event');
