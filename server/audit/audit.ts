@@ -49,23 +49,27 @@ export interface AuditRow {
   detail: Record<string, unknown> | null;
 }
 
+/** The columns an event is written with, in the order of `auditParameters`. */
+export const auditColumns = 'actor_user_id, actor_name, actor_role, action, entity_type, entity_id, client_address, outcome, detail';
+
+/** The values of `auditColumns` for one event (parameters of a statement). */
+export function auditParameters(entry: AuditEntry): unknown[] {
+  return [
+    entry.actorUserId ?? null,
+    entry.actorName ?? null,
+    entry.actorRole ?? null,
+    entry.action,
+    entry.entityType ?? null,
+    entry.entityId ?? null,
+    entry.clientAddress ?? null,
+    entry.outcome,
+    entry.detail ? JSON.stringify(entry.detail) : null,
+  ];
+}
+
 /** Appends one event. Pass the transaction's manager when the event belongs to a change. */
 export async function recordAudit(db: DataSource | EntityManager, entry: AuditEntry): Promise<void> {
-  await db.query(
-    `INSERT INTO audit_event (actor_user_id, actor_name, actor_role, action, entity_type, entity_id, client_address, outcome, detail)
-     VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9)`,
-    [
-      entry.actorUserId ?? null,
-      entry.actorName ?? null,
-      entry.actorRole ?? null,
-      entry.action,
-      entry.entityType ?? null,
-      entry.entityId ?? null,
-      entry.clientAddress ?? null,
-      entry.outcome,
-      entry.detail ? JSON.stringify(entry.detail) : null,
-    ],
-  );
+  await db.query(`INSERT INTO audit_event (${auditColumns}) VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9)`, auditParameters(entry));
 }
 
 /** The actor and address of the current request, for an audit entry. */

@@ -1,14 +1,22 @@
-import type { EntityManager } from 'typeorm';
-import { addJob } from '../jobs/queue';
-import { enqueueDelivery } from '../ehr/enqueue-delivery';
+import type { JobName, JobOptions } from '../jobs/queue';
+import { deliveryJobKey, DELIVERY_MAX_ATTEMPTS } from '../ehr/enqueue-delivery';
+
+export interface QueuedJob {
+  name: JobName;
+  payload: Record<string, unknown>;
+  options: Required<Pick<JobOptions, 'jobKey' | 'maxAttempts'>>;
+}
 
 /**
- * What follows a signature, joined inside the signing transaction: the referrer's notice, the code
- * suggestions and the EHR delivery are queued exactly when the version commits, never after a
- * second call that could be lost.
+ * What follows a signature, queued inside the signing transaction (see `storeSignature` in
+ * sign-study.ts): the referrer's notice, the code suggestions and the EHR delivery (with its
+ * "queued" delivery row) exist exactly when the version commits, never after a second call that
+ * could be lost.
  */
-export async function onReportSigned(manager: EntityManager, reportVersionId: string): Promise<void> {
-  await addJob(manager, 'send-report-notice', { reportVersionId }, { jobKey: `notice:${reportVersionId}`, maxAttempts: 25 });
-  await addJob(manager, 'suggest-codes', { reportVersionId }, { jobKey: `codes:${reportVersionId}`, maxAttempts: 5 });
-  await enqueueDelivery(manager, reportVersionId);
+export function jobsOnReportSigned(reportVersionId: string): QueuedJob[] {
+  return [
+    { name: 'send-report-notice', payload: { reportVersionId }, options: { jobKey: `notice:${reportVersionId}`, maxAttempts: 25 } },
+    { name: 'suggest-codes', payload: { reportVersionId }, options: { jobKey: `codes:${reportVersionId}`, maxAttempts: 5 } },
+    { name: 'deliver-report', payload: { reportVersionId }, options: { jobKey: deliveryJobKey(reportVersionId), maxAttempts: DELIVERY_MAX_ATTEMPTS } },
+  ];
 }

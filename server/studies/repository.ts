@@ -33,13 +33,14 @@ export class StaleVersionError extends HttpError {
 
 type Db = DataSource | EntityManager;
 
-export async function loadStudy(db: Db, id: string): Promise<StudyRecord | null> {
+/** The study record; `forUpdate` also locks the study's row until the caller's transaction ends. */
+export async function loadStudy(db: Db, id: string, options: { forUpdate?: boolean } = {}): Promise<StudyRecord | null> {
   const [row] = await db.query(
     `SELECT s.id, s.accession, s.state, s.version, s.created_at, s.updated_at,
             p.mrn, p.family_name, p.given_name, to_char(p.birth_date, 'YYYY-MM-DD') AS birth_date, p.sex,
             ${selectList(detailsColumns, 's', 'details')}, ${selectList(setupColumns, 's', 'setup')}, ${selectList(findingsColumns, 's', 'findings')},
             ${selectList(vasoreactivityColumns, 's', 'vaso')}, ${selectList(codingColumns, 's', 'coding')}
-     FROM study s JOIN patient p ON p.id = s.patient_id WHERE s.id = $1`,
+     FROM study s JOIN patient p ON p.id = s.patient_id WHERE s.id = $1${options.forUpdate ? ' FOR UPDATE OF s' : ''}`,
     [id],
   );
   if (!row) return null;
