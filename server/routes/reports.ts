@@ -1,7 +1,7 @@
 import express, { type Request } from 'express';
 import type { DataSource } from 'typeorm';
 import { z } from 'zod';
-import { auditContext, recordAudit } from '../audit/audit';
+import { auditContext, recordAudit, recordStudyReadOnce } from '../audit/audit';
 import type { Config } from '../config';
 import { ReportVersion } from '../db/entities/report-version.entity';
 import { NotFoundError } from '../http/problem';
@@ -47,7 +47,8 @@ export function reportRoutes({ config, dataSource }: { config: Config; dataSourc
           const id = idParam(req);
           const query = parseOrThrow(previewQuerySchema, req.query, 'The address');
           const preview = await previewStudyReport(dataSource, id, req.session.auth!.role, config.hospital, query.thresholds ?? 'original');
-          await recordAudit(dataSource, { ...auditContext(req), action: 'read', entityType: 'study', entityId: id, outcome: 'success', detail: { view: 'report' } });
+          // Refreshed after each autosave: one read per user, study and address within the window.
+          await recordStudyReadOnce(dataSource, { ...auditContext(req), action: 'read', entityId: id, outcome: 'success', detail: { view: 'report', studyVersion: preview.studyVersion } }, config.auditPreviewReadSeconds);
           res.json(preview);
         },
       ],
