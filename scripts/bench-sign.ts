@@ -1,6 +1,9 @@
 // Benchmark: POST /api/studies/:id/sign through HTTP with a real session, 200 signatures one after
 // another, then 200 more 20 at a time. Prints p50/p95 of the whole request and of the PDF step inside
-// it (timed by the renderer itself, see pdfRenderedChannel), and signatures per second.
+// it (timed by the renderer itself, see pdfRenderedChannel), and signatures per second. After the
+// sequential run it prints where a signature's time goes: the steps of signStudy (signStepsChannel;
+// `report` includes the PDF step), the PDF step alone, and the rest of the request outside signStudy
+// (the client, HTTP, session, origin and access checks, body parsing, the answer).
 // Run: bash scripts/bench-sign.sh (makes the database and sets DATABASE_URL).
 // Exits 1 when the sequential run misses a target: p95 < 250 ms, whole request ≤ 1.5 × the PDF step.
 // BENCH_SIGN_PROFILE=FILE writes a CPU profile of the sequential run (open it in a browser's devtools).
@@ -13,6 +16,7 @@ import { createDataSource } from '../server/db/data-source';
 import { prepareDatabase } from '../server/cli/prepare-database';
 import { demoStudies } from '../server/demo/scenario';
 import { pdfRenderedChannel } from '../server/report/pdf';
+import { signStepsChannel } from '../server/reports/sign-study';
 import type { StudyRecord } from '../shared/study/schema';
 import { studyLikeDemo } from '../tests/support/reports';
 import { signIn, startStack, usernameOf } from '../tests/support/stack';
@@ -72,6 +76,9 @@ async function main(): Promise<void> {
       pdfCpu.push(m.cpuMs);
     };
     diagnosticsChannel.subscribe(pdfRenderedChannel.name, onPdf);
+    const steps: Array<{ spans: Record<string, number>; totalMs: number }> = [];
+    const onSteps = (message: unknown) => void steps.push(message as { spans: Record<string, number>; totalMs: number });
+    diagnosticsChannel.subscribe(signStepsChannel.name, onSteps);
     const signCpu: number[] = [];
     const sign = async (study: StudyRecord): Promise<number> => {
       const t = performance.now();
@@ -89,6 +96,7 @@ async function main(): Promise<void> {
       pdfTimes.length = 0;
       pdfCpu.length = 0;
       signCpu.length = 0;
+      steps.length = 0;
       const times: number[] = [];
       const t = performance.now();
       await pool(batch, atOnce, async (s) => void times.push(await sign(s)));
@@ -102,6 +110,17 @@ async function main(): Promise<void> {
         const c = summary(signCpu);
         const p = summary(pdfCpu);
         console.log(`${'  (CPU time of this process)'.padEnd(30)} ${f(c.p50)} ${f(c.p95)} ${f(c.max)}  | ${f(p.p50)} ${f(p.p95)} ${f(p.max)}  |          ${(c.p50 / p.p50).toFixed(2)} / ${(c.p95 / p.p95).toFixed(2)}`);
+        // Where the time goes, per signature (ms): each step's p50 and p95 on its own.
+        const names = Object.keys(steps[0]?.spans ?? {});
+        const row = (name: string, xs: number[]) => {
+          const x = summary(xs);
+          return `    ${name.padEnd(26)} ${f(x.p50)} ${f(x.p95)}`;
+        };
+        console.log(`  steps (ms)                      p50     p95`);
+        for (const n of names) console.log(row(n === 'report' ? 'report (with the PDF)' : n, steps.map((s) => s.spans[n])));
+        console.log(row('  of which the PDF step', pdfTimes));
+        console.log(row('signStudy in all', steps.map((s) => s.totalMs)));
+        if (steps.length === times.length) console.log(row('outside signStudy', times.map((t, i) => t - steps[i].totalMs)));
       }
       return { whole, pdf };
     };
@@ -123,6 +142,7 @@ async function main(): Promise<void> {
     }
     if (CONCURRENT > 0) await run(`${CONCURRENT}, ${AT_ONCE} at a time`, studies.slice(WARM_UP + SEQUENTIAL), AT_ONCE);
     diagnosticsChannel.unsubscribe(pdfRenderedChannel.name, onPdf);
+    diagnosticsChannel.unsubscribe(signStepsChannel.name, onSteps);
 
     const checks = [
       { name: `sequential p95 ${seq.whole.p95.toFixed(1)} ms < ${TARGET_P95_MS} ms`, pass: seq.whole.p95 < TARGET_P95_MS },

@@ -90,6 +90,7 @@ const configSchema = z
     HOSPITAL_NAME: z.string().trim().min(1).max(200).default('Saltmarsh Bay Regional Hospital'),
     HOSPITAL_LAB: z.string().trim().max(200).default('Cardiac Catheterization Laboratory'),
     SIGN_REAUTH_MINUTES: z.coerce.number().int().min(1).max(720).default(10),
+    AUDIT_PREVIEW_READ_SECONDS: z.coerce.number().int().min(0).max(86_400).default(600),
     SMTP_HOST: z.string().trim().min(1).default('127.0.0.1'),
     SMTP_PORT: port.default(8425),
     MAIL_FROM: z.string().trim().min(3).default('Isobar reports <isobar@localhost>'),
@@ -146,6 +147,11 @@ export interface Config {
   hospital: { name: string; lab: string };
   /** A signature needs a sign-in at most this many minutes old. */
   signReauthMinutes: number;
+  /**
+   * The live report preview is read again after every autosave: the audit trail records one read per
+   * user, study and client address within this many seconds (0: every read).
+   */
+  auditPreviewReadSeconds: number;
   /** The mail relay for notices; locally the stand-in started by `server/fakes/main.ts`. */
   mail: {
     host: string;
@@ -226,6 +232,7 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
     fakeEhrPort: v.FAKE_EHR_PORT,
     hospital: { name: v.HOSPITAL_NAME, lab: v.HOSPITAL_LAB },
     signReauthMinutes: v.SIGN_REAUTH_MINUTES,
+    auditPreviewReadSeconds: v.AUDIT_PREVIEW_READ_SECONDS,
     mail: {
       host: v.SMTP_HOST,
       port: v.SMTP_PORT,

@@ -7,7 +7,7 @@ const payloadSchema = z.object({ reportVersionId: z.uuid() });
 
 /**
  * `suggest-codes { reportVersionId }`: makes a version's code suggestions and puts the study on the
- * coding queue. Signing does this itself, inside its transaction (`onReportSigned`); the task stays
+ * coding queue. Signing does this itself, inside its transaction (`signStudy`); the task stays
  * for jobs queued before that and for making a version's suggestions again by hand. Safe to repeat:
  * a version that already has its suggestions is left alone.
  */

@@ -5,7 +5,7 @@ import { addJob } from '../jobs/queue';
  * Enough tries that the delivery's time limit, not the count, ends the retries: after the tenth the
  * queue waits exp(10) s ≈ 6.1 h between tries, so 500 tries outlast the longest limit allowed (30 days).
  */
-const DELIVERY_MAX_ATTEMPTS = 500;
+export const DELIVERY_MAX_ATTEMPTS = 500;
 
 /** The job key of a version's delivery: enqueueing it again replaces a waiting job instead of adding one. */
 export const deliveryJobKey = (reportVersionId: string) => `deliver-report:${reportVersionId}`;

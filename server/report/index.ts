@@ -1,7 +1,7 @@
 import type { PhysiologyResult, Thresholds } from '../../shared/physiology';
 import { fingerprint, renderReportPdf, sha256Hex } from './pdf';
-import { htmlDocument, renderNarrative, type Narrative } from './render';
-import { buildReportView, type ReportInput, type ReportStudy, type ReportView, type ThresholdsBasisInfo } from './view-model';
+import { htmlDocument, renderNarrative, renderNarrativeText, type Narrative } from './render';
+import { buildReportView, signatureView, type ReportInput, type ReportStudy, type ReportView, type ThresholdsBasisInfo } from './view-model';
 
 export { canonicalContent, fingerprint, fingerprintInPdf, renderReportPdf, sha256Hex, PAGE } from './pdf';
 export { renderNarrative, htmlDocument, type Narrative } from './render';
@@ -74,7 +74,8 @@ export function previewReport(input: Omit<ReportInput, 'signature'>): { view: Re
  * the same input gives byte-identical output.
  */
 export async function prepareSignedReport(input: Omit<ReportInput, 'signature'>, sign: SignRequest): Promise<PreparedReport> {
-  const preview = previewReport(input);
+  // The view as previewed; the signed view differs only by its signature block (see signatureView).
+  const unsigned = buildReportView({ ...input, signature: null });
   const content: SignedContent = {
     format: 'isobar-signed-report/1',
     studyId: input.study.id,
@@ -82,8 +83,8 @@ export async function prepareSignedReport(input: Omit<ReportInput, 'signature'>,
     reportVersion: sign.reportVersion,
     amends: sign.amends ?? null,
     amendmentReason: sign.amendmentReason ?? null,
-    templateVersion: preview.view.templateVersion,
-    narrative: preview.narrative.text,
+    templateVersion: unsigned.templateVersion,
+    narrative: renderNarrativeText(unsigned),
     record: input.study,
     analysis: input.analysis,
     thresholds: input.thresholds,
@@ -93,10 +94,8 @@ export async function prepareSignedReport(input: Omit<ReportInput, 'signature'>,
     attestation: sign.attestation ?? ATTESTATION,
   };
   const fp = fingerprint(content);
-  const view = buildReportView({
-    ...input,
-    signature: { signedBy: sign.signer.name, signedAt: sign.signedAt, reportVersion: sign.reportVersion, fingerprint: fp, amendmentReason: sign.amendmentReason ?? null },
-  });
+  const signature = { signedBy: sign.signer.name, signedAt: sign.signedAt, reportVersion: sign.reportVersion, fingerprint: fp, amendmentReason: sign.amendmentReason ?? null };
+  const view: ReportView = { ...unsigned, signature: signatureView(signature, input.timeZone ?? 'UTC') };
   const narrative = renderNarrative(view);
   const pdf = await renderReportPdf(view);
   return { view, narrative, htmlDocument: htmlDocument(view, narrative.html), content, fingerprint: fp, pdf, pdfSha256: sha256Hex(pdf) };

@@ -100,6 +100,11 @@ export function renderNarrative(view: ReportView): Narrative {
   return { html: tidyHtml(t.html(view)), text: tidyText(t.text(view)), templateVersion: view.templateVersion };
 }
 
+/** The narrative's plain text alone (what a signature's content holds), without rendering the HTML. */
+export function renderNarrativeText(view: ReportView): string {
+  return tidyText(compile(view.templateVersion).text(view));
+}
+
 /** The HTML fragment as a standalone page (for export and for opening in a browser). */
 export function htmlDocument(view: ReportView, fragment: string): string {
   const title = Handlebars.escapeExpression(`${view.title}: ${view.patient.name}`);

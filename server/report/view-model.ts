@@ -691,6 +691,21 @@ export function thresholdsBasisSentence(b: ThresholdsBasisInfo, tz: string): str
 /** A template version's number ("v3" → 3). */
 const templateNumber = (version: string): number => Number(version.slice(1));
 
+/** The signature block of the view (null for a preview); the rest of the view does not depend on it. */
+export function signatureView(signature: ReportSignature | null, tz: string): ReportView['signature'] {
+  return signature
+    ? {
+        signedBy: signature.signedBy,
+        signedAt: formatDateTime(signature.signedAt, tz),
+        signedAtIso: signature.signedAt,
+        reportVersion: signature.reportVersion,
+        fingerprint: signature.fingerprint,
+        shortFingerprint: shortFingerprint(signature.fingerprint),
+        amendmentReason: filled(signature.amendmentReason) ? signature.amendmentReason.trim() : null,
+      }
+    : null;
+}
+
 /** Builds the report's view model. Pure: the same input gives the same view. */
 export function buildReportView(input: ReportInput): ReportView {
   const { study, analysis, thresholds: t } = input;
@@ -732,17 +747,7 @@ export function buildReportView(input: ReportInput): ReportView {
   const acetylcholine = acetylcholineSection(study, analysis, t, used);
   const quality = [...analysis.vessels.flatMap((v) => v.warnings.map((w) => w.message)), ...analysis.warnings.map((w) => w.message)];
 
-  const signature = input.signature
-    ? {
-        signedBy: input.signature.signedBy,
-        signedAt: formatDateTime(input.signature.signedAt, tz),
-        signedAtIso: input.signature.signedAt,
-        reportVersion: input.signature.reportVersion,
-        fingerprint: input.signature.fingerprint,
-        shortFingerprint: shortFingerprint(input.signature.fingerprint),
-        amendmentReason: filled(input.signature.amendmentReason) ? input.signature.amendmentReason.trim() : null,
-      }
-    : null;
+  const signature = signatureView(input.signature ?? null, tz);
 
   // "Angina" in the endotype's name only when the record says the patient has angina (COVADIS).
   const endotypeWords = endotypeName(analysis.endotype, d.anginaPresent ?? undefined, endotypeLabel);

@@ -1,17 +1,21 @@
-import type { EntityManager } from 'typeorm';
-import { addJob } from '../jobs/queue';
-import { enqueueDelivery } from '../ehr/enqueue-delivery';
-import { sqlOf } from '../coding/sql';
-import { storeSuggestions } from '../coding/store-suggestions';
+import type { JobName, JobOptions } from '../jobs/queue';
+import { deliveryJobKey, DELIVERY_MAX_ATTEMPTS } from '../ehr/enqueue-delivery';
+
+export interface QueuedJob {
+  name: JobName;
+  payload: Record<string, unknown>;
+  options: Required<Pick<JobOptions, 'jobKey' | 'maxAttempts'>>;
+}
 
 /**
- * What follows a signature, inside the signing transaction: the code suggestions are made and stored
- * (with their rule ids) and the study put on the coding queue in this same transaction, so a signed
- * version never exists without its suggestions; the referrer's notice and the EHR delivery are queued
- * exactly when the version commits, never after a second call that could be lost.
+ * What follows a signature, queued inside the signing transaction (see `storeSignature` in
+ * sign-study.ts): the referrer's notice and the EHR delivery (with its "queued" delivery row) exist
+ * exactly when the version commits, never after a second call that could be lost. The code
+ * suggestions are not a job: they are made and stored in the transaction itself (`storeSuggestions`).
  */
-export async function onReportSigned(manager: EntityManager, reportVersionId: string): Promise<void> {
-  await storeSuggestions(sqlOf(manager), reportVersionId);
-  await addJob(manager, 'send-report-notice', { reportVersionId }, { jobKey: `notice:${reportVersionId}`, maxAttempts: 25 });
-  await enqueueDelivery(manager, reportVersionId);
+export function jobsOnReportSigned(reportVersionId: string): QueuedJob[] {
+  return [
+    { name: 'send-report-notice', payload: { reportVersionId }, options: { jobKey: `notice:${reportVersionId}`, maxAttempts: 25 } },
+    { name: 'deliver-report', payload: { reportVersionId }, options: { jobKey: deliveryJobKey(reportVersionId), maxAttempts: DELIVERY_MAX_ATTEMPTS } },
+  ];
 }

@@ -1,17 +1,18 @@
 import type { DataSource } from 'typeorm';
 import type { Role } from '../../shared/auth/permissions';
-import { recordAudit } from '../audit/audit';
+import { recordStudyReadOnce } from '../audit/audit';
 import type { AuditActor } from '../studies/repository';
 import { previewStudyReport, type ReportPreview } from './preview-report';
 import type { ThresholdsChoice } from './report-input';
 
-/** The report as it would be signed now, for one user, the read recorded in the audit trail. */
+/** The report as it would be signed now, for one user, the read recorded in the audit trail (once per window). */
 export async function readReportPreview(
   dataSource: DataSource,
   studyId: string,
-  { role, hospital, thresholds, actor }: { role: Role | null; hospital: { name: string; lab: string } | null; thresholds: ThresholdsChoice; actor: AuditActor },
+  { role, hospital, thresholds, actor, auditWindowSeconds }: { role: Role | null; hospital: { name: string; lab: string } | null; thresholds: ThresholdsChoice; actor: AuditActor; auditWindowSeconds: number },
 ): Promise<ReportPreview> {
   const preview = await previewStudyReport(dataSource, studyId, role, hospital, thresholds);
-  await recordAudit(dataSource, { ...actor, action: 'read', entityType: 'study', entityId: studyId, outcome: 'success', detail: { view: 'report' } });
+  // Refreshed after each autosave: one read per user, study and address within the window.
+  await recordStudyReadOnce(dataSource, { ...actor, action: 'read', entityId: studyId, outcome: 'success', detail: { view: 'report', studyVersion: preview.studyVersion } }, auditWindowSeconds);
   return preview;
 }

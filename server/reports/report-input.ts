@@ -7,7 +7,7 @@ import { ReportVersion } from '../db/entities/report-version.entity';
 import type { ReportInput, ReportStudy } from '../report';
 import type { ThresholdsBasisInfo } from '../report/view-model';
 import { labSettings } from '../settings/lab-settings';
-import { thresholdsInForce } from '../settings/thresholds';
+import { thresholdsInForce, type ThresholdsInForce } from '../settings/thresholds';
 
 /** The parts of a study record a report is built from (and that a signed version keeps). */
 function reportStudyOf(record: StudyRecord): ReportStudy {
@@ -24,6 +24,36 @@ export type ThresholdsChoice = 'original' | 'current';
 
 export type ReportInputWithBasis = Omit<ReportInput, 'signature'> & { thresholdsBasis: ThresholdsBasisInfo };
 
+/** The version an addendum amends, as far as the choice of thresholds needs it. */
+export interface AmendedThresholds {
+  versionNo: number;
+  thresholds: unknown;
+  thresholdSetId: number | null;
+  /** When the set it used took effect (null for the published defaults or a set no longer found). */
+  setEffectiveFrom: Date | null;
+}
+
+/**
+ * The choice itself, from what the caller read: for an addendum (`amended` given) its own thresholds
+ * when `choice` is `original` and they still parse, else those in force.
+ */
+export function chooseThresholds(amended: AmendedThresholds | null, inForce: () => ThresholdsInForce, choice: ThresholdsChoice): { values: Thresholds; basis: ThresholdsBasisInfo } {
+  if (amended && choice === 'original') {
+    const parsed = thresholdsSchema.safeParse(amended.thresholds);
+    if (parsed.success) {
+      return {
+        values: resolveThresholds(parsed.data as Partial<Thresholds>),
+        basis: { basis: 'original', setId: amended.thresholdSetId, effectiveFrom: amended.setEffectiveFrom?.toISOString() ?? null, amendedVersion: amended.versionNo },
+      };
+    }
+  }
+  const set = inForce();
+  return {
+    values: set.values,
+    basis: { basis: amended ? 'current' : 'in-force', setId: set.setId, effectiveFrom: set.effectiveFrom, amendedVersion: amended?.versionNo ?? null },
+  };
+}
+
 /** The thresholds that judge a report signed at `at`: those in force, or an addendum's choice. */
 export async function thresholdsFor(
   manager: EntityManager,
@@ -32,21 +62,14 @@ export async function thresholdsFor(
   choice: ThresholdsChoice = 'original',
 ): Promise<{ values: Thresholds; basis: ThresholdsBasisInfo }> {
   const amended = record.state === 'amending' ? await manager.findOne(ReportVersion, { where: { studyId: record.id }, order: { versionNo: 'DESC' }, select: { versionNo: true, thresholds: true, thresholdSetId: true } }) : null;
-  if (amended && choice === 'original') {
-    const parsed = thresholdsSchema.safeParse(amended.thresholds);
-    if (parsed.success) {
-      const [set] = amended.thresholdSetId === null ? [] : await manager.query(`SELECT effective_from FROM threshold_set WHERE id = $1`, [amended.thresholdSetId]);
-      return {
-        values: resolveThresholds(parsed.data as Partial<Thresholds>),
-        basis: { basis: 'original', setId: amended.thresholdSetId, effectiveFrom: set?.effective_from?.toISOString() ?? null, amendedVersion: amended.versionNo },
-      };
-    }
+  let amendedThresholds: AmendedThresholds | null = null;
+  if (amended) {
+    const original = choice === 'original' && thresholdsSchema.safeParse(amended.thresholds).success;
+    const [set] = original && amended.thresholdSetId !== null ? await manager.query(`SELECT effective_from FROM threshold_set WHERE id = $1`, [amended.thresholdSetId]) : [];
+    amendedThresholds = { versionNo: amended.versionNo, thresholds: amended.thresholds, thresholdSetId: amended.thresholdSetId, setEffectiveFrom: set?.effective_from ?? null };
   }
-  const inForce = await thresholdsInForce(manager, at);
-  return {
-    values: inForce.values,
-    basis: { basis: amended ? 'current' : 'in-force', setId: inForce.setId, effectiveFrom: inForce.effectiveFrom, amendedVersion: amended?.versionNo ?? null },
-  };
+  const inForce = amendedThresholds && choice === 'original' && thresholdsSchema.safeParse(amendedThresholds.thresholds).success ? null : await thresholdsInForce(manager, at);
+  return chooseThresholds(amendedThresholds, () => inForce!, choice);
 }
 
 /**
@@ -62,16 +85,27 @@ export async function reportInputFor(
 ): Promise<ReportInputWithBasis> {
   const thresholds = await thresholdsFor(manager, record, at, choice);
   const settings = await labSettings(manager);
-  const analysis = analyzeStudy({ ...toPhysiologyInput(record), thresholds: thresholds.values });
   const [operator] = record.details.operatorId
     ? await manager.query(`SELECT display_name FROM app_user WHERE id = $1`, [record.details.operatorId])
     : [];
+  return reportInputOf(record, hospital, thresholds, settings, operator?.display_name ?? null);
+}
+
+/** The same, from what the caller has read already (no database work): the analysis runs here. */
+export function reportInputOf(
+  record: StudyRecord,
+  hospital: { name: string; lab: string } | null,
+  thresholds: { values: Thresholds; basis: ThresholdsBasisInfo },
+  settings: { templateVersion: string; timeZone: string },
+  operatorName: string | null,
+): ReportInputWithBasis {
+  const analysis = analyzeStudy({ ...toPhysiologyInput(record), thresholds: thresholds.values });
   return {
     study: reportStudyOf(record),
     analysis,
     thresholds: thresholds.values,
     thresholdsBasis: thresholds.basis,
-    people: { operator: operator?.display_name ?? null },
+    people: { operator: operatorName },
     hospital,
     templateVersion: settings.templateVersion,
     timeZone: settings.timeZone,

@@ -1,17 +1,21 @@
+import { randomUUID } from 'node:crypto';
+import diagnosticsChannel from 'node:diagnostics_channel';
 import type { DataSource, EntityManager } from 'typeorm';
 import { checkCompleteness } from '../../shared/report/completeness';
 import type { Role } from '../../shared/auth/permissions';
 import { checkTransition } from '../../shared/study/state-machine';
-import type { StudyState } from '../../shared/study/vocabulary';
-import { recordAudit, type AuditEntry } from '../audit/audit';
+import { auditColumns, auditParameters, type AuditEntry } from '../audit/audit';
 import { ReportVersion } from '../db/entities/report-version.entity';
 import { BadRequestError, NotFoundError } from '../http/problem';
 import { ATTESTATION, prepareSignedReport } from '../report';
 import { loadStudy, StaleVersionError } from '../studies/repository';
 import { IncompleteStudyError, TransitionRefusedError } from './errors';
-import { onReportSigned } from './on-report-signed';
-import { reportInputFor, type ThresholdsChoice } from './report-input';
-import { lockStudy } from '../studies/lock-study';
+import { jobsOnReportSigned } from './on-report-signed';
+import { sqlOf } from '../coding/sql';
+import { storeSuggestions } from '../coding/store-suggestions';
+import { chooseThresholds, reportInputOf, type AmendedThresholds, type ThresholdsChoice } from './report-input';
+import { unstoredSettings } from '../settings/lab-settings';
+import { thresholdsInForceOf, type ThresholdsInForce } from '../settings/thresholds';
 
 export interface Signer {
   userId: string;
@@ -57,41 +61,69 @@ export const summariseVersion = (v: ReportVersion): SignedVersionSummary => ({
 });
 
 /**
+ * Each signature publishes `{ spans, totalMs }` here when someone listens (Node's diagnostics_channel),
+ * the milliseconds of its steps: `begin` (opening the transaction), `load` (locking the study's row
+ * and reading its record), `context` (the previous version, the transaction's time, the thresholds in
+ * force, the lab's settings and the operator's name, in one statement), `analysis` (the physiology
+ * analysis for the report), `report` (view, narrative, canonical content and its SHA-256, and the PDF
+ * with its SHA-256: the PDF alone is timed by `pdfRenderedChannel`), `store` (the one statement that
+ * writes the version, the study's state, the audit row, the delivery row and the jobs) and `commit`.
+ */
+export const signStepsChannel = diagnosticsChannel.channel('isobar:sign-steps');
+
+/**
  * Signs exactly what was previewed, in one transaction: the study row is locked, its state and version
  * checked, completeness checked, the report built and stored as an immutable version, the study's state
  * moved, the audit row written and the follow-up jobs queued. Two physicians signing at once: the second
  * waits on the lock, then finds the state or version moved and gets 409.
  */
 export async function signStudy(dataSource: DataSource, req: SignStudyRequest): Promise<SignedVersionSummary> {
-  return dataSource.transaction(async (manager) => {
-    const row = await lockStudy(manager, req.studyId);
-    if (!row) throw new NotFoundError('No study has this id.');
-    const state = row.state as StudyState;
+  const timed = signStepsChannel.hasSubscribers;
+  const spans: Record<string, number> = {};
+  const began = performance.now();
+  let mark = began;
+  const step = (name: string) => {
+    if (!timed) return;
+    const t = performance.now();
+    spans[name] = t - mark;
+    mark = t;
+  };
+  const summary = await dataSource.transaction(async (manager) => {
+    step('begin');
+    const record = await loadStudy(manager, req.studyId, { forUpdate: true });
+    if (!record) throw new NotFoundError('No study has this id.');
+    const state = record.state;
     const addendum = state === 'amending';
     const refusal = checkTransition(state, addendum ? 'sign-addendum' : 'sign', req.signer.role, req.reason);
     if (refusal) throw new TransitionRefusedError(refusal, refusal === 'wrong-state' ? `A ${state} study cannot be signed.` : refusal === 'reason-required' ? 'An addendum needs the reason for the change.' : 'Only a physician may sign.');
-    const record = (await loadStudy(manager, req.studyId))!;
     if (record.version !== req.studyVersion) throw new StaleVersionError(record);
     if (!addendum && req.thresholds === 'original') {
       throw new BadRequestError('Only an addendum can keep the thresholds of an earlier version.', [{ pointer: '/thresholds', detail: 'A first signature uses the thresholds in force; leave thresholds out or send "current".' }]);
     }
     const completeness = checkCompleteness(record);
     if (!completeness.complete) throw new IncompleteStudyError(completeness.missing);
+    step('load');
 
-    const previous = await latestVersion(manager, req.studyId);
-    const [{ now }] = await manager.query(`SELECT now() AS now`);
-    const signedAt: Date = req.now ?? now;
-    const input = await reportInputFor(manager, record, req.hospital, signedAt, req.thresholds ?? 'original');
+    const context = await signingContext(manager, req.studyId, req.now ?? null, record.details.operatorId ?? null);
+    const { previous } = context;
+    const signedAt: Date = req.now ?? context.now;
+    const thresholds = chooseThresholds(addendum ? previous : null, () => context.inForce, req.thresholds ?? 'original');
+    step('context');
+    const input = reportInputOf(record, req.hospital, thresholds, context.settings, context.operatorName);
+    step('analysis');
+    const versionNo = (previous?.versionNo ?? 0) + 1;
     const prepared = await prepareSignedReport(input, {
       signer: { id: req.signer.userId, name: req.signer.displayName },
       signedAt: signedAt.toISOString(),
-      reportVersion: (previous?.versionNo ?? 0) + 1,
+      reportVersion: versionNo,
       amends: previous?.versionNo ?? null,
       amendmentReason: addendum ? (req.reason ?? null) : null,
     });
-    const version = manager.create(ReportVersion, {
+    step('report');
+    const version: StoredVersion = {
+      id: randomUUID(),
       studyId: req.studyId,
-      versionNo: (previous?.versionNo ?? 0) + 1,
+      versionNo,
       studyVersion: record.version,
       status: previous ? 'amended' : 'final',
       supersedesId: previous?.id ?? null,
@@ -111,27 +143,112 @@ export async function signStudy(dataSource: DataSource, req: SignStudyRequest): 
       signerName: req.signer.displayName,
       signedAt,
       attestation: prepared.content.attestation ?? ATTESTATION,
-    });
-    const saved = await manager.save(version);
-    await manager.query(`UPDATE study SET state = $2, version = version + 1, updated_at = now() WHERE id = $1`, [req.studyId, addendum ? 'amended' : 'signed']);
-    await recordAudit(manager, {
+    };
+    await storeSignature(manager, version, addendum ? 'amended' : 'signed', {
       ...req.audit,
       action: addendum ? 'sign-addendum' : 'sign',
       entityType: 'study',
       entityId: req.studyId,
       outcome: 'success',
       detail: {
-        reportVersion: saved.versionNo,
-        reportVersionId: saved.id,
+        reportVersion: version.versionNo,
+        reportVersionId: version.id,
         fromStudyVersion: record.version,
-        contentSha256: saved.contentSha256,
-        templateVersion: saved.templateVersion,
+        contentSha256: version.contentSha256,
+        templateVersion: version.templateVersion,
         thresholds: { basis: input.thresholdsBasis.basis, thresholdSetId: input.thresholdsBasis.setId, ...(addendum ? { choice: req.thresholds ?? 'original' } : {}) },
       },
     });
-    await onReportSigned(manager, saved.id);
-    return summariseVersion(saved);
+    step('store');
+    // The code suggestions with their rule ids, and the study on the coding queue, in this transaction.
+    await storeSuggestions(sqlOf(manager), version.id);
+    step('codes');
+    return summariseVersion(version);
   });
+  if (timed) {
+    step('commit');
+    signStepsChannel.publish({ spans, totalMs: performance.now() - began });
+  }
+  return summary;
+}
+
+/** What one statement reads for a signature, beside the locked record. */
+interface SigningContext {
+  /** The transaction's time. */
+  now: Date;
+  /** The newest signed version (the one an addendum amends), with the thresholds it used. */
+  previous: (AmendedThresholds & { id: string }) | null;
+  inForce: ThresholdsInForce;
+  settings: { templateVersion: string; timeZone: string };
+  operatorName: string | null;
+}
+
+/**
+ * The previous version, the transaction's time, the thresholds in force at the signing time (`at`,
+ * else the transaction's time), the lab's settings and the operator's name, in one round trip.
+ */
+async function signingContext(manager: EntityManager, studyId: string, at: Date | null, operatorId: string | null): Promise<SigningContext> {
+  const [row] = await manager.query(
+    `SELECT now() AS now,
+            prev.id AS prev_id, prev.version_no AS prev_version_no, prev.thresholds AS prev_thresholds, prev.threshold_set_id AS prev_set_id,
+            (SELECT effective_from FROM threshold_set WHERE id = prev.threshold_set_id) AS prev_set_effective_from,
+            ts.id AS set_id, ts.effective_from AS set_effective_from, ts.values AS set_values,
+            l.time_zone, l.template_version,
+            (SELECT display_name FROM app_user WHERE id = $3::uuid) AS operator_name
+     FROM (SELECT 1) AS one
+     LEFT JOIN LATERAL (SELECT id, version_no, thresholds, threshold_set_id FROM report_version WHERE study_id = $1 ORDER BY version_no DESC LIMIT 1) prev ON true
+     LEFT JOIN LATERAL (SELECT id, effective_from, values FROM threshold_set WHERE effective_from <= COALESCE($2::timestamptz, now()) ORDER BY effective_from DESC, id DESC LIMIT 1) ts ON true
+     LEFT JOIN lab_settings l ON l.id = 1`,
+    [studyId, at, operatorId],
+  );
+  return {
+    now: row.now,
+    previous:
+      row.prev_id === null
+        ? null
+        : { id: row.prev_id, versionNo: row.prev_version_no, thresholds: row.prev_thresholds, thresholdSetId: row.prev_set_id, setEffectiveFrom: row.prev_set_effective_from },
+    inForce: thresholdsInForceOf(row.set_id === null ? null : { id: row.set_id, effectiveFrom: row.set_effective_from, values: row.set_values }),
+    settings: { templateVersion: row.template_version ?? unstoredSettings.template_version, timeZone: row.time_zone ?? unstoredSettings.time_zone },
+    operatorName: row.operator_name ?? null,
+  };
+}
+
+/** A report version as stored (the row of `report_version`). */
+type StoredVersion = Omit<ReportVersion, 'study' | 'signer'>;
+
+/**
+ * Writes a signature in one statement: the immutable version, the study's new state and version, the
+ * audit row, the "queued" delivery row and the jobs that follow (`jobsOnReportSigned`). PostgreSQL runs
+ * every part of it or none; the statement-level triggers (turnaround) run after it as before.
+ */
+async function storeSignature(manager: EntityManager, v: StoredVersion, studyState: 'signed' | 'amended', audit: AuditEntry): Promise<void> {
+  const params: unknown[] = [];
+  const p = (value: unknown, cast = '') => `$${params.push(value)}${cast}`;
+  const versionValues = [
+    p(v.id, '::uuid'), p(v.studyId, '::uuid'), p(v.versionNo, '::int'), p(v.studyVersion, '::int'), p(v.status), p(v.supersedesId, '::uuid'), p(v.reason),
+    p(v.narrativeHtml), p(v.narrativeText), p(JSON.stringify(v.snapshot), '::jsonb'), p(JSON.stringify(v.analysis), '::jsonb'), p(JSON.stringify(v.thresholds), '::jsonb'),
+    p(v.templateVersion), p(v.thresholdsBasis), p(v.thresholdSetId, '::int'), p(v.pdf, '::bytea'), p(v.pdfSha256), p(v.contentSha256),
+    p(v.signedBy, '::uuid'), p(v.signerName), p(v.signedAt, '::timestamptz'), p(v.attestation),
+  ].join(', ');
+  const moved = `UPDATE study SET state = ${p(studyState)}, version = version + 1, updated_at = now() WHERE id = ${p(v.studyId, '::uuid')}`;
+  const audited = `INSERT INTO audit_event (${auditColumns}) VALUES (${auditParameters(audit).map((x) => p(x)).join(', ')})`;
+  const jobs = jobsOnReportSigned(v.id)
+    .map((j) => `graphile_worker.add_job(identifier => ${p(j.name, '::text')}, payload => ${p(JSON.stringify(j.payload), '::json')}, max_attempts => ${p(j.options.maxAttempts, '::int')}, job_key => ${p(j.options.jobKey, '::text')})`)
+    .map((call, i) => `(${call}).id::text AS job${i}`)
+    .join(', ');
+  const [row] = await manager.query(
+    `WITH version AS (
+       INSERT INTO report_version (id, study_id, version_no, study_version, status, supersedes_id, reason, narrative_html, narrative_text, snapshot, analysis, thresholds,
+                                   template_version, thresholds_basis, threshold_set_id, pdf, pdf_sha256, content_sha256, signed_by, signer_name, signed_at, attestation)
+       VALUES (${versionValues})
+       RETURNING id, study_id
+     ), moved AS (${moved} RETURNING id),
+     audited AS (${audited}),
+     delivery AS (INSERT INTO report_delivery (report_version_id, study_id) SELECT id, study_id FROM version ON CONFLICT (report_version_id) DO NOTHING)
+     SELECT (SELECT count(*)::int FROM moved) AS moved, ${jobs} FROM version`,
+    params,
+  );
+  if (!row || row.moved !== 1) throw new Error('The signature was not stored: the study row was not updated.');
 }
 
 export async function latestVersion(manager: EntityManager, studyId: string): Promise<ReportVersion | null> {

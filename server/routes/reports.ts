@@ -46,7 +46,7 @@ export function reportRoutes({ config, dataSource }: { config: Config; dataSourc
         async (req, res) => {
           const id = idParam(req);
           const query = parseOrThrow(previewQuerySchema, req.query, 'The address');
-          res.json(await readReportPreview(dataSource, id, { role: req.session.auth!.role, hospital: config.hospital, thresholds: query.thresholds ?? 'original', actor: auditContext(req) }));
+          res.json(await readReportPreview(dataSource, id, { role: req.session.auth!.role, hospital: config.hospital, thresholds: query.thresholds ?? 'original', actor: auditContext(req), auditWindowSeconds: config.auditPreviewReadSeconds }));
         },
       ],
     },

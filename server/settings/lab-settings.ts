@@ -70,8 +70,11 @@ async function readRow(db: SettingsReader, lock = false): Promise<Row> {
      FROM lab_settings l LEFT JOIN app_user u ON u.id = l.updated_by WHERE l.id = 1${lock ? ' FOR UPDATE OF l' : ''}`,
   );
   // The migration writes the row; a database restored without it still works on the defaults.
-  return row ?? { time_zone: 'UTC', signature_target_hours: '24', ehr_base_url: null, mail_from: null, template_version: REPORT_TEMPLATE_VERSION, version: 1, updated_at: null, updated_by_name: null };
+  return row ?? { ...unstoredSettings, signature_target_hours: '24', ehr_base_url: null, mail_from: null, version: 1, updated_at: null, updated_by_name: null };
 }
+
+/** What applies to reports while the settings row is missing (see `readRow`). */
+export const unstoredSettings = { time_zone: 'UTC', template_version: REPORT_TEMPLATE_VERSION } as const;
 
 const effectiveOf = (row: Row, defaults: ConfiguredDefaults): LabSettings => ({
   timeZone: row.time_zone,

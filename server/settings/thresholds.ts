@@ -37,6 +37,11 @@ export async function thresholdsInForce(db: DataSource | EntityManager, at: Date
     .orderBy('t.effective_from', 'DESC')
     .addOrderBy('t.id', 'DESC')
     .getOne();
+  return thresholdsInForceOf(set);
+}
+
+/** The thresholds a stored set (the newest in force, read by the caller) gives; the defaults without one. */
+export function thresholdsInForceOf(set: Pick<ThresholdSet, 'id' | 'effectiveFrom' | 'values'> | null): ThresholdsInForce {
   if (!set) return { overrides: {}, values: { ...defaultThresholds }, setId: null, effectiveFrom: null };
   // A stored set was validated when saved; parse again so a hand-edited row cannot reach the analysis.
   const parsed = thresholdsSchema.safeParse(set.values);

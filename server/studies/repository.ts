@@ -14,7 +14,7 @@ import { isEditable } from '../../shared/study/state-machine';
 import { HttpError, NotFoundError, UnprocessableError } from '../http/problem';
 import { recordAudit, type AuditEntry } from '../audit/audit';
 import { assignments, codingColumns, detailsColumns, findingsColumns, readSection, selectList, setupColumns, vasoreactivityColumns } from './columns';
-import { loadInterventions, replaceInterventions } from '../coding/study-interventions';
+import { replaceInterventions } from '../coding/study-interventions';
 import { lockStudy } from './lock-study';
 import {
   AcetylcholineDose as DoseRow,
@@ -33,32 +33,20 @@ export class StaleVersionError extends HttpError {
 }
 
 type Db = DataSource | EntityManager;
+type Intervention = StudySections['coding']['interventions'][number];
 
-export async function loadStudy(db: Db, id: string): Promise<StudyRecord | null> {
+/** The study record; `forUpdate` also locks the study's row until the caller's transaction ends. */
+export async function loadStudy(db: Db, id: string, options: { forUpdate?: boolean } = {}): Promise<StudyRecord | null> {
   const [row] = await db.query(
     `SELECT s.id, s.accession, s.state, s.version, s.created_at, s.updated_at,
             p.mrn, p.family_name, p.given_name, to_char(p.birth_date, 'YYYY-MM-DD') AS birth_date, p.sex,
             ${selectList(detailsColumns, 's', 'details')}, ${selectList(setupColumns, 's', 'setup')}, ${selectList(findingsColumns, 's', 'findings')},
             ${selectList(vasoreactivityColumns, 's', 'vaso')}, ${selectList(codingColumns, 's', 'coding')}
-     FROM study s JOIN patient p ON p.id = s.patient_id WHERE s.id = $1`,
+     FROM study s JOIN patient p ON p.id = s.patient_id WHERE s.id = $1${options.forUpdate ? ' FOR UPDATE OF s' : ''}`,
     [id],
   );
   if (!row) return null;
-  const manager = 'manager' in db ? db.manager : db;
-  const vesselRows = await manager.find(VesselRow, { where: { studyId: id }, order: { position: 'ASC' } });
-  const injections = vesselRows.length
-    ? await manager
-        .createQueryBuilder(InjectionRow, 'i')
-        .where('i.vessel_assessment_id IN (:...ids)', { ids: vesselRows.map((v) => v.id) })
-        .orderBy('i.position', 'ASC')
-        .getMany()
-    : [];
-  const doseRows = await manager.find(DoseRow, { where: { studyId: id }, order: { position: 'ASC' } });
-  const attachmentRows = await db.query(
-    `SELECT a.id, a.file_name, a.media_type, a.size_bytes::float8 AS size_bytes, a.sha256, a.uploaded_at, u.display_name
-     FROM attachment a LEFT JOIN app_user u ON u.id = a.uploaded_by WHERE a.study_id = $1 ORDER BY a.uploaded_at, a.id`,
-    [id],
-  );
+  const parts = await loadStudyParts(db, id);
   return {
     id: row.id,
     accession: row.accession,
@@ -70,20 +58,59 @@ export async function loadStudy(db: Db, id: string): Promise<StudyRecord | null>
     details: readSection(detailsColumns, row, 'details'),
     setup: readSection(setupColumns, row, 'setup'),
     findings: readSection(findingsColumns, row, 'findings'),
-    vessels: vesselRows.map((v) => toVessel(v, injections)),
-    vasoreactivity: { ...readSection(vasoreactivityColumns, row, 'vaso'), doses: doseRows.map(toDose) },
-    coding: { ...readSection(codingColumns, row, 'coding'), interventions: await loadInterventions(manager, id) },
-    attachments: attachmentRows.map(
-      (a: Record<string, never>): AttachmentSummary => ({
-        id: a.id,
-        fileName: a.file_name,
-        mediaType: a.media_type,
-        sizeBytes: a.size_bytes,
-        sha256: a.sha256,
-        uploadedAt: (a.uploaded_at as Date).toISOString(),
-        uploadedBy: a.display_name,
-      }),
-    ),
+    vessels: parts.vessels.map((v) => toVessel(v, parts.injections)),
+    vasoreactivity: { ...readSection(vasoreactivityColumns, row, 'vaso'), doses: parts.doses.map(toDose) },
+    coding: { ...readSection(codingColumns, row, 'coding'), interventions: parts.interventions },
+    attachments: parts.attachments,
+  };
+}
+
+/** `numeric` and `smallint` values arrive as JSON numbers (numeric in its exact decimal text, so the same number `Number(text)` gives). */
+type VesselFields = Omit<VesselRow, 'studyId' | 'study' | 'position'>;
+type InjectionFields = Pick<InjectionRow, 'vesselAssessmentId' | 'phase' | 'transitSeconds'>;
+type DoseFields = Omit<DoseRow, 'studyId' | 'study' | 'position'>;
+interface StudyParts {
+  vessels: VesselFields[];
+  injections: InjectionFields[];
+  doses: DoseFields[];
+  interventions: Intervention[];
+  attachments: AttachmentSummary[];
+}
+
+/**
+ * A study's row sections (vessels with their injections, acetylcholine doses, interventions) and its
+ * attachments' summaries, in one statement: each as a JSON array in its stored order.
+ */
+async function loadStudyParts(db: Db, id: string): Promise<StudyParts> {
+  const [row] = await db.query(
+    `SELECT
+       (SELECT COALESCE(json_agg(json_build_object(
+                 'id', v.id, 'vessel', v.vessel, 'segment', v.segment, 'visualStenosisPct', v.visual_stenosis_pct, 'restPa', v.rest_pa, 'restPd', v.rest_pd,
+                 'hyperemiaPa', v.hyperemia_pa, 'hyperemiaPd', v.hyperemia_pd, 'consoleFfr', v.console_ffr, 'nhprKind', v.nhpr_kind, 'nhprValue', v.nhpr_value,
+                 'wedgePressure', v.wedge_pressure, 'driftPdPa', v.drift_pd_pa, 'driftNotDoneReason', v.drift_not_done_reason, 'timiFlow', v.timi_flow,
+                 'correctedFrameCount', v.corrected_frame_count, 'pullbackPattern', v.pullback_pattern, 'decision', v.decision) ORDER BY v.position), '[]')
+        FROM vessel_assessment v WHERE v.study_id = $1) AS vessels,
+       (SELECT COALESCE(json_agg(json_build_object('vesselAssessmentId', i.vessel_assessment_id, 'phase', i.phase, 'transitSeconds', i.transit_s) ORDER BY i.position), '[]')
+        FROM thermodilution_injection i JOIN vessel_assessment v ON v.id = i.vessel_assessment_id WHERE v.study_id = $1) AS injections,
+       (SELECT COALESCE(json_agg(json_build_object(
+                 'id', d.id, 'vessel', d.vessel, 'micrograms', d.micrograms, 'constrictionPct', d.constriction_pct, 'symptoms', d.symptoms, 'ischemicEcg', d.ischemic_ecg,
+                 'heartRate', d.heart_rate, 'systolic', d.systolic, 'diastolic', d.diastolic, 'rhythm', d.rhythm,
+                 'spasmVessel', d.spasm_vessel, 'spasmSegment', d.spasm_segment, 'spasmPattern', d.spasm_pattern) ORDER BY d.position), '[]')
+        FROM acetylcholine_dose d WHERE d.study_id = $1) AS doses,
+       (SELECT COALESCE(json_agg(json_build_object('id', c.id, 'vessel', c.vessel, 'kind', c.kind, 'branch', c.branch, 'stent', c.stent) ORDER BY c.position), '[]')
+        FROM coronary_intervention c WHERE c.study_id = $1) AS interventions,
+       (SELECT COALESCE(json_agg(json_build_object(
+                 'id', a.id, 'fileName', a.file_name, 'mediaType', a.media_type, 'sizeBytes', a.size_bytes::float8, 'sha256', a.sha256,
+                 'uploadedAt', a.uploaded_at, 'uploadedBy', u.display_name) ORDER BY a.uploaded_at, a.id), '[]')
+        FROM attachment a LEFT JOIN app_user u ON u.id = a.uploaded_by WHERE a.study_id = $1) AS attachments`,
+    [id],
+  );
+  return {
+    vessels: row.vessels,
+    injections: row.injections,
+    doses: row.doses,
+    interventions: row.interventions,
+    attachments: (row.attachments as Array<AttachmentSummary>).map((a) => ({ ...a, uploadedAt: new Date(a.uploadedAt).toISOString() })),
   };
 }
 
@@ -309,7 +336,7 @@ export async function patchStudy(dataSource: DataSource, id: string, patch: Patc
 }
 
 /** Stored rows → the record's vessel, transit times in injection order. */
-function toVessel(v: VesselRow, injections: InjectionRow[]): VesselAssessment {
+function toVessel(v: VesselFields, injections: InjectionFields[]): VesselAssessment {
   const mine = injections.filter((i) => i.vesselAssessmentId === v.id);
   return {
     id: v.id,
@@ -335,7 +362,7 @@ function toVessel(v: VesselRow, injections: InjectionRow[]): VesselAssessment {
   };
 }
 
-function toDose(d: DoseRow): AcetylcholineDose {
+function toDose(d: DoseFields): AcetylcholineDose {
   return {
     id: d.id,
     vessel: d.vessel as AcetylcholineDose['vessel'],

@@ -102,6 +102,27 @@ describe('report preview and signing', () => {
     const [queued] = await db.query(`SELECT status, queued_at FROM coding_review WHERE study_id = $1`, [study.id]);
     expect(queued.status).toBe('to-code');
     expect(new Date(queued.queued_at).toISOString()).toBe(signed.body.signedAt);
+    // Written in the signing statement with the version: the job keys and tries, the queued delivery, the audit detail.
+    const keyed = await db.query(`SELECT key, max_attempts FROM graphile_worker._private_jobs WHERE payload->>'reportVersionId' = $1 ORDER BY key`, [signed.body.id]);
+    expect(keyed).toEqual([
+      { key: `deliver-report:${signed.body.id}`, max_attempts: 500 },
+      { key: `notice:${signed.body.id}`, max_attempts: 25 },
+    ]);
+    const deliveries = await db.query(`SELECT study_id FROM report_delivery WHERE report_version_id = $1`, [signed.body.id]);
+    expect(deliveries).toEqual([{ study_id: study.id }]);
+    const [stored] = await db.query(
+      `SELECT v.version_no, v.study_version, v.status, v.supersedes_id, v.pdf_sha256, v.content_sha256, v.signed_at, v.signer_name, v.attestation, v.thresholds_basis,
+              encode(sha256(v.pdf), 'hex') AS pdf_digest, s.version AS study_now
+       FROM report_version v JOIN study s ON s.id = v.study_id WHERE v.id = $1`,
+      [signed.body.id],
+    );
+    expect(stored).toMatchObject({ version_no: 1, study_version: preview.body.studyVersion, status: 'final', supersedes_id: null, thresholds_basis: 'in-force', study_now: preview.body.studyVersion + 1 });
+    expect(stored.pdf_digest).toBe(stored.pdf_sha256);
+    expect(stored.signed_at.toISOString()).toBe(signed.body.signedAt);
+    expect(stored.attestation).toMatch(/^I performed or supervised this procedure/);
+    const [signAudit] = await db.query(`SELECT actor_name, detail FROM audit_event WHERE entity_id = $1 AND action = 'sign'`, [study.id]);
+    expect(signAudit.actor_name).toBe(stored.signer_name);
+    expect(signAudit.detail).toMatchObject({ reportVersion: 1, reportVersionId: signed.body.id, fromStudyVersion: preview.body.studyVersion, contentSha256: stored.content_sha256, thresholds: { basis: 'in-force' } });
     // Verify: by the PDF's bytes and by the printed fingerprint.
     const byPdf = await send('post', '/api/reports/verify', coder).set('Content-Type', 'application/pdf').send(pdf.body).expect(200);
     expect(byPdf.body).toMatchObject({ found: true, studyId: study.id, versionNo: 1, supersededBy: null });

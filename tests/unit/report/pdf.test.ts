@@ -3,7 +3,7 @@ import { readFileSync } from 'node:fs';
 import { createHash } from 'node:crypto';
 import { describe, expect, it } from 'vitest';
 import { defaultThresholds } from '../../../shared/physiology';
-import { canonicalContent, fingerprint, fingerprintInPdf, PAGE, prepareSignedReport, previewReport, renderReportPdf, sha256Hex, type SignedContent } from '../../../server/report';
+import { buildReportView, canonicalContent, fingerprint, fingerprintInPdf, PAGE, prepareSignedReport, previewReport, renderNarrative, renderReportPdf, sha256Hex, type SignedContent } from '../../../server/report';
 import { pdfInfo, pdfPages, pdfToPng, pngSize } from '../../support/pdf-to-png';
 import { analysisOf, demoReportStudies, viewOf } from './fixtures';
 
@@ -141,6 +141,10 @@ describe('preparing a signed version', () => {
     expect(pdfInfo(prepared.pdf).Subject).toBe(`Report version 1, fingerprint ${prepared.fingerprint}`);
     expect(fingerprintInPdf(await renderReportPdf(preview.view))).toBeNull();
     expect(prepared.htmlDocument.startsWith('<!doctype html>')).toBe(true);
+    // The signed view is the previewed one with its signature block: the same as one built whole.
+    const whole = buildReportView({ ...input, signature: { signedBy: sign.signer.name, signedAt: sign.signedAt, reportVersion: sign.reportVersion, fingerprint: prepared.fingerprint, amendmentReason: null } });
+    expect(prepared.narrative).toEqual(renderNarrative(whole));
+    expect(prepared.pdf.equals(await renderReportPdf(whole))).toBe(true);
   });
 
   it('same input, same bytes; a changed measurement changes the fingerprint', async () => {
