@@ -1,7 +1,9 @@
 /**
  * One rule for every CSV the product writes or serves: a cell that a spreadsheet would read as a
  * formula (it begins with = + - @, a tab or a carriage return) is prefixed with an apostrophe, so it
- * shows as text; a plain number (a trace's −3.2, +1.5e3) stays exactly as it is. OWASP, "CSV Injection".
+ * shows as text; a plain number (a trace's −3.2, +1.5e3) stays exactly as it is. The same holds for
+ * each piece of a cell after a comma, semicolon or tab, which a spreadsheet splitting on that
+ * character reads as a cell of its own. OWASP, "CSV Injection".
  * Pure TypeScript: used by the server (downloads, exports) and usable by the app.
  */
 // Leading spaces (ASCII and ideographic) are skipped before the check, and the full-width forms of
@@ -9,9 +11,14 @@
 const formulaStart = /^[ \u3000]*[=+\-@\t\r\uFF1D\uFF0B\uFF0D\uFF20]/;
 const plainNumber = /^[+-]?(\d+([.,]\d*)?|[.,]\d+)([eE][+-]?\d+)?$/;
 
+const startsFormula = (text: string) => formulaStart.test(text) && !plainNumber.test(text);
+// A piece of a cell after a comma, semicolon or tab: where a spreadsheet splitting on that character
+// (whatever the file's own delimiter, quotes or not) would start a new cell.
+const innerPiece = /([,;\t])([^,;\t]*)/g;
+
 export function neutraliseCell(cell: string): string {
-  if (!formulaStart.test(cell) || plainNumber.test(cell)) return cell;
-  return `'${cell}`;
+  const inner = /[,;\t]/.test(cell) ? cell.replace(innerPiece, (all, sep: string, piece: string) => (startsFormula(piece) ? `${sep}'${piece}` : all)) : cell;
+  return startsFormula(inner) ? `'${inner}` : inner;
 }
 
 /**

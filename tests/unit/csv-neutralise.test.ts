@@ -24,8 +24,16 @@ describe('cells a spreadsheet would still read as a formula', () => {
     expect(neutraliseCell(' 3.2')).toBe(' 3.2');
   });
   it('quotes a cell holding a semicolon or a tab even in a comma-separated file', () => {
-    expect(toCsv([["Bob;=cmd|' /C calc'!A0", 'x\ty', 'plain']])).toBe('"Bob;=cmd|\' /C calc\'!A0","x\ty",plain\r\n');
-    expect(stringify([["Bob;=cmd"]], { quoted_match: quoteAlsoWhen, cast: { string: neutraliseCell } })).toBe('"Bob;=cmd"\n');
+    expect(toCsv([["Bob;=cmd|' /C calc'!A0", 'x\ty', 'plain']])).toBe('"Bob;\'=cmd|\' /C calc\'!A0","x\ty",plain\r\n');
+    expect(stringify([["Bob;=cmd"]], { quoted_match: quoteAlsoWhen, cast: { string: neutraliseCell } })).toBe('"Bob;\'=cmd"\n');
+  });
+  it('neutralises each piece after a comma, semicolon or tab: a spreadsheet splitting there sees a new cell (OWASP, CSV Injection)', () => {
+    expect(neutraliseCell('Dr Probe;=1+1')).toBe("Dr Probe;'=1+1");
+    expect(neutraliseCell('a, @SUM(A1)\t+cmd')).toBe("a,' @SUM(A1)\t'+cmd");
+    expect(neutraliseCell('=1;=2')).toBe("'=1;'=2");
+    // Plain numbers stay plain, inside a cell too.
+    expect(neutraliseCell('0.1;-3.2,+4')).toBe('0.1;-3.2,+4');
+    expect(neutraliseCell('Smith, Anna')).toBe('Smith, Anna');
   });
 });
 
