@@ -106,7 +106,7 @@ export const localConcepts = {
   endotypeVasospastic: c('endotype-vasospastic-angina', 'Vasospastic angina', 'Epicardial spasm on acetylcholine testing without obstructive disease.'),
   endotypeMixed: c('endotype-mixed', 'Microvascular and vasospastic angina', 'Microvascular dysfunction together with epicardial spasm.'),
   endotypeNone: c('endotype-no-abnormality', 'No coronary abnormality', 'Epicardial index, CFR and IMR within thresholds and a negative acetylcholine test.'),
-  endotypeInconclusive: c('endotype-inconclusive', 'Inconclusive', 'The measurements do not complete the protocol needed for a diagnosis.'),
+  endotypeInconclusive: c('endotype-inconclusive', 'Inconclusive', 'No endotype could be assigned: the protocol is incomplete, a result is in doubt, or the findings (such as endothelial dysfunction alone) fit none of the endotypes.'),
 } as const;
 
 export type LocalConceptKey = keyof typeof localConcepts;

@@ -34,7 +34,7 @@ export const nhprKindLabel: Readonly<Record<NhprKind, string>> = Object.freeze({
 export const imrMethodLabel: Readonly<Record<ImrMethod, string>> = Object.freeze({
   'pd-tmn': 'Pd × Tmn',
   wedge: 'wedge-corrected',
-  yong: 'corrected without wedge',
+  yong: 'corrected without wedge pressure',
 });
 
 export const vasoreactivityLabel: Readonly<Record<VasoreactivityOutcome, string>> = Object.freeze({

@@ -18,15 +18,20 @@ export function analyzeValidated(data: PhysiologyOutput): PhysiologyResult {
   const vin = data.vessels;
   const n = vin.length;
 
-  // Name vessels by code; add the caller's id when a code occurs more than once.
+  // Name vessels by code; when a code occurs more than once, number its rows ("LAD, lesion 2") — or
+  // use the caller's id when it is a short readable one: a generated row id means nothing in a report.
   const counts = new Map<VesselCode, number>();
   for (let i = 0; i < n; i++) counts.set(vin[i].vessel, (counts.get(vin[i].vessel) ?? 0) + 1);
+  const seen = new Map<VesselCode, number>();
   const labels: string[] = [];
   const vessels: VesselResult[] = [];
   for (let i = 0; i < n; i++) {
     const v = vin[i];
     const name = vesselName(v.vessel);
-    const label = counts.get(v.vessel) === 1 ? name : `${name} (${v.id})`;
+    const nth = (seen.get(v.vessel) ?? 0) + 1;
+    seen.set(v.vessel, nth);
+    const readableId = /^[\p{L}\p{N} .\-/]{1,16}$/u.test(v.id) && !/^[0-9a-f]{8}-/i.test(v.id);
+    const label = counts.get(v.vessel) === 1 ? name : readableId ? `${name} (${v.id})` : `${name}, lesion ${nth}`;
     labels.push(label);
     vessels.push(analyzeVessel(v, t, label, data.procedure));
   }

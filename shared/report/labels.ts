@@ -1,18 +1,10 @@
-import type { Endotype, Flag, ImrMethod, VasoreactivityOutcome } from '../physiology';
+import type { Flag, VasoreactivityOutcome } from '../physiology';
 
 /**
- * Words for the physiology core's codes, as the report and the screens print them. The codes are
- * stable; these words may change (a new report template version records the change).
+ * Words the report prints inside its sentences where the screens' table would not read well: flags
+ * in lower case, and the acetylcholine outcome with what it means. Everything else comes from the one
+ * table in `shared/physiology/labels.ts`. The codes are stable; signed versions keep their words.
  */
-
-export const endotypeLabel: Readonly<Record<Endotype, string>> = Object.freeze({
-  obstructive: 'Obstructive coronary disease',
-  'microvascular-angina': 'Microvascular angina',
-  'vasospastic-angina': 'Vasospastic angina',
-  mixed: 'Microvascular and vasospastic angina',
-  'no-abnormality': 'No coronary abnormality found',
-  inconclusive: 'Not enough data for an endotype',
-});
 
 export const flagLabel: Readonly<Record<Flag, string>> = Object.freeze({
   normal: 'normal',
@@ -20,14 +12,8 @@ export const flagLabel: Readonly<Record<Flag, string>> = Object.freeze({
   borderline: 'borderline',
 });
 
-/** The resting-ratio names are the same on screen and in the report: one table. */
-export { nhprKindLabel } from '../physiology/labels';
-
-export const imrMethodLabel: Readonly<Record<ImrMethod, string>> = Object.freeze({
-  'pd-tmn': 'Pd × Tmn',
-  wedge: 'wedge-corrected',
-  yong: 'corrected without wedge pressure',
-});
+/** Endotype, IMR method and resting-ratio names are the same on screen, in the report and in the FHIR bundle: one table. */
+export { endotypeLabel, imrMethodLabel, nhprKindLabel } from '../physiology/labels';
 
 export const vasoreactivityOutcomeLabel: Readonly<Record<VasoreactivityOutcome, string>> = Object.freeze({
   'epicardial-spasm': 'Epicardial spasm',

@@ -80,11 +80,16 @@ export const diagnosisRules = {
 
 export function applyDiagnoses(ctx: RuleContext): void {
   const d = ctx.input.diagnoses;
-  // COVADIS spasm requires the patient's usual symptoms to be reproduced, so documented spasm implies angina.
-  const angina = d.angina || d.vasospasm !== null;
+  // COVADIS epicardial spasm requires the patient's usual symptoms to be reproduced, so it is coded as
+  // angina with spasm even when angina is not recorded (warned). Microvascular spasm without recorded
+  // angina is coded as the report words it: coronary microvascular dysfunction.
+  const angina = d.angina || d.vasospasm === 'epicardial';
   const microvascular = d.microvascularDysfunction || d.vasospasm === 'microvascular';
-  if (!d.angina && d.vasospasm !== null) {
+  if (!d.angina && d.vasospasm === 'epicardial') {
     ctx.warn(diagnosisRules.review, 'spasm-without-angina', 'Coronary spasm is recorded but angina is not; spasm by the COVADIS criteria reproduces the patient\'s symptoms, so the spasm was coded as angina with spasm. Confirm with the physician\'s documentation.');
+  }
+  if (!d.angina && d.vasospasm === 'microvascular') {
+    ctx.warn(diagnosisRules.review, 'spasm-without-angina', 'Microvascular spasm is recorded but angina is not; it was coded as coronary microvascular dysfunction (I25.85), as the report names it. If the physician documents angina, angina with coronary microvascular dysfunction (I20.81) applies.');
   }
 
   if (d.obstructiveCad) {

@@ -48,6 +48,12 @@ describe('ICD-10-CM from the signed findings', () => {
     expect(warningCodes(r)).toContain('spasm-without-angina');
   });
 
+  it(`microvascular spasm recorded without angina is coded as coronary microvascular dysfunction, as the report names it, and warned — ${SRC.tab}; ${SRC.covadis}`, () => {
+    const r = suggestCodes(input({ diagnoses: dx({ vasospasm: 'microvascular' }) }));
+    expect(r.codes.map((c) => c.code)).toEqual(['I25.85']);
+    expect(r.warnings.find((w) => w.code === 'spasm-without-angina')?.message).toMatch(/I20\.81/);
+  });
+
   it(`unspecified angina with disease points the coder at the specific codes — ${SRC.tab}`, () => {
     const r = suggestCodes(input({ diagnoses: dx({ obstructiveCad: true, angina: true }) }));
     expect(r.warnings.find((w) => w.code === 'angina-type')?.message).toMatch(/I25\.110.*I25\.112.*I25\.118/);

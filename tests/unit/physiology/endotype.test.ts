@@ -753,3 +753,17 @@ describe('a visual stenosis is printed on the side of the cut-off it was judged 
     expect(r.reasons[0]).toBe('LAD: visual stenosis 50% with no pressure index is at or above 50% (COVADIS) — obstructive by angiography.');
   });
 });
+
+describe('two rows of one artery in words', () => {
+  // Clinical text names vessels as the trade does; a generated row id is not a name (common practice).
+  const row = (id: string, ffr: number) => ({ id, vessel: 'LAD' as const, ffr });
+  it('numbers the lesions when the rows carry generated ids', () => {
+    const r = analyzeStudy({ vessels: [row('3f2a9c1e-5b7d-4e0a-9c3b-2d1e0f9a8b7c', 0.7), row('9a8b7c6d-1e2f-4a3b-8c9d-0e1f2a3b4c5d', 0.9)] });
+    expect(r.headline).toContain('LAD, lesion 1');
+    expect(r.headline).not.toMatch(/[0-9a-f]{8}-/);
+  });
+  it('keeps a short readable id the caller gave', () => {
+    const r = analyzeStudy({ vessels: [row('prox', 0.7), row('mid', 0.9)] });
+    expect(r.headline).toContain('LAD (prox)');
+  });
+});
