@@ -28,11 +28,12 @@ export interface ExportedCode {
  * per code as it is reported — accepted, edited (the edit), added; rejected codes are not codes.
  */
 export async function exportCodes(sql: Sql, from: string, to: string): Promise<ExportedCode[]> {
-  // Days and dates of service are the lab's calendar days, not the database server's.
+  // Days are the lab's calendar days, not the database server's; the date of service is the one the
+  // codes were suggested for (the signed record's, in the lab's zone).
   const { timeZone } = await labSettings(auditTarget(sql));
   const reviews = await sql(
     `SELECT r.current_set_id, r.completer_name, r.completed_at, cs.version_no, s.accession, p.mrn, p.family_name, p.given_name,
-            to_char(s.procedure_started_at AT TIME ZONE $3, 'YYYY-MM-DD') AS date_of_service
+            coalesce(cs.input->>'dateOfService', to_char(s.procedure_started_at AT TIME ZONE $3, 'YYYY-MM-DD')) AS date_of_service
      FROM coding_review r
      JOIN code_suggestion_set cs ON cs.id = r.current_set_id
      JOIN study s ON s.id = r.study_id

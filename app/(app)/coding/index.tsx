@@ -11,6 +11,7 @@ import { patientName } from '../../../components/format';
 import { useCodingQueue, type QueueFilters } from '../../../components/data/coding-query';
 import { useOperators } from '../../../components/data/study-query';
 import { reviewStatusLabel, type QueueItem } from '../../../shared/coding/review';
+import { isoDay as localIsoDay } from '../../../shared/turnaround/range';
 import { color, font, radius, space, touchTarget, type } from '../../../components/theme';
 
 const isoDay = /^\d{4}-\d{2}-\d{2}$/;
@@ -123,7 +124,8 @@ function QueueList({ items }: { items: QueueItem[] }) {
 function ExportCodes() {
   const [from, setFrom] = useState<string | undefined>();
   const [to, setTo] = useState<string | undefined>();
-  const today = new Date().toISOString().slice(0, 10);
+  // The browser's calendar day (the lab's, at the lab), not UTC's.
+  const today = localIsoDay(new Date());
   const range = { from: from ?? to ?? today, to: to ?? from ?? today };
   const backwards = range.from > range.to;
   const open = (format: 'csv' | 'json') => {
