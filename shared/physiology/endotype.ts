@@ -193,7 +193,8 @@ export function classifyStudy(
         `${label}: visual stenosis ${stenosisText(v.visualStenosisPct, t)}% is at or above ${ctx.stenosisCut}%, but the pressure index is above its cut-off; the pressure index decides (COVADIS), so the vessel is not obstructive.`,
       );
     }
-    if (v.obstructive) obstructiveLabels.push(label);
+    // A stenosis seen but not measured says so in the headline, as the lesion report does.
+    if (v.obstructive) obstructiveLabels.push(v.judgedBy === 'visual-stenosis' ? `${label} by angiography, not assessed physiologically` : label);
     else if (v.judgedBy !== undefined) clearLabels.push(label);
     const obstructed = v.obstructive === true;
 

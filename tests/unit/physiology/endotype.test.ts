@@ -767,3 +767,13 @@ describe('two rows of one artery in words', () => {
     expect(r.headline).toContain('LAD (prox)');
   });
 });
+
+describe('obstruction seen on angiography only', () => {
+  // COVADIS judges a vessel without a pressure index by its stenosis (Ong et al., Int J Cardiol 2018);
+  // the headline says the stenosis was not assessed physiologically (common practice).
+  it('names the vessel as obstructive by angiography, not assessed physiologically', () => {
+    const r = analyzeStudy({ vessels: [{ id: 'v1', vessel: 'RCA', visualStenosisPct: 70 }] });
+    expect(r.findings.obstructive).toBe(true);
+    expect(r.headline).toBe('Obstructive coronary disease (RCA by angiography, not assessed physiologically)');
+  });
+});
