@@ -1,16 +1,21 @@
 /**
- * Adds preload links to the exported index.html, so the browser fetches what the first screen needs
- * while the main scripts download, not one after the other once they have run: the bundled fonts
- * (the root layout waits for them) and the chunks of the worklist's route (root layout, signed-in
- * layout, worklist screen; each is its own chunk and each would be asked for only after the one
- * above it had rendered).
+ * Adds to the exported index.html what lets the first screen start while the main scripts download,
+ * not one step after the other once they have run:
+ * - the early-reads script (components/data/early-reads.js, copied beside the bundles under a name
+ *   with its hash), which starts the first screen's API reads at once;
+ * - preload links for the chunks of the worklist's route (root layout, signed-in layout, worklist
+ *   screen; each is its own chunk and each would be asked for only after the one above it had
+ *   rendered) and of every other layout (the router asks for each layout's chunk when it starts);
+ * - preload links for the bundled fonts (the root layout waits for them).
  * Usage: tsx scripts/preload-web.ts dist
  */
+import crypto from 'node:crypto';
 import fs from 'node:fs';
 import path from 'node:path';
 
 /** The route files whose chunks the worklist's first render needs, outermost first. */
 const firstRouteFiles = ['./_layout.tsx', './(app)/_layout.tsx', './(app)/index.tsx'];
+const earlyReadsSource = path.resolve(import.meta.dirname, '../components/data/early-reads.js');
 const fontPattern = /^PublicSans_.*\.ttf$/;
 
 function* files(dir: string): Generator<string> {
@@ -58,6 +63,11 @@ export function routeChunks(entry: string, routeFiles: string[]): string[] | nul
   return chunks;
 }
 
+/** Every layout file in the entry bundle's route context. */
+export function layoutFiles(entry: string): string[] {
+  return [...new Set([...entry.matchAll(/"(\.\/(?:[^"]*\/)?_layout\.tsx)":\{enumerable/g)].map((m) => m[1]))];
+}
+
 const escape = (s: string) => s.replace(/[.*+?^${}()|[\]\\]/g, '\\$&');
 
 function main(): void {
@@ -67,15 +77,24 @@ function main(): void {
   const all = [...files(root)].map((f) => '/' + path.relative(root, f).split(path.sep).join('/'));
   const links: string[] = [];
 
+  const early = fs.readFileSync(earlyReadsSource);
+  const earlyHref = `/_expo/static/js/web/early-reads-${crypto.createHash('sha256').update(early).digest('hex').slice(0, 32)}.js`;
+  fs.writeFileSync(path.join(root, earlyHref), early);
+  links.push(`<script src="${earlyHref}" async></script>`);
+
   const entries = all.filter((f) => /\/_expo\/static\/js\/web\/entry-[0-9a-f]+\.js$/.test(f));
-  const chunks = entries.length === 1 ? routeChunks(fs.readFileSync(path.join(root, entries[0]), 'utf8'), firstRouteFiles) : null;
+  const entry = entries.length === 1 ? fs.readFileSync(path.join(root, entries[0]), 'utf8') : '';
+  const chunks = entry ? routeChunks(entry, [...firstRouteFiles, ...layoutFiles(entry).filter((f) => !firstRouteFiles.includes(f))]) : null;
   if (chunks) for (const href of chunks) links.push(`<link rel="preload" href="${href}" as="script">`);
   else console.warn('preload-web: the route chunks were not found in the entry bundle; the page loads without their preloads');
 
   for (const href of all.filter((f) => fontPattern.test(path.basename(f)))) {
     links.push(`<link rel="preload" href="${href}" as="font" type="font/ttf" crossorigin>`);
   }
-  html = html.replace(/<link rel="preload"[^>]*>\n?/g, '').replace('</head>', `${links.join('\n')}\n</head>`);
+  html = html
+    .replace(/<link rel="preload"[^>]*>\n?/g, '')
+    .replace(/<script src="\/_expo\/static\/js\/web\/early-reads-[^"]*" async><\/script>\n?/g, '')
+    .replace('</head>', `${links.join('\n')}\n</head>`);
   fs.writeFileSync(indexFile, html);
   console.log(`preload-web: ${links.length} preload links in ${indexFile}`);
 }
