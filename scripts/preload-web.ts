@@ -3,10 +3,11 @@
  * not one step after the other once they have run:
  * - the early-reads script (components/data/early-reads.js, copied beside the bundles under a name
  *   with its hash), which starts the first screen's API reads at once;
- * - preload links for the chunks of the worklist's route (root layout, signed-in layout, worklist
- *   screen; each is its own chunk and each would be asked for only after the one above it had
- *   rendered) and of every other layout (the router asks for each layout's chunk when it starts);
- * - preload links for the bundled fonts (the root layout waits for them).
+ * - script tags, before the entry's, for the chunks of the worklist's route (root layout, signed-in
+ *   layout, worklist screen) and of every other layout (the router asks for each layout when it
+ *   starts): each is its own chunk, and would otherwise be asked for only once the one above it had
+ *   rendered;
+ * - the bundled fonts' @font-face rules and preload links.
  * Usage: tsx scripts/preload-web.ts dist
  */
 import crypto from 'node:crypto';
@@ -17,6 +18,8 @@ import path from 'node:path';
 const firstRouteFiles = ['./_layout.tsx', './(app)/_layout.tsx', './(app)/index.tsx'];
 const earlyReadsSource = path.resolve(import.meta.dirname, '../components/data/early-reads.js');
 const fontPattern = /^PublicSans_.*\.ttf$/;
+/** The id of the page's own @font-face rules (components/fonts.ts looks for it). */
+const pageFontsId = 'isobar-fonts';
 
 function* files(dir: string): Generator<string> {
   for (const entry of fs.readdirSync(dir, { withFileTypes: true })) {
@@ -85,18 +88,29 @@ function main(): void {
   const entries = all.filter((f) => /\/_expo\/static\/js\/web\/entry-[0-9a-f]+\.js$/.test(f));
   const entry = entries.length === 1 ? fs.readFileSync(path.join(root, entries[0]), 'utf8') : '';
   const chunks = entry ? routeChunks(entry, [...firstRouteFiles, ...layoutFiles(entry).filter((f) => !firstRouteFiles.includes(f))]) : null;
-  if (chunks) for (const href of chunks) links.push(`<link rel="preload" href="${href}" as="script">`);
-  else console.warn('preload-web: the route chunks were not found in the entry bundle; the page loads without their preloads');
+  const entryTag = entries.length === 1 ? html.match(new RegExp(`<script src="${escape(entries[0])}" defer></script>`)) : null;
+  html = html.replace(/<script src="[^"]*" defer data-first-route><\/script>/g, '');
+  if (chunks && entryTag) {
+    // Defined before the entry runs, so the router finds these routes' modules at once and renders
+    // the first screen in one pass, instead of asking for one chunk after another as it goes down.
+    const tags = chunks.map((href) => `<script src="${href}" defer data-first-route></script>`).join('');
+    html = html.replace(entryTag[0], `${tags}${entryTag[0]}`);
+  } else console.warn('preload-web: the route chunks or the entry script were not found; the page loads the routes as it renders them');
 
-  for (const href of all.filter((f) => fontPattern.test(path.basename(f)))) {
-    links.push(`<link rel="preload" href="${href}" as="font" type="font/ttf" crossorigin>`);
-  }
+  // The fonts are declared by the page itself (the app no longer waits for them before its first
+  // render: app/_layout.tsx) and preloaded; `swap` shows text at once in the system font if a
+  // font is late, and the font as soon as it arrives.
+  const fonts = all.filter((f) => fontPattern.test(path.basename(f)));
+  const faces = fonts.map((href) => `@font-face{font-family:"${path.basename(href).split('.')[0]}";src:url("${href}") format("truetype");font-display:swap}`);
+  for (const href of fonts) links.push(`<link rel="preload" href="${href}" as="font" type="font/ttf" crossorigin>`);
+  if (faces.length) links.push(`<style id="${pageFontsId}">${faces.join('')}</style>`);
   html = html
     .replace(/<link rel="preload"[^>]*>\n?/g, '')
+    .replace(new RegExp(`<style id="${pageFontsId}">[^<]*</style>\\n?`, 'g'), '')
     .replace(/<script src="\/_expo\/static\/js\/web\/early-reads-[^"]*" async><\/script>\n?/g, '')
     .replace('</head>', `${links.join('\n')}\n</head>`);
   fs.writeFileSync(indexFile, html);
-  console.log(`preload-web: ${links.length} preload links in ${indexFile}`);
+  console.log(`preload-web: ${chunks?.length ?? 0} route chunks before the entry, ${fonts.length} fonts, the early-reads script in ${indexFile}`);
 }
 
 if (process.argv[1]?.endsWith('preload-web.ts')) main();
