@@ -1,3 +1,4 @@
 import { laterScreen } from '../../../../components/later-screens';
 
+/** A study's codes: the screen is in components/screens, the chunk of every screen after the first. */
 export default laterScreen('studyCoding');

@@ -1,3 +1,4 @@
 import { laterScreen } from '../../../../components/later-screens';
 
+/** A study's overview: the screen is in components/screens, the chunk of every screen after the first. */
 export default laterScreen('studyOverview');
