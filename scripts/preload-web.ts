@@ -7,7 +7,7 @@
  *   layout, worklist screen) and of every other layout (the router asks for each layout when it
  *   starts): each is its own chunk, and would otherwise be asked for only once the one above it had
  *   rendered;
- * - the bundled fonts' @font-face rules and preload links (low priority: the scripts go first).
+ * - the bundled fonts' @font-face rules and preload links.
  * Usage: tsx scripts/preload-web.ts dist
  */
 import crypto from 'node:crypto';
@@ -102,9 +102,7 @@ function main(): void {
   // font is late, and the font as soon as it arrives.
   const fonts = all.filter((f) => fontPattern.test(path.basename(f)));
   const faces = fonts.map((href) => `@font-face{font-family:"${path.basename(href).split('.')[0]}";src:url("${href}") format("truetype");font-display:swap}`);
-  // Low priority: on a slow network they would otherwise share it with the scripts the first screen
-  // waits for; they still arrive long before the app has run (and text shows without them).
-  for (const href of fonts) links.push(`<link rel="preload" href="${href}" as="font" type="font/ttf" crossorigin fetchpriority="low">`);
+  for (const href of fonts) links.push(`<link rel="preload" href="${href}" as="font" type="font/ttf" crossorigin>`);
   if (faces.length) links.push(`<style id="${pageFontsId}">${faces.join('')}</style>`);
   html = html
     .replace(/<link rel="preload"[^>]*>\n?/g, '')
