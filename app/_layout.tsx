@@ -24,16 +24,21 @@ const newQueryClient = () => new QueryClient({ defaultOptions: { queries: { stal
 const webQueryClient = Platform.OS === 'web' && typeof window !== 'undefined' ? newQueryClient() : null;
 if (webQueryClient) prefetchFirstScreen(webQueryClient, window.location);
 
+/**
+ * The bundled fonts to load before the first render. On the web the page declares them itself
+ * (preloaded, `font-display: swap`; scripts/preload-web.ts), so the first screen does not wait for
+ * them: nothing to load here then.
+ */
+const fontsToLoad: Record<string, number> =
+  Platform.OS === 'web' && typeof document !== 'undefined' && document.getElementById('isobar-fonts')
+    ? {}
+    : { PublicSans_400Regular, PublicSans_500Medium, PublicSans_600SemiBold, PublicSans_700Bold };
+
 /** Providers and theme for every screen: data fetching, fonts bundled with the app, safe areas. */
 export default function RootLayout() {
   const [queryClient] = useState(() => webQueryClient ?? newQueryClient());
   useFocusRing();
-  const [fontsLoaded, fontError] = useFonts({
-    PublicSans_400Regular,
-    PublicSans_500Medium,
-    PublicSans_600SemiBold,
-    PublicSans_700Bold,
-  });
+  const [fontsLoaded, fontError] = useFonts(fontsToLoad);
   // Render nothing for the few milliseconds the bundled fonts take, so text never jumps;
   // a font that fails to load falls back to the system font rather than blocking the app.
   if (!fontsLoaded && !fontError) return null;

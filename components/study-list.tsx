@@ -1,4 +1,4 @@
-import type { ReactNode } from 'react';
+import { startTransition, useEffect, useState, type ReactNode } from 'react';
 import { Pressable, StyleSheet, View } from 'react-native';
 import { Link } from 'expo-router';
 import { Text } from './ui/text';
@@ -19,6 +19,7 @@ export function StudyList<T extends StudySummary>({
   testID,
   dayOf,
   hrefOf = (s) => `/studies/${s.id}`,
+  firstRows,
 }: {
   studies: T[];
   aside?: (s: T) => ReactNode;
@@ -26,12 +27,22 @@ export function StudyList<T extends StudySummary>({
   dayOf?: (s: T) => string | null;
   /** Where a row leads: the study's first section unless said otherwise. */
   hrefOf?: (s: T) => string;
+  /**
+   * Rows to put on screen in the first pass (about a phone screen's worth and more); the rest follow
+   * at once in a second, interruptible pass, so the first rows do not wait for the whole page of them.
+   */
+  firstRows?: number;
 }) {
   const wide = useIsWide();
   const now = new Date();
+  const [allShown, setAllShown] = useState(firstRows === undefined);
+  useEffect(() => {
+    if (!allShown) startTransition(() => setAllShown(true));
+  }, [allShown]);
+  const shown = allShown || firstRows === undefined ? studies : studies.slice(0, firstRows);
   return (
     <View style={styles.list} testID={testID} role="list">
-      {studies.map((s, i) => (
+      {shown.map((s, i) => (
         <View key={s.id} role="listitem">
           {dayOf && (i === 0 || dayLabel(dayOf(studies[i - 1]), now) !== dayLabel(dayOf(s), now)) ? (
             <View style={[styles.day, i > 0 && styles.divider]} testID={`${testID}-day-${dayLabel(dayOf(s), now)}`}>

@@ -1,17 +1,25 @@
 /**
- * Adds preload links to the exported index.html, so the browser fetches what the first screen needs
- * while the main scripts download, not one after the other once they have run: the bundled fonts
- * (the root layout waits for them) and the chunks of the worklist's route (root layout, signed-in
- * layout, worklist screen; each is its own chunk and each would be asked for only after the one
- * above it had rendered).
+ * Adds to the exported index.html what lets the first screen start while the main scripts download,
+ * not one step after the other once they have run:
+ * - the early-reads script (components/data/early-reads.js, copied beside the bundles under a name
+ *   with its hash), which starts the first screen's API reads at once;
+ * - script tags, before the entry's, for the chunks of the worklist's route (root layout, signed-in
+ *   layout, worklist screen) and of every other layout (the router asks for each layout when it
+ *   starts): each is its own chunk, and would otherwise be asked for only once the one above it had
+ *   rendered;
+ * - the bundled fonts' @font-face rules and preload links.
  * Usage: tsx scripts/preload-web.ts dist
  */
+import crypto from 'node:crypto';
 import fs from 'node:fs';
 import path from 'node:path';
 
 /** The route files whose chunks the worklist's first render needs, outermost first. */
 const firstRouteFiles = ['./_layout.tsx', './(app)/_layout.tsx', './(app)/index.tsx'];
+const earlyReadsSource = path.resolve(import.meta.dirname, '../components/data/early-reads.js');
 const fontPattern = /^PublicSans_.*\.ttf$/;
+/** The id of the page's own @font-face rules (components/fonts.ts looks for it). */
+const pageFontsId = 'isobar-fonts';
 
 function* files(dir: string): Generator<string> {
   for (const entry of fs.readdirSync(dir, { withFileTypes: true })) {
@@ -58,6 +66,11 @@ export function routeChunks(entry: string, routeFiles: string[]): string[] | nul
   return chunks;
 }
 
+/** Every layout file in the entry bundle's route context. */
+export function layoutFiles(entry: string): string[] {
+  return [...new Set([...entry.matchAll(/"(\.\/(?:[^"]*\/)?_layout\.tsx)":\{enumerable/g)].map((m) => m[1]))];
+}
+
 const escape = (s: string) => s.replace(/[.*+?^${}()|[\]\\]/g, '\\$&');
 
 function main(): void {
@@ -67,17 +80,37 @@ function main(): void {
   const all = [...files(root)].map((f) => '/' + path.relative(root, f).split(path.sep).join('/'));
   const links: string[] = [];
 
-  const entries = all.filter((f) => /\/_expo\/static\/js\/web\/entry-[0-9a-f]+\.js$/.test(f));
-  const chunks = entries.length === 1 ? routeChunks(fs.readFileSync(path.join(root, entries[0]), 'utf8'), firstRouteFiles) : null;
-  if (chunks) for (const href of chunks) links.push(`<link rel="preload" href="${href}" as="script">`);
-  else console.warn('preload-web: the route chunks were not found in the entry bundle; the page loads without their preloads');
+  const early = fs.readFileSync(earlyReadsSource);
+  const earlyHref = `/_expo/static/js/web/early-reads-${crypto.createHash('sha256').update(early).digest('hex').slice(0, 32)}.js`;
+  fs.writeFileSync(path.join(root, earlyHref), early);
+  links.push(`<script src="${earlyHref}" async></script>`);
 
-  for (const href of all.filter((f) => fontPattern.test(path.basename(f)))) {
-    links.push(`<link rel="preload" href="${href}" as="font" type="font/ttf" crossorigin>`);
-  }
-  html = html.replace(/<link rel="preload"[^>]*>\n?/g, '').replace('</head>', `${links.join('\n')}\n</head>`);
+  const entries = all.filter((f) => /\/_expo\/static\/js\/web\/entry-[0-9a-f]+\.js$/.test(f));
+  const entry = entries.length === 1 ? fs.readFileSync(path.join(root, entries[0]), 'utf8') : '';
+  const chunks = entry ? routeChunks(entry, [...firstRouteFiles, ...layoutFiles(entry).filter((f) => !firstRouteFiles.includes(f))]) : null;
+  const entryTag = entries.length === 1 ? html.match(new RegExp(`<script src="${escape(entries[0])}" defer></script>`)) : null;
+  html = html.replace(/<script src="[^"]*" defer data-first-route><\/script>/g, '');
+  if (chunks && entryTag) {
+    // Defined before the entry runs, so the router finds these routes' modules at once and renders
+    // the first screen in one pass, instead of asking for one chunk after another as it goes down.
+    const tags = chunks.map((href) => `<script src="${href}" defer data-first-route></script>`).join('');
+    html = html.replace(entryTag[0], `${tags}${entryTag[0]}`);
+  } else console.warn('preload-web: the route chunks or the entry script were not found; the page loads the routes as it renders them');
+
+  // The fonts are declared by the page itself (the app no longer waits for them before its first
+  // render: app/_layout.tsx) and preloaded; `swap` shows text at once in the system font if a
+  // font is late, and the font as soon as it arrives.
+  const fonts = all.filter((f) => fontPattern.test(path.basename(f)));
+  const faces = fonts.map((href) => `@font-face{font-family:"${path.basename(href).split('.')[0]}";src:url("${href}") format("truetype");font-display:swap}`);
+  for (const href of fonts) links.push(`<link rel="preload" href="${href}" as="font" type="font/ttf" crossorigin>`);
+  if (faces.length) links.push(`<style id="${pageFontsId}">${faces.join('')}</style>`);
+  html = html
+    .replace(/<link rel="preload"[^>]*>\n?/g, '')
+    .replace(new RegExp(`<style id="${pageFontsId}">[^<]*</style>\\n?`, 'g'), '')
+    .replace(/<script src="\/_expo\/static\/js\/web\/early-reads-[^"]*" async><\/script>\n?/g, '')
+    .replace('</head>', `${links.join('\n')}\n</head>`);
   fs.writeFileSync(indexFile, html);
-  console.log(`preload-web: ${links.length} preload links in ${indexFile}`);
+  console.log(`preload-web: ${chunks?.length ?? 0} route chunks before the entry, ${fonts.length} fonts, the early-reads script in ${indexFile}`);
 }
 
 if (process.argv[1]?.endsWith('preload-web.ts')) main();

@@ -2,6 +2,7 @@ import { useEffect } from 'react';
 import { Platform } from 'react-native';
 import { Redirect, Slot, usePathname } from 'expo-router';
 import { AppShell } from '../../components/app-shell';
+import { prefetchLaterScreens } from '../../components/later-screens';
 import { NoAccess } from '../../components/no-access';
 import { ErrorState, LoadingState } from '../../components/ui/async-states';
 import { Center, Content, Screen } from '../../components/ui/layout';
@@ -16,6 +17,9 @@ let signedInThisVisit = false;
 export default function SignedInLayout() {
   const me = useMeQuery();
   const pathname = usePathname();
+  // Once a signed-in user's first screen is up, the other screens' chunk downloads in the background.
+  const signedIn = Boolean(me.data?.role);
+  useEffect(() => (signedIn && Platform.OS === 'web' ? prefetchLaterScreens() : undefined), [signedIn]);
   if (me.isPending) {
     return (
       <Screen>

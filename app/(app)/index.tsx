@@ -99,6 +99,7 @@ export default function WorklistPage() {
             <StudyList
               studies={items}
               testID="worklist"
+              firstRows={8}
               dayOf={(s) => s.sortAt}
               aside={(s) => (
                 <View testID={`open-${s.accession}`} style={styles.open} aria-hidden>

@@ -20,18 +20,32 @@ export class ApiError extends Error {
 /** A request that has had no answer for this long counts as unreachable (a pulled cable never fails fast). */
 const requestTimeoutMs = 15_000;
 
+/**
+ * The answer to a read the page's early script (components/data/early-reads.js) started before the
+ * app ran, handed out once: the first plain GET of that path adopts it instead of asking again.
+ */
+export function takeEarlyRead(path: string): Promise<Response> | undefined {
+  const reads = typeof window !== 'undefined' ? (window as { __isobarEarlyReads?: Record<string, Promise<Response> | undefined> }).__isobarEarlyReads : undefined;
+  const read = reads?.[path];
+  if (read) delete reads[path];
+  return read;
+}
+
 /** Fetches JSON from the Isobar API on the same origin; non-2xx answers become an ApiError. */
 export async function apiFetch<T>(path: string, init: RequestInit = {}): Promise<T> {
   let response: Response;
   const abort = new AbortController();
   const timer = setTimeout(() => abort.abort(), requestTimeoutMs);
+  const early = !init.method && !init.body && !init.signal ? takeEarlyRead(path) : undefined;
   try {
-    response = await fetch(`/api${path}`, {
-      credentials: 'same-origin',
-      signal: abort.signal,
-      ...init,
-      headers: { Accept: 'application/json', ...(init.body ? { 'Content-Type': 'application/json' } : {}), ...init.headers },
-    });
+    response = early
+      ? await Promise.race([early, new Promise<never>((_, reject) => abort.signal.addEventListener('abort', () => reject(new Error('timed out'))))])
+      : await fetch(`/api${path}`, {
+          credentials: 'same-origin',
+          signal: abort.signal,
+          ...init,
+          headers: { Accept: 'application/json', ...(init.body ? { 'Content-Type': 'application/json' } : {}), ...init.headers },
+        });
   } catch {
     throw new ApiError({ type: 'about:blank', title: 'Network unavailable', status: 0, detail: 'The server could not be reached. Check the connection.' });
   } finally {

@@ -1,7 +1,8 @@
 import { keepPreviousData, useQuery } from '@tanstack/react-query';
 import { apiFetch } from './api';
 import type { StudySummary } from './study-query';
-import type { StartBasis, TurnaroundFigures, TurnaroundQuery } from '../../shared/turnaround/figures';
+import type { StartBasis, TurnaroundFigures } from '../../shared/turnaround/figures';
+import type { TurnaroundQuery } from '../../shared/turnaround/query';
 
 export interface WaitingStudy extends StudySummary {
   /** When its clock started: procedure end, else start, else when the record was opened. */

@@ -2,7 +2,7 @@ import type { DataSource } from 'typeorm';
 import { auditContext, recordAudit } from '../audit/audit';
 import type { ApiRoute } from '../http/routes';
 import { parseOrThrow } from '../http/validate';
-import { turnaroundQuerySchema } from '../../shared/turnaround/figures';
+import { turnaroundQuerySchema } from '../../shared/turnaround/query';
 import { turnaroundFigures } from '../turnaround/figures';
 import { writeTurnaroundCsv } from '../turnaround/export';
 import { turnaroundSettings } from '../turnaround/settings';

@@ -12,8 +12,8 @@ import {
   type QualityFigures,
   type StartBasis,
   type TurnaroundFigures,
-  type TurnaroundQuery,
 } from '../../shared/turnaround/figures';
+import type { TurnaroundQuery } from '../../shared/turnaround/query';
 import type { TurnaroundSettings } from './settings';
 
 /**

@@ -1,9 +1,8 @@
-import { z } from 'zod';
 import type { Endotype } from '../physiology/types';
 
 /**
  * The chief's turnaround and quality figures: what the server computes for a date range and the
- * screen draws. Pure data and the query's schema, no framework.
+ * screen draws. Pure data, no framework (the range's schema is in ./query).
  */
 
 /** The intervals, each from one step to the next (hours). A step not yet taken leaves it open. */
@@ -96,22 +95,6 @@ export interface TurnaroundFigures {
   physicians: PhysicianFigures[];
   quality: QualityFigures;
 }
-
-/** The longest range one request may cover. */
-export const maxRangeDays = 5 * 366;
-
-const day = (error: string) => z.iso.date({ error });
-const daysBetween = (a: string, b: string) => (Date.parse(`${b}T00:00:00Z`) - Date.parse(`${a}T00:00:00Z`)) / 86_400_000;
-
-/** A range of days in the lab's time zone, both ends included. */
-export const turnaroundQuerySchema = z
-  .object({
-    from: day('from must be a date (YYYY-MM-DD).'),
-    to: day('to must be a date (YYYY-MM-DD).'),
-  })
-  .refine((q) => q.from <= q.to, { path: ['to'], error: 'to must be on or after from.' })
-  .refine((q) => daysBetween(q.from, q.to) < maxRangeDays, { path: ['to'], error: 'The range may cover at most five years.' });
-export type TurnaroundQuery = z.infer<typeof turnaroundQuerySchema>;
 
 /**
  * Drift bins of 0.01 from 0.95 to 1.05, with open tails; the window is common practice (0.98–1.02).

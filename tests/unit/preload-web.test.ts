@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { routeChunks } from '../../scripts/preload-web';
+import { layoutFiles, routeChunks } from '../../scripts/preload-web';
 
 // The route context module as the web export writes it (shape copied from a production build).
 const entry =
@@ -24,5 +24,13 @@ describe('route chunks named in the entry bundle', () => {
   it('gives up (no preloads) when a route is missing or the bundle has another shape', () => {
     expect(routeChunks(entry, ['./_layout.tsx', './(app)/turnaround.tsx'])).toBeNull();
     expect(routeChunks('__d(function(){},0,[]);', ['./_layout.tsx'])).toBeNull();
+  });
+});
+
+describe('layout files named in the entry bundle', () => {
+  it('lists every layout of the route context once', () => {
+    const nested = entry.replace('"./(app)/admin.tsx"', '"./(app)/studies/[id]/_layout.tsx"');
+    expect(layoutFiles(nested)).toEqual(['./(app)/_layout.tsx', './(app)/studies/[id]/_layout.tsx', './_layout.tsx']);
+    expect(layoutFiles('__d(function(){},0,[]);')).toEqual([]);
   });
 });

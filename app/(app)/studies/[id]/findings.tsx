@@ -1,35 +1,4 @@
-import { MultiChoiceField, NumberField, TextField } from '../../../../components/form/fields';
-import { optionsOf } from '../../../../components/form/options';
-import { FieldRow, SectionCard } from '../../../../components/study/section-card';
-import { complicationLabel } from '../../../../shared/study/vocabulary';
+import { laterScreen } from '../../../../components/later-screens';
 
-/** Findings & plan: complications, radiation and contrast, and the physician's impression and plan. */
-export default function FindingsSection() {
-  return (
-    <>
-      <SectionCard title="Procedure" testID="card-procedure">
-        <MultiChoiceField
-          name="findings.complicationKinds"
-          label="Complications"
-          hint="Choose “None” when there were none: an empty answer is read as not recorded."
-          options={optionsOf(complicationLabel)}
-          exclusive="none"
-          testID="findings-complication-kinds"
-        />
-        <TextField name="findings.complications" label="Complication details" multiline testID="findings-complications" />
-        <FieldRow>
-          <NumberField name="findings.contrastMl" label="Contrast" unit="mL" testID="findings-contrast" />
-          <NumberField name="findings.fluoroscopyMinutes" label="Fluoroscopy time" unit="min" testID="findings-fluoroscopy" />
-        </FieldRow>
-        <FieldRow>
-          <NumberField name="findings.airKermaMGy" label="Air kerma" unit="mGy" testID="findings-air-kerma" />
-          <NumberField name="findings.doseAreaProductGyCm2" label="Dose-area product" unit="Gy·cm²" testID="findings-dap" />
-        </FieldRow>
-      </SectionCard>
-      <SectionCard title="Impression and plan" testID="card-impression">
-        <TextField name="findings.impression" label="Impression" multiline testID="findings-impression" />
-        <TextField name="findings.plan" label="Plan" multiline testID="findings-plan" />
-      </SectionCard>
-    </>
-  );
-}
+/** A study's findings: the screen is in components/screens, the chunk of every screen after the first. */
+export default laterScreen('studyFindings');
