@@ -209,20 +209,26 @@ describe('GET /api/turnaround/figures', () => {
     // Cuba leaves summer time on the first Sunday of November at 0:00 standard time (01:00 summer time
     // back to 00:00), so on Sunday 1 November 2026 local midnight happens twice: 04:00 and 05:00 UTC
     // (IANA time zone database, northamerica, Rule Cuba [memory]). 04:30 UTC is 00:30 on 1 November there.
-    await seedStudy({ operatorId: promptId, endedAt: at('2026-11-01T04:30:00Z'), signedAfterH: 2, vessels: [visualOnly()] });
     const settings = { ...(await turnaroundSettings(db)), timeZone: 'America/Havana' };
+    // Other tests share this database and may have studies near these days: compare before and after.
+    const count = async (from: string, to: string) => (await turnaroundFigures(db, { from, to }, settings)).studies;
+    const weeksOf = async () => Object.fromEntries((await turnaroundFigures(db, { from: '2026-10-19', to: '2026-11-08' }, settings)).weeks.map((w) => [w.week, w.studies]));
+    const before = { nov1: await count('2026-11-01', '2026-11-01'), oct31: await count('2026-10-31', '2026-10-31'), weeks: await weeksOf() };
+    await seedStudy({ operatorId: promptId, endedAt: at('2026-11-01T04:30:00Z'), signedAfterH: 2, vessels: [visualOnly()] });
     const [{ first, later }] = await db.query(
       `SELECT (timestamptz '2026-11-01T04:30:00Z' AT TIME ZONE 'America/Havana')::text AS first, (timestamp '2026-11-01 00:00' AT TIME ZONE 'America/Havana')::text AS later`,
     );
     expect(first).toBe('2026-11-01 00:30:00');
     expect(later).toBe('2026-11-01 05:00:00+00'); // the later midnight, which alone would leave the study in 31 October
-    const day = await turnaroundFigures(db, { from: '2026-11-01', to: '2026-11-01' }, settings);
-    expect(day.studies).toBe(1);
-    expect((await turnaroundFigures(db, { from: '2026-10-31', to: '2026-10-31' }, settings)).studies).toBe(0);
+    expect(await count('2026-11-01', '2026-11-01')).toBe(before.nov1 + 1);
+    expect(await count('2026-10-31', '2026-10-31')).toBe(before.oct31);
     const range = await turnaroundFigures(db, { from: '2026-10-26', to: '2026-11-08' }, settings);
     // Sunday 1 November 2026 closes ISO week 2026-W44 (26 October – 1 November).
-    expect(range.weeks.map((w) => [w.week, w.weekStart, w.studies])).toEqual([['2026-W44', '2026-10-26', 1]]);
-    expect(range.quality.endotypes.map((m) => m.month)).toEqual(['2026-11']);
+    expect(range.weeks.find((w) => w.week === '2026-W44')).toMatchObject({ weekStart: '2026-10-26' });
+    const after = await weeksOf();
+    expect(after['2026-W44']).toBe((before.weeks['2026-W44'] ?? 0) + 1);
+    expect(after['2026-W43'] ?? 0).toBe(before.weeks['2026-W43'] ?? 0);
+    expect(range.quality.endotypes.map((m) => m.month)).toContain('2026-11');
   });
 
   it('records each request for the figures with the range and the studies counted', async () => {
