@@ -1,6 +1,7 @@
 import type { DataSource, EntityManager } from 'typeorm';
 import { labelOfAction, type AuditFilters, type AuditOutcomeCode, type AuditTrailItem, type AuditTrailPage } from '../../shared/audit/trail';
 import { bigintIdPattern, decodeKeysetCursor, encodeKeysetCursor, type KeysetCursor } from '../db/keyset-cursor';
+import { uuidPattern } from '../../shared/uuid';
 import { recordAudit, type AuditEntry } from './audit';
 
 type Db = DataSource | EntityManager;
@@ -29,7 +30,6 @@ type Db = DataSource | EntityManager;
  */
 const MAX_KEYS = { users: 200, studies: 5000 } as const;
 
-const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 const UUID_SQL = `'^[0-9a-fA-F]{8}-[0-9a-fA-F]{4}-[0-9a-fA-F]{4}-[0-9a-fA-F]{4}-[0-9a-fA-F]{12}$'`;
 const DAY = /^\d{4}-\d{2}-\d{2}$/;
 
@@ -84,7 +84,7 @@ function studySelect(f: AuditFilters, p: Param): string | null {
   if (!f.patient && !f.study) return null;
   const where: string[] = [];
   if (f.study) {
-    if (UUID.test(f.study)) where.push(`s.id = ${p(f.study.toLowerCase())}::uuid`);
+    if (uuidPattern.test(f.study)) where.push(`s.id = ${p(f.study.toLowerCase())}::uuid`);
     else {
       const accession = p(f.study);
       where.push(`s.accession IN (${accession}, upper(${accession}))`);
@@ -101,7 +101,7 @@ function studySelect(f: AuditFilters, p: Param): string | null {
 /** People named by the user filter: by id, or by part of the name or the start of the e-mail. */
 function userSelect(f: AuditFilters, p: Param): string | null {
   if (!f.user) return null;
-  if (UUID.test(f.user)) return `SELECT ${p(f.user.toLowerCase())}::uuid AS id`;
+  if (uuidPattern.test(f.user)) return `SELECT ${p(f.user.toLowerCase())}::uuid AS id`;
   const text = p(escapeLike(f.user));
   return `SELECT u.id FROM app_user u WHERE u.display_name ILIKE '%' || ${text} || '%' OR u.email ILIKE ${text} || '%'`;
 }
@@ -111,7 +111,7 @@ const keySelects = { studies: studySelect, users: userSelect } as const;
 async function resolveKeys(db: Db, f: AuditFilters): Promise<Resolved> {
   const resolved: Resolved = {};
   // A study id alone needs no look-up (and its events outlive the study's row).
-  if (f.study && UUID.test(f.study) && !f.patient) resolved.studies = { ids: [f.study.toLowerCase()] };
+  if (f.study && uuidPattern.test(f.study) && !f.patient) resolved.studies = { ids: [f.study.toLowerCase()] };
   for (const name of ['studies', 'users'] as const) {
     if (resolved[name]) continue;
     const params: unknown[] = [];

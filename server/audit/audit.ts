@@ -101,7 +101,10 @@ export async function recordStudyReadOnce(db: DataSource | EntityManager, entry:
 }
 
 /** The actor and address of the current request, for an audit entry. */
-export function auditContext(req: Request): Pick<AuditEntry, 'actorUserId' | 'actorName' | 'actorRole' | 'clientAddress'> {
+/** Who did something, as every audit row records it. */
+export type AuditActor = Pick<AuditEntry, 'actorUserId' | 'actorName' | 'actorRole' | 'clientAddress'>;
+
+export function auditContext(req: Request): AuditActor {
   const auth = req.session?.auth;
   return {
     actorUserId: auth?.userId ?? null,

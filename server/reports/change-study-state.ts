@@ -2,7 +2,7 @@ import type { DataSource, EntityManager } from 'typeorm';
 import type { Role } from '../../shared/auth/permissions';
 import { checkTransition, transitions, type StudyAction } from '../../shared/study/state-machine';
 import type { StudyState } from '../../shared/study/vocabulary';
-import { recordAudit, type AuditEntry } from '../audit/audit';
+import { recordAudit, type AuditActor } from '../audit/audit';
 import { NotFoundError } from '../http/problem';
 import { loadStudy, StaleVersionError, writeSections } from '../studies/repository';
 import type { StudyRecord } from '../../shared/study/schema';
@@ -18,7 +18,7 @@ export interface ChangeStateRequest {
   studyVersion: number;
   reason?: string | null;
   role: Role | null;
-  audit: Pick<AuditEntry, 'actorUserId' | 'actorName' | 'actorRole' | 'clientAddress'>;
+  audit: AuditActor;
 }
 
 /**

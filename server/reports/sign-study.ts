@@ -4,7 +4,7 @@ import type { DataSource, EntityManager } from 'typeorm';
 import { checkCompleteness } from '../../shared/report/completeness';
 import type { Role } from '../../shared/auth/permissions';
 import { checkTransition } from '../../shared/study/state-machine';
-import { auditColumns, auditParameters, type AuditEntry } from '../audit/audit';
+import { auditColumns, auditParameters, type AuditActor, type AuditEntry } from '../audit/audit';
 import { ReportVersion } from '../db/entities/report-version.entity';
 import { BadRequestError, NotFoundError } from '../http/problem';
 import { ATTESTATION, prepareSignedReport } from '../report';
@@ -33,7 +33,7 @@ export interface SignStudyRequest {
   /** An addendum keeps the amended version's thresholds unless the physician chooses those now in force. */
   thresholds?: ThresholdsChoice;
   hospital: { name: string; lab: string } | null;
-  audit: Pick<AuditEntry, 'actorUserId' | 'actorName' | 'actorRole' | 'clientAddress'>;
+  audit: AuditActor;
   /** The signing time; the transaction's clock by default. */
   now?: Date;
 }

@@ -2,9 +2,8 @@ import type { Request } from 'express';
 import type { DataSource } from 'typeorm';
 import { addCodeSchema, codeExportQuerySchema, codingQueueQuerySchema, completeReviewSchema, decideCodeSchema } from '../../shared/coding/review';
 import { auditContext } from '../audit/audit';
-import { NotFoundError } from '../http/problem';
 import type { ApiRoute } from '../http/routes';
-import { parseOrThrow } from '../http/validate';
+import { parseOrThrow, uuidParam } from '../http/validate';
 import type { CodingActor } from '../coding/actor';
 import { addCode } from '../coding/add-code';
 import { completeReview } from '../coding/complete-review';
@@ -14,12 +13,7 @@ import { exportReviewedCodes } from '../coding/export-reviewed-codes';
 import { readReview } from '../coding/read-review';
 import { searchCodingQueue } from '../coding/search-queue';
 
-const uuidPattern = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
-const studyIdOf = (req: Request) => {
-  const id = String(req.params.id);
-  if (!uuidPattern.test(id)) throw new NotFoundError('No study has this id.');
-  return id;
-};
+const studyIdOf = (req: Request) => uuidParam(req, 'study');
 const actorOf = (req: Request): CodingActor => {
   const ctx = auditContext(req);
   return { ...ctx, actorUserId: ctx.actorUserId!, actorName: ctx.actorName ?? 'Unknown user' };

@@ -3,19 +3,13 @@ import type { DataSource } from 'typeorm';
 import { z } from 'zod';
 import { deliveryStatuses } from '../../shared/delivery/status';
 import { auditContext } from '../audit/audit';
-import { NotFoundError } from '../http/problem';
 import type { ApiRoute } from '../http/routes';
-import { parseOrThrow } from '../http/validate';
+import { parseOrThrow, uuidParam } from '../http/validate';
 import { searchDeliveries } from '../ehr/search-deliveries';
 import { readStudyDeliveries } from '../ehr/read-study-deliveries';
 import { requestResend } from '../ehr/request-resend';
 
-const uuidPattern = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
-const idOf = (req: Request) => {
-  const id = String(req.params.id);
-  if (!uuidPattern.test(id)) throw new NotFoundError('No record has this id.');
-  return id;
-};
+const idOf = (req: Request) => uuidParam(req);
 
 const listQuerySchema = z.object({
   status: z.enum(deliveryStatuses, { error: `status must be one of: ${deliveryStatuses.join(', ')}.` }).optional(),

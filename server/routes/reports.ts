@@ -3,9 +3,8 @@ import type { DataSource } from 'typeorm';
 import { z } from 'zod';
 import { auditContext } from '../audit/audit';
 import type { Config } from '../config';
-import { NotFoundError } from '../http/problem';
 import type { ApiRoute } from '../http/routes';
-import { parseOrThrow } from '../http/validate';
+import { parseOrThrow, uuidParam } from '../http/validate';
 import { changeStudyState } from '../reports/change-study-state';
 import { exportReportPdf } from '../reports/export-report-pdf';
 import { ReauthenticationRequiredError } from '../reports/errors';
@@ -14,12 +13,7 @@ import { readReportPreview } from '../reports/read-report-preview';
 import { signStudy } from '../reports/sign-study';
 import { SIGNING_SLOTS, slots } from '../reports/signing-slots';
 
-const uuidPattern = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
-const idParam = (req: Request, what = 'study') => {
-  const id = String(req.params.id);
-  if (!uuidPattern.test(id)) throw new NotFoundError(`No ${what} has this id.`);
-  return id;
-};
+const idParam = (req: Request, what = 'study') => uuidParam(req, what);
 
 const reasonSchema = z.string({ error: 'reason must be text.' }).trim().max(1000, { error: 'The reason is too long (at most 1000 characters).' }).nullable().optional();
 const versionSchema = z.number({ error: 'version is required: the study version you previewed.' }).int().min(1);

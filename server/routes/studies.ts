@@ -9,9 +9,8 @@ import { removeAttachment } from '../attachments/remove-attachment';
 import { acceptUpload, type StreamedFile } from '../attachments/upload';
 import type { AttachmentStorage } from '../attachments/storage';
 import type { Config } from '../config';
-import { NotFoundError } from '../http/problem';
 import type { ApiRoute } from '../http/routes';
-import { parseOrThrow } from '../http/validate';
+import { parseOrThrow, uuidParam } from '../http/validate';
 import { analyseStudy } from '../studies/analyse-study';
 import { editStudy } from '../studies/edit-study';
 import { listOperators } from '../studies/list-operators';
@@ -19,12 +18,7 @@ import { openStudy } from '../studies/open-study';
 import { readStudy } from '../studies/read-study';
 import { worklistPageJson } from '../studies/worklist';
 
-const uuidPattern = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
-const idOf = (req: Request) => {
-  const id = String(req.params.id);
-  if (!uuidPattern.test(id)) throw new NotFoundError('No record has this id.');
-  return id;
-};
+const idOf = (req: Request) => uuidParam(req);
 
 export function studyRoutes({ config, dataSource, storage }: { config: Config; dataSource: DataSource; storage: AttachmentStorage }): ApiRoute[] {
   const upload = acceptUpload(storage, config.attachments.maxBytes, config.attachments.maxConcurrentUploads ?? 4);

@@ -1,6 +1,6 @@
 import type { DataSource, EntityManager } from 'typeorm';
 import type { LabSettings, LabSettingsForm, LabSettingsView } from '../../shared/settings/lab-settings';
-import { recordAudit, type AuditEntry } from '../audit/audit';
+import { recordAudit, type AuditActor } from '../audit/audit';
 import { loadConfig } from '../config';
 import { BadRequestError, HttpError, NotFoundError } from '../http/problem';
 import { REPORT_TEMPLATE_VERSION } from '../report/template-version';
@@ -118,7 +118,6 @@ class StaleSettingsError extends HttpError {
   }
 }
 
-type Actor = Pick<AuditEntry, 'actorUserId' | 'actorName' | 'actorRole' | 'clientAddress'>;
 
 /** What changed, as `{ field: { before, after } }`; unchanged fields are left out. */
 function changes<T extends Record<string, unknown>>(before: T, after: T): Record<string, { before: unknown; after: unknown }> {
@@ -128,7 +127,7 @@ function changes<T extends Record<string, unknown>>(before: T, after: T): Record
 }
 
 /** Saves the lab's settings (not the template version, which is activated on its own) with one audit row: before and after. */
-export async function updateLabSettings(dataSource: DataSource, input: { settings: LabSettingsForm; version: number }, actor: Actor, defaults?: ConfiguredDefaults): Promise<LabSettingsView> {
+export async function updateLabSettings(dataSource: DataSource, input: { settings: LabSettingsForm; version: number }, actor: AuditActor, defaults?: ConfiguredDefaults): Promise<LabSettingsView> {
   return dataSource.transaction(async (manager) => {
     const row = await readRow(manager, true);
     if (row.version !== input.version) throw new StaleSettingsError(await labSettingsView(manager, defaults));
@@ -158,7 +157,7 @@ export async function updateLabSettings(dataSource: DataSource, input: { setting
 }
 
 /** Makes a shipped template version the one new signatures (and previews) use; signed versions keep theirs. */
-export async function activateTemplateVersion(dataSource: DataSource, version: string, actor: Actor, defaults?: ConfiguredDefaults): Promise<LabSettingsView> {
+export async function activateTemplateVersion(dataSource: DataSource, version: string, actor: AuditActor, defaults?: ConfiguredDefaults): Promise<LabSettingsView> {
   if (!isShippedTemplateVersion(version)) throw new NotFoundError(`No report template version "${version}" is shipped.`);
   return dataSource.transaction(async (manager) => {
     const row = await readRow(manager, true);

@@ -10,7 +10,7 @@ import {
   type ThresholdSetRequest,
   type ThresholdSetSummary,
 } from '../../shared/settings/threshold-ranges';
-import { recordAudit, type AuditEntry } from '../audit/audit';
+import { recordAudit, type AuditActor } from '../audit/audit';
 import { ThresholdSet } from '../db/entities/measurement.entities';
 import { BadRequestError } from '../http/problem';
 import { labSettings } from './lab-settings';
@@ -49,7 +49,6 @@ export function thresholdsInForceOf(set: Pick<ThresholdSet, 'id' | 'effectiveFro
   return { overrides, values: resolveThresholds(overrides), setId: set.id, effectiveFrom: set.effectiveFrom.toISOString() };
 }
 
-type Actor = Pick<AuditEntry, 'actorUserId' | 'actorName' | 'actorRole' | 'clientAddress'>;
 
 const managerOf = (db: DataSource | EntityManager): EntityManager => ('manager' in db ? db.manager : db);
 
@@ -97,7 +96,7 @@ const GRACE_MS = 60_000;
  * is refused, because reports signed since then were judged by the set in force when they were
  * signed and stay so. One audit row carries every value before and after.
  */
-export async function createThresholdSet(dataSource: DataSource, request: ThresholdSetRequest, actor: Actor): Promise<{ set: ThresholdSetSummary; overview: ThresholdOverview }> {
+export async function createThresholdSet(dataSource: DataSource, request: ThresholdSetRequest, actor: AuditActor): Promise<{ set: ThresholdSetSummary; overview: ThresholdOverview }> {
   return dataSource.transaction(async (manager) => {
     // One change at a time, so "the set in force at that date" cannot move under a concurrent change.
     await manager.query(`SELECT pg_advisory_xact_lock(hashtext('threshold_set'))`);

@@ -12,7 +12,7 @@ import { emptyDetails, emptyFindings, emptySetup } from '../../shared/study/sche
 import type { StudyState } from '../../shared/study/vocabulary';
 import { isEditable } from '../../shared/study/state-machine';
 import { HttpError, NotFoundError, UnprocessableError } from '../http/problem';
-import { recordAudit, type AuditEntry } from '../audit/audit';
+import { recordAudit, type AuditActor } from '../audit/audit';
 import { assignments, codingColumns, detailsColumns, findingsColumns, readSection, selectList, setupColumns, vasoreactivityColumns } from './columns';
 import { replaceInterventions } from '../coding/study-interventions';
 import { lockStudy } from './lock-study';
@@ -246,7 +246,7 @@ export async function lockEditableStudy(db: EntityManager, id: string): Promise<
 }
 
 /** Who did it, for the audit row written inside the change's transaction. */
-export type AuditActor = Pick<AuditEntry, 'actorUserId' | 'actorName' | 'actorRole' | 'clientAddress'>;
+export type { AuditActor } from '../audit/audit';
 
 /** A readable, unique accession when the hospital's system has not supplied one. */
 async function nextAccession(db: EntityManager, at: Date): Promise<string> {

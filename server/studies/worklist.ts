@@ -2,11 +2,9 @@ import type { DataSource } from 'typeorm';
 import type { WorklistItem, WorklistPage, WorklistQuery } from '../../shared/study/worklist';
 import { decodeKeysetCursor, encodeKeysetCursor, uuidIdPattern } from '../db/keyset-cursor';
 import { parseSearch, type ParsedSearch } from '../../shared/study/search';
-import type { AuditEntry } from '../audit/audit';
+import type { AuditActor } from '../audit/audit';
 import { preparedQuery } from '../db/prepared';
 
-/** Who is shown a page, for its audit row. */
-export type WorklistViewer = Pick<AuditEntry, 'actorUserId' | 'actorName' | 'actorRole' | 'clientAddress'>;
 
 /**
  * One study as lists show it (worklist, coding queue, turnaround): `SELECT … FROM` a study with its
@@ -124,7 +122,7 @@ const isoInstant = (column: string) => `to_char(${column} AT TIME ZONE 'UTC', 'Y
  * rows of 15 columns (dates included) into objects only to serialise them again cost more of the
  * server's time per request than the rest of the route together (scripts/bench-load.ts).
  */
-export async function worklistPageJson(db: DataSource, query: WorklistQuery, viewer: WorklistViewer): Promise<string> {
+export async function worklistPageJson(db: DataSource, query: WorklistQuery, viewer: AuditActor): Promise<string> {
   const { pageSql, values, param } = await pageStatement(db, query);
   // One row more than the page is read (to know whether a next page exists); the audit row names
   // only the studies shown. A data-modifying CTE runs exactly once, whether or not it is read.

@@ -14,7 +14,6 @@ export interface Ctx {
   restAbnormal: Record<'restingPdPa' | 'nhprWholeCycle' | 'nhprDiastolic' | 'nhprFullCycleMinimum', string>;
   imrAbnormal: string;
   cfrAbnormal: string;
-  obstructedTail: string;
   /** Qualifiers (no final stop) for an index in a vessel where no microvascular finding is drawn. */
   notUsedObstructed: string;
   notUsedUnexcluded: string;
@@ -47,7 +46,6 @@ function build(t: Thresholds): Ctx {
     },
     imrAbnormal: ` is at or above the ${cutPlain(t.imr)} cut-off (${cite(t, 'imr')}) — raised microvascular resistance`,
     cfrAbnormal: ` is below the ${cutRatio(t.cfr)} cut-off (${cite(t, 'cfr')}) — impaired coronary flow reserve`,
-    obstructedTail: ' — in a vessel with an obstructive stenosis, so not used for the microvascular finding.',
     notUsedObstructed: ' — in a vessel with an obstructive stenosis, so not used for the microvascular finding',
     notUsedUnexcluded: ' — obstruction was not excluded in this vessel, so not used for the microvascular finding',
     cfrBorderline: ` is in the borderline band ${cutRatio(t.cfr)}–${cutRatio(t.cfrBorderline)} (${cite(t, 'cfr')} uses ${cutRatio(t.cfr)}, ${cite(t, 'cfrBorderline')} uses ${cutRatio(t.cfrBorderline)}) — not enough on its own for microvascular dysfunction.`,

@@ -20,7 +20,6 @@ export {
   endotypeLabelWithoutAngina,
   endotypeName,
   microvascularLabel,
-  decisionSupportCaution,
 } from './labels';
 export { roundForDisplay, formatQuantity, formatWithUnit, formatAgreeing, displayDecimals, displayUnit, type QuantityKind } from './precision';
 export {

@@ -76,6 +76,3 @@ export const microvascularLabel: Readonly<Record<NonNullable<Findings['microvasc
   'raised-imr': 'Raised microvascular resistance, CFR not low',
 });
 
-/** The standing caution beside every computed value and suggestion. */
-export const decisionSupportCaution =
-  'Computed values and classifications are decision support. A licensed clinician verifies them against the tracings and the clinical picture, under local policy, before they are acted on or signed.';
