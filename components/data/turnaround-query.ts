@@ -1,25 +1,8 @@
 import { keepPreviousData, useQuery } from '@tanstack/react-query';
 import { apiFetch } from './api';
-import type { StudySummary } from './study-query';
-import type { StartBasis, TurnaroundFigures } from '../../shared/turnaround/figures';
+import type { TurnaroundFigures } from '../../shared/turnaround/figures';
+import type { UnsignedList } from '../../shared/turnaround/unsigned';
 import type { TurnaroundQuery } from '../../shared/turnaround/query';
-
-export interface WaitingStudy extends StudySummary {
-  /** When its clock started: procedure end, else start, else when the record was opened. */
-  startedAt: string;
-  startBasis: StartBasis;
-  ownerId: string | null;
-  ownerName: string | null;
-  hoursWaiting: number;
-  overdue: boolean;
-}
-
-export interface AwaitingSignature {
-  targetHours: number;
-  total: number;
-  overdueTotal: number;
-  items: WaitingStudy[];
-}
 
 const turnaroundKeys = {
   all: ['turnaround'] as const,
@@ -31,7 +14,7 @@ const turnaroundKeys = {
 export const useAwaitingSignatureQuery = () =>
   useQuery({
     queryKey: turnaroundKeys.awaitingSignature(),
-    queryFn: () => apiFetch<AwaitingSignature>('/turnaround/awaiting-signature'),
+    queryFn: () => apiFetch<UnsignedList>('/turnaround/awaiting-signature'),
   });
 
 const figuresPath = (range: TurnaroundQuery) => `/turnaround/figures?${new URLSearchParams({ from: range.from, to: range.to }).toString()}`;

@@ -8,7 +8,8 @@ import { Text } from '../ui/text';
 import { RadioChips } from '../ui/radio-chips';
 import { formatHours } from '../format';
 import { color, font, radius, space, touchTarget, type } from '../theme';
-import { exportHref, useAwaitingSignatureQuery, useTurnaroundFigures, type WaitingStudy } from '../data/turnaround-query';
+import { exportHref, useAwaitingSignatureQuery, useTurnaroundFigures } from '../data/turnaround-query';
+import type { UnsignedStudy } from '../../shared/turnaround/unsigned';
 import { startBasisLabel } from '../../shared/turnaround/figures';
 import { turnaroundQuerySchema, type TurnaroundQuery } from '../../shared/turnaround/query';
 import { presetRange, rangePresetLabel, rangePresets, type RangePreset } from '../../shared/turnaround/range';
@@ -144,7 +145,7 @@ function Unsigned() {
   );
 }
 
-function WaitBadge({ w }: { w: WaitingStudy }) {
+function WaitBadge({ w }: { w: UnsignedStudy }) {
   const owner = w.ownerName ?? 'no physician recorded';
   return (
     <View style={{ gap: space.xxs }} testID={`wait-${w.accession}`}>

@@ -8,17 +8,19 @@ import { summarySelect, toSummary } from './worklist';
 const awaitingListLimit = 100;
 
 /**
- * The studies awaiting signature, oldest first (by the end of the procedure, else the record's list
- * time): those `operatorId` operated, and all of them.
+ * The studies awaiting signature, oldest first by the turnaround clock (`study_turnaround.started_at`:
+ * procedure end, else start, else when the record was opened — the chief's lists use the same one):
+ * those `operatorId` operated, and all of them.
  */
 export async function listAwaitingSignature(dataSource: DataSource, operatorId: string, now = new Date()): Promise<AwaitingSignature> {
   // The lab's own signature target (admin settings), the same the turnaround page judges by.
   const { signatureTargetHours: targetHours } = await labSettings(dataSource);
   const list = async (mineOnly: boolean): Promise<AwaitingList> => {
     const rows: Record<string, never>[] = await dataSource.query(
-      `SELECT q.*, coalesce(q.procedure_ended_at, q.sort_at) AS waiting_since, count(*) OVER () AS total
+      `SELECT q.*, t.started_at AS waiting_since, count(*) OVER () AS total
        FROM (${summarySelect} WHERE s.state = 'awaiting-signature'${mineOnly ? ' AND s.operator_id = $2' : ''}) q
-       ORDER BY waiting_since ASC, q.id
+       JOIN study_turnaround t ON t.study_id = q.id
+       ORDER BY t.started_at ASC, q.id
        LIMIT $1`,
       mineOnly ? [awaitingListLimit, operatorId] : [awaitingListLimit],
     );

@@ -1,35 +1,15 @@
 import type { DataSource } from 'typeorm';
 import type { StartBasis } from '../../shared/turnaround/figures';
+import type { UnsignedList, UnsignedStudy } from '../../shared/turnaround/unsigned';
 import { waitingSince } from '../../shared/turnaround/overdue';
-import type { WorklistItem } from '../../shared/study/worklist';
 import { summarySelect, toSummary } from '../studies/worklist';
 import type { TurnaroundSettings } from './settings';
-
-export interface AwaitingStudy extends WorklistItem {
-  /** When its clock started: procedure end, else start, else when the record was opened. */
-  startedAt: string;
-  startBasis: StartBasis;
-  /** Who owns the signature: the study's operator. */
-  ownerId: string | null;
-  ownerName: string | null;
-  hoursWaiting: number;
-  overdue: boolean;
-}
-
-export interface AwaitingSignature {
-  targetHours: number;
-  /** Every unsigned study, and how many of them are past the target. */
-  total: number;
-  overdueTotal: number;
-  /** The longest-waiting first, at most `limit`. */
-  items: AwaitingStudy[];
-}
 
 /**
  * Unsigned studies, longest waiting first, with their age against the signature target. A study
  * with no procedure time counts from when its record was opened, so none is left out.
  */
-export async function awaitingSignature(db: DataSource, settings: TurnaroundSettings, now = new Date(), limit = 200): Promise<AwaitingSignature> {
+export async function awaitingSignature(db: DataSource, settings: TurnaroundSettings, now = new Date(), limit = 200): Promise<UnsignedList> {
   const [waiting, [counts]] = await Promise.all([
     db.query(
       `SELECT t.study_id, t.started_at, t.start_basis, t.physician_id, u.display_name AS owner_name
@@ -46,7 +26,7 @@ export async function awaitingSignature(db: DataSource, settings: TurnaroundSett
   const ids = waiting.map((w: { study_id: string }) => w.study_id);
   const rows: Record<string, never>[] = ids.length ? await db.query(`${summarySelect} WHERE s.id = ANY($1)`, [ids]) : [];
   const byId = new Map(rows.map((r) => [r.id as string, r]));
-  const items: AwaitingStudy[] = [];
+  const items: UnsignedStudy[] = [];
   for (const w of waiting as { study_id: string; started_at: Date; start_basis: StartBasis; physician_id: string | null; owner_name: string | null }[]) {
     const row = byId.get(w.study_id);
     if (!row) continue; // signed between the two reads

@@ -6,7 +6,7 @@ import type { WorklistItem } from './worklist';
  * its record was opened while the end is not recorded.
  */
 export interface AwaitingStudy extends WorklistItem {
-  /** ISO 8601: the end of the procedure, else the record's list time. */
+  /** ISO 8601: the turnaround clock's start — procedure end, else start, else when the record was opened. */
   waitingSince: string;
   hoursWaiting: number;
   /** Past the lab's signature target. */
