@@ -103,6 +103,11 @@ export function studyRoutes({ config, dataSource, storage }: { config: Config; d
       access: 'study:write',
       summary: 'Attach a console printout or export (PDF, PNG, JPEG, CSV; type checked from the content)',
       handlers: [
+        // A path that names no study is refused before any byte is stored.
+        (req, _res, next) => {
+          idOf(req);
+          next();
+        },
         upload,
         async (req, res) => {
           const id = idOf(req);

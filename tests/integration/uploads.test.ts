@@ -65,6 +65,19 @@ describe('size limit', () => {
   });
 });
 
+describe('a path that names no study', () => {
+  it('is refused before any byte is stored: 404, nothing left in the incoming folder (common practice)', async () => {
+    const incoming = path.join(attachmentDir, 'incoming');
+    const left = () => (fs.existsSync(incoming) ? fs.readdirSync(incoming) : []);
+    const before = left().length;
+    const res = await upload('not-a-study', png, 'x.png');
+    expect(res.status).toBe(404);
+    expect(res.headers['content-type']).toMatch(/^application\/problem\+json/);
+    await new Promise((r) => setTimeout(r, 200));
+    expect(left().length).toBe(before);
+  });
+});
+
 describe('names', () => {
   it('refuses a PNG named .html or .exe, and names a PNG without an extension .png', async () => {
     const study = await newStudy();
