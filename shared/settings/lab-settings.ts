@@ -20,8 +20,9 @@ export function isTimeZone(name: string): boolean {
 export const templateVersionPattern = /^v\d{1,4}$/;
 
 /** "isobar@hospital.example" or "Cath lab reports <isobar@hospital.example>" (RFC 5322 name-addr, simplified). */
-// One address only: no comma or semicolon in the name, which would add a second sender.
-const mailbox = /^(?:[^<>\r\n",;]{1,100} )?<?[A-Za-z0-9._%+-]+@[A-Za-z0-9.-]+(?:\.[A-Za-z]{2,})?>?$/;
+// One address only: no comma, semicolon or colon in the name, which would add a second sender or
+// turn the name into a group.
+const mailbox = /^(?:[^<>\r\n",;:]{1,100} )?<?[A-Za-z0-9._%+-]+@[A-Za-z0-9.-]+(?:\.[A-Za-z]{2,})?>?$/;
 const bracketsBalanced = (s: string) => s.includes('<') === s.includes('>') && (!s.includes('<') || s.trim().endsWith('>'));
 
 export const labSettingsFormSchema = z.strictObject(

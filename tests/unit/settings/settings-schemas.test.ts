@@ -85,6 +85,8 @@ describe('lab settings schema', () => {
     // RFC 5322 §3.4: a comma separates mailboxes — one sender only, so none in the name.
     [{ mailFrom: 'evil@attacker.example, Lab <isobar@h.example>' }, ['/mailFrom']],
     [{ mailFrom: 'Lab; x <isobar@h.example>' }, ['/mailFrom']],
+    // RFC 5322 §3.4: "display-name:" opens a group of addresses — none in a sender's name.
+    [{ mailFrom: 'Bcc: x@evil.example <isobar@h.example>' }, ['/mailFrom']],
     [{ colour: 'blue' }, ['/']],
   ])('%j → errors at %j', (change, expected) => {
     expect(pointers(labSettingsFormSchema.safeParse({ ...ok, ...change }))).toEqual(expected);
