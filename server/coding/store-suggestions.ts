@@ -46,7 +46,7 @@ function suggestFromSnapshot(snapshot: unknown, analysis: unknown, timeZone = 'U
  * one. If what coding depends on (the engine's input) is unchanged, the review in progress (or
  * completed) stays as it is; otherwise the new set takes over and the study goes back to "to code".
  */
-export async function storeSuggestions(sql: Sql, reportVersionId: string): Promise<StoredSuggestions> {
+export async function storeSuggestions(sql: Sql, reportVersionId: string, known: { timeZone?: string } = {}): Promise<StoredSuggestions> {
   const [version] = await sql(
     `SELECT id, study_id, version_no, snapshot, analysis, signed_at FROM report_version WHERE id = $1`,
     [reportVersionId],
@@ -58,7 +58,7 @@ export async function storeSuggestions(sql: Sql, reportVersionId: string): Promi
   const [existing] = await sql(`SELECT id FROM code_suggestion_set WHERE report_version_id = $1`, [reportVersionId]);
   if (existing) return { setId: existing.id, created: false, queued: false, codes: 0 };
 
-  const { timeZone } = await labSettings(auditTarget(sql));
+  const timeZone = known.timeZone ?? (await labSettings(auditTarget(sql))).timeZone;
   const { input, result, failure } = suggestFromSnapshot(version.snapshot, version.analysis, timeZone);
   const [previous] = await sql(
     `SELECT id, input FROM code_suggestion_set WHERE study_id = $1 AND version_no < $2 ORDER BY version_no DESC LIMIT 1`,
@@ -81,11 +81,18 @@ export async function storeSuggestions(sql: Sql, reportVersionId: string): Promi
     ],
   );
   const codes = result?.codes ?? [];
-  for (const [position, c] of codes.entries()) {
+  if (codes.length > 0) {
+    // Every line in one statement: signing waits on this inside its transaction.
     await sql(
       `INSERT INTO code_line (set_id, position, origin, system, code, units, modifiers, rule_id, rationale, description, add_on, code_set, source)
-       VALUES ($1, $2, 'suggested', $3, $4, $5, $6, $7, $8, $9, $10, $11, $12)`,
-      [set.id, position, c.system, c.code, c.units, c.modifiers, c.ruleId, c.rationale, c.description, c.addOn, c.codeSet, c.source],
+       SELECT $1, l.position, 'suggested', l.system, l.code, l.units, ARRAY(SELECT m FROM jsonb_array_elements_text(l.modifiers) WITH ORDINALITY AS x(m, n) ORDER BY n), l.rule_id, l.rationale, l.description, l.add_on, l.code_set, l.source
+       FROM jsonb_to_recordset($2::jsonb) AS l(position int, system text, code text, units int, modifiers jsonb, rule_id text, rationale text, description text, add_on boolean, code_set text, source text)`,
+      [
+        set.id,
+        JSON.stringify(
+          codes.map((c, position) => ({ position, system: c.system, code: c.code, units: c.units, modifiers: c.modifiers, rule_id: c.ruleId, rationale: c.rationale, description: c.description, add_on: c.addOn, code_set: c.codeSet, source: c.source })),
+        ),
+      ],
     );
   }
 

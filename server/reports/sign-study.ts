@@ -161,7 +161,7 @@ export async function signStudy(dataSource: DataSource, req: SignStudyRequest): 
     });
     step('store');
     // The code suggestions with their rule ids, and the study on the coding queue, in this transaction.
-    await storeSuggestions(sqlOf(manager), version.id);
+    await storeSuggestions(sqlOf(manager), version.id, { timeZone: context.settings.timeZone });
     step('codes');
     return summariseVersion(version);
   });
