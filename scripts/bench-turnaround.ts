@@ -8,7 +8,7 @@ import type { DataSource } from 'typeorm';
 import { createDataSource } from '../server/db/data-source';
 import { prepareDatabase } from '../server/cli/prepare-database';
 import { figuresQueries, figuresSettings, turnaroundFigures } from '../server/turnaround/figures';
-import { turnaroundSettings } from '../server/turnaround/settings';
+import { labSettings } from '../server/settings/lab-settings';
 import { signIn, startStack, usernameOf } from '../tests/support/stack';
 import { summary, timeRequests } from './bench-timing';
 
@@ -156,7 +156,7 @@ async function main(): Promise<void> {
   const from = new Date(today.getTime() - 364 * 86_400_000).toISOString().slice(0, 10);
   const to = today.toISOString().slice(0, 10);
   const query = { from, to };
-  const settings = await turnaroundSettings(ds);
+  const settings = await labSettings(ds);
   const stack = await startStack(ds);
   let failed = false;
   try {

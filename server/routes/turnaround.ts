@@ -5,7 +5,7 @@ import { parseOrThrow } from '../http/validate';
 import { turnaroundQuerySchema } from '../../shared/turnaround/query';
 import { turnaroundFigures } from '../turnaround/figures';
 import { writeTurnaroundCsv } from '../turnaround/export';
-import { turnaroundSettings } from '../turnaround/settings';
+import { labSettings } from '../settings/lab-settings';
 
 /** The chief's turnaround and quality figures for a range of days, and their export. */
 export function turnaroundRoutes({ dataSource }: { dataSource: DataSource }): ApiRoute[] {
@@ -18,7 +18,7 @@ export function turnaroundRoutes({ dataSource }: { dataSource: DataSource }): Ap
       handlers: [
         async (req, res) => {
           const query = parseOrThrow(turnaroundQuerySchema, req.query, 'The turnaround range');
-          const settings = await turnaroundSettings(dataSource);
+          const settings = await labSettings(dataSource);
           // The request is recorded by the statement that counts the range (`studies` is added there).
           const figures = await turnaroundFigures(dataSource, query, settings, new Date(), {
             ...auditContext(req),
@@ -39,7 +39,7 @@ export function turnaroundRoutes({ dataSource }: { dataSource: DataSource }): Ap
       handlers: [
         async (req, res) => {
           const query = parseOrThrow(turnaroundQuerySchema, req.query, 'The turnaround range');
-          const settings = await turnaroundSettings(dataSource);
+          const settings = await labSettings(dataSource);
           await recordAudit(dataSource, { ...auditContext(req), action: 'export', entityType: 'study', outcome: 'success', detail: { view: 'turnaround', from: query.from, to: query.to } });
           res.type('text/csv; charset=utf-8').attachment(`turnaround-${query.from}-${query.to}.csv`);
           await writeTurnaroundCsv(dataSource, query, settings, res);

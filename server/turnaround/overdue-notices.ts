@@ -3,7 +3,8 @@ import type { CronItem, Task } from 'graphile-worker';
 import type { DataSource } from 'typeorm';
 import { z } from 'zod';
 import { addJob } from '../jobs/queue';
-import { turnaroundSettings, type TurnaroundSettings } from './settings';
+import type { TurnaroundSettings } from './settings';
+import { labSettings } from '../settings/lab-settings';
 
 /** How far back a study's deadline may lie and still get a notice (older ones are on the chief's list already). */
 export const noticeLookbackHours = 14 * 24;
@@ -43,7 +44,7 @@ export const overdueCronItems: CronItem[] = [
 
 export function queueOverdueNoticesTask(dataSource: DataSource): Task {
   return async () => {
-    await queueOverdueNotices(dataSource, await turnaroundSettings(dataSource));
+    await queueOverdueNotices(dataSource, await labSettings(dataSource));
   };
 }
 

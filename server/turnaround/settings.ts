@@ -1,15 +1,8 @@
-import type { DataSource, EntityManager } from 'typeorm';
-import { labSettings } from '../settings/lab-settings';
+import type { LabSettings } from '../settings/lab-settings';
 
-export interface TurnaroundSettings {
-  /** IANA time zone of the lab: weeks and day ranges are counted in it. */
-  timeZone: string;
-  /** A study unsigned this long after its start is overdue. */
-  signatureTargetHours: number;
-}
-
-/** The lab's turnaround settings, from the lab settings the admin keeps (one place for both). */
-export async function turnaroundSettings(db: DataSource | EntityManager): Promise<TurnaroundSettings> {
-  const { timeZone, signatureTargetHours } = await labSettings(db);
-  return { timeZone, signatureTargetHours };
-}
+/**
+ * What the turnaround figures need of the lab's settings (`labSettings()`, kept by the admin): the
+ * IANA time zone weeks and day ranges are counted in, and the signature target after which an
+ * unsigned study is overdue.
+ */
+export type TurnaroundSettings = Pick<LabSettings, 'timeZone' | 'signatureTargetHours'>;

@@ -7,7 +7,7 @@ import type { TurnaroundFigures } from '../../shared/turnaround/figures';
 import { startFakeSmtp } from '../../server/fakes/smtp';
 import { turnaroundFigures } from '../../server/turnaround/figures';
 import { overdueCronItems, queueOverdueNotices, queueOverdueNoticesTask, sendOverdueNoticeTask } from '../../server/turnaround/overdue-notices';
-import { turnaroundSettings } from '../../server/turnaround/settings';
+import { labSettings } from '../../server/settings/lab-settings';
 import { createDataSource } from '../../server/db/data-source';
 import { openTestDatabase } from '../support/app';
 import { turnaroundSeeder } from '../support/turnaround';
@@ -156,7 +156,7 @@ describe('GET /api/turnaround/figures', () => {
     await seedStudy({ operatorId: promptId, endedAt: at('2003-12-29T12:00:00Z'), signedAfterH: 1 });
     // Monday 5 January 2004 03:00 UTC is Sunday 4 January 22:00 in New York: ISO week 2004-W01 there, W02 in UTC.
     await seedStudy({ operatorId: promptId, endedAt: at('2004-01-05T03:00:00Z'), signedAfterH: 3 });
-    const settings = await turnaroundSettings(db);
+    const settings = await labSettings(db);
     const utc = await turnaroundFigures(db, { from: '2003-12-29', to: '2004-01-11' }, { ...settings, timeZone: 'UTC' });
     expect(utc.weeks.map((w) => [w.week, w.weekStart, w.studies])).toEqual([
       ['2004-W01', '2003-12-29', 1],
@@ -175,7 +175,7 @@ describe('GET /api/turnaround/figures', () => {
     // 03:00 UTC is Sunday 1 February 22:00 there. ISO 8601 weeks start on Monday.
     await seedStudy({ operatorId: promptId, endedAt: at('2004-02-01T02:00:00Z'), signedAfterH: 1, vessels: [visualOnly()] });
     await seedStudy({ operatorId: lateId, endedAt: at('2004-02-02T03:00:00Z'), signedAfterH: 5, vessels: [visualOnly()] });
-    const settings = await turnaroundSettings(db);
+    const settings = await labSettings(db);
     const range = { from: '2004-01-26', to: '2004-02-08' };
     const utc = await turnaroundFigures(db, range, { ...settings, timeZone: 'UTC' });
     expect(utc.weeks.map((w) => [w.week, w.weekStart, w.studies])).toEqual([
@@ -209,7 +209,7 @@ describe('GET /api/turnaround/figures', () => {
     // Cuba leaves summer time on the first Sunday of November at 0:00 standard time (01:00 summer time
     // back to 00:00), so on Sunday 1 November 2026 local midnight happens twice: 04:00 and 05:00 UTC
     // (IANA time zone database, northamerica, Rule Cuba [memory]). 04:30 UTC is 00:30 on 1 November there.
-    const settings = { ...(await turnaroundSettings(db)), timeZone: 'America/Havana' };
+    const settings = { ...(await labSettings(db)), timeZone: 'America/Havana' };
     // Other tests share this database and may have studies near these days: compare before and after.
     const count = async (from: string, to: string) => (await turnaroundFigures(db, { from, to }, settings)).studies;
     const weeksOf = async () => Object.fromEntries((await turnaroundFigures(db, { from: '2026-10-19', to: '2026-11-08' }, settings)).weeks.map((w) => [w.week, w.studies]));
@@ -301,7 +301,7 @@ describe('overdue notices', () => {
     const chief = await user(`Chief ${tag}`, 'chief', `chief-${tag.toLowerCase()}@hospital.example`);
     const study = await seedStudy({ operatorId: physician, endedAt: new Date(Date.now() - 25 * H) });
     const recent = await seedStudy({ operatorId: physician, endedAt: new Date(Date.now() - 2 * H) });
-    const settings = await turnaroundSettings(db);
+    const settings = await labSettings(db);
     const smtpPort = 20000 + Math.floor(Math.random() * 20000);
     const smtp = await startFakeSmtp({ port: smtpPort, httpPort: 0 });
     const taskList = {
