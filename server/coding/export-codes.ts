@@ -4,6 +4,7 @@ import type { Decision } from '../../shared/coding/review';
 import { loadLines } from './load-review';
 import { auditTarget, type Sql } from './sql';
 import { labSettings } from '../settings/lab-settings';
+import { localMidnight } from '../db/local-midnight';
 
 export interface ExportedCode {
   accession: string;
@@ -38,7 +39,7 @@ export async function exportCodes(sql: Sql, from: string, to: string): Promise<E
      JOIN code_suggestion_set cs ON cs.id = r.current_set_id
      JOIN study s ON s.id = r.study_id
      JOIN patient p ON p.id = s.patient_id
-     WHERE r.status = 'coded' AND r.completed_at >= ($1::date)::timestamp AT TIME ZONE $3 AND r.completed_at < ($2::date + 1)::timestamp AT TIME ZONE $3
+     WHERE r.status = 'coded' AND r.completed_at >= ${localMidnight('$1::date')} AND r.completed_at < ${localMidnight('$2::date + 1')}
      ORDER BY r.completed_at, r.study_id`,
     [from, to, timeZone],
   );
