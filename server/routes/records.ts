@@ -1,10 +1,9 @@
 import type { DataSource } from 'typeorm';
-import { auditContext, recordAudit } from '../audit/audit';
+import { auditContext } from '../audit/audit';
 import type { ApiRoute } from '../http/routes';
 import { readAwaitingSignature } from '../studies/read-awaiting-signature';
 import { listUsers } from '../users/list-users';
-import { awaitingSignature } from '../turnaround/awaiting-signature';
-import { labSettings } from '../settings/lab-settings';
+import { readUnsignedStudies } from '../turnaround/read-turnaround';
 
 /** Reads of studies awaiting signature, overdue studies and users. Every read is audited. */
 export function recordRoutes({ dataSource }: { dataSource: DataSource }): ApiRoute[] {
@@ -27,9 +26,7 @@ export function recordRoutes({ dataSource }: { dataSource: DataSource }): ApiRou
       summary: 'Studies not yet signed, longest waiting first, with their age and owner against the signature target',
       handlers: [
         async (req, res) => {
-          const waiting = await awaitingSignature(dataSource, await labSettings(dataSource));
-          await recordAudit(dataSource, { ...auditContext(req), action: 'search', entityType: 'study', outcome: 'success', detail: { view: 'awaiting-signature', returned: waiting.items.length, studyIds: waiting.items.map((s) => s.id) } });
-          res.json(waiting);
+          res.json(await readUnsignedStudies(dataSource, auditContext(req)));
         },
       ],
     },
