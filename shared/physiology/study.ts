@@ -52,8 +52,8 @@ export function analyzeValidated(data: PhysiologyOutput): PhysiologyResult {
   const { findings, reasons } = classified;
   let { endotype, headline } = classified;
   // A test that may be falsely negative does not support "no abnormality" (ESC 2024): nitrates given
-  // before acetylcholine (or at a time not recorded), or no dose reached the provocative range (100 µg
-  // left, 50 µg right). Only a test without spasm is in doubt: endothelial dysfunction stays a finding,
+  // before acetylcholine (or at a time not recorded), no dose reached the provocative range (100 µg
+  // left, 50 µg right), or only the right coronary artery was tested. Only a test without spasm is in doubt: endothelial dysfunction stays a finding,
   // but spasm is not excluded beside it. A spasm provoked despite nitrates stands.
   if ((endotype === 'no-abnormality' || classified.normalButEndothelial) && doses !== undefined && doses.length > 0 && vasoreactivity !== undefined) {
     const doubts: string[] = [];
@@ -61,6 +61,9 @@ export function analyzeValidated(data: PhysiologyOutput): PhysiologyResult {
     if (warnings.some((w) => w.code === 'nitrate-timing-unknown')) doubts.push('nitrates were given and their timing is not recorded');
     const provocative = doses.some((d) => d.micrograms >= (rightCoronaryVessels.has(d.vessel) ? PROVOCATIVE_RIGHT_UG : PROVOCATIVE_LEFT_UG));
     if (!provocative) doubts.push(`no dose reached the provocative range (${PROVOCATIVE_LEFT_UG} µg left, ${PROVOCATIVE_RIGHT_UG} µg right coronary)`);
+    // The left coronary artery is the one tested first and in full; a test of the right alone leaves
+    // the left system, where CFR and IMR are usually measured, unprovoked (common practice).
+    if (doses.every((d) => rightCoronaryVessels.has(d.vessel))) doubts.push('acetylcholine was given into the right coronary artery only, so the left coronary system was not provoked');
     if (doubts.length > 0) {
       endotype = 'inconclusive';
       if (vasoreactivity.result === 'endothelial-dysfunction') {

@@ -358,6 +358,13 @@ describe('a negative acetylcholine test that may be falsely negative does not gi
     expect(low.headline).toContain('no dose reached the provocative range');
     expect(study([normalVessel()], negativeAch).endotype).toBe('no-abnormality');
   });
+  it('a negative test of the right coronary artery alone leaves the left system unprovoked: endotype open (common practice: the left coronary artery is tested first)', () => {
+    const rightOnly = study([normalVessel()], [{ vessel: 'RCA', micrograms: 50, constrictionPct: 5, symptoms: false, ischemicEcg: false }]);
+    expect(rightOnly.endotype).toBe('inconclusive');
+    expect(rightOnly.headline).toContain('right coronary artery only');
+    const both = study([normalVessel()], [...negativeAch, { vessel: 'RCA', micrograms: 50, constrictionPct: 5, symptoms: false, ischemicEcg: false }]);
+    expect(both.endotype).toBe('no-abnormality');
+  });
 });
 
 describe('a CFR below 1 is a measurement error: shown, not judged, and decides nothing — common practice (a hyperaemic transit time longer than the resting one means swapped or faulty entries); CFR = Tmn rest / Tmn hyp (EAPCI 2020)', () => {
