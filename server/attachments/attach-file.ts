@@ -1,4 +1,5 @@
 import type { DataSource } from 'typeorm';
+import type { AttachmentSummary } from '../../shared/study/schema';
 import { recordAudit } from '../audit/audit';
 import { lockEditableStudy, type AuditActor } from '../studies/repository';
 import { cleanFileName, detectMediaTypeOfFile, nameDisagreesWith, withExtension } from './content-type';
@@ -6,14 +7,8 @@ import { NoFileError, UnsupportedFileTypeError } from './errors';
 import type { AttachmentStorage } from './storage';
 import { headOf, type StreamedFile } from './upload';
 
-export interface AttachedFile {
-  id: string;
-  fileName: string;
-  mediaType: string;
-  sizeBytes: number;
-  sha256: string;
-  uploadedAt: string;
-}
+/** The attachment as lists show it; the route adds who uploaded it. */
+export type AttachedFile = Omit<AttachmentSummary, 'uploadedBy'>;
 
 /**
  * Attaches an uploaded file (already streamed to the store's incoming folder and hashed) to an
