@@ -7,22 +7,8 @@
 source "$(dirname "$0")/lib.sh"
 cd "$ROOT"
 
-PG_PORT=${ISOBAR_TEST_PG_PORT:-54471}
-export NODE_ENV=test
-export DATABASE_URL=postgres://isobar@127.0.0.1:$PG_PORT/isobar_uploads
-export MIGRATION_DATABASE_URL=postgres://isobar_owner@127.0.0.1:$PG_PORT/isobar_uploads
 export ATTACHMENT_DIR="$DATA_DIR/uploads-bench-attachments"
-
-cleanup() {
-  rm -rf "$ATTACHMENT_DIR"
-  [[ -n ${PG_BIN:-} ]] && psql_admin "$PG_PORT" "DROP DATABASE IF EXISTS isobar_uploads WITH (FORCE)" 2>/dev/null || true
-  stop_cluster
-}
-trap cleanup EXIT
-trap 'exit 130' INT TERM
-
-ensure_node_modules
-ensure_postgres_installed
-start_cluster postgres-test "$PG_PORT"
-ensure_database "$PG_PORT" isobar_uploads fresh
+with_scratch_database isobar_uploads fresh
+# The scratch database's own cleanup, and the uploaded files with it.
+trap 'rm -rf "$ATTACHMENT_DIR"; scratch_cleanup' EXIT
 node_modules/.bin/tsx scripts/bench-uploads.ts "$@"
