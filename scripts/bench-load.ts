@@ -16,6 +16,7 @@ import express from 'express';
 import pg from 'pg';
 import { prepareDatabase } from '../server/cli/prepare-database';
 import { createDataSource } from '../server/db/data-source';
+import { median } from './bench-timing';
 import { signIn, startStack } from '../tests/support/stack';
 
 const CONNECTIONS = Number(process.env.BENCH_CONNECTIONS ?? 50);
@@ -50,7 +51,6 @@ interface Target {
   rounds: { result: autocannon.Result; serverCpuMs: number; dbCpuMs: number }[];
 }
 
-const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)];
 
 /**
  * Per target over its rounds: requests per second (mean), median p50 and p99, the worst p99, and the
