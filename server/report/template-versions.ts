@@ -12,7 +12,8 @@ import { templateVersionPattern } from '../../shared/settings/lab-settings';
 export type { TemplateVersionSummary, TemplateVersionDetail } from '../../shared/settings/admin';
 
 const root = (dir = process.cwd()) => resolve(dir, 'templates', 'report');
-const versionNumber = (v: string) => Number(v.slice(1));
+/** A template version's number ("v3" → 3). */
+export const versionNumber = (v: string) => Number(v.slice(1));
 
 function isComplete(dir: string): boolean {
   return ['html', 'text'].every((m) => existsSync(join(dir, m, 'report.hbs')));

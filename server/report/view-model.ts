@@ -24,6 +24,7 @@ import { reportKindOf, type ReportKind } from '../../shared/report/kind';
 import type { StudySections } from '../../shared/study/schema';
 import * as vocabulary from '../../shared/study/vocabulary';
 import { REPORT_TEMPLATE_VERSION } from './template-version';
+import { versionNumber } from './template-versions';
 
 export { reportKindOf, type ReportKind };
 
@@ -688,8 +689,6 @@ export function thresholdsBasisSentence(b: ThresholdsBasisInfo, tz: string): str
   return `Judged by ${set}.`;
 }
 
-/** A template version's number ("v3" → 3). */
-const templateNumber = (version: string): number => Number(version.slice(1));
 
 /** The signature block of the view (null for a preview); the rest of the view does not depend on it. */
 export function signatureView(signature: ReportSignature | null, tz: string): ReportView['signature'] {
@@ -737,7 +736,7 @@ export function buildReportView(input: ReportInput): ReportView {
   const rows = new Map(study.vessels.map((v) => [v.id, v]));
   for (const r of analysis.vessels) {
     const row = rows.get(r.id);
-    const sentences = vesselSentences(r, row, kind, afterPci, t, used, templateNumber(templateVersion) >= 3);
+    const sentences = vesselSentences(r, row, kind, afterPci, t, used, versionNumber(templateVersion) >= 3);
     if (sentences.length) interpretation.push({ vessel: vesselTitle(r.vessel, row?.segment), sentences });
   }
 
