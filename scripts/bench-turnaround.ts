@@ -89,8 +89,9 @@ async function seed(ds: DataSource): Promise<void> {
       // One signed version each: a pressure-wire vessel with thermodilution; 85% with a drift check,
       // 80% with three resting injections; the analysis's warnings and endotype as the core would store them.
       await db.query(
-        `INSERT INTO report_version (study_id, version_no, study_version, status, narrative_html, narrative_text, snapshot, analysis, thresholds,
-                                     template_version, pdf, pdf_sha256, content_sha256, signed_by, signer_name, signed_at, attestation)
+        `WITH v AS (
+         INSERT INTO report_version (study_id, version_no, study_version, status, narrative_html, narrative_text, snapshot, analysis, thresholds,
+                                     template_version, content_sha256, signed_by, signer_name, signed_at, attestation)
          SELECT s.id, 1, 1, 'final', '', '',
                 jsonb_build_object('vessels', jsonb_build_array(jsonb_build_object(
                   'vessel', 'LAD', 'restPa', 100, 'restPd', 95, 'hyperemiaPa', 90, 'hyperemiaPd', 72,
@@ -101,9 +102,11 @@ async function seed(ds: DataSource): Promise<void> {
                   'vessels', jsonb_build_array(jsonb_build_object('id', 'v1', 'warnings',
                     CASE WHEN random() < 0.2 THEN '[{"code": "drift-out-of-range"}]'::jsonb ELSE '[]'::jsonb END))),
                 '{"driftLow": 0.98, "driftHigh": 1.02, "minInjections": 3}'::jsonb,
-                'bench', '\\x00'::bytea, md5(s.id::text) || md5(s.accession), md5(s.accession) || md5(s.id::text),
+                'bench', md5(s.accession) || md5(s.id::text),
                 s.operator_id, 'Dr Bench', LEAST(now(), COALESCE(s.procedure_ended_at, s.procedure_started_at, s.created_at) + (0.5 + 60 * power(random(), 3)) * interval '1 hour'), 'bench'
-         FROM study s WHERE s.accession BETWEEN $1 AND $2 AND s.state = 'signed'`,
+         FROM study s WHERE s.accession BETWEEN $1 AND $2 AND s.state = 'signed'
+         RETURNING id)
+         INSERT INTO report_pdf (report_version_id, pdf, pdf_sha256) SELECT id, '\\x00'::bytea, md5(id::text) || md5(id::text) FROM v`,
         [...range, endotypes],
       );
       // Code review: 95% completed within days of the signature; a suggestion set for each.

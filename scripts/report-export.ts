@@ -31,8 +31,8 @@ async function main(): Promise<void> {
     await seedDemo(ds, config.oidc.issuer);
     const versions: Array<{ accession: string; version_no: number; status: string; signer_name: string; pdf: Buffer; pdf_sha256: string; content_sha256: string; narrative_html: string; narrative_text: string }> =
       await ds.query(
-        `SELECT s.accession, v.version_no, v.status, v.signer_name, v.pdf, v.pdf_sha256, v.content_sha256, v.narrative_html, v.narrative_text
-         FROM report_version v JOIN study s ON s.id = v.study_id ORDER BY s.accession, v.version_no`,
+        `SELECT s.accession, v.version_no, v.status, v.signer_name, f.pdf, f.pdf_sha256, v.content_sha256, v.narrative_html, v.narrative_text
+         FROM report_version v JOIN study s ON s.id = v.study_id JOIN report_pdf f ON f.report_version_id = v.id ORDER BY s.accession, v.version_no`,
       );
     if (!versions.length) throw new Error('The demo produced no signed report version.');
     mkdirSync(outDir, { recursive: true });

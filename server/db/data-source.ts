@@ -12,7 +12,7 @@ import { PatientNameSearch1764892800000 } from './migrations/1764892800000-patie
 import { EndedSessions1764979200000 } from './migrations/1764979200000-ended-sessions';
 import { StudyRecordDetails1765065600000 } from './migrations/1765065600000-study-record-details';
 import { ReportVersions1765152000000 } from './migrations/1765152000000-report-versions';
-import { ReportVersion } from './entities/report-version.entity';
+import { ReportPdf, ReportVersion } from './entities/report-version.entity';
 import { ReportDelivery } from './entities/report-delivery.entity';
 import { ReportDelivery1765324800000 } from './migrations/1765324800000-report-delivery';
 
@@ -23,9 +23,10 @@ import { CodeReview1765238400000 } from './migrations/1765238400000-code-review'
 import { Turnaround1765400000000 } from './migrations/1765400000000-turnaround';
 import { AuditSearch1765410000000 } from './migrations/1765410000000-audit-search';
 import { LabSettings1765420000000 } from './migrations/1765420000000-lab-settings';
+import { ReportPdf1765430000000 } from './migrations/1765430000000-report-pdf';
 
 /** Entities and migrations are listed, not globbed, so tsx, vitest and a bundler all see the same set. */
-const entities = [User, Patient, Study, VesselAssessment, ThermodilutionInjection, AcetylcholineDose, Attachment, ThresholdSet, ReportVersion, ReportDelivery, CoronaryIntervention, CodeSuggestionSet, CodeLine, CodeDecision, CodingReview];
+const entities = [User, Patient, Study, VesselAssessment, ThermodilutionInjection, AcetylcholineDose, Attachment, ThresholdSet, ReportVersion, ReportPdf, ReportDelivery, CoronaryIntervention, CodeSuggestionSet, CodeLine, CodeDecision, CodingReview];
 const migrations = [
   InitialSchema1764633600000,
   SessionsAndAudit1764720000000,
@@ -41,6 +42,7 @@ const migrations = [
   Turnaround1765400000000,
   AuditSearch1765410000000,
   LabSettings1765420000000,
+  ReportPdf1765430000000,
 ];
 
 /** Failing queries are logged by their SQL text and SQLSTATE only (see server/log.ts). */

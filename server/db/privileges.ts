@@ -16,9 +16,11 @@ const appendOnlyTables: Record<string, string[]> = {
   // Signed report versions: written once by the signature, never changed (a trigger refuses it too).
   report_version: [
     'id', 'study_id', 'version_no', 'study_version', 'status', 'supersedes_id', 'reason', 'narrative_html', 'narrative_text',
-    'snapshot', 'analysis', 'thresholds', 'template_version', 'pdf', 'pdf_sha256', 'content_sha256', 'signed_by',
+    'snapshot', 'analysis', 'thresholds', 'template_version', 'content_sha256', 'signed_by',
     'signer_name', 'signed_at', 'attestation', 'thresholds_basis', 'threshold_set_id',
   ],
+  // A signed version's PDF, written with the version.
+  report_pdf: ['report_version_id', 'pdf', 'pdf_sha256'],
   // Threshold sets: a change is a new set with its effective date; the sets that judged signed
   // reports stay as they were (created_at is the database's clock, so a set cannot be back-dated).
   threshold_set: ['effective_from', '"values"', 'note', 'created_by'],

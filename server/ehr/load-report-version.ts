@@ -17,11 +17,12 @@ export interface LoadedReportVersion {
 /** Reads a signed report version as it was stored; undefined when there is no such version. */
 export async function loadReportVersion(query: Query, reportVersionId: string): Promise<LoadedReportVersion | undefined> {
   const [row] = await query(
-    `SELECT rv.id, rv.study_id, rv.version_no, rv.status, rv.snapshot, rv.analysis, rv.thresholds, rv.pdf, rv.pdf_sha256,
+    `SELECT rv.id, rv.study_id, rv.version_no, rv.status, rv.snapshot, rv.analysis, rv.thresholds, pdf.pdf, pdf.pdf_sha256,
             rv.signer_name, rv.signed_at, prev.version_no AS previous_version_no, operator.display_name AS operator_name,
             study.accession
        FROM report_version rv
        JOIN study ON study.id = rv.study_id
+       JOIN report_pdf pdf ON pdf.report_version_id = rv.id
        LEFT JOIN report_version prev ON prev.id = rv.supersedes_id
        LEFT JOIN app_user operator ON operator.id::text = rv.snapshot -> 'details' ->> 'operatorId'
       WHERE rv.id = $1`,

@@ -68,12 +68,15 @@ export function previewReport(input: Omit<ReportInput, 'signature'>): { view: Re
   return { view, narrative: renderNarrative(view) };
 }
 
+/** A signed report before its PDF is rendered. */
+export type SignedReportText = Omit<PreparedReport, 'pdf' | 'pdfSha256'>;
+
 /**
- * Everything a signed version stores, built from the same input as the preview: the content and its
- * fingerprint, then the signed narrative and PDF that print it. Pure apart from the time the PDF takes;
- * the same input gives byte-identical output.
+ * Everything a signed version stores but its PDF, built from the same input as the preview: the
+ * content and its fingerprint, then the signed view and narrative that print it. Pure; the same
+ * input gives identical output.
  */
-export async function prepareSignedReport(input: Omit<ReportInput, 'signature'>, sign: SignRequest): Promise<PreparedReport> {
+export function prepareSignedText(input: Omit<ReportInput, 'signature'>, sign: SignRequest): SignedReportText {
   // The view as previewed; the signed view differs only by its signature block (see signatureView).
   const unsigned = buildReportView({ ...input, signature: null });
   const content: SignedContent = {
@@ -97,6 +100,17 @@ export async function prepareSignedReport(input: Omit<ReportInput, 'signature'>,
   const signature = { signedBy: sign.signer.name, signedAt: sign.signedAt, reportVersion: sign.reportVersion, fingerprint: fp, amendmentReason: sign.amendmentReason ?? null };
   const view: ReportView = { ...unsigned, signature: signatureView(signature, input.timeZone ?? 'UTC') };
   const narrative = renderNarrative(view);
-  const pdf = await renderReportPdf(view);
-  return { view, narrative, htmlDocument: htmlDocument(view, narrative.html), content, fingerprint: fp, pdf, pdfSha256: sha256Hex(pdf) };
+  return { view, narrative, htmlDocument: htmlDocument(view, narrative.html), content, fingerprint: fp };
+}
+
+/** The signed view's PDF and its SHA-256. The same view gives byte-identical bytes. */
+export async function renderSignedPdf(text: SignedReportText): Promise<{ pdf: Buffer; pdfSha256: string }> {
+  const pdf = await renderReportPdf(text.view);
+  return { pdf, pdfSha256: sha256Hex(pdf) };
+}
+
+/** Everything a signed version stores: `prepareSignedText`, then `renderSignedPdf`. */
+export async function prepareSignedReport(input: Omit<ReportInput, 'signature'>, sign: SignRequest): Promise<PreparedReport> {
+  const text = prepareSignedText(input, sign);
+  return { ...text, ...(await renderSignedPdf(text)) };
 }

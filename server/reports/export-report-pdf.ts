@@ -1,6 +1,6 @@
 import type { DataSource } from 'typeorm';
 import { recordAudit } from '../audit/audit';
-import { ReportVersion } from '../db/entities/report-version.entity';
+import { ReportPdf } from '../db/entities/report-version.entity';
 import { RecordNotFoundError } from '../studies/errors';
 import type { AuditActor } from '../studies/repository';
 
@@ -9,13 +9,18 @@ import type { AuditActor } from '../studies/repository';
  * study's accession and the version number; the export is recorded in the audit trail.
  */
 export async function exportReportPdf(dataSource: DataSource, reportVersionId: string, actor: AuditActor): Promise<{ fileName: string; pdf: Buffer; sha256: string }> {
-  const version = await dataSource.getRepository(ReportVersion).findOne({ where: { id: reportVersionId }, select: { id: true, studyId: true, versionNo: true, pdf: true, pdfSha256: true } });
-  if (!version) throw new RecordNotFoundError('No report version has this id.');
+  const file = await dataSource.getRepository(ReportPdf).findOne({
+    where: { reportVersionId },
+    relations: { version: true },
+    select: { reportVersionId: true, pdf: true, pdfSha256: true, version: { id: true, studyId: true, versionNo: true } },
+  });
+  const version = file?.version;
+  if (!file || !version) throw new RecordNotFoundError('No report version has this id.');
   const [study] = await dataSource.query(`SELECT accession FROM study WHERE id = $1`, [version.studyId]);
   await recordAudit(dataSource, { ...actor, action: 'export', entityType: 'study', entityId: version.studyId, outcome: 'success', detail: { reportVersion: version.versionNo, format: 'pdf' } });
   return {
     fileName: `${String(study?.accession ?? 'report').replace(/[^A-Za-z0-9._-]/g, '_')}-v${version.versionNo}.pdf`,
-    pdf: version.pdf,
-    sha256: version.pdfSha256,
+    pdf: file.pdf,
+    sha256: file.pdfSha256,
   };
 }

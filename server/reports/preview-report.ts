@@ -62,7 +62,8 @@ export async function previewStudyReport(
   const versions = await dataSource.manager.find(ReportVersion, {
     where: { studyId },
     order: { versionNo: 'ASC' },
-    select: { id: true, studyId: true, versionNo: true, status: true, signedAt: true, signerName: true, pdfSha256: true, contentSha256: true },
+    relations: { pdfFile: true },
+    select: { id: true, studyId: true, versionNo: true, status: true, signedAt: true, signerName: true, contentSha256: true, pdfFile: { reportVersionId: true, pdfSha256: true } },
   });
   return {
     studyId,
@@ -73,7 +74,7 @@ export async function previewStudyReport(
     text: narrative.text,
     document: reportDocument(view),
     completeness: checkCompleteness(record),
-    versions: versions.map(summariseVersion),
+    versions: versions.map((v) => summariseVersion(v, v.pdfFile?.pdfSha256 ?? '')),
     actions: availableActions(record.state, role),
     thresholds: { ...input.thresholdsBasis, choice: thresholdChoice },
   };

@@ -7,12 +7,11 @@ import { checkTransition } from '../../shared/study/state-machine';
 import { auditColumns, auditParameters, type AuditActor, type AuditEntry } from '../audit/audit';
 import { ReportVersion } from '../db/entities/report-version.entity';
 import { BadRequestError, NotFoundError } from '../http/problem';
-import { ATTESTATION, prepareSignedReport } from '../report';
+import { ATTESTATION, prepareSignedText, renderSignedPdf } from '../report';
 import { loadStudy, StaleVersionError } from '../studies/repository';
 import { IncompleteStudyError, TransitionRefusedError } from './errors';
 import { jobsOnReportSigned } from './on-report-signed';
-import { sqlOf } from '../coding/sql';
-import { storeSuggestions } from '../coding/store-suggestions';
+import { codingBeforeJoin, codingBeforeOf, codingBeforeSql, planSuggestions, suggestionWrites, type CodingBefore, type PlannedSuggestions } from '../coding/store-suggestions';
 import { chooseThresholds, reportInputOf, type AmendedThresholds, type ThresholdsChoice } from './report-input';
 import { unstoredSettings } from '../settings/lab-settings';
 import { thresholdsInForceOf, type ThresholdsInForce } from '../settings/thresholds';
@@ -49,14 +48,14 @@ export interface SignedVersionSummary {
   contentSha256: string;
 }
 
-export const summariseVersion = (v: ReportVersion): SignedVersionSummary => ({
+export const summariseVersion = (v: Omit<ReportVersion, 'pdfFile'>, pdfSha256: string): SignedVersionSummary => ({
   id: v.id,
   studyId: v.studyId,
   versionNo: v.versionNo,
   status: v.status,
   signedAt: v.signedAt.toISOString(),
   signerName: v.signerName,
-  pdfSha256: v.pdfSha256,
+  pdfSha256,
   contentSha256: v.contentSha256,
 });
 
@@ -65,9 +64,10 @@ export const summariseVersion = (v: ReportVersion): SignedVersionSummary => ({
  * the milliseconds of its steps: `begin` (opening the transaction), `load` (locking the study's row
  * and reading its record), `context` (the previous version, the transaction's time, the thresholds in
  * force, the lab's settings and the operator's name, in one statement), `analysis` (the physiology
- * analysis for the report), `report` (view, narrative, canonical content and its SHA-256, and the PDF
- * with its SHA-256: the PDF alone is timed by `pdfRenderedChannel`), `store` (the one statement that
- * writes the version, the study's state, the audit row, the delivery row and the jobs) and `commit`.
+ * analysis for the report), `report` (view, narrative, canonical content and its SHA-256), `codes` (the
+ * code suggestions and what they change), `pdf` (the PDF and its SHA-256, while PostgreSQL writes the
+ * rest: the PDF alone is timed by `pdfRenderedChannel`), `store` (waiting for that statement after the
+ * PDF), `store-pdf` (the PDF's row) and `commit`.
  */
 export const signStepsChannel = diagnosticsChannel.channel('isobar:sign-steps');
 
@@ -112,7 +112,7 @@ export async function signStudy(dataSource: DataSource, req: SignStudyRequest): 
     const input = reportInputOf(record, req.hospital, thresholds, context.settings, context.operatorName);
     step('analysis');
     const versionNo = (previous?.versionNo ?? 0) + 1;
-    const prepared = await prepareSignedReport(input, {
+    const text = prepareSignedText(input, {
       signer: { id: req.signer.userId, name: req.signer.displayName },
       signedAt: signedAt.toISOString(),
       reportVersion: versionNo,
@@ -128,23 +128,30 @@ export async function signStudy(dataSource: DataSource, req: SignStudyRequest): 
       status: previous ? 'amended' : 'final',
       supersedesId: previous?.id ?? null,
       reason: addendum ? (req.reason ?? null) : null,
-      narrativeHtml: prepared.htmlDocument,
-      narrativeText: prepared.narrative.text,
-      snapshot: prepared.content.record,
-      analysis: prepared.content.analysis,
-      thresholds: prepared.content.thresholds,
-      templateVersion: prepared.content.templateVersion,
+      narrativeHtml: text.htmlDocument,
+      narrativeText: text.narrative.text,
+      snapshot: text.content.record,
+      analysis: text.content.analysis,
+      thresholds: text.content.thresholds,
+      templateVersion: text.content.templateVersion,
       thresholdsBasis: input.thresholdsBasis.basis,
       thresholdSetId: input.thresholdsBasis.setId,
-      pdf: prepared.pdf,
-      pdfSha256: prepared.pdfSha256,
-      contentSha256: prepared.fingerprint,
+      contentSha256: text.fingerprint,
       signedBy: req.signer.userId,
       signerName: req.signer.displayName,
       signedAt,
-      attestation: prepared.content.attestation ?? ATTESTATION,
+      attestation: text.content.attestation ?? ATTESTATION,
     };
-    await storeSignature(manager, version, addendum ? 'amended' : 'signed', {
+    // The code suggestions with their rule ids, and the study on the coding queue, in this transaction.
+    const coding = planSuggestions(
+      { id: version.id, studyId: version.studyId, versionNo, snapshot: version.snapshot, analysis: version.analysis, signedAt },
+      context.coding,
+      context.settings.timeZone,
+    );
+    step('codes');
+    // The version and everything that follows from it are sent now and written by PostgreSQL while
+    // this process renders the PDF (the one step that needs neither); the PDF's row comes after.
+    const stored = storeSignature(manager, version, addendum ? 'amended' : 'signed', coding, {
       ...req.audit,
       action: addendum ? 'sign-addendum' : 'sign',
       entityType: 'study',
@@ -159,11 +166,15 @@ export async function signStudy(dataSource: DataSource, req: SignStudyRequest): 
         thresholds: { basis: input.thresholdsBasis.basis, thresholdSetId: input.thresholdsBasis.setId, ...(addendum ? { choice: req.thresholds ?? 'original' } : {}) },
       },
     });
+    stored.catch(() => undefined); // awaited below, where a failure is thrown
+    await new Promise<void>((resolve) => setImmediate(resolve)); // the statement leaves before the PDF's CPU work starts
+    const { pdf, pdfSha256 } = await renderSignedPdf(text);
+    step('pdf');
+    await stored;
     step('store');
-    // The code suggestions with their rule ids, and the study on the coding queue, in this transaction.
-    await storeSuggestions(sqlOf(manager), version.id, { timeZone: context.settings.timeZone });
-    step('codes');
-    return summariseVersion(version);
+    await manager.query(`INSERT INTO report_pdf (report_version_id, pdf, pdf_sha256) VALUES ($1::uuid, $2::bytea, $3)`, [version.id, pdf, pdfSha256]);
+    step('store-pdf');
+    return summariseVersion(version, pdfSha256);
   });
   if (timed) {
     step('commit');
@@ -181,11 +192,14 @@ interface SigningContext {
   inForce: ThresholdsInForce;
   settings: { templateVersion: string; timeZone: string };
   operatorName: string | null;
+  /** The study's coding before this version (its review row locked). */
+  coding: CodingBefore;
 }
 
 /**
  * The previous version, the transaction's time, the thresholds in force at the signing time (`at`,
- * else the transaction's time), the lab's settings and the operator's name, in one round trip.
+ * else the transaction's time), the lab's settings, the operator's name and the study's coding so far
+ * (its review row locked), in one round trip.
  */
 async function signingContext(manager: EntityManager, studyId: string, at: Date | null, operatorId: string | null): Promise<SigningContext> {
   const [row] = await manager.query(
@@ -194,11 +208,13 @@ async function signingContext(manager: EntityManager, studyId: string, at: Date 
             (SELECT effective_from FROM threshold_set WHERE id = prev.threshold_set_id) AS prev_set_effective_from,
             ts.id AS set_id, ts.effective_from AS set_effective_from, ts.values AS set_values,
             l.time_zone, l.template_version,
-            (SELECT display_name FROM app_user WHERE id = $3::uuid) AS operator_name
+            (SELECT display_name FROM app_user WHERE id = $3::uuid) AS operator_name,
+            ${codingBeforeSql('$1::uuid', '2147483647')}
      FROM (SELECT 1) AS one
      LEFT JOIN LATERAL (SELECT id, version_no, thresholds, threshold_set_id FROM report_version WHERE study_id = $1 ORDER BY version_no DESC LIMIT 1) prev ON true
      LEFT JOIN LATERAL (SELECT id, effective_from, values FROM threshold_set WHERE effective_from <= COALESCE($2::timestamptz, now()) ORDER BY effective_from DESC, id DESC LIMIT 1) ts ON true
-     LEFT JOIN lab_settings l ON l.id = 1`,
+     LEFT JOIN lab_settings l ON l.id = 1
+     ${codingBeforeJoin('$1::uuid')}`,
     [studyId, at, operatorId],
   );
   return {
@@ -210,42 +226,44 @@ async function signingContext(manager: EntityManager, studyId: string, at: Date 
     inForce: thresholdsInForceOf(row.set_id === null ? null : { id: row.set_id, effectiveFrom: row.set_effective_from, values: row.set_values }),
     settings: { templateVersion: row.template_version ?? unstoredSettings.template_version, timeZone: row.time_zone ?? unstoredSettings.time_zone },
     operatorName: row.operator_name ?? null,
+    coding: codingBeforeOf(row),
   };
 }
 
 /** A report version as stored (the row of `report_version`). */
-type StoredVersion = Omit<ReportVersion, 'study' | 'signer'>;
+type StoredVersion = Omit<ReportVersion, 'study' | 'signer' | 'pdfFile'>;
 
 /**
  * Writes a signature in one statement: the immutable version, the study's new state and version, the
- * audit row, the "queued" delivery row and the jobs that follow (`jobsOnReportSigned`). PostgreSQL runs
- * every part of it or none; the statement-level triggers (turnaround) run after it as before.
+ * code suggestions and the coding queue, the audit rows, the "queued" delivery row and the jobs that
+ * follow (`jobsOnReportSigned`, one call of the queue's `add_jobs`). PostgreSQL runs every part of it or
+ * none; the statement-level triggers (turnaround) run after it as before. The PDF's row follows it.
  */
-async function storeSignature(manager: EntityManager, v: StoredVersion, studyState: 'signed' | 'amended', audit: AuditEntry): Promise<void> {
+async function storeSignature(manager: EntityManager, v: StoredVersion, studyState: 'signed' | 'amended', coding: PlannedSuggestions, audit: AuditEntry): Promise<void> {
   const params: unknown[] = [];
   const p = (value: unknown, cast = '') => `$${params.push(value)}${cast}`;
   const versionValues = [
     p(v.id, '::uuid'), p(v.studyId, '::uuid'), p(v.versionNo, '::int'), p(v.studyVersion, '::int'), p(v.status), p(v.supersedesId, '::uuid'), p(v.reason),
     p(v.narrativeHtml), p(v.narrativeText), p(JSON.stringify(v.snapshot), '::jsonb'), p(JSON.stringify(v.analysis), '::jsonb'), p(JSON.stringify(v.thresholds), '::jsonb'),
-    p(v.templateVersion), p(v.thresholdsBasis), p(v.thresholdSetId, '::int'), p(v.pdf, '::bytea'), p(v.pdfSha256), p(v.contentSha256),
+    p(v.templateVersion), p(v.thresholdsBasis), p(v.thresholdSetId, '::int'), p(v.contentSha256),
     p(v.signedBy, '::uuid'), p(v.signerName), p(v.signedAt, '::timestamptz'), p(v.attestation),
   ].join(', ');
   const moved = `UPDATE study SET state = ${p(studyState)}, version = version + 1, updated_at = now() WHERE id = ${p(v.studyId, '::uuid')}`;
-  const audited = `INSERT INTO audit_event (${auditColumns}) VALUES (${auditParameters(audit).map((x) => p(x)).join(', ')})`;
+  const auditRows = [audit, coding.audit].map((entry) => `(${auditParameters(entry).map((x) => p(x)).join(', ')})`).join(', ');
   const jobs = jobsOnReportSigned(v.id)
-    .map((j) => `graphile_worker.add_job(identifier => ${p(j.name, '::text')}, payload => ${p(JSON.stringify(j.payload), '::json')}, max_attempts => ${p(j.options.maxAttempts, '::int')}, job_key => ${p(j.options.jobKey, '::text')})`)
-    .map((call, i) => `(${call}).id::text AS job${i}`)
+    .map((j) => `ROW(${p(j.name)}, ${p(JSON.stringify(j.payload), '::json')}, NULL, NULL, ${p(j.options.maxAttempts, '::smallint')}, ${p(j.options.jobKey)}, NULL, NULL)::graphile_worker.job_spec`)
     .join(', ');
   const [row] = await manager.query(
     `WITH version AS (
        INSERT INTO report_version (id, study_id, version_no, study_version, status, supersedes_id, reason, narrative_html, narrative_text, snapshot, analysis, thresholds,
-                                   template_version, thresholds_basis, threshold_set_id, pdf, pdf_sha256, content_sha256, signed_by, signer_name, signed_at, attestation)
+                                   template_version, thresholds_basis, threshold_set_id, content_sha256, signed_by, signer_name, signed_at, attestation)
        VALUES (${versionValues})
        RETURNING id, study_id
      ), moved AS (${moved} RETURNING id),
-     audited AS (${audited}),
+     ${suggestionWrites(coding, p).join(', ')},
+     audited AS (INSERT INTO audit_event (${auditColumns}) VALUES ${auditRows}),
      delivery AS (INSERT INTO report_delivery (report_version_id, study_id) SELECT id, study_id FROM version ON CONFLICT (report_version_id) DO NOTHING)
-     SELECT (SELECT count(*)::int FROM moved) AS moved, ${jobs} FROM version`,
+     SELECT (SELECT count(*)::int FROM moved) AS moved, (SELECT count(*)::int FROM graphile_worker.add_jobs(ARRAY[${jobs}])) AS jobs FROM version`,
     params,
   );
   if (!row || row.moved !== 1) throw new Error('The signature was not stored: the study row was not updated.');

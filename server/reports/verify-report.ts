@@ -1,6 +1,6 @@
 import { createHash } from 'node:crypto';
 import type { DataSource } from 'typeorm';
-import { ReportVersion } from '../db/entities/report-version.entity';
+import { ReportPdf, ReportVersion } from '../db/entities/report-version.entity';
 
 export interface Verification {
   found: boolean;
@@ -25,7 +25,8 @@ export async function verifyReport(dataSource: DataSource, evidence: { pdf?: Buf
   let version: ReportVersion | null = null;
   if (evidence.pdf) {
     const sha = createHash('sha256').update(evidence.pdf).digest('hex');
-    version = await repo.findOne({ where: { pdfSha256: sha }, select: selectedObject });
+    const file = await dataSource.getRepository(ReportPdf).findOne({ where: { pdfSha256: sha }, relations: { version: true }, select: { reportVersionId: true, version: selectedObject } });
+    version = file?.version ?? null;
   } else if (evidence.fingerprint) {
     const fp = evidence.fingerprint.trim().toLowerCase().replace(/[\s:-]/g, '');
     if (fp.length >= 12 && fp.length <= 64 && hex.test(fp)) {

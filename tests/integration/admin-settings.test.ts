@@ -95,7 +95,7 @@ async function sign(studyId: string, body: Record<string, unknown> = {}) {
   return res;
 }
 
-const versionRow = async (id: string) => (await db.query(`SELECT * FROM report_version WHERE id = $1`, [id]))[0];
+const versionRow = async (id: string) => (await db.query(`SELECT v.*, f.pdf_sha256 FROM report_version v JOIN report_pdf f ON f.report_version_id = v.id WHERE v.id = $1`, [id]))[0];
 const cfrOf = (row: { analysis: { vessels: Array<{ cfr?: number; cfrFlag?: string }> } }) => row.analysis.vessels[0];
 
 describe('thresholds: range checks', () => {

@@ -97,10 +97,12 @@ async function insertVersion(studyId: string, versionNo: number, status: 'final'
   });
   const pdf = pdfOf(studyId, versionNo);
   const [row] = await db.query(
-    `INSERT INTO report_version (study_id, version_no, study_version, status, supersedes_id, reason, narrative_html, narrative_text, snapshot, analysis,
-                                 thresholds, template_version, pdf, pdf_sha256, content_sha256, signed_by, signer_name, signed_at, attestation)
-     VALUES ($1, $2, 1, $3, $4, $5, '<p>Invented</p>', 'Invented', $6::jsonb, $7::jsonb, $8::jsonb, 'v1', $9, $10, $11, $12, 'Dr Invented Operator', $13, 'Invented attestation')
-     RETURNING id`,
+    `WITH v AS (
+       INSERT INTO report_version (study_id, version_no, study_version, status, supersedes_id, reason, narrative_html, narrative_text, snapshot, analysis,
+                                   thresholds, template_version, content_sha256, signed_by, signer_name, signed_at, attestation)
+       VALUES ($1, $2, 1, $3, $4, $5, '<p>Invented</p>', 'Invented', $6::jsonb, $7::jsonb, $8::jsonb, 'v1', $11, $12, 'Dr Invented Operator', $13, 'Invented attestation')
+       RETURNING id)
+     INSERT INTO report_pdf (report_version_id, pdf, pdf_sha256) SELECT id, $9, $10 FROM v RETURNING report_version_id AS id`,
     [
       studyId,
       versionNo,
@@ -285,7 +287,7 @@ describe('a bundle the EHR refuses', () => {
   it('is recorded as rejected with the EHR issues, and not retried', async () => {
     const s = await signedStudy();
     // The EHR already holds a different bundle under this version's Bundle.identifier, so it refuses ours (409).
-    const row = (await db.query(`SELECT * FROM report_version WHERE id = $1`, [s.id]))[0];
+    const row = (await db.query(`SELECT * FROM report_version v JOIN report_pdf f ON f.report_version_id = v.id WHERE v.id = $1`, [s.id]))[0];
     const other = reportBundleInputOf(
       { id: row.id, studyId: row.study_id, versionNo: 1, status: 'final', snapshot: row.snapshot, analysis: row.analysis, thresholds: row.thresholds, pdf: row.pdf, pdfSha256: row.pdf_sha256, signerName: row.signer_name, signedAt: row.signed_at },
       { identifierSystems, operatorName: 'Dr Invented Operator' },

@@ -53,7 +53,7 @@ describe('the demo reaches its states through the real hand-off and signing code
   it('signed studies have one signed version with a PDF; the amended one has two, the second superseding the first', async () => {
     const versions = async (accession: string) =>
       db.query(
-        `SELECT v.version_no, v.status, v.supersedes_id IS NOT NULL AS supersedes, length(v.pdf) > 1000 AS has_pdf, v.reason
+        `SELECT v.version_no, v.status, v.supersedes_id IS NOT NULL AS supersedes, (SELECT length(f.pdf) > 1000 FROM report_pdf f WHERE f.report_version_id = v.id) AS has_pdf, v.reason
          FROM report_version v JOIN study s ON s.id = v.study_id WHERE s.accession = $1 ORDER BY v.version_no`,
         [accession],
       );

@@ -111,9 +111,9 @@ describe('report preview and signing', () => {
     const deliveries = await db.query(`SELECT study_id FROM report_delivery WHERE report_version_id = $1`, [signed.body.id]);
     expect(deliveries).toEqual([{ study_id: study.id }]);
     const [stored] = await db.query(
-      `SELECT v.version_no, v.study_version, v.status, v.supersedes_id, v.pdf_sha256, v.content_sha256, v.signed_at, v.signer_name, v.attestation, v.thresholds_basis,
-              encode(sha256(v.pdf), 'hex') AS pdf_digest, s.version AS study_now
-       FROM report_version v JOIN study s ON s.id = v.study_id WHERE v.id = $1`,
+      `SELECT v.version_no, v.study_version, v.status, v.supersedes_id, f.pdf_sha256, v.content_sha256, v.signed_at, v.signer_name, v.attestation, v.thresholds_basis,
+              encode(sha256(f.pdf), 'hex') AS pdf_digest, s.version AS study_now
+       FROM report_version v JOIN study s ON s.id = v.study_id JOIN report_pdf f ON f.report_version_id = v.id WHERE v.id = $1`,
       [signed.body.id],
     );
     expect(stored).toMatchObject({ version_no: 1, study_version: preview.body.studyVersion, status: 'final', supersedes_id: null, thresholds_basis: 'in-force', study_now: preview.body.studyVersion + 1 });
@@ -187,6 +187,28 @@ describe('report preview and signing', () => {
     const v = await send('post', `/api/studies/${study.id}/sign`, physician).send({ version: study.version }).expect(201);
     await expect(db.query(`UPDATE report_version SET signer_name = 'someone else' WHERE id = $1`, [v.body.id])).rejects.toThrow(/append-only|permission denied/);
     await expect(db.query(`DELETE FROM report_version WHERE id = $1`, [v.body.id])).rejects.toThrow(/append-only|permission denied/);
+    await expect(db.query(`UPDATE report_pdf SET pdf = '\\x00' WHERE report_version_id = $1`, [v.body.id])).rejects.toThrow(/append-only|permission denied/);
+    await expect(db.query(`DELETE FROM report_pdf WHERE report_version_id = $1`, [v.body.id])).rejects.toThrow(/append-only|permission denied/);
+    const [kept] = await db.query(`SELECT encode(sha256(pdf), 'hex') = pdf_sha256 AS intact FROM report_pdf WHERE report_version_id = $1`, [v.body.id]);
+    expect(kept.intact).toBe(true);
+  });
+
+  it('a version without its PDF is refused when the transaction commits', async () => {
+    const study = await completeStudy();
+    const v = await send('post', `/api/studies/${study.id}/sign`, physician).send({ version: study.version }).expect(201);
+    const copy = db.transaction(async (m) => {
+      await m.query(
+        `INSERT INTO report_version (study_id, version_no, study_version, status, supersedes_id, narrative_html, narrative_text, snapshot, analysis, thresholds,
+                                     template_version, content_sha256, signed_by, signer_name, signed_at, attestation)
+         SELECT study_id, 2, study_version, 'amended', id, narrative_html, narrative_text, snapshot, analysis, thresholds,
+                template_version, content_sha256, signed_by, signer_name, now(), attestation
+         FROM report_version WHERE id = $1`,
+        [v.body.id],
+      );
+    });
+    await expect(copy).rejects.toThrow(/has no PDF/);
+    const versions = await db.query(`SELECT version_no FROM report_version WHERE study_id = $1`, [study.id]);
+    expect(versions).toEqual([{ version_no: 1 }]);
   });
 
   it('send-back needs a reason; a coder cannot move a study', async () => {

@@ -21,9 +21,11 @@ export async function insertReportVersion(
   const narrative = `Report of ${record.accession}, version ${versionNo}.`;
   const sha = (s: string) => createHash('sha256').update(s).digest('hex');
   const [row] = await db.query(
-    `INSERT INTO report_version (study_id, version_no, study_version, status, supersedes_id, reason, narrative_html, narrative_text, snapshot, analysis,
-                                 thresholds, template_version, pdf, pdf_sha256, content_sha256, signed_by, signer_name, signed_at, attestation)
-     VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, '{}', 'test-1', $11, $12, $13, $14, 'Test Physician', $15, 'I attest.') RETURNING id`,
+    `WITH v AS (
+       INSERT INTO report_version (study_id, version_no, study_version, status, supersedes_id, reason, narrative_html, narrative_text, snapshot, analysis,
+                                   thresholds, template_version, content_sha256, signed_by, signer_name, signed_at, attestation)
+       VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, '{}', 'test-1', $13, $14, 'Test Physician', $15, 'I attest.') RETURNING id)
+     INSERT INTO report_pdf (report_version_id, pdf, pdf_sha256) SELECT id, $11, $12 FROM v RETURNING report_version_id AS id`,
     [
       record.id,
       versionNo,

@@ -76,12 +76,15 @@ export async function cloneSignedStudy(db: DataSource, template: SignedStudy): P
     snapshot.patient.mrn = study.patient.mrn;
     snapshot.details.encounter = `ENC-${study.patient.mrn}`;
     const [inserted] = await m.query(
-      `INSERT INTO report_version (study_id, version_no, study_version, status, narrative_html, narrative_text, snapshot, analysis, thresholds,
-                                   template_version, pdf, pdf_sha256, content_sha256, signed_by, signer_name, signed_at, attestation)
-       SELECT $1, 1, 1, 'final', narrative_html, narrative_text, $2::jsonb, analysis, thresholds,
-              template_version, pdf, pdf_sha256, $3, signed_by, signer_name, now(), attestation
-         FROM report_version WHERE id = $4
-       RETURNING id`,
+      `WITH v AS (
+         INSERT INTO report_version (study_id, version_no, study_version, status, narrative_html, narrative_text, snapshot, analysis, thresholds,
+                                     template_version, content_sha256, signed_by, signer_name, signed_at, attestation)
+         SELECT $1, 1, 1, 'final', narrative_html, narrative_text, $2::jsonb, analysis, thresholds,
+                template_version, $3, signed_by, signer_name, now(), attestation
+           FROM report_version WHERE id = $4
+         RETURNING id)
+       INSERT INTO report_pdf (report_version_id, pdf, pdf_sha256) SELECT v.id, f.pdf, f.pdf_sha256 FROM v, report_pdf f WHERE f.report_version_id = $4
+       RETURNING report_version_id AS id`,
       [study.id, JSON.stringify(snapshot), createHash('sha256').update(`${study.id}/v1`).digest('hex'), template.reportVersionId],
     );
     await enqueueDelivery(m, inserted.id);

@@ -1,4 +1,4 @@
-import { Column, Entity, JoinColumn, ManyToOne, PrimaryGeneratedColumn } from 'typeorm';
+import { Column, Entity, JoinColumn, ManyToOne, OneToOne, PrimaryColumn, PrimaryGeneratedColumn, type Relation } from 'typeorm';
 import { Study } from './study.entity';
 import { User } from './user.entity';
 
@@ -30,8 +30,6 @@ export class ReportVersion {
   @Column('text', { name: 'thresholds_basis', nullable: true }) thresholdsBasis!: 'in-force' | 'original' | 'current' | null;
   /** The threshold set those values came from; null for the published defaults. */
   @Column('integer', { name: 'threshold_set_id', nullable: true }) thresholdSetId!: number | null;
-  @Column('bytea') pdf!: Buffer;
-  @Column('char', { name: 'pdf_sha256', length: 64 }) pdfSha256!: string;
   @Column('char', { name: 'content_sha256', length: 64 }) contentSha256!: string;
   @Column('uuid', { name: 'signed_by' }) signedBy!: string;
   @ManyToOne(() => User, { onDelete: 'RESTRICT' })
@@ -40,4 +38,18 @@ export class ReportVersion {
   @Column('text', { name: 'signer_name' }) signerName!: string;
   @Column('timestamptz', { name: 'signed_at' }) signedAt!: Date;
   @Column('text') attestation!: string;
+  /** Its PDF (`report_pdf`), loaded only when asked for. */
+  @OneToOne(() => ReportPdf, (p) => p.version)
+  pdfFile?: Relation<ReportPdf>;
+}
+
+/** A signed version's PDF, byte for byte as signed; written with its version, never updated or deleted. */
+@Entity({ name: 'report_pdf' })
+export class ReportPdf {
+  @PrimaryColumn('uuid', { name: 'report_version_id' }) reportVersionId!: string;
+  @OneToOne(() => ReportVersion, (v) => v.pdfFile, { onDelete: 'RESTRICT' })
+  @JoinColumn({ name: 'report_version_id' })
+  version?: ReportVersion;
+  @Column('bytea') pdf!: Buffer;
+  @Column('char', { name: 'pdf_sha256', length: 64 }) pdfSha256!: string;
 }
