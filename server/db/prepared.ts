@@ -1,6 +1,6 @@
 import { createHash } from 'node:crypto';
-import type { Pool, QueryResultRow } from 'pg';
-import type { DataSource } from 'typeorm';
+import type { Pool, PoolClient, QueryConfig, QueryResultRow } from 'pg';
+import { EntityManager, type DataSource } from 'typeorm';
 
 /** The pg pool TypeORM already holds, so hot paths need no second pool. */
 export function poolOf(dataSource: DataSource): Pool {
@@ -34,5 +34,28 @@ export async function preparedQuery<R extends QueryResultRow = Record<string, ne
   { prepare = true }: { prepare?: boolean } = {},
 ): Promise<R[]> {
   const { rows } = await poolOf(dataSource).query<R>(prepare ? { name: nameOf(text), text, values } : { text, values });
+  return rows;
+}
+
+/** A named statement for `text`: parsed and planned once per connection. */
+export const namedStatement = (text: string, values: unknown[]): QueryConfig => ({ name: nameOf(text), text, values });
+
+/**
+ * The pg connection `db` runs on: a transaction's own connection for a manager inside one (so its
+ * statements see and hold what the transaction did), else the pool. A statement sent through it goes
+ * out at once, before the caller's next line runs.
+ */
+export async function connectionOf(db: DataSource | EntityManager): Promise<Pick<PoolClient, 'query'>> {
+  if (db instanceof EntityManager) {
+    const runner = db.queryRunner;
+    if (runner && !runner.isReleased) return (await runner.connect()) as PoolClient;
+    return poolOf(db.connection);
+  }
+  return poolOf(db);
+}
+
+/** `preparedQuery` on the connection `db` runs on (see `connectionOf`): for hot statements inside transactions too. */
+export async function preparedOn<R extends QueryResultRow = Record<string, never>>(db: DataSource | EntityManager, text: string, values: unknown[]): Promise<R[]> {
+  const { rows } = await (await connectionOf(db)).query<R>(namedStatement(text, values));
   return rows;
 }

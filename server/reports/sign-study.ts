@@ -9,6 +9,8 @@ import { ReportVersion } from '../db/entities/report-version.entity';
 import { BadRequestError, NotFoundError } from '../http/problem';
 import { ATTESTATION, prepareSignedText, renderSignedPdf } from '../report';
 import { loadStudy, StaleVersionError } from '../studies/repository';
+import { connectionOf, namedStatement, preparedOn } from '../db/prepared';
+import type { PoolClient } from 'pg';
 import { IncompleteStudyError, TransitionRefusedError } from './errors';
 import { jobsOnReportSigned } from './on-report-signed';
 import { codingBeforeJoin, codingBeforeOf, codingBeforeSql, planSuggestions, suggestionWrites, type CodingBefore, type PlannedSuggestions } from '../coding/store-suggestions';
@@ -149,9 +151,10 @@ export async function signStudy(dataSource: DataSource, req: SignStudyRequest): 
       context.settings.timeZone,
     );
     step('codes');
-    // The version and everything that follows from it are sent now and written by PostgreSQL while
-    // this process renders the PDF (the one step that needs neither); the PDF's row comes after.
-    const stored = storeSignature(manager, version, addendum ? 'amended' : 'signed', coding, {
+    // The version and everything that follows from it are sent now, on the transaction's connection,
+    // and written by PostgreSQL while this process renders the PDF; the PDF's row comes after.
+    const connection = await connectionOf(manager);
+    const stored = storeSignature(connection, version, addendum ? 'amended' : 'signed', coding, {
       ...req.audit,
       action: addendum ? 'sign-addendum' : 'sign',
       entityType: 'study',
@@ -167,12 +170,11 @@ export async function signStudy(dataSource: DataSource, req: SignStudyRequest): 
       },
     });
     stored.catch(() => undefined); // awaited below, where a failure is thrown
-    await new Promise<void>((resolve) => setImmediate(resolve)); // the statement leaves before the PDF's CPU work starts
     const { pdf, pdfSha256 } = await renderSignedPdf(text);
     step('pdf');
     await stored;
     step('store');
-    await manager.query(`INSERT INTO report_pdf (report_version_id, pdf, pdf_sha256) VALUES ($1::uuid, $2::bytea, $3)`, [version.id, pdf, pdfSha256]);
+    await connection.query(namedStatement(`INSERT INTO report_pdf (report_version_id, pdf, pdf_sha256) VALUES ($1::uuid, $2::bytea, $3)`, [version.id, pdf, pdfSha256]));
     step('store-pdf');
     return summariseVersion(version, pdfSha256);
   });
@@ -202,7 +204,8 @@ interface SigningContext {
  * (its review row locked), in one round trip.
  */
 async function signingContext(manager: EntityManager, studyId: string, at: Date | null, operatorId: string | null): Promise<SigningContext> {
-  const [row] = await manager.query(
+  // eslint-disable-next-line @typescript-eslint/no-explicit-any
+  const [row] = await preparedOn<any>(manager,
     `SELECT now() AS now,
             prev.id AS prev_id, prev.version_no AS prev_version_no, prev.thresholds AS prev_thresholds, prev.threshold_set_id AS prev_set_id,
             (SELECT effective_from FROM threshold_set WHERE id = prev.threshold_set_id) AS prev_set_effective_from,
@@ -234,12 +237,12 @@ async function signingContext(manager: EntityManager, studyId: string, at: Date 
 type StoredVersion = Omit<ReportVersion, 'study' | 'signer' | 'pdfFile'>;
 
 /**
- * Writes a signature in one statement: the immutable version, the study's new state and version, the
+ * Writes a signature in one statement (sent at once, named so each connection plans it once): the immutable version, the study's new state and version, the
  * code suggestions and the coding queue, the audit rows, the "queued" delivery row and the jobs that
  * follow (`jobsOnReportSigned`, one call of the queue's `add_jobs`). PostgreSQL runs every part of it or
  * none; the statement-level triggers (turnaround) run after it as before. The PDF's row follows it.
  */
-async function storeSignature(manager: EntityManager, v: StoredVersion, studyState: 'signed' | 'amended', coding: PlannedSuggestions, audit: AuditEntry): Promise<void> {
+async function storeSignature(connection: Pick<PoolClient, 'query'>, v: StoredVersion, studyState: 'signed' | 'amended', coding: PlannedSuggestions, audit: AuditEntry): Promise<void> {
   const params: unknown[] = [];
   const p = (value: unknown, cast = '') => `$${params.push(value)}${cast}`;
   const versionValues = [
@@ -253,7 +256,9 @@ async function storeSignature(manager: EntityManager, v: StoredVersion, studySta
   const jobs = jobsOnReportSigned(v.id)
     .map((j) => `ROW(${p(j.name)}, ${p(JSON.stringify(j.payload), '::json')}, NULL, NULL, ${p(j.options.maxAttempts, '::smallint')}, ${p(j.options.jobKey)}, NULL, NULL)::graphile_worker.job_spec`)
     .join(', ');
-  const [row] = await manager.query(
+  // Sent on the transaction's connection before this function returns its promise, so PostgreSQL
+  // writes it while the caller renders the PDF.
+  const { rows: [row] } = await connection.query(namedStatement(
     `WITH version AS (
        INSERT INTO report_version (id, study_id, version_no, study_version, status, supersedes_id, reason, narrative_html, narrative_text, snapshot, analysis, thresholds,
                                    template_version, thresholds_basis, threshold_set_id, content_sha256, signed_by, signer_name, signed_at, attestation)
@@ -265,7 +270,7 @@ async function storeSignature(manager: EntityManager, v: StoredVersion, studySta
      delivery AS (INSERT INTO report_delivery (report_version_id, study_id) SELECT id, study_id FROM version ON CONFLICT (report_version_id) DO NOTHING)
      SELECT (SELECT count(*)::int FROM moved) AS moved, (SELECT count(*)::int FROM graphile_worker.add_jobs(ARRAY[${jobs}])) AS jobs FROM version`,
     params,
-  );
+  ));
   if (!row || row.moved !== 1) throw new Error('The signature was not stored: the study row was not updated.');
 }
 

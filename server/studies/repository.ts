@@ -16,6 +16,7 @@ import { recordAudit, type AuditActor } from '../audit/audit';
 import { assignments, codingColumns, detailsColumns, findingsColumns, readSection, selectList, setupColumns, vasoreactivityColumns } from './columns';
 import { replaceInterventions } from '../coding/study-interventions';
 import { lockStudy } from './lock-study';
+import { preparedOn } from '../db/prepared';
 import {
   AcetylcholineDose as DoseRow,
   ThermodilutionInjection as InjectionRow,
@@ -37,7 +38,9 @@ type Intervention = StudySections['coding']['interventions'][number];
 
 /** The study record; `forUpdate` also locks the study's row until the caller's transaction ends. */
 export async function loadStudy(db: Db, id: string, options: { forUpdate?: boolean } = {}): Promise<StudyRecord | null> {
-  const [row] = await db.query(
+  // A named prepared statement: every read, edit and signature of a study starts here.
+  // eslint-disable-next-line @typescript-eslint/no-explicit-any
+  const [row] = await preparedOn<any>(db,
     `SELECT s.id, s.accession, s.state, s.version, s.created_at, s.updated_at,
             p.mrn, p.family_name, p.given_name, to_char(p.birth_date, 'YYYY-MM-DD') AS birth_date, p.sex,
             ${selectList(detailsColumns, 's', 'details')}, ${selectList(setupColumns, 's', 'setup')}, ${selectList(findingsColumns, 's', 'findings')},
@@ -82,7 +85,8 @@ interface StudyParts {
  * attachments' summaries, in one statement: each as a JSON array in its stored order.
  */
 async function loadStudyParts(db: Db, id: string): Promise<StudyParts> {
-  const [row] = await db.query(
+  // eslint-disable-next-line @typescript-eslint/no-explicit-any
+  const [row] = await preparedOn<any>(db,
     `SELECT
        (SELECT COALESCE(json_agg(json_build_object(
                  'id', v.id, 'vessel', v.vessel, 'segment', v.segment, 'visualStenosisPct', v.visual_stenosis_pct, 'restPa', v.rest_pa, 'restPd', v.rest_pd,
