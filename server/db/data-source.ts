@@ -23,9 +23,10 @@ import { CodeReview1765238400000 } from './migrations/1765238400000-code-review'
 import { Turnaround1765400000000 } from './migrations/1765400000000-turnaround';
 import { AuditSearch1765410000000 } from './migrations/1765410000000-audit-search';
 import { LabSettings1765420000000 } from './migrations/1765420000000-lab-settings';
+import { LabSettingsRecord } from './entities/lab-settings.entity';
 
 /** Entities and migrations are listed, not globbed, so tsx, vitest and a bundler all see the same set. */
-const entities = [User, Patient, Study, VesselAssessment, ThermodilutionInjection, AcetylcholineDose, Attachment, ThresholdSet, ReportVersion, ReportDelivery, CoronaryIntervention, CodeSuggestionSet, CodeLine, CodeDecision, CodingReview];
+const entities = [User, Patient, Study, VesselAssessment, ThermodilutionInjection, AcetylcholineDose, Attachment, ThresholdSet, ReportVersion, ReportDelivery, CoronaryIntervention, CodeSuggestionSet, CodeLine, CodeDecision, CodingReview, LabSettingsRecord];
 const migrations = [
   InitialSchema1764633600000,
   SessionsAndAudit1764720000000,
