@@ -40,7 +40,7 @@ type Intervention = StudySections['coding']['interventions'][number];
 
 /** The study record; `forUpdate` also locks the study's row until the caller's transaction ends. */
 export async function loadStudy(db: Db, id: string, options: { forUpdate?: boolean } = {}): Promise<StudyRecord | null> {
-  // SQL: read on every save and signature; the sections' float8 reads and aliases are shared with columns.ts.
+  // SQL kept: read on every save, preview and signature; the row with its patient in one statement, numbers cast to float8 there.
   const [row] = await db.query(
     `SELECT s.id, s.accession, s.state, s.version, s.created_at, s.updated_at,
             p.mrn, p.family_name, p.given_name, to_char(p.birth_date, 'YYYY-MM-DD') AS birth_date, p.sex,
@@ -86,7 +86,7 @@ interface StudyParts {
  * attachments' summaries, in one statement: each as a JSON array in its stored order.
  */
 async function loadStudyParts(db: Db, id: string): Promise<StudyParts> {
-  // SQL: JSON aggregation of five row sets into one round trip, on every save and signature.
+  // SQL kept: five row sets aggregated as JSON in one round trip, on every save, preview and signature.
   const [row] = await db.query(
     `SELECT
        (SELECT COALESCE(json_agg(json_build_object(
