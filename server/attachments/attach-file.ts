@@ -1,5 +1,6 @@
 import type { DataSource } from 'typeorm';
 import type { AttachmentSummary } from '../../shared/study/schema';
+import { Attachment } from '../db/entities/measurement.entities';
 import { recordAudit } from '../audit/audit';
 import { lockEditableStudy, type AuditActor } from '../studies/repository';
 import { cleanFileName, detectMediaTypeOfFile, nameDisagreesWith, withExtension } from './content-type';
@@ -41,24 +42,30 @@ export async function attachFile(
     const fileName = withExtension(given, mediaType);
     const stored = await storage.adopt(file.path);
     adopted = true;
-    let saved: { id: string; uploaded_at: Date };
+    let saved: Pick<Attachment, 'id' | 'uploadedAt'>;
     try {
       saved = await dataSource.transaction(async (db) => {
         await lockEditableStudy(db, studyId);
-        const [row] = await db.query(
-          `INSERT INTO attachment (study_id, file_name, media_type, size_bytes, sha256, storage_key, uploaded_by)
-           VALUES ($1, $2, $3, $4, $5, $6, $7) RETURNING id, uploaded_at`,
-          [studyId, fileName, mediaType, file.size, file.sha256, stored.key, uploadedBy],
-        );
+        const { generatedMaps } = await db.insert(Attachment, {
+          studyId,
+          fileName,
+          mediaType,
+          sizeBytes: String(file.size),
+          sha256: file.sha256,
+          storageKey: stored.key,
+          uploadedBy,
+        });
+        // The id and upload time the database gave the row (RETURNING).
+        const row = generatedMaps[0] as Pick<Attachment, 'id' | 'uploadedAt'>;
         await recordAudit(db, { ...actor, action: 'create', entityType: 'attachment', entityId: row.id, outcome: 'success', detail: { studyId, fileName, sha256: file.sha256 } });
-        return row as { id: string; uploaded_at: Date };
+        return row;
       });
     } catch (error) {
       // Nothing refers to the bytes when the row was not written.
       await storage.delete(stored.key).catch(() => undefined);
       throw error;
     }
-    return { id: saved.id, fileName, mediaType, sizeBytes: file.size, sha256: file.sha256, uploadedAt: saved.uploaded_at.toISOString() };
+    return { id: saved.id, fileName, mediaType, sizeBytes: file.size, sha256: file.sha256, uploadedAt: saved.uploadedAt.toISOString() };
   } finally {
     if (!adopted) await storage.discard(file.path).catch(() => undefined);
   }

@@ -1,6 +1,7 @@
 import type { DataSource } from 'typeorm';
 import { neutraliseCsv } from '../../shared/csv/neutralise';
 import { recordAudit } from '../audit/audit';
+import { Attachment } from '../db/entities/measurement.entities';
 import type { AuditActor } from '../studies/repository';
 import { AttachmentNotFoundError } from './errors';
 import type { AttachmentStorage } from './storage';
@@ -16,10 +17,13 @@ export async function readAttachment(
   attachmentId: string,
   actor: AuditActor,
 ): Promise<{ fileName: string; mediaType: string; bytes: Buffer }> {
-  const [row] = await dataSource.query(`SELECT id, study_id, file_name, media_type, storage_key FROM attachment WHERE id = $1`, [attachmentId]);
+  const row = await dataSource.manager.findOne(Attachment, {
+    where: { id: attachmentId },
+    select: { id: true, studyId: true, fileName: true, mediaType: true, storageKey: true },
+  });
   if (!row) throw new AttachmentNotFoundError();
-  const stored = await storage.get(row.storage_key);
-  const bytes = row.media_type === 'text/csv' ? Buffer.from(neutraliseCsv(stored.toString('utf8')), 'utf8') : stored;
-  await recordAudit(dataSource, { ...actor, action: 'read', entityType: 'attachment', entityId: row.id, outcome: 'success', detail: { studyId: row.study_id } });
-  return { fileName: row.file_name, mediaType: row.media_type, bytes };
+  const stored = await storage.get(row.storageKey);
+  const bytes = row.mediaType === 'text/csv' ? Buffer.from(neutraliseCsv(stored.toString('utf8')), 'utf8') : stored;
+  await recordAudit(dataSource, { ...actor, action: 'read', entityType: 'attachment', entityId: row.id, outcome: 'success', detail: { studyId: row.studyId } });
+  return { fileName: row.fileName, mediaType: row.mediaType, bytes };
 }

@@ -1,5 +1,6 @@
 import type { DataSource } from 'typeorm';
 import { recordAudit } from '../audit/audit';
+import { Attachment } from '../db/entities/measurement.entities';
 import { lockEditableStudy, type AuditActor } from '../studies/repository';
 import { AttachmentNotFoundError } from './errors';
 import type { AttachmentStorage } from './storage';
@@ -11,12 +12,12 @@ import type { AttachmentStorage } from './storage';
  */
 export async function removeAttachment(dataSource: DataSource, storage: AttachmentStorage, attachmentId: string, actor: AuditActor): Promise<void> {
   const removed = await dataSource.transaction(async (db) => {
-    const [row] = await db.query(`SELECT id, study_id, file_name, sha256, storage_key FROM attachment WHERE id = $1`, [attachmentId]);
+    const row = await db.findOne(Attachment, { where: { id: attachmentId }, select: { id: true, studyId: true, fileName: true, sha256: true, storageKey: true } });
     if (!row) throw new AttachmentNotFoundError();
-    await lockEditableStudy(db, row.study_id);
-    await db.query(`DELETE FROM attachment WHERE id = $1`, [row.id]);
-    await recordAudit(db, { ...actor, action: 'delete', entityType: 'attachment', entityId: row.id, outcome: 'success', detail: { studyId: row.study_id, fileName: row.file_name, sha256: row.sha256 } });
-    return row as { storage_key: string };
+    await lockEditableStudy(db, row.studyId);
+    await db.delete(Attachment, { id: row.id });
+    await recordAudit(db, { ...actor, action: 'delete', entityType: 'attachment', entityId: row.id, outcome: 'success', detail: { studyId: row.studyId, fileName: row.fileName, sha256: row.sha256 } });
+    return row;
   });
-  await storage.delete(removed.storage_key).catch(() => undefined);
+  await storage.delete(removed.storageKey).catch(() => undefined);
 }

@@ -117,6 +117,7 @@ async function resolveKeys(db: Db, f: AuditFilters): Promise<Resolved> {
     const params: unknown[] = [];
     const sql = keySelects[name](f, (v) => (params.push(v), `$${params.length}`));
     if (!sql) continue;
+    // SQL: the same select is the page query's subselect when it matches too many (keySelects).
     const rows: { id: string }[] = await db.query(`${sql} LIMIT ${MAX_KEYS[name] + 1}`, params);
     resolved[name] = rows.length > MAX_KEYS[name] ? { many: true } : { ids: rows.map((r) => r.id) };
   }
@@ -231,6 +232,7 @@ export async function readAuditRows(
     if (audit) await recordAudit(db, { ...audit.entry, detail: { ...audit.entry.detail, returned: 0 } });
     return [];
   }
+  // SQL: keyset page with its audit row in one statement (a data-modifying WITH); plans in migration AuditSearch1765410000000.
   const { sql, params } = pageQuery(search.filters, search.resolved, cursor, limit, audit);
   return db.query(sql, params);
 }

@@ -24,9 +24,11 @@ import { Turnaround1765400000000 } from './migrations/1765400000000-turnaround';
 import { AuditSearch1765410000000 } from './migrations/1765410000000-audit-search';
 import { LabSettings1765420000000 } from './migrations/1765420000000-lab-settings';
 import { ReportPdf1765430000000 } from './migrations/1765430000000-report-pdf';
+import { LabSettingsRecord } from './entities/lab-settings.entity';
+import { OverdueNotice, StudyTurnaround } from './entities/turnaround.entities';
 
 /** Entities and migrations are listed, not globbed, so tsx, vitest and a bundler all see the same set. */
-const entities = [User, Patient, Study, VesselAssessment, ThermodilutionInjection, AcetylcholineDose, Attachment, ThresholdSet, ReportVersion, ReportPdf, ReportDelivery, CoronaryIntervention, CodeSuggestionSet, CodeLine, CodeDecision, CodingReview];
+const entities = [User, Patient, Study, VesselAssessment, ThermodilutionInjection, AcetylcholineDose, Attachment, ThresholdSet, ReportVersion, ReportPdf, ReportDelivery, CoronaryIntervention, CodeSuggestionSet, CodeLine, CodeDecision, CodingReview, LabSettingsRecord, StudyTurnaround, OverdueNotice];
 const migrations = [
   InitialSchema1764633600000,
   SessionsAndAudit1764720000000,

@@ -9,6 +9,7 @@ import type { StudyRecord } from '../../shared/study/schema';
 import { TransitionRefusedError } from './errors';
 import { latestVersion } from './sign-study';
 import { lockStudy } from '../studies/lock-study';
+import { Study } from '../db/entities/study.entity';
 
 export type StateChange = Exclude<StudyAction, 'sign' | 'sign-addendum'>;
 
@@ -42,7 +43,8 @@ export async function changeStudyState(dataSource: DataSource, req: ChangeStateR
     } else {
       next = transitions[req.action].to as StudyState;
     }
-    await manager.query(`UPDATE study SET state = $2, version = version + 1, updated_at = now() WHERE id = $1`, [req.studyId, next]);
+    // TypeORM adds `version = version + 1` and `updated_at = now()` (the study's version and update-date columns).
+    await manager.update(Study, { id: req.studyId }, { state: next });
     await recordAudit(manager, {
       ...req.audit,
       action: req.action,

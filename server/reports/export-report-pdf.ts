@@ -1,6 +1,7 @@
 import type { DataSource } from 'typeorm';
 import { recordAudit } from '../audit/audit';
 import { ReportPdf } from '../db/entities/report-version.entity';
+import { Study } from '../db/entities/study.entity';
 import { RecordNotFoundError } from '../studies/errors';
 import type { AuditActor } from '../studies/repository';
 
@@ -16,7 +17,7 @@ export async function exportReportPdf(dataSource: DataSource, reportVersionId: s
   });
   const version = file?.version;
   if (!file || !version) throw new RecordNotFoundError('No report version has this id.');
-  const [study] = await dataSource.query(`SELECT accession FROM study WHERE id = $1`, [version.studyId]);
+  const study = await dataSource.manager.findOne(Study, { where: { id: version.studyId }, select: { id: true, accession: true } });
   await recordAudit(dataSource, { ...actor, action: 'export', entityType: 'study', entityId: version.studyId, outcome: 'success', detail: { reportVersion: version.versionNo, format: 'pdf' } });
   return {
     fileName: `${String(study?.accession ?? 'report').replace(/[^A-Za-z0-9._-]/g, '_')}-v${version.versionNo}.pdf`,

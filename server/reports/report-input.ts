@@ -4,6 +4,8 @@ import { resolveThresholds } from '../../shared/physiology/thresholds';
 import type { StudyRecord } from '../../shared/study/schema';
 import { toPhysiologyInput } from '../../shared/study/to-physiology';
 import { ReportVersion } from '../db/entities/report-version.entity';
+import { ThresholdSet } from '../db/entities/measurement.entities';
+import { User } from '../db/entities/user.entity';
 import type { ReportInput, ReportStudy } from '../report';
 import type { ThresholdsBasisInfo } from '../report/view-model';
 import { labSettings } from '../settings/lab-settings';
@@ -65,8 +67,8 @@ export async function thresholdsFor(
   let amendedThresholds: AmendedThresholds | null = null;
   if (amended) {
     const original = choice === 'original' && thresholdsSchema.safeParse(amended.thresholds).success;
-    const [set] = original && amended.thresholdSetId !== null ? await manager.query(`SELECT effective_from FROM threshold_set WHERE id = $1`, [amended.thresholdSetId]) : [];
-    amendedThresholds = { versionNo: amended.versionNo, thresholds: amended.thresholds, thresholdSetId: amended.thresholdSetId, setEffectiveFrom: set?.effective_from ?? null };
+    const set = original && amended.thresholdSetId !== null ? await manager.findOne(ThresholdSet, { where: { id: amended.thresholdSetId }, select: { id: true, effectiveFrom: true } }) : null;
+    amendedThresholds = { versionNo: amended.versionNo, thresholds: amended.thresholds, thresholdSetId: amended.thresholdSetId, setEffectiveFrom: set?.effectiveFrom ?? null };
   }
   const inForce = amendedThresholds && choice === 'original' && thresholdsSchema.safeParse(amendedThresholds.thresholds).success ? null : await thresholdsInForce(manager, at);
   return chooseThresholds(amendedThresholds, () => inForce!, choice);
@@ -85,10 +87,8 @@ export async function reportInputFor(
 ): Promise<ReportInputWithBasis> {
   const thresholds = await thresholdsFor(manager, record, at, choice);
   const settings = await labSettings(manager);
-  const [operator] = record.details.operatorId
-    ? await manager.query(`SELECT display_name FROM app_user WHERE id = $1`, [record.details.operatorId])
-    : [];
-  return reportInputOf(record, hospital, thresholds, settings, operator?.display_name ?? null);
+  const operator = record.details.operatorId ? await manager.findOne(User, { where: { id: record.details.operatorId }, select: { id: true, displayName: true } }) : null;
+  return reportInputOf(record, hospital, thresholds, settings, operator?.displayName ?? null);
 }
 
 /** The same, from what the caller has read already (no database work): the analysis runs here. */

@@ -1,6 +1,7 @@
 import { createHash } from 'node:crypto';
 import type { DataSource } from 'typeorm';
 import { ReportPdf, ReportVersion } from '../db/entities/report-version.entity';
+import { Study } from '../db/entities/study.entity';
 
 export interface Verification {
   found: boolean;
@@ -39,7 +40,7 @@ export async function verifyReport(dataSource: DataSource, evidence: { pdf?: Buf
     }
   }
   if (!version) return { found: false };
-  const [study] = await dataSource.query(`SELECT accession FROM study WHERE id = $1`, [version.studyId]);
+  const study = await dataSource.manager.findOne(Study, { where: { id: version.studyId }, select: { id: true, accession: true } });
   const newest = await repo.findOne({ where: { studyId: version.studyId }, order: { versionNo: 'DESC' }, select: { versionNo: true, signedAt: true } });
   return {
     found: true,

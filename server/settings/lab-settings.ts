@@ -1,6 +1,7 @@
-import type { DataSource, EntityManager } from 'typeorm';
+import { DataSource, EntityManager } from 'typeorm';
 import type { LabSettings, LabSettingsForm, LabSettingsView } from '../../shared/settings/lab-settings';
 import { recordAudit, type AuditActor } from '../audit/audit';
+import { LabSettingsRecord } from '../db/entities/lab-settings.entity';
 import { loadConfig } from '../config';
 import { BadRequestError, HttpError, NotFoundError } from '../http/problem';
 import { REPORT_TEMPLATE_VERSION } from '../report/template-version';
@@ -47,41 +48,65 @@ class EhrHostNotAllowedError extends BadRequestError {
   }
 }
 
-interface Row {
-  time_zone: string;
-  signature_target_hours: string;
-  ehr_base_url: string | null;
-  mail_from: string | null;
-  template_version: string;
-  version: number;
-  updated_at: Date | null;
-  updated_by_name: string | null;
-}
+/** The stored settings with the name of who changed them last. */
+type Row = Pick<LabSettingsRecord, 'timeZone' | 'signatureTargetHours' | 'ehrBaseUrl' | 'mailFrom' | 'templateVersion' | 'version' | 'updatedAt'> & { updatedByName: string | null };
 
 /** Anything that runs a query and answers its rows: a data source, a transaction, or a job's connection. */
 export type SettingsReader = DataSource | EntityManager | { query(sql: string, params?: unknown[]): Promise<unknown[]> };
 
-const managerOf = (db: SettingsReader): Pick<EntityManager, 'query'> => ('manager' in db ? db.manager : db) as Pick<EntityManager, 'query'>;
-
+/** The one settings row (`lock`: locked until the caller's transaction ends). */
 async function readRow(db: SettingsReader, lock = false): Promise<Row> {
-  const [row] = await managerOf(db).query(
-    `SELECT l.time_zone, l.signature_target_hours::text AS signature_target_hours, l.ehr_base_url, l.mail_from, l.template_version, l.version, l.updated_at,
-            u.display_name AS updated_by_name
-     FROM lab_settings l LEFT JOIN app_user u ON u.id = l.updated_by WHERE l.id = 1${lock ? ' FOR UPDATE OF l' : ''}`,
-  );
+  const manager = db instanceof DataSource ? db.manager : db instanceof EntityManager ? db : null;
+  let row: Row | undefined;
+  if (manager) {
+    const q = manager.createQueryBuilder(LabSettingsRecord, 'l').leftJoin('l.updater', 'u').addSelect(['u.id', 'u.displayName']).where('l.id = 1');
+    if (lock) q.setLock('pessimistic_write', undefined, ['l']);
+    const stored = await q.getOne();
+    if (stored) row = { ...stored, updatedByName: stored.updater?.displayName ?? null };
+  } else {
+    // A job's plain client has no entity metadata: the same read in SQL.
+    const [raw] = (await db.query(
+      `SELECT l.time_zone, l.signature_target_hours::text AS signature_target_hours, l.ehr_base_url, l.mail_from, l.template_version, l.version, l.updated_at,
+              u.display_name AS updated_by_name
+       FROM lab_settings l LEFT JOIN app_user u ON u.id = l.updated_by WHERE l.id = 1`,
+    )) as Array<{ time_zone: string; signature_target_hours: string; ehr_base_url: string | null; mail_from: string | null; template_version: string; version: number; updated_at: Date | null; updated_by_name: string | null }>;
+    if (raw) {
+      row = {
+        timeZone: raw.time_zone,
+        signatureTargetHours: Number(raw.signature_target_hours),
+        ehrBaseUrl: raw.ehr_base_url,
+        mailFrom: raw.mail_from,
+        templateVersion: raw.template_version,
+        version: raw.version,
+        updatedAt: raw.updated_at,
+        updatedByName: raw.updated_by_name,
+      };
+    }
+  }
   // The migration writes the row; a database restored without it still works on the defaults.
-  return row ?? { ...unstoredSettings, signature_target_hours: '24', ehr_base_url: null, mail_from: null, version: 1, updated_at: null, updated_by_name: null };
+  return (
+    row ?? {
+      timeZone: unstoredSettings.time_zone,
+      templateVersion: unstoredSettings.template_version,
+      signatureTargetHours: 24,
+      ehrBaseUrl: null,
+      mailFrom: null,
+      version: 1,
+      updatedAt: null,
+      updatedByName: null,
+    }
+  );
 }
 
 /** What applies to reports while the settings row is missing (see `readRow`). */
 export const unstoredSettings = { time_zone: 'UTC', template_version: REPORT_TEMPLATE_VERSION } as const;
 
 const effectiveOf = (row: Row, defaults: ConfiguredDefaults): LabSettings => ({
-  timeZone: row.time_zone,
-  signatureTargetHours: Number(row.signature_target_hours),
-  ehrBaseUrl: row.ehr_base_url ?? defaults.ehrBaseUrl,
-  mailFrom: row.mail_from ?? defaults.mailFrom,
-  templateVersion: row.template_version,
+  timeZone: row.timeZone,
+  signatureTargetHours: row.signatureTargetHours,
+  ehrBaseUrl: row.ehrBaseUrl ?? defaults.ehrBaseUrl,
+  mailFrom: row.mailFrom ?? defaults.mailFrom,
+  templateVersion: row.templateVersion,
 });
 
 /**
@@ -98,16 +123,16 @@ export async function labSettingsView(db: DataSource | EntityManager, defaults?:
   const d = configured(defaults);
   return {
     stored: {
-      timeZone: row.time_zone,
-      signatureTargetHours: Number(row.signature_target_hours),
-      ehrBaseUrl: row.ehr_base_url,
-      mailFrom: row.mail_from,
-      templateVersion: row.template_version,
+      timeZone: row.timeZone,
+      signatureTargetHours: row.signatureTargetHours,
+      ehrBaseUrl: row.ehrBaseUrl,
+      mailFrom: row.mailFrom,
+      templateVersion: row.templateVersion,
     },
     effective: effectiveOf(row, d),
     configured: d,
-    updatedAt: row.updated_at?.toISOString() ?? null,
-    updatedBy: row.updated_by_name,
+    updatedAt: row.updatedAt?.toISOString() ?? null,
+    updatedBy: row.updatedByName,
     version: row.version,
   };
 }
@@ -126,24 +151,30 @@ function changes<T extends Record<string, unknown>>(before: T, after: T): Record
   return out;
 }
 
+/**
+ * Writes `values` into the settings row read (and locked) as `read`, one version later; a database
+ * restored without the row gets it (its other settings the column defaults). One statement:
+ * INSERT … ON CONFLICT (id) DO UPDATE of the columns given.
+ */
+async function saveRow(manager: EntityManager, read: Row, values: Partial<Pick<LabSettingsRecord, 'timeZone' | 'signatureTargetHours' | 'ehrBaseUrl' | 'mailFrom' | 'templateVersion'>>, actor: AuditActor): Promise<void> {
+  const record = { ...values, version: read.version + 1, updatedAt: () => 'now()', updatedBy: actor.actorUserId ?? null };
+  const metadata = manager.getRepository(LabSettingsRecord).metadata;
+  const columns = Object.keys(record).map((property) => metadata.findColumnWithPropertyName(property)!.databaseName);
+  await manager.createQueryBuilder().insert().into(LabSettingsRecord).values({ id: 1, ...record }).orUpdate(columns, ['id']).updateEntity(false).execute();
+}
+
 /** Saves the lab's settings (not the template version, which is activated on its own) with one audit row: before and after. */
 export async function updateLabSettings(dataSource: DataSource, input: { settings: LabSettingsForm; version: number }, actor: AuditActor, defaults?: ConfiguredDefaults): Promise<LabSettingsView> {
   return dataSource.transaction(async (manager) => {
     const row = await readRow(manager, true);
     if (row.version !== input.version) throw new StaleSettingsError(await labSettingsView(manager, defaults));
-    const before: LabSettingsForm = { timeZone: row.time_zone, signatureTargetHours: Number(row.signature_target_hours), ehrBaseUrl: row.ehr_base_url, mailFrom: row.mail_from };
+    const before: LabSettingsForm = { timeZone: row.timeZone, signatureTargetHours: row.signatureTargetHours, ehrBaseUrl: row.ehrBaseUrl, mailFrom: row.mailFrom };
     const after: LabSettingsForm = { ...input.settings, ehrBaseUrl: input.settings.ehrBaseUrl || null, mailFrom: input.settings.mailFrom || null };
     const allowed = defaults?.allowedEhrHosts;
     if (after.ehrBaseUrl && allowed && !allowed.includes(new URL(after.ehrBaseUrl).host.toLowerCase())) throw new EhrHostNotAllowedError(new URL(after.ehrBaseUrl).host, allowed);
     const changed = changes(before, after);
     if (Object.keys(changed).length === 0) return labSettingsView(manager, defaults);
-    await manager.query(
-      `INSERT INTO lab_settings (id, time_zone, signature_target_hours, ehr_base_url, mail_from, version, updated_at, updated_by)
-       VALUES (1, $1, $2, $3, $4, 2, now(), $5)
-       ON CONFLICT (id) DO UPDATE SET time_zone = $1, signature_target_hours = $2, ehr_base_url = $3, mail_from = $4,
-         version = lab_settings.version + 1, updated_at = now(), updated_by = $5`,
-      [after.timeZone, after.signatureTargetHours, after.ehrBaseUrl, after.mailFrom, actor.actorUserId ?? null],
-    );
+    await saveRow(manager, row, { timeZone: after.timeZone, signatureTargetHours: after.signatureTargetHours, ehrBaseUrl: after.ehrBaseUrl, mailFrom: after.mailFrom }, actor);
     await recordAudit(manager, {
       ...actor,
       action: 'update',
@@ -161,19 +192,15 @@ export async function activateTemplateVersion(dataSource: DataSource, version: s
   if (!isShippedTemplateVersion(version)) throw new NotFoundError(`No report template version "${version}" is shipped.`);
   return dataSource.transaction(async (manager) => {
     const row = await readRow(manager, true);
-    if (row.template_version !== version) {
-      await manager.query(
-        `INSERT INTO lab_settings (id, template_version, version, updated_at, updated_by) VALUES (1, $1, 2, now(), $2)
-         ON CONFLICT (id) DO UPDATE SET template_version = $1, version = lab_settings.version + 1, updated_at = now(), updated_by = $2`,
-        [version, actor.actorUserId ?? null],
-      );
+    if (row.templateVersion !== version) {
+      await saveRow(manager, row, { templateVersion: version }, actor);
       await recordAudit(manager, {
         ...actor,
         action: 'update',
         entityType: 'settings',
         entityId: 'report-template',
         outcome: 'success',
-        detail: { setting: 'report-template', before: { templateVersion: row.template_version }, after: { templateVersion: version } },
+        detail: { setting: 'report-template', before: { templateVersion: row.templateVersion }, after: { templateVersion: version } },
       });
     }
     return labSettingsView(manager, defaults);

@@ -52,27 +52,31 @@ export function thresholdsInForceOf(set: Pick<ThresholdSet, 'id' | 'effectiveFro
 
 const managerOf = (db: DataSource | EntityManager): EntityManager => ('manager' in db ? db.manager : db);
 
-function summaryOf(row: { id: number; effective_from: Date; values: unknown; note: string | null; created_by_name: string | null; created_at: Date }): ThresholdSetSummary {
+function summaryOf(row: Pick<ThresholdSet, 'id' | 'effectiveFrom' | 'values' | 'note' | 'createdAt'>, createdBy: string | null): ThresholdSetSummary {
   const parsed = thresholdsSchema.safeParse(row.values);
   return {
     id: row.id,
-    effectiveFrom: row.effective_from.toISOString(),
+    effectiveFrom: row.effectiveFrom.toISOString(),
     overrides: parsed.success ? (parsed.data as Partial<Thresholds>) : {},
     note: row.note,
-    createdBy: row.created_by_name,
-    createdAt: row.created_at.toISOString(),
+    createdBy,
+    createdAt: row.createdAt.toISOString(),
   };
 }
 
 /** Every cut-off with the value in force now, its source and allowed range; the sets scheduled and past. */
 export async function thresholdOverview(db: DataSource | EntityManager, now = new Date()): Promise<ThresholdOverview> {
   const inForce = await thresholdsInForce(db, now);
-  const rows = await managerOf(db).query(
-    `SELECT t.id, t.effective_from, t.values, t.note, t.created_at, u.display_name AS created_by_name
-     FROM threshold_set t LEFT JOIN app_user u ON u.id = t.created_by
-     ORDER BY t.effective_from DESC, t.id DESC LIMIT 200`,
-  );
-  const history = rows.map(summaryOf);
+  const rows = await managerOf(db)
+    .createQueryBuilder(ThresholdSet, 't')
+    .select(['t.id', 't.effectiveFrom', 't.values', 't.note', 't.createdAt'])
+    .leftJoin('t.creator', 'u')
+    .addSelect(['u.id', 'u.displayName'])
+    .orderBy('t.effective_from', 'DESC')
+    .addOrderBy('t.id', 'DESC')
+    .limit(200)
+    .getMany();
+  const history = rows.map((row) => summaryOf(row, row.creator?.displayName ?? null));
   return {
     rows: thresholdKeys.map((key) => {
       const [label, unit] = thresholdLabels[key];
@@ -98,15 +102,17 @@ const GRACE_MS = 60_000;
  */
 export async function createThresholdSet(dataSource: DataSource, request: ThresholdSetRequest, actor: AuditActor): Promise<{ set: ThresholdSetSummary; overview: ThresholdOverview }> {
   return dataSource.transaction(async (manager) => {
-    // One change at a time, so "the set in force at that date" cannot move under a concurrent change.
+    // One change at a time, so "the set in force at that date" cannot move under a concurrent change (advisory lock: SQL).
     await manager.query(`SELECT pg_advisory_xact_lock(hashtext('threshold_set'))`);
     const { timeZone } = await labSettings(manager);
+    // The database's clock and its time-zone rules (SQL), so the day is the lab's, not the server process's.
     const [{ now, today }] = await manager.query(`SELECT now() AS now, (now() AT TIME ZONE $1)::date::text AS today`, [timeZone]);
     let effective: Date;
     if (!request.effectiveFrom) effective = now;
     else if (/^\d{4}-\d{2}-\d{2}$/.test(request.effectiveFrom)) {
       if (request.effectiveFrom < today) throw new BadRequestError('The thresholds cannot take effect in the past.', [{ pointer: '/effectiveFrom', detail: `effectiveFrom must be today (${today}, ${timeZone}) or later: reports signed before now keep the thresholds they were judged by.` }]);
       if (request.effectiveFrom === today) effective = now;
+      // Local midnight of that day in the lab's time zone, by the database's time-zone rules (SQL).
       else [{ effective }] = await manager.query(`SELECT ($1::date)::timestamp AT TIME ZONE $2 AS effective`, [request.effectiveFrom, timeZone]);
     } else {
       effective = new Date(request.effectiveFrom);
@@ -135,19 +141,18 @@ export async function createThresholdSet(dataSource: DataSource, request: Thresh
     const overrides: Partial<Thresholds> = {};
     for (const key of thresholdKeys) if (after[key] !== defaultThresholds[key]) overrides[key] = after[key];
 
-    const [row] = await manager.query(
-      `INSERT INTO threshold_set (effective_from, "values", note, created_by) VALUES ($1, $2, $3, $4)
-       RETURNING id, effective_from, "values", note, created_at`,
-      [effective, JSON.stringify(overrides), request.note ?? null, actor.actorUserId ?? null],
-    );
+    // Only the columns the server's role may write; the id and created_at come back from the database (RETURNING).
+    const values = { effectiveFrom: effective, values: overrides, note: request.note ?? null, createdBy: actor.actorUserId ?? null };
+    const { generatedMaps } = await manager.insert(ThresholdSet, values);
+    const row = { ...values, ...(generatedMaps[0] as Pick<ThresholdSet, 'id' | 'createdAt'>) };
     await recordAudit(manager, {
       ...actor,
       action: 'create',
       entityType: 'settings',
       entityId: 'thresholds',
       outcome: 'success',
-      detail: { setting: 'thresholds', thresholdSetId: row.id, effectiveFrom: row.effective_from.toISOString(), changed, before, after, note: request.note ?? null },
+      detail: { setting: 'thresholds', thresholdSetId: row.id, effectiveFrom: row.effectiveFrom.toISOString(), changed, before, after, note: request.note ?? null },
     });
-    return { set: summaryOf({ ...row, created_by_name: actor.actorName ?? null }), overview: await thresholdOverview(manager, now) };
+    return { set: summaryOf(row, actor.actorName ?? null), overview: await thresholdOverview(manager, now) };
   });
 }

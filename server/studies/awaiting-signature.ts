@@ -16,6 +16,7 @@ export async function listAwaitingSignature(dataSource: DataSource, operatorId: 
   // The lab's own signature target (admin settings), the same the turnaround page judges by.
   const { signatureTargetHours: targetHours } = await labSettings(dataSource);
   const list = async (mineOnly: boolean): Promise<AwaitingList> => {
+    // SQL: the worklist's own summary select (server/studies/worklist.ts) with a window count, one statement per list.
     const rows: Record<string, never>[] = await dataSource.query(
       `SELECT q.*, t.started_at AS waiting_since, count(*) OVER () AS total
        FROM (${summarySelect} WHERE s.state = 'awaiting-signature'${mineOnly ? ' AND s.operator_id = $2' : ''}) q

@@ -1,4 +1,6 @@
+import type { DataSource, EntityManager, QueryDeepPartialEntity } from 'typeorm';
 import type { Details, Findings, Setup, StudySections, Vasoreactivity } from '../../shared/study/schema';
+import { Study } from '../db/entities/study.entity';
 
 /** Section field → study column. Numbers are read back as float8 so they arrive as numbers. */
 type Column<T> = { field: keyof T; column: string; kind?: 'number' | 'timestamp' };
@@ -87,8 +89,17 @@ export function readSection<T>(columns: Column<T>[], row: Record<string, unknown
   return out as T;
 }
 
-/** `SET col = $n, …` for a section, with its values, numbering from `start`. */
-export function assignments<T>(columns: Column<T>[], section: T, start: number): { sql: string; values: unknown[] } {
-  const values = columns.map((c) => (section as Record<string, unknown>)[c.field as string] ?? null);
-  return { sql: columns.map((c, i) => `${c.column} = $${start + i}`).join(', '), values };
+/**
+ * A section's values for an insert or update of the study entity, by the entity's property names
+ * (found through each column's name); a field the section leaves out is written as null.
+ */
+export function studyValues<T>(db: DataSource | EntityManager, columns: Column<T>[], section: T): QueryDeepPartialEntity<Study> {
+  const metadata = db.getRepository(Study).metadata;
+  const values: Record<string, unknown> = {};
+  for (const c of columns) {
+    const property = metadata.findColumnWithDatabaseName(c.column)?.propertyName;
+    if (!property) throw new Error(`The study entity has no column ${c.column}`);
+    values[property] = (section as Record<string, unknown>)[c.field as string] ?? null;
+  }
+  return values as QueryDeepPartialEntity<Study>;
 }

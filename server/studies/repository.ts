@@ -1,4 +1,4 @@
-import type { DataSource, EntityManager } from 'typeorm';
+import { Like, Not, type DataSource, type EntityManager } from 'typeorm';
 import type {
   AcetylcholineDose,
   AttachmentSummary,
@@ -13,7 +13,7 @@ import type { StudyState } from '../../shared/study/vocabulary';
 import { isEditable } from '../../shared/study/state-machine';
 import { HttpError, NotFoundError, UnprocessableError } from '../http/problem';
 import { recordAudit, type AuditActor } from '../audit/audit';
-import { assignments, codingColumns, detailsColumns, findingsColumns, readSection, selectList, setupColumns, vasoreactivityColumns } from './columns';
+import { codingColumns, detailsColumns, findingsColumns, readSection, selectList, setupColumns, studyValues, vasoreactivityColumns } from './columns';
 import { replaceInterventions } from '../coding/study-interventions';
 import { lockStudy } from './lock-study';
 import { preparedOn } from '../db/prepared';
@@ -22,6 +22,9 @@ import {
   ThermodilutionInjection as InjectionRow,
   VesselAssessment as VesselRow,
 } from '../db/entities/measurement.entities';
+import { Patient } from '../db/entities/patient.entity';
+import { Study } from '../db/entities/study.entity';
+import { User } from '../db/entities/user.entity';
 
 /** A write based on an older version than the stored one. Carries the current record for a merge. */
 export class StaleVersionError extends HttpError {
@@ -38,7 +41,7 @@ type Intervention = StudySections['coding']['interventions'][number];
 
 /** The study record; `forUpdate` also locks the study's row until the caller's transaction ends. */
 export async function loadStudy(db: Db, id: string, options: { forUpdate?: boolean } = {}): Promise<StudyRecord | null> {
-  // A named prepared statement: every read, edit and signature of a study starts here.
+  // SQL kept, as a named prepared statement: read on every save, preview and signature; the row with its patient in one statement, numbers cast to float8 there.
   // eslint-disable-next-line @typescript-eslint/no-explicit-any
   const [row] = await preparedOn<any>(db,
     `SELECT s.id, s.accession, s.state, s.version, s.created_at, s.updated_at,
@@ -85,6 +88,7 @@ interface StudyParts {
  * attachments' summaries, in one statement: each as a JSON array in its stored order.
  */
 async function loadStudyParts(db: Db, id: string): Promise<StudyParts> {
+  // SQL kept, as a named prepared statement: five row sets aggregated as JSON in one round trip, on every save, preview and signature.
   // eslint-disable-next-line @typescript-eslint/no-explicit-any
   const [row] = await preparedOn<any>(db,
     `SELECT
@@ -118,17 +122,12 @@ async function loadStudyParts(db: Db, id: string): Promise<StudyParts> {
   };
 }
 
-type PatientRow = { id: string; family_name: string; given_name: string; birth_date: string; sex: string };
-const demographicFields = [
-  ['familyName', 'family_name'],
-  ['givenName', 'given_name'],
-  ['birthDate', 'birth_date'],
-  ['sex', 'sex'],
-] as const;
+type PatientRow = Pick<Patient, 'id' | 'familyName' | 'givenName' | 'birthDate' | 'sex'>;
+const demographicFields = ['familyName', 'givenName', 'birthDate', 'sex'] as const;
 const norm = (s: string) => s.trim().toLowerCase();
 /** Which demographics differ (ignoring case and surrounding spaces of names). */
-const differences = (row: PatientRow, p: StudySections['patient']) => demographicFields.filter(([f, c]) => norm(String(p[f])) !== norm(String(row[c]))).map(([f]) => f);
-const exactlySame = (row: PatientRow, p: StudySections['patient']) => demographicFields.every(([f, c]) => String(p[f]) === String(row[c]));
+const differences = (row: PatientRow, p: StudySections['patient']) => demographicFields.filter((f) => norm(String(p[f])) !== norm(String(row[f])));
+const exactlySame = (row: PatientRow, p: StudySections['patient']) => demographicFields.every((f) => String(p[f]) === String(row[f]));
 
 /** The MRN belongs to someone else: the study is not moved to them, and nobody is renamed. */
 export class PatientMismatchError extends HttpError {
@@ -172,23 +171,13 @@ function label(field: string): string {
  * Rows are locked in a fixed order (study first, then patients) so concurrent writers queue.
  */
 async function resolvePatient(db: EntityManager, patient: StudySections['patient'], studyId: string | null, currentPatientId: string | null): Promise<{ patientId: string; leftBehind: string | null }> {
-  const othersOf = async (patientId: string) =>
-    (await db.query(`SELECT count(*)::int AS n FROM study WHERE patient_id = $1 AND id IS DISTINCT FROM $2`, [patientId, studyId]))[0].n as number;
+  const othersOf = (patientId: string) => db.count(Study, { where: studyId === null ? { patientId } : { patientId, id: Not(studyId) } });
   const correct = (patientId: string) =>
-    db.query(`UPDATE patient SET mrn = $2, family_name = $3, given_name = $4, birth_date = $5, sex = $6, updated_at = now() WHERE id = $1`, [
-      patientId,
-      patient.mrn,
-      patient.familyName,
-      patient.givenName,
-      patient.birthDate,
-      patient.sex,
-    ]);
-  const onFileRow = async (): Promise<PatientRow | undefined> =>
-    (
-      await db.query(`SELECT id, family_name, given_name, to_char(birth_date, 'YYYY-MM-DD') AS birth_date, sex FROM patient WHERE mrn = $1 FOR UPDATE`, [
-        patient.mrn,
-      ])
-    )[0];
+    db.update(Patient, { id: patientId }, { mrn: patient.mrn, familyName: patient.familyName, givenName: patient.givenName, birthDate: patient.birthDate, sex: patient.sex });
+  /** A patient row, locked until the transaction ends; `birthDate` as YYYY-MM-DD. */
+  const lockedPatient = async (where: { mrn: string } | { id: string }): Promise<PatientRow | undefined> =>
+    (await db.findOne(Patient, { where, select: { id: true, familyName: true, givenName: true, birthDate: true, sex: true }, lock: { mode: 'pessimistic_write' } })) ?? undefined;
+  const onFileRow = () => lockedPatient({ mrn: patient.mrn });
   const linkTo = (row: PatientRow) => {
     const diff = differences(row, patient);
     if (diff.length) throw new PatientMismatchError(patient.mrn, diff);
@@ -196,9 +185,7 @@ async function resolvePatient(db: EntityManager, patient: StudySections['patient
   };
 
   // The study's own patient, locked so nobody adds a study to it while it is being corrected.
-  const current: PatientRow | undefined = currentPatientId
-    ? (await db.query(`SELECT id, family_name, given_name, to_char(birth_date, 'YYYY-MM-DD') AS birth_date, sex FROM patient WHERE id = $1 FOR UPDATE`, [currentPatientId]))[0]
-    : undefined;
+  const current = currentPatientId ? await lockedPatient({ id: currentPatientId }) : undefined;
   const soleStudy = current ? (await othersOf(current.id)) === 0 : false;
 
   let chosen: string;
@@ -220,10 +207,16 @@ async function resolvePatient(db: EntityManager, patient: StudySections['patient
     return stay;
   } else {
     // Two writers may bring the same new MRN at once: the second links to the first's row.
-    const [inserted] = await db.query(
-      `INSERT INTO patient (mrn, family_name, given_name, birth_date, sex) VALUES ($1, $2, $3, $4, $5) ON CONFLICT (mrn) DO NOTHING RETURNING id`,
-      [patient.mrn, patient.familyName, patient.givenName, patient.birthDate, patient.sex],
-    );
+    const { raw } = await db
+      .createQueryBuilder()
+      .insert()
+      .into(Patient)
+      .values({ mrn: patient.mrn, familyName: patient.familyName, givenName: patient.givenName, birthDate: patient.birthDate, sex: patient.sex })
+      .orUpdate([], ['mrn']) // ON CONFLICT (mrn) DO NOTHING
+      .updateEntity(false)
+      .returning(['id'])
+      .execute();
+    const inserted = (raw as Pick<Patient, 'id'>[])[0];
     chosen = inserted ? inserted.id : linkTo((await onFileRow())!);
   }
   // A patient the study moves away from, with no other study, is removed once the study points elsewhere.
@@ -232,7 +225,13 @@ async function resolvePatient(db: EntityManager, patient: StudySections['patient
 
 async function removeIfUnused(db: EntityManager, patientId: string | null): Promise<void> {
   if (!patientId) return;
-  await db.query(`DELETE FROM patient p WHERE p.id = $1 AND NOT EXISTS (SELECT 1 FROM study s WHERE s.patient_id = p.id)`, [patientId]);
+  await db
+    .createQueryBuilder()
+    .delete()
+    .from(Patient)
+    .where('id = :patientId', { patientId })
+    .andWhere('NOT EXISTS (SELECT 1 FROM study s WHERE s.patient_id = patient.id)')
+    .execute();
 }
 
 export class StudyLockedError extends HttpError {
@@ -255,14 +254,14 @@ export type { AuditActor } from '../audit/audit';
 /** A readable, unique accession when the hospital's system has not supplied one. */
 async function nextAccession(db: EntityManager, at: Date): Promise<string> {
   const day = at.toISOString().slice(0, 10).replaceAll('-', '');
-  const [{ n }] = await db.query(`SELECT count(*)::int + 1 AS n FROM study WHERE accession LIKE $1`, [`ISB-${day}-%`]);
+  const n = (await db.count(Study, { where: { accession: Like(`ISB-${day}-%`) } })) + 1;
   return `ISB-${day}-${String(n).padStart(4, '0')}-${Math.random().toString(36).slice(2, 6).toUpperCase()}`;
 }
 
 /** The operator must be a physician on file: an id of nobody, or of another role, is refused. */
 async function checkOperator(db: EntityManager, operatorId: string | null | undefined): Promise<void> {
   if (!operatorId) return;
-  const [row] = await db.query(`SELECT role FROM app_user WHERE id = $1`, [operatorId]);
+  const row = await db.findOne(User, { where: { id: operatorId }, select: { id: true, role: true } });
   if (row?.role === 'physician') return;
   throw new UnprocessableError('The operator must be a physician.', [
     { pointer: '/details/operatorId', detail: row ? 'Operator: this person is not a physician. Choose a physician from the list.' : 'Operator: nobody has this id. Choose a physician from the list.' },
@@ -274,16 +273,11 @@ export async function createStudy(dataSource: DataSource, input: CreateStudy, cr
     await checkOperator(db, input.details?.operatorId);
     const { patientId } = await resolvePatient(db, input.patient, null, null);
     const details = { ...emptyDetails(), ...input.details };
-    const set = assignments(detailsColumns, details, 1);
     const accession = await nextAccession(db, new Date());
-    const [row] = await db.query(
-      `INSERT INTO study (accession, patient_id, created_by, ${detailsColumns.map((c) => c.column).join(', ')})
-       VALUES ($${set.values.length + 1}, $${set.values.length + 2}, $${set.values.length + 3}, ${set.values.map((_, i) => `$${i + 1}`).join(', ')})
-       RETURNING id`,
-      [...set.values, accession, patientId, createdBy],
-    );
-    if (actor) await recordAudit(db, { ...actor, action: 'create', entityType: 'study', entityId: row.id, outcome: 'success', detail: { mrn: input.patient.mrn } });
-    return row.id as string;
+    const { identifiers } = await db.insert(Study, { ...studyValues(db, detailsColumns, details), accession, patientId, createdBy });
+    const id = (identifiers[0] as Pick<Study, 'id'>).id;
+    if (actor) await recordAudit(db, { ...actor, action: 'create', entityType: 'study', entityId: id, outcome: 'success', detail: { mrn: input.patient.mrn } });
+    return id;
   });
 }
 
@@ -294,21 +288,20 @@ type WritableSections = Partial<Pick<StudySections, 'details' | 'setup' | 'findi
  * study's own columns, then its vessel and dose rows.
  */
 export async function writeSections(db: EntityManager, id: string, sections: WritableSections, options: { patientId?: string; bumpVersion?: boolean } = {}): Promise<void> {
-  const sets: string[] = [];
-  const values: unknown[] = [];
-  const add = (a: { sql: string; values: unknown[] }) => {
-    if (!a.sql) return;
-    sets.push(a.sql);
-    values.push(...a.values);
-  };
-  if (options.patientId) add({ sql: `patient_id = $${values.length + 1}`, values: [options.patientId] });
-  if (sections.details) add(assignments(detailsColumns, sections.details, values.length + 1));
-  if (sections.setup) add(assignments(setupColumns, sections.setup, values.length + 1));
-  if (sections.findings) add(assignments(findingsColumns, sections.findings, values.length + 1));
-  if (sections.vasoreactivity) add(assignments(vasoreactivityColumns, sections.vasoreactivity, values.length + 1));
-  if (sections.coding) add(assignments(codingColumns, sections.coding, values.length + 1));
-  const bump = options.bumpVersion ? ['version = version + 1'] : [];
-  await db.query(`UPDATE study SET ${[...sets, ...bump, 'updated_at = now()'].join(', ')} WHERE id = $${values.length + 1}`, [...values, id]);
+  await db.update(
+    Study,
+    { id },
+    {
+      ...(options.patientId ? { patientId: options.patientId } : {}),
+      ...(sections.details ? studyValues(db, detailsColumns, sections.details) : {}),
+      ...(sections.setup ? studyValues(db, setupColumns, sections.setup) : {}),
+      ...(sections.findings ? studyValues(db, findingsColumns, sections.findings) : {}),
+      ...(sections.vasoreactivity ? studyValues(db, vasoreactivityColumns, sections.vasoreactivity) : {}),
+      ...(sections.coding ? studyValues(db, codingColumns, sections.coding) : {}),
+      // Named, so TypeORM does not add its own `version + 1`; updated_at is set to now() by TypeORM.
+      version: options.bumpVersion ? () => 'version + 1' : () => 'version',
+    },
+  );
   if (sections.vessels) await replaceVessels(db, id, sections.vessels);
   if (sections.vasoreactivity) await replaceDoses(db, id, sections.vasoreactivity.doses);
   if (sections.coding) await replaceInterventions(db, id, sections.coding.interventions);

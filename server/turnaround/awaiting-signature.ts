@@ -1,9 +1,9 @@
 import type { DataSource } from 'typeorm';
-import type { StartBasis } from '../../shared/turnaround/figures';
 import type { UnsignedList, UnsignedStudy } from '../../shared/turnaround/unsigned';
 import { waitingSince } from '../../shared/turnaround/overdue';
 import { summarySelect, toSummary } from '../studies/worklist';
 import type { TurnaroundSettings } from './settings';
+import { StudyTurnaround } from '../db/entities/turnaround.entities';
 
 /**
  * Unsigned studies, longest waiting first, with their age against the signature target. A study
@@ -11,32 +11,38 @@ import type { TurnaroundSettings } from './settings';
  */
 export async function awaitingSignature(db: DataSource, settings: TurnaroundSettings, now = new Date(), limit = 200): Promise<UnsignedList> {
   const [waiting, [counts]] = await Promise.all([
-    db.query(
-      `SELECT t.study_id, t.started_at, t.start_basis, t.physician_id, u.display_name AS owner_name
-       FROM study_turnaround t LEFT JOIN app_user u ON u.id = t.physician_id
-       WHERE t.signed_at IS NULL ORDER BY t.started_at, t.study_id LIMIT $1`,
-      [limit],
-    ),
+    db.manager
+      .createQueryBuilder(StudyTurnaround, 't')
+      .select(['t.studyId', 't.startedAt', 't.startBasis', 't.physicianId'])
+      .leftJoin('t.physician', 'u')
+      .addSelect(['u.id', 'u.displayName'])
+      .where('t.signed_at IS NULL')
+      .orderBy('t.started_at')
+      .addOrderBy('t.study_id')
+      .limit(limit)
+      .getMany(),
+    // SQL: both counts in one pass over the unsigned rows (FILTER), the deadline computed in the database.
     db.query(
       `SELECT count(*)::int AS total, count(*) FILTER (WHERE t.started_at < $1::timestamptz - make_interval(secs => $2::float8 * 3600))::int AS overdue
        FROM study_turnaround t WHERE t.signed_at IS NULL`,
       [now, settings.signatureTargetHours],
     ),
   ]);
-  const ids = waiting.map((w: { study_id: string }) => w.study_id);
+  const ids = waiting.map((w) => w.studyId);
+  // SQL: the worklist's own summary select (server/studies/worklist.ts), so both lists show a study alike.
   const rows: Record<string, never>[] = ids.length ? await db.query(`${summarySelect} WHERE s.id = ANY($1)`, [ids]) : [];
   const byId = new Map(rows.map((r) => [r.id as string, r]));
   const items: UnsignedStudy[] = [];
-  for (const w of waiting as { study_id: string; started_at: Date; start_basis: StartBasis; physician_id: string | null; owner_name: string | null }[]) {
-    const row = byId.get(w.study_id);
+  for (const w of waiting) {
+    const row = byId.get(w.studyId);
     if (!row) continue; // signed between the two reads
     items.push({
       ...toSummary(row),
-      startedAt: w.started_at.toISOString(),
-      startBasis: w.start_basis,
-      ownerId: w.physician_id,
-      ownerName: w.owner_name,
-      ...waitingSince(w.started_at, now, settings.signatureTargetHours),
+      startedAt: w.startedAt.toISOString(),
+      startBasis: w.startBasis,
+      ownerId: w.physicianId,
+      ownerName: w.physician?.displayName ?? null,
+      ...waitingSince(w.startedAt, now, settings.signatureTargetHours),
     });
   }
   return { targetHours: settings.signatureTargetHours, total: counts.total, overdueTotal: counts.overdue, items };

@@ -1,10 +1,12 @@
 import nodemailer from 'nodemailer';
 import type { CronItem, Task } from 'graphile-worker';
-import type { DataSource } from 'typeorm';
+import { Not, type DataSource } from 'typeorm';
 import { z } from 'zod';
 import { addJob } from '../jobs/queue';
 import type { TurnaroundSettings } from './settings';
 import { labSettings } from '../settings/lab-settings';
+import { OverdueNotice } from '../db/entities/turnaround.entities';
+import { User } from '../db/entities/user.entity';
 
 /** How far back a study's deadline may lie and still get a notice (older ones are on the chief's list already). */
 export const noticeLookbackHours = 14 * 24;
@@ -17,6 +19,7 @@ export const noticeLookbackHours = 14 * 24;
  */
 export async function queueOverdueNotices(db: DataSource, settings: TurnaroundSettings, now = new Date()): Promise<string[]> {
   return db.transaction(async (tx) => {
+    // SQL: one set-based INSERT … SELECT … ON CONFLICT DO NOTHING over the turnaround summary, with time arithmetic in the database.
     const rows: { study_id: string }[] = await tx.query(
       `INSERT INTO overdue_notice (study_id, physician_id, target_hours, due_at)
        SELECT t.study_id, t.physician_id, $2::numeric, t.started_at + make_interval(secs => $2::float8 * 3600)
@@ -68,27 +71,32 @@ export function sendOverdueNoticeTask(dataSource: DataSource, mail: OverdueMailS
   const transport = nodemailer.createTransport({ host: mail.host, port: mail.port, secure: false, ignoreTLS: true, connectionTimeout: 10_000 });
   return async (payload) => {
     const { studyId } = payloadSchema.parse(payload);
-    const [row] = await dataSource.query(
-      `SELECT s.accession, n.due_at, n.target_hours, n.sent_at, t.signed_at, t.started_at, u.email AS owner_email, u.display_name AS owner_name
-       FROM overdue_notice n JOIN study s ON s.id = n.study_id JOIN study_turnaround t ON t.study_id = n.study_id
-       LEFT JOIN app_user u ON u.id = n.physician_id
-       WHERE n.study_id = $1`,
-      [studyId],
-    );
-    if (!row || row.sent_at || row.signed_at) return;
-    const chiefs: { email: string }[] = await dataSource.query(`SELECT DISTINCT email FROM app_user WHERE role = 'chief' AND email IS NOT NULL AND email <> '' ORDER BY email`);
-    const to = row.owner_email ? [row.owner_email as string] : [];
-    const cc = chiefs.map((c) => c.email).filter((e) => !to.includes(e));
+    const notice = await dataSource.manager
+      .createQueryBuilder(OverdueNotice, 'n')
+      .select(['n.studyId', 'n.targetHours', 'n.sentAt'])
+      .innerJoin('n.study', 's')
+      .addSelect(['s.id', 's.accession'])
+      .innerJoin('n.turnaround', 't')
+      .addSelect(['t.studyId', 't.signedAt', 't.startedAt'])
+      .leftJoin('n.physician', 'u')
+      .addSelect(['u.id', 'u.email', 'u.displayName'])
+      .where('n.studyId = :studyId', { studyId })
+      .getOne();
+    if (!notice || notice.sentAt || notice.turnaround!.signedAt) return;
+    const accession = notice.study!.accession;
+    const chiefs = await dataSource.manager.find(User, { where: { role: 'chief', email: Not('') }, select: { id: true, email: true }, order: { email: 'ASC' } });
+    const to = notice.physician?.email ? [notice.physician.email] : [];
+    const cc = [...new Set(chiefs.map((c) => c.email))].filter((e) => !to.includes(e));
     if (to.length + cc.length > 0) {
-      const waited = (Date.now() - (row.started_at as Date).getTime()) / 3_600_000;
+      const waited = (Date.now() - notice.turnaround!.startedAt.getTime()) / 3_600_000;
       await transport.sendMail({
         from: mail.from,
         to: to.length ? to : cc,
         cc: to.length ? cc : [],
-        subject: `Overdue for signature: accession ${row.accession}`,
+        subject: `Overdue for signature: accession ${accession}`,
         text: [
-          `The report for accession number ${row.accession} is not yet signed: it has waited ${waited.toFixed(1)} h, past the lab's ${Number(row.target_hours)} h target.`,
-          row.owner_name ? `Signature owner: ${row.owner_name}.` : 'No physician is recorded for this study.',
+          `The report for accession number ${accession} is not yet signed: it has waited ${waited.toFixed(1)} h, past the lab's ${notice.targetHours} h target.`,
+          notice.physician?.displayName ? `Signature owner: ${notice.physician.displayName}.` : 'No physician is recorded for this study.',
           '',
           `Open the study: ${mail.publicUrl}/studies/${studyId}`,
           '',
@@ -97,6 +105,6 @@ export function sendOverdueNoticeTask(dataSource: DataSource, mail: OverdueMailS
         headers: { 'X-Isobar-Notice': 'overdue-signature' },
       });
     }
-    await dataSource.query(`UPDATE overdue_notice SET sent_at = now(), recipients = $2 WHERE study_id = $1`, [studyId, to.length + cc.length]);
+    await dataSource.manager.update(OverdueNotice, { studyId }, { sentAt: () => 'now()', recipients: to.length + cc.length });
   };
 }

@@ -1,5 +1,6 @@
 import type { DataSource } from 'typeorm';
 import { recordAudit } from '../audit/audit';
+import { User } from '../db/entities/user.entity';
 import type { AuditActor } from '../studies/repository';
 
 export interface UserListItem {
@@ -12,17 +13,18 @@ export interface UserListItem {
 
 /** Everyone who has an account, with their role, by name; the ids shown are recorded in the audit trail. */
 export async function listUsers(dataSource: DataSource, actor: AuditActor): Promise<{ items: UserListItem[] }> {
-  const rows: Array<{ id: string; display_name: string; email: string; role: string | null; last_sign_in_at: Date | null }> = await dataSource.query(
-    `SELECT id, display_name, email, role, last_sign_in_at FROM app_user ORDER BY display_name, id`,
-  );
+  const rows = await dataSource.manager.find(User, {
+    select: { id: true, displayName: true, email: true, role: true, lastSignInAt: true },
+    order: { displayName: 'ASC', id: 'ASC' },
+  });
   await recordAudit(dataSource, { ...actor, action: 'search', entityType: 'user', outcome: 'success', detail: { returned: rows.length, userIds: rows.map((u) => u.id) } });
   return {
     items: rows.map((u) => ({
       id: u.id,
-      displayName: u.display_name,
+      displayName: u.displayName,
       email: u.email,
       role: u.role,
-      lastSignInAt: u.last_sign_in_at?.toISOString() ?? null,
+      lastSignInAt: u.lastSignInAt?.toISOString() ?? null,
     })),
   };
 }

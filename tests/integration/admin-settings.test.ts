@@ -318,6 +318,32 @@ describe('lab settings', () => {
     expect((await labSettings(db, { ehrBaseUrl: 'http://configured/fhir', mailFrom: 'configured@localhost' })).ehrBaseUrl).toBe('http://configured/fhir');
   });
 
+  it('works on the defaults when the settings row is missing (a restored database), and saving writes the row again at version 2', async () => {
+    const [kept] = await db.query(`SELECT * FROM lab_settings WHERE id = 1`);
+    await db.query(`DELETE FROM lab_settings WHERE id = 1`);
+    try {
+      const view = await api().get('/api/admin/lab-settings').set('Cookie', admin).expect(200);
+      expect(view.body).toMatchObject({ version: 1, updatedAt: null, updatedBy: null, stored: { timeZone: 'UTC', signatureTargetHours: 24, ehrBaseUrl: null, mailFrom: null } });
+      const settings = { timeZone: 'Europe/Oslo', signatureTargetHours: 12.5, ehrBaseUrl: null, mailFrom: null };
+      const saved = await send('put', '/api/admin/lab-settings', admin).send({ version: 1, settings }).expect(200);
+      expect(saved.body).toMatchObject({ version: 2, stored: settings });
+      const [row] = await db.query(`SELECT time_zone, signature_target_hours::text AS hours, template_version, version, updated_at, updated_by FROM lab_settings WHERE id = 1`);
+      // The columns the save does not name keep their defaults (migration LabSettings1765420000000).
+      expect(row).toMatchObject({ time_zone: 'Europe/Oslo', hours: '12.5', template_version: 'v1', version: 2 });
+      expect(row.updated_at).toBeInstanceOf(Date);
+      expect(row.updated_by).not.toBeNull();
+      const again = await send('put', '/api/admin/lab-settings', admin).send({ version: 2, settings: { ...settings, signatureTargetHours: 24 } }).expect(200);
+      expect(again.body.version).toBe(3);
+    } finally {
+      await db.query(`DELETE FROM lab_settings WHERE id = 1`);
+      await db.query(
+        `INSERT INTO lab_settings (id, time_zone, signature_target_hours, ehr_base_url, mail_from, template_version, version, updated_at, updated_by)
+         VALUES (1, $1, $2, $3, $4, $5, $6, $7, $8)`,
+        [kept.time_zone, kept.signature_target_hours, kept.ehr_base_url, kept.mail_from, kept.template_version, kept.version, kept.updated_at, kept.updated_by],
+      );
+    }
+  });
+
   it('refuses an EHR endpoint on a host the configuration does not list (no delivery to another server, no probing inside)', async () => {
     const view = await api().get('/api/admin/lab-settings').set('Cookie', admin).expect(200);
     for (const ehrBaseUrl of ['https://attacker.example/fhir', 'http://169.254.169.254/latest', 'http://127.0.0.1:5432/x']) {

@@ -77,7 +77,11 @@ export class ThresholdSet {
   @Column('jsonb') values!: Record<string, unknown>;
   @Column('text', { nullable: true }) note!: string | null;
   @Column('uuid', { name: 'created_by', nullable: true }) createdBy!: string | null;
-  @Column('timestamptz', { name: 'created_at' }) createdAt!: Date;
+  @ManyToOne(() => User, { onDelete: 'SET NULL', nullable: true })
+  @JoinColumn({ name: 'created_by' })
+  creator?: User | null;
+  /** The database's clock, never written by the server (its role may not: server/db/privileges.ts). */
+  @Column({ type: 'timestamptz', name: 'created_at', default: () => 'now()', insert: false, update: false }) createdAt!: Date;
 }
 
 /** A file attached to a study; the bytes live in attachment storage under `storageKey`. */
@@ -97,5 +101,5 @@ export class Attachment {
   @ManyToOne(() => User, { onDelete: 'SET NULL', nullable: true })
   @JoinColumn({ name: 'uploaded_by' })
   uploader?: User | null;
-  @Column('timestamptz', { name: 'uploaded_at' }) uploadedAt!: Date;
+  @Column('timestamptz', { name: 'uploaded_at', default: () => 'now()' }) uploadedAt!: Date;
 }
