@@ -14,7 +14,8 @@ import { signIn, startStack, usernameOf, type TestStack } from '../support/stack
 // while the stored bytes and their SHA-256 stay as uploaded.
 
 const maxBytes = 64 * 1024;
-const attachmentDir = path.resolve('.data/test-attachments-uploads');
+// A folder of this run's own (under the data folder), so no earlier or parallel run's files are counted.
+const attachmentDir = path.resolve(process.env.ISOBAR_DATA_DIR ?? '.data', `test-attachments-uploads-${process.pid}`);
 let db: DataSource;
 let stack: TestStack;
 let staff: string;
@@ -27,6 +28,7 @@ beforeAll(async () => {
 afterAll(async () => {
   await stack.close();
   await db.destroy();
+  fs.rmSync(attachmentDir, { recursive: true, force: true });
 });
 
 const api = () => request(stack.url);
