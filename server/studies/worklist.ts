@@ -53,6 +53,16 @@ function patientMatch(search: ParsedSearch, raw: string, param: (v: unknown) => 
 /** Up to this many matching patients, search goes patient-first (see listStudies). */
 const patientLookupCap = 200;
 
+/**
+ * The page size as a literal of the statement, not a parameter: PostgreSQL plans a named statement
+ * once only when its generic plan costs about what a plan for the values does, and with `LIMIT $n` the
+ * generic plan assumes a tenth of the table, so the page was planned again on every request.
+ */
+function pageLimit(limit: number): number {
+  if (!Number.isInteger(limit) || limit < 1 || limit > 1000) throw new RangeError(`Not a page size: ${limit}`);
+  return limit;
+}
+
 /** The page's statement: the filters as a WHERE over `summarySelect`, newest first, one row more than the page. */
 async function pageStatement(db: DataSource, query: WorklistQuery) {
   const where: string[] = [];
@@ -90,7 +100,7 @@ async function pageStatement(db: DataSource, query: WorklistQuery) {
   const pageSql = `${summarySelect}
      ${where.length ? `WHERE ${where.join(' AND ')}` : ''}
      ORDER BY s.sort_at DESC, s.id DESC
-     LIMIT ${param(query.limit + 1)}`;
+     LIMIT ${pageLimit(query.limit) + 1}`;
   return { pageSql, values, param };
 }
 
@@ -127,7 +137,7 @@ export async function worklistPageJson(db: DataSource, query: WorklistQuery, vie
   // One row more than the page is read (to know whether a next page exists); the audit row names
   // only the studies shown. A data-modifying CTE runs exactly once, whether or not it is read.
   const detail = param(JSON.stringify(query));
-  const limit = param(query.limit);
+  const limit = pageLimit(query.limit);
   const [row] = await preparedQuery<{ items: string; fetched: number; last_sort_key: string | null; last_id: string | null }>(
     db,
     `WITH page AS MATERIALIZED (${pageSql}),
