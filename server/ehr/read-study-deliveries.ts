@@ -1,7 +1,7 @@
 import type { DataSource } from 'typeorm';
 import type { StudyDelivery } from '../../shared/delivery/status';
 import { recordAudit } from '../audit/audit';
-import { RecordNotFoundError } from '../studies/errors';
+import { RecordNotFoundError } from '../errors';
 import type { AuditActor } from '../studies/repository';
 import { listStudyDeliveries } from './list-deliveries';
 

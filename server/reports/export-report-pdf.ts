@@ -1,7 +1,7 @@
 import type { DataSource } from 'typeorm';
 import { recordAudit } from '../audit/audit';
 import { ReportVersion } from '../db/entities/report-version.entity';
-import { RecordNotFoundError } from '../studies/errors';
+import { RecordNotFoundError } from '../errors';
 import type { AuditActor } from '../studies/repository';
 
 /**

@@ -2,7 +2,7 @@ import type { DataSource, EntityManager } from 'typeorm';
 import type { LabSettings, LabSettingsForm, LabSettingsView } from '../../shared/settings/lab-settings';
 import { recordAudit, type AuditActor } from '../audit/audit';
 import { loadConfig } from '../config';
-import { BadRequestError, HttpError, NotFoundError } from '../http/problem';
+import { InvalidRequestError, RecordNotFoundError } from '../errors';
 import { REPORT_TEMPLATE_VERSION } from '../report/template-version';
 import { isShippedTemplateVersion } from '../report/template-versions';
 
@@ -39,7 +39,7 @@ export const defaultsFrom = (config: { ehr: { fhirBaseUrl: string; allowedHosts?
  * hosts the server's configuration names, so a changed setting cannot send them to another server or
  * probe the hospital's internal network.
  */
-class EhrHostNotAllowedError extends BadRequestError {
+class EhrHostNotAllowedError extends InvalidRequestError {
   constructor(host: string, allowed: string[]) {
     super(`EHR endpoint: ${host} is not one of the hosts this server may deliver to (${allowed.join(', ')}). The server's configuration (EHR_ALLOWED_HOSTS) lists them.`, [
       { pointer: '/settings/ehrBaseUrl', detail: `EHR endpoint must be on one of: ${allowed.join(', ')}.` },
@@ -112,9 +112,10 @@ export async function labSettingsView(db: DataSource | EntityManager, defaults?:
   };
 }
 
-class StaleSettingsError extends HttpError {
-  constructor(current: LabSettingsView) {
-    super(409, 'stale-settings', 'The settings have changed since you opened them', `Someone saved version ${current.version} of the settings meanwhile. Review them and save again.`, undefined, { current });
+export class StaleSettingsError extends Error {
+  constructor(public readonly current: LabSettingsView) {
+    super(`Someone saved version ${current.version} of the settings meanwhile. Review them and save again.`);
+    this.name = 'StaleSettingsError';
   }
 }
 
@@ -158,7 +159,7 @@ export async function updateLabSettings(dataSource: DataSource, input: { setting
 
 /** Makes a shipped template version the one new signatures (and previews) use; signed versions keep theirs. */
 export async function activateTemplateVersion(dataSource: DataSource, version: string, actor: AuditActor, defaults?: ConfiguredDefaults): Promise<LabSettingsView> {
-  if (!isShippedTemplateVersion(version)) throw new NotFoundError(`No report template version "${version}" is shipped.`);
+  if (!isShippedTemplateVersion(version)) throw new RecordNotFoundError(`No report template version "${version}" is shipped.`);
   return dataSource.transaction(async (manager) => {
     const row = await readRow(manager, true);
     if (row.template_version !== version) {
