@@ -1,6 +1,6 @@
 import type { DataSource, EntityManager } from 'typeorm';
 import type { Role } from '../../shared/auth/permissions';
-import { checkTransition, transitions, type StudyAction } from '../../shared/study/state-machine';
+import { checkTransition, transitions, type StateChange } from '../../shared/study/state-machine';
 import type { StudyState } from '../../shared/study/vocabulary';
 import { recordAudit, type AuditActor } from '../audit/audit';
 import { RecordNotFoundError } from '../errors';
@@ -10,7 +10,7 @@ import { TransitionRefusedError } from './errors';
 import { latestVersion } from './sign-study';
 import { lockStudy } from '../studies/lock-study';
 
-export type StateChange = Exclude<StudyAction, 'sign' | 'sign-addendum'>;
+export type { StateChange } from '../../shared/study/state-machine';
 
 export interface ChangeStateRequest {
   studyId: string;

@@ -1,6 +1,7 @@
 import type { EntityManager } from 'typeorm';
 import { analyzeStudy, thresholdsSchema, type Thresholds } from '../../shared/physiology';
 import { resolveThresholds } from '../../shared/physiology/thresholds';
+import type { ThresholdsChoice } from '../../shared/report/thresholds-basis';
 import type { StudyRecord } from '../../shared/study/schema';
 import { toPhysiologyInput } from '../../shared/study/to-physiology';
 import { ReportVersion } from '../db/entities/report-version.entity';
@@ -16,11 +17,7 @@ function reportStudyOf(record: StudyRecord): ReportStudy {
   return { id, accession, patient, details, setup, vessels, vasoreactivity, findings, coding };
 }
 
-/**
- * For an addendum: keep the thresholds of the version it amends (`original`, the default), or apply
- * those in force at its signature (`current`). A first signature always uses those in force.
- */
-export type ThresholdsChoice = 'original' | 'current';
+export type { ThresholdsChoice };
 
 export type ReportInputWithBasis = Omit<ReportInput, 'signature'> & { thresholdsBasis: ThresholdsBasisInfo };
 
