@@ -2,8 +2,8 @@ import type { DataSource } from 'typeorm';
 import type { ReviewView } from '../../shared/coding/review';
 import { recordAudit } from '../audit/audit';
 import type { CodingActor } from './actor';
-import { loadReview } from './load-review';
-import { lockOpenReview } from './lock-review';
+import { loadReview } from './queries/review';
+import { lockOpenReview } from './queries/review-lock';
 import { sqlOf } from './sql';
 
 export class ReviewIncompleteError extends Error {

@@ -4,8 +4,8 @@ import type { DecideCode, ReviewView } from '../../shared/coding/review';
 import { recordAudit } from '../audit/audit';
 import { InvalidRequestError, RecordNotFoundError } from '../errors';
 import type { CodingActor } from './actor';
-import { loadReview } from './load-review';
-import { lockOpenReview } from './lock-review';
+import { loadReview } from './queries/review';
+import { lockOpenReview } from './queries/review-lock';
 import { sqlOf } from './sql';
 
 /**

@@ -1,8 +1,8 @@
 import { AttachmentNotFoundError, NoFileError, UnsupportedFileTypeError } from '../attachments/errors';
 import { ReviewIncompleteError } from '../coding/complete-review';
-import { ReviewCompletedError, SetSupersededError } from '../coding/lock-review';
+import { ReviewCompletedError, SetSupersededError } from '../coding/queries/review-lock';
 import { InvalidCursorError } from '../db/keyset-cursor';
-import { DeliveryBusyError } from '../ehr/resend-delivery';
+import { DeliveryBusyError } from '../ehr/queries/delivery-resend';
 import { InvalidRequestError, RecordNotFoundError, ServiceNotAnsweringError, UnacceptableValueError } from '../errors';
 import { IncompleteStudyError, ReauthenticationRequiredError, TransitionRefusedError } from '../reports/errors';
 import { StaleSettingsError } from '../settings/lab-settings';

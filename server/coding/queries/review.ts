@@ -1,7 +1,7 @@
-import type { CodeSystem, CodingWarning } from '../../shared/coding';
-import { compareCodes, inputChanges, type Decision, type FinalCode, type ReviewLine, type ReviewStatus, type ReviewView } from '../../shared/coding/review';
-import { RecordNotFoundError } from '../errors';
-import type { Sql } from './sql';
+import type { CodeSystem, CodingWarning } from '../../../shared/coding';
+import { compareCodes, inputChanges, type Decision, type FinalCode, type ReviewLine, type ReviewStatus, type ReviewView } from '../../../shared/coding/review';
+import { RecordNotFoundError } from '../../errors';
+import type { Sql } from '../sql';
 
 type LineRow = {
   id: string;

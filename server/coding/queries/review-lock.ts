@@ -1,5 +1,5 @@
-import { RecordNotFoundError } from '../errors';
-import type { Sql } from './sql';
+import { RecordNotFoundError } from '../../errors';
+import type { Sql } from '../sql';
 
 export class SetSupersededError extends Error {
   constructor(versionNo: number) {

@@ -1,6 +1,6 @@
-import { RecordNotFoundError, ServiceNotAnsweringError } from '../errors';
-import type { CaughtMessage } from '../../shared/mail/caught';
-import { readMessage } from './read-message';
+import { RecordNotFoundError, ServiceNotAnsweringError } from '../../errors';
+import type { CaughtMessage } from '../../../shared/mail/caught';
+import { readMessage } from '../read-message';
 
 export type { CaughtMessage };
 

@@ -1,6 +1,6 @@
 import { createHash } from 'node:crypto';
 import type { DataSource } from 'typeorm';
-import { ReportVersion } from '../db/entities/report-version.entity';
+import { ReportVersion } from '../../db/entities/report-version.entity';
 
 export interface Verification {
   found: boolean;

@@ -1,6 +1,6 @@
 import type { DataSource } from 'typeorm';
-import { RecordNotFoundError } from '../errors';
-import { enqueueDelivery } from './enqueue-delivery';
+import { RecordNotFoundError } from '../../errors';
+import { enqueueDelivery } from '../enqueue-delivery';
 
 export class DeliveryBusyError extends Error {
   constructor() {
