@@ -17,6 +17,7 @@ import {
   type VesselCode,
   type VesselResult,
 } from '../../shared/physiology';
+import { notUsedSentence } from '../../shared/physiology/not-used';
 import { cite } from '../../shared/physiology/thresholds';
 import { endotypeLabel, flagLabel, imrMethodLabel, nhprKindLabel, reportCaution, vasoreactivityOutcomeLabel } from '../../shared/report/labels';
 import { hasPressureIndex } from '../../shared/report/completeness';
@@ -422,9 +423,9 @@ function vesselSentences(
   const unused = !qualifyUnused
     ? ''
     : r.obstructive === true
-      ? ' Not used for the microvascular finding: the vessel has an obstructive stenosis.'
+      ? notUsedSentence('obstructive')
       : r.obstructive === undefined
-        ? ' Not used for the microvascular finding: obstruction was not excluded in this vessel.'
+        ? notUsedSentence('not-excluded')
         : '';
   const against = (op: string, key: ThresholdKey, kind: QuantityKind = 'ratio', unit = '') => `(cut-off ${op} ${q(t[key], kind)}${unit}, ${cite(t, key)})`;
 
