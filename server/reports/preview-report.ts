@@ -5,9 +5,9 @@ import { availableActions, type StudyAction } from '../../shared/study/state-mac
 import { ReportVersion } from '../db/entities/report-version.entity';
 import { RecordNotFoundError } from '../errors';
 import type { ReportDocument } from '../../shared/report/document';
-import { previewReport, reportDocument, reportKindOf } from '../report';
+import { previewReport, reportDocument, reportKindOf } from '../report-document';
 import { loadStudy } from '../studies/repository';
-import type { ThresholdsBasisInfo } from '../report/view-model';
+import type { ThresholdsBasisInfo } from '../report-document/view-model';
 import { thresholdLabels } from '../../shared/physiology/thresholds';
 import { thresholdKeys } from '../../shared/settings/threshold-ranges';
 import { reportInputFor, thresholdsFor, type ThresholdsChoice } from './report-input';

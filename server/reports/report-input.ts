@@ -5,8 +5,8 @@ import type { ThresholdsChoice } from '../../shared/report/thresholds-basis';
 import type { StudyRecord } from '../../shared/study/schema';
 import { toPhysiologyInput } from '../../shared/study/to-physiology';
 import { ReportVersion } from '../db/entities/report-version.entity';
-import type { ReportInput, ReportStudy } from '../report';
-import type { ThresholdsBasisInfo } from '../report/view-model';
+import type { ReportInput, ReportStudy } from '../report-document';
+import type { ThresholdsBasisInfo } from '../report-document/view-model';
 import { labSettings } from '../settings/lab-settings';
 import { thresholdsInForce, type ThresholdsInForce } from '../settings/thresholds';
 

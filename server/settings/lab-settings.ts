@@ -3,8 +3,8 @@ import type { LabSettings, LabSettingsForm, LabSettingsView } from '../../shared
 import { recordAudit, type AuditActor } from '../audit/audit';
 import { loadConfig } from '../config';
 import { InvalidRequestError, RecordNotFoundError } from '../errors';
-import { REPORT_TEMPLATE_VERSION } from '../report/template-version';
-import { isShippedTemplateVersion } from '../report/template-versions';
+import { REPORT_TEMPLATE_VERSION } from '../report-document/template-version';
+import { isShippedTemplateVersion } from '../report-document/template-versions';
 
 export type { LabSettings } from '../../shared/settings/lab-settings';
 

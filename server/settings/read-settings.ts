@@ -3,7 +3,7 @@ import { roleLabel, type Role } from '../../shared/auth/permissions';
 import type { RoleMapping } from '../../shared/settings/admin';
 import { recordAudit, type AuditActor } from '../audit/audit';
 import { RecordNotFoundError } from '../errors';
-import { listTemplateVersions, readTemplateVersion } from '../report/template-versions';
+import { listTemplateVersions, readTemplateVersion } from '../report-document/template-versions';
 import { labSettings, labSettingsView, type ConfiguredDefaults } from './lab-settings';
 import { thresholdOverview } from './thresholds';
 

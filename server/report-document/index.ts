@@ -1,0 +1,102 @@
+import type { PhysiologyResult, Thresholds } from '../../shared/physiology';
+import { fingerprint, renderReportPdf, sha256Hex } from './pdf';
+import { htmlDocument, renderNarrative, renderNarrativeText, type Narrative } from './render';
+import { buildReportView, signatureView, type ReportInput, type ReportStudy, type ReportView, type ThresholdsBasisInfo } from './view-model';
+
+export { canonicalContent, fingerprint, fingerprintInPdf, renderReportPdf, sha256Hex, PAGE } from './pdf';
+export { renderNarrative, htmlDocument, type Narrative } from './render';
+export { reportDocument } from './document';
+export { buildReportView, reportKindOf, type ThresholdsBasisInfo, type ReportInput, type ReportStudy, type ReportView } from './view-model';
+
+/** The statement the signer makes, stored with each version. */
+export const ATTESTATION =
+  'I performed or supervised this procedure, reviewed its measurements and this report, and confirm that the report is accurate and complete.';
+
+/**
+ * What a signature covers, as one plain-data object: the identifiers, the template version, the
+ * narrative exactly as previewed (before the signature block is added), the structured record, the
+ * analysis and the thresholds it used, the signer, the time and the attestation. Its SHA-256 over the
+ * canonical JSON (`fingerprint`) is printed on every page of the PDF.
+ */
+export interface SignedContent {
+  format: 'isobar-signed-report/1';
+  studyId: string;
+  accession: string;
+  reportVersion: number;
+  /** The version this one amends; null for the first. */
+  amends: number | null;
+  amendmentReason: string | null;
+  templateVersion: string;
+  narrative: string;
+  record: ReportStudy;
+  analysis: PhysiologyResult;
+  thresholds: Thresholds;
+  /** Which thresholds judged it (in force at signing, or an addendum's choice) and the set they came from. */
+  thresholdsBasis?: ThresholdsBasisInfo | null;
+  signer: { id: string; name: string };
+  signedAt: string;
+  attestation: string;
+}
+
+export interface SignRequest {
+  signer: { id: string; name: string };
+  /** ISO 8601 time of signing (the transaction's time). */
+  signedAt: string;
+  /** 1 for the first signature, then the previous version + 1. */
+  reportVersion: number;
+  amends?: number | null;
+  amendmentReason?: string | null;
+  attestation?: string;
+}
+
+export interface PreparedReport {
+  view: ReportView;
+  narrative: Narrative;
+  /** The narrative's HTML as a standalone page. */
+  htmlDocument: string;
+  content: SignedContent;
+  /** SHA-256 (hex) of the canonical signed content. */
+  fingerprint: string;
+  pdf: Buffer;
+  /** SHA-256 (hex) of the PDF bytes. */
+  pdfSha256: string;
+}
+
+/** The unsigned report, as the preview shows it. */
+export function previewReport(input: Omit<ReportInput, 'signature'>): { view: ReportView; narrative: Narrative } {
+  const view = buildReportView({ ...input, signature: null });
+  return { view, narrative: renderNarrative(view) };
+}
+
+/**
+ * Everything a signed version stores, built from the same input as the preview: the content and its
+ * fingerprint, then the signed narrative and PDF that print it. Pure apart from the time the PDF takes;
+ * the same input gives byte-identical output.
+ */
+export async function prepareSignedReport(input: Omit<ReportInput, 'signature'>, sign: SignRequest): Promise<PreparedReport> {
+  // The view as previewed; the signed view differs only by its signature block (see signatureView).
+  const unsigned = buildReportView({ ...input, signature: null });
+  const content: SignedContent = {
+    format: 'isobar-signed-report/1',
+    studyId: input.study.id,
+    accession: input.study.accession,
+    reportVersion: sign.reportVersion,
+    amends: sign.amends ?? null,
+    amendmentReason: sign.amendmentReason ?? null,
+    templateVersion: unsigned.templateVersion,
+    narrative: renderNarrativeText(unsigned),
+    record: input.study,
+    analysis: input.analysis,
+    thresholds: input.thresholds,
+    ...(input.thresholdsBasis ? { thresholdsBasis: input.thresholdsBasis } : {}),
+    signer: sign.signer,
+    signedAt: sign.signedAt,
+    attestation: sign.attestation ?? ATTESTATION,
+  };
+  const fp = fingerprint(content);
+  const signature = { signedBy: sign.signer.name, signedAt: sign.signedAt, reportVersion: sign.reportVersion, fingerprint: fp, amendmentReason: sign.amendmentReason ?? null };
+  const view: ReportView = { ...unsigned, signature: signatureView(signature, input.timeZone ?? 'UTC') };
+  const narrative = renderNarrative(view);
+  const pdf = await renderReportPdf(view);
+  return { view, narrative, htmlDocument: htmlDocument(view, narrative.html), content, fingerprint: fp, pdf, pdfSha256: sha256Hex(pdf) };
+}
