@@ -15,7 +15,7 @@ import request from 'supertest';
 import { createDataSource } from '../server/db/data-source';
 import { prepareDatabase } from '../server/cli/prepare-database';
 import { demoStudies } from '../server/demo/scenario';
-import { pdfRenderedChannel } from '../server/report/pdf';
+import { pdfRenderedChannel } from '../server/report-document/pdf';
 import { signStepsChannel } from '../server/reports/sign-study';
 import type { StudyRecord } from '../shared/study/schema';
 import { studyLikeDemo } from '../tests/support/reports';

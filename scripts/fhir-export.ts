@@ -7,7 +7,7 @@ import { demoStudies } from '../server/demo/scenario';
 import { seedDemo } from '../server/demo/seed';
 import { BundleBuildError } from '../server/ehr/build-report-bundle';
 import { typeormQuery } from '../server/ehr/deliver-report';
-import { bundleOfLoaded, loadReportVersion } from '../server/ehr/load-report-version';
+import { bundleOfLoaded, loadReportVersion } from '../server/ehr/queries/report-version';
 import { checkBundle, errorsOf, warmUpValidation, type Issue } from '../server/ehr/validate-bundle';
 
 /**

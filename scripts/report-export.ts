@@ -8,7 +8,7 @@ import { loadConfig } from '../server/config';
 import { prepareDatabase } from '../server/cli/prepare-database';
 import { createDataSource } from '../server/db/data-source';
 import { seedDemo } from '../server/demo/seed';
-import { fingerprintInPdf, sha256Hex } from '../server/report';
+import { fingerprintInPdf, sha256Hex } from '../server/report-document';
 
 const outDir = process.argv[2];
 const databaseUrl = process.env.DATABASE_URL;

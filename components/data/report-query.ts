@@ -1,6 +1,7 @@
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import type { MissingItem } from '../../shared/report/completeness';
 import type { ReportDocument } from '../../shared/report/document';
+import type { ThresholdsBasis, ThresholdsChoice } from '../../shared/report/thresholds-basis';
 import type { StudyAction } from '../../shared/study/state-machine';
 import { apiFetch } from './api';
 
@@ -27,16 +28,13 @@ export interface ReportPreview {
   actions: StudyAction[];
   /** Which thresholds judge this preview; for an open addendum the choice between the amended version's and those in force now. */
   thresholds?: {
-    basis: 'in-force' | 'original' | 'current';
+    basis: ThresholdsBasis;
     effectiveFrom: string | null;
     setId: number | null;
     amendedVersion: number | null;
     choice: null | { chosen: ThresholdsChoice; differences: Array<{ key: string; label: string; original: number; current: number }> };
   };
 }
-
-/** An addendum keeps the amended version's thresholds (`original`) unless the physician chooses those in force now (`current`). */
-export type ThresholdsChoice = 'original' | 'current';
 
 export const reportKeys = { preview: (studyId: string, thresholds: ThresholdsChoice = 'original') => ['studies', 'report', studyId, thresholds] as const };
 

@@ -4,7 +4,8 @@ import type { DataSource } from 'typeorm';
 import { stringify } from 'csv-stringify/sync';
 import { auditBundleWriter, toFhirAuditEvent, type AuditEventContext } from '../../fhir/audit-event';
 import { csvExportOptions } from '../../shared/csv/neutralise';
-import { labelOfAction, type AuditExportFormat, type AuditFilters } from '../../shared/audit/trail';
+import { filtersUsed, labelOfAction, type AuditExportFormat, type AuditFilters } from '../../shared/audit/trail';
+import { recordAudit, type AuditActor } from './audit';
 import { auditRowBatches, targetOf, type AuditTrailRow } from './audit-trail';
 
 /** A FHIR Bundle holds at most this many events; its `next` link continues from there. */
@@ -80,6 +81,18 @@ export interface ExportRequest {
   fhir: AuditEventContext;
   /** Download (Content-Disposition: attachment) or an API answer. */
   download: boolean;
+}
+
+/** Exports the filtered audit trail (see `streamAuditExport`), recording first who exported it, in which format and with which filters. */
+export async function exportAuditTrail(db: DataSource, res: Response, req: ExportRequest, actor: AuditActor): Promise<void> {
+  await recordAudit(db, {
+    ...actor,
+    action: 'export',
+    entityType: 'audit-event',
+    outcome: 'success',
+    detail: { format: req.format, filters: filtersUsed(req.filters), ...(req.cursor ? { continued: true } : {}) },
+  });
+  await streamAuditExport(db, res, req);
 }
 
 /**

@@ -1,8 +1,8 @@
 import type { DataSource, EntityManager } from 'typeorm';
-import { labelOfAction, type AuditFilters, type AuditOutcomeCode, type AuditTrailItem, type AuditTrailPage } from '../../shared/audit/trail';
+import { filtersUsed, labelOfAction, type AuditFilters, type AuditOutcomeCode, type AuditTrailItem, type AuditTrailPage } from '../../shared/audit/trail';
 import { bigintIdPattern, decodeKeysetCursor, encodeKeysetCursor, type KeysetCursor } from '../db/keyset-cursor';
 import { uuidPattern } from '../../shared/uuid';
-import { recordAudit, type AuditEntry } from './audit';
+import { recordAudit, type AuditActor, type AuditEntry } from './audit';
 
 type Db = DataSource | EntityManager;
 
@@ -238,11 +238,19 @@ export async function readAuditRows(
 }
 
 /**
- * One page of the trail for people: in words, with the cursor of the next page. With `audit`, the
- * search is recorded (its detail completed with the rows returned) by the statement that reads the page.
+ * One page of the trail for people: in words, with the cursor of the next page. With `actor`, the
+ * search is recorded with the filters used (its detail completed with the rows returned) by the
+ * statement that reads the page: one round trip, one commit.
  */
-export async function readAuditTrail(db: Db, filters: AuditFilters, cursor: string | undefined, limit: number, audit?: AuditEntry): Promise<AuditTrailPage> {
+export async function readAuditTrail(db: Db, filters: AuditFilters, cursor: string | undefined, limit: number, actor?: AuditActor): Promise<AuditTrailPage> {
   const after = cursor ? decodeAuditCursor(cursor) : null;
+  const audit: AuditEntry | undefined = actor && {
+    ...actor,
+    action: 'search',
+    entityType: 'audit-event',
+    outcome: 'success',
+    detail: { filters: filtersUsed(filters), ...(cursor ? { nextPage: true } : {}) },
+  };
   const search = await prepareSearch(db, filters);
   const rows = await readAuditRows(db, search, after, limit + 1, audit ? { entry: audit, shown: limit } : undefined);
   const page = rows.slice(0, limit);

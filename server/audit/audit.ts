@@ -1,27 +1,12 @@
 import type { Request } from 'express';
 import type { DataSource, EntityManager } from 'typeorm';
 
-export type AuditOutcome = 'success' | 'failure' | 'denied';
+import type { AuditActionCode, AuditOutcomeCode } from '../../shared/audit/trail';
 
-/** What happened; kebab-case verbs naming the act, not the route. */
-export type AuditAction =
-  | 'sign-in'
-  | 'sign-in-failed'
-  | 'sign-out'
-  | 'access-denied'
-  | 'read'
-  | 'search'
-  | 'create'
-  | 'update'
-  | 'delete'
-  | 'export'
-  | 'mark-ready'
-  | 'send-back'
-  | 'sign'
-  | 'open-addendum'
-  | 'sign-addendum'
-  | 'discard-addendum'
-  | 'verify';
+export type AuditOutcome = AuditOutcomeCode;
+
+/** What happened; kebab-case verbs naming the act, not the route (the list is `auditActions` in shared/audit/trail.ts). */
+export type AuditAction = AuditActionCode;
 
 export interface AuditEntry {
   actorUserId?: string | null;

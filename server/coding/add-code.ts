@@ -2,8 +2,8 @@ import type { DataSource } from 'typeorm';
 import type { AddCode, ReviewView } from '../../shared/coding/review';
 import { recordAudit } from '../audit/audit';
 import type { CodingActor } from './actor';
-import { loadReview } from './load-review';
-import { lockOpenReview } from './lock-review';
+import { loadReview } from './queries/review';
+import { lockOpenReview } from './queries/review-lock';
 import { sqlOf } from './sql';
 
 /** Adds a code the engine did not suggest (any system), with the coder's reason. */

@@ -1,15 +1,14 @@
 import type { DataSource } from 'typeorm';
 import type { ReviewView } from '../../shared/coding/review';
 import { recordAudit } from '../audit/audit';
-import { HttpError } from '../http/problem';
 import type { CodingActor } from './actor';
-import { loadReview } from './load-review';
-import { lockOpenReview } from './lock-review';
+import { loadReview } from './queries/review';
+import { lockOpenReview } from './queries/review-lock';
 import { sqlOf } from './sql';
 
-class ReviewIncompleteError extends HttpError {
-  constructor(blockers: string[]) {
-    super(409, 'review-incomplete', 'The review cannot be completed yet', blockers.join(' '), blockers.map((b) => ({ pointer: '', detail: b })));
+export class ReviewIncompleteError extends Error {
+  constructor(public readonly blockers: string[]) {
+    super(blockers.join(' '));
   }
 }
 

@@ -2,10 +2,10 @@ import type { DataSource } from 'typeorm';
 import { checkCodeLine, type CodeSystem } from '../../shared/coding';
 import type { DecideCode, ReviewView } from '../../shared/coding/review';
 import { recordAudit } from '../audit/audit';
-import { BadRequestError, NotFoundError } from '../http/problem';
+import { InvalidRequestError, RecordNotFoundError } from '../errors';
 import type { CodingActor } from './actor';
-import { loadReview } from './load-review';
-import { lockOpenReview } from './lock-review';
+import { loadReview } from './queries/review';
+import { lockOpenReview } from './queries/review-lock';
 import { sqlOf } from './sql';
 
 /**
@@ -18,10 +18,10 @@ export async function decideCode(dataSource: DataSource, studyId: string, input:
     const sql = sqlOf(manager);
     const review = await lockOpenReview(sql, studyId, input.setId);
     const [line] = await sql(`SELECT id, system, code, units, modifiers FROM code_line WHERE id = $1 AND set_id = $2`, [input.lineId, review.setId]);
-    if (!line) throw new NotFoundError('No code line of this study has this id.');
+    if (!line) throw new RecordNotFoundError('No code line of this study has this id.');
     if (input.decision === 'edit') {
       const problems = checkCodeLine({ system: line.system as CodeSystem, code: input.code, units: input.units, modifiers: input.modifiers });
-      if (problems.length) throw new BadRequestError('The edited code has fields to correct.', problems.map((p) => ({ pointer: `/${p.field}`, detail: p.message })));
+      if (problems.length) throw new InvalidRequestError('The edited code has fields to correct.', problems.map((p) => ({ pointer: `/${p.field}`, detail: p.message })));
     }
     const edit = input.decision === 'edit' ? input : null;
     await sql(

@@ -1,7 +1,7 @@
 import type { DataSource } from 'typeorm';
 import { recordAudit } from '../audit/audit';
 import type { AuditActor } from '../studies/repository';
-import { exportCodes, type ExportedCode } from './export-codes';
+import { exportCodes, type ExportedCode } from './queries/reviewed-codes';
 import { sqlOf } from './sql';
 
 /** The reviewed codes of the studies coded between two days, the export recorded in the audit trail with its format and the studies it held. */

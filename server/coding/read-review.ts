@@ -2,7 +2,7 @@ import type { DataSource } from 'typeorm';
 import type { ReviewView } from '../../shared/coding/review';
 import { recordAudit } from '../audit/audit';
 import type { AuditActor } from '../studies/repository';
-import { loadReview } from './load-review';
+import { loadReview } from './queries/review';
 import { sqlOf } from './sql';
 
 /** A study's code review, the read recorded in the audit trail. */

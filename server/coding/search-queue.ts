@@ -2,7 +2,7 @@ import type { DataSource } from 'typeorm';
 import type { CodingQueueQuery, QueueItem } from '../../shared/coding/review';
 import { recordAudit } from '../audit/audit';
 import type { AuditActor } from '../studies/repository';
-import { listQueue } from './list-queue';
+import { listQueue } from './queries/queue';
 import { sqlOf } from './sql';
 
 /** The coding queue under the filters, the search recorded in the audit trail with the studies it showed. */

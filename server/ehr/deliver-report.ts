@@ -2,7 +2,7 @@ import type { Bundle, OperationOutcome } from 'fhir/r4';
 import type { DeliveryIssue, DeliveryStatus, EhrResourceId } from '../../shared/delivery/status';
 import type { SendResult } from './ehr-client';
 import { BundleBuildError, bundleIdentifierOf } from './build-report-bundle';
-import { bundleOfLoaded, loadReportVersion, type Query } from './load-report-version';
+import { bundleOfLoaded, loadReportVersion, type Query } from './queries/report-version';
 
 export type { Query };
 

@@ -1,9 +1,9 @@
 import type { DataSource } from 'typeorm';
 import type { StudyDelivery } from '../../shared/delivery/status';
 import { recordAudit } from '../audit/audit';
-import { RecordNotFoundError } from '../studies/errors';
+import { RecordNotFoundError } from '../errors';
 import type { AuditActor } from '../studies/repository';
-import { listStudyDeliveries } from './list-deliveries';
+import { listStudyDeliveries } from './queries/deliveries';
 
 /** The EHR delivery of each signed version of a study, the read recorded in the audit trail. */
 export async function readStudyDeliveries(dataSource: DataSource, studyId: string, actor: AuditActor): Promise<StudyDelivery[]> {

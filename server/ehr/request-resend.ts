@@ -1,7 +1,7 @@
 import type { DataSource } from 'typeorm';
 import { recordAudit } from '../audit/audit';
 import type { AuditActor } from '../studies/repository';
-import { resendDelivery } from './resend-delivery';
+import { resendDelivery } from './queries/delivery-resend';
 
 /** Sends a signed report version to the EHR again at a user's request, recorded in the audit trail with the status it had. */
 export async function requestResend(dataSource: DataSource, reportVersionId: string, actor: AuditActor): Promise<void> {

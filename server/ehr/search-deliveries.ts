@@ -2,7 +2,7 @@ import type { DataSource } from 'typeorm';
 import type { DeliveryListItem, DeliveryStatus } from '../../shared/delivery/status';
 import { recordAudit } from '../audit/audit';
 import type { AuditActor } from '../studies/repository';
-import { listDeliveriesNeedingAttention } from './list-deliveries';
+import { listDeliveriesNeedingAttention } from './queries/deliveries';
 
 /** The deliveries needing attention, the read recorded in the audit trail with the report versions it showed. */
 export async function searchDeliveries(dataSource: DataSource, statuses: readonly DeliveryStatus[] | undefined, actor: AuditActor): Promise<DeliveryListItem[]> {

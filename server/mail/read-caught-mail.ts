@@ -1,7 +1,7 @@
 import type { DataSource } from 'typeorm';
 import { recordAudit } from '../audit/audit';
 import type { AuditActor } from '../studies/repository';
-import { listCaughtMail } from './caught-mail';
+import { listCaughtMail } from './queries/caught-mail';
 
 /** What the local mail stand-in caught, newest first; the read recorded in the audit trail. */
 export async function readCaughtMail(dataSource: DataSource, listUrl: string | null, actor: AuditActor): Promise<Awaited<ReturnType<typeof listCaughtMail>>> {

@@ -1,9 +1,9 @@
 import type { DataSource, EntityManager } from 'typeorm';
 import type { Role } from '../../shared/auth/permissions';
-import { checkTransition, transitions, type StudyAction } from '../../shared/study/state-machine';
+import { checkTransition, transitions, type StateChange } from '../../shared/study/state-machine';
 import type { StudyState } from '../../shared/study/vocabulary';
 import { recordAudit, type AuditActor } from '../audit/audit';
-import { NotFoundError } from '../http/problem';
+import { RecordNotFoundError } from '../errors';
 import { loadStudy, StaleVersionError, writeSections } from '../studies/repository';
 import type { StudyRecord } from '../../shared/study/schema';
 import { TransitionRefusedError } from './errors';
@@ -11,7 +11,7 @@ import { latestVersion } from './sign-study';
 import { lockStudy } from '../studies/lock-study';
 import { Study } from '../db/entities/study.entity';
 
-export type StateChange = Exclude<StudyAction, 'sign' | 'sign-addendum'>;
+export type { StateChange } from '../../shared/study/state-machine';
 
 export interface ChangeStateRequest {
   studyId: string;
@@ -29,7 +29,7 @@ export interface ChangeStateRequest {
 export async function changeStudyState(dataSource: DataSource, req: ChangeStateRequest): Promise<StudyRecord> {
   return dataSource.transaction(async (manager) => {
     const row = await lockStudy(manager, req.studyId);
-    if (!row) throw new NotFoundError('No study has this id.');
+    if (!row) throw new RecordNotFoundError('No study has this id.');
     const state = row.state as StudyState;
     const refusal = checkTransition(state, req.action, req.role, req.reason);
     if (refusal) throw new TransitionRefusedError(refusal, `“${transitions[req.action].label}” is not possible for a ${state} study${refusal === 'not-permitted' ? ' with your role' : ''}.`);

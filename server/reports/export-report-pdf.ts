@@ -2,7 +2,7 @@ import type { DataSource } from 'typeorm';
 import { recordAudit } from '../audit/audit';
 import { ReportPdf } from '../db/entities/report-version.entity';
 import { Study } from '../db/entities/study.entity';
-import { RecordNotFoundError } from '../studies/errors';
+import { RecordNotFoundError } from '../errors';
 import type { AuditActor } from '../studies/repository';
 
 /**

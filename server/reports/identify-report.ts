@@ -1,7 +1,7 @@
 import type { DataSource } from 'typeorm';
 import { recordAudit } from '../audit/audit';
 import type { AuditActor } from '../studies/repository';
-import { verifyReport, type Verification } from './verify-report';
+import { verifyReport, type Verification } from './queries/report-verification';
 
 /** Which study and version a PDF or a printed fingerprint is; the check is recorded in the audit trail. */
 export async function identifyReport(dataSource: DataSource, evidence: { pdf?: Buffer; fingerprint?: string }, actor: AuditActor): Promise<Verification> {

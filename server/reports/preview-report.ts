@@ -3,11 +3,11 @@ import type { Role } from '../../shared/auth/permissions';
 import { checkCompleteness, type CompletenessResult } from '../../shared/report/completeness';
 import { availableActions, type StudyAction } from '../../shared/study/state-machine';
 import { ReportVersion } from '../db/entities/report-version.entity';
-import { NotFoundError } from '../http/problem';
+import { RecordNotFoundError } from '../errors';
 import type { ReportDocument } from '../../shared/report/document';
-import { previewReport, reportDocument, reportKindOf } from '../report';
+import { previewReport, reportDocument, reportKindOf } from '../report-document';
 import { loadStudy } from '../studies/repository';
-import type { ThresholdsBasisInfo } from '../report/view-model';
+import type { ThresholdsBasisInfo } from '../report-document/view-model';
 import { thresholdLabels } from '../../shared/physiology/thresholds';
 import { thresholdKeys } from '../../shared/settings/threshold-ranges';
 import { reportInputFor, thresholdsFor, type ThresholdsChoice } from './report-input';
@@ -45,7 +45,7 @@ export async function previewStudyReport(
   choice: ThresholdsChoice = 'original',
 ): Promise<ReportPreview> {
   const record = await loadStudy(dataSource, studyId);
-  if (!record) throw new NotFoundError('No study has this id.');
+  if (!record) throw new RecordNotFoundError('No study has this id.');
   const now = new Date();
   const input = await reportInputFor(dataSource.manager, record, hospital, now, choice);
   let thresholdChoice: ReportPreview['thresholds']['choice'] = null;

@@ -1,13 +1,14 @@
 import type { EntityManager } from 'typeorm';
 import { analyzeStudy, thresholdsSchema, type Thresholds } from '../../shared/physiology';
 import { resolveThresholds } from '../../shared/physiology/thresholds';
+import type { ThresholdsChoice } from '../../shared/report/thresholds-basis';
 import type { StudyRecord } from '../../shared/study/schema';
 import { toPhysiologyInput } from '../../shared/study/to-physiology';
 import { ReportVersion } from '../db/entities/report-version.entity';
 import { ThresholdSet } from '../db/entities/measurement.entities';
 import { User } from '../db/entities/user.entity';
-import type { ReportInput, ReportStudy } from '../report';
-import type { ThresholdsBasisInfo } from '../report/view-model';
+import type { ReportInput, ReportStudy } from '../report-document';
+import type { ThresholdsBasisInfo } from '../report-document/view-model';
 import { labSettings } from '../settings/lab-settings';
 import { thresholdsInForce, type ThresholdsInForce } from '../settings/thresholds';
 
@@ -18,11 +19,7 @@ function reportStudyOf(record: StudyRecord): ReportStudy {
   return { id, accession, patient, details, setup, vessels, vasoreactivity, findings, coding };
 }
 
-/**
- * For an addendum: keep the thresholds of the version it amends (`original`, the default), or apply
- * those in force at its signature (`current`). A first signature always uses those in force.
- */
-export type ThresholdsChoice = 'original' | 'current';
+export type { ThresholdsChoice };
 
 export type ReportInputWithBasis = Omit<ReportInput, 'signature'> & { thresholdsBasis: ThresholdsBasisInfo };
 

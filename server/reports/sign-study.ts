@@ -6,8 +6,8 @@ import type { Role } from '../../shared/auth/permissions';
 import { checkTransition } from '../../shared/study/state-machine';
 import { auditColumns, auditParameters, type AuditActor, type AuditEntry } from '../audit/audit';
 import { ReportVersion } from '../db/entities/report-version.entity';
-import { BadRequestError, NotFoundError } from '../http/problem';
-import { ATTESTATION, prepareSignedText, renderSignedPdf } from '../report';
+import { InvalidRequestError, RecordNotFoundError } from '../errors';
+import { ATTESTATION, prepareSignedText, renderSignedPdf } from '../report-document';
 import { loadStudy, StaleVersionError } from '../studies/repository';
 import { connectionOf, namedStatement, preparedOn } from '../db/prepared';
 import type { PoolClient } from 'pg';
@@ -93,14 +93,14 @@ export async function signStudy(dataSource: DataSource, req: SignStudyRequest): 
   const summary = await dataSource.transaction(async (manager) => {
     step('begin');
     const record = await loadStudy(manager, req.studyId, { forUpdate: true });
-    if (!record) throw new NotFoundError('No study has this id.');
+    if (!record) throw new RecordNotFoundError('No study has this id.');
     const state = record.state;
     const addendum = state === 'amending';
     const refusal = checkTransition(state, addendum ? 'sign-addendum' : 'sign', req.signer.role, req.reason);
     if (refusal) throw new TransitionRefusedError(refusal, refusal === 'wrong-state' ? `A ${state} study cannot be signed.` : refusal === 'reason-required' ? 'An addendum needs the reason for the change.' : 'Only a physician may sign.');
     if (record.version !== req.studyVersion) throw new StaleVersionError(record);
     if (!addendum && req.thresholds === 'original') {
-      throw new BadRequestError('Only an addendum can keep the thresholds of an earlier version.', [{ pointer: '/thresholds', detail: 'A first signature uses the thresholds in force; leave thresholds out or send "current".' }]);
+      throw new InvalidRequestError('Only an addendum can keep the thresholds of an earlier version.', [{ pointer: '/thresholds', detail: 'A first signature uses the thresholds in force; leave thresholds out or send "current".' }]);
     }
     const completeness = checkCompleteness(record);
     if (!completeness.complete) throw new IncompleteStudyError(completeness.missing);

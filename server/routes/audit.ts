@@ -1,9 +1,9 @@
 import type { Request, Response } from 'express';
 import type { DataSource } from 'typeorm';
 import { auditExportQuerySchema, auditTrailQuerySchema, filtersUsed, type AuditExportFormat, type AuditFilters } from '../../shared/audit/trail';
-import { auditContext, recordAudit } from '../audit/audit';
+import { auditContext } from '../audit/audit';
 import { readAuditTrail } from '../audit/audit-trail';
-import { streamAuditExport } from '../audit/audit-export';
+import { exportAuditTrail } from '../audit/audit-export';
 import type { Config } from '../config';
 import type { ApiRoute } from '../http/routes';
 import { parseOrThrow } from '../http/validate';
@@ -21,23 +21,21 @@ export function auditRoutes({ dataSource, config }: { dataSource: DataSource; co
       const params = new URLSearchParams({ ...(filtersUsed(filters) as Record<string, string>), ...(download ? { format: query.format } : {}), ...(query._count ? { _count: String(query._count) } : {}), ...(cursor ? { cursor } : {}) });
       return `${config.publicUrl}${path}?${params}`;
     };
-    await recordAudit(dataSource, {
-      ...auditContext(req),
-      action: 'export',
-      entityType: 'audit-event',
-      outcome: 'success',
-      detail: { format: query.format, filters: filtersUsed(filters), ...(query.cursor ? { continued: true } : {}) },
-    });
-    await streamAuditExport(dataSource, res, {
-      filters,
-      format: query.format,
-      cursor: query.cursor,
-      count: query._count,
-      selfUrl: url(query.cursor),
-      nextUrl: (cursor) => url(cursor),
-      fhir: { patientIdSystem: config.ehr.identifierSystems.patient },
-      download,
-    });
+    await exportAuditTrail(
+      dataSource,
+      res,
+      {
+        filters,
+        format: query.format,
+        cursor: query.cursor,
+        count: query._count,
+        selfUrl: url(query.cursor),
+        nextUrl: (cursor) => url(cursor),
+        fhir: { patientIdSystem: config.ehr.identifierSystems.patient },
+        download,
+      },
+      auditContext(req),
+    );
   };
   return [
     {
@@ -48,15 +46,7 @@ export function auditRoutes({ dataSource, config }: { dataSource: DataSource; co
       handlers: [
         async (req, res) => {
           const query = parseOrThrow(auditTrailQuerySchema, req.query, 'The audit trail filter');
-          // The search is recorded by the statement that reads the page; `returned` is added there.
-          const page = await readAuditTrail(dataSource, query, query.cursor, query.limit, {
-            ...auditContext(req),
-            action: 'search',
-            entityType: 'audit-event',
-            outcome: 'success',
-            detail: { filters: filtersUsed(query), ...(query.cursor ? { nextPage: true } : {}) },
-          });
-          res.json(page);
+          res.json(await readAuditTrail(dataSource, query, query.cursor, query.limit, auditContext(req)));
         },
       ],
     },

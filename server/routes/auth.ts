@@ -1,11 +1,12 @@
 import rateLimit from 'express-rate-limit';
-import type { Request, RequestHandler } from 'express';
+import type { RequestHandler } from 'express';
 import type { DataSource } from 'typeorm';
 import type { Config } from '../config';
 import { homeOf, permissionsOf } from '../../shared/auth/permissions';
-import { auditContext, recordAudit } from '../audit/audit';
+import { auditContext } from '../audit/audit';
 import { authTimeOf, mapRole, pkce, type IdentityProvider } from '../auth/oidc';
 import { provisionUser } from '../auth/provision-user';
+import { recordFailedSignIn, recordSignIn, recordSignOut } from '../auth/sign-in-events';
 import { destroySession, regenerateSession, saveSession, sessionCookieName } from '../auth/session';
 import type { ApiRoute } from '../http/routes';
 import { HttpError } from '../http/problem';
@@ -37,10 +38,6 @@ export function authRoutes(deps: { config: Config; dataSource: DataSource; idp: 
     handler: (_req, _res, next) =>
       next(new HttpError(429, 'too-many-sign-in-attempts', 'Too many sign-in attempts', 'Wait a minute, then try again.')),
   });
-
-  const failSignIn = async (req: Request, reason: string, detail?: Record<string, unknown>) => {
-    await recordAudit(dataSource, { ...auditContext(req), action: 'sign-in-failed', outcome: 'failure', detail: { reason, ...detail } });
-  };
 
   return [
     {
@@ -91,12 +88,12 @@ export function authRoutes(deps: { config: Config; dataSource: DataSource; idp: 
           const pending = req.session.pending;
           if (typeof req.query.error === 'string') {
             // The provider's error text comes from the address bar: anyone can write it. Keep a fixed code.
-            await failSignIn(req, 'provider-error');
+            await recordFailedSignIn(dataSource, auditContext(req), 'provider-error');
             res.redirect(303, '/sign-in?error=provider-refused');
             return;
           }
           if (!pending || Date.now() - pending.startedAt > pendingTtlMs) {
-            await failSignIn(req, 'no-pending-sign-in');
+            await recordFailedSignIn(dataSource, auditContext(req), 'no-pending-sign-in');
             res.redirect(303, '/sign-in?error=expired');
             return;
           }
@@ -106,7 +103,7 @@ export function authRoutes(deps: { config: Config; dataSource: DataSource; idp: 
             ({ claims, idToken } = await idp.exchange(new URL(req.originalUrl, config.publicUrl), pending));
           } catch {
             // The library's message may quote the provider's response; keep a fixed code only.
-            await failSignIn(req, 'token-exchange-failed');
+            await recordFailedSignIn(dataSource, auditContext(req), 'token-exchange-failed');
             res.redirect(303, '/sign-in?error=failed');
             return;
           }
@@ -120,7 +117,7 @@ export function authRoutes(deps: { config: Config; dataSource: DataSource; idp: 
             if (!fresh || !samePerson) {
               delete req.session.pending;
               await saveSession(req.session);
-              await failSignIn(req, fresh ? 'reauthentication-other-user' : 'reauthentication-not-fresh');
+              await recordFailedSignIn(dataSource, auditContext(req), fresh ? 'reauthentication-other-user' : 'reauthentication-not-fresh');
               res.redirect(303, previous ? (pending.returnTo ?? '/') : '/sign-in?error=failed');
               return;
             }
@@ -147,14 +144,7 @@ export function authRoutes(deps: { config: Config; dataSource: DataSource; idp: 
             ...(authTime !== null ? { authenticatedAt: Math.min(authTime, now) } : {}),
           };
           await saveSession(req.session);
-          await recordAudit(dataSource, {
-            ...auditContext(req),
-            action: 'sign-in',
-            entityType: 'user',
-            entityId: user.id,
-            outcome: 'success',
-            ...(pending.reauth ? { detail: { reauthentication: true } } : {}),
-          });
+          await recordSignIn(dataSource, auditContext(req), user.id, { reauthentication: pending.reauth === true });
           res.redirect(303, pending.returnTo ?? (role ? homeOf[role] : '/'));
         },
       ],
@@ -169,7 +159,7 @@ export function authRoutes(deps: { config: Config; dataSource: DataSource; idp: 
           const auth = req.session?.auth;
           let redirect = '/sign-in?signedOut=1';
           if (auth) {
-            await recordAudit(dataSource, { ...auditContext(req), action: 'sign-out', entityType: 'user', entityId: auth.userId, outcome: 'success' });
+            await recordSignOut(dataSource, auditContext(req), auth.userId);
             const end = await idp.endSessionUrl({ idToken: auth.idToken, postLogoutRedirectUri: `${config.publicUrl}/sign-in?signedOut=1` });
             if (end) redirect = end.href;
           }

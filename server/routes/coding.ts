@@ -8,7 +8,7 @@ import type { CodingActor } from '../coding/actor';
 import { addCode } from '../coding/add-code';
 import { completeReview } from '../coding/complete-review';
 import { decideCode } from '../coding/decide-code';
-import { codesToCsv } from '../coding/export-codes';
+import { codesToCsv } from '../coding/queries/reviewed-codes';
 import { exportReviewedCodes } from '../coding/export-reviewed-codes';
 import { readReview } from '../coding/read-review';
 import { searchCodingQueue } from '../coding/search-queue';

@@ -1,6 +1,8 @@
 import express, { type Request } from 'express';
 import type { DataSource } from 'typeorm';
 import { z } from 'zod';
+import { thresholdsChoices } from '../../shared/report/thresholds-basis';
+import { stateChanges } from '../../shared/study/state-machine';
 import { auditContext } from '../audit/audit';
 import type { Config } from '../config';
 import type { ApiRoute } from '../http/routes';
@@ -17,11 +19,11 @@ const idParam = (req: Request, what = 'study') => uuidParam(req, what);
 
 const reasonSchema = z.string({ error: 'reason must be text.' }).trim().max(1000, { error: 'The reason is too long (at most 1000 characters).' }).nullable().optional();
 const versionSchema = z.number({ error: 'version is required: the study version you previewed.' }).int().min(1);
-const thresholdsChoiceSchema = z.enum(['original', 'current'], { error: 'thresholds must be "original" (keep the amended version\'s) or "current" (those in force now).' });
+const thresholdsChoiceSchema = z.enum(thresholdsChoices, { error: 'thresholds must be "original" (keep the amended version\'s) or "current" (those in force now).' });
 const signSchema = z.strictObject({ version: versionSchema, reason: reasonSchema, thresholds: thresholdsChoiceSchema.optional() });
 const previewQuerySchema = z.object({ thresholds: thresholdsChoiceSchema.optional() });
 const transitionSchema = z.strictObject({
-  action: z.enum(['mark-ready', 'send-back', 'open-addendum', 'discard-addendum'], { error: 'action must be mark-ready, send-back, open-addendum or discard-addendum.' }),
+  action: z.enum(stateChanges, { error: `action must be ${stateChanges.slice(0, -1).join(', ')} or ${stateChanges.at(-1)}.` }),
   version: versionSchema,
   reason: reasonSchema,
 });

@@ -3,9 +3,9 @@ import type { LabSettings, LabSettingsForm, LabSettingsView } from '../../shared
 import { recordAudit, type AuditActor } from '../audit/audit';
 import { LabSettingsRecord } from '../db/entities/lab-settings.entity';
 import { loadConfig } from '../config';
-import { BadRequestError, HttpError, NotFoundError } from '../http/problem';
-import { REPORT_TEMPLATE_VERSION } from '../report/template-version';
-import { isShippedTemplateVersion } from '../report/template-versions';
+import { InvalidRequestError, RecordNotFoundError } from '../errors';
+import { REPORT_TEMPLATE_VERSION } from '../report-document/template-version';
+import { isShippedTemplateVersion } from '../report-document/template-versions';
 
 export type { LabSettings } from '../../shared/settings/lab-settings';
 
@@ -40,7 +40,7 @@ export const defaultsFrom = (config: { ehr: { fhirBaseUrl: string; allowedHosts?
  * hosts the server's configuration names, so a changed setting cannot send them to another server or
  * probe the hospital's internal network.
  */
-class EhrHostNotAllowedError extends BadRequestError {
+class EhrHostNotAllowedError extends InvalidRequestError {
   constructor(host: string, allowed: string[]) {
     super(`EHR endpoint: ${host} is not one of the hosts this server may deliver to (${allowed.join(', ')}). The server's configuration (EHR_ALLOWED_HOSTS) lists them.`, [
       { pointer: '/settings/ehrBaseUrl', detail: `EHR endpoint must be on one of: ${allowed.join(', ')}.` },
@@ -137,9 +137,10 @@ export async function labSettingsView(db: DataSource | EntityManager, defaults?:
   };
 }
 
-class StaleSettingsError extends HttpError {
-  constructor(current: LabSettingsView) {
-    super(409, 'stale-settings', 'The settings have changed since you opened them', `Someone saved version ${current.version} of the settings meanwhile. Review them and save again.`, undefined, { current });
+export class StaleSettingsError extends Error {
+  constructor(public readonly current: LabSettingsView) {
+    super(`Someone saved version ${current.version} of the settings meanwhile. Review them and save again.`);
+    this.name = 'StaleSettingsError';
   }
 }
 
@@ -189,7 +190,7 @@ export async function updateLabSettings(dataSource: DataSource, input: { setting
 
 /** Makes a shipped template version the one new signatures (and previews) use; signed versions keep theirs. */
 export async function activateTemplateVersion(dataSource: DataSource, version: string, actor: AuditActor, defaults?: ConfiguredDefaults): Promise<LabSettingsView> {
-  if (!isShippedTemplateVersion(version)) throw new NotFoundError(`No report template version "${version}" is shipped.`);
+  if (!isShippedTemplateVersion(version)) throw new RecordNotFoundError(`No report template version "${version}" is shipped.`);
   return dataSource.transaction(async (manager) => {
     const row = await readRow(manager, true);
     if (row.templateVersion !== version) {

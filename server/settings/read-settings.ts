@@ -2,8 +2,8 @@ import type { DataSource } from 'typeorm';
 import { roleLabel, type Role } from '../../shared/auth/permissions';
 import type { RoleMapping } from '../../shared/settings/admin';
 import { recordAudit, type AuditActor } from '../audit/audit';
-import { NotFoundError } from '../http/problem';
-import { listTemplateVersions, readTemplateVersion } from '../report/template-versions';
+import { RecordNotFoundError } from '../errors';
+import { listTemplateVersions, readTemplateVersion } from '../report-document/template-versions';
 import { labSettings, labSettingsView, type ConfiguredDefaults } from './lab-settings';
 import { thresholdOverview } from './thresholds';
 
@@ -51,7 +51,7 @@ export async function readTemplateChoice(dataSource: DataSource, defaults: Confi
 
 export async function readTemplate(dataSource: DataSource, version: string, actor: AuditActor) {
   const detail = readTemplateVersion(version);
-  if (!detail) throw new NotFoundError(`No report template version "${version.slice(0, 20)}" is shipped.`);
+  if (!detail) throw new RecordNotFoundError(`No report template version "${version.slice(0, 20)}" is shipped.`);
   await auditRead(dataSource, actor, 'report-template', { version: detail.version });
   return detail;
 }

@@ -12,7 +12,7 @@ import {
 } from '../../shared/settings/threshold-ranges';
 import { recordAudit, type AuditActor } from '../audit/audit';
 import { ThresholdSet } from '../db/entities/measurement.entities';
-import { BadRequestError } from '../http/problem';
+import { InvalidRequestError } from '../errors';
 import { labSettings } from './lab-settings';
 
 export interface ThresholdsInForce {
@@ -110,17 +110,17 @@ export async function createThresholdSet(dataSource: DataSource, request: Thresh
     let effective: Date;
     if (!request.effectiveFrom) effective = now;
     else if (/^\d{4}-\d{2}-\d{2}$/.test(request.effectiveFrom)) {
-      if (request.effectiveFrom < today) throw new BadRequestError('The thresholds cannot take effect in the past.', [{ pointer: '/effectiveFrom', detail: `effectiveFrom must be today (${today}, ${timeZone}) or later: reports signed before now keep the thresholds they were judged by.` }]);
+      if (request.effectiveFrom < today) throw new InvalidRequestError('The thresholds cannot take effect in the past.', [{ pointer: '/effectiveFrom', detail: `effectiveFrom must be today (${today}, ${timeZone}) or later: reports signed before now keep the thresholds they were judged by.` }]);
       if (request.effectiveFrom === today) effective = now;
       // Local midnight of that day in the lab's time zone, by the database's time-zone rules (SQL).
       else [{ effective }] = await manager.query(`SELECT ($1::date)::timestamp AT TIME ZONE $2 AS effective`, [request.effectiveFrom, timeZone]);
     } else {
       effective = new Date(request.effectiveFrom);
-      if (effective.getTime() < now.getTime() - GRACE_MS) throw new BadRequestError('The thresholds cannot take effect in the past.', [{ pointer: '/effectiveFrom', detail: 'effectiveFrom must be now or later: reports signed before now keep the thresholds they were judged by.' }]);
+      if (effective.getTime() < now.getTime() - GRACE_MS) throw new InvalidRequestError('The thresholds cannot take effect in the past.', [{ pointer: '/effectiveFrom', detail: 'effectiveFrom must be now or later: reports signed before now keep the thresholds they were judged by.' }]);
       if (effective < now) effective = now;
     }
     if (effective.getTime() > now.getTime() + MAX_DAYS_AHEAD * 86_400_000) {
-      throw new BadRequestError('The effective date is too far ahead.', [{ pointer: '/effectiveFrom', detail: `effectiveFrom must be within ${MAX_DAYS_AHEAD} days from today.` }]);
+      throw new InvalidRequestError('The effective date is too far ahead.', [{ pointer: '/effectiveFrom', detail: `effectiveFrom must be within ${MAX_DAYS_AHEAD} days from today.` }]);
     }
 
     const before = (await thresholdsInForce(manager, effective)).values;
@@ -131,12 +131,12 @@ export async function createThresholdSet(dataSource: DataSource, request: Thresh
     }
     const relations = thresholdRelationProblems(after);
     if (relations.length) {
-      throw new BadRequestError(`The thresholds have ${relations.length === 1 ? 'a field' : `${relations.length} fields`} to correct.`, relations.map((p) => ({ pointer: `/values/${p.key}`, detail: p.message })));
+      throw new InvalidRequestError(`The thresholds have ${relations.length === 1 ? 'a field' : `${relations.length} fields`} to correct.`, relations.map((p) => ({ pointer: `/values/${p.key}`, detail: p.message })));
     }
     const changed: Record<string, { before: number; after: number }> = {};
     for (const key of thresholdKeys) if (before[key] !== after[key]) changed[key] = { before: before[key], after: after[key] };
     if (Object.keys(changed).length === 0) {
-      throw new BadRequestError('Nothing to change: every value is already in force at that date.', [{ pointer: '/values', detail: 'Change at least one threshold.' }]);
+      throw new InvalidRequestError('Nothing to change: every value is already in force at that date.', [{ pointer: '/values', detail: 'Change at least one threshold.' }]);
     }
     const overrides: Partial<Thresholds> = {};
     for (const key of thresholdKeys) if (after[key] !== defaultThresholds[key]) overrides[key] = after[key];

@@ -5,11 +5,3 @@ export class DuplicateRowIdError extends Error {
     this.name = 'DuplicateRowIdError';
   }
 }
-
-/** Nothing by this id (a study, a report version): the detail names what was looked for. */
-export class RecordNotFoundError extends Error {
-  constructor(detail: string) {
-    super(detail);
-    this.name = 'RecordNotFoundError';
-  }
-}

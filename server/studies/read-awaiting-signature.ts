@@ -1,6 +1,6 @@
 import type { DataSource } from 'typeorm';
 import { recordAudit } from '../audit/audit';
-import { listAwaitingSignature } from './awaiting-signature';
+import { listAwaitingSignature } from './queries/awaiting-signature';
 import type { AuditActor } from './repository';
 
 /** Studies awaiting signature (the user's own, and all of them); the ids shown recorded in the audit trail. */

@@ -1,7 +1,7 @@
 import type { DataSource } from 'typeorm';
 import type { StudyRecord } from '../../shared/study/schema';
 import { recordAudit } from '../audit/audit';
-import { RecordNotFoundError } from './errors';
+import { RecordNotFoundError } from '../errors';
 import { loadStudy, type AuditActor } from './repository';
 
 /** A study read by a user, recorded in the audit trail (with the view, when it is one). */

@@ -11,7 +11,7 @@ import type {
 import { emptyDetails, emptyFindings, emptySetup } from '../../shared/study/schema';
 import type { StudyState } from '../../shared/study/vocabulary';
 import { isEditable } from '../../shared/study/state-machine';
-import { HttpError, NotFoundError, UnprocessableError } from '../http/problem';
+import { RecordNotFoundError, UnacceptableValueError, type FieldIssue } from '../errors';
 import { recordAudit, type AuditActor } from '../audit/audit';
 import { codingColumns, detailsColumns, findingsColumns, readSection, selectList, setupColumns, studyValues, vasoreactivityColumns } from './columns';
 import { replaceInterventions } from '../coding/study-interventions';
@@ -27,12 +27,10 @@ import { Study } from '../db/entities/study.entity';
 import { User } from '../db/entities/user.entity';
 
 /** A write based on an older version than the stored one. Carries the current record for a merge. */
-export class StaleVersionError extends HttpError {
+export class StaleVersionError extends Error {
   constructor(public readonly current: StudyRecord) {
-    super(409, 'stale-version', 'The study has changed since you opened it', `Someone saved version ${current.version} while you were editing. Reload it, or merge your changes into it.`, undefined, {
-      currentVersion: current.version,
-      current,
-    });
+    super(`Someone saved version ${current.version} while you were editing. Reload it, or merge your changes into it.`);
+    this.name = 'StaleVersionError';
   }
 }
 
@@ -130,7 +128,8 @@ const differences = (row: PatientRow, p: StudySections['patient']) => demographi
 const exactlySame = (row: PatientRow, p: StudySections['patient']) => demographicFields.every((f) => String(p[f]) === String(row[f]));
 
 /** The MRN belongs to someone else: the study is not moved to them, and nobody is renamed. */
-export class PatientMismatchError extends HttpError {
+export class PatientMismatchError extends Error {
+  public readonly issues: FieldIssue[] = [{ pointer: '/patient/mrn', detail: 'This MRN is on file for another patient. Check the MRN.' }];
   /**
    * Says only that the MRN belongs to someone else: naming what differs (the birth date, the given
    * name) would let anyone with write access probe another patient's demographics one field at a time.
@@ -139,22 +138,18 @@ export class PatientMismatchError extends HttpError {
     public readonly mrn: string,
     public readonly fields: string[],
   ) {
-    super(409, 'patient-mismatch', 'The MRN belongs to another patient', 'This MRN is on file for another patient. Check the MRN and the name.', [
-      { pointer: '/patient/mrn', detail: 'This MRN is on file for another patient. Check the MRN.' },
-    ]);
+    super('This MRN is on file for another patient. Check the MRN and the name.');
+    this.name = 'PatientMismatchError';
   }
 }
 
 /** The patient's demographics are shared by all their studies: a study may not rewrite them. */
-export class PatientSharedError extends HttpError {
+export class PatientSharedError extends Error {
+  public readonly issues: FieldIssue[];
   constructor(fields: string[]) {
-    super(
-      409,
-      'patient-shared',
-      'The patient has other studies',
-      'This patient has other studies; correct the name, birth date or sex in the hospital record.',
-      fields.map((f) => ({ pointer: `/patient/${f}`, detail: `This patient has other studies: their ${label(f)} cannot be changed from one study.` })),
-    );
+    super('This patient has other studies; correct the name, birth date or sex in the hospital record.');
+    this.name = 'PatientSharedError';
+    this.issues = fields.map((f) => ({ pointer: `/patient/${f}`, detail: `This patient has other studies: their ${label(f)} cannot be changed from one study.` }));
   }
 }
 
@@ -234,16 +229,17 @@ async function removeIfUnused(db: EntityManager, patientId: string | null): Prom
     .execute();
 }
 
-export class StudyLockedError extends HttpError {
+export class StudyLockedError extends Error {
   constructor(state: string) {
-    super(409, 'study-signed', 'The study is signed', `A ${state} study cannot be edited; changes to it are made as an addendum.`);
+    super(`A ${state} study cannot be edited; changes to it are made as an addendum.`);
+    this.name = 'StudyLockedError';
   }
 }
 
 /** Locks the study row for the rest of the transaction and refuses when it is signed. */
 export async function lockEditableStudy(db: EntityManager, id: string): Promise<{ patientId: string; version: number }> {
   const row = await lockStudy(db, id);
-  if (!row) throw new NotFoundError('No study has this id.');
+  if (!row) throw new RecordNotFoundError('No study has this id.');
   if (!isEditable(row.state)) throw new StudyLockedError(row.state);
   return { patientId: row.patientId, version: row.version };
 }
@@ -263,7 +259,7 @@ async function checkOperator(db: EntityManager, operatorId: string | null | unde
   if (!operatorId) return;
   const row = await db.findOne(User, { where: { id: operatorId }, select: { id: true, role: true } });
   if (row?.role === 'physician') return;
-  throw new UnprocessableError('The operator must be a physician.', [
+  throw new UnacceptableValueError('The operator must be a physician.', [
     { pointer: '/details/operatorId', detail: row ? 'Operator: this person is not a physician. Choose a physician from the list.' : 'Operator: nobody has this id. Choose a physician from the list.' },
   ]);
 }

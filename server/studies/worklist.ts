@@ -1,5 +1,5 @@
 import type { DataSource } from 'typeorm';
-import type { WorklistItem, WorklistPage, WorklistQuery } from '../../shared/study/worklist';
+import type { WorklistItem, WorklistQuery } from '../../shared/study/worklist';
 import { decodeKeysetCursor, encodeKeysetCursor, uuidIdPattern } from '../db/keyset-cursor';
 import { parseSearch, type ParsedSearch } from '../../shared/study/search';
 import type { AuditActor } from '../audit/audit';
@@ -50,7 +50,7 @@ function patientMatch(search: ParsedSearch, raw: string, param: (v: unknown) => 
   return `(${arms.join(' OR ')})`;
 }
 
-/** Up to this many matching patients, search goes patient-first (see listStudies). */
+/** Up to this many matching patients, search goes patient-first (see pageStatement). */
 const patientLookupCap = 200;
 
 /**
@@ -102,21 +102,6 @@ async function pageStatement(db: DataSource, query: WorklistQuery) {
      ORDER BY s.sort_at DESC, s.id DESC
      LIMIT ${pageLimit(query.limit) + 1}`;
   return { pageSql, values, param };
-}
-
-/**
- * Studies newest first (procedure start, or when the record was opened), filtered, one page at a
- * time by keyset: `(sort_at, id) < cursor` rides the worklist indexes however deep the page.
- */
-export async function listStudies(db: DataSource, query: WorklistQuery): Promise<WorklistPage> {
-  const { pageSql, values } = await pageStatement(db, query);
-  const rows: Record<string, never>[] = await db.query(pageSql, values);
-  const page = rows.slice(0, query.limit);
-  const last = page[page.length - 1];
-  return {
-    items: page.map(toSummary),
-    nextCursor: rows.length > query.limit && last ? encodeKeysetCursor(last.sort_key, last.id) : null,
-  };
 }
 
 /** An instant as `Date.prototype.toISOString` writes it (UTC, milliseconds, `Z`). */

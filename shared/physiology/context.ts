@@ -1,4 +1,5 @@
 import { cutPlain, cutRatio } from './format';
+import { notUsedClause } from './not-used';
 import { cite, defaultThresholds, resolveThresholds, type ThresholdKey, type Thresholds } from './thresholds';
 
 /**
@@ -46,8 +47,8 @@ function build(t: Thresholds): Ctx {
     },
     imrAbnormal: ` is at or above the ${cutPlain(t.imr)} cut-off (${cite(t, 'imr')}) — raised microvascular resistance`,
     cfrAbnormal: ` is below the ${cutRatio(t.cfr)} cut-off (${cite(t, 'cfr')}) — impaired coronary flow reserve`,
-    notUsedObstructed: ' — in a vessel with an obstructive stenosis, so not used for the microvascular finding',
-    notUsedUnexcluded: ' — obstruction was not excluded in this vessel, so not used for the microvascular finding',
+    notUsedObstructed: notUsedClause('obstructive'),
+    notUsedUnexcluded: notUsedClause('not-excluded'),
     cfrBorderline: ` is in the borderline band ${cutRatio(t.cfr)}–${cutRatio(t.cfrBorderline)} (${cite(t, 'cfr')} uses ${cutRatio(t.cfr)}, ${cite(t, 'cfrBorderline')} uses ${cutRatio(t.cfrBorderline)}) — not enough on its own for microvascular dysfunction.`,
     rrrAbnormal: ` is below the ${cutRatio(t.rrr)} cut-off (${cite(t, 'rrr')}) — reduced resistive reserve`,
     mrrAbnormal: ` is below the ${cutRatio(t.mrr)} cut-off — reduced microvascular resistance reserve`,

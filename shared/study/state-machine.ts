@@ -9,6 +9,10 @@ import type { StudyState } from './vocabulary';
 export const studyActions = ['mark-ready', 'send-back', 'sign', 'open-addendum', 'sign-addendum', 'discard-addendum'] as const;
 export type StudyAction = (typeof studyActions)[number];
 
+/** The moves made without a signature: hand-off, send-back, opening or discarding an addendum. */
+export const stateChanges = ['mark-ready', 'send-back', 'open-addendum', 'discard-addendum'] as const satisfies readonly StudyAction[];
+export type StateChange = (typeof stateChanges)[number];
+
 interface Transition {
   from: readonly StudyState[];
   /** The state after the action; 'previous' = the state the addendum was opened from. */

@@ -7,7 +7,7 @@ import { emptyFindings, emptyVessel, type StudyRecord } from '../../shared/study
 import { startFakeSmtp } from '../../server/fakes/smtp';
 import { startWorker, type WorkerHandle } from '../../server/jobs/worker';
 import { sendReportNoticeTask } from '../../server/mail/send-report-notice';
-import type { CaughtMessage } from '../../server/mail/caught-mail';
+import type { CaughtMessage } from '../../server/mail/queries/caught-mail';
 import { openTestDatabase } from '../support/app';
 import { signIn, startStack, usernameOf, type TestStack } from '../support/stack';
 

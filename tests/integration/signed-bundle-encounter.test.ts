@@ -1,7 +1,7 @@
 import type { Encounter } from 'fhir/r4';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { DataSource } from 'typeorm';
-import { bundleOfLoaded, loadReportVersion } from '../../server/ehr/load-report-version';
+import { bundleOfLoaded, loadReportVersion } from '../../server/ehr/queries/report-version';
 import { checkBundle, errorsOf, warmUpValidation } from '../../server/ehr/validate-bundle';
 import { openTestDatabase } from '../support/app';
 import { createPhysician, signCompleteStudy } from '../support/signing';

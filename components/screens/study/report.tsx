@@ -1,7 +1,8 @@
 import { useState } from 'react';
 import { StyleSheet, TextInput, View } from 'react-native';
 import { Link, useLocalSearchParams } from 'expo-router';
-import { useReportAction, useReportPreview, type ThresholdsChoice } from '../../data/report-query';
+import { useReportAction, useReportPreview } from '../../data/report-query';
+import type { ThresholdsChoice } from '../../../shared/report/thresholds-basis';
 import { RadioChips } from '../../ui/radio-chips';
 import { ApiError } from '../../data/api';
 import { SectionCard } from '../../study/section-card';

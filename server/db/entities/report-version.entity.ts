@@ -1,4 +1,5 @@
 import { Column, Entity, JoinColumn, ManyToOne, OneToOne, PrimaryColumn, PrimaryGeneratedColumn, type Relation } from 'typeorm';
+import type { ThresholdsBasis } from '../../../shared/report/thresholds-basis';
 import { Study } from './study.entity';
 import { User } from './user.entity';
 
@@ -27,7 +28,7 @@ export class ReportVersion {
   @Column('jsonb') thresholds!: unknown;
   @Column('text', { name: 'template_version' }) templateVersion!: string;
   /** Which thresholds judged it: those in force at signing, or for an addendum the original's or the current ones. Null before this was recorded. */
-  @Column('text', { name: 'thresholds_basis', nullable: true }) thresholdsBasis!: 'in-force' | 'original' | 'current' | null;
+  @Column('text', { name: 'thresholds_basis', nullable: true }) thresholdsBasis!: ThresholdsBasis | null;
   /** The threshold set those values came from; null for the published defaults. */
   @Column('integer', { name: 'threshold_set_id', nullable: true }) thresholdSetId!: number | null;
   @Column('char', { name: 'content_sha256', length: 64 }) contentSha256!: string;

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { documentStrings } from '../../../shared/report/document';
-import { reportDocument } from '../../../server/report/document';
-import { renderNarrative } from '../../../server/report/render';
+import { reportDocument } from '../../../server/report-document/document';
+import { renderNarrative } from '../../../server/report-document/render';
 import { demoReportStudies, viewOf } from './fixtures';
 
 // The structured preview must say what the signed narrative says, in the same order (the product's

@@ -2,7 +2,7 @@ import { analyzeStudy, defaultThresholds, type Thresholds } from '../../../share
 import { emptyDetails, emptyFindings, emptySetup, type StudySections } from '../../../shared/study/schema';
 import { toPhysiologyInput } from '../../../shared/study/to-physiology';
 import { demoPatients, demoStudies, type DemoStudy } from '../../../server/demo/scenario';
-import { buildReportView, type ReportInput, type ReportStudy } from '../../../server/report/view-model';
+import { buildReportView, type ReportInput, type ReportStudy } from '../../../server/report-document/view-model';
 
 /** Stable invented row ids, so views built from the same study are identical. */
 const uuid = (n: number) => `00000000-0000-4000-8000-${String(n).padStart(12, '0')}`;

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { renderNarrative } from '../../../server/report/render';
+import { renderNarrative } from '../../../server/report-document/render';
 import { demoReportStudies, viewOf } from './fixtures';
 
 /**

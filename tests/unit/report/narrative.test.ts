@@ -1,9 +1,9 @@
 import { describe, expect, it } from 'vitest';
 import { defaultThresholds } from '../../../shared/physiology';
 import { findingsSchema, emptySetup, emptyVessel } from '../../../shared/study/schema';
-import { htmlDocument, renderNarrative } from '../../../server/report/render';
-import { REPORT_TEMPLATE_VERSION } from '../../../server/report/template-version';
-import { buildReportView, reportKindOf, type ReportStudy } from '../../../server/report/view-model';
+import { htmlDocument, renderNarrative } from '../../../server/report-document/render';
+import { REPORT_TEMPLATE_VERSION } from '../../../server/report-document/template-version';
+import { buildReportView, reportKindOf, type ReportStudy } from '../../../server/report-document/view-model';
 import { analysisOf, demoReportStudies, viewOf } from './fixtures';
 
 const render = (s: ReportStudy, extra: Parameters<typeof viewOf>[1] = {}) => renderNarrative(viewOf(s, extra));

@@ -3,7 +3,7 @@ import { readFileSync } from 'node:fs';
 import { createHash } from 'node:crypto';
 import { describe, expect, it } from 'vitest';
 import { defaultThresholds } from '../../../shared/physiology';
-import { buildReportView, canonicalContent, fingerprint, fingerprintInPdf, PAGE, prepareSignedReport, previewReport, renderNarrative, renderReportPdf, sha256Hex, type SignedContent } from '../../../server/report';
+import { buildReportView, canonicalContent, fingerprint, fingerprintInPdf, PAGE, prepareSignedReport, previewReport, renderNarrative, renderReportPdf, sha256Hex, type SignedContent } from '../../../server/report-document';
 import { pdfInfo, pdfPages, pdfToPng, pngSize } from '../../support/pdf-to-png';
 import { analysisOf, demoReportStudies, viewOf } from './fixtures';
 
@@ -76,7 +76,7 @@ describe('the report PDF', () => {
     for (const other of demoReportStudies().slice(0, 5)) await renderReportPdf(viewOf(other, { signature }));
     const shared = sha256Hex(await renderReportPdf(viewOf(s, { signature })));
     const script = `
-      import { renderReportPdf, sha256Hex } from './server/report/index.ts';
+      import { renderReportPdf, sha256Hex } from './server/report-document/index.ts';
       import { demoReportStudies, viewOf } from './tests/unit/report/fixtures.ts';
       const s = demoReportStudies()[5];
       process.stdout.write(sha256Hex(await renderReportPdf(viewOf(s, { signature: JSON.parse(process.argv[1]) }))));`;

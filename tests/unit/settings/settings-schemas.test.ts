@@ -2,10 +2,10 @@ import { describe, expect, it } from 'vitest';
 import { defaultThresholds, type Thresholds } from '../../../shared/physiology/thresholds';
 import { isTimeZone, labSettingsFormSchema } from '../../../shared/settings/lab-settings';
 import { thresholdKeys, thresholdRanges, thresholdRelationProblems, thresholdSetRequestSchema, thresholdSourceOf } from '../../../shared/settings/threshold-ranges';
-import { renderNarrative } from '../../../server/report';
+import { renderNarrative } from '../../../server/report-document';
 import { demoReportStudies, viewOf } from '../report/fixtures';
-import { thresholdsBasisSentence } from '../../../server/report/view-model';
-import { listTemplateVersions, readTemplateVersion } from '../../../server/report/template-versions';
+import { thresholdsBasisSentence } from '../../../server/report-document/view-model';
+import { listTemplateVersions, readTemplateVersion } from '../../../server/report-document/template-versions';
 
 const pointers = (r: { success: boolean; error?: { issues: { path: PropertyKey[] }[] } }) => (r.error?.issues ?? []).map((i) => '/' + i.path.join('/'));
 

@@ -1,7 +1,7 @@
-import type { CodeSystem, CodingWarning } from '../../shared/coding';
-import { compareCodes, inputChanges, type Decision, type FinalCode, type ReviewLine, type ReviewStatus, type ReviewView } from '../../shared/coding/review';
-import { NotFoundError } from '../http/problem';
-import type { Sql } from './sql';
+import type { CodeSystem, CodingWarning } from '../../../shared/coding';
+import { compareCodes, inputChanges, type Decision, type FinalCode, type ReviewLine, type ReviewStatus, type ReviewView } from '../../../shared/coding/review';
+import { RecordNotFoundError } from '../../errors';
+import type { Sql } from '../sql';
 
 type LineRow = {
   id: string;
@@ -83,7 +83,7 @@ export async function loadReview(sql: Sql, studyId: string): Promise<ReviewView>
   );
   if (!row) {
     const [study] = await sql(`SELECT state FROM study WHERE id = $1`, [studyId]);
-    throw new NotFoundError(study ? 'This study has no code suggestions yet: they are made when its report is signed.' : 'No study has this id.');
+    throw new RecordNotFoundError(study ? 'This study has no code suggestions yet: they are made when its report is signed.' : 'No study has this id.');
   }
   const lines = await loadLines(sql, row.set_id);
   const warnings = row.warnings as CodingWarning[];

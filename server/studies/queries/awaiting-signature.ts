@@ -1,8 +1,8 @@
 import type { DataSource } from 'typeorm';
-import type { AwaitingList, AwaitingSignature } from '../../shared/study/awaiting-signature';
-import { waitingSince } from '../../shared/turnaround/overdue';
-import { labSettings } from '../settings/lab-settings';
-import { summarySelect, toSummary } from './worklist';
+import type { AwaitingList, AwaitingSignature } from '../../../shared/study/awaiting-signature';
+import { waitingSince } from '../../../shared/turnaround/overdue';
+import { labSettings } from '../../settings/lab-settings';
+import { summarySelect, toSummary } from '../worklist';
 
 /** At most this many rows per list; `total` says how many there are. */
 const awaitingListLimit = 100;

@@ -1,15 +1,15 @@
-import { HttpError, NotFoundError } from '../http/problem';
-import type { Sql } from './sql';
+import { RecordNotFoundError } from '../../errors';
+import type { Sql } from '../sql';
 
-class SetSupersededError extends HttpError {
+export class SetSupersededError extends Error {
   constructor(versionNo: number) {
-    super(409, 'suggestions-superseded', 'An addendum changed the suggestions', `The report has been amended (version ${versionNo}) and the codes were suggested again. Reload the review.`);
+    super(`The report has been amended (version ${versionNo}) and the codes were suggested again. Reload the review.`);
   }
 }
 
-class ReviewCompletedError extends HttpError {
+export class ReviewCompletedError extends Error {
   constructor() {
-    super(409, 'review-completed', 'The review is complete', 'This study has been coded; its codes change only when an addendum puts it back on the queue.');
+    super('This study has been coded; its codes change only when an addendum puts it back on the queue.');
   }
 }
 
@@ -22,7 +22,7 @@ export async function lockOpenReview(sql: Sql, studyId: string, setId: string): 
     `SELECT r.status, r.current_set_id, s.version_no FROM coding_review r JOIN code_suggestion_set s ON s.id = r.current_set_id WHERE r.study_id = $1 FOR UPDATE OF r`,
     [studyId],
   );
-  if (!row) throw new NotFoundError('This study has no code suggestions yet.');
+  if (!row) throw new RecordNotFoundError('This study has no code suggestions yet.');
   if (row.current_set_id !== setId) throw new SetSupersededError(row.version_no);
   if (row.status === 'coded') throw new ReviewCompletedError();
   return { status: row.status, setId: row.current_set_id };

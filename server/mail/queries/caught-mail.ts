@@ -1,6 +1,6 @@
-import { NotFoundError, ServiceUnavailableError } from '../http/problem';
-import type { CaughtMessage } from '../../shared/mail/caught';
-import { readMessage } from './read-message';
+import { RecordNotFoundError, ServiceNotAnsweringError } from '../../errors';
+import type { CaughtMessage } from '../../../shared/mail/caught';
+import { readMessage } from '../read-message';
 
 export type { CaughtMessage };
 
@@ -11,16 +11,16 @@ const notInUse = 'Caught mail exists only where the local mail stand-in is in us
  * (`listUrl` null: production, real services) or not running.
  */
 export async function listCaughtMail(listUrl: string | null, { timeoutMs = 3000 } = {}): Promise<{ items: CaughtMessage[] }> {
-  if (!listUrl) throw new NotFoundError(notInUse);
+  if (!listUrl) throw new RecordNotFoundError(notInUse);
   let response: Response;
   try {
     response = await fetch(listUrl, { signal: AbortSignal.timeout(timeoutMs), redirect: 'error' });
   } catch {
-    throw new NotFoundError('The local mail stand-in is not running: start it with `npm start` (or run it with the tests).');
+    throw new RecordNotFoundError('The local mail stand-in is not running: start it with `npm start` (or run it with the tests).');
   }
-  if (!response.ok) throw new ServiceUnavailableError('The local mail stand-in did not answer with its list of caught mail.');
+  if (!response.ok) throw new ServiceNotAnsweringError('The local mail stand-in did not answer with its list of caught mail.');
   const body = (await response.json().catch(() => null)) as { items?: unknown } | null;
-  if (!body || !Array.isArray(body.items)) throw new ServiceUnavailableError('The local mail stand-in answered with something that is not a list of caught mail.');
+  if (!body || !Array.isArray(body.items)) throw new ServiceNotAnsweringError('The local mail stand-in answered with something that is not a list of caught mail.');
   return {
     items: (body.items as Array<{ id: number; from: string; to: string[]; receivedAt: string; raw: string }>).map((m) => {
       const read = readMessage(String(m.raw ?? ''));

@@ -1,5 +1,5 @@
-import type { CodingQueueQuery, QueueItem, ReviewStatus } from '../../shared/coding/review';
-import type { Sql } from './sql';
+import type { CodingQueueQuery, QueueItem, ReviewStatus } from '../../../shared/coding/review';
+import type { Sql } from '../sql';
 
 /**
  * The coding queue: studies whose review is open (or in the status asked for), oldest first by when

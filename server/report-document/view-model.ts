@@ -17,10 +17,12 @@ import {
   type VesselCode,
   type VesselResult,
 } from '../../shared/physiology';
+import { notUsedSentence } from '../../shared/physiology/not-used';
 import { cite } from '../../shared/physiology/thresholds';
 import { endotypeLabel, flagLabel, imrMethodLabel, nhprKindLabel, reportCaution, vasoreactivityOutcomeLabel } from '../../shared/report/labels';
 import { hasPressureIndex } from '../../shared/report/completeness';
 import { reportKindOf, type ReportKind } from '../../shared/report/kind';
+import type { ThresholdsBasis } from '../../shared/report/thresholds-basis';
 import type { StudySections } from '../../shared/study/schema';
 import * as vocabulary from '../../shared/study/vocabulary';
 import { REPORT_TEMPLATE_VERSION } from './template-version';
@@ -78,7 +80,7 @@ export interface ReportInput {
 /** Where a report's thresholds come from. */
 export interface ThresholdsBasisInfo {
   /** `in-force`: the set in force at signing; for an addendum `original` (the amended version's) or `current`. */
-  basis: 'in-force' | 'original' | 'current';
+  basis: ThresholdsBasis;
   /** When the set began to apply; null for the published defaults (or unknown for older versions). */
   effectiveFrom: string | null;
   /** The set's id; null for the published defaults. */
@@ -421,9 +423,9 @@ function vesselSentences(
   const unused = !qualifyUnused
     ? ''
     : r.obstructive === true
-      ? ' Not used for the microvascular finding: the vessel has an obstructive stenosis.'
+      ? notUsedSentence('obstructive')
       : r.obstructive === undefined
-        ? ' Not used for the microvascular finding: obstruction was not excluded in this vessel.'
+        ? notUsedSentence('not-excluded')
         : '';
   const against = (op: string, key: ThresholdKey, kind: QuantityKind = 'ratio', unit = '') => `(cut-off ${op} ${q(t[key], kind)}${unit}, ${cite(t, key)})`;
 

@@ -1,7 +1,7 @@
 import { createHash } from 'node:crypto';
 import type { DataSource } from 'typeorm';
-import { ReportPdf, ReportVersion } from '../db/entities/report-version.entity';
-import { Study } from '../db/entities/study.entity';
+import { ReportPdf, ReportVersion } from '../../db/entities/report-version.entity';
+import { Study } from '../../db/entities/study.entity';
 
 export interface Verification {
   found: boolean;

@@ -1,10 +1,10 @@
 import { stringify } from 'csv-stringify/sync';
-import { csvExportOptions } from '../../shared/csv/neutralise';
-import type { Decision } from '../../shared/coding/review';
-import { loadLines } from './load-review';
-import { auditTarget, type Sql } from './sql';
-import { labSettings } from '../settings/lab-settings';
-import { localMidnight } from '../db/local-midnight';
+import { csvExportOptions } from '../../../shared/csv/neutralise';
+import type { Decision } from '../../../shared/coding/review';
+import { loadLines } from './review';
+import { auditTarget, type Sql } from '../sql';
+import { labSettings } from '../../settings/lab-settings';
+import { localMidnight } from '../../db/local-midnight';
 
 export interface ExportedCode {
   accession: string;

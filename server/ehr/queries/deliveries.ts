@@ -1,5 +1,5 @@
 import type { DataSource, EntityManager } from 'typeorm';
-import { attentionStatuses, type DeliveryIssue, type DeliveryListItem, type DeliveryStatus, type StudyDelivery } from '../../shared/delivery/status';
+import { attentionStatuses, type DeliveryIssue, type DeliveryListItem, type DeliveryStatus, type StudyDelivery } from '../../../shared/delivery/status';
 
 const iso = (d: Date | null) => (d ? d.toISOString() : null);
 

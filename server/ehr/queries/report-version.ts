@@ -1,5 +1,5 @@
 import type { Bundle } from 'fhir/r4';
-import { buildReportBundle, type BundleContext, type StoredReportVersion } from './build-report-bundle';
+import { buildReportBundle, type BundleContext, type StoredReportVersion } from '../build-report-bundle';
 
 /** Rows of a query (pg's `rows`): the task runs on the job queue's connection, routes on TypeORM's. */
 export type Query = (sql: string, params?: unknown[]) => Promise<Record<string, unknown>[]>;

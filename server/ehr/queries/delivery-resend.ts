@@ -1,10 +1,10 @@
 import type { DataSource } from 'typeorm';
-import { HttpError, NotFoundError } from '../http/problem';
-import { enqueueDelivery } from './enqueue-delivery';
+import { RecordNotFoundError } from '../../errors';
+import { enqueueDelivery } from '../enqueue-delivery';
 
-class DeliveryBusyError extends HttpError {
+export class DeliveryBusyError extends Error {
   constructor() {
-    super(409, 'delivery-in-progress', 'Being sent now', 'This report is being sent to the EHR right now; look again in a minute.');
+    super('This report is being sent to the EHR right now; look again in a minute.');
   }
 }
 
@@ -17,7 +17,7 @@ class DeliveryBusyError extends HttpError {
 export async function resendDelivery(dataSource: DataSource, reportVersionId: string, requestedBy: string | null): Promise<{ studyId: string; previousStatus: string }> {
   return dataSource.transaction(async (manager) => {
     const [version] = await manager.query(`SELECT study_id FROM report_version WHERE id = $1`, [reportVersionId]);
-    if (!version) throw new NotFoundError('No signed report version has this id.');
+    if (!version) throw new RecordNotFoundError('No signed report version has this id.');
     await manager.query(
       `INSERT INTO report_delivery (report_version_id, study_id) VALUES ($1, $2) ON CONFLICT (report_version_id) DO NOTHING`,
       [reportVersionId, version.study_id],

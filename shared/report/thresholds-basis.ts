@@ -1,0 +1,10 @@
+/**
+ * For an addendum: keep the thresholds of the version it amends (`original`, the default), or apply
+ * those in force at its signature (`current`). A first signature always uses those in force.
+ */
+export const thresholdsChoices = ['original', 'current'] as const;
+export type ThresholdsChoice = (typeof thresholdsChoices)[number];
+
+/** Where a signed report's thresholds come from: the set in force at signing, or an addendum's choice. */
+export const thresholdsBases = ['in-force', ...thresholdsChoices] as const;
+export type ThresholdsBasis = (typeof thresholdsBases)[number];
