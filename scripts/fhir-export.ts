@@ -6,7 +6,6 @@ import { createDataSource } from '../server/db/data-source';
 import { demoStudies } from '../server/demo/scenario';
 import { seedDemo } from '../server/demo/seed';
 import { BundleBuildError } from '../server/ehr/build-report-bundle';
-import { typeormQuery } from '../server/ehr/deliver-report';
 import { bundleOfLoaded, loadReportVersion } from '../server/ehr/queries/report-version';
 import { checkBundle, errorsOf, warmUpValidation, type Issue } from '../server/ehr/validate-bundle';
 
@@ -39,8 +38,7 @@ async function main(): Promise<number> {
   try {
     await seedDemo(db, config.oidc.issuer);
     warmUpValidation();
-    const query = typeormQuery(db);
-    const rows = await query(
+    const rows: { id: string }[] = await db.query(
       `SELECT rv.id FROM report_version rv JOIN study ON study.id = rv.study_id
         WHERE study.accession = ANY($1::text[]) ORDER BY study.accession, rv.version_no`,
       [demoStudies.map((s) => s.accession)],
@@ -48,7 +46,7 @@ async function main(): Promise<number> {
     let written = 0;
     let failed = 0;
     for (const { id } of rows) {
-      const loaded = (await loadReportVersion(query, id as string))!;
+      const loaded = (await loadReportVersion(db.manager, id))!;
       const name = `${loaded.accession}-v${loaded.version.versionNo}.json`;
       let issues: Issue[];
       let text: string | undefined;

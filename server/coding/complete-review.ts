@@ -1,10 +1,10 @@
 import type { DataSource } from 'typeorm';
 import type { ReviewView } from '../../shared/coding/review';
 import { recordAudit } from '../audit/audit';
+import { CodingReview } from '../db/entities/coding.entities';
 import type { CodingActor } from './actor';
 import { loadReview } from './queries/review';
 import { lockOpenReview } from './queries/review-lock';
-import { sqlOf } from './sql';
 
 export class ReviewIncompleteError extends Error {
   constructor(public readonly blockers: string[]) {
@@ -18,13 +18,13 @@ export class ReviewIncompleteError extends Error {
  */
 export async function completeReview(dataSource: DataSource, studyId: string, setId: string, actor: CodingActor): Promise<ReviewView> {
   return dataSource.transaction(async (manager) => {
-    const sql = sqlOf(manager);
-    await lockOpenReview(sql, studyId, setId);
-    const before = await loadReview(sql, studyId);
+    await lockOpenReview(manager, studyId, setId);
+    const before = await loadReview(manager, studyId);
     if (before.blockers.length) throw new ReviewIncompleteError(before.blockers);
-    await sql(
-      `UPDATE coding_review SET status = 'coded', completed_by = $2, completer_name = $3, completed_at = now(), updated_at = now() WHERE study_id = $1`,
-      [studyId, actor.actorUserId, actor.actorName],
+    await manager.update(
+      CodingReview,
+      { studyId },
+      { status: 'coded', completedBy: actor.actorUserId, completerName: actor.actorName, completedAt: () => 'now()', updatedAt: () => 'now()' },
     );
     const codes = before.lines.flatMap((l) => (l.final ? [l.final] : []));
     await recordAudit(manager, {
@@ -35,6 +35,6 @@ export async function completeReview(dataSource: DataSource, studyId: string, se
       outcome: 'success',
       detail: { completed: true, setId, versionNo: before.set.versionNo, codes: codes.map((c) => `${c.system} ${c.code}${c.modifiers.length ? `-${c.modifiers.join('-')}` : ''} x${c.units}`) },
     });
-    return loadReview(sql, studyId);
+    return loadReview(manager, studyId);
   });
 }

@@ -2,11 +2,12 @@ import type { DataSource } from 'typeorm';
 import { checkCodeLine, type CodeSystem } from '../../shared/coding';
 import type { DecideCode, ReviewView } from '../../shared/coding/review';
 import { recordAudit } from '../audit/audit';
+import { CodeDecision, CodeLine } from '../db/entities/coding.entities';
 import { InvalidRequestError, RecordNotFoundError } from '../errors';
 import type { CodingActor } from './actor';
 import { loadReview } from './queries/review';
 import { lockOpenReview } from './queries/review-lock';
-import { sqlOf } from './sql';
+import { markInReview } from './review-status';
 
 /**
  * Records a coder's decision on one line: accept it, edit it (code, units, modifiers — checked
@@ -15,20 +16,25 @@ import { sqlOf } from './sql';
  */
 export async function decideCode(dataSource: DataSource, studyId: string, input: DecideCode, actor: CodingActor): Promise<ReviewView> {
   return dataSource.transaction(async (manager) => {
-    const sql = sqlOf(manager);
-    const review = await lockOpenReview(sql, studyId, input.setId);
-    const [line] = await sql(`SELECT id, system, code, units, modifiers FROM code_line WHERE id = $1 AND set_id = $2`, [input.lineId, review.setId]);
+    const review = await lockOpenReview(manager, studyId, input.setId);
+    const line = await manager.findOne(CodeLine, { select: { id: true, system: true, code: true, units: true, modifiers: true }, where: { id: input.lineId, setId: review.setId } });
     if (!line) throw new RecordNotFoundError('No code line of this study has this id.');
     if (input.decision === 'edit') {
       const problems = checkCodeLine({ system: line.system as CodeSystem, code: input.code, units: input.units, modifiers: input.modifiers });
       if (problems.length) throw new InvalidRequestError('The edited code has fields to correct.', problems.map((p) => ({ pointer: `/${p.field}`, detail: p.message })));
     }
     const edit = input.decision === 'edit' ? input : null;
-    await sql(
-      `INSERT INTO code_decision (line_id, decision, code, units, modifiers, reason, decided_by, decider_name) VALUES ($1, $2, $3, $4, $5, $6, $7, $8)`,
-      [line.id, input.decision, edit?.code ?? null, edit?.units ?? null, edit?.modifiers ?? null, 'reason' in input ? input.reason : null, actor.actorUserId, actor.actorName],
-    );
-    if (review.status === 'to-code') await sql(`UPDATE coding_review SET status = 'in-review', updated_at = now() WHERE study_id = $1`, [studyId]);
+    await manager.insert(CodeDecision, {
+      lineId: line.id,
+      decision: input.decision,
+      code: edit?.code ?? null,
+      units: edit?.units ?? null,
+      modifiers: edit?.modifiers ?? null,
+      reason: 'reason' in input ? input.reason : null,
+      decidedBy: actor.actorUserId,
+      deciderName: actor.actorName,
+    });
+    await markInReview(manager, studyId, review.status);
     await recordAudit(manager, {
       ...actor,
       action: 'update',
@@ -43,6 +49,6 @@ export async function decideCode(dataSource: DataSource, studyId: string, input:
         ...('reason' in input ? { reason: input.reason } : {}),
       },
     });
-    return loadReview(sql, studyId);
+    return loadReview(manager, studyId);
   });
 }

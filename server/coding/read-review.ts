@@ -3,11 +3,10 @@ import type { ReviewView } from '../../shared/coding/review';
 import { recordAudit } from '../audit/audit';
 import type { AuditActor } from '../studies/repository';
 import { loadReview } from './queries/review';
-import { sqlOf } from './sql';
 
 /** A study's code review, the read recorded in the audit trail. */
 export async function readReview(dataSource: DataSource, studyId: string, actor: AuditActor): Promise<ReviewView> {
-  const review = await loadReview(sqlOf(dataSource), studyId);
+  const review = await loadReview(dataSource.manager, studyId);
   await recordAudit(dataSource, { ...actor, action: 'read', entityType: 'study', entityId: studyId, outcome: 'success', detail: { view: 'coding' } });
   return review;
 }

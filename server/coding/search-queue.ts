@@ -3,11 +3,10 @@ import type { CodingQueueQuery, QueueItem } from '../../shared/coding/review';
 import { recordAudit } from '../audit/audit';
 import type { AuditActor } from '../studies/repository';
 import { listQueue } from './queries/queue';
-import { sqlOf } from './sql';
 
 /** The coding queue under the filters, the search recorded in the audit trail with the studies it showed. */
 export async function searchCodingQueue(dataSource: DataSource, query: CodingQueueQuery, actor: AuditActor): Promise<QueueItem[]> {
-  const items = await listQueue(sqlOf(dataSource), query);
+  const items = await listQueue(dataSource.manager, query);
   await recordAudit(dataSource, { ...actor, action: 'search', entityType: 'study', outcome: 'success', detail: { queue: 'coding', ...query, returned: items.length, studyIds: items.map((i) => i.studyId) } });
   return items;
 }

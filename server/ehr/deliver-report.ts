@@ -2,9 +2,10 @@ import type { Bundle, OperationOutcome } from 'fhir/r4';
 import type { DeliveryIssue, DeliveryStatus, EhrResourceId } from '../../shared/delivery/status';
 import type { SendResult } from './ehr-client';
 import { BundleBuildError, bundleIdentifierOf } from './build-report-bundle';
-import { bundleOfLoaded, loadReportVersion, type Query } from './queries/report-version';
-
-export type { Query };
+import type { EntityManager } from 'typeorm';
+import { ReportDelivery } from '../db/entities/report-delivery.entity';
+import { ensureDeliveryRow } from './enqueue-delivery';
+import { bundleOfLoaded, loadReportVersion } from './queries/report-version';
 
 /**
  * One try at delivering one signed report version to the EHR, and its record in `report_delivery`.
@@ -19,20 +20,9 @@ export type { Query };
  * - A delivered, rejected or given-up delivery is left alone: a second job for it does nothing.
  */
 
-/**
- * A `Query` over TypeORM: its `query()` answers an UPDATE or DELETE with `[rows, affected]` rather
- * than the rows, so that shape is unwrapped.
- */
-export function typeormQuery(db: { query(sql: string, params?: unknown[]): Promise<unknown> }): Query {
-  return async (sql, params) => {
-    const result = await db.query(sql, params);
-    if (Array.isArray(result) && result.length === 2 && Array.isArray(result[0]) && typeof result[1] === 'number') return result[0] as Record<string, unknown>[];
-    return result as Record<string, unknown>[];
-  };
-}
-
 export interface DeliverDeps {
-  query: Query;
+  /** Outside any transaction: each statement commits on its own (the claim must be seen before the send). */
+  db: EntityManager;
   send: (bundle: Bundle) => Promise<SendResult>;
   /** Transient failures are retried until this long after the first try. */
   limitMs: number;
@@ -89,40 +79,37 @@ function ehrIdsOf(response: Bundle): EhrResourceId[] {
   return ids;
 }
 
-/** Makes sure the version has its delivery row (signing may add only the job). */
-async function ensureDeliveryRow(query: Query, reportVersionId: string): Promise<boolean> {
-  await query(
-    `INSERT INTO report_delivery (report_version_id, study_id)
-     SELECT id, study_id FROM report_version WHERE id = $1
-     ON CONFLICT (report_version_id) DO NOTHING`,
-    [reportVersionId],
-  );
-  const rows = await query(`SELECT 1 FROM report_delivery WHERE report_version_id = $1`, [reportVersionId]);
-  return rows.length > 0;
-}
-
 export async function deliverReport(deps: DeliverDeps, reportVersionId: string, job: JobAttempt): Promise<DeliverOutcome> {
-  const { query } = deps;
-  if (!(await ensureDeliveryRow(query, reportVersionId))) return { result: 'no-such-version' };
+  const { db } = deps;
+  if (!(await ensureDeliveryRow(db, reportVersionId))) return { result: 'no-such-version' };
 
-  const claimed = await query(
-    `UPDATE report_delivery
-        SET status = 'sending', attempts = attempts + 1, first_attempt_at = coalesce(first_attempt_at, now()),
-            last_attempt_at = now(), next_attempt_at = NULL, lease_until = now() + $2 * interval '1 millisecond', updated_at = now()
-      WHERE report_version_id = $1
-        AND (status IN ('queued', 'failed-retrying') OR (status = 'sending' AND lease_until < now()))
-      RETURNING first_attempt_at`,
-    [reportVersionId, deps.leaseMs],
-  );
+  const claim = await db
+    .createQueryBuilder()
+    .update(ReportDelivery)
+    .set({
+      status: 'sending',
+      attempts: () => 'attempts + 1',
+      firstAttemptAt: () => 'coalesce(first_attempt_at, now())',
+      lastAttemptAt: () => 'now()',
+      nextAttemptAt: null,
+      leaseUntil: () => `now() + :leaseMs * interval '1 millisecond'`,
+      updatedAt: () => 'now()',
+    })
+    .where({ reportVersionId })
+    .andWhere(`(status IN ('queued', 'failed-retrying') OR (status = 'sending' AND lease_until < now()))`)
+    .setParameter('leaseMs', deps.leaseMs)
+    .returning('first_attempt_at')
+    .execute();
+  const claimed = claim.raw as { first_attempt_at: Date }[];
   if (claimed.length === 0) {
-    const [current] = await query(`SELECT status, lease_until FROM report_delivery WHERE report_version_id = $1`, [reportVersionId]);
-    const status = current.status as DeliveryStatus;
+    const current = await db.findOne(ReportDelivery, { select: { id: true, status: true }, where: { reportVersionId } });
+    const status = current!.status;
     if (status === 'sending') throw new TransientDeliveryError('Another sender is delivering this report now.');
     return { result: 'left-alone', status };
   }
-  const firstAttemptAt = claimed[0].first_attempt_at as Date;
+  const firstAttemptAt = claimed[0].first_attempt_at;
 
-  const loaded = await loadReportVersion(query, reportVersionId);
+  const loaded = await loadReportVersion(db, reportVersionId);
   if (!loaded) return { result: 'no-such-version' };
   const { version } = loaded;
 
@@ -131,51 +118,70 @@ export async function deliverReport(deps: DeliverDeps, reportVersionId: string, 
     bundle = bundleOfLoaded(loaded, deps.identifierSystems);
   } catch (error) {
     if (!(error instanceof BundleBuildError)) throw error;
-    await stop(query, reportVersionId, 'rejected', { error: error.message, httpStatus: null, issues: [] });
+    await stop(db, reportVersionId, 'rejected', { error: error.message, httpStatus: null, issues: [] });
     return { result: 'rejected', error: error.message };
   }
-  await query(`UPDATE report_delivery SET bundle_identifier = $2 WHERE report_version_id = $1`, [reportVersionId, bundleIdentifierOf(version.studyId, version.versionNo)]);
+  // Recording which bundle is on its way is not a change of the delivery's state: updated_at stays.
+  await db.update(ReportDelivery, { reportVersionId }, { bundleIdentifier: bundleIdentifierOf(version.studyId, version.versionNo), updatedAt: () => 'updated_at' });
 
   const sent = await deps.send(bundle);
   if (sent.ok) {
     const ids = ehrIdsOf(sent.response);
     const report = ids.find((i) => i.resourceType === 'DiagnosticReport');
     const ehrReportId = report ? `DiagnosticReport/${report.id}` : null;
-    await query(
-      `UPDATE report_delivery
-          SET status = 'delivered', http_status = $2, ehr_ids = $3::jsonb, ehr_report_id = $4, delivered_at = now(),
-              last_error = NULL, issues = NULL, lease_until = NULL, next_attempt_at = NULL, stopped_at = NULL, updated_at = now()
-        WHERE report_version_id = $1`,
-      [reportVersionId, sent.status, JSON.stringify(ids), ehrReportId],
+    await db.update(
+      ReportDelivery,
+      { reportVersionId },
+      {
+        status: 'delivered',
+        httpStatus: sent.status,
+        ehrIds: ids,
+        ehrReportId,
+        deliveredAt: () => 'now()',
+        lastError: null,
+        issues: null,
+        leaseUntil: null,
+        nextAttemptAt: null,
+        stoppedAt: null,
+        updatedAt: () => 'now()',
+      },
     );
     return { result: 'delivered', ehrReportId };
   }
 
   const failure = { error: sent.message, httpStatus: sent.status ?? null, issues: issuesOf(sent.outcome) };
   if (sent.kind === 'rejected') {
-    await stop(query, reportVersionId, 'rejected', failure);
+    await stop(db, reportVersionId, 'rejected', failure);
     return { result: 'rejected', error: sent.message };
   }
   const pastLimit = Date.now() - firstAttemptAt.getTime() >= deps.limitMs;
   if (pastLimit || job.attempts >= job.maxAttempts) {
     const error = `${sent.message}; gave up after ${pastLimit ? `the time limit of ${Math.round(deps.limitMs / 60_000)} min` : `${job.attempts} tries`}`;
-    await stop(query, reportVersionId, 'given-up', { ...failure, error });
+    await stop(db, reportVersionId, 'given-up', { ...failure, error });
     return { result: 'given-up', error };
   }
-  await query(
-    `UPDATE report_delivery
-        SET status = 'failed-retrying', last_error = $2, http_status = $3, issues = $4::jsonb,
-            next_attempt_at = now() + $5 * interval '1 millisecond', lease_until = NULL, updated_at = now()
-      WHERE report_version_id = $1`,
-    [reportVersionId, failure.error, failure.httpStatus, JSON.stringify(failure.issues), retryDelayMs(job.attempts)],
-  );
+  await db
+    .createQueryBuilder()
+    .update(ReportDelivery)
+    .set({
+      status: 'failed-retrying',
+      lastError: failure.error,
+      httpStatus: failure.httpStatus,
+      issues: failure.issues,
+      nextAttemptAt: () => `now() + :retryDelayMs * interval '1 millisecond'`,
+      leaseUntil: null,
+      updatedAt: () => 'now()',
+    })
+    .where({ reportVersionId })
+    .setParameter('retryDelayMs', retryDelayMs(job.attempts))
+    .execute();
   throw new TransientDeliveryError(sent.message);
 }
 
-async function stop(query: Query, reportVersionId: string, status: 'rejected' | 'given-up', failure: { error: string; httpStatus: number | null; issues: DeliveryIssue[] }) {
-  // One statement: the delivery stops and the administrators' notice is queued together (its job key
-  // keeps it to one notice per version, however often the stop is reached).
-  await query(
+async function stop(db: EntityManager, reportVersionId: string, status: 'rejected' | 'given-up', failure: { error: string; httpStatus: number | null; issues: DeliveryIssue[] }) {
+  // SQL: the delivery stops and the administrators' notice is queued (graphile_worker.add_job) in one
+  // statement (its job key keeps it to one notice per version, however often the stop is reached).
+  await db.query(
     `WITH stopped AS (
        UPDATE report_delivery
           SET status = $2, last_error = $3, http_status = $4, issues = $5::jsonb, stopped_at = now(),

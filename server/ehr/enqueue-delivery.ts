@@ -1,4 +1,6 @@
 import type { EntityManager } from 'typeorm';
+import { ReportDelivery } from '../db/entities/report-delivery.entity';
+import { ReportVersion } from '../db/entities/report-version.entity';
 import { addJob } from '../jobs/queue';
 
 /**
@@ -10,16 +12,24 @@ export const DELIVERY_MAX_ATTEMPTS = 500;
 /** The job key of a version's delivery: enqueueing it again replaces a waiting job instead of adding one. */
 export const deliveryJobKey = (reportVersionId: string) => `deliver-report:${reportVersionId}`;
 
+/** Writes a version's delivery row (status queued) unless it has one. */
+export async function insertDeliveryRow(manager: EntityManager, reportVersionId: string, studyId: string): Promise<void> {
+  await manager.createQueryBuilder().insert().into(ReportDelivery).values({ reportVersionId, studyId }).orIgnore().execute();
+}
+
+/** Makes sure a signed version has its delivery row (signing may add only the job); false when there is no such version. */
+export async function ensureDeliveryRow(manager: EntityManager, reportVersionId: string): Promise<boolean> {
+  const version = await manager.findOne(ReportVersion, { select: { id: true, studyId: true }, where: { id: reportVersionId } });
+  if (!version) return false;
+  await insertDeliveryRow(manager, reportVersionId, version.studyId);
+  return true;
+}
+
 /**
  * Queues the delivery of a signed report version, inside the caller's transaction (the signing one,
  * or a resend): the delivery row shows "queued" and the job exists exactly when the transaction commits.
  */
 export async function enqueueDelivery(manager: EntityManager, reportVersionId: string): Promise<void> {
-  await manager.query(
-    `INSERT INTO report_delivery (report_version_id, study_id)
-     SELECT id, study_id FROM report_version WHERE id = $1
-     ON CONFLICT (report_version_id) DO NOTHING`,
-    [reportVersionId],
-  );
+  await ensureDeliveryRow(manager, reportVersionId);
   await addJob(manager, 'deliver-report', { reportVersionId }, { jobKey: deliveryJobKey(reportVersionId), maxAttempts: DELIVERY_MAX_ATTEMPTS });
 }

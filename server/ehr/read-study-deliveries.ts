@@ -1,14 +1,14 @@
 import type { DataSource } from 'typeorm';
 import type { StudyDelivery } from '../../shared/delivery/status';
 import { recordAudit } from '../audit/audit';
+import { Study } from '../db/entities/study.entity';
 import { RecordNotFoundError } from '../errors';
 import type { AuditActor } from '../studies/repository';
 import { listStudyDeliveries } from './queries/deliveries';
 
 /** The EHR delivery of each signed version of a study, the read recorded in the audit trail. */
 export async function readStudyDeliveries(dataSource: DataSource, studyId: string, actor: AuditActor): Promise<StudyDelivery[]> {
-  const [study] = await dataSource.query(`SELECT id FROM study WHERE id = $1`, [studyId]);
-  if (!study) throw new RecordNotFoundError('No study has this id.');
+  if (!(await dataSource.manager.exists(Study, { where: { id: studyId } }))) throw new RecordNotFoundError('No study has this id.');
   const deliveries = await listStudyDeliveries(dataSource, studyId);
   await recordAudit(dataSource, { ...actor, action: 'read', entityType: 'study', entityId: studyId, outcome: 'success', detail: { view: 'deliveries' } });
   return deliveries;

@@ -1,4 +1,5 @@
 import type { Task, TaskList } from 'graphile-worker';
+import type { DataSource } from 'typeorm';
 import { z } from 'zod';
 import { loadConfig, type Config } from '../config';
 import { deliverReport, type DeliverDeps } from './deliver-report';
@@ -9,6 +10,9 @@ import { labSettings, type ConfiguredDefaults } from '../settings/lab-settings';
  * The job queue's tasks for EHR delivery. `deliver-report` (payload `{ reportVersionId }`) sends one
  * signed report version; a transient failure throws, so graphile-worker retries with its exponential
  * backoff; a rejection or the time limit ends the job without an error (the delivery row says why).
+ * The task reads and writes through the app's DataSource, each statement committing on its own (no
+ * transaction: the claim must be committed before the send, and a failure's record must outlive the
+ * error thrown for the retry); graphile-worker marks the job done or failed on its own connection.
  */
 
 const payloadSchema = z.object({ reportVersionId: z.uuid() });
@@ -23,7 +27,7 @@ export interface DeliveryTaskOptions {
   settingsDefaults?: Partial<ConfiguredDefaults>;
 }
 
-export function createDeliveryTasks(options: DeliveryTaskOptions): TaskList {
+export function createDeliveryTasks(dataSource: DataSource, options: DeliveryTaskOptions): TaskList {
   const deliver: Task = async (payload, helpers) => {
     const parsed = payloadSchema.safeParse(payload);
     if (!parsed.success) {
@@ -33,9 +37,9 @@ export function createDeliveryTasks(options: DeliveryTaskOptions): TaskList {
     }
     const { reportVersionId } = parsed.data;
     // The lab's EHR endpoint, read at each try: a change applies to the next delivery and retry.
-    const { ehrBaseUrl: fhirBaseUrl } = await labSettings({ query: async (sql: string, params?: unknown[]) => (await helpers.query(sql, params)).rows }, options.settingsDefaults);
+    const { ehrBaseUrl: fhirBaseUrl } = await labSettings(dataSource.manager, options.settingsDefaults);
     const outcome = await deliverReport(
-      { ...options, send: (bundle) => options.send(bundle, fhirBaseUrl), query: async (sql, params) => (await helpers.query(sql, params as unknown[])).rows },
+      { ...options, send: (bundle) => options.send(bundle, fhirBaseUrl), db: dataSource.manager },
       reportVersionId,
       { attempts: helpers.job.attempts, maxAttempts: helpers.job.max_attempts },
     );
@@ -75,12 +79,13 @@ export function deliveryTaskOptions(config: Config): DeliveryTaskOptions {
   };
 }
 
-let configured: TaskList | undefined;
-
 /** The delivery tasks with the server's settings (read on first use). */
-export const deliveryTasks: TaskList = {
-  'deliver-report': (payload, helpers) => {
-    configured ??= createDeliveryTasks(deliveryTaskOptions(loadConfig()));
-    return configured['deliver-report']!(payload, helpers);
-  },
-};
+export function deliveryTasks(dataSource: DataSource): TaskList {
+  let configured: TaskList | undefined;
+  return {
+    'deliver-report': (payload, helpers) => {
+      configured ??= createDeliveryTasks(dataSource, deliveryTaskOptions(loadConfig()));
+      return configured['deliver-report']!(payload, helpers);
+    },
+  };
+}

@@ -18,6 +18,7 @@ export interface JobOptions {
 }
 
 export async function addJob(manager: EntityManager, name: JobName | (string & {}), payload: Record<string, unknown>, options: JobOptions = {}): Promise<string> {
+  // SQL: graphile-worker's own function, in the caller's transaction.
   const [row] = await manager.query(
     `SELECT id::text FROM graphile_worker.add_job(
        identifier => $1::text, payload => $2::json, queue_name => $3::text, run_at => $4::timestamptz,

@@ -12,12 +12,14 @@ export const cronItems: CronItem[] = [...overdueCronItems];
 
 /**
  * Every background task the worker runs, by the name it is queued under (see `jobNames`). A task
- * without a handler yet stays queued until a release that has one.
+ * without a handler yet stays queued until a release that has one. Every task reads and writes
+ * through the app's DataSource (a task that needs a transaction opens one with
+ * `dataSource.transaction`); graphile-worker's own connections only fetch and complete jobs.
  */
 export function taskList(dataSource: DataSource, config: Config): TaskList {
   return {
-    ...deliveryTasks,
-    ...codingTasks,
+    ...deliveryTasks(dataSource),
+    ...codingTasks(dataSource),
     'send-report-notice': sendReportNoticeTask(dataSource, {
       host: config.mail.host,
       port: config.mail.port,

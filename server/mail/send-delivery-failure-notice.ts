@@ -1,7 +1,9 @@
 import nodemailer from 'nodemailer';
-import type { DataSource } from 'typeorm';
+import { And, IsNull, Not, type DataSource } from 'typeorm';
 import type { Task } from 'graphile-worker';
 import { z } from 'zod';
+import { ReportDelivery } from '../db/entities/report-delivery.entity';
+import { User } from '../db/entities/user.entity';
 import { labSettings } from '../settings/lab-settings';
 
 const payloadSchema = z.object({ reportVersionId: z.uuid() });
@@ -15,25 +17,27 @@ export function sendDeliveryFailureNoticeTask(dataSource: DataSource, mail: { ho
   const transport = nodemailer.createTransport({ host: mail.host, port: mail.port, secure: false, ignoreTLS: true, connectionTimeout: 10_000 });
   return async (payload) => {
     const { reportVersionId } = payloadSchema.parse(payload);
-    const [row] = await dataSource.query(
-      `SELECT s.accession, v.version_no, d.status, d.last_error, d.http_status
-         FROM report_delivery d JOIN report_version v ON v.id = d.report_version_id JOIN study s ON s.id = v.study_id
-        WHERE d.report_version_id = $1`,
-      [reportVersionId],
-    );
-    if (!row || (row.status !== 'rejected' && row.status !== 'given-up')) return; // sent again meanwhile
-    const admins: Array<{ email: string }> = await dataSource.query(`SELECT email FROM app_user WHERE role = 'admin' AND email IS NOT NULL AND email <> '' ORDER BY email`);
+    const delivery = await dataSource.manager
+      .createQueryBuilder(ReportDelivery, 'd')
+      .innerJoin('d.reportVersion', 'v')
+      .innerJoin('v.study', 's')
+      .select(['d.id', 'd.status', 'd.lastError', 'd.httpStatus', 'v.id', 'v.versionNo', 's.id', 's.accession'])
+      .where('d.reportVersionId = :reportVersionId', { reportVersionId })
+      .getOne();
+    if (!delivery || (delivery.status !== 'rejected' && delivery.status !== 'given-up')) return; // sent again meanwhile
+    const admins = await dataSource.manager.find(User, { select: { id: true, email: true }, where: { role: 'admin', email: And(Not(IsNull()), Not('')) }, order: { email: 'ASC' } });
     if (admins.length === 0) return;
-    const what = row.status === 'rejected' ? `The EHR refused the report${row.http_status ? ` (HTTP ${row.http_status})` : ''}` : 'The EHR could not be reached before the delivery time limit';
+    const row = { accession: delivery.reportVersion!.study!.accession, versionNo: delivery.reportVersion!.versionNo };
+    const what = delivery.status === 'rejected' ? `The EHR refused the report${delivery.httpStatus ? ` (HTTP ${delivery.httpStatus})` : ''}` : 'The EHR could not be reached before the delivery time limit';
     // The lab's sender when set (read at each send), else the configured one.
     const { mailFrom } = await labSettings(dataSource, { mailFrom: mail.from });
     await transport.sendMail({
       from: mailFrom,
       to: admins.map((a) => a.email),
-      subject: `EHR delivery stopped: accession ${row.accession}, version ${row.version_no}`,
+      subject: `EHR delivery stopped: accession ${row.accession}, version ${row.versionNo}`,
       text: [
-        `${what}: accession ${row.accession}, report version ${row.version_no}.`,
-        `The EHR's answer: ${row.last_error ?? 'none'}`,
+        `${what}: accession ${row.accession}, report version ${row.versionNo}.`,
+        `The EHR's answer: ${delivery.lastError ?? 'none'}`,
         '',
         'Open "EHR delivery" in Isobar to see the issues and send the report again.',
       ].join('\n'),

@@ -2,6 +2,7 @@ import nodemailer from 'nodemailer';
 import type { DataSource } from 'typeorm';
 import type { Task } from 'graphile-worker';
 import { z } from 'zod';
+import { ReportVersion } from '../db/entities/report-version.entity';
 import { labSettings } from '../settings/lab-settings';
 
 export interface MailSettings {
@@ -22,26 +23,29 @@ export function sendReportNoticeTask(dataSource: DataSource, mail: MailSettings)
   const transport = nodemailer.createTransport({ host: mail.host, port: mail.port, secure: false, ignoreTLS: true, connectionTimeout: 10_000 });
   return async (payload) => {
     const { reportVersionId } = payloadSchema.parse(payload);
-    const [row] = await dataSource.query(
-      `SELECT s.accession, s.referring_email, v.version_no, v.status
-       FROM report_version v JOIN study s ON s.id = v.study_id WHERE v.id = $1`,
-      [reportVersionId],
-    );
-    if (!row || !row.referring_email) return; // nobody to tell
-    const amended = row.status === 'amended';
+    const version = await dataSource.manager
+      .createQueryBuilder(ReportVersion, 'v')
+      .innerJoin('v.study', 's')
+      .select(['v.id', 'v.versionNo', 'v.status', 's.id', 's.accession', 's.referringEmail'])
+      .where('v.id = :reportVersionId', { reportVersionId })
+      .getOne();
+    const referringEmail = version?.study!.referringEmail;
+    if (!version || !referringEmail) return; // nobody to tell
+    const accession = version.study!.accession;
+    const amended = version.status === 'amended';
     // The lab's sender when set (read at each send), else the configured one.
     const { mailFrom } = await labSettings(dataSource, { mailFrom: mail.from });
     await transport.sendMail({
       from: mailFrom,
-      to: row.referring_email,
-      subject: `${amended ? 'Amended report' : 'Report'} signed: accession ${row.accession}`,
+      to: referringEmail,
+      subject: `${amended ? 'Amended report' : 'Report'} signed: accession ${accession}`,
       text: [
-        `The ${amended ? `amended report (version ${row.version_no})` : 'report'} for accession number ${row.accession} has been signed.`,
+        `The ${amended ? `amended report (version ${version.versionNo})` : 'report'} for accession number ${accession} has been signed.`,
         `It is available in the ${mail.hospitalName} patient record.`,
         '',
         'This notice contains no clinical information. Please read the report in the patient record.',
       ].join('\n'),
-      headers: { 'X-Isobar-Report-Version': String(row.version_no) },
+      headers: { 'X-Isobar-Report-Version': String(version.versionNo) },
     });
   };
 }

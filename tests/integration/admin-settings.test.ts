@@ -365,7 +365,7 @@ describe('lab settings', () => {
     expect(signed.status).toBe(201);
 
     const urls: Array<string | undefined> = [];
-    const tasks = createDeliveryTasks({
+    const tasks = createDeliveryTasks(db, {
       send: async (_bundle, url) => {
         urls.push(url);
         return { ok: false, kind: 'rejected', status: 400, message: 'test endpoint' };

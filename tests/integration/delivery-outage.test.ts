@@ -19,7 +19,7 @@ afterAll(() => h.stop());
 it('50 reports signed while the EHR is down; once it is back, each is received exactly once', async () => {
   const config = testConfig();
   const client = new EhrClient({ fhirBaseUrl: h.fhirBaseUrl, issuer: h.idp.issuer, clientId: 'isobar-ehr', clientSecret: h.secret, scope: EHR_WRITE_SCOPES.join(' '), timeoutMs: 5000 });
-  const tasks = createDeliveryTasks({ send: (b) => client.sendTransaction(b), limitMs: config.ehr.deliveryLimitMs, leaseMs: 60_000, identifierSystems: config.ehr.identifierSystems });
+  const tasks = createDeliveryTasks(h.db, { send: (b) => client.sendTransaction(b), limitMs: config.ehr.deliveryLimitMs, leaseMs: 60_000, identifierSystems: config.ehr.identifierSystems });
   const worker = await startWorker(tasks, { databaseUrl: config.databaseUrl, logger: createLogger('silent'), concurrency: 4, pollInterval: 100 });
   try {
     await h.ehr.close();

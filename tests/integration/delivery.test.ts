@@ -8,7 +8,7 @@ import { toReportBundle } from '../../fhir/report-bundle';
 import { analyzeStudy } from '../../shared/physiology';
 import { defaultThresholds } from '../../shared/physiology/thresholds';
 import { reportBundleInputOf } from '../../server/ehr/build-report-bundle';
-import { deliverReport, TransientDeliveryError, typeormQuery } from '../../server/ehr/deliver-report';
+import { deliverReport, TransientDeliveryError } from '../../server/ehr/deliver-report';
 import { EhrClient } from '../../server/ehr/ehr-client';
 import { deliveryJobKey, enqueueDelivery } from '../../server/ehr/enqueue-delivery';
 import { listDeliveriesNeedingAttention, listStudyDeliveries } from '../../server/ehr/queries/deliveries';
@@ -43,7 +43,7 @@ async function freePort(): Promise<number> {
   });
 }
 
-const tasksWith = (limitMs = DAY): TaskList => createDeliveryTasks({ send: (b) => client.sendTransaction(b), limitMs, leaseMs: 60_000, identifierSystems });
+const tasksWith = (limitMs = DAY): TaskList => createDeliveryTasks(db, { send: (b) => client.sendTransaction(b), limitMs, leaseMs: 60_000, identifierSystems });
 
 /** One pass of the job queue over every job that is due (graphile-worker's runOnce). */
 const work = (tasks: TaskList = tasksWith()) => runOnce({ connectionString: process.env.DATABASE_URL!, taskList: tasks, logger: quiet });
@@ -397,7 +397,7 @@ describe('sending again', () => {
       await gate;
       return client.sendTransaction(bundle);
     };
-    const deps = { query: typeormQuery(db), send: slowSend, limitMs: DAY, leaseMs: 60_000, identifierSystems };
+    const deps = { db: db.manager, send: slowSend, limitMs: DAY, leaseMs: 60_000, identifierSystems };
     const first = deliverReport(deps, s.id, { attempts: 1, maxAttempts: 25 });
     // Wait (bounded) until the first sender is inside its send.
     for (let i = 0; i < 100 && sends === 0; i++) await new Promise((r) => setTimeout(r, 50));

@@ -20,11 +20,10 @@ afterAll(async () => {
 });
 
 const identifierSystems = { patient: 'urn:oid:2.16.840.1.113883.19.5.1', encounter: 'urn:oid:2.16.840.1.113883.19.5.2', accession: 'urn:oid:2.16.840.1.113883.19.5.3' };
-const query = (sql: string, params?: unknown[]) => db.query(sql, params);
 
 async function bundleSignedWith(patientClass: 'inpatient' | 'outpatient' | null) {
   const signed = await signCompleteStudy(db, await createPhysician(db), { patientClass });
-  const loaded = await loadReportVersion(query, signed.reportVersionId);
+  const loaded = await loadReportVersion(db.manager, signed.reportVersionId);
   const bundle = bundleOfLoaded(loaded!, identifierSystems);
   expect(errorsOf(checkBundle(bundle))).toEqual([]);
   const encounters = (bundle.entry ?? []).map((e) => e.resource).filter((r): r is Encounter => r?.resourceType === 'Encounter');

@@ -1,11 +1,12 @@
 import { createHash, randomUUID } from 'node:crypto';
-import pg from 'pg';
 import type { JobHelpers } from 'graphile-worker';
 import type { DataSource } from 'typeorm';
 import { analyzeStudy } from '../../shared/physiology';
 import type { StudyRecord } from '../../shared/study/schema';
 import { toPhysiologyInput } from '../../shared/study/to-physiology';
 import { codingTasks } from '../../server/coding/tasks';
+import { createDataSource } from '../../server/db/data-source';
+import { createLogger } from '../../server/log';
 
 /**
  * Stores a signed report version of a study as signing does (the record as the snapshot, its
@@ -48,25 +49,18 @@ export async function insertReportVersion(
   return row.id as string;
 }
 
-/** Runs the `suggest-codes` task as the worker would, on its own connection. */
+/** Runs the `suggest-codes` task as the worker would, on a DataSource (a connection) of its own. */
 export async function runSuggestCodes(reportVersionId: string): Promise<string[]> {
-  const pool = new pg.Pool({ connectionString: process.env.DATABASE_URL, max: 1 });
+  const dataSource = createDataSource(process.env.DATABASE_URL!, 1, createLogger('silent'));
+  await dataSource.initialize();
   const logged: string[] = [];
   const helpers = {
-    withPgClient: async <T>(fn: (client: pg.PoolClient) => Promise<T>) => {
-      const client = await pool.connect();
-      try {
-        return await fn(client);
-      } finally {
-        client.release();
-      }
-    },
     logger: { info: (m: string) => logged.push(m), warn: (m: string) => logged.push(m), error: (m: string) => logged.push(m), debug: () => undefined },
   } as unknown as JobHelpers;
   try {
-    await codingTasks['suggest-codes']!({ reportVersionId }, helpers);
+    await codingTasks(dataSource)['suggest-codes']!({ reportVersionId }, helpers);
   } finally {
-    await pool.end();
+    await dataSource.destroy();
   }
   return logged;
 }

@@ -1,6 +1,7 @@
 import { run, Logger, type Task } from 'graphile-worker';
 import pg from 'pg';
 import { loadConfig } from '../../server/config';
+import { createDataSource } from '../../server/db/data-source';
 import { createDeliveryTasks, deliveryTaskOptions } from '../../server/ehr/tasks';
 
 /**
@@ -18,7 +19,9 @@ const emit = (event: Record<string, unknown>) => process.stdout.write(`${JSON.st
 
 async function main(): Promise<void> {
   const config = loadConfig();
-  const deliver = createDeliveryTasks(deliveryTaskOptions(config))['deliver-report']!;
+  const dataSource = createDataSource(config.databaseUrl, 4);
+  await dataSource.initialize();
+  const deliver = createDeliveryTasks(dataSource, deliveryTaskOptions(config))['deliver-report']!;
   const task: Task = async (payload, helpers) => {
     const id = (payload as { reportVersionId?: string }).reportVersionId;
     emit({ event: 'started', id });

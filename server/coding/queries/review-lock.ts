@@ -1,5 +1,6 @@
+import type { EntityManager } from 'typeorm';
+import { CodingReview } from '../../db/entities/coding.entities';
 import { RecordNotFoundError } from '../../errors';
-import type { Sql } from '../sql';
 
 export class SetSupersededError extends Error {
   constructor(versionNo: number) {
@@ -14,16 +15,19 @@ export class ReviewCompletedError extends Error {
 }
 
 /**
- * Locks a study's review for the rest of the transaction and checks that the coder acted on the
- * set in force and that the review is still open.
+ * Locks a study's review for the rest of the transaction (`FOR UPDATE OF` the review row only) and
+ * checks that the coder acted on the set in force and that the review is still open.
  */
-export async function lockOpenReview(sql: Sql, studyId: string, setId: string): Promise<{ status: string; setId: string }> {
-  const [row] = await sql(
-    `SELECT r.status, r.current_set_id, s.version_no FROM coding_review r JOIN code_suggestion_set s ON s.id = r.current_set_id WHERE r.study_id = $1 FOR UPDATE OF r`,
-    [studyId],
-  );
-  if (!row) throw new RecordNotFoundError('This study has no code suggestions yet.');
-  if (row.current_set_id !== setId) throw new SetSupersededError(row.version_no);
-  if (row.status === 'coded') throw new ReviewCompletedError();
-  return { status: row.status, setId: row.current_set_id };
+export async function lockOpenReview(manager: EntityManager, studyId: string, setId: string): Promise<{ status: CodingReview['status']; setId: string }> {
+  const review = await manager
+    .createQueryBuilder(CodingReview, 'r')
+    .innerJoin('r.currentSet', 's')
+    .select(['r.studyId', 'r.status', 'r.currentSetId', 's.id', 's.versionNo'])
+    .where('r.studyId = :studyId', { studyId })
+    .setLock('pessimistic_write', undefined, ['r'])
+    .getOne();
+  if (!review) throw new RecordNotFoundError('This study has no code suggestions yet.');
+  if (review.currentSetId !== setId) throw new SetSupersededError(review.currentSet!.versionNo);
+  if (review.status === 'coded') throw new ReviewCompletedError();
+  return { status: review.status, setId: review.currentSetId };
 }

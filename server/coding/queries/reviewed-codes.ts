@@ -1,10 +1,11 @@
 import { stringify } from 'csv-stringify/sync';
+import type { EntityManager } from 'typeorm';
 import { csvExportOptions } from '../../../shared/csv/neutralise';
 import type { Decision } from '../../../shared/coding/review';
 import { loadLines } from './review';
-import { auditTarget, type Sql } from '../sql';
 import { labSettings } from '../../settings/lab-settings';
 import { localMidnight } from '../../db/local-midnight';
+import { CodingReview } from '../../db/entities/coding.entities';
 
 export interface ExportedCode {
   accession: string;
@@ -28,31 +29,34 @@ export interface ExportedCode {
  * The reviewed codes of the studies coded (review completed) between two days, inclusive: one row
  * per code as it is reported — accepted, edited (the edit), added; rejected codes are not codes.
  */
-export async function exportCodes(sql: Sql, from: string, to: string): Promise<ExportedCode[]> {
+export async function exportCodes(manager: EntityManager, from: string, to: string): Promise<ExportedCode[]> {
   // Days are the lab's calendar days, not the database server's; the date of service is the one the
   // codes were suggested for (the signed record's, in the lab's zone).
-  const { timeZone } = await labSettings(auditTarget(sql));
-  const reviews = await sql(
-    `SELECT r.current_set_id, r.completer_name, r.completed_at, cs.version_no, s.accession, p.mrn, p.family_name, p.given_name,
-            coalesce(cs.input->>'dateOfService', to_char(s.procedure_started_at AT TIME ZONE $3, 'YYYY-MM-DD')) AS date_of_service
-     FROM coding_review r
-     JOIN code_suggestion_set cs ON cs.id = r.current_set_id
-     JOIN study s ON s.id = r.study_id
-     JOIN patient p ON p.id = s.patient_id
-     WHERE r.status = 'coded' AND r.completed_at >= ${localMidnight('$1::date')} AND r.completed_at < ${localMidnight('$2::date + 1')}
-     ORDER BY r.completed_at, r.study_id`,
-    [from, to, timeZone],
-  );
+  const { timeZone } = await labSettings(manager);
+  // localMidnight's SQL names the zone as $3; here it is the named parameter.
+  const midnight = (date: string) => localMidnight(date).replaceAll('$3', ':timeZone');
+  const { entities: reviews, raw } = await manager
+    .createQueryBuilder(CodingReview, 'r')
+    .innerJoin('r.currentSet', 'cs')
+    .innerJoin('r.study', 's')
+    .innerJoin('s.patient', 'p')
+    .select(['r.studyId', 'r.currentSetId', 'r.completerName', 'r.completedAt', 'cs.id', 'cs.versionNo', 's.id', 's.accession', 'p.id', 'p.mrn', 'p.familyName', 'p.givenName'])
+    .addSelect(`coalesce(cs.input ->> 'dateOfService', to_char(s.procedureStartedAt AT TIME ZONE :timeZone, 'YYYY-MM-DD'))`, 'date_of_service')
+    .where(`r.status = 'coded' AND r.completedAt >= ${midnight('CAST(:from AS date)')} AND r.completedAt < ${midnight('CAST(:to AS date) + 1')}`, { from, to, timeZone })
+    .orderBy('r.completedAt')
+    .addOrderBy('r.studyId')
+    .getRawAndEntities<{ date_of_service: string | null }>();
   const out: ExportedCode[] = [];
-  for (const r of reviews) {
-    for (const l of await loadLines(sql, r.current_set_id)) {
+  for (const [i, r] of reviews.entries()) {
+    const study = r.study!;
+    for (const l of await loadLines(manager, r.currentSetId)) {
       if (!l.final || !l.decision) continue;
       out.push({
-        accession: r.accession,
-        mrn: r.mrn,
-        patient: `${r.family_name}, ${r.given_name}`,
-        dateOfService: r.date_of_service,
-        reportVersion: r.version_no,
+        accession: study.accession,
+        mrn: study.patient!.mrn,
+        patient: `${study.patient!.familyName}, ${study.patient!.givenName}`,
+        dateOfService: raw[i].date_of_service,
+        reportVersion: r.currentSet!.versionNo,
         system: l.final.system,
         code: l.final.code,
         modifiers: l.final.modifiers,
@@ -61,8 +65,9 @@ export async function exportCodes(sql: Sql, from: string, to: string): Promise<E
         ruleId: l.ruleId,
         decision: l.decision.decision,
         reason: l.decision.reason,
-        codedBy: r.completer_name,
-        codedAt: (r.completed_at as Date).toISOString(),
+        // A coded review always names who completed it and when.
+        codedBy: r.completerName!,
+        codedAt: r.completedAt!.toISOString(),
       });
     }
   }

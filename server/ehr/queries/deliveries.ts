@@ -1,40 +1,41 @@
 import type { DataSource, EntityManager } from 'typeorm';
+import { ReportDelivery } from '../../db/entities/report-delivery.entity';
+import { ReportVersion } from '../../db/entities/report-version.entity';
+import { Study } from '../../db/entities/study.entity';
 import { attentionStatuses, type DeliveryIssue, type DeliveryListItem, type DeliveryStatus, type StudyDelivery } from '../../../shared/delivery/status';
 
 const iso = (d: Date | null) => (d ? d.toISOString() : null);
+const managerOf = (db: DataSource | EntityManager): EntityManager => ('manager' in db ? db.manager : db);
 
 /**
  * The delivery of every signed version of a study, newest version first. A version whose delivery
  * row is not written yet (the job was queued by the signature and has not run) shows as queued.
  */
 export async function listStudyDeliveries(db: DataSource | EntityManager, studyId: string): Promise<StudyDelivery[]> {
-  const rows: Record<string, unknown>[] = await db.query(
-    `SELECT rv.id AS report_version_id, rv.version_no, rv.status AS report_status, rv.signed_at,
-            coalesce(d.status, 'queued') AS status, coalesce(d.attempts, 0) AS attempts, d.last_error, d.http_status, d.issues,
-            d.ehr_report_id, coalesce(d.ehr_ids, '[]'::jsonb) AS ehr_ids, coalesce(d.queued_at, rv.signed_at) AS queued_at,
-            d.last_attempt_at, d.next_attempt_at, d.delivered_at, d.stopped_at
-       FROM report_version rv
-       LEFT JOIN report_delivery d ON d.report_version_id = rv.id
-      WHERE rv.study_id = $1
-      ORDER BY rv.version_no DESC`,
-    [studyId],
-  );
-  return rows.map((r) => ({
-    reportVersionId: r.report_version_id as string,
-    versionNo: r.version_no as number,
-    reportStatus: r.report_status as 'final' | 'amended',
-    status: r.status as DeliveryStatus,
-    attempts: r.attempts as number,
-    lastError: r.last_error as string | null,
-    httpStatus: r.http_status as number | null,
-    issues: (r.issues as DeliveryIssue[] | null) ?? [],
-    ehrReportId: r.ehr_report_id as string | null,
-    ehrIds: r.ehr_ids as StudyDelivery['ehrIds'],
-    queuedAt: (r.queued_at as Date).toISOString(),
-    lastAttemptAt: iso(r.last_attempt_at as Date | null),
-    nextAttemptAt: iso(r.next_attempt_at as Date | null),
-    deliveredAt: iso(r.delivered_at as Date | null),
-    stoppedAt: iso(r.stopped_at as Date | null),
+  const versions = (await managerOf(db)
+    .createQueryBuilder(ReportVersion, 'rv')
+    .leftJoinAndMapOne('rv.delivery', ReportDelivery, 'd', 'd.reportVersionId = rv.id')
+    .select(['rv.id', 'rv.versionNo', 'rv.status', 'rv.signedAt'])
+    .addSelect(['d.id', 'd.status', 'd.attempts', 'd.lastError', 'd.httpStatus', 'd.issues', 'd.ehrReportId', 'd.ehrIds', 'd.queuedAt', 'd.lastAttemptAt', 'd.nextAttemptAt', 'd.deliveredAt', 'd.stoppedAt'])
+    .where('rv.studyId = :studyId', { studyId })
+    .orderBy('rv.versionNo', 'DESC')
+    .getMany()) as Array<ReportVersion & { delivery?: ReportDelivery }>;
+  return versions.map(({ delivery: d, ...rv }) => ({
+    reportVersionId: rv.id,
+    versionNo: rv.versionNo,
+    reportStatus: rv.status,
+    status: d?.status ?? 'queued',
+    attempts: d?.attempts ?? 0,
+    lastError: d?.lastError ?? null,
+    httpStatus: d?.httpStatus ?? null,
+    issues: d?.issues ?? [],
+    ehrReportId: d?.ehrReportId ?? null,
+    ehrIds: d?.ehrIds ?? [],
+    queuedAt: (d?.queuedAt ?? rv.signedAt).toISOString(),
+    lastAttemptAt: iso(d?.lastAttemptAt ?? null),
+    nextAttemptAt: iso(d?.nextAttemptAt ?? null),
+    deliveredAt: iso(d?.deliveredAt ?? null),
+    stoppedAt: iso(d?.stoppedAt ?? null),
   }));
 }
 
@@ -48,28 +49,28 @@ export async function listDeliveriesNeedingAttention(
   options: { statuses?: readonly DeliveryStatus[]; limit?: number } = {},
 ): Promise<DeliveryListItem[]> {
   const statuses = options.statuses?.length ? options.statuses : attentionStatuses;
-  const rows: Record<string, unknown>[] = await db.query(
-    `SELECT d.report_version_id, s.accession, rv.version_no, d.status, d.attempts, d.last_error, d.http_status, d.issues,
-            d.last_attempt_at, d.next_attempt_at, d.stopped_at
-       FROM report_delivery d
-       JOIN report_version rv ON rv.id = d.report_version_id
-       JOIN study s ON s.id = d.study_id
-      WHERE d.status = ANY($1::text[])
-      ORDER BY d.updated_at DESC, d.id
-      LIMIT $2`,
-    [statuses, Math.min(Math.max(options.limit ?? 200, 1), 500)],
-  );
-  return rows.map((r) => ({
-    reportVersionId: r.report_version_id as string,
-    accession: r.accession as string,
-    versionNo: r.version_no as number,
-    status: r.status as DeliveryStatus,
-    attempts: r.attempts as number,
-    lastError: r.last_error as string | null,
-    httpStatus: r.http_status as number | null,
-    issues: ((r.issues as DeliveryIssue[] | null) ?? []).map((i) => ({ severity: i.severity, code: i.code, ...(i.expression ? { expression: i.expression } : {}) })),
-    lastAttemptAt: iso(r.last_attempt_at as Date | null),
-    nextAttemptAt: iso(r.next_attempt_at as Date | null),
-    stoppedAt: iso(r.stopped_at as Date | null),
+  const deliveries = (await managerOf(db)
+    .createQueryBuilder(ReportDelivery, 'd')
+    .innerJoin('d.reportVersion', 'rv')
+    .innerJoinAndMapOne('d.study', Study, 's', 's.id = d.studyId')
+    .select(['d.id', 'd.reportVersionId', 'd.status', 'd.attempts', 'd.lastError', 'd.httpStatus', 'd.issues', 'd.lastAttemptAt', 'd.nextAttemptAt', 'd.stoppedAt'])
+    .addSelect(['rv.id', 'rv.versionNo', 's.id', 's.accession'])
+    .where('d.status IN (:...statuses)', { statuses })
+    .orderBy('d.updatedAt', 'DESC')
+    .addOrderBy('d.id')
+    .limit(Math.min(Math.max(options.limit ?? 200, 1), 500))
+    .getMany()) as Array<ReportDelivery & { study: Study }>;
+  return deliveries.map((d) => ({
+    reportVersionId: d.reportVersionId,
+    accession: d.study.accession,
+    versionNo: d.reportVersion!.versionNo,
+    status: d.status,
+    attempts: d.attempts,
+    lastError: d.lastError,
+    httpStatus: d.httpStatus,
+    issues: (d.issues ?? []).map((i) => ({ severity: i.severity, code: i.code, ...(i.expression ? { expression: i.expression } : {}) })),
+    lastAttemptAt: iso(d.lastAttemptAt),
+    nextAttemptAt: iso(d.nextAttemptAt),
+    stoppedAt: iso(d.stoppedAt),
   }));
 }

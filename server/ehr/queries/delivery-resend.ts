@@ -1,6 +1,8 @@
 import type { DataSource } from 'typeorm';
+import { ReportDelivery } from '../../db/entities/report-delivery.entity';
+import { ReportVersion } from '../../db/entities/report-version.entity';
 import { RecordNotFoundError } from '../../errors';
-import { enqueueDelivery } from '../enqueue-delivery';
+import { enqueueDelivery, insertDeliveryRow } from '../enqueue-delivery';
 
 export class DeliveryBusyError extends Error {
   constructor() {
@@ -16,22 +18,37 @@ export class DeliveryBusyError extends Error {
  */
 export async function resendDelivery(dataSource: DataSource, reportVersionId: string, requestedBy: string | null): Promise<{ studyId: string; previousStatus: string }> {
   return dataSource.transaction(async (manager) => {
-    const [version] = await manager.query(`SELECT study_id FROM report_version WHERE id = $1`, [reportVersionId]);
+    const version = await manager.findOne(ReportVersion, { select: { id: true, studyId: true }, where: { id: reportVersionId } });
     if (!version) throw new RecordNotFoundError('No signed report version has this id.');
-    await manager.query(
-      `INSERT INTO report_delivery (report_version_id, study_id) VALUES ($1, $2) ON CONFLICT (report_version_id) DO NOTHING`,
-      [reportVersionId, version.study_id],
-    );
-    const [current] = await manager.query(`SELECT status, lease_until > now() AS leased FROM report_delivery WHERE report_version_id = $1 FOR UPDATE`, [reportVersionId]);
-    if (current.status === 'sending' && current.leased) throw new DeliveryBusyError();
-    await manager.query(
-      `UPDATE report_delivery
-          SET status = 'queued', queued_at = now(), first_attempt_at = NULL, next_attempt_at = NULL, stopped_at = NULL,
-              lease_until = NULL, resend_requested_by = $2, resend_requested_at = now(), updated_at = now()
-        WHERE report_version_id = $1`,
-      [reportVersionId, requestedBy],
+    await insertDeliveryRow(manager, reportVersionId, version.studyId);
+    const {
+      entities: [current],
+      raw: [lease],
+    } = await manager
+      .createQueryBuilder(ReportDelivery, 'd')
+      .select(['d.id', 'd.status'])
+      // The lease is judged by the database's clock, as the senders judge it.
+      .addSelect('d.leaseUntil > now()', 'leased')
+      .where('d.reportVersionId = :reportVersionId', { reportVersionId })
+      .setLock('pessimistic_write')
+      .getRawAndEntities<{ leased: boolean | null }>();
+    if (current.status === 'sending' && lease.leased) throw new DeliveryBusyError();
+    await manager.update(
+      ReportDelivery,
+      { reportVersionId },
+      {
+        status: 'queued',
+        queuedAt: () => 'now()',
+        firstAttemptAt: null,
+        nextAttemptAt: null,
+        stoppedAt: null,
+        leaseUntil: null,
+        resendRequestedBy: requestedBy,
+        resendRequestedAt: () => 'now()',
+        updatedAt: () => 'now()',
+      },
     );
     await enqueueDelivery(manager, reportVersionId);
-    return { studyId: version.study_id as string, previousStatus: current.status as string };
+    return { studyId: version.studyId, previousStatus: current.status };
   });
 }

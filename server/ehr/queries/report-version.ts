@@ -1,8 +1,8 @@
 import type { Bundle } from 'fhir/r4';
+import type { EntityManager } from 'typeorm';
+import { ReportVersion } from '../../db/entities/report-version.entity';
+import { User } from '../../db/entities/user.entity';
 import { buildReportBundle, type BundleContext, type StoredReportVersion } from '../build-report-bundle';
-
-/** Rows of a query (pg's `rows`): the task runs on the job queue's connection, routes on TypeORM's. */
-export type Query = (sql: string, params?: unknown[]) => Promise<Record<string, unknown>[]>;
 
 /** A stored, signed report version with what its bundle needs beyond its own row. */
 export interface LoadedReportVersion {
@@ -15,37 +15,38 @@ export interface LoadedReportVersion {
 }
 
 /** Reads a signed report version as it was stored; undefined when there is no such version. */
-export async function loadReportVersion(query: Query, reportVersionId: string): Promise<LoadedReportVersion | undefined> {
-  const [row] = await query(
-    `SELECT rv.id, rv.study_id, rv.version_no, rv.status, rv.snapshot, rv.analysis, rv.thresholds, pdf.pdf, pdf.pdf_sha256,
-            rv.signer_name, rv.signed_at, prev.version_no AS previous_version_no, operator.display_name AS operator_name,
-            study.accession
-       FROM report_version rv
-       JOIN study ON study.id = rv.study_id
-       JOIN report_pdf pdf ON pdf.report_version_id = rv.id
-       LEFT JOIN report_version prev ON prev.id = rv.supersedes_id
-       LEFT JOIN app_user operator ON operator.id::text = rv.snapshot -> 'details' ->> 'operatorId'
-      WHERE rv.id = $1`,
-    [reportVersionId],
-  );
-  if (!row) return undefined;
+export async function loadReportVersion(manager: EntityManager, reportVersionId: string): Promise<LoadedReportVersion | undefined> {
+  const { entities, raw } = await manager
+    .createQueryBuilder(ReportVersion, 'rv')
+    .innerJoin('rv.study', 'study')
+    .innerJoin('rv.pdfFile', 'pdf')
+    .leftJoin(ReportVersion, 'prev', 'prev.id = rv.supersedesId')
+    // The operator as the signed snapshot names them (text: a snapshot's id is not checked as a uuid).
+    .leftJoin(User, 'operator', `operator.id::text = rv.snapshot -> 'details' ->> 'operatorId'`)
+    .select(['rv.id', 'rv.studyId', 'rv.versionNo', 'rv.status', 'rv.snapshot', 'rv.analysis', 'rv.thresholds', 'pdf.reportVersionId', 'pdf.pdf', 'pdf.pdfSha256', 'rv.signerName', 'rv.signedAt', 'study.id', 'study.accession'])
+    .addSelect('prev.versionNo', 'previous_version_no')
+    .addSelect('operator.displayName', 'operator_name')
+    .where('rv.id = :reportVersionId', { reportVersionId })
+    .getRawAndEntities<{ previous_version_no: number | null; operator_name: string | null }>();
+  const [rv] = entities;
+  if (!rv) return undefined;
   return {
     version: {
-      id: row.id as string,
-      studyId: row.study_id as string,
-      versionNo: row.version_no as number,
-      status: row.status as 'final' | 'amended',
-      snapshot: row.snapshot,
-      analysis: row.analysis,
-      thresholds: row.thresholds,
-      pdf: row.pdf as Buffer,
-      pdfSha256: row.pdf_sha256 as string,
-      signerName: row.signer_name as string,
-      signedAt: row.signed_at as Date,
+      id: rv.id,
+      studyId: rv.studyId,
+      versionNo: rv.versionNo,
+      status: rv.status,
+      snapshot: rv.snapshot,
+      analysis: rv.analysis,
+      thresholds: rv.thresholds,
+      pdf: rv.pdfFile!.pdf,
+      pdfSha256: rv.pdfFile!.pdfSha256,
+      signerName: rv.signerName,
+      signedAt: rv.signedAt,
     },
-    previousVersionNo: (row.previous_version_no as number | null) ?? undefined,
-    operatorName: row.operator_name as string | null,
-    accession: row.accession as string,
+    previousVersionNo: raw[0].previous_version_no ?? undefined,
+    operatorName: raw[0].operator_name,
+    accession: rv.study!.accession,
   };
 }
 
