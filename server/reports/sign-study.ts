@@ -9,7 +9,7 @@ import { ReportVersion } from '../db/entities/report-version.entity';
 import { InvalidRequestError, RecordNotFoundError } from '../errors';
 import { ATTESTATION, prepareSignedText, renderSignedPdf } from '../report-document';
 import { loadStudy, StaleVersionError } from '../studies/repository';
-import { connectionOf, namedStatement, preparedOn } from '../db/prepared';
+import { inPooledTransaction, namedStatement, preparedOn } from '../db/prepared';
 import type { PoolClient } from 'pg';
 import { IncompleteStudyError, TransitionRefusedError } from './errors';
 import { jobsOnReportSigned } from './on-report-signed';
@@ -90,9 +90,14 @@ export async function signStudy(dataSource: DataSource, req: SignStudyRequest): 
     spans[name] = t - mark;
     mark = t;
   };
-  const summary = await dataSource.transaction(async (manager) => {
+  const summary = await inPooledTransaction(dataSource, async (client) => {
     step('begin');
-    const record = await loadStudy(manager, req.studyId, { forUpdate: true });
+    // The locking read first, then the signing context right behind it on the same connection
+    // (queued in this order, so the context is read with the study's row already locked).
+    const loading = loadStudy(client, req.studyId, { forUpdate: true });
+    const contextRead = signingContext(client, req.studyId, req.now ?? null);
+    contextRead.catch(() => undefined); // awaited below unless the study cannot be signed
+    const record = await loading;
     if (!record) throw new RecordNotFoundError('No study has this id.');
     const state = record.state;
     const addendum = state === 'amending';
@@ -106,7 +111,7 @@ export async function signStudy(dataSource: DataSource, req: SignStudyRequest): 
     if (!completeness.complete) throw new IncompleteStudyError(completeness.missing);
     step('load');
 
-    const context = await signingContext(manager, req.studyId, req.now ?? null, record.details.operatorId ?? null);
+    const context = await contextRead;
     const { previous } = context;
     const signedAt: Date = req.now ?? context.now;
     const thresholds = chooseThresholds(addendum ? previous : null, () => context.inForce, req.thresholds ?? 'original');
@@ -153,8 +158,7 @@ export async function signStudy(dataSource: DataSource, req: SignStudyRequest): 
     step('codes');
     // The version and everything that follows from it are sent now, on the transaction's connection,
     // and written by PostgreSQL while this process renders the PDF; the PDF's row comes after.
-    const connection = await connectionOf(manager);
-    const stored = storeSignature(connection, version, addendum ? 'amended' : 'signed', coding, {
+    const stored = storeSignature(client, version, addendum ? 'amended' : 'signed', coding, {
       ...req.audit,
       action: addendum ? 'sign-addendum' : 'sign',
       entityType: 'study',
@@ -174,7 +178,7 @@ export async function signStudy(dataSource: DataSource, req: SignStudyRequest): 
     step('pdf');
     await stored;
     step('store');
-    await connection.query(namedStatement(`INSERT INTO report_pdf (report_version_id, pdf, pdf_sha256) VALUES ($1::uuid, $2::bytea, $3)`, [version.id, pdf, pdfSha256]));
+    await client.query(namedStatement(`INSERT INTO report_pdf (report_version_id, pdf, pdf_sha256) VALUES ($1::uuid, $2::bytea, $3)`, [version.id, pdf, pdfSha256]));
     step('store-pdf');
     return summariseVersion(version, pdfSha256);
   });
@@ -203,22 +207,22 @@ interface SigningContext {
  * else the transaction's time), the lab's settings, the operator's name and the study's coding so far
  * (its review row locked), in one round trip.
  */
-async function signingContext(manager: EntityManager, studyId: string, at: Date | null, operatorId: string | null): Promise<SigningContext> {
+async function signingContext(client: PoolClient, studyId: string, at: Date | null): Promise<SigningContext> {
   // eslint-disable-next-line @typescript-eslint/no-explicit-any
-  const [row] = await preparedOn<any>(manager,
+  const [row] = await preparedOn<any>(client,
     `SELECT now() AS now,
             prev.id AS prev_id, prev.version_no AS prev_version_no, prev.thresholds AS prev_thresholds, prev.threshold_set_id AS prev_set_id,
             (SELECT effective_from FROM threshold_set WHERE id = prev.threshold_set_id) AS prev_set_effective_from,
             ts.id AS set_id, ts.effective_from AS set_effective_from, ts.values AS set_values,
             l.time_zone, l.template_version,
-            (SELECT display_name FROM app_user WHERE id = $3::uuid) AS operator_name,
+            (SELECT u.display_name FROM study s JOIN app_user u ON u.id = s.operator_id WHERE s.id = $1) AS operator_name,
             ${codingBeforeSql('$1::uuid', '2147483647')}
      FROM (SELECT 1) AS one
      LEFT JOIN LATERAL (SELECT id, version_no, thresholds, threshold_set_id FROM report_version WHERE study_id = $1 ORDER BY version_no DESC LIMIT 1) prev ON true
      LEFT JOIN LATERAL (SELECT id, effective_from, values FROM threshold_set WHERE effective_from <= COALESCE($2::timestamptz, now()) ORDER BY effective_from DESC, id DESC LIMIT 1) ts ON true
      LEFT JOIN lab_settings l ON l.id = 1
      ${codingBeforeJoin('$1::uuid')}`,
-    [studyId, at, operatorId],
+    [studyId, at],
   );
   return {
     now: row.now,

@@ -1,3 +1,4 @@
+import type { PoolClient } from 'pg';
 import { Like, Not, type DataSource, type EntityManager } from 'typeorm';
 import type {
   AcetylcholineDose,
@@ -34,23 +35,49 @@ export class StaleVersionError extends Error {
   }
 }
 
-type Db = DataSource | EntityManager;
+type Db = DataSource | EntityManager | PoolClient;
 type Intervention = StudySections['coding']['interventions'][number];
 
-/** The study record; `forUpdate` also locks the study's row until the caller's transaction ends. */
+/**
+ * The study record, in one statement: the row with its patient (numbers cast to float8 there) and its
+ * row sections and attachments as JSON arrays, all from one snapshot. `forUpdate` also locks the
+ * study's row until the caller's transaction ends; a signer who waited for that lock reads the row as
+ * the other writer left it (PostgreSQL re-reads a locked row) and its sections as they were when the
+ * statement began, which differ only if that writer moved the study's version, and a signature
+ * compares that version with the one previewed.
+ */
 export async function loadStudy(db: Db, id: string, options: { forUpdate?: boolean } = {}): Promise<StudyRecord | null> {
-  // SQL kept, as a named prepared statement: read on every save, preview and signature; the row with its patient in one statement, numbers cast to float8 there.
+  // SQL kept, as a named prepared statement: read on every save, preview and signature (one round trip).
   // eslint-disable-next-line @typescript-eslint/no-explicit-any
   const [row] = await preparedOn<any>(db,
     `SELECT s.id, s.accession, s.state, s.version, s.created_at, s.updated_at,
             p.mrn, p.family_name, p.given_name, to_char(p.birth_date, 'YYYY-MM-DD') AS birth_date, p.sex,
             ${selectList(detailsColumns, 's', 'details')}, ${selectList(setupColumns, 's', 'setup')}, ${selectList(findingsColumns, 's', 'findings')},
-            ${selectList(vasoreactivityColumns, 's', 'vaso')}, ${selectList(codingColumns, 's', 'coding')}
+            ${selectList(vasoreactivityColumns, 's', 'vaso')}, ${selectList(codingColumns, 's', 'coding')},
+       (SELECT COALESCE(json_agg(json_build_object(
+                 'id', v.id, 'vessel', v.vessel, 'segment', v.segment, 'visualStenosisPct', v.visual_stenosis_pct, 'restPa', v.rest_pa, 'restPd', v.rest_pd,
+                 'hyperemiaPa', v.hyperemia_pa, 'hyperemiaPd', v.hyperemia_pd, 'consoleFfr', v.console_ffr, 'nhprKind', v.nhpr_kind, 'nhprValue', v.nhpr_value,
+                 'wedgePressure', v.wedge_pressure, 'driftPdPa', v.drift_pd_pa, 'driftNotDoneReason', v.drift_not_done_reason, 'timiFlow', v.timi_flow,
+                 'correctedFrameCount', v.corrected_frame_count, 'pullbackPattern', v.pullback_pattern, 'decision', v.decision) ORDER BY v.position), '[]')
+        FROM vessel_assessment v WHERE v.study_id = $1) AS vessels,
+       (SELECT COALESCE(json_agg(json_build_object('vesselAssessmentId', i.vessel_assessment_id, 'phase', i.phase, 'transitSeconds', i.transit_s) ORDER BY i.position), '[]')
+        FROM thermodilution_injection i JOIN vessel_assessment v ON v.id = i.vessel_assessment_id WHERE v.study_id = $1) AS injections,
+       (SELECT COALESCE(json_agg(json_build_object(
+                 'id', d.id, 'vessel', d.vessel, 'micrograms', d.micrograms, 'constrictionPct', d.constriction_pct, 'symptoms', d.symptoms, 'ischemicEcg', d.ischemic_ecg,
+                 'heartRate', d.heart_rate, 'systolic', d.systolic, 'diastolic', d.diastolic, 'rhythm', d.rhythm,
+                 'spasmVessel', d.spasm_vessel, 'spasmSegment', d.spasm_segment, 'spasmPattern', d.spasm_pattern) ORDER BY d.position), '[]')
+        FROM acetylcholine_dose d WHERE d.study_id = $1) AS doses,
+       (SELECT COALESCE(json_agg(json_build_object('id', c.id, 'vessel', c.vessel, 'kind', c.kind, 'branch', c.branch, 'stent', c.stent) ORDER BY c.position), '[]')
+        FROM coronary_intervention c WHERE c.study_id = $1) AS interventions,
+       (SELECT COALESCE(json_agg(json_build_object(
+                 'id', a.id, 'fileName', a.file_name, 'mediaType', a.media_type, 'sizeBytes', a.size_bytes::float8, 'sha256', a.sha256,
+                 'uploadedAt', a.uploaded_at, 'uploadedBy', u.display_name) ORDER BY a.uploaded_at, a.id), '[]')
+        FROM attachment a LEFT JOIN app_user u ON u.id = a.uploaded_by WHERE a.study_id = $1) AS attachments
      FROM study s JOIN patient p ON p.id = s.patient_id WHERE s.id = $1${options.forUpdate ? ' FOR UPDATE OF s' : ''}`,
     [id],
   );
   if (!row) return null;
-  const parts = await loadStudyParts(db, id);
+  const parts = partsOf(row);
   return {
     id: row.id,
     accession: row.accession,
@@ -81,36 +108,9 @@ interface StudyParts {
   attachments: AttachmentSummary[];
 }
 
-/**
- * A study's row sections (vessels with their injections, acetylcholine doses, interventions) and its
- * attachments' summaries, in one statement: each as a JSON array in its stored order.
- */
-async function loadStudyParts(db: Db, id: string): Promise<StudyParts> {
-  // SQL kept, as a named prepared statement: five row sets aggregated as JSON in one round trip, on every save, preview and signature.
-  // eslint-disable-next-line @typescript-eslint/no-explicit-any
-  const [row] = await preparedOn<any>(db,
-    `SELECT
-       (SELECT COALESCE(json_agg(json_build_object(
-                 'id', v.id, 'vessel', v.vessel, 'segment', v.segment, 'visualStenosisPct', v.visual_stenosis_pct, 'restPa', v.rest_pa, 'restPd', v.rest_pd,
-                 'hyperemiaPa', v.hyperemia_pa, 'hyperemiaPd', v.hyperemia_pd, 'consoleFfr', v.console_ffr, 'nhprKind', v.nhpr_kind, 'nhprValue', v.nhpr_value,
-                 'wedgePressure', v.wedge_pressure, 'driftPdPa', v.drift_pd_pa, 'driftNotDoneReason', v.drift_not_done_reason, 'timiFlow', v.timi_flow,
-                 'correctedFrameCount', v.corrected_frame_count, 'pullbackPattern', v.pullback_pattern, 'decision', v.decision) ORDER BY v.position), '[]')
-        FROM vessel_assessment v WHERE v.study_id = $1) AS vessels,
-       (SELECT COALESCE(json_agg(json_build_object('vesselAssessmentId', i.vessel_assessment_id, 'phase', i.phase, 'transitSeconds', i.transit_s) ORDER BY i.position), '[]')
-        FROM thermodilution_injection i JOIN vessel_assessment v ON v.id = i.vessel_assessment_id WHERE v.study_id = $1) AS injections,
-       (SELECT COALESCE(json_agg(json_build_object(
-                 'id', d.id, 'vessel', d.vessel, 'micrograms', d.micrograms, 'constrictionPct', d.constriction_pct, 'symptoms', d.symptoms, 'ischemicEcg', d.ischemic_ecg,
-                 'heartRate', d.heart_rate, 'systolic', d.systolic, 'diastolic', d.diastolic, 'rhythm', d.rhythm,
-                 'spasmVessel', d.spasm_vessel, 'spasmSegment', d.spasm_segment, 'spasmPattern', d.spasm_pattern) ORDER BY d.position), '[]')
-        FROM acetylcholine_dose d WHERE d.study_id = $1) AS doses,
-       (SELECT COALESCE(json_agg(json_build_object('id', c.id, 'vessel', c.vessel, 'kind', c.kind, 'branch', c.branch, 'stent', c.stent) ORDER BY c.position), '[]')
-        FROM coronary_intervention c WHERE c.study_id = $1) AS interventions,
-       (SELECT COALESCE(json_agg(json_build_object(
-                 'id', a.id, 'fileName', a.file_name, 'mediaType', a.media_type, 'sizeBytes', a.size_bytes::float8, 'sha256', a.sha256,
-                 'uploadedAt', a.uploaded_at, 'uploadedBy', u.display_name) ORDER BY a.uploaded_at, a.id), '[]')
-        FROM attachment a LEFT JOIN app_user u ON u.id = a.uploaded_by WHERE a.study_id = $1) AS attachments`,
-    [id],
-  );
+/** A study's row sections (vessels with their injections, acetylcholine doses, interventions) and its attachments' summaries, each in its stored order. */
+// eslint-disable-next-line @typescript-eslint/no-explicit-any
+function partsOf(row: any): StudyParts {
   return {
     vessels: row.vessels,
     injections: row.injections,
