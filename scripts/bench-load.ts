@@ -1,6 +1,7 @@
 /**
  * Worklist under load beside a bare Express + pg `SELECT 1` route (the ceiling of this machine's
- * HTTP + database round trip), measured with autocannon in one run. Not a test: it prints numbers.
+ * HTTP + database round trip) and the worklist's own statement behind that bare route (what its
+ * database work alone allows), measured with autocannon in one run. Not a test: it prints numbers.
  * Target: worklist ≥ 25% of the bare route's requests per second, p99 < 100 ms.
  */
 import type { AddressInfo } from 'node:net';
@@ -17,6 +18,8 @@ import pg from 'pg';
 import { prepareDatabase } from '../server/cli/prepare-database';
 import { createDataSource } from '../server/db/data-source';
 import { median } from './bench-timing';
+import { worklistPageJson } from '../server/studies/worklist';
+import { worklistQuerySchema } from '../shared/study/worklist';
 import { signIn, startStack } from '../tests/support/stack';
 
 const CONNECTIONS = Number(process.env.BENCH_CONNECTIONS ?? 50);
@@ -102,6 +105,14 @@ async function main(): Promise<void> {
     const { rows } = await pool.query('SELECT 1 AS one');
     res.json(rows[0]);
   });
+  // The worklist's own statement (page, its audit row, the JSON) behind the same bare Express: no
+  // session, no middleware. The floor the full route stands on: what the database work alone allows.
+  const statementDs = createDataSource(databaseUrl, 10);
+  await statementDs.initialize();
+  const viewer = { actorUserId: null, actorName: 'Load benchmark', actorRole: 'staff', clientAddress: '127.0.0.1' };
+  bare.get('/worklist-statement', async (_req, res) => {
+    res.type('application/json').send(await worklistPageJson(statementDs, worklistQuerySchema.parse({}), viewer));
+  });
   const bareServer = createServer(bare);
   await new Promise<void>((resolve) => bareServer.listen(0, '127.0.0.1', resolve));
   const bareUrl = `http://127.0.0.1:${(bareServer.address() as AddressInfo).port}/select1`;
@@ -137,6 +148,7 @@ async function main(): Promise<void> {
 
   const targets: Target[] = [
     { name: 'bare Express + pg SELECT 1', url: bareUrl, headers: {}, rounds: [] },
+    { name: 'bare Express + the worklist statement', url: bareUrl.replace('/select1', '/worklist-statement'), headers: {}, rounds: [] },
     ...(baseline ? [{ name: `worklist before (${process.env.BENCH_BASELINE_REF ?? 'baseline'})`, url: `${baseline.url}/api/studies`, headers: { cookie: baseline.cookie }, rounds: [] }] : []),
     { name: 'worklist GET /api/studies (session, query, audit)', url: `${stack.url}/api/studies`, headers: { cookie }, rounds: [] },
   ];
@@ -175,12 +187,14 @@ async function main(): Promise<void> {
   console.table(rows);
   const bareRow = rows[0];
   for (const row of rows.slice(1)) {
-    console.log(`${row.name} / bare: ${((row.reqPerSec / bareRow.reqPerSec) * 100).toFixed(0)}% (target ≥ 25%), p99 ${row.p99ms} ms (target < 100 ms)`);
+    const targets = row.name.startsWith('worklist GET') ? ' (target ≥ 25%)' : '';
+    console.log(`${row.name} / bare: ${((row.reqPerSec / bareRow.reqPerSec) * 100).toFixed(0)}%${targets}, p99 ${row.p99ms} ms${targets ? ' (target < 100 ms)' : ''}`);
   }
 
   await stack.close();
   await baseline?.close();
   await ds.destroy();
+  await statementDs.destroy();
   bareServer.close();
   await pool.end();
 }
