@@ -106,7 +106,7 @@ async function seed(ds: DataSource): Promise<void> {
                 s.operator_id, 'Dr Bench', LEAST(now(), COALESCE(s.procedure_ended_at, s.procedure_started_at, s.created_at) + (0.5 + 60 * power(random(), 3)) * interval '1 hour'), 'bench'
          FROM study s WHERE s.accession BETWEEN $1 AND $2 AND s.state = 'signed'
          RETURNING id)
-         INSERT INTO report_pdf (report_version_id, pdf, pdf_sha256) SELECT id, '\\x00'::bytea, md5(id::text) || md5(id::text) FROM v`,
+         INSERT INTO report_pdf (report_version_id, pdf, pdf_sha256) SELECT id, '\\x00'::bytea, encode(sha256('\\x00'::bytea), 'hex') FROM v`,
         [...range, endotypes],
       );
       // Code review: 95% completed within days of the signature; a suggestion set for each.

@@ -5,7 +5,7 @@ import { Text } from '../ui/text';
 import { color, radius, space, touchTarget } from '../theme';
 import type { MergeChoice } from '../../shared/study/merge';
 import type { SaveState } from './use-autosave';
-import { fieldLabel, valueText } from './field-labels';
+import { fieldLabel, valueText } from '../../shared/study/field-labels';
 
 const describe = (s: SaveState): { text: string; tone: 'muted' | 'abnormal' | 'ink' } => {
   switch (s.kind) {

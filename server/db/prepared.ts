@@ -65,26 +65,32 @@ const isPoolClient = (db: unknown): db is PoolClient => db instanceof pg.Client;
 
 /**
  * Runs `work` in a transaction on a pooled connection of its own, without the ORM's query runner, for
- * the signature (benchmarked: scripts/bench-sign.ts): BEGIN goes out with the first statement instead
- * of taking a round trip of its own, and statements `work` sends without waiting keep their order.
- * ROLLBACK on any error; a connection that cannot even roll back is closed rather than reused.
+ * the signature (benchmarked: scripts/bench-sign.ts). ROLLBACK on any error. While the connection is
+ * held, an error the connection itself raises (the server ended the session, the network dropped it)
+ * is caught here and closes the connection instead of reaching the process as an unhandled event; the
+ * statement waiting on it fails and the caller's error handling answers.
  */
 export async function inPooledTransaction<T>(dataSource: DataSource, work: (client: PoolClient) => Promise<T>): Promise<T> {
   const client = await poolOf(dataSource).connect();
   let broken: Error | undefined;
+  const onConnectionError = (error: Error) => {
+    broken = error;
+  };
+  client.on('error', onConnectionError);
   try {
-    const begun = client.query('BEGIN');
-    begun.catch(() => undefined); // a failed BEGIN fails the statements behind it, which `work` awaits
+    await client.query('BEGIN');
     const result = await work(client);
-    await begun;
     await client.query('COMMIT');
     return result;
   } catch (error) {
-    await client.query('ROLLBACK').catch((rollbackError: Error) => {
-      broken = rollbackError;
-    });
+    if (!broken) {
+      await client.query('ROLLBACK').catch((rollbackError: Error) => {
+        broken = rollbackError;
+      });
+    }
     throw error;
   } finally {
+    client.off('error', onConnectionError);
     client.release(broken);
   }
 }

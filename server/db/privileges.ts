@@ -6,6 +6,7 @@ import type { DataSource } from 'typeorm';
  * - no DDL: it owns nothing and may not create in any schema (nor temporary tables);
  * - the audit trail is append-only: SELECT, and INSERT of every column but `id` and `recorded_at`
  *   (so an entry cannot be back-dated); no UPDATE, DELETE or TRUNCATE;
+ * - code suggestions and decisions may be added, never changed or removed;
  * - the migration ledgers are read-only (the server checks that no migration is pending);
  * - the job queue's tables and functions, to enqueue and to work jobs, but not its schema.
  * Applied by the owner after every migration run (GRANT and REVOKE are idempotent), so tables
@@ -25,6 +26,8 @@ const appendOnlyTables: Record<string, string[]> = {
   // reports stay as they were (created_at is the database's clock, so a set cannot be back-dated).
   threshold_set: ['effective_from', '"values"', 'note', 'created_by'],
 };
+// Code suggestions and the coder's decisions: added, never changed (a trigger refuses it too).
+const insertOnlyTables = ['code_suggestion_set', 'code_line', 'code_decision'];
 const readOnlyTables = ['schema_migration'];
 const jobSchema = 'graphile_worker';
 
@@ -49,6 +52,10 @@ export async function applyServerPrivileges(owner: DataSource, serverRole: strin
       await tx.query(`REVOKE ALL ON ${table} FROM ${role}`);
       await tx.query(`GRANT SELECT ON ${table} TO ${role}`);
       await tx.query(`GRANT INSERT (${columns.join(', ')}) ON ${table} TO ${role}`);
+    }
+    for (const table of insertOnlyTables) {
+      await tx.query(`REVOKE ALL ON ${table} FROM ${role}`);
+      await tx.query(`GRANT SELECT, INSERT ON ${table} TO ${role}`);
     }
     for (const table of readOnlyTables) {
       await tx.query(`REVOKE ALL ON ${table} FROM ${role}`);

@@ -57,7 +57,8 @@ export interface DemoStudy {
   vasoreactivity: { doses: DemoDose[]; nitrateReversal: boolean | null; reversalNitroglycerinMicrograms: number | null; reversalNitroglycerinAtMinute: number | null };
   findings: Findings;
   /** For an amended study: what the addendum changed, and why. */
-  amendment?: { reason: string; details: Partial<Details> };
+  /** The addendum after the first signature: its reason and the fields it corrects. */
+  amendment?: { reason: string; details: Partial<Details>; findings?: Partial<Findings> };
 }
 
 /** A vessel row: the shared empty vessel (ids are given when seeding) with the fields that were measured. */
@@ -303,7 +304,11 @@ export const demoStudies: DemoStudy[] = [
     clinicalQuestion: 'angina-no-obstruction',
     referring: referrers.castellane,
     accessSite: 'right-radial',
-    amendment: { reason: 'Access site corrected: the procedure was done from the right femoral artery.', details: { accessSite: 'right-femoral' } },
+    amendment: {
+      reason: 'Access site entered in error: the procedure was done from the right femoral artery.',
+      details: { accessSite: 'right-femoral' },
+      findings: { complications: 'Femoral access closed with manual compression.' },
+    },
     guideFrench: 6,
     patientFacts: { weightKg: 58, heightCm: 160, anginaPresent: true, anginaCharacter: 'stable' },
     setup: checklist(ivAdenosine, 4500, [70, 121, 68, 10], 'after-acetylcholine'),
@@ -325,11 +330,11 @@ export const demoStudies: DemoStudy[] = [
     ],
     vasoreactivity: { doses: doses([[2, 0, false, false, 70, 121, 68], [20, 5, false, false, 70, 120, 68], [100, 10, false, false, 68, 119, 66], [200, 15, false, false, 66, 118, 66]]), ...noReversal },
     findings: findings({
-      complications: 'Femoral access closed with manual compression.',
+      complications: 'Radial compression band applied, removed after 2 hours.',
       contrastMl: 65,
       fluoroscopyMinutes: 8,
       impression:
-        'No obstructive disease (LAD FFR 0.92), normal coronary flow reserve (3.0) and IMR (22), acetylcholine up to 200 µg negative: no coronary cause of the chest pain was found. Amended: access site corrected to right femoral.',
+        'No obstructive disease (LAD FFR 0.92), normal coronary flow reserve (3.0) and IMR (22), acetylcholine up to 200 µg negative: no coronary cause of the chest pain was found.',
       plan: 'Reassurance. Stop anti-anginal medication. Evaluate non-cardiac causes with the referring clinician.',
       airKermaMGy: 240,
       doseAreaProductGyCm2: 21.6,

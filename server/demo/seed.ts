@@ -98,7 +98,8 @@ async function advanceDemoStudy(dataSource: DataSource, studyId: string, demo: D
   if (demo.state !== 'amended' || !demo.amendment) return;
   const opened = await changeStudyState(dataSource, { studyId, action: 'open-addendum', studyVersion: await version(), role: 'physician', audit });
   await dataSource.transaction(async (manager) => {
-    await writeSections(manager, studyId, { details: { ...opened.details, ...demo.amendment!.details } }, { bumpVersion: true });
+    const { details, findings } = demo.amendment!;
+    await writeSections(manager, studyId, { details: { ...opened.details, ...details }, ...(findings ? { findings: { ...opened.findings, ...findings } } : {}) }, { bumpVersion: true });
   });
   await signStudy(dataSource, { studyId, studyVersion: await version(), signer, hospital, audit, reason: demo.amendment.reason });
 }

@@ -14,6 +14,15 @@ export function reportDocument(view: ReportView): ReportDocument {
   };
   const paragraphs = (xs: string[]): ReportBlock[] => xs.map((text) => ({ kind: 'paragraph', text }));
 
+  const a = view.amendment;
+  if (a) {
+    add('amendment', `Amended report${view.signature ? ` — version ${view.signature.reportVersion}` : ''}`, [
+      { kind: 'paragraph', text: `Supersedes version ${a.supersedesVersion}, signed ${a.supersededSignedAt} by ${a.supersededBy} (fingerprint ${a.supersededFingerprint}).`, strong: true },
+      !!a.reason && { kind: 'paragraph', text: `Reason: ${a.reason}` },
+      a.changes.length > 0 && { kind: 'subheading', text: 'Changed' },
+      a.changes.length > 0 && { kind: 'list', items: a.changes },
+    ]);
+  }
   add('identification', null, [view.identification.length > 0 && { kind: 'fields', items: view.identification.map((i) => ({ label: i.label, value: i.value })) }]);
   if (view.indication.text || view.indication.question) {
     add('indication', 'Indication', [

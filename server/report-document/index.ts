@@ -6,7 +6,7 @@ import { buildReportView, signatureView, type ReportInput, type ReportStudy, typ
 export { canonicalContent, fingerprint, fingerprintInPdf, renderReportPdf, sha256Hex, PAGE } from './pdf';
 export { renderNarrative, htmlDocument, type Narrative } from './render';
 export { reportDocument } from './document';
-export { buildReportView, reportKindOf, type ThresholdsBasisInfo, type ReportInput, type ReportStudy, type ReportView } from './view-model';
+export { buildReportView, reportKindOf, type AmendedVersion, type ThresholdsBasisInfo, type ReportInput, type ReportStudy, type ReportView } from './view-model';
 
 /** The statement the signer makes, stored with each version. */
 export const ATTESTATION =

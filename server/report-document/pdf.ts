@@ -265,11 +265,23 @@ function footer(view: ReportView, page: number, pages: number): Content {
   };
 }
 
+/** An addendum says first that it is one: the version it supersedes, why, and what changed. */
+function amendmentBanner(a: NonNullable<ReportView['amendment']>, version: number | null): Content {
+  const lines: Content[] = [
+    { text: `AMENDED REPORT${version ? ` — version ${version}` : ''}`, bold: true },
+    { text: `Supersedes version ${a.supersedesVersion}, signed ${a.supersededSignedAt} by ${a.supersededBy} (fingerprint ${a.supersededFingerprint}).` },
+  ];
+  if (a.reason) lines.push({ text: `Reason: ${a.reason}` });
+  if (a.changes.length) lines.push({ text: 'Changed:', margin: [0, 2, 0, 0] }, { ul: a.changes });
+  return { table: { widths: ['*'], body: [[{ stack: lines, margin: [4, 3, 4, 3] }]] }, layout: { hLineWidth: () => 1, vLineWidth: () => 1, hLineColor: () => '#8a5a00', vLineColor: () => '#8a5a00' }, margin: [0, 0, 0, 8] };
+}
+
 /** The pdfmake document definition of a report (exposed for tests). */
 function reportDocument(view: ReportView, createdAt: Date): TDocumentDefinitions {
   const content: Content[] = [];
   if (view.hospital) content.push({ text: `${view.hospital.name} · ${view.hospital.lab}`, color: muted, fontSize: 8.5 });
   content.push({ text: view.title, style: 'h1' });
+  if (view.amendment) content.push(amendmentBanner(view.amendment, view.signature?.reportVersion ?? null));
   // Identification in two columns of label/value pairs.
   const half = Math.ceil(view.identification.length / 2);
   const pair = (i: { label: string; value: string } | undefined): TableCell[] => (i ? [{ text: i.label, color: muted }, { text: i.value }] : ['', '']);

@@ -1,3 +1,4 @@
+import { changeText, recordChanges } from '../../shared/study/record-changes';
 import { driftOutOfRange, driftText } from '../../shared/physiology/quality';
 import { stenosisText } from '../../shared/physiology/endotype';
 import { constrictionText } from '../../shared/physiology/vasoreactivity';
@@ -75,6 +76,20 @@ export interface ReportInput {
   templateVersion?: string;
   /** Which thresholds judge this report, for the sentence templates from v2 print under them. */
   thresholdsBasis?: ThresholdsBasisInfo | null;
+  /** For an addendum: the signed version it supersedes. */
+  amends?: AmendedVersion | null;
+}
+
+/** The signed version an addendum supersedes, as the addendum names it. */
+export interface AmendedVersion {
+  versionNo: number;
+  /** ISO 8601 time it was signed. */
+  signedAt: string;
+  signedBy: string;
+  /** Its content fingerprint (SHA-256, hex). */
+  fingerprint: string;
+  /** Its signed record, to say what the addendum changes. */
+  record: Record<string, unknown>;
 }
 
 /** Where a report's thresholds come from. */
@@ -142,6 +157,17 @@ export interface ReportView {
   /** One sentence on which thresholds judged the report (template v2 and later); null otherwise. */
   thresholdsBasis: string | null;
   caution: string;
+  /** An addendum says which version it supersedes, why, and what it changes; null for a first version. */
+  amendment: null | {
+    supersedesVersion: number;
+    supersededSignedAt: string;
+    supersededBy: string;
+    supersededFingerprint: string;
+    /** The reason the signer gave (null in a preview, before it is given). */
+    reason: string | null;
+    /** Each changed field as a person reads it ("Procedure › Access site: right radial → right femoral"). */
+    changes: string[];
+  };
   signature: null | {
     signedBy: string;
     /** Printed time of signing, in the report's zone. */
@@ -749,6 +775,16 @@ export function buildReportView(input: ReportInput): ReportView {
   const quality = [...analysis.vessels.flatMap((v) => v.warnings.map((w) => w.message)), ...analysis.warnings.map((w) => w.message)];
 
   const signature = signatureView(input.signature ?? null, tz);
+  const amendment: ReportView['amendment'] = input.amends
+    ? {
+        supersedesVersion: input.amends.versionNo,
+        supersededSignedAt: formatDateTime(input.amends.signedAt, tz),
+        supersededBy: input.amends.signedBy,
+        supersededFingerprint: shortFingerprint(input.amends.fingerprint),
+        reason: signature?.amendmentReason ?? null,
+        changes: recordChanges(input.amends.record, study as unknown as Record<string, unknown>).map(changeText),
+      }
+    : null;
 
   // "Angina" in the endotype's name only when the record says the patient has angina (COVADIS).
   const endotypeWords = endotypeName(analysis.endotype, d.anginaPresent ?? undefined, endotypeLabel);
@@ -790,6 +826,7 @@ export function buildReportView(input: ReportInput): ReportView {
     thresholds: used.keys.map((k) => ({ ...thresholdText(k, t), source: thresholdSource(k, t) })),
     thresholdsBasis: templateVersion === 'v1' || !input.thresholdsBasis ? null : thresholdsBasisSentence(input.thresholdsBasis, tz),
     caution: reportCaution[kind],
+    amendment,
     signature,
   };
 }

@@ -10,7 +10,7 @@ import { loadStudy } from '../studies/repository';
 import type { ThresholdsBasisInfo } from '../report-document/view-model';
 import { thresholdLabels } from '../../shared/physiology/thresholds';
 import { thresholdKeys } from '../../shared/settings/threshold-ranges';
-import { reportInputFor, thresholdsFor, type ThresholdsChoice } from './report-input';
+import { amendedVersionOf, reportInputFor, thresholdsFor, type ThresholdsChoice } from './report-input';
 import { summariseVersion, type SignedVersionSummary } from './sign-study';
 
 export interface ReportPreview {
@@ -58,7 +58,8 @@ export async function previewStudyReport(
         .map((k) => ({ key: k, label: thresholdLabels[k][0], original: original.values[k], current: current.values[k] })),
     };
   }
-  const { view, narrative } = previewReport(input);
+  const amends = record.state === 'amending' ? await amendedVersionOf(dataSource.manager, studyId) : null;
+  const { view, narrative } = previewReport({ ...input, amends });
   const versions = await dataSource.manager.find(ReportVersion, {
     where: { studyId },
     order: { versionNo: 'ASC' },

@@ -7,7 +7,7 @@ import { toPhysiologyInput } from '../../shared/study/to-physiology';
 import { ReportVersion } from '../db/entities/report-version.entity';
 import { ThresholdSet } from '../db/entities/measurement.entities';
 import { User } from '../db/entities/user.entity';
-import type { ReportInput, ReportStudy } from '../report-document';
+import type { AmendedVersion, ReportInput, ReportStudy } from '../report-document';
 import type { ThresholdsBasisInfo } from '../report-document/view-model';
 import { labSettings } from '../settings/lab-settings';
 import { thresholdsInForce, type ThresholdsInForce } from '../settings/thresholds';
@@ -107,4 +107,19 @@ export function reportInputOf(
     templateVersion: settings.templateVersion,
     timeZone: settings.timeZone,
   };
+}
+
+/** A signed version as an addendum names it (`ReportInput.amends`). */
+export function toAmendedVersion(v: Pick<ReportVersion, 'versionNo' | 'signedAt' | 'signerName' | 'contentSha256' | 'snapshot'>): AmendedVersion {
+  return { versionNo: v.versionNo, signedAt: v.signedAt.toISOString(), signedBy: v.signerName, fingerprint: v.contentSha256.trim(), record: v.snapshot as Record<string, unknown> };
+}
+
+/** The newest signed version of a study, which an open addendum supersedes; null when none is signed. */
+export async function amendedVersionOf(manager: EntityManager, studyId: string): Promise<AmendedVersion | null> {
+  const v = await manager.findOne(ReportVersion, {
+    where: { studyId },
+    order: { versionNo: 'DESC' },
+    select: { id: true, versionNo: true, signedAt: true, signerName: true, contentSha256: true, snapshot: true },
+  });
+  return v ? toAmendedVersion(v) : null;
 }

@@ -7,14 +7,14 @@ import { checkTransition } from '../../shared/study/state-machine';
 import { auditColumns, auditParameters, type AuditActor, type AuditEntry } from '../audit/audit';
 import { ReportVersion } from '../db/entities/report-version.entity';
 import { InvalidRequestError, RecordNotFoundError } from '../errors';
-import { ATTESTATION, prepareSignedText, renderSignedPdf } from '../report-document';
+import { ATTESTATION, prepareSignedText, renderSignedPdf, type AmendedVersion } from '../report-document';
 import { loadStudy, StaleVersionError } from '../studies/repository';
 import { inPooledTransaction, namedStatement, preparedOn } from '../db/prepared';
 import type { PoolClient } from 'pg';
 import { IncompleteStudyError, TransitionRefusedError } from './errors';
 import { jobsOnReportSigned } from './on-report-signed';
 import { codingBeforeJoin, codingBeforeOf, codingBeforeSql, planSuggestions, suggestionWrites, type CodingBefore, type PlannedSuggestions } from '../coding/store-suggestions';
-import { chooseThresholds, reportInputOf, type AmendedThresholds, type ThresholdsChoice } from './report-input';
+import { chooseThresholds, reportInputOf, toAmendedVersion, type AmendedThresholds, type ThresholdsChoice } from './report-input';
 import { unstoredSettings } from '../settings/lab-settings';
 import { thresholdsInForceOf, type ThresholdsInForce } from '../settings/thresholds';
 
@@ -92,17 +92,15 @@ export async function signStudy(dataSource: DataSource, req: SignStudyRequest): 
   };
   const summary = await inPooledTransaction(dataSource, async (client) => {
     step('begin');
-    // The locking read first, then the signing context right behind it on the same connection
-    // (queued in this order, so the context is read with the study's row already locked).
-    const loading = loadStudy(client, req.studyId, { forUpdate: true });
-    const contextRead = signingContext(client, req.studyId, req.now ?? null);
-    contextRead.catch(() => undefined); // awaited below unless the study cannot be signed
-    const record = await loading;
+    // The study's row is locked first; its record and the signing context are then read from a
+    // snapshot taken after the lock, so a signer who waited reads what the other writer committed.
+    const [locked] = await preparedOn(client, `SELECT id FROM study WHERE id = $1 FOR UPDATE`, [req.studyId]);
+    const record = locked ? await loadStudy(client, req.studyId) : null;
     if (!record) throw new RecordNotFoundError('No study has this id.');
     const state = record.state;
     const addendum = state === 'amending';
     const refusal = checkTransition(state, addendum ? 'sign-addendum' : 'sign', req.signer.role, req.reason);
-    if (refusal) throw new TransitionRefusedError(refusal, refusal === 'wrong-state' ? `A ${state} study cannot be signed.` : refusal === 'reason-required' ? 'An addendum needs the reason for the change.' : 'Only a physician may sign.');
+    if (refusal) throw new TransitionRefusedError(refusal, refusal === 'wrong-state' ? `${/^[aeiou]/.test(state) ? 'An' : 'A'} ${state} study cannot be signed.` : refusal === 'reason-required' ? 'An addendum needs the reason for the change.' : 'Only a physician may sign.');
     if (record.version !== req.studyVersion) throw new StaleVersionError(record);
     if (!addendum && req.thresholds === 'original') {
       throw new InvalidRequestError('Only an addendum can keep the thresholds of an earlier version.', [{ pointer: '/thresholds', detail: 'A first signature uses the thresholds in force; leave thresholds out or send "current".' }]);
@@ -111,12 +109,12 @@ export async function signStudy(dataSource: DataSource, req: SignStudyRequest): 
     if (!completeness.complete) throw new IncompleteStudyError(completeness.missing);
     step('load');
 
-    const context = await contextRead;
+    const context = await signingContext(client, req.studyId, req.now ?? null);
     const { previous } = context;
     const signedAt: Date = req.now ?? context.now;
     const thresholds = chooseThresholds(addendum ? previous : null, () => context.inForce, req.thresholds ?? 'original');
     step('context');
-    const input = reportInputOf(record, req.hospital, thresholds, context.settings, context.operatorName);
+    const input = { ...reportInputOf(record, req.hospital, thresholds, context.settings, context.operatorName), amends: addendum ? (previous?.amended ?? null) : null };
     step('analysis');
     const versionNo = (previous?.versionNo ?? 0) + 1;
     const text = prepareSignedText(input, {
@@ -194,7 +192,7 @@ interface SigningContext {
   /** The transaction's time. */
   now: Date;
   /** The newest signed version (the one an addendum amends), with the thresholds it used. */
-  previous: (AmendedThresholds & { id: string }) | null;
+  previous: (AmendedThresholds & { id: string; amended: AmendedVersion }) | null;
   inForce: ThresholdsInForce;
   settings: { templateVersion: string; timeZone: string };
   operatorName: string | null;
@@ -212,13 +210,14 @@ async function signingContext(client: PoolClient, studyId: string, at: Date | nu
   const [row] = await preparedOn<any>(client,
     `SELECT now() AS now,
             prev.id AS prev_id, prev.version_no AS prev_version_no, prev.thresholds AS prev_thresholds, prev.threshold_set_id AS prev_set_id,
+            prev.signed_at AS prev_signed_at, prev.signer_name AS prev_signer_name, prev.content_sha256 AS prev_content_sha256, prev.snapshot AS prev_snapshot,
             (SELECT effective_from FROM threshold_set WHERE id = prev.threshold_set_id) AS prev_set_effective_from,
             ts.id AS set_id, ts.effective_from AS set_effective_from, ts.values AS set_values,
             l.time_zone, l.template_version,
             (SELECT u.display_name FROM study s JOIN app_user u ON u.id = s.operator_id WHERE s.id = $1) AS operator_name,
             ${codingBeforeSql('$1::uuid', '2147483647')}
      FROM (SELECT 1) AS one
-     LEFT JOIN LATERAL (SELECT id, version_no, thresholds, threshold_set_id FROM report_version WHERE study_id = $1 ORDER BY version_no DESC LIMIT 1) prev ON true
+     LEFT JOIN LATERAL (SELECT id, version_no, thresholds, threshold_set_id, signed_at, signer_name, content_sha256, snapshot FROM report_version WHERE study_id = $1 ORDER BY version_no DESC LIMIT 1) prev ON true
      LEFT JOIN LATERAL (SELECT id, effective_from, values FROM threshold_set WHERE effective_from <= COALESCE($2::timestamptz, now()) ORDER BY effective_from DESC, id DESC LIMIT 1) ts ON true
      LEFT JOIN lab_settings l ON l.id = 1
      ${codingBeforeJoin('$1::uuid')}`,
@@ -229,7 +228,14 @@ async function signingContext(client: PoolClient, studyId: string, at: Date | nu
     previous:
       row.prev_id === null
         ? null
-        : { id: row.prev_id, versionNo: row.prev_version_no, thresholds: row.prev_thresholds, thresholdSetId: row.prev_set_id, setEffectiveFrom: row.prev_set_effective_from },
+        : {
+            id: row.prev_id,
+            versionNo: row.prev_version_no,
+            thresholds: row.prev_thresholds,
+            thresholdSetId: row.prev_set_id,
+            setEffectiveFrom: row.prev_set_effective_from,
+            amended: toAmendedVersion({ versionNo: row.prev_version_no, signedAt: row.prev_signed_at, signerName: row.prev_signer_name, contentSha256: row.prev_content_sha256, snapshot: row.prev_snapshot }),
+          },
     inForce: thresholdsInForceOf(row.set_id === null ? null : { id: row.set_id, effectiveFrom: row.set_effective_from, values: row.set_values }),
     settings: { templateVersion: row.template_version ?? unstoredSettings.template_version, timeZone: row.time_zone ?? unstoredSettings.time_zone },
     operatorName: row.operator_name ?? null,

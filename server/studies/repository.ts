@@ -40,13 +40,10 @@ type Intervention = StudySections['coding']['interventions'][number];
 
 /**
  * The study record, in one statement: the row with its patient (numbers cast to float8 there) and its
- * row sections and attachments as JSON arrays, all from one snapshot. `forUpdate` also locks the
- * study's row until the caller's transaction ends; a signer who waited for that lock reads the row as
- * the other writer left it (PostgreSQL re-reads a locked row) and its sections as they were when the
- * statement began, which differ only if that writer moved the study's version, and a signature
- * compares that version with the one previewed.
+ * row sections and attachments as JSON arrays, all from one snapshot. A writer locks the study first
+ * (`lockStudy`, or the signature's own lock) and reads it after, so the snapshot follows the lock.
  */
-export async function loadStudy(db: Db, id: string, options: { forUpdate?: boolean } = {}): Promise<StudyRecord | null> {
+export async function loadStudy(db: Db, id: string): Promise<StudyRecord | null> {
   // SQL kept, as a named prepared statement: read on every save, preview and signature (one round trip).
   // eslint-disable-next-line @typescript-eslint/no-explicit-any
   const [row] = await preparedOn<any>(db,
@@ -73,7 +70,7 @@ export async function loadStudy(db: Db, id: string, options: { forUpdate?: boole
                  'id', a.id, 'fileName', a.file_name, 'mediaType', a.media_type, 'sizeBytes', a.size_bytes::float8, 'sha256', a.sha256,
                  'uploadedAt', a.uploaded_at, 'uploadedBy', u.display_name) ORDER BY a.uploaded_at, a.id), '[]')
         FROM attachment a LEFT JOIN app_user u ON u.id = a.uploaded_by WHERE a.study_id = $1) AS attachments
-     FROM study s JOIN patient p ON p.id = s.patient_id WHERE s.id = $1${options.forUpdate ? ' FOR UPDATE OF s' : ''}`,
+     FROM study s JOIN patient p ON p.id = s.patient_id WHERE s.id = $1`,
     [id],
   );
   if (!row) return null;

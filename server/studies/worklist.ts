@@ -1,5 +1,5 @@
 import type { DataSource } from 'typeorm';
-import type { WorklistItem, WorklistQuery } from '../../shared/study/worklist';
+import { WORKLIST_PAGE_SIZE, type WorklistItem, type WorklistQuery } from '../../shared/study/worklist';
 import { decodeKeysetCursor, encodeKeysetCursor, uuidIdPattern } from '../db/keyset-cursor';
 import { parseSearch, type ParsedSearch } from '../../shared/study/search';
 import type { AuditActor } from '../audit/audit';
@@ -145,9 +145,11 @@ export async function worklistPageJson(db: DataSource, query: WorklistQuery, vie
             (array_agg(id::text ORDER BY sort_at, id))[1] AS last_id
      FROM shown`,
     values,
-    // The plain worklist and its filters ride one index whatever the values; a search's plan
-    // depends on how many patients it found, so it is planned for its values each time.
-    { prepare: !query.q },
+    // The plain worklist and its filters at the screens' page size ride one index whatever the values,
+    // and are kept prepared (a few texts per connection). A search's plan depends on how many patients
+    // it found, and other page sizes are rare: planned for their values each time, never kept, so no
+    // request can make a connection hold one prepared statement per page size.
+    { prepare: !query.q && query.limit === WORKLIST_PAGE_SIZE },
   );
   const nextCursor = row.fetched > query.limit && row.last_sort_key && row.last_id ? encodeKeysetCursor(row.last_sort_key, row.last_id) : null;
   return `{"items":${row.items},"nextCursor":${JSON.stringify(nextCursor)}}`;

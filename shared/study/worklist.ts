@@ -1,6 +1,9 @@
 import { z } from 'zod';
 import { studyStates } from './vocabulary';
 
+/** The worklist's page size unless a request asks for another. */
+export const WORKLIST_PAGE_SIZE = 25;
+
 /** GET /api/studies query: filters and a keyset cursor (opaque to the client). */
 export const worklistQuerySchema = z.object({
   state: z.enum(studyStates, { error: 'state must be one of draft, awaiting-signature, signed, amended.' }).optional(),
@@ -10,7 +13,7 @@ export const worklistQuerySchema = z.object({
   from: z.iso.datetime({ offset: true, error: 'from must be a date and time with its offset (ISO 8601).' }).optional(),
   to: z.iso.datetime({ offset: true, error: 'to must be a date and time with its offset (ISO 8601).' }).optional(),
   cursor: z.string().max(200).optional(),
-  limit: z.coerce.number().int().min(1).max(100, { error: 'limit must be at most 100.' }).default(25),
+  limit: z.coerce.number().int().min(1).max(100, { error: 'limit must be at most 100.' }).default(WORKLIST_PAGE_SIZE),
 });
 export type WorklistQuery = z.infer<typeof worklistQuerySchema>;
 

@@ -1,10 +1,13 @@
 import { randomUUID } from 'node:crypto';
+import diagnosticsChannel from 'node:diagnostics_channel';
+import pg from 'pg';
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { DataSource } from 'typeorm';
 import { emptyFindings, emptyVessel, type StudyRecord } from '../../shared/study/schema';
 import { openTestDatabase } from '../support/app';
 import { signIn, startStack, usernameOf, type TestStack } from '../support/stack';
+import { pdfRenderedChannel } from '../../server/report-document/pdf';
 
 // The sign-and-amend workflow is the product's design (common practice: a signed report changes only by addendum).
 let db: DataSource;
@@ -219,5 +222,39 @@ describe('report preview and signing', () => {
     expect(res.body.errors[0].pointer).toBe('/reason');
     const back = await send('post', `/api/studies/${study.id}/transitions`, physician).send({ action: 'send-back', version: ready.body.version, reason: 'The circumflex is missing' }).expect(200);
     expect(back.body.state).toBe('draft');
+  });
+});
+
+describe('the database ends the signing connection while the PDF renders', () => {
+  it('answers with a problem, keeps the process alive, and leaves the study unsigned', async () => {
+    const study = await completeStudy();
+    // When the PDF is ready the signature's connection sits idle in its transaction: end it from
+    // outside (a connected client sends at once), and hold this process until the server has done so.
+    const killer = new pg.Client({ connectionString: (db.options as { url: string }).url });
+    await killer.connect();
+    const ended: Promise<unknown>[] = [];
+    const onPdf = () => {
+      ended.push(killer.query(`SELECT pg_terminate_backend(pid) FROM pg_stat_activity WHERE datname = current_database() AND state = 'idle in transaction' AND pid <> pg_backend_pid()`));
+      const until = Date.now() + 300;
+      while (Date.now() < until); // the database ends the connection meanwhile
+    };
+    diagnosticsChannel.subscribe(pdfRenderedChannel.name, onPdf);
+    let res;
+    try {
+      res = await send('post', `/api/studies/${study.id}/sign`, physician).send({ version: study.version });
+    } finally {
+      diagnosticsChannel.unsubscribe(pdfRenderedChannel.name, onPdf);
+    }
+    const [terminated] = (await Promise.all(ended)) as Array<{ rows: Array<{ pg_terminate_backend: boolean }> }>;
+    await killer.end();
+    expect(terminated.rows.map((r) => r.pg_terminate_backend)).toEqual([true]);
+    expect(res.status).toBeGreaterThanOrEqual(500);
+    expect(res.headers['content-type']).toMatch(/problem\+json/);
+    // Still serving, and nothing was signed.
+    await api().get('/api/health').expect((r) => expect(r.status).toBeLessThan(600));
+    const after = await api().get(`/api/studies/${study.id}`).set('Cookie', physician).expect(200);
+    expect(after.body.state).toBe('draft');
+    const [{ n }] = await db.query(`SELECT count(*)::int AS n FROM report_version WHERE study_id = $1`, [study.id]);
+    expect(n).toBe(0);
   });
 });

@@ -54,7 +54,7 @@ export function turnaroundSeeder(db: DataSource, tag: string) {
                                      template_version, content_sha256, signed_by, signer_name, signed_at, attestation)
          VALUES ($1, 1, 1, 'final', '<p>Invented</p>', 'Invented', $2::jsonb, $3::jsonb, $4::jsonb, 'v1', $6, $7, 'Invented signer', $8, 'Invented attestation')
          RETURNING id)
-       INSERT INTO report_pdf (report_version_id, pdf, pdf_sha256) SELECT id, $5, $6 FROM v RETURNING report_version_id AS id`,
+       INSERT INTO report_pdf (report_version_id, pdf, pdf_sha256) SELECT id, $5::bytea, encode(sha256($5::bytea), 'hex') FROM v RETURNING report_version_id AS id`,
       [study.id, JSON.stringify({ vessels: vessels.map((v) => v.snapshot) }), JSON.stringify(analysis), JSON.stringify(defaultThresholds), Buffer.from('%PDF-invented'), createHash('sha256').update(study.id).digest('hex'), s.signerId ?? s.operatorId, signedAt],
     );
     if (s.codedAfterSignH !== undefined) {

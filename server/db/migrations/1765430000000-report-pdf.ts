@@ -5,7 +5,8 @@ import type { MigrationInterface, QueryRunner } from 'typeorm';
  * same transaction as the version. The signature stores the version (and everything that follows
  * from it) while the PDF is still rendering, then adds the PDF; reads of versions no longer carry
  * the PDF's bytes. Like the version, a PDF is never updated or deleted (trigger and privileges),
- * and a constraint trigger checked at commit refuses a version without its PDF. The bytes are
+ * a constraint trigger checked at commit refuses a version without its PDF, and the stored SHA-256
+ * must be that of the bytes. The bytes are
  * stored without compression (a PDF's streams are compressed already).
  */
 export class ReportPdf1765430000000 implements MigrationInterface {
@@ -16,7 +17,7 @@ export class ReportPdf1765430000000 implements MigrationInterface {
       CREATE TABLE report_pdf (
         report_version_id uuid PRIMARY KEY REFERENCES report_version (id) ON DELETE RESTRICT,
         pdf bytea NOT NULL,
-        pdf_sha256 char(64) NOT NULL
+        pdf_sha256 char(64) NOT NULL CONSTRAINT report_pdf_sha_matches CHECK (pdf_sha256 = encode(sha256(pdf), 'hex'))
       )`);
     await db.query(`ALTER TABLE report_pdf ALTER COLUMN pdf SET STORAGE EXTERNAL`);
     await db.query(`INSERT INTO report_pdf (report_version_id, pdf, pdf_sha256) SELECT id, pdf, pdf_sha256 FROM report_version`);

@@ -438,3 +438,27 @@ describe('entered percentages are printed on the side of the cut-off they were j
     expect(a).toMatch(/89\.6 %\s+Yes\s+Yes\s+Microvascular spasm/);
   });
 });
+
+describe('an addendum (template v4) says it is one', () => {
+  const s = demoReportStudies()[0];
+  const before = structuredClone(s) as unknown as Record<string, unknown>;
+  const after = structuredClone(s);
+  after.details.accessSite = after.details.accessSite === 'right-femoral' ? 'right-radial' : 'right-femoral';
+  const amends = { versionNo: 1, signedAt: '2026-11-30T10:15:00Z', signedBy: 'Dr. Kofi Oduya', fingerprint: 'ab'.repeat(32), record: before };
+  const signature = { signedBy: 'Dr. Kofi Oduya', signedAt: '2026-11-30T12:00:00Z', reportVersion: 2, fingerprint: 'cd'.repeat(32), amendmentReason: 'Access site entered in error.' };
+
+  it('names the version it supersedes, the reason and each change, before the indication', () => {
+    const { text, html } = render(after, { templateVersion: 'v4', amends, signature });
+    expect(text).toContain('AMENDED REPORT — version 2');
+    expect(text).toContain('Supersedes version 1, signed 30 Nov 2026, 10:15 UTC by Dr. Kofi Oduya (fingerprint abab-abab-abab-abab).');
+    expect(text).toContain('Reason: Access site entered in error.');
+    expect(text).toMatch(/- Procedure › Access site: right (radial|femoral) → right (femoral|radial)/);
+    expect(text.indexOf('AMENDED REPORT')).toBeLessThan(text.indexOf('INDICATION'));
+    expect(html).toContain('<h2>Amended report — version 2</h2>');
+  });
+
+  it('a first version, and templates before v4, print no such block', () => {
+    expect(render(after, { templateVersion: 'v4', signature: { ...signature, reportVersion: 1, amendmentReason: null } }).text).not.toContain('AMENDED REPORT');
+    expect(render(after, { templateVersion: 'v3', amends, signature }).text).not.toContain('AMENDED REPORT');
+  });
+});

@@ -1,4 +1,4 @@
-import type { PathStep } from '../../shared/study/merge';
+import type { PathStep } from './merge';
 
 /** Words for a field of the study record, as a person reads them in a merge choice. */
 const words: Record<string, string> = {
