@@ -98,7 +98,12 @@ export function prepareSignedText(input: Omit<ReportInput, 'signature'>, sign: S
   };
   const fp = fingerprint(content);
   const signature = { signedBy: sign.signer.name, signedAt: sign.signedAt, reportVersion: sign.reportVersion, fingerprint: fp, amendmentReason: sign.amendmentReason ?? null };
-  const view: ReportView = { ...unsigned, signature: signatureView(signature, input.timeZone ?? 'UTC') };
+  // The signed view adds the signature block, and to an addendum's block the reason now given.
+  const view: ReportView = {
+    ...unsigned,
+    signature: signatureView(signature, input.timeZone ?? 'UTC'),
+    amendment: unsigned.amendment ? { ...unsigned.amendment, reason: sign.amendmentReason?.trim() || null } : null,
+  };
   const narrative = renderNarrative(view);
   return { view, narrative, htmlDocument: htmlDocument(view, narrative.html), content, fingerprint: fp };
 }

@@ -47,11 +47,12 @@ function walk(a: unknown, b: unknown, path: PathStep[], row: Record<string, unkn
   out.push({ path, row, before: a, after: b });
 }
 
-/** A change as a person reads it: "Procedure › Access site: right radial → right femoral". */
+/** A change as a person reads it: "Procedure › Access site: right radial, changed to right femoral" (words, not an arrow: the report's font has none). */
 export function changeText(change: RecordChange): string {
   const label = fieldLabel(change.path, change.row);
   if (change.before === undefined && isObject(change.after)) return `${label}: added`;
   if (change.after === undefined && isObject(change.before)) return `${label}: removed`;
-  const words = (v: unknown) => (typeof v === 'string' && /^[a-z0-9]+(-[a-z0-9]+)+$/.test(v) ? v.replace(/-/g, ' ') : valueText(v));
-  return `${label}: ${words(change.before)} → ${words(change.after)}`;
+  // Codes in words ("right-radial" → "right radial"); a sentence loses its full stop inside the change.
+  const words = (v: unknown) => (typeof v === 'string' && /^[a-z0-9]+(-[a-z0-9]+)+$/.test(v) ? v.replace(/-/g, ' ') : typeof v === 'string' ? v.trim().replace(/\.$/, '') : valueText(v));
+  return `${label}: ${words(change.before)}, changed to ${words(change.after)}`;
 }

@@ -452,7 +452,7 @@ describe('an addendum (template v4) says it is one', () => {
     expect(text).toContain('AMENDED REPORT — version 2');
     expect(text).toContain('Supersedes version 1, signed 30 Nov 2026, 10:15 UTC by Dr. Kofi Oduya (fingerprint abab-abab-abab-abab).');
     expect(text).toContain('Reason: Access site entered in error.');
-    expect(text).toMatch(/- Procedure › Access site: right (radial|femoral) → right (femoral|radial)/);
+    expect(text).toMatch(/- Procedure › Access site: right (radial|femoral), changed to right (femoral|radial)/);
     expect(text.indexOf('AMENDED REPORT')).toBeLessThan(text.indexOf('INDICATION'));
     expect(html).toContain('<h2>Amended report — version 2</h2>');
   });

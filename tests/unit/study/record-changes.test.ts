@@ -24,12 +24,12 @@ describe('recordChanges', () => {
 
   it('names a changed field with its old and new value, in words', () => {
     const changes = recordChanges(record(), record({ details: { accessSite: 'right-femoral', guideFrench: 6 } }));
-    expect(changes.map(changeText)).toEqual(['Procedure › Access site: right radial → right femoral']);
+    expect(changes.map(changeText)).toEqual(['Procedure › Access site: right radial, changed to right femoral']);
   });
 
   it('finds a vessel row by its id and names it by its artery', () => {
     const after = record({ vessels: [{ id: 'v1', vessel: 'LAD', hyperemiaPd: 80, restTransit: [0.8, 0.7] }] });
-    expect(recordChanges(record(), after).map(changeText)).toEqual(['Vessels › LAD › Pd at hyperaemia: 83 → 80']);
+    expect(recordChanges(record(), after).map(changeText)).toEqual(['Vessels › LAD › Pd at hyperaemia: 83, changed to 80']);
   });
 
   it('says a row was added or removed as one change', () => {
@@ -38,8 +38,13 @@ describe('recordChanges', () => {
     expect(recordChanges(added, record()).map(changeText)).toEqual(['Vessels › RCA: removed']);
   });
 
+  it('quotes free text without its full stop', () => {
+    const changes = recordChanges(record(), record({ findings: { complications: 'Band removed after 2 hours.', complicationKinds: ['none'] } }));
+    expect(changes.map(changeText)).toEqual(['Findings › Complications: None, changed to Band removed after 2 hours']);
+  });
+
   it('reads empty and missing values as a person would', () => {
     const changes = recordChanges(record(), record({ setup: { heparinUnits: null } }));
-    expect(changes.map(changeText)).toEqual(['Setup › Heparin: 5000 → empty']);
+    expect(changes.map(changeText)).toEqual(['Setup › Heparin: 5000, changed to empty']);
   });
 });
