@@ -38,6 +38,8 @@ export async function startWorker(
 ): Promise<WorkerHandle> {
   const pool = new pg.Pool({ connectionString: databaseUrl, max: concurrency + 2, connectionTimeoutMillis: 3000 });
   pool.on('error', (error) => logger.warn({ err: safeError(error) }, 'job queue connection failed'));
+  // A connection that fails while a task holds it must not end the process (graphile-worker checks for this handler).
+  pool.on('connect', (client) => client.on('error', (error) => logger.warn({ err: safeError(error) }, 'job queue connection failed while in use')));
   let runner: Runner;
   try {
     runner = await run({ pgPool: pool, taskList, concurrency, pollInterval, noHandleSignals: true, logger: workerLogger(logger), parsedCronItems: parseCronItems(cronItems) });
