@@ -51,38 +51,13 @@ class EhrHostNotAllowedError extends InvalidRequestError {
 /** The stored settings with the name of who changed them last. */
 type Row = Pick<LabSettingsRecord, 'timeZone' | 'signatureTargetHours' | 'ehrBaseUrl' | 'mailFrom' | 'templateVersion' | 'version' | 'updatedAt'> & { updatedByName: string | null };
 
-/** Anything that runs a query and answers its rows: a data source, a transaction, or a job's connection. */
-export type SettingsReader = DataSource | EntityManager | { query(sql: string, params?: unknown[]): Promise<unknown[]> };
-
 /** The one settings row (`lock`: locked until the caller's transaction ends). */
-async function readRow(db: SettingsReader, lock = false): Promise<Row> {
-  const manager = db instanceof DataSource ? db.manager : db instanceof EntityManager ? db : null;
-  let row: Row | undefined;
-  if (manager) {
-    const q = manager.createQueryBuilder(LabSettingsRecord, 'l').leftJoin('l.updater', 'u').addSelect(['u.id', 'u.displayName']).where('l.id = 1');
-    if (lock) q.setLock('pessimistic_write', undefined, ['l']);
-    const stored = await q.getOne();
-    if (stored) row = { ...stored, updatedByName: stored.updater?.displayName ?? null };
-  } else {
-    // A job's plain client has no entity metadata: the same read in SQL.
-    const [raw] = (await db.query(
-      `SELECT l.time_zone, l.signature_target_hours::text AS signature_target_hours, l.ehr_base_url, l.mail_from, l.template_version, l.version, l.updated_at,
-              u.display_name AS updated_by_name
-       FROM lab_settings l LEFT JOIN app_user u ON u.id = l.updated_by WHERE l.id = 1`,
-    )) as Array<{ time_zone: string; signature_target_hours: string; ehr_base_url: string | null; mail_from: string | null; template_version: string; version: number; updated_at: Date | null; updated_by_name: string | null }>;
-    if (raw) {
-      row = {
-        timeZone: raw.time_zone,
-        signatureTargetHours: Number(raw.signature_target_hours),
-        ehrBaseUrl: raw.ehr_base_url,
-        mailFrom: raw.mail_from,
-        templateVersion: raw.template_version,
-        version: raw.version,
-        updatedAt: raw.updated_at,
-        updatedByName: raw.updated_by_name,
-      };
-    }
-  }
+async function readRow(db: DataSource | EntityManager, lock = false): Promise<Row> {
+  const manager = db instanceof DataSource ? db.manager : db;
+  const q = manager.createQueryBuilder(LabSettingsRecord, 'l').leftJoin('l.updater', 'u').addSelect(['u.id', 'u.displayName']).where('l.id = 1');
+  if (lock) q.setLock('pessimistic_write', undefined, ['l']);
+  const stored = await q.getOne();
+  const row: Row | undefined = stored ? { ...stored, updatedByName: stored.updater?.displayName ?? null } : undefined;
   // The migration writes the row; a database restored without it still works on the defaults.
   return (
     row ?? {
@@ -113,7 +88,7 @@ const effectiveOf = (row: Row, defaults: ConfiguredDefaults): LabSettings => ({
  * The lab's settings as they apply now: time zone, signature target, EHR endpoint and mail sender
  * (the stored ones, else the server's configuration), and the report template version new signatures use.
  */
-export async function labSettings(db: SettingsReader, defaults?: Partial<ConfiguredDefaults>): Promise<LabSettings> {
+export async function labSettings(db: DataSource | EntityManager, defaults?: Partial<ConfiguredDefaults>): Promise<LabSettings> {
   return effectiveOf(await readRow(db), configured(defaults));
 }
 
