@@ -2,7 +2,6 @@ import { DataSource, EntityManager } from 'typeorm';
 import type { LabSettings, LabSettingsForm, LabSettingsView } from '../../shared/settings/lab-settings';
 import { recordAudit, type AuditActor } from '../audit/audit';
 import { LabSettingsRecord } from '../db/entities/lab-settings.entity';
-import { loadConfig } from '../config';
 import { InvalidRequestError, RecordNotFoundError } from '../errors';
 import { REPORT_TEMPLATE_VERSION } from '../report-document/template-version';
 import { isShippedTemplateVersion } from '../report-document/template-versions';
@@ -16,17 +15,6 @@ export interface ConfiguredDefaults {
   /** Hosts (host[:port]) an EHR endpoint setting may name. */
   allowedEhrHosts?: string[];
 }
-
-let fromEnvironment: ConfiguredDefaults | undefined;
-/** The defaults given; what is not given comes from the server's configuration (read once). */
-const configured = (given?: Partial<ConfiguredDefaults>): ConfiguredDefaults => {
-  if (given?.ehrBaseUrl !== undefined && given.mailFrom !== undefined) return given as ConfiguredDefaults;
-  if (!fromEnvironment) {
-    const c = loadConfig();
-    fromEnvironment = { ehrBaseUrl: c.ehr.fhirBaseUrl, mailFrom: c.mail.from };
-  }
-  return { ...fromEnvironment, ...given };
-};
 
 /** The configuration's values, for `labSettings(db, defaultsFrom(config))`. */
 export const defaultsFrom = (config: { ehr: { fhirBaseUrl: string; allowedHosts?: string[] }; mail: { from: string } }): ConfiguredDefaults => ({
@@ -76,26 +64,40 @@ async function readRow(db: DataSource | EntityManager, lock = false): Promise<Ro
 /** What applies to reports while the settings row is missing (see `readRow`). */
 export const unstoredSettings = { time_zone: 'UTC', template_version: REPORT_TEMPLATE_VERSION } as const;
 
-const effectiveOf = (row: Row, defaults: ConfiguredDefaults): LabSettings => ({
-  timeZone: row.timeZone,
-  signatureTargetHours: row.signatureTargetHours,
-  ehrBaseUrl: row.ehrBaseUrl ?? defaults.ehrBaseUrl,
-  mailFrom: row.mailFrom ?? defaults.mailFrom,
-  templateVersion: row.templateVersion,
-});
+/** The settings the server's configuration stands in for where the lab has stored none. */
+type Configurable = 'ehrBaseUrl' | 'mailFrom';
+
+/** What applies of the settings `K` names defaults for, besides those that are always stored. */
+export type AppliedLabSettings<K extends keyof ConfiguredDefaults = never> = Omit<LabSettings, Configurable> & Pick<LabSettings, K & Configurable>;
+
+/** What applies: the stored value, else the configured one given in `defaults`; a configurable setting whose default is not given is left out. */
+function effectiveOf<K extends keyof ConfiguredDefaults>(row: Row, defaults: Pick<ConfiguredDefaults, K>): AppliedLabSettings<K> {
+  const given: Partial<ConfiguredDefaults> = defaults;
+  return {
+    timeZone: row.timeZone,
+    signatureTargetHours: row.signatureTargetHours,
+    templateVersion: row.templateVersion,
+    ...(given.ehrBaseUrl !== undefined ? { ehrBaseUrl: row.ehrBaseUrl ?? given.ehrBaseUrl } : {}),
+    ...(given.mailFrom !== undefined ? { mailFrom: row.mailFrom ?? given.mailFrom } : {}),
+  } as AppliedLabSettings<K>;
+}
 
 /**
- * The lab's settings as they apply now: time zone, signature target, EHR endpoint and mail sender
- * (the stored ones, else the server's configuration), and the report template version new signatures use.
+ * The lab's settings as they apply now: the time zone, the signature target and the report template
+ * version new signatures use; and the EHR endpoint and the mail sender (the stored ones, else the
+ * configured ones) for a caller that gives the server's configured values (`defaultsFrom(config)`, or
+ * the one it needs). This module never reads the configuration itself.
  */
-export async function labSettings(db: DataSource | EntityManager, defaults?: Partial<ConfiguredDefaults>): Promise<LabSettings> {
-  return effectiveOf(await readRow(db), configured(defaults));
+export async function labSettings<K extends keyof ConfiguredDefaults = never>(
+  db: DataSource | EntityManager,
+  defaults: Pick<ConfiguredDefaults, K> = {} as Pick<ConfiguredDefaults, K>,
+): Promise<AppliedLabSettings<K>> {
+  return effectiveOf(await readRow(db), defaults);
 }
 
 /** The stored values beside what applies, for the admin screen. */
-export async function labSettingsView(db: DataSource | EntityManager, defaults?: ConfiguredDefaults): Promise<LabSettingsView> {
+export async function labSettingsView(db: DataSource | EntityManager, defaults: ConfiguredDefaults): Promise<LabSettingsView> {
   const row = await readRow(db);
-  const d = configured(defaults);
   return {
     stored: {
       timeZone: row.timeZone,
@@ -104,8 +106,8 @@ export async function labSettingsView(db: DataSource | EntityManager, defaults?:
       mailFrom: row.mailFrom,
       templateVersion: row.templateVersion,
     },
-    effective: effectiveOf(row, d),
-    configured: d,
+    effective: effectiveOf(row, defaults),
+    configured: { ehrBaseUrl: defaults.ehrBaseUrl, mailFrom: defaults.mailFrom },
     updatedAt: row.updatedAt?.toISOString() ?? null,
     updatedBy: row.updatedByName,
     version: row.version,
@@ -140,13 +142,13 @@ async function saveRow(manager: EntityManager, read: Row, values: Partial<Pick<L
 }
 
 /** Saves the lab's settings (not the template version, which is activated on its own) with one audit row: before and after. */
-export async function updateLabSettings(dataSource: DataSource, input: { settings: LabSettingsForm; version: number }, actor: AuditActor, defaults?: ConfiguredDefaults): Promise<LabSettingsView> {
+export async function updateLabSettings(dataSource: DataSource, input: { settings: LabSettingsForm; version: number }, actor: AuditActor, defaults: ConfiguredDefaults): Promise<LabSettingsView> {
   return dataSource.transaction(async (manager) => {
     const row = await readRow(manager, true);
     if (row.version !== input.version) throw new StaleSettingsError(await labSettingsView(manager, defaults));
     const before: LabSettingsForm = { timeZone: row.timeZone, signatureTargetHours: row.signatureTargetHours, ehrBaseUrl: row.ehrBaseUrl, mailFrom: row.mailFrom };
     const after: LabSettingsForm = { ...input.settings, ehrBaseUrl: input.settings.ehrBaseUrl || null, mailFrom: input.settings.mailFrom || null };
-    const allowed = defaults?.allowedEhrHosts;
+    const allowed = defaults.allowedEhrHosts;
     if (after.ehrBaseUrl && allowed && !allowed.includes(new URL(after.ehrBaseUrl).host.toLowerCase())) throw new EhrHostNotAllowedError(new URL(after.ehrBaseUrl).host, allowed);
     const changed = changes(before, after);
     if (Object.keys(changed).length === 0) return labSettingsView(manager, defaults);
@@ -164,7 +166,7 @@ export async function updateLabSettings(dataSource: DataSource, input: { setting
 }
 
 /** Makes a shipped template version the one new signatures (and previews) use; signed versions keep theirs. */
-export async function activateTemplateVersion(dataSource: DataSource, version: string, actor: AuditActor, defaults?: ConfiguredDefaults): Promise<LabSettingsView> {
+export async function activateTemplateVersion(dataSource: DataSource, version: string, actor: AuditActor, defaults: ConfiguredDefaults): Promise<LabSettingsView> {
   if (!isShippedTemplateVersion(version)) throw new RecordNotFoundError(`No report template version "${version}" is shipped.`);
   return dataSource.transaction(async (manager) => {
     const row = await readRow(manager, true);

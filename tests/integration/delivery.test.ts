@@ -43,7 +43,7 @@ async function freePort(): Promise<number> {
   });
 }
 
-const tasksWith = (limitMs = DAY): TaskList => createDeliveryTasks(db, { send: (b) => client.sendTransaction(b), limitMs, leaseMs: 60_000, identifierSystems });
+const tasksWith = (limitMs = DAY): TaskList => createDeliveryTasks(db, { send: (b) => client.sendTransaction(b), limitMs, leaseMs: 60_000, identifierSystems, settingsDefaults: { ehrBaseUrl: ehr.fhirBaseUrl } });
 
 /** One pass of the job queue over every job that is due (graphile-worker's runOnce). */
 const work = (tasks: TaskList = tasksWith()) => runOnce({ connectionString: process.env.DATABASE_URL!, taskList: tasks, logger: quiet });
