@@ -12,7 +12,7 @@ import { deliverReport, TransientDeliveryError } from '../../server/ehr/deliver-
 import { EhrClient } from '../../server/ehr/ehr-client';
 import { deliveryJobKey, enqueueDelivery } from '../../server/ehr/enqueue-delivery';
 import { listDeliveriesNeedingAttention, listStudyDeliveries } from '../../server/ehr/queries/deliveries';
-import { resendDelivery } from '../../server/ehr/queries/delivery-resend';
+import { requeueDelivery } from '../../server/ehr/queries/delivery-resend';
 import { createDeliveryTasks } from '../../server/ehr/tasks';
 import { EHR_WRITE_SCOPES, startFakeEhr, type FakeEhr } from '../../server/fakes/ehr';
 import { startFakeIdp, type FakeIdp } from '../../server/fakes/identity-provider';
@@ -361,7 +361,7 @@ describe('sending again', () => {
     const first = await deliveryOf(s.id);
     expect(first.status).toBe('delivered');
 
-    await resendDelivery(db, s.id, operatorId);
+    await requeueDelivery(db, s.id, operatorId);
     expect(await deliveryOf(s.id)).toMatchObject({ status: 'queued', resend_requested_by: operatorId });
     await work();
     const again = await deliveryOf(s.id);
@@ -381,7 +381,7 @@ describe('sending again', () => {
     await work();
     expect((await deliveryOf(s.id)).status).toBe('rejected');
     // The stored version stays as signed (append-only), so the same cause rejects it again.
-    await resendDelivery(db, s.id, operatorId);
+    await requeueDelivery(db, s.id, operatorId);
     await work();
     expect(await deliveryOf(s.id)).toMatchObject({ status: 'rejected', attempts: 2 });
   });
