@@ -1,40 +1,8 @@
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
-import type { MissingItem } from '../../shared/report/completeness';
-import type { ReportDocument } from '../../shared/report/document';
-import type { ThresholdsBasis, ThresholdsChoice } from '../../shared/report/thresholds-basis';
+import type { ReportPreview } from '../../shared/report/preview';
+import type { ThresholdsChoice } from '../../shared/report/thresholds-basis';
 import type { StudyAction } from '../../shared/study/state-machine';
 import { apiFetch } from './api';
-
-export interface SignedVersion {
-  id: string;
-  versionNo: number;
-  status: 'final' | 'amended';
-  signedAt: string;
-  signerName: string;
-  contentSha256: string;
-}
-
-export interface ReportPreview {
-  studyId: string;
-  studyVersion: number;
-  state: string;
-  kind: string;
-  html: string;
-  text: string;
-  /** The narrative as structured data: laid out as text, never as markup. */
-  document: ReportDocument;
-  completeness: { complete: boolean; missing: MissingItem[] };
-  versions: SignedVersion[];
-  actions: StudyAction[];
-  /** Which thresholds judge this preview; for an open addendum the choice between the amended version's and those in force now. */
-  thresholds?: {
-    basis: ThresholdsBasis;
-    effectiveFrom: string | null;
-    setId: number | null;
-    amendedVersion: number | null;
-    choice: null | { chosen: ThresholdsChoice; differences: Array<{ key: string; label: string; original: number; current: number }> };
-  };
-}
 
 export const reportKeys = { preview: (studyId: string, thresholds: ThresholdsChoice = 'original') => ['studies', 'report', studyId, thresholds] as const };
 

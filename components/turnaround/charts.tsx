@@ -25,6 +25,32 @@ function Sized({ height, label, testID, children }: { height: number; label: str
   );
 }
 
+/** A value axis from zero to at least `max` (at least 1), bottom to top of the plot. */
+const countScale = (max: number, height: number) =>
+  scaleLinear()
+    .domain([0, Math.max(1, max)])
+    .nice()
+    .range([height - margin.bottom, margin.top]);
+
+/** Label every how-many-th of `count` columns so that labels stand about `spacing` px apart. */
+const labelStep = (count: number, width: number, spacing: number) => Math.max(1, Math.ceil(count / Math.max(2, Math.floor(width / spacing))));
+
+/** The value axis: a rule across the plot and a label at each tick. */
+function ValueRules({ y, ticks, width, format }: { y: (value: number) => number; ticks: number[]; width: number; format: (tick: number) => string }) {
+  return (
+    <>
+      {ticks.map((t) => (
+        <G key={`y${t}`}>
+          <Line x1={margin.left} x2={width - margin.right} y1={y(t)} y2={y(t)} stroke={color.line} strokeWidth={1} />
+          <SvgText x={margin.left - 6} y={y(t) + 4} textAnchor="end" {...axisText}>
+            {format(t)}
+          </SvgText>
+        </G>
+      ))}
+    </>
+  );
+}
+
 export interface TrendPoint {
   /** Monday of the week (YYYY-MM-DD). */
   weekStart: string;
@@ -58,14 +84,7 @@ export function TrendChart({ points, targetHours, label, testID }: { points: Tre
         const xFormat = x.tickFormat(xTicks.length, '%d %b');
         return (
           <Svg width={width} height={height}>
-            {y.ticks(4).map((t) => (
-              <G key={`y${t}`}>
-                <Line x1={margin.left} x2={width - margin.right} y1={y(t)} y2={y(t)} stroke={color.line} strokeWidth={1} />
-                <SvgText x={margin.left - 6} y={y(t) + 4} textAnchor="end" {...axisText}>
-                  {`${t} h`}
-                </SvgText>
-              </G>
-            ))}
+            <ValueRules y={y} ticks={y.ticks(4)} width={width} format={(t) => `${t} h`} />
             {xTicks.map((t) => (
               <SvgText key={`x${t.getTime()}`} x={x(t)} y={height - 8} textAnchor="middle" {...axisText}>
                 {xFormat(t)}
@@ -103,21 +122,11 @@ export function BarChart({ bars, label, testID }: { bars: Bar[]; label: string; 
     <Sized height={height} label={label} testID={testID}>
       {(width) => {
         const x = scaleBand<string>().domain(bars.map((b) => b.key)).range([margin.left, width - margin.right]).padding(0.15);
-        const y = scaleLinear()
-          .domain([0, Math.max(1, ...bars.map((b) => b.value))])
-          .nice()
-          .range([height - margin.bottom, margin.top]);
-        const every = Math.max(1, Math.ceil(bars.length / Math.max(2, Math.floor(width / 70))));
+        const y = countScale(Math.max(...bars.map((b) => b.value)), height);
+        const every = labelStep(bars.length, width, 70);
         return (
           <Svg width={width} height={height}>
-            {y.ticks(4).filter(Number.isInteger).map((t) => (
-              <G key={`y${t}`}>
-                <Line x1={margin.left} x2={width - margin.right} y1={y(t)} y2={y(t)} stroke={color.line} strokeWidth={1} />
-                <SvgText x={margin.left - 6} y={y(t) + 4} textAnchor="end" {...axisText}>
-                  {String(t)}
-                </SvgText>
-              </G>
-            ))}
+            <ValueRules y={y} ticks={y.ticks(4).filter(Number.isInteger)} width={width} format={String} />
             {bars.map((b, i) => (
               <G key={b.key}>
                 <Rect x={x(b.key)} y={y(b.value)} width={x.bandwidth()} height={y(0) - y(b.value)} fill={b.highlight ? color.normal : color.borderline} rx={2} />
@@ -149,21 +158,11 @@ export function StackedBars({ columns, palette, label, testID }: { columns: Stac
       {(width) => {
         const x = scaleBand<string>().domain(columns.map((c) => c.key)).range([margin.left, width - margin.right]).padding(0.2);
         const totals = columns.map((c) => c.parts.reduce((a, p) => a + p.value, 0));
-        const y = scaleLinear()
-          .domain([0, Math.max(1, ...totals)])
-          .nice()
-          .range([height - margin.bottom, margin.top]);
-        const every = Math.max(1, Math.ceil(columns.length / Math.max(2, Math.floor(width / 60))));
+        const y = countScale(Math.max(...totals), height);
+        const every = labelStep(columns.length, width, 60);
         return (
           <Svg width={width} height={height}>
-            {y.ticks(4).filter(Number.isInteger).map((t) => (
-              <G key={`y${t}`}>
-                <Line x1={margin.left} x2={width - margin.right} y1={y(t)} y2={y(t)} stroke={color.line} strokeWidth={1} />
-                <SvgText x={margin.left - 6} y={y(t) + 4} textAnchor="end" {...axisText}>
-                  {String(t)}
-                </SvgText>
-              </G>
-            ))}
+            <ValueRules y={y} ticks={y.ticks(4).filter(Number.isInteger)} width={width} format={String} />
             {columns.map((c, i) => {
               let base = 0;
               return (

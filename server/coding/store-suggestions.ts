@@ -4,9 +4,9 @@ import { inputChanges } from '../../shared/coding/review';
 import type { PhysiologyResult } from '../../shared/physiology/types';
 import type { StudySections } from '../../shared/study/schema';
 import { randomUUID } from 'node:crypto';
+import type { EntityManager } from 'typeorm';
 import { auditColumns, auditParameters, type AuditEntry } from '../audit/audit';
 import { labSettings } from '../settings/lab-settings';
-import { auditTarget, type Sql } from './sql';
 import { lockStudy } from '../studies/lock-study';
 
 export interface StoredSuggestions {
@@ -163,20 +163,20 @@ export const codingBeforeOf = (row: any): CodingBefore => ({
  * coding queue, in one statement. Run inside a transaction. Repeating it for the same version
  * changes nothing. (A signature does the same inside its own statement: see sign-study.ts.)
  */
-export async function storeSuggestions(sql: Sql, reportVersionId: string, known: { timeZone?: string } = {}): Promise<StoredSuggestions> {
-  const [version] = await sql(
+export async function storeSuggestions(manager: EntityManager, reportVersionId: string, known: { timeZone?: string } = {}): Promise<StoredSuggestions> {
+  const [version] = await manager.query(
     `SELECT id, study_id, version_no, snapshot, analysis, signed_at FROM report_version WHERE id = $1`,
     [reportVersionId],
   );
   if (!version) throw new Error(`No report version ${reportVersionId}`);
   // One writer per study at a time: concurrent jobs for two versions of a study queue here.
-  await lockStudy({ query: sql }, version.study_id);
+  await lockStudy(manager, version.study_id);
 
-  const [existing] = await sql(`SELECT id FROM code_suggestion_set WHERE report_version_id = $1`, [reportVersionId]);
+  const [existing] = await manager.query(`SELECT id FROM code_suggestion_set WHERE report_version_id = $1`, [reportVersionId]);
   if (existing) return { setId: existing.id, created: false, queued: false, codes: 0 };
 
-  const timeZone = known.timeZone ?? (await labSettings(auditTarget(sql))).timeZone;
-  const [beforeRow] = await sql(`SELECT ${codingBeforeSql('$1::uuid', '$2::int')} FROM (SELECT 1) AS one ${codingBeforeJoin('$1::uuid')}`, [version.study_id, version.version_no]);
+  const timeZone = known.timeZone ?? (await labSettings(manager)).timeZone;
+  const [beforeRow] = await manager.query(`SELECT ${codingBeforeSql('$1::uuid', '$2::int')} FROM (SELECT 1) AS one ${codingBeforeJoin('$1::uuid')}`, [version.study_id, version.version_no]);
   const plan = planSuggestions(
     { id: version.id, studyId: version.study_id, versionNo: version.version_no, snapshot: version.snapshot, analysis: version.analysis, signedAt: version.signed_at },
     codingBeforeOf(beforeRow),
@@ -185,6 +185,6 @@ export async function storeSuggestions(sql: Sql, reportVersionId: string, known:
   const params: unknown[] = [];
   const p = (value: unknown, cast = '') => `$${params.push(value)}${cast}`;
   const writes = suggestionWrites(plan, p);
-  await sql(`WITH ${writes.join(',\n')} INSERT INTO audit_event (${auditColumns}) VALUES (${auditParameters(plan.audit).map((x) => p(x)).join(', ')})`, params);
+  await manager.query(`WITH ${writes.join(',\n')} INSERT INTO audit_event (${auditColumns}) VALUES (${auditParameters(plan.audit).map((x) => p(x)).join(', ')})`, params);
   return { setId: plan.setId, created: true, queued: plan.review !== 'keep', codes: plan.lines.length };
 }

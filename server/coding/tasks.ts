@@ -1,7 +1,6 @@
 import type { TaskList } from 'graphile-worker';
 import type { DataSource } from 'typeorm';
 import { z } from 'zod';
-import { sqlOf } from './sql';
 import { storeSuggestions } from './store-suggestions';
 
 const payloadSchema = z.object({ reportVersionId: z.uuid() });
@@ -17,7 +16,7 @@ export function codingTasks(dataSource: DataSource): TaskList {
   return {
     'suggest-codes': async (payload, helpers) => {
       const { reportVersionId } = payloadSchema.parse(payload);
-      const stored = await dataSource.transaction((manager) => storeSuggestions(sqlOf(manager), reportVersionId));
+      const stored = await dataSource.transaction((manager) => storeSuggestions(manager, reportVersionId));
       helpers.logger.info(
         stored.created
           ? `Code suggestions for report version ${reportVersionId}: ${stored.codes} code(s)${stored.queued ? ', study queued for coding' : ', review unchanged'}`

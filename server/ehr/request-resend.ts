@@ -1,10 +1,10 @@
 import type { DataSource } from 'typeorm';
 import { recordAudit } from '../audit/audit';
 import type { AuditActor } from '../studies/repository';
-import { resendDelivery } from './queries/delivery-resend';
+import { requeueDelivery } from './queries/delivery-resend';
 
 /** Sends a signed report version to the EHR again at a user's request, recorded in the audit trail with the status it had. */
 export async function requestResend(dataSource: DataSource, reportVersionId: string, actor: AuditActor): Promise<void> {
-  const { previousStatus } = await resendDelivery(dataSource, reportVersionId, actor.actorUserId ?? null);
+  const { previousStatus } = await requeueDelivery(dataSource, reportVersionId, actor.actorUserId ?? null);
   await recordAudit(dataSource, { ...actor, action: 'update', entityType: 'report-delivery', entityId: reportVersionId, outcome: 'success', detail: { resend: true, previousStatus } });
 }

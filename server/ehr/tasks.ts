@@ -1,10 +1,10 @@
 import type { Task, TaskList } from 'graphile-worker';
 import type { DataSource } from 'typeorm';
 import { z } from 'zod';
-import { loadConfig, type Config } from '../config';
+import type { Config } from '../config';
 import { deliverReport, type DeliverDeps } from './deliver-report';
 import { EhrClient } from './ehr-client';
-import { labSettings, type ConfiguredDefaults } from '../settings/lab-settings';
+import { defaultsFrom, labSettings, type ConfiguredDefaults } from '../settings/lab-settings';
 
 /**
  * The job queue's tasks for EHR delivery. `deliver-report` (payload `{ reportVersionId }`) sends one
@@ -23,8 +23,8 @@ export interface DeliveryTaskOptions {
   limitMs: number;
   leaseMs: number;
   identifierSystems: DeliverDeps['identifierSystems'];
-  /** Where the lab has stored no EHR endpoint: the configured one (else the server's configuration from the environment). */
-  settingsDefaults?: Partial<ConfiguredDefaults>;
+  /** Where the lab has stored no EHR endpoint: the configured one. */
+  settingsDefaults: Pick<ConfiguredDefaults, 'ehrBaseUrl'>;
 }
 
 export function createDeliveryTasks(dataSource: DataSource, options: DeliveryTaskOptions): TaskList {
@@ -75,17 +75,11 @@ export function deliveryTaskOptions(config: Config): DeliveryTaskOptions {
     // A send is at most two token requests and two transactions, each bounded by the timeout.
     leaseMs: 4 * config.ehr.timeoutMs + 60_000,
     identifierSystems: config.ehr.identifierSystems,
-    settingsDefaults: { ehrBaseUrl: config.ehr.fhirBaseUrl, mailFrom: config.mail.from },
+    settingsDefaults: defaultsFrom(config),
   };
 }
 
-/** The delivery tasks with the server's settings (read on first use). */
-export function deliveryTasks(dataSource: DataSource): TaskList {
-  let configured: TaskList | undefined;
-  return {
-    'deliver-report': (payload, helpers) => {
-      configured ??= createDeliveryTasks(dataSource, deliveryTaskOptions(loadConfig()));
-      return configured['deliver-report']!(payload, helpers);
-    },
-  };
+/** The delivery tasks with the server's settings. */
+export function deliveryTasks(dataSource: DataSource, config: Config): TaskList {
+  return createDeliveryTasks(dataSource, deliveryTaskOptions(config));
 }

@@ -18,7 +18,7 @@ export const cronItems: CronItem[] = [...overdueCronItems];
  */
 export function taskList(dataSource: DataSource, config: Config): TaskList {
   return {
-    ...deliveryTasks(dataSource),
+    ...deliveryTasks(dataSource, config),
     ...codingTasks(dataSource),
     'send-report-notice': sendReportNoticeTask(dataSource, {
       host: config.mail.host,

@@ -1,4 +1,4 @@
-import nodemailer from 'nodemailer';
+import { smtpTransport } from './transport';
 import { And, IsNull, Not, type DataSource } from 'typeorm';
 import type { Task } from 'graphile-worker';
 import { z } from 'zod';
@@ -14,7 +14,7 @@ const payloadSchema = z.object({ reportVersionId: z.uuid() });
  * EHR's answer — and nothing clinical. Queued in the same statement that stops the delivery.
  */
 export function sendDeliveryFailureNoticeTask(dataSource: DataSource, mail: { host: string; port: number; from: string }): Task {
-  const transport = nodemailer.createTransport({ host: mail.host, port: mail.port, secure: false, ignoreTLS: true, connectionTimeout: 10_000 });
+  const transport = smtpTransport(mail);
   return async (payload) => {
     const { reportVersionId } = payloadSchema.parse(payload);
     const delivery = await dataSource.manager

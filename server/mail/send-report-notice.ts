@@ -1,4 +1,4 @@
-import nodemailer from 'nodemailer';
+import { smtpTransport } from './transport';
 import type { DataSource } from 'typeorm';
 import type { Task } from 'graphile-worker';
 import { z } from 'zod';
@@ -20,7 +20,7 @@ const payloadSchema = z.object({ reportVersionId: z.uuid() });
  * no link that would need an Isobar account. A failure throws, so the queue retries with backoff.
  */
 export function sendReportNoticeTask(dataSource: DataSource, mail: MailSettings): Task {
-  const transport = nodemailer.createTransport({ host: mail.host, port: mail.port, secure: false, ignoreTLS: true, connectionTimeout: 10_000 });
+  const transport = smtpTransport(mail);
   return async (payload) => {
     const { reportVersionId } = payloadSchema.parse(payload);
     const version = await dataSource.manager

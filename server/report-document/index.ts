@@ -1,12 +1,13 @@
 import type { PhysiologyResult, Thresholds } from '../../shared/physiology';
 import { fingerprint, renderReportPdf, sha256Hex } from './pdf';
 import { htmlDocument, renderNarrative, renderNarrativeText, type Narrative } from './render';
-import { buildReportView, signatureView, type ReportInput, type ReportStudy, type ReportView, type ThresholdsBasisInfo } from './view-model';
+import { buildReportView, signatureView, type ReportInput, type ReportStudy, type ReportView } from './view-model';
+import type { ThresholdsBasisInfo } from '../../shared/report/thresholds-basis';
 
 export { canonicalContent, fingerprint, fingerprintInPdf, renderReportPdf, sha256Hex, PAGE } from './pdf';
 export { renderNarrative, htmlDocument, type Narrative } from './render';
 export { reportDocument } from './document';
-export { buildReportView, reportKindOf, type AmendedVersion, type ThresholdsBasisInfo, type ReportInput, type ReportStudy, type ReportView } from './view-model';
+export { buildReportView, reportKindOf, type AmendedVersion, type ReportInput, type ReportStudy, type ReportView } from './view-model';
 
 /** The statement the signer makes, stored with each version. */
 export const ATTESTATION =

@@ -23,7 +23,7 @@ import { cite } from '../../shared/physiology/thresholds';
 import { endotypeLabel, flagLabel, imrMethodLabel, nhprKindLabel, reportCaution, vasoreactivityOutcomeLabel } from '../../shared/report/labels';
 import { hasPressureIndex } from '../../shared/report/completeness';
 import { reportKindOf, type ReportKind } from '../../shared/report/kind';
-import type { ThresholdsBasis } from '../../shared/report/thresholds-basis';
+import type { ThresholdsBasisInfo } from '../../shared/report/thresholds-basis';
 import type { StudySections } from '../../shared/study/schema';
 import * as vocabulary from '../../shared/study/vocabulary';
 import { REPORT_TEMPLATE_VERSION } from './template-version';
@@ -90,18 +90,6 @@ export interface AmendedVersion {
   fingerprint: string;
   /** Its signed record, to say what the addendum changes. */
   record: Record<string, unknown>;
-}
-
-/** Where a report's thresholds come from. */
-export interface ThresholdsBasisInfo {
-  /** `in-force`: the set in force at signing; for an addendum `original` (the amended version's) or `current`. */
-  basis: ThresholdsBasis;
-  /** When the set began to apply; null for the published defaults (or unknown for older versions). */
-  effectiveFrom: string | null;
-  /** The set's id; null for the published defaults. */
-  setId: number | null;
-  /** The version an addendum amends. */
-  amendedVersion: number | null;
 }
 
 export interface Cell {

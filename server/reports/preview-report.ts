@@ -1,40 +1,16 @@
 import type { DataSource } from 'typeorm';
 import type { Role } from '../../shared/auth/permissions';
-import { checkCompleteness, type CompletenessResult } from '../../shared/report/completeness';
-import { availableActions, type StudyAction } from '../../shared/study/state-machine';
+import { checkCompleteness } from '../../shared/report/completeness';
+import { availableActions } from '../../shared/study/state-machine';
 import { ReportVersion } from '../db/entities/report-version.entity';
 import { RecordNotFoundError } from '../errors';
-import type { ReportDocument } from '../../shared/report/document';
 import { previewReport, reportDocument, reportKindOf } from '../report-document';
 import { loadStudy } from '../studies/repository';
-import type { ThresholdsBasisInfo } from '../report-document/view-model';
+import type { ReportPreview } from '../../shared/report/preview';
 import { thresholdLabels } from '../../shared/physiology/thresholds';
 import { thresholdKeys } from '../../shared/settings/threshold-ranges';
 import { amendedVersionOf, reportInputFor, thresholdsFor, type ThresholdsChoice } from './report-input';
-import { summariseVersion, type SignedVersionSummary } from './sign-study';
-
-export interface ReportPreview {
-  studyId: string;
-  /** The study version this preview was built from: signing names it, and a later change refuses the signature. */
-  studyVersion: number;
-  state: string;
-  kind: string;
-  html: string;
-  text: string;
-  /** The same narrative as structured data, for a preview laid out as text (never as markup). */
-  document: ReportDocument;
-  completeness: CompletenessResult;
-  versions: SignedVersionSummary[];
-  actions: StudyAction[];
-  /** The thresholds that judge this preview, and for an open addendum the choice between the amended version's and those in force now. */
-  thresholds: ThresholdsBasisInfo & {
-    choice: null | {
-      chosen: ThresholdsChoice;
-      /** Cut-offs whose value differs between the two; empty when the choice changes nothing. */
-      differences: Array<{ key: string; label: string; original: number; current: number }>;
-    };
-  };
-}
+import { summariseVersion } from './sign-study';
 
 /** The report as it would be signed now, whether it can be signed, and the versions signed so far. */
 export async function previewStudyReport(

@@ -2,7 +2,8 @@ import type { DataSource } from 'typeorm';
 import type { Role } from '../../shared/auth/permissions';
 import { recordStudyReadOnce } from '../audit/audit';
 import type { AuditActor } from '../studies/repository';
-import { previewStudyReport, type ReportPreview } from './preview-report';
+import type { ReportPreview } from '../../shared/report/preview';
+import { previewStudyReport } from './preview-report';
 import type { ThresholdsChoice } from './report-input';
 
 /** The report as it would be signed now, for one user, the read recorded in the audit trail (once per window). */

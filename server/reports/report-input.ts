@@ -8,7 +8,7 @@ import { ReportVersion } from '../db/entities/report-version.entity';
 import { ThresholdSet } from '../db/entities/measurement.entities';
 import { User } from '../db/entities/user.entity';
 import type { AmendedVersion, ReportInput, ReportStudy } from '../report-document';
-import type { ThresholdsBasisInfo } from '../report-document/view-model';
+import type { ThresholdsBasisInfo } from '../../shared/report/thresholds-basis';
 import { labSettings } from '../settings/lab-settings';
 import { thresholdsInForce, type ThresholdsInForce } from '../settings/thresholds';
 

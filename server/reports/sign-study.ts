@@ -1,4 +1,5 @@
 import { randomUUID } from 'node:crypto';
+import type { SignedVersionSummary } from '../../shared/report/preview';
 import diagnosticsChannel from 'node:diagnostics_channel';
 import type { DataSource, EntityManager } from 'typeorm';
 import { checkCompleteness } from '../../shared/report/completeness';
@@ -39,16 +40,7 @@ export interface SignStudyRequest {
   now?: Date;
 }
 
-export interface SignedVersionSummary {
-  id: string;
-  studyId: string;
-  versionNo: number;
-  status: 'final' | 'amended';
-  signedAt: string;
-  signerName: string;
-  pdfSha256: string;
-  contentSha256: string;
-}
+export type { SignedVersionSummary };
 
 export const summariseVersion = (v: Omit<ReportVersion, 'pdfFile'>, pdfSha256: string): SignedVersionSummary => ({
   id: v.id,

@@ -2,7 +2,6 @@ import { DataSource, EntityManager } from 'typeorm';
 import type { LabSettings, LabSettingsForm, LabSettingsView } from '../../shared/settings/lab-settings';
 import { recordAudit, type AuditActor } from '../audit/audit';
 import { LabSettingsRecord } from '../db/entities/lab-settings.entity';
-import { loadConfig } from '../config';
 import { InvalidRequestError, RecordNotFoundError } from '../errors';
 import { REPORT_TEMPLATE_VERSION } from '../report-document/template-version';
 import { isShippedTemplateVersion } from '../report-document/template-versions';
@@ -16,17 +15,6 @@ export interface ConfiguredDefaults {
   /** Hosts (host[:port]) an EHR endpoint setting may name. */
   allowedEhrHosts?: string[];
 }
-
-let fromEnvironment: ConfiguredDefaults | undefined;
-/** The defaults given; what is not given comes from the server's configuration (read once). */
-const configured = (given?: Partial<ConfiguredDefaults>): ConfiguredDefaults => {
-  if (given?.ehrBaseUrl !== undefined && given.mailFrom !== undefined) return given as ConfiguredDefaults;
-  if (!fromEnvironment) {
-    const c = loadConfig();
-    fromEnvironment = { ehrBaseUrl: c.ehr.fhirBaseUrl, mailFrom: c.mail.from };
-  }
-  return { ...fromEnvironment, ...given };
-};
 
 /** The configuration's values, for `labSettings(db, defaultsFrom(config))`. */
 export const defaultsFrom = (config: { ehr: { fhirBaseUrl: string; allowedHosts?: string[] }; mail: { from: string } }): ConfiguredDefaults => ({
@@ -51,38 +39,13 @@ class EhrHostNotAllowedError extends InvalidRequestError {
 /** The stored settings with the name of who changed them last. */
 type Row = Pick<LabSettingsRecord, 'timeZone' | 'signatureTargetHours' | 'ehrBaseUrl' | 'mailFrom' | 'templateVersion' | 'version' | 'updatedAt'> & { updatedByName: string | null };
 
-/** Anything that runs a query and answers its rows: a data source, a transaction, or a job's connection. */
-export type SettingsReader = DataSource | EntityManager | { query(sql: string, params?: unknown[]): Promise<unknown[]> };
-
 /** The one settings row (`lock`: locked until the caller's transaction ends). */
-async function readRow(db: SettingsReader, lock = false): Promise<Row> {
-  const manager = db instanceof DataSource ? db.manager : db instanceof EntityManager ? db : null;
-  let row: Row | undefined;
-  if (manager) {
-    const q = manager.createQueryBuilder(LabSettingsRecord, 'l').leftJoin('l.updater', 'u').addSelect(['u.id', 'u.displayName']).where('l.id = 1');
-    if (lock) q.setLock('pessimistic_write', undefined, ['l']);
-    const stored = await q.getOne();
-    if (stored) row = { ...stored, updatedByName: stored.updater?.displayName ?? null };
-  } else {
-    // A job's plain client has no entity metadata: the same read in SQL.
-    const [raw] = (await db.query(
-      `SELECT l.time_zone, l.signature_target_hours::text AS signature_target_hours, l.ehr_base_url, l.mail_from, l.template_version, l.version, l.updated_at,
-              u.display_name AS updated_by_name
-       FROM lab_settings l LEFT JOIN app_user u ON u.id = l.updated_by WHERE l.id = 1`,
-    )) as Array<{ time_zone: string; signature_target_hours: string; ehr_base_url: string | null; mail_from: string | null; template_version: string; version: number; updated_at: Date | null; updated_by_name: string | null }>;
-    if (raw) {
-      row = {
-        timeZone: raw.time_zone,
-        signatureTargetHours: Number(raw.signature_target_hours),
-        ehrBaseUrl: raw.ehr_base_url,
-        mailFrom: raw.mail_from,
-        templateVersion: raw.template_version,
-        version: raw.version,
-        updatedAt: raw.updated_at,
-        updatedByName: raw.updated_by_name,
-      };
-    }
-  }
+async function readRow(db: DataSource | EntityManager, lock = false): Promise<Row> {
+  const manager = db instanceof DataSource ? db.manager : db;
+  const q = manager.createQueryBuilder(LabSettingsRecord, 'l').leftJoin('l.updater', 'u').addSelect(['u.id', 'u.displayName']).where('l.id = 1');
+  if (lock) q.setLock('pessimistic_write', undefined, ['l']);
+  const stored = await q.getOne();
+  const row: Row | undefined = stored ? { ...stored, updatedByName: stored.updater?.displayName ?? null } : undefined;
   // The migration writes the row; a database restored without it still works on the defaults.
   return (
     row ?? {
@@ -101,26 +64,40 @@ async function readRow(db: SettingsReader, lock = false): Promise<Row> {
 /** What applies to reports while the settings row is missing (see `readRow`). */
 export const unstoredSettings = { time_zone: 'UTC', template_version: REPORT_TEMPLATE_VERSION } as const;
 
-const effectiveOf = (row: Row, defaults: ConfiguredDefaults): LabSettings => ({
-  timeZone: row.timeZone,
-  signatureTargetHours: row.signatureTargetHours,
-  ehrBaseUrl: row.ehrBaseUrl ?? defaults.ehrBaseUrl,
-  mailFrom: row.mailFrom ?? defaults.mailFrom,
-  templateVersion: row.templateVersion,
-});
+/** The settings the server's configuration stands in for where the lab has stored none. */
+type Configurable = 'ehrBaseUrl' | 'mailFrom';
+
+/** What applies of the settings `K` names defaults for, besides those that are always stored. */
+export type AppliedLabSettings<K extends keyof ConfiguredDefaults = never> = Omit<LabSettings, Configurable> & Pick<LabSettings, K & Configurable>;
+
+/** What applies: the stored value, else the configured one given in `defaults`; a configurable setting whose default is not given is left out. */
+function effectiveOf<K extends keyof ConfiguredDefaults>(row: Row, defaults: Pick<ConfiguredDefaults, K>): AppliedLabSettings<K> {
+  const given: Partial<ConfiguredDefaults> = defaults;
+  return {
+    timeZone: row.timeZone,
+    signatureTargetHours: row.signatureTargetHours,
+    templateVersion: row.templateVersion,
+    ...(given.ehrBaseUrl !== undefined ? { ehrBaseUrl: row.ehrBaseUrl ?? given.ehrBaseUrl } : {}),
+    ...(given.mailFrom !== undefined ? { mailFrom: row.mailFrom ?? given.mailFrom } : {}),
+  } as AppliedLabSettings<K>;
+}
 
 /**
- * The lab's settings as they apply now: time zone, signature target, EHR endpoint and mail sender
- * (the stored ones, else the server's configuration), and the report template version new signatures use.
+ * The lab's settings as they apply now: the time zone, the signature target and the report template
+ * version new signatures use; and the EHR endpoint and the mail sender (the stored ones, else the
+ * configured ones) for a caller that gives the server's configured values (`defaultsFrom(config)`, or
+ * the one it needs). This module never reads the configuration itself.
  */
-export async function labSettings(db: SettingsReader, defaults?: Partial<ConfiguredDefaults>): Promise<LabSettings> {
-  return effectiveOf(await readRow(db), configured(defaults));
+export async function labSettings<K extends keyof ConfiguredDefaults = never>(
+  db: DataSource | EntityManager,
+  defaults: Pick<ConfiguredDefaults, K> = {} as Pick<ConfiguredDefaults, K>,
+): Promise<AppliedLabSettings<K>> {
+  return effectiveOf(await readRow(db), defaults);
 }
 
 /** The stored values beside what applies, for the admin screen. */
-export async function labSettingsView(db: DataSource | EntityManager, defaults?: ConfiguredDefaults): Promise<LabSettingsView> {
+export async function labSettingsView(db: DataSource | EntityManager, defaults: ConfiguredDefaults): Promise<LabSettingsView> {
   const row = await readRow(db);
-  const d = configured(defaults);
   return {
     stored: {
       timeZone: row.timeZone,
@@ -129,8 +106,8 @@ export async function labSettingsView(db: DataSource | EntityManager, defaults?:
       mailFrom: row.mailFrom,
       templateVersion: row.templateVersion,
     },
-    effective: effectiveOf(row, d),
-    configured: d,
+    effective: effectiveOf(row, defaults),
+    configured: { ehrBaseUrl: defaults.ehrBaseUrl, mailFrom: defaults.mailFrom },
     updatedAt: row.updatedAt?.toISOString() ?? null,
     updatedBy: row.updatedByName,
     version: row.version,
@@ -165,13 +142,13 @@ async function saveRow(manager: EntityManager, read: Row, values: Partial<Pick<L
 }
 
 /** Saves the lab's settings (not the template version, which is activated on its own) with one audit row: before and after. */
-export async function updateLabSettings(dataSource: DataSource, input: { settings: LabSettingsForm; version: number }, actor: AuditActor, defaults?: ConfiguredDefaults): Promise<LabSettingsView> {
+export async function updateLabSettings(dataSource: DataSource, input: { settings: LabSettingsForm; version: number }, actor: AuditActor, defaults: ConfiguredDefaults): Promise<LabSettingsView> {
   return dataSource.transaction(async (manager) => {
     const row = await readRow(manager, true);
     if (row.version !== input.version) throw new StaleSettingsError(await labSettingsView(manager, defaults));
     const before: LabSettingsForm = { timeZone: row.timeZone, signatureTargetHours: row.signatureTargetHours, ehrBaseUrl: row.ehrBaseUrl, mailFrom: row.mailFrom };
     const after: LabSettingsForm = { ...input.settings, ehrBaseUrl: input.settings.ehrBaseUrl || null, mailFrom: input.settings.mailFrom || null };
-    const allowed = defaults?.allowedEhrHosts;
+    const allowed = defaults.allowedEhrHosts;
     if (after.ehrBaseUrl && allowed && !allowed.includes(new URL(after.ehrBaseUrl).host.toLowerCase())) throw new EhrHostNotAllowedError(new URL(after.ehrBaseUrl).host, allowed);
     const changed = changes(before, after);
     if (Object.keys(changed).length === 0) return labSettingsView(manager, defaults);
@@ -189,7 +166,7 @@ export async function updateLabSettings(dataSource: DataSource, input: { setting
 }
 
 /** Makes a shipped template version the one new signatures (and previews) use; signed versions keep theirs. */
-export async function activateTemplateVersion(dataSource: DataSource, version: string, actor: AuditActor, defaults?: ConfiguredDefaults): Promise<LabSettingsView> {
+export async function activateTemplateVersion(dataSource: DataSource, version: string, actor: AuditActor, defaults: ConfiguredDefaults): Promise<LabSettingsView> {
   if (!isShippedTemplateVersion(version)) throw new RecordNotFoundError(`No report template version "${version}" is shipped.`);
   return dataSource.transaction(async (manager) => {
     const row = await readRow(manager, true);

@@ -1,5 +1,5 @@
 import type { DataSource } from 'typeorm';
-import { WORKLIST_PAGE_SIZE, type WorklistItem, type WorklistQuery } from '../../shared/study/worklist';
+import { WORKLIST_PAGE_SIZE, type WorklistQuery } from '../../shared/study/worklist';
 import { decodeKeysetCursor, encodeKeysetCursor, uuidIdPattern } from '../db/keyset-cursor';
 import { parseSearch, type ParsedSearch } from '../../shared/study/search';
 import type { AuditActor } from '../audit/audit';
@@ -7,7 +7,7 @@ import { preparedQuery } from '../db/prepared';
 
 
 /**
- * One study as lists show it (worklist, coding queue, turnaround): `SELECT … FROM` a study with its
+ * One study as lists show it (worklist, awaiting signature, turnaround): `SELECT … FROM` a study with its
  * patient and operator; callers add WHERE and ORDER BY. `sort_key` is the sort key as text (for cursors).
  */
 export const summarySelect = `
@@ -17,20 +17,19 @@ export const summarySelect = `
          u.display_name AS operator_name
   FROM study s JOIN patient p ON p.id = s.patient_id LEFT JOIN app_user u ON u.id = s.operator_id`;
 
-export function toSummary(r: Record<string, never>): WorklistItem {
-  return {
-    id: r.id,
-    accession: r.accession,
-    state: r.state,
-    procedureStartedAt: (r.procedure_started_at as Date | null)?.toISOString() ?? null,
-    procedureEndedAt: (r.procedure_ended_at as Date | null)?.toISOString() ?? null,
-    sortAt: (r.sort_at as Date).toISOString(),
-    indication: r.indication,
-    operatorName: r.operator_name,
-    version: r.version,
-    patient: { mrn: r.mrn, familyName: r.family_name, givenName: r.given_name, birthDate: r.birth_date, sex: r.sex },
-  };
-}
+/** An instant as `Date.prototype.toISOString` writes it (UTC, milliseconds, `Z`). */
+const isoInstant = (column: string) => `to_char(${column} AT TIME ZONE 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"')`;
+
+/**
+ * One study as every list shows it (a `WorklistItem`), built by PostgreSQL from the columns of
+ * `summarySelect` in the row named `row`: the worklist aggregates it into its page's JSON, the other
+ * lists (awaiting signature, the chief's unsigned studies) read it as one column, parsed by the driver.
+ */
+export const summaryJson = (row: string) => `json_build_object(
+    'id', ${row}.id, 'accession', ${row}.accession, 'state', ${row}.state,
+    'procedureStartedAt', ${isoInstant(`${row}.procedure_started_at`)}, 'procedureEndedAt', ${isoInstant(`${row}.procedure_ended_at`)},
+    'sortAt', ${isoInstant(`${row}.sort_at`)}, 'indication', ${row}.indication, 'operatorName', ${row}.operator_name, 'version', ${row}.version,
+    'patient', json_build_object('mrn', ${row}.mrn, 'familyName', ${row}.family_name, 'givenName', ${row}.given_name, 'birthDate', ${row}.birth_date, 'sex', ${row}.sex))`;
 
 const escapeLike = (s: string) => s.replace(/[\\%_]/g, (c) => `\\${c}`);
 
@@ -104,11 +103,8 @@ async function pageStatement(db: DataSource, query: WorklistQuery) {
   return { pageSql, values, param };
 }
 
-/** An instant as `Date.prototype.toISOString` writes it (UTC, milliseconds, `Z`). */
-const isoInstant = (column: string) => `to_char(${column} AT TIME ZONE 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"')`;
-
 /**
- * The worklist page as the API answers it (a `WorklistPage` as JSON text, items as `toSummary`
+ * The worklist page as the API answers it (a `WorklistPage` as JSON text, items as `summaryJson`
  * shapes them), with the page's audit row appended by the same statement: the filters, the number
  * of studies returned and their ids in the order shown. The row is committed before the page is
  * answered and costs no round trip of its own.
@@ -134,12 +130,7 @@ export async function worklistPageJson(db: DataSource, query: WorklistQuery, vie
               ${detail}::jsonb || jsonb_build_object('returned', count(*), 'studyIds', coalesce(jsonb_agg(id ORDER BY sort_at DESC, id DESC), '[]'::jsonb))
        FROM shown
      )
-     SELECT coalesce(json_agg(json_build_object(
-              'id', id, 'accession', accession, 'state', state,
-              'procedureStartedAt', ${isoInstant('procedure_started_at')}, 'procedureEndedAt', ${isoInstant('procedure_ended_at')},
-              'sortAt', ${isoInstant('sort_at')}, 'indication', indication, 'operatorName', operator_name, 'version', version,
-              'patient', json_build_object('mrn', mrn, 'familyName', family_name, 'givenName', given_name, 'birthDate', birth_date, 'sex', sex)
-            ) ORDER BY sort_at DESC, id DESC), '[]')::text AS items,
+     SELECT coalesce(json_agg(${summaryJson('shown')} ORDER BY sort_at DESC, id DESC), '[]')::text AS items,
             (SELECT count(*) FROM page)::int AS fetched,
             (array_agg(sort_key ORDER BY sort_at, id))[1] AS last_sort_key,
             (array_agg(id::text ORDER BY sort_at, id))[1] AS last_id

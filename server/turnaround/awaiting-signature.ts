@@ -1,7 +1,8 @@
 import type { DataSource } from 'typeorm';
 import type { UnsignedList, UnsignedStudy } from '../../shared/turnaround/unsigned';
 import { waitingSince } from '../../shared/turnaround/overdue';
-import { summarySelect, toSummary } from '../studies/worklist';
+import type { WorklistItem } from '../../shared/study/worklist';
+import { summaryJson, summarySelect } from '../studies/worklist';
 import type { TurnaroundSettings } from './settings';
 import { StudyTurnaround } from '../db/entities/turnaround.entities';
 
@@ -29,15 +30,15 @@ export async function awaitingSignature(db: DataSource, settings: TurnaroundSett
     ),
   ]);
   const ids = waiting.map((w) => w.studyId);
-  // SQL: the worklist's own summary select (server/studies/worklist.ts), so both lists show a study alike.
-  const rows: Record<string, never>[] = ids.length ? await db.query(`${summarySelect} WHERE s.id = ANY($1)`, [ids]) : [];
-  const byId = new Map(rows.map((r) => [r.id as string, r]));
+  // SQL: the worklist's own summary select and item (server/studies/worklist.ts), so both lists show a study alike.
+  const rows: Array<{ item: WorklistItem }> = ids.length ? await db.query(`SELECT ${summaryJson('q')} AS item FROM (${summarySelect} WHERE s.id = ANY($1)) q`, [ids]) : [];
+  const byId = new Map(rows.map((r) => [r.item.id, r.item]));
   const items: UnsignedStudy[] = [];
   for (const w of waiting) {
     const row = byId.get(w.studyId);
     if (!row) continue; // signed between the two reads
     items.push({
-      ...toSummary(row),
+      ...row,
       startedAt: w.startedAt.toISOString(),
       startBasis: w.startBasis,
       ownerId: w.physicianId,

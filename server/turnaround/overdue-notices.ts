@@ -1,4 +1,4 @@
-import nodemailer from 'nodemailer';
+import { smtpTransport } from '../mail/transport';
 import type { CronItem, Task } from 'graphile-worker';
 import { Not, type DataSource } from 'typeorm';
 import { z } from 'zod';
@@ -68,7 +68,7 @@ const payloadSchema = z.object({ studyId: z.uuid() });
  * the queue retries with backoff.
  */
 export function sendOverdueNoticeTask(dataSource: DataSource, mail: OverdueMailSettings): Task {
-  const transport = nodemailer.createTransport({ host: mail.host, port: mail.port, secure: false, ignoreTLS: true, connectionTimeout: 10_000 });
+  const transport = smtpTransport(mail);
   return async (payload) => {
     const { studyId } = payloadSchema.parse(payload);
     const notice = await dataSource.manager

@@ -9,7 +9,7 @@ import { emptyFindings, emptyVessel, type StudyRecord } from '../../shared/study
 import { createDeliveryTasks } from '../../server/ehr/tasks';
 import { startFakeSmtp } from '../../server/fakes/smtp';
 import { sendReportNoticeTask } from '../../server/mail/send-report-notice';
-import { labSettings } from '../../server/settings/lab-settings';
+import { defaultsFrom, labSettings } from '../../server/settings/lab-settings';
 import { thresholdsInForce } from '../../server/settings/thresholds';
 import { openTestDatabase } from '../support/app';
 import { signIn, startStack, usernameOf, type TestStack } from '../support/stack';
@@ -305,7 +305,7 @@ describe('lab settings', () => {
     const saved = await send('put', '/api/admin/lab-settings', admin).send({ version: view.body.version, settings }).expect(200);
     expect(saved.body.effective).toMatchObject(settings);
     expect(saved.body.version).toBe(view.body.version + 1);
-    expect(await labSettings(db)).toMatchObject({ ...settings, templateVersion: expect.stringMatching(/^v\d+$/) });
+    expect(await labSettings(db, defaultsFrom(stack.config))).toMatchObject({ ...settings, templateVersion: expect.stringMatching(/^v\d+$/) });
     const row = await lastSettingsAudit('lab-settings');
     expect(row).toMatchObject({ action: 'update', actor_role: 'admin' });
     expect(row.detail.before).toMatchObject({ timeZone: view.body.stored.timeZone, signatureTargetHours: view.body.stored.signatureTargetHours, ehrBaseUrl: null });
@@ -373,6 +373,7 @@ describe('lab settings', () => {
       limitMs: 86_400_000,
       leaseMs: 60_000,
       identifierSystems: stack.config.ehr.identifierSystems,
+      settingsDefaults: defaultsFrom(stack.config),
     });
     await runOnce({ connectionString: process.env.DATABASE_URL!, taskList: tasks, logger: new Logger(() => () => undefined) });
     expect(urls).toContain('http://127.0.0.1:9/lab-ehr/fhir');

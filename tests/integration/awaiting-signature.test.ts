@@ -68,6 +68,21 @@ describe('GET /api/awaiting-signature', () => {
     expect(body.mine.total).toBe(body.mine.items.length);
   });
 
+  it('shows each study field for field as the worklist does, procedure times present or missing', async () => {
+    const timed = await awaitingStudy(physician.id, 3);
+    const untimed = await awaitingStudy(physician.id, 4);
+    await db.query(`UPDATE study SET procedure_ended_at = NULL WHERE id = $1`, [untimed.id]);
+    const lists = (await request(stack.url).get('/api/awaiting-signature').set('Cookie', physician.cookie).expect(200)).body as AwaitingSignature;
+    const page = await request(stack.url).get('/api/studies').query({ state: 'awaiting-signature', limit: 100 }).set('Cookie', physician.cookie).expect(200);
+    for (const id of [timed.id, untimed.id]) {
+      const shown = page.body.items.find((x: { id: string }) => x.id === id);
+      expect(Object.keys(shown ?? {}).length).toBeGreaterThan(5);
+      expect(lists.mine.items.find((x) => x.id === id)).toMatchObject(shown);
+      expect(lists.all.items.find((x) => x.id === id)).toMatchObject(shown);
+    }
+    expect(page.body.items.find((x: { id: string }) => x.id === untimed.id).procedureEndedAt).toBeNull();
+  });
+
   it('a study without a recorded procedure end waits from when its record was opened', async () => {
     const s = await awaitingStudy(physician.id, 1);
     await db.query(`UPDATE study SET procedure_ended_at = NULL, procedure_started_at = NULL WHERE id = $1`, [s.id]);

@@ -2,6 +2,7 @@ import { afterAll, beforeAll, expect, it } from 'vitest';
 import { EhrClient } from '../../server/ehr/ehr-client';
 import { deliveryJobKey } from '../../server/ehr/enqueue-delivery';
 import { createDeliveryTasks } from '../../server/ehr/tasks';
+import { defaultsFrom } from '../../server/settings/lab-settings';
 import { EHR_WRITE_SCOPES } from '../../server/fakes/ehr';
 import { startWorker } from '../../server/jobs/worker';
 import { createLogger } from '../../server/log';
@@ -19,7 +20,7 @@ afterAll(() => h.stop());
 it('50 reports signed while the EHR is down; once it is back, each is received exactly once', async () => {
   const config = testConfig();
   const client = new EhrClient({ fhirBaseUrl: h.fhirBaseUrl, issuer: h.idp.issuer, clientId: 'isobar-ehr', clientSecret: h.secret, scope: EHR_WRITE_SCOPES.join(' '), timeoutMs: 5000 });
-  const tasks = createDeliveryTasks(h.db, { send: (b) => client.sendTransaction(b), limitMs: config.ehr.deliveryLimitMs, leaseMs: 60_000, identifierSystems: config.ehr.identifierSystems });
+  const tasks = createDeliveryTasks(h.db, { send: (b) => client.sendTransaction(b), limitMs: config.ehr.deliveryLimitMs, leaseMs: 60_000, identifierSystems: config.ehr.identifierSystems, settingsDefaults: defaultsFrom(config) });
   const worker = await startWorker(tasks, { databaseUrl: config.databaseUrl, logger: createLogger('silent'), concurrency: 4, pollInterval: 100 });
   try {
     await h.ehr.close();

@@ -12,7 +12,7 @@ import { deliverReport, TransientDeliveryError } from '../../server/ehr/deliver-
 import { EhrClient } from '../../server/ehr/ehr-client';
 import { deliveryJobKey, enqueueDelivery } from '../../server/ehr/enqueue-delivery';
 import { listDeliveriesNeedingAttention, listStudyDeliveries } from '../../server/ehr/queries/deliveries';
-import { resendDelivery } from '../../server/ehr/queries/delivery-resend';
+import { requeueDelivery } from '../../server/ehr/queries/delivery-resend';
 import { createDeliveryTasks } from '../../server/ehr/tasks';
 import { EHR_WRITE_SCOPES, startFakeEhr, type FakeEhr } from '../../server/fakes/ehr';
 import { startFakeIdp, type FakeIdp } from '../../server/fakes/identity-provider';
@@ -43,7 +43,7 @@ async function freePort(): Promise<number> {
   });
 }
 
-const tasksWith = (limitMs = DAY): TaskList => createDeliveryTasks(db, { send: (b) => client.sendTransaction(b), limitMs, leaseMs: 60_000, identifierSystems });
+const tasksWith = (limitMs = DAY): TaskList => createDeliveryTasks(db, { send: (b) => client.sendTransaction(b), limitMs, leaseMs: 60_000, identifierSystems, settingsDefaults: { ehrBaseUrl: ehr.fhirBaseUrl } });
 
 /** One pass of the job queue over every job that is due (graphile-worker's runOnce). */
 const work = (tasks: TaskList = tasksWith()) => runOnce({ connectionString: process.env.DATABASE_URL!, taskList: tasks, logger: quiet });
@@ -361,7 +361,7 @@ describe('sending again', () => {
     const first = await deliveryOf(s.id);
     expect(first.status).toBe('delivered');
 
-    await resendDelivery(db, s.id, operatorId);
+    await requeueDelivery(db, s.id, operatorId);
     expect(await deliveryOf(s.id)).toMatchObject({ status: 'queued', resend_requested_by: operatorId });
     await work();
     const again = await deliveryOf(s.id);
@@ -381,7 +381,7 @@ describe('sending again', () => {
     await work();
     expect((await deliveryOf(s.id)).status).toBe('rejected');
     // The stored version stays as signed (append-only), so the same cause rejects it again.
-    await resendDelivery(db, s.id, operatorId);
+    await requeueDelivery(db, s.id, operatorId);
     await work();
     expect(await deliveryOf(s.id)).toMatchObject({ status: 'rejected', attempts: 2 });
   });

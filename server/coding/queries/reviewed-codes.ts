@@ -29,7 +29,7 @@ export interface ExportedCode {
  * The reviewed codes of the studies coded (review completed) between two days, inclusive: one row
  * per code as it is reported — accepted, edited (the edit), added; rejected codes are not codes.
  */
-export async function exportCodes(manager: EntityManager, from: string, to: string): Promise<ExportedCode[]> {
+export async function listReviewedCodes(manager: EntityManager, from: string, to: string): Promise<ExportedCode[]> {
   // Days are the lab's calendar days, not the database server's; the date of service is the one the
   // codes were suggested for (the signed record's, in the lab's zone).
   const { timeZone } = await labSettings(manager);

@@ -16,7 +16,7 @@ export class DeliveryBusyError extends Error {
  * same Bundle.identifier, so the EHR recognises it (and conditional updates by identifier never make a
  * second report). Refused while a sender holds the delivery.
  */
-export async function resendDelivery(dataSource: DataSource, reportVersionId: string, requestedBy: string | null): Promise<{ studyId: string; previousStatus: string }> {
+export async function requeueDelivery(dataSource: DataSource, reportVersionId: string, requestedBy: string | null): Promise<{ studyId: string; previousStatus: string }> {
   return dataSource.transaction(async (manager) => {
     const version = await manager.findOne(ReportVersion, { select: { id: true, studyId: true }, where: { id: reportVersionId } });
     if (!version) throw new RecordNotFoundError('No signed report version has this id.');

@@ -21,7 +21,7 @@ const hex = /^[0-9a-f]+$/;
  * Which signed version a PDF (its bytes) or a printed fingerprint belongs to, and whether a newer
  * version supersedes it. A printed short fingerprint (at least 12 hex characters) is matched by prefix.
  */
-export async function verifyReport(dataSource: DataSource, evidence: { pdf?: Buffer; fingerprint?: string }): Promise<Verification> {
+export async function findSignedVersion(dataSource: DataSource, evidence: { pdf?: Buffer; fingerprint?: string }): Promise<Verification> {
   const repo = dataSource.getRepository(ReportVersion);
   let version: ReportVersion | null = null;
   if (evidence.pdf) {
