@@ -156,6 +156,9 @@ export function pageQuery(
   if (f.action) where.push(`a.action = ${p(f.action)}`);
   // Failures and refusals are rare: the literal lets the planner use the partial index of unsuccessful events.
   if (f.outcome) where.push(`a.outcome = ${p(f.outcome)}${f.outcome === 'success' ? '' : ` AND a.outcome <> 'success'`}`);
+  // A day given alone is the database session's day, as the trail's query promises (shared/audit/trail.ts):
+  // the audit screen sends the instants that bound the reader's own local days, not days; a day here is
+  // for a hand-written query and is not the lab's day (server/db/local-midnight.ts).
   if (f.from) where.push(DAY.test(f.from) ? `a.recorded_at >= ${p(f.from)}::date` : `a.recorded_at >= ${p(f.from)}::timestamptz`);
   if (f.to) where.push(DAY.test(f.to) ? `a.recorded_at < (${p(f.to)}::date + 1)` : `a.recorded_at < ${p(f.to)}::timestamptz`);
   if (cursor) where.push(`(a.recorded_at, a.id) < (${p(cursor.at)}::timestamptz, ${p(cursor.id)}::bigint)`);

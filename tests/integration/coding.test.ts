@@ -388,3 +388,32 @@ describe('the export of reviewed codes', () => {
     await api().get(`/api/coding/export?from=${today}&to=${today}`).set('Cookie', physician).expect(403);
   });
 });
+
+describe('the lab\'s day', () => {
+  it('is the same day for the queue and the export: a study signed and coded at 22:30 in New York belongs to that day, not the next', async () => {
+    const [{ time_zone: before }] = await db.query(`SELECT time_zone FROM lab_settings WHERE id = 1`);
+    await db.query(`UPDATE lab_settings SET time_zone = 'America/New_York' WHERE id = 1`);
+    try {
+      // 03:30 UTC on 4 March 2025 is 22:30 on 3 March in New York (EST, UTC−5 until the second Sunday
+      // of March — US Energy Policy Act of 2005, §110).
+      const at = new Date('2025-03-04T03:30:00.000Z');
+      const record = await recordedStudy(sections());
+      await runSuggestCodes(await insertReportVersion(db, record, { signedBy: physicianId, signedAt: at }));
+      let r = await review(record.id);
+      for (const l of r.lines) r = (await post(`/api/coding/studies/${record.id}/decisions`, coder, { setId: r.set.id, decision: 'accept', lineId: l.id }).expect(200)).body;
+      await post(`/api/coding/studies/${record.id}/complete`, coder, { setId: r.set.id }).expect(200);
+      await db.query(`UPDATE coding_review SET completed_at = $2 WHERE study_id = $1`, [record.id, at]);
+      const [{ queued_at: queuedAt }] = await db.query(`SELECT queued_at FROM coding_review WHERE study_id = $1`, [record.id]);
+      expect(queuedAt.toISOString()).toBe(at.toISOString());
+
+      const queued = async (day: string) =>
+        (await api().get(`/api/coding/queue?status=coded&from=${day}&to=${day}`).set('Cookie', coder).expect(200)).body.items.some((i: { studyId: string }) => i.studyId === record.id);
+      const exported = async (day: string) =>
+        (await api().get(`/api/coding/export?from=${day}&to=${day}&format=json`).set('Cookie', coder).expect(200)).body.items.some((c: { accession: string }) => c.accession === record.accession);
+      expect({ queue: await queued('2025-03-03'), export: await exported('2025-03-03') }).toEqual({ queue: true, export: true });
+      expect({ queue: await queued('2025-03-04'), export: await exported('2025-03-04') }).toEqual({ queue: false, export: false });
+    } finally {
+      await db.query(`UPDATE lab_settings SET time_zone = $1 WHERE id = 1`, [before]);
+    }
+  });
+});
