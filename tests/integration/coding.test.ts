@@ -310,6 +310,19 @@ describe('the coding queue and a study review', () => {
     await post(`/api/coding/studies/${record.id}/codes`, physician, { setId: r.set.id, system, code: good, units: 1, modifiers, reason: 'Missed by the suggestions' }).expect(403);
   });
 
+  it('refuses a decision on a code set that is not this study\'s without saying the report was amended', async () => {
+    const { record } = await signedStudy();
+    const other = await signedStudy();
+    const r = await review(record.id);
+    const theirs = await review(other.record.id);
+    for (const setId of [randomUUID(), theirs.set.id]) {
+      const res = await post(`/api/coding/studies/${record.id}/decisions`, coder, { setId, decision: 'accept', lineId: r.lines[0].id }).expect(409);
+      expect(res.body.type).toMatch(/not-current-set$/);
+      expect(res.body.detail).toMatch(/not this study's current code set/);
+      expect(res.body.detail).not.toMatch(/amended/);
+    }
+  });
+
   it('refuses to complete while a blocking warning stands, even with every code decided', async () => {
     const { record } = await signedStudy(sections({ patientClass: null }));
     let r = await review(record.id);
