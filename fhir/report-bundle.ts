@@ -18,7 +18,7 @@ import type {
 import { z } from 'zod';
 import { displayDecimals, roundForDisplay, roundHalfAway, type QuantityKind } from '../shared/physiology/precision';
 import { nhprKinds, vesselCodes, type NhprKind } from '../shared/physiology/schema';
-import { resolveThresholds, thresholdsSchema, type Thresholds } from '../shared/physiology/thresholds';
+import { cutOffKind, cutOffRule, resolveThresholds, thresholdsSchema, type CutOffRule, type IndexCutOffKey, type Thresholds } from '../shared/physiology/thresholds';
 import type { Flag } from '../shared/physiology/types';
 import { vesselLongName } from '../shared/physiology/vessels';
 import { endotypeName } from '../shared/physiology/labels';
@@ -222,7 +222,7 @@ const text = (v: number, kind: QuantityKind) => v.toFixed(displayDecimals[kind])
  * above for IMR); `borderlineTo`: the upper end of a borderline band above an abnormal-below cut-off.
  */
 function normalRange(
-  rule: 'atOrBelow' | 'below' | 'atOrAbove',
+  rule: CutOffRule,
   cut: number,
   kind: 'ratio' | 'imr',
   borderline?: { upTo: number; inclusive: boolean },
@@ -243,6 +243,15 @@ function normalRange(
     return { low: q(shownAbove(cut, kind)), text: `normal above ${text(cut, kind)}; abnormal at ${text(cut, kind)} or below` };
   }
   return { low: q(shownAtOrAbove(cut, kind)), text: `normal from ${text(cut, kind)}; abnormal below ${text(cut, kind)}` };
+}
+
+const borderlineLimit = { cfr: 'cfrBorderline', mrr: 'mrrBorderline' } as const;
+
+/** An index's reference range, by its cut-off's rule (`cutOffRule`) and, for CFR and MRR, its borderline band. */
+export function referenceRange(key: IndexCutOffKey, t: Thresholds): ObservationReferenceRange {
+  const limit = key === 'cfr' || key === 'mrr' ? borderlineLimit[key] : undefined;
+  const borderline = limit ? { upTo: t[limit], inclusive: cutOffRule[limit] === 'atOrBelow' } : undefined;
+  return normalRange(cutOffRule[key], t[key], cutOffKind(key), borderline);
 }
 
 /**
@@ -302,7 +311,7 @@ function vesselMeasurements(v: VesselInput, t: Thresholds): Measured[] {
       standard: [snomedFfr],
       value: { valueQuantity: quantity(v.ffr, 'ratio') },
       interpretation: interpret(v.ffrFlag, 'low'),
-      referenceRange: [normalRange('atOrBelow', t.ffr, 'ratio')],
+      referenceRange: [referenceRange('ffr', t)],
       method: method(v.ffrSource === 'entered' ? 'methodConsoleValue' : 'methodPressureDerived'),
       note: notes,
       vessel: v,
@@ -313,7 +322,7 @@ function vesselMeasurements(v: VesselInput, t: Thresholds): Measured[] {
       concept: 'restingPdPa',
       value: { valueQuantity: quantity(v.restingPdPa, 'ratio') },
       interpretation: interpret(v.restingPdPaFlag, 'low'),
-      referenceRange: [normalRange('atOrBelow', t.restingPdPa, 'ratio')],
+      referenceRange: [referenceRange('restingPdPa', t)],
       method: method('methodPressureDerived'),
       vessel: v,
     });
@@ -324,7 +333,7 @@ function vesselMeasurements(v: VesselInput, t: Thresholds): Measured[] {
       concept,
       value: { valueQuantity: quantity(v.nhpr, 'ratio') },
       interpretation: interpret(v.nhprFlag, 'low'),
-      referenceRange: [normalRange('atOrBelow', t[threshold], 'ratio')],
+      referenceRange: [referenceRange(threshold, t)],
       method: method('methodConsoleValue'),
       vessel: v,
     });
@@ -335,7 +344,7 @@ function vesselMeasurements(v: VesselInput, t: Thresholds): Measured[] {
       standard: [dicomCfr],
       value: { valueQuantity: quantity(v.cfr, 'ratio') },
       interpretation: interpret(v.cfrFlag, 'low'),
-      referenceRange: [normalRange('below', t.cfr, 'ratio', { upTo: t.cfrBorderline, inclusive: false })],
+      referenceRange: [referenceRange('cfr', t)],
       method: method('methodBolusThermodilution'),
       vessel: v,
     });
@@ -346,7 +355,7 @@ function vesselMeasurements(v: VesselInput, t: Thresholds): Measured[] {
       concept: 'imr',
       value: { valueQuantity: quantity(v.imr, 'imr') },
       interpretation: interpret(v.imrFlag, 'high'),
-      referenceRange: [normalRange('atOrAbove', t.imr, 'imr')],
+      referenceRange: [referenceRange('imr', t)],
       method: method('methodBolusThermodilution', imrMethodConcept[v.imrMethod ?? 'pd-tmn']),
       component: corrected
         ? [{ code: { coding: [localCoding('imrUncorrected')], text: localConcepts.imrUncorrected.display }, valueQuantity: quantity(v.imrUncorrected!, 'imr') }]
@@ -359,7 +368,7 @@ function vesselMeasurements(v: VesselInput, t: Thresholds): Measured[] {
       concept: 'rrr',
       value: { valueQuantity: quantity(v.rrr, 'ratio') },
       interpretation: interpret(v.rrrFlag, 'low'),
-      referenceRange: [normalRange('below', t.rrr, 'ratio')],
+      referenceRange: [referenceRange('rrr', t)],
       method: method('methodBolusThermodilution'),
       vessel: v,
     });
@@ -369,7 +378,7 @@ function vesselMeasurements(v: VesselInput, t: Thresholds): Measured[] {
       concept: 'mrr',
       value: { valueQuantity: quantity(v.mrr, 'ratio') },
       interpretation: interpret(v.mrrFlag, 'low'),
-      referenceRange: [normalRange('below', t.mrr, 'ratio', { upTo: t.mrrBorderline, inclusive: true })],
+      referenceRange: [referenceRange('mrr', t)],
       method: method('methodBolusThermodilution'),
       note: ['Measured with bolus thermodilution; the published cut-offs were set with continuous thermodilution.'],
       vessel: v,

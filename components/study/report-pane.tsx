@@ -9,6 +9,7 @@ import { ErrorState, LoadingState } from '../ui/async-states';
 import { Text } from '../ui/text';
 import { breakpoint, color, radius, space, touchTarget } from '../theme';
 import { useStudyContext } from './study-context';
+import { missingSummary } from '../../shared/report/completeness';
 
 const hiddenKey = 'isobar.report-pane.hidden';
 
@@ -87,7 +88,7 @@ export function ReportPane({ studyId, onHide }: { studyId: string; onHide: () =>
             <Link href={`/studies/${studyId}/report` as '/'} asChild>
               <Pressable role="link" testID="report-pane-missing" style={styles.missing}>
                 <Text variant="caption" weight="semibold" tone="abnormal">
-                  ▲ {p.completeness.missing.length} item{p.completeness.missing.length === 1 ? '' : 's'} missing before signing: see Report & signature
+                  ▲ {missingSummary(p.completeness)} See Report & signature.
                 </Text>
               </Pressable>
             </Link>

@@ -2,7 +2,10 @@ import type { DataSource, EntityManager } from 'typeorm';
 import { filtersUsed, labelOfAction, type AuditFilters, type AuditOutcomeCode, type AuditTrailItem, type AuditTrailPage } from '../../shared/audit/trail';
 import { bigintIdPattern, decodeKeysetCursor, encodeKeysetCursor, type KeysetCursor } from '../db/keyset-cursor';
 import { uuidPattern } from '../../shared/uuid';
-import { recordAudit, type AuditActor, type AuditEntry } from './audit';
+import { auditColumns, auditParameters, recordAudit, type AuditActor, type AuditEntry } from './audit';
+
+/** The SQL type of each of `auditColumns`, in its order. */
+const casts = ['uuid', 'text', 'text', 'text', 'text', 'text', 'text', 'text', 'jsonb'] as const;
 
 type Db = DataSource | EntityManager;
 
@@ -156,6 +159,9 @@ export function pageQuery(
   if (f.action) where.push(`a.action = ${p(f.action)}`);
   // Failures and refusals are rare: the literal lets the planner use the partial index of unsuccessful events.
   if (f.outcome) where.push(`a.outcome = ${p(f.outcome)}${f.outcome === 'success' ? '' : ` AND a.outcome <> 'success'`}`);
+  // A day given alone is the database session's day, as the trail's query promises (shared/audit/trail.ts):
+  // the audit screen sends the instants that bound the reader's own local days, not days; a day here is
+  // for a hand-written query and is not the lab's day (server/db/local-midnight.ts).
   if (f.from) where.push(DAY.test(f.from) ? `a.recorded_at >= ${p(f.from)}::date` : `a.recorded_at >= ${p(f.from)}::timestamptz`);
   if (f.to) where.push(DAY.test(f.to) ? `a.recorded_at < (${p(f.to)}::date + 1)` : `a.recorded_at < ${p(f.to)}::timestamptz`);
   if (cursor) where.push(`(a.recorded_at, a.id) < (${p(cursor.at)}::timestamptz, ${p(cursor.id)}::bigint)`);
@@ -195,11 +201,12 @@ export function pageQuery(
  * know whether another page follows). A statement that fails writes neither.
  */
 function auditInsert(entry: AuditEntry, shown: number, p: Param): string {
+  // `auditParameters` in the order of `auditColumns`; the detail, an object always, gets `returned`.
+  const values = auditParameters({ ...entry, detail: entry.detail ?? {} });
   return `logged AS (
-    INSERT INTO audit_event (actor_user_id, actor_name, actor_role, action, entity_type, entity_id, client_address, outcome, detail)
-    SELECT ${p(entry.actorUserId ?? null)}::uuid, ${p(entry.actorName ?? null)}::text, ${p(entry.actorRole ?? null)}::text, ${p(entry.action)}::text,
-           ${p(entry.entityType ?? null)}::text, ${p(entry.entityId ?? null)}::text, ${p(entry.clientAddress ?? null)}::text, ${p(entry.outcome)}::text,
-           ${p(JSON.stringify(entry.detail ?? {}))}::jsonb || jsonb_build_object('returned', LEAST((SELECT count(*) FROM page), ${p(shown)}::int))
+    INSERT INTO audit_event (${auditColumns})
+    SELECT ${casts.map((cast, i) => `${p(values[i])}::${cast}`).join(', ')}
+           || jsonb_build_object('returned', LEAST((SELECT count(*) FROM page), ${p(shown)}::int))
   )`;
 }
 

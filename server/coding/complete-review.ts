@@ -5,12 +5,7 @@ import { CodingReview } from '../db/entities/coding.entities';
 import type { CodingActor } from './actor';
 import { loadReview } from './queries/review';
 import { lockOpenReview } from './queries/review-lock';
-
-export class ReviewIncompleteError extends Error {
-  constructor(public readonly blockers: string[]) {
-    super(blockers.join(' '));
-  }
-}
+import { ReviewIncompleteError } from './errors';
 
 /**
  * Completes the review: every suggested line has a decision and no blocking warning stands (the

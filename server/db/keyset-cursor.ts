@@ -1,4 +1,5 @@
 import { problemOfText } from '../http/input-safety';
+import { uuidPattern } from '../../shared/uuid';
 
 /**
  * The opaque cursor of keyset pages ordered by `(timestamp, id)` descending (the audit trail, the
@@ -21,8 +22,8 @@ export class InvalidCursorError extends Error {
 
 /** Ids of `bigint` keys (the audit trail). */
 export const bigintIdPattern = /^[1-9]\d{0,17}$/;
-/** Ids of `uuid` keys (studies), lower case as PostgreSQL prints them. */
-export const uuidIdPattern = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/;
+/** Ids of `uuid` keys (studies): the product's UUID form, lower case only, as PostgreSQL prints them and a cursor carries them. */
+export const uuidIdPattern = new RegExp(uuidPattern.source);
 
 const timestampPattern = /^\d{4}-\d{2}-\d{2} \d{2}:\d{2}:\d{2}(\.\d{1,6})?[+-]\d{2}(:?\d{2})?$/;
 

@@ -1,13 +1,12 @@
 import { AttachmentNotFoundError, NoFileError, UnsupportedFileTypeError } from '../attachments/errors';
-import { ReviewIncompleteError } from '../coding/complete-review';
-import { ReviewCompletedError, SetSupersededError } from '../coding/queries/review-lock';
+import { NotCurrentSetError, ReviewCompletedError, ReviewIncompleteError, SetSupersededError } from '../coding/errors';
 import { InvalidCursorError } from '../db/keyset-cursor';
-import { DeliveryBusyError } from '../ehr/queries/delivery-resend';
+import { DeliveryBusyError } from '../ehr/errors';
 import { InvalidRequestError, RecordNotFoundError, ServiceNotAnsweringError, UnacceptableValueError } from '../errors';
 import { IncompleteStudyError, ReauthenticationRequiredError, TransitionRefusedError } from '../reports/errors';
 import { StaleSettingsError } from '../settings/lab-settings';
 import { DuplicateRowIdError } from '../studies/errors';
-import { PatientMismatchError, PatientSharedError, StaleVersionError, StudyLockedError } from '../studies/repository';
+import { PatientMismatchError, PatientSharedError, StaleVersionError, StudyLockedError } from '../studies/errors';
 import type { TransitionRefusal } from '../../shared/study/state-machine';
 import { BadRequestError, HttpError, NotFoundError, ServiceUnavailableError, UnprocessableError } from './problem';
 
@@ -53,6 +52,7 @@ export function httpErrorOf(error: unknown): HttpError | undefined {
   if (error instanceof StaleSettingsError) return new HttpError(409, 'stale-settings', 'The settings have changed since you opened them', error.message, undefined, { current: error.current });
   // Coding review.
   if (error instanceof SetSupersededError) return new HttpError(409, 'suggestions-superseded', 'An addendum changed the suggestions', error.message);
+  if (error instanceof NotCurrentSetError) return new HttpError(409, 'not-current-set', "Not this study's current code set", error.message);
   if (error instanceof ReviewCompletedError) return new HttpError(409, 'review-completed', 'The review is complete', error.message);
   if (error instanceof ReviewIncompleteError) {
     return new HttpError(409, 'review-incomplete', 'The review cannot be completed yet', error.message, error.blockers.map((b) => ({ pointer: '', detail: b })));

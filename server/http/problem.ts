@@ -47,21 +47,21 @@ export class NotFoundError extends HttpError {
   }
 }
 export class ServiceUnavailableError extends HttpError {
-  constructor(detail: string, public readonly extensions: Record<string, unknown> = {}) {
-    super(503, 'service-unavailable', 'Service unavailable', detail);
+  constructor(detail: string, extensions: Record<string, unknown> = {}) {
+    super(503, 'service-unavailable', 'Service unavailable', detail, undefined, extensions);
   }
 }
 
+/** The problem document of an error: its extensions first, so none can replace a member RFC 9457 defines. */
 export function toProblem(error: HttpError, instance?: string): Problem {
   return {
-    ...(error instanceof ServiceUnavailableError ? error.extensions : {}),
+    ...(error.extensions ?? {}),
     type: PROBLEM_BASE + error.slug,
     title: error.title,
     status: error.status,
     detail: error.message,
     ...(instance ? { instance } : {}),
     ...(error.errors?.length ? { errors: error.errors } : {}),
-    ...(error.extensions ?? {}),
   };
 }
 

@@ -19,7 +19,7 @@ import {
   type VesselResult,
 } from '../../shared/physiology';
 import { notUsedSentence } from '../../shared/physiology/not-used';
-import { cite } from '../../shared/physiology/thresholds';
+import { cite, cutOffRule, cutOffSymbol, type CutOffKey } from '../../shared/physiology/thresholds';
 import { endotypeLabel, flagLabel, imrMethodLabel, nhprKindLabel, reportCaution, vasoreactivityOutcomeLabel } from '../../shared/report/labels';
 import { hasPressureIndex } from '../../shared/report/completeness';
 import { reportKindOf, type ReportKind } from '../../shared/report/kind';
@@ -653,31 +653,33 @@ function complicationLines(findings: ReportStudy['findings']): string[] {
 // ---------------------------------------------------------------------------------------------
 // The builder
 
-const thresholdText = (key: ThresholdKey, t: Thresholds): { label: string; value: string } => {
+export const thresholdText = (key: ThresholdKey, t: Thresholds): { label: string; value: string } => {
   const r = (k: ThresholdKey) => q(t[k], 'ratio');
+  // The direction of each cut-off is the one the analysis judges by (`cutOffRule`).
+  const is = (k: CutOffKey) => cutOffSymbol[cutOffRule[k]];
   switch (key) {
     case 'ffr':
-      return { label: 'FFR abnormal', value: `≤ ${r('ffr')}` };
+      return { label: 'FFR abnormal', value: `${is('ffr')} ${r('ffr')}` };
     case 'ffrGreyZoneLow':
       return { label: 'FFR grey zone', value: `${r('ffrGreyZoneLow')}–${r('ffr')}` };
     case 'nhprWholeCycle':
-      return { label: 'Whole-cycle Pd/Pa (entered) abnormal', value: `≤ ${r(key)}` };
+      return { label: 'Whole-cycle Pd/Pa (entered) abnormal', value: `${is(key)} ${r(key)}` };
     case 'nhprDiastolic':
-      return { label: 'Diastolic ratio abnormal', value: `≤ ${r(key)}` };
+      return { label: 'Diastolic ratio abnormal', value: `${is(key)} ${r(key)}` };
     case 'nhprFullCycleMinimum':
-      return { label: 'Full-cycle minimum ratio abnormal', value: `≤ ${r(key)}` };
+      return { label: 'Full-cycle minimum ratio abnormal', value: `${is(key)} ${r(key)}` };
     case 'restingPdPa':
-      return { label: 'Resting whole-cycle Pd/Pa abnormal', value: `≤ ${r(key)}` };
+      return { label: 'Resting whole-cycle Pd/Pa abnormal', value: `${is(key)} ${r(key)}` };
     case 'cfr':
-      return { label: 'CFR abnormal', value: `< ${r('cfr')}` };
+      return { label: 'CFR abnormal', value: `${is('cfr')} ${r('cfr')}` };
     case 'cfrBorderline':
-      return { label: 'CFR borderline', value: `${r('cfr')} to < ${r('cfrBorderline')}` };
+      return { label: 'CFR borderline', value: `${r('cfr')} to ${is('cfrBorderline')} ${r('cfrBorderline')}` };
     case 'imr':
-      return { label: 'IMR abnormal', value: `≥ ${q(t.imr, 'imr')} U` };
+      return { label: 'IMR abnormal', value: `${is('imr')} ${q(t.imr, 'imr')} U` };
     case 'rrr':
-      return { label: 'RRR abnormal', value: `< ${r('rrr')}` };
+      return { label: 'RRR abnormal', value: `${is('rrr')} ${r('rrr')}` };
     case 'mrr':
-      return { label: 'MRR abnormal', value: `< ${r('mrr')}` };
+      return { label: 'MRR abnormal', value: `${is('mrr')} ${r('mrr')}` };
     case 'mrrBorderline':
       return { label: 'MRR borderline', value: `${r('mrr')}–${r('mrrBorderline')}` };
     case 'driftLow':

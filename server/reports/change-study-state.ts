@@ -4,7 +4,8 @@ import { checkTransition, transitions, type StateChange } from '../../shared/stu
 import type { StudyState } from '../../shared/study/vocabulary';
 import { recordAudit, type AuditActor } from '../audit/audit';
 import { RecordNotFoundError } from '../errors';
-import { loadStudy, StaleVersionError, writeSections } from '../studies/repository';
+import { loadStudy, writeSections } from '../studies/repository';
+import { StaleVersionError } from '../studies/errors';
 import type { StudyRecord } from '../../shared/study/schema';
 import { TransitionRefusedError } from './errors';
 import { latestVersion } from './sign-study';

@@ -1,12 +1,12 @@
 import type { FieldIssue } from '../errors';
-import type { MissingItem } from '../../shared/report/completeness';
+import { missingSummary, type MissingItem } from '../../shared/report/completeness';
 import type { TransitionRefusal } from '../../shared/study/state-machine';
 
 /** The study is not complete enough to sign: every missing item at once, each pointing at its field. */
 export class IncompleteStudyError extends Error {
   public readonly issues: FieldIssue[];
   constructor(missing: MissingItem[]) {
-    super(`${missing.length} item${missing.length === 1 ? ' is' : 's are'} missing before the report can be signed.`);
+    super(missingSummary({ missing }) ?? 'Nothing is missing before the report can be signed.');
     this.name = 'IncompleteStudyError';
     this.issues = missing.map((m) => ({ pointer: `/${m.path}`, detail: m.message }));
   }

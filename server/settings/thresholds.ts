@@ -14,6 +14,7 @@ import { recordAudit, type AuditActor } from '../audit/audit';
 import { ThresholdSet } from '../db/entities/measurement.entities';
 import { InvalidRequestError } from '../errors';
 import { labSettings } from './lab-settings';
+import { localMidnight } from '../db/local-midnight';
 
 export interface ThresholdsInForce {
   /** The lab's values where they differ from the published defaults. */
@@ -112,8 +113,8 @@ export async function createThresholdSet(dataSource: DataSource, request: Thresh
     else if (/^\d{4}-\d{2}-\d{2}$/.test(request.effectiveFrom)) {
       if (request.effectiveFrom < today) throw new InvalidRequestError('The thresholds cannot take effect in the past.', [{ pointer: '/effectiveFrom', detail: `effectiveFrom must be today (${today}, ${timeZone}) or later: reports signed before now keep the thresholds they were judged by.` }]);
       if (request.effectiveFrom === today) effective = now;
-      // Local midnight of that day in the lab's time zone, by the database's time-zone rules (SQL).
-      else [{ effective }] = await manager.query(`SELECT ($1::date)::timestamp AT TIME ZONE $2 AS effective`, [request.effectiveFrom, timeZone]);
+      // The first instant of that day in the lab's time zone, by the database's time-zone rules (SQL).
+      else [{ effective }] = await manager.query(`SELECT ${localMidnight('$1::date', '$2')} AS effective`, [request.effectiveFrom, timeZone]);
     } else {
       effective = new Date(request.effectiveFrom);
       if (effective.getTime() < now.getTime() - GRACE_MS) throw new InvalidRequestError('The thresholds cannot take effect in the past.', [{ pointer: '/effectiveFrom', detail: 'effectiveFrom must be now or later: reports signed before now keep the thresholds they were judged by.' }]);

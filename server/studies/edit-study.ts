@@ -2,7 +2,8 @@ import type { DataSource } from 'typeorm';
 import type { PatchStudy, StudyRecord } from '../../shared/study/schema';
 import { recordAudit } from '../audit/audit';
 import { DuplicateRowIdError } from './errors';
-import { patchStudy, PatientMismatchError, StaleVersionError, type AuditActor } from './repository';
+import { patchStudy, type AuditActor } from './repository';
+import { PatientMismatchError, StaleVersionError } from './errors';
 
 /** pg's unique-violation code: a client reused a row id that belongs elsewhere. */
 const isUniqueViolation = (e: unknown) => (e as { code?: string })?.code === '23505';

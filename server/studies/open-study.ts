@@ -1,7 +1,8 @@
 import type { DataSource } from 'typeorm';
 import type { CreateStudy, StudyRecord } from '../../shared/study/schema';
 import { recordAudit } from '../audit/audit';
-import { createStudy, loadStudy, PatientMismatchError, type AuditActor } from './repository';
+import { createStudy, loadStudy, type AuditActor } from './repository';
+import { PatientMismatchError } from './errors';
 
 /**
  * Opens a new study for a patient and returns it as stored. An MRN on file for someone else is

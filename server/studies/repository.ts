@@ -12,7 +12,8 @@ import type {
 import { emptyDetails, emptyFindings, emptySetup } from '../../shared/study/schema';
 import type { StudyState } from '../../shared/study/vocabulary';
 import { isEditable } from '../../shared/study/state-machine';
-import { RecordNotFoundError, UnacceptableValueError, type FieldIssue } from '../errors';
+import { RecordNotFoundError, UnacceptableValueError } from '../errors';
+import { PatientMismatchError, PatientSharedError, StaleVersionError, StudyLockedError } from './errors';
 import { recordAudit, type AuditActor } from '../audit/audit';
 import { codingColumns, detailsColumns, findingsColumns, readSection, selectList, setupColumns, studyValues, vasoreactivityColumns } from './columns';
 import { replaceInterventions } from '../coding/study-interventions';
@@ -27,13 +28,9 @@ import { Patient } from '../db/entities/patient.entity';
 import { Study } from '../db/entities/study.entity';
 import { User } from '../db/entities/user.entity';
 
-/** A write based on an older version than the stored one. Carries the current record for a merge. */
-export class StaleVersionError extends Error {
-  constructor(public readonly current: StudyRecord) {
-    super(`Someone saved version ${current.version} while you were editing. Reload it, or merge your changes into it.`);
-    this.name = 'StaleVersionError';
-  }
-}
+/** Also exported from here for callers that import it with `loadStudy`. */
+export { StaleVersionError } from './errors';
+
 
 type Db = DataSource | EntityManager | PoolClient;
 type Intervention = StudySections['coding']['interventions'][number];
@@ -124,35 +121,8 @@ const norm = (s: string) => s.trim().toLowerCase();
 const differences = (row: PatientRow, p: StudySections['patient']) => demographicFields.filter((f) => norm(String(p[f])) !== norm(String(row[f])));
 const exactlySame = (row: PatientRow, p: StudySections['patient']) => demographicFields.every((f) => String(p[f]) === String(row[f]));
 
-/** The MRN belongs to someone else: the study is not moved to them, and nobody is renamed. */
-export class PatientMismatchError extends Error {
-  public readonly issues: FieldIssue[] = [{ pointer: '/patient/mrn', detail: 'This MRN is on file for another patient. Check the MRN.' }];
-  /**
-   * Says only that the MRN belongs to someone else: naming what differs (the birth date, the given
-   * name) would let anyone with write access probe another patient's demographics one field at a time.
-   */
-  constructor(
-    public readonly mrn: string,
-    public readonly fields: string[],
-  ) {
-    super('This MRN is on file for another patient. Check the MRN and the name.');
-    this.name = 'PatientMismatchError';
-  }
-}
 
-/** The patient's demographics are shared by all their studies: a study may not rewrite them. */
-export class PatientSharedError extends Error {
-  public readonly issues: FieldIssue[];
-  constructor(fields: string[]) {
-    super('This patient has other studies; correct the name, birth date or sex in the hospital record.');
-    this.name = 'PatientSharedError';
-    this.issues = fields.map((f) => ({ pointer: `/patient/${f}`, detail: `This patient has other studies: their ${label(f)} cannot be changed from one study.` }));
-  }
-}
 
-function label(field: string): string {
-  return ({ familyName: 'family name', givenName: 'given name', birthDate: 'birth date', sex: 'sex' } as Record<string, string>)[field] ?? field;
-}
 
 /**
  * Which patient a study belongs to, never renaming anyone else:
@@ -226,12 +196,6 @@ async function removeIfUnused(db: EntityManager, patientId: string | null): Prom
     .execute();
 }
 
-export class StudyLockedError extends Error {
-  constructor(state: string) {
-    super(`A ${state} study cannot be edited; changes to it are made as an addendum.`);
-    this.name = 'StudyLockedError';
-  }
-}
 
 /** Locks the study row for the rest of the transaction and refuses when it is signed. */
 export async function lockEditableStudy(db: EntityManager, id: string): Promise<{ patientId: string; version: number }> {

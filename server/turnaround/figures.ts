@@ -1,6 +1,6 @@
 import type pg from 'pg';
 import type { DataSource, QueryRunner } from 'typeorm';
-import type { AuditEntry } from '../audit/audit';
+import { auditColumns, auditParameters, type AuditEntry } from '../audit/audit';
 import { slots, type Slots } from '../reports/signing-slots';
 import type { Endotype } from '../../shared/physiology/types';
 import {
@@ -86,23 +86,11 @@ const monthsOfRange = `
          ${localMidnight('LEAST((m + interval \'1 month\')::date, $2::date + 1)')} AS hi
   FROM generate_series(date_trunc('month', ($1::date)::timestamp), ($2::date)::timestamp, interval '1 month') m`;
 
-/** The audit entry's values, after the statement's own parameters. */
-const auditParams = (e: AuditEntry) => [
-  e.actorUserId ?? null,
-  e.actorName ?? null,
-  e.actorRole ?? null,
-  e.action,
-  e.entityType ?? null,
-  e.entityId ?? null,
-  e.clientAddress ?? null,
-  e.outcome,
-  JSON.stringify(e.detail ?? {}),
-];
-
 /** The audit row of a request for the figures, its detail completed with the range's studies (`totals`). */
 function auditInsert(e: AuditEntry, after: number): string {
   const $ = (i: number) => `$${after + i}`;
-  return `INSERT INTO audit_event (actor_user_id, actor_name, actor_role, action, entity_type, entity_id, client_address, outcome, detail)
+  // The parameters after the statement's own are `auditParameters`, in the order of `auditColumns`.
+  return `INSERT INTO audit_event (${auditColumns})
           SELECT ${$(1)}::uuid, ${$(2)}::text, ${$(3)}::text, ${$(4)}::text, ${$(5)}::text, ${$(6)}::text, ${$(7)}::text, ${$(8)}::text,
                  ${$(9)}::jsonb || jsonb_build_object('studies', totals.studies)
           FROM totals`;
@@ -161,7 +149,7 @@ export function figuresQueries(query: TurnaroundQuery, settings: TurnaroundSetti
               FROM (SELECT t.start_basis, ${intervalColumns} FROM study_turnaround t WHERE ${rangeCondition}) t
             )${audit ? `, logged AS (${auditInsert(audit, range.length)})` : ''}
             SELECT * FROM totals`,
-      params: audit ? [...range, ...auditParams(audit)] : range,
+      params: audit ? [...range, ...auditParameters({ ...audit, detail: audit.detail ?? {} })] : range,
     },
     {
       name: 'quality',

@@ -94,7 +94,6 @@ export const auditTrailQuerySchema = filterFields
     limit: z.coerce.number().int({ error: 'limit must be a whole number.' }).min(1, { error: 'limit must be at least 1.' }).max(200, { error: 'limit must be at most 200.' }).default(50),
   })
   .refine(orderedRange, rangeError);
-export type AuditTrailQuery = z.infer<typeof auditTrailQuerySchema>;
 
 const auditExportFormats = ['csv', 'fhir'] as const;
 export type AuditExportFormat = (typeof auditExportFormats)[number];
@@ -108,7 +107,6 @@ export const auditExportQuerySchema = filterFields
     cursor: z.string().max(200, { error: 'The page cursor is not valid.' }).optional(),
   })
   .refine(orderedRange, rangeError);
-export type AuditExportQuery = z.infer<typeof auditExportQuerySchema>;
 
 /** The filters as the audit trail records them when it is viewed or exported (only those given). */
 export function filtersUsed(q: AuditFilters): Partial<AuditFilters> {

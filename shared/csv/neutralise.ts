@@ -87,11 +87,6 @@ function writeCell(cell: string, delimiter = ',', forceQuotes = false): string {
   return forceQuotes || needsQuotes(safe, delimiter) ? quote(safe) : safe;
 }
 
-/** Rows to CSV text with every cell neutralised (the product's CSV writer). */
-export function toCsv(rows: ReadonlyArray<ReadonlyArray<string | number | null | undefined>>, delimiter = ',', lineEnd = '\r\n'): string {
-  return rows.map((r) => r.map((c) => writeCell(c === null || c === undefined ? '' : String(c), delimiter)).join(delimiter)).join(lineEnd) + (rows.length ? lineEnd : '');
-}
-
 /** The first of , ; or tab that splits the first line into at least two fields. */
 function guessDelimiter(text: string): string {
   const first = text.split(/\r?\n/, 1)[0] ?? '';

@@ -1,4 +1,5 @@
 import { roundForDisplay, type QuantityKind } from './precision';
+import type { CutOffRule } from './thresholds';
 
 /**
  * Cut-off comparisons made on the value as displayed (see precision.ts), so a flag never contradicts
@@ -23,4 +24,9 @@ export function atOrAbove(v: number, cut: number, kind: QuantityKind | 'raw'): b
 
 export function above(v: number, cut: number, kind: QuantityKind | 'raw'): boolean {
   return shown(v, kind) > cut + EPS * Math.abs(cut);
+}
+
+/** Whether a value lies on the side a cut-off rule names (`cutOffRule` in thresholds.ts). */
+export function onRuleSide(rule: CutOffRule, v: number, cut: number, kind: QuantityKind | 'raw'): boolean {
+  return rule === 'atOrBelow' ? atOrBelow(v, cut, kind) : rule === 'below' ? below(v, cut, kind) : atOrAbove(v, cut, kind);
 }

@@ -1,8 +1,8 @@
-import { above, atOrAbove, atOrBelow, below } from './compare';
+import { above, atOrAbove, onRuleSide } from './compare';
 import { imrText, ratio } from './format';
 import { roundForDisplay } from './precision';
 import type { ProcedureInput, VesselInput } from './schema';
-import type { Thresholds } from './thresholds';
+import { cutOffKind, cutOffRule, type CutOffKey, type Thresholds } from './thresholds';
 import type { Flag, PhysiologyWarning, VesselResult } from './types';
 import {
   checkCfrBelowOne,
@@ -45,8 +45,9 @@ function mean(xs: readonly number[]): number {
   return s / xs.length;
 }
 
-/** A ratio at or below its cut-off is abnormal, judged at the displayed precision. */
-const lowIsAbnormal = (v: number, cut: number): Flag => (atOrBelow(v, cut, 'ratio') ? 'abnormal' : 'normal');
+/** Whether a value is on the abnormal side of a cut-off by the key's rule, judged at the displayed precision. */
+const beyond = (key: CutOffKey, v: number, cut: number): boolean => onRuleSide(cutOffRule[key], v, cut, cutOffKind(key));
+const flagBy = (key: CutOffKey, v: number, cut: number): Flag => (beyond(key, v, cut) ? 'abnormal' : 'normal');
 
 /** Compute every index, flag and quality warning for one vessel. `label` names the vessel in messages. */
 export function analyzeVessel(v: VesselInput, t: Thresholds, label: string, procedure?: ProcedureInput): VesselResult {
@@ -73,7 +74,7 @@ export function analyzeVessel(v: VesselInput, t: Thresholds, label: string, proc
       // Judged on the two values as printed (two decimals), so the message never says "by more than
       // 0.02" of two numbers printed 0.02 apart.
       const apart = Math.abs(roundForDisplay(v.ffr, 'ratio') - roundForDisplay(ffr, 'ratio')) > FFR_MISMATCH_TOLERANCE + 1e-9;
-      const acrossCut = lowIsAbnormal(v.ffr, t.ffr) !== lowIsAbnormal(ffr, t.ffr);
+      const acrossCut = beyond('ffr', v.ffr, t.ffr) !== beyond('ffr', ffr, t.ffr);
       if (apart || acrossCut) {
         warnings.push({
           code: 'ffr-mismatch',
@@ -90,7 +91,7 @@ export function analyzeVessel(v: VesselInput, t: Thresholds, label: string, proc
   if (ffr !== undefined) {
     out.ffr = ffr;
     if (plausible(ffr)) {
-      const flag = lowIsAbnormal(ffr, t.ffr);
+      const flag = flagBy('ffr', ffr, t.ffr);
       out.ffrFlag = flag;
       if (flag === 'abnormal' && atOrAbove(ffr, t.ffrGreyZoneLow, 'ratio')) out.ffrGreyZone = true;
     }
@@ -100,14 +101,14 @@ export function analyzeVessel(v: VesselInput, t: Thresholds, label: string, proc
   if (restPa !== undefined && restPd !== undefined) {
     restingPdPa = restPd / restPa;
     out.restingPdPa = restingPdPa;
-    if (plausible(restingPdPa)) out.restingPdPaFlag = lowIsAbnormal(restingPdPa, t.restingPdPa);
+    if (plausible(restingPdPa)) out.restingPdPaFlag = flagBy('restingPdPa', restingPdPa, t.restingPdPa);
   }
 
   const nhpr = v.nhpr;
   if (nhpr !== undefined) {
     out.nhpr = nhpr.value;
     out.nhprKind = nhpr.kind;
-    if (plausible(nhpr.value)) out.nhprFlag = lowIsAbnormal(nhpr.value, t[nhprCutoffKey(nhpr.kind)]);
+    if (plausible(nhpr.value)) out.nhprFlag = flagBy(nhprCutoffKey(nhpr.kind), nhpr.value, t[nhprCutoffKey(nhpr.kind)]);
   }
 
   if (v.visualStenosisPct !== undefined) out.visualStenosisPct = v.visualStenosisPct;
@@ -140,9 +141,9 @@ export function analyzeVessel(v: VesselInput, t: Thresholds, label: string, proc
     out.cfr = cfr;
     thermodilutionDoubtful = checkCfrBelowOne(cfr, label, warnings);
     if (!thermodilutionDoubtful) {
-      out.cfrFlag = below(cfr, t.cfr, 'ratio')
+      out.cfrFlag = beyond('cfr', cfr, t.cfr)
         ? 'abnormal'
-        : below(cfr, Math.max(t.cfr, t.cfrBorderline), 'ratio')
+        : beyond('cfrBorderline', cfr, Math.max(t.cfr, t.cfrBorderline))
           ? 'borderline'
           : 'normal';
     }
@@ -188,23 +189,23 @@ export function analyzeVessel(v: VesselInput, t: Thresholds, label: string, proc
     }
     if (imr !== undefined) {
       out.imr = imr;
-      if (!thermodilutionDoubtful) out.imrFlag = atOrAbove(imr, t.imr, 'imr') ? 'abnormal' : 'normal';
+      if (!thermodilutionDoubtful) out.imrFlag = flagBy('imr', imr, t.imr);
     }
   }
 
   if (cfr !== undefined && restPd !== undefined && hypPd !== undefined) {
     const rrr = (cfr * restPd) / hypPd;
     out.rrr = rrr;
-    if (!thermodilutionDoubtful) out.rrrFlag = below(rrr, t.rrr, 'ratio') ? 'abnormal' : 'normal';
+    if (!thermodilutionDoubtful) out.rrrFlag = flagBy('rrr', rrr, t.rrr);
   }
   if (cfr !== undefined && ffr !== undefined && restPa !== undefined && hypPa !== undefined) {
     const mrr = (cfr / ffr) * (restPa / hypPa);
     out.mrr = mrr;
     out.mrrMethod = 'bolus-thermodilution';
     if (!thermodilutionDoubtful) {
-      out.mrrFlag = below(mrr, t.mrr, 'ratio')
+      out.mrrFlag = beyond('mrr', mrr, t.mrr)
         ? 'abnormal'
-        : atOrBelow(mrr, Math.max(t.mrr, t.mrrBorderline), 'ratio') && t.mrrBorderline > t.mrr
+        : beyond('mrrBorderline', mrr, Math.max(t.mrr, t.mrrBorderline)) && t.mrrBorderline > t.mrr
           ? 'borderline'
           : 'normal';
     }

@@ -86,6 +86,36 @@ export const defaultThresholds: Readonly<Thresholds> = Object.freeze({
   pdPaMaxPlausible: 1.05,
 });
 
+/** Which side of a cut-off is abnormal: at or below it, below it, or at or above it. */
+export type CutOffRule = 'atOrBelow' | 'below' | 'atOrAbove';
+
+/**
+ * The rule of each index's cut-off, judged at the displayed precision: the analysis applies it, the
+ * report prints it and the FHIR reference range states it. A borderline upper limit's rule says
+ * whether the band reaches it: the CFR band stops below its limit, the MRR band includes it.
+ */
+export const cutOffRule = Object.freeze({
+  ffr: 'atOrBelow',
+  restingPdPa: 'atOrBelow',
+  nhprWholeCycle: 'atOrBelow',
+  nhprDiastolic: 'atOrBelow',
+  nhprFullCycleMinimum: 'atOrBelow',
+  cfr: 'below',
+  cfrBorderline: 'below',
+  imr: 'atOrAbove',
+  rrr: 'below',
+  mrr: 'below',
+  mrrBorderline: 'atOrBelow',
+} as const satisfies Partial<Record<ThresholdKey, CutOffRule>>);
+export type CutOffKey = keyof typeof cutOffRule;
+/** The indices judged against a cut-off (not the borderline limits). */
+export type IndexCutOffKey = Exclude<CutOffKey, 'cfrBorderline' | 'mrrBorderline'>;
+export const indexCutOffKeys: readonly IndexCutOffKey[] = ['ffr', 'restingPdPa', 'nhprWholeCycle', 'nhprDiastolic', 'nhprFullCycleMinimum', 'cfr', 'imr', 'rrr', 'mrr'];
+/** The symbol a rule is printed with before its cut-off. */
+export const cutOffSymbol: Readonly<Record<CutOffRule, string>> = Object.freeze({ atOrBelow: '≤', below: '<', atOrAbove: '≥' });
+/** The precision an index's cut-off is judged at: IMR a whole number, the others ratios. */
+export const cutOffKind = (key: CutOffKey): 'imr' | 'ratio' => (key === 'imr' ? 'imr' : 'ratio');
+
 /** Where each default comes from ([memory] = recalled, not confirmed; [practice] = common practice). */
 export const thresholdSources: Readonly<Record<ThresholdKey, string>> = Object.freeze({
   ffr: 'ESC 2024 chronic coronary syndromes guideline; EAPCI 2020 consensus on INOCA; FAME',

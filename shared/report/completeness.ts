@@ -137,9 +137,12 @@ export function checkCompleteness(study: CompletenessInput): CompletenessResult 
   return { complete: missing.length === 0, missing };
 }
 
-/** The sign button's explanation when items are missing, e.g. "3 items are missing before signing."; null when complete. */
-export function missingSummary(result: CompletenessResult): string | null {
-  if (result.complete) return null;
+/**
+ * What stands between the study and its signature, as the report screen, the study's report pane and
+ * a refused signature say it: "3 items are missing before the report can be signed."; null when none is.
+ */
+export function missingSummary(result: Pick<CompletenessResult, 'missing'>): string | null {
   const n = result.missing.length;
-  return `${n} ${n === 1 ? 'item is' : 'items are'} missing before signing.`;
+  if (n === 0) return null;
+  return `${n} ${n === 1 ? 'item is' : 'items are'} missing before the report can be signed.`;
 }

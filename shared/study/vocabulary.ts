@@ -169,5 +169,4 @@ export const coronarySegments = [
   { code: '15', label: 'Posterior descending (from the circumflex)', vessel: 'PDA' },
 ] as const;
 export const segmentCodes = coronarySegments.map((s) => s.code) as unknown as readonly [string, ...string[]];
-export type SegmentCode = (typeof coronarySegments)[number]['code'];
 export const segmentModelName = 'angiographic segments (CASS / SYNTAX)';

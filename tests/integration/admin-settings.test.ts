@@ -287,6 +287,34 @@ describe('thresholds: effective date, signed reports and addenda', () => {
   });
 });
 
+describe('thresholds: a date\'s first instant in the lab\'s time zone', () => {
+  it('takes effect at the first of two midnights when the clock falls back at midnight', async () => {
+    // Cuba leaves summer time on the first Sunday of November at 01:00 summer time back to 00:00, so
+    // that day's midnight happens twice (IANA time zone database, northamerica, Rule Cuba [memory]).
+    // The next such day within the year a set may be scheduled, found by the database's zone rules:
+    // one whose midnight, an hour earlier, is still that day's midnight.
+    const [found] = await db.query(
+      `SELECT d::date::text AS day, (d::timestamp AT TIME ZONE 'America/Havana') AS later
+         FROM generate_series(((now() AT TIME ZONE 'America/Havana')::date + 1)::timestamp, ((now() AT TIME ZONE 'America/Havana')::date + 365)::timestamp, interval '1 day') d
+        WHERE ((d::timestamp AT TIME ZONE 'America/Havana') - interval '1 hour') AT TIME ZONE 'America/Havana' = d::timestamp
+        LIMIT 1`,
+    );
+    expect(found, 'a day within 365 days whose midnight happens twice in Havana').toBeTruthy();
+    const first = new Date(found.later.getTime() - 3_600_000);
+    const [before] = await db.query(`SELECT time_zone FROM lab_settings WHERE id = 1`);
+    await db.query(`UPDATE lab_settings SET time_zone = 'America/Havana' WHERE id = 1`);
+    try {
+      const imr = (await thresholdsInForce(db, found.later)).values.imr === 35 ? 36 : 35;
+      const res = await send('post', '/api/admin/thresholds', admin).send({ values: { imr }, effectiveFrom: found.day }).expect(201);
+      expect(res.body.set.effectiveFrom).toBe(first.toISOString());
+      expect((await thresholdsInForce(db, first)).values.imr).toBe(imr);
+      expect((await thresholdsInForce(db, new Date(first.getTime() - 1))).values.imr).not.toBe(imr);
+    } finally {
+      await db.query(`UPDATE lab_settings SET time_zone = $1 WHERE id = 1`, [before.time_zone]);
+    }
+  });
+});
+
 describe('lab settings', () => {
   it('checks each field and names it', async () => {
     const view = await api().get('/api/admin/lab-settings').set('Cookie', admin).expect(200);

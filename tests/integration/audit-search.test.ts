@@ -1,4 +1,4 @@
-import { randomUUID } from 'node:crypto';
+import { createHash, randomUUID } from 'node:crypto';
 import request from 'supertest';
 import { parse } from 'csv-parse/sync';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -178,6 +178,23 @@ describe('filters', () => {
     const hourAgo = new Date(Date.now() - 3_600_000).toISOString();
     expect((await trail({ study: study.accession, from: hourAgo })).items.length).toBe(2);
     expect((await trail({ study: study.accession, to: hourAgo })).items).toEqual([]);
+  });
+
+  it('by study finds a request to send the study\'s signed report to the EHR again', async () => {
+    const study = await createStudy(db, { state: 'signed' });
+    const [{ id: signer }] = await db.query(`SELECT id FROM app_user ORDER BY created_at LIMIT 1`);
+    const pdf = Buffer.from('%PDF-1.7\n% invented report\n%%EOF\n');
+    const [{ id: versionId }] = await db.query(
+      `WITH v AS (
+         INSERT INTO report_version (study_id, version_no, study_version, status, narrative_html, narrative_text, snapshot, analysis,
+                                     thresholds, template_version, content_sha256, signed_by, signer_name, signed_at, attestation)
+         VALUES ($1, 1, 1, 'final', '<p>Invented</p>', 'Invented', '{}', '{}', '{}', 'v1', $2, $3, 'Dr Invented', now(), 'Invented attestation') RETURNING id)
+       INSERT INTO report_pdf (report_version_id, pdf, pdf_sha256) SELECT id, $4, $5 FROM v RETURNING report_version_id AS id`,
+      [study.id, randomUUID().replaceAll('-', '').repeat(2), signer, pdf, createHash('sha256').update(pdf).digest('hex')],
+    );
+    await request(stack.url).post(`/api/report-versions/${versionId}/resend`).set('Cookie', chief).set('Origin', stack.url).expect((res) => expect(res.status).toBeLessThan(300));
+    const found = await trail({ study: study.accession, action: 'update' });
+    expect(found.items.map((i) => ({ entityType: i.entityType, actorRole: i.actorRole }))).toEqual([{ entityType: 'report-delivery', actorRole: 'chief' }]);
   });
 
   it('by date range alone: days whole (to included), instants exact (to excluded)', async () => {

@@ -310,6 +310,19 @@ describe('the coding queue and a study review', () => {
     await post(`/api/coding/studies/${record.id}/codes`, physician, { setId: r.set.id, system, code: good, units: 1, modifiers, reason: 'Missed by the suggestions' }).expect(403);
   });
 
+  it('refuses a decision on a code set that is not this study\'s without saying the report was amended', async () => {
+    const { record } = await signedStudy();
+    const other = await signedStudy();
+    const r = await review(record.id);
+    const theirs = await review(other.record.id);
+    for (const setId of [randomUUID(), theirs.set.id]) {
+      const res = await post(`/api/coding/studies/${record.id}/decisions`, coder, { setId, decision: 'accept', lineId: r.lines[0].id }).expect(409);
+      expect(res.body.type).toMatch(/not-current-set$/);
+      expect(res.body.detail).toMatch(/not this study's current code set/);
+      expect(res.body.detail).not.toMatch(/amended/);
+    }
+  });
+
   it('refuses to complete while a blocking warning stands, even with every code decided', async () => {
     const { record } = await signedStudy(sections({ patientClass: null }));
     let r = await review(record.id);
@@ -386,5 +399,34 @@ describe('the export of reviewed codes', () => {
     expect(audit.detail).toMatchObject({ from: today, to: today, format: 'csv' });
     await api().get(`/api/coding/export?from=${today}&to=2000-01-01`).set('Cookie', coder).expect(400);
     await api().get(`/api/coding/export?from=${today}&to=${today}`).set('Cookie', physician).expect(403);
+  });
+});
+
+describe('the lab\'s day', () => {
+  it('is the same day for the queue and the export: a study signed and coded at 22:30 in New York belongs to that day, not the next', async () => {
+    const [{ time_zone: before }] = await db.query(`SELECT time_zone FROM lab_settings WHERE id = 1`);
+    await db.query(`UPDATE lab_settings SET time_zone = 'America/New_York' WHERE id = 1`);
+    try {
+      // 03:30 UTC on 4 March 2025 is 22:30 on 3 March in New York (EST, UTC−5 until the second Sunday
+      // of March — US Energy Policy Act of 2005, §110).
+      const at = new Date('2025-03-04T03:30:00.000Z');
+      const record = await recordedStudy(sections());
+      await runSuggestCodes(await insertReportVersion(db, record, { signedBy: physicianId, signedAt: at }));
+      let r = await review(record.id);
+      for (const l of r.lines) r = (await post(`/api/coding/studies/${record.id}/decisions`, coder, { setId: r.set.id, decision: 'accept', lineId: l.id }).expect(200)).body;
+      await post(`/api/coding/studies/${record.id}/complete`, coder, { setId: r.set.id }).expect(200);
+      await db.query(`UPDATE coding_review SET completed_at = $2 WHERE study_id = $1`, [record.id, at]);
+      const [{ queued_at: queuedAt }] = await db.query(`SELECT queued_at FROM coding_review WHERE study_id = $1`, [record.id]);
+      expect(queuedAt.toISOString()).toBe(at.toISOString());
+
+      const queued = async (day: string) =>
+        (await api().get(`/api/coding/queue?status=coded&from=${day}&to=${day}`).set('Cookie', coder).expect(200)).body.items.some((i: { studyId: string }) => i.studyId === record.id);
+      const exported = async (day: string) =>
+        (await api().get(`/api/coding/export?from=${day}&to=${day}&format=json`).set('Cookie', coder).expect(200)).body.items.some((c: { accession: string }) => c.accession === record.accession);
+      expect({ queue: await queued('2025-03-03'), export: await exported('2025-03-03') }).toEqual({ queue: true, export: true });
+      expect({ queue: await queued('2025-03-04'), export: await exported('2025-03-04') }).toEqual({ queue: false, export: false });
+    } finally {
+      await db.query(`UPDATE lab_settings SET time_zone = $1 WHERE id = 1`, [before]);
+    }
   });
 });

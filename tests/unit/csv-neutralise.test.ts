@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { neutraliseCell, neutraliseCsv, parseCsv, quoteAlsoWhen, toCsv } from '../../shared/csv/neutralise';
+import { csvExportOptions, neutraliseCell, neutraliseCsv, parseCsv, quoteAlsoWhen } from '../../shared/csv/neutralise';
 import { stringify } from 'csv-stringify/sync';
 
 // OWASP "CSV Injection": cells starting with = + - @, tab or carriage return are read as formulas
@@ -24,7 +24,7 @@ describe('cells a spreadsheet would still read as a formula', () => {
     expect(neutraliseCell(' 3.2')).toBe(' 3.2');
   });
   it('quotes a cell holding a semicolon or a tab even in a comma-separated file', () => {
-    expect(toCsv([["Bob;=cmd|' /C calc'!A0", 'x\ty', 'plain']])).toBe('"Bob;\'=cmd|\' /C calc\'!A0","x\ty",plain\r\n');
+    expect(stringify([["Bob;=cmd|' /C calc'!A0", 'x\ty', 'plain']], csvExportOptions)).toBe('"Bob;\'=cmd|\' /C calc\'!A0","x\ty",plain\r\n');
     expect(stringify([["Bob;=cmd"]], { quoted_match: quoteAlsoWhen, cast: { string: neutraliseCell } })).toBe('"Bob;\'=cmd"\n');
   });
   it('neutralises each piece after a comma, semicolon or tab: a spreadsheet splitting there sees a new cell (OWASP, CSV Injection)', () => {
@@ -46,7 +46,7 @@ describe('CSV files', () => {
     expect(parseCsv('a,"b,""c""",d\n', ',')[0].cells).toEqual(['a', 'b,"c"', 'd']);
     expect(neutraliseCsv('a,"b,""c"""\n')).toBe('a,"b,""c"""\n');
   });
-  it('writes new CSV with the same rule', () => {
-    expect(toCsv([['id', 'value'], ['=x', -3.2], ['a,b', null]])).toBe(`id,value\r\n'=x,-3.2\r\n"a,b",\r\n`);
+  it('writes new CSV with the same rule (csv-stringify with the export options)', () => {
+    expect(stringify([['id', 'value'], ['=x', -3.2], ['a,b', null]], csvExportOptions)).toBe(`id,value\r\n'=x,-3.2\r\n"a,b",\r\n`);
   });
 });

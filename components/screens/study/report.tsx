@@ -3,6 +3,7 @@ import { StyleSheet, TextInput, View } from 'react-native';
 import { Link, useLocalSearchParams } from 'expo-router';
 import { useReportAction, useReportPreview } from '../../data/report-query';
 import type { ThresholdsChoice } from '../../../shared/report/thresholds-basis';
+import { missingSummary } from '../../../shared/report/completeness';
 import { RadioChips } from '../../ui/radio-chips';
 import { ApiError } from '../../data/api';
 import { SectionCard } from '../../study/section-card';
@@ -44,7 +45,7 @@ export default function ReportSection() {
         ) : (
           <View style={styles.missing} role="alert" testID="report-missing">
             <Text weight="semibold" tone="abnormal">
-              {p.completeness.missing.length} item{p.completeness.missing.length === 1 ? '' : 's'} missing before the report can be signed:
+              {missingSummary(p.completeness)}
             </Text>
             {p.completeness.missing.map((m) => (
               <Link key={m.path} href={`/studies/${id}/${m.section === 'details' || m.section === 'patient' ? '' : m.section === 'vessels' ? 'vessels' : m.section}` as '/'}>

@@ -1,6 +1,8 @@
 import type { EntityManager } from 'typeorm';
 import type { CodingQueueQuery, QueueItem, ReviewStatus } from '../../../shared/coding/review';
 import { CodingReview } from '../../db/entities/coding.entities';
+import { localMidnight } from '../../db/local-midnight';
+import { labSettings } from '../../settings/lab-settings';
 
 /**
  * The coding queue: studies whose review is open (or in the status asked for), oldest first by when
@@ -20,8 +22,12 @@ export async function listQueue(manager: EntityManager, query: CodingQueueQuery,
     .addSelect(`(SELECT count(*)::int FROM jsonb_array_elements(cs.warnings) w WHERE (w ->> 'blocking')::boolean)`, 'blocking_warnings')
     .where(query.status === 'open' ? `r.status <> 'coded'` : 'r.status = :status', { status: query.status });
   if (query.operatorId) qb.andWhere('s.operatorId = :operatorId', { operatorId: query.operatorId });
-  if (query.from) qb.andWhere('r.queuedAt >= CAST(:from AS date)', { from: query.from });
-  if (query.to) qb.andWhere('r.queuedAt < CAST(:to AS date) + 1', { to: query.to });
+  // Days are the lab's calendar days, cut as the export of coded studies cuts them.
+  if (query.from || query.to) {
+    const { timeZone } = await labSettings(manager);
+    if (query.from) qb.andWhere(`r.queuedAt >= ${localMidnight('CAST(:from AS date)', ':timeZone')}`, { from: query.from, timeZone });
+    if (query.to) qb.andWhere(`r.queuedAt < ${localMidnight('CAST(:to AS date) + 1', ':timeZone')}`, { to: query.to, timeZone });
+  }
   const { entities, raw } = await qb.orderBy('r.queuedAt', 'ASC').addOrderBy('r.studyId').limit(200).getRawAndEntities<{ code_count: number; blocking_warnings: number }>();
   return entities.map((r, i) => {
     const study = r.study!;

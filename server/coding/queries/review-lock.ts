@@ -1,18 +1,7 @@
 import type { EntityManager } from 'typeorm';
-import { CodingReview } from '../../db/entities/coding.entities';
+import { CodeSuggestionSet, CodingReview } from '../../db/entities/coding.entities';
 import { RecordNotFoundError } from '../../errors';
-
-export class SetSupersededError extends Error {
-  constructor(versionNo: number) {
-    super(`The report has been amended (version ${versionNo}) and the codes were suggested again. Reload the review.`);
-  }
-}
-
-export class ReviewCompletedError extends Error {
-  constructor() {
-    super('This study has been coded; its codes change only when an addendum puts it back on the queue.');
-  }
-}
+import { NotCurrentSetError, ReviewCompletedError, SetSupersededError } from '../errors';
 
 /**
  * Locks a study's review for the rest of the transaction (`FOR UPDATE OF` the review row only) and
@@ -27,7 +16,11 @@ export async function lockOpenReview(manager: EntityManager, studyId: string, se
     .setLock('pessimistic_write', undefined, ['r'])
     .getOne();
   if (!review) throw new RecordNotFoundError('This study has no code suggestions yet.');
-  if (review.currentSetId !== setId) throw new SetSupersededError(review.currentSet!.versionNo);
+  if (review.currentSetId !== setId) {
+    // Only a set this study had before is one an addendum replaced; any other id is not this study's.
+    const older = await manager.exists(CodeSuggestionSet, { where: { id: setId, studyId } });
+    throw older ? new SetSupersededError(review.currentSet!.versionNo) : new NotCurrentSetError();
+  }
   if (review.status === 'coded') throw new ReviewCompletedError();
   return { status: review.status, setId: review.currentSetId };
 }

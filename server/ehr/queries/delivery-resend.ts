@@ -3,12 +3,7 @@ import { ReportDelivery } from '../../db/entities/report-delivery.entity';
 import { ReportVersion } from '../../db/entities/report-version.entity';
 import { RecordNotFoundError } from '../../errors';
 import { enqueueDelivery, insertDeliveryRow } from '../enqueue-delivery';
-
-export class DeliveryBusyError extends Error {
-  constructor() {
-    super('This report is being sent to the EHR right now; look again in a minute.');
-  }
-}
+import { DeliveryBusyError } from '../errors';
 
 /**
  * Sends a signed report version again: the delivery goes back to queued, its time limit starts anew,

@@ -66,7 +66,8 @@ describe('completeness before signing', () => {
     expect(drift.field).toBe('vessels.0.driftPdPa');
     expect(drift.section).toBe('vessels');
     expect(drift.message).toMatch(/vessel 1 \(LAD\).*not done/);
-    expect(missingSummary(result)).toBe('9 items are missing before signing.');
+    expect(missingSummary(result)).toBe('9 items are missing before the report can be signed.');
+    expect(missingSummary({ missing: result.missing.slice(0, 1) })).toBe('1 item is missing before the report can be signed.');
   });
 
   it('a vessel without a pressure index (transit times only) needs no drift check', () => {
