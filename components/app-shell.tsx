@@ -8,7 +8,8 @@ import { Text } from './ui/text';
 import { useIsWide } from './ui/layout';
 import { useActiveInView } from './ui/use-active-in-view';
 import { color, radius, space, touchTarget } from './theme';
-import { useSignOut, type Me } from './data/me-query';
+import type { Me } from '../shared/auth/users';
+import { useSignOut } from './data/me-query';
 
 interface NavItem {
   href: '/' | '/coding' | '/turnaround' | '/deliveries' | '/audit' | '/admin' | '/caught-mail';

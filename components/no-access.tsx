@@ -4,7 +4,8 @@ import { Button } from './ui/button';
 import { Center, Content, Screen } from './ui/layout';
 import { Text } from './ui/text';
 import { color, radius, space } from './theme';
-import { useSignOut, type Me } from './data/me-query';
+import type { Me } from '../shared/auth/users';
+import { useSignOut } from './data/me-query';
 
 /** A signed-in person whose account carries no Isobar role: say so plainly and say what to do. */
 export function NoAccess({ me }: { me: Me }) {

@@ -14,7 +14,6 @@ import { sessionMiddleware } from './auth/session';
 import { enforceSessionLimit, requireSameOrigin } from './auth/request-guards';
 import { healthRoutes } from './routes/health';
 import { authRoutes } from './routes/auth';
-import { recordRoutes } from './routes/records';
 import { auditRoutes } from './routes/audit';
 import { studyRoutes } from './routes/studies';
 import { settingsRoutes } from './routes/settings';
@@ -49,7 +48,6 @@ export function apiRoutes(deps: Required<Pick<AppDeps, 'config' | 'dataSource' |
     ...settingsRoutes(deps),
     ...adminRoutes(deps),
     ...reportRoutes(deps),
-    ...recordRoutes(deps),
     ...auditRoutes(deps),
     ...deliveryRoutes(deps),
     ...codingRoutes(deps),

@@ -1,17 +1,6 @@
 import { useInfiniteQuery } from '@tanstack/react-query';
-import type { AuditActionCode, AuditExportFormat, AuditOutcomeCode, AuditTrailPage } from '../../shared/audit/trail';
+import type { AuditExportFormat, AuditFilters, AuditTrailPage } from '../../shared/audit/trail';
 import { apiFetch } from './api';
-
-export interface AuditFilters {
-  user?: string;
-  patient?: string;
-  study?: string;
-  action?: AuditActionCode;
-  outcome?: AuditOutcomeCode;
-  /** Instants with their offset (from inclusive, to exclusive), or days. */
-  from?: string;
-  to?: string;
-}
 
 const auditKeys = {
   all: ['audit-trail'] as const,

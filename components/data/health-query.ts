@@ -1,11 +1,6 @@
 import { useQuery } from '@tanstack/react-query';
+import type { Health } from '../../shared/health';
 import { apiFetch } from './api';
-
-export interface Health {
-  status: 'ok';
-  database: 'up';
-  time: string;
-}
 
 const healthKeys = { all: ['health'] as const };
 

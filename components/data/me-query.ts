@@ -1,17 +1,7 @@
 import { queryOptions, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
-import type { Permission, Role } from '../../shared/auth/permissions';
+import type { Me } from '../../shared/auth/users';
 import { apiFetch, ApiError } from './api';
 import { announceSignOut, clearAllDrafts, unsentStudies } from '../study/draft-store';
-
-export interface Me {
-  id: string;
-  displayName: string;
-  email: string;
-  role: Role | null;
-  permissions: Permission[];
-  home: string | null;
-  sessionExpiresAt: string;
-}
 
 const meKeys = { all: ['me'] as const };
 

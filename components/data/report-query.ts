@@ -1,5 +1,6 @@
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import type { ReportPreview } from '../../shared/report/preview';
+import type { SignBody, TransitionBody } from '../../shared/report/requests';
 import type { ThresholdsChoice } from '../../shared/report/thresholds-basis';
 import type { StudyAction } from '../../shared/study/state-machine';
 import { apiFetch } from './api';
@@ -19,10 +20,14 @@ export function useReportPreview(studyId: string, thresholds: ThresholdsChoice =
 export function useReportAction(studyId: string) {
   const client = useQueryClient();
   return useMutation({
-    mutationFn: ({ action, version, reason, thresholds }: { action: StudyAction; version: number; reason?: string; thresholds?: ThresholdsChoice }) =>
-      action === 'sign' || action === 'sign-addendum'
-        ? apiFetch(`/studies/${studyId}/sign`, { method: 'POST', body: JSON.stringify({ version, ...(reason ? { reason } : {}), ...(thresholds ? { thresholds } : {}) }) })
-        : apiFetch(`/studies/${studyId}/transitions`, { method: 'POST', body: JSON.stringify({ action, version, ...(reason ? { reason } : {}) }) }),
+    mutationFn: ({ action, version, reason, thresholds }: { action: StudyAction } & SignBody) => {
+      if (action === 'sign' || action === 'sign-addendum') {
+        const body: SignBody = { version, ...(reason ? { reason } : {}), ...(thresholds ? { thresholds } : {}) };
+        return apiFetch(`/studies/${studyId}/sign`, { method: 'POST', body: JSON.stringify(body) });
+      }
+      const body: TransitionBody = { action, version, ...(reason ? { reason } : {}) };
+      return apiFetch(`/studies/${studyId}/transitions`, { method: 'POST', body: JSON.stringify(body) });
+    },
     retry: false,
     onSettled: () => client.invalidateQueries({ queryKey: ['studies'] }),
   });

@@ -1,6 +1,7 @@
 import { infiniteQueryOptions, useInfiniteQuery, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import type { AttachmentSummary, CreateStudy, StudyRecord } from '../../shared/study/schema';
 import type { WorklistItem, WorklistPage } from '../../shared/study/worklist';
+import type { OperatorList } from '../../shared/study/operators';
 import type { StudyState } from '../../shared/study/vocabulary';
 import { apiFetch, ApiError } from './api';
 
@@ -54,7 +55,7 @@ export function useStudy(id: string) {
 export function useOperators() {
   return useQuery({
     queryKey: studyKeys.operators,
-    queryFn: () => apiFetch<{ items: { id: string; displayName: string }[] }>('/operators'),
+    queryFn: () => apiFetch<OperatorList>('/operators'),
     staleTime: 5 * 60_000,
   });
 }

@@ -1,13 +1,7 @@
 import { useQuery } from '@tanstack/react-query';
 import { defaultThresholds, type Thresholds } from '../../shared/physiology';
+import type { ThresholdsInForce } from '../../shared/settings/threshold-ranges';
 import { apiFetch } from './api';
-
-export interface ThresholdsInForce {
-  overrides: Partial<Thresholds>;
-  values: Thresholds;
-  setId: number | null;
-  effectiveFrom: string | null;
-}
 
 export const thresholdKeys = { inForce: ['settings', 'thresholds'] as const };
 

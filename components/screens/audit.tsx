@@ -8,8 +8,8 @@ import { Button } from '../ui/button';
 import { Text } from '../ui/text';
 import { formatDateTime } from '../format';
 import { color, font, radius, space, touchTarget, type } from '../theme';
-import { auditExportUrl, useAuditTrail, type AuditFilters } from '../data/audit-query';
-import { auditActionLabel, auditActions, auditOutcomes, type AuditActionCode, type AuditOutcomeCode, type AuditTrailItem } from '../../shared/audit/trail';
+import { auditExportUrl, useAuditTrail } from '../data/audit-query';
+import { auditActionLabel, auditActions, auditOutcomes, type AuditActionCode, type AuditFilters, type AuditOutcomeCode, type AuditTrailItem } from '../../shared/audit/trail';
 import { roleLabel, isRole } from '../../shared/auth/permissions';
 
 const isDay = (v: string) => /^\d{4}-\d{2}-\d{2}$/.test(v) && !Number.isNaN(Date.parse(`${v}T00:00:00Z`));

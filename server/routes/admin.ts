@@ -8,8 +8,9 @@ import { parseOrThrow } from '../http/validate';
 import { activateTemplateVersion, defaultsFrom, updateLabSettings } from '../settings/lab-settings';
 import { readLabSettings, readRoleMapping, readTemplate, readTemplateChoice, readThresholds, templateChoice } from '../settings/read-settings';
 import { createThresholdSet } from '../settings/thresholds';
+import { listUsers } from '../users/list-users';
 
-/** The admin's settings: thresholds with effective dates, lab settings, report templates, the role mapping. Every read and change is audited. */
+/** The admin's settings: thresholds with effective dates, lab settings, report templates, the role mapping; the user list. Every read and change is audited. */
 export function adminRoutes({ config, dataSource }: { config: Config; dataSource: DataSource }): ApiRoute[] {
   const defaults = defaultsFrom(config);
   return [
@@ -102,6 +103,17 @@ export function adminRoutes({ config, dataSource }: { config: Config; dataSource
           const body = parseOrThrow(templateActivationSchema, req.body);
           await activateTemplateVersion(dataSource, body.version, auditContext(req), defaults);
           res.json(await templateChoice(dataSource, defaults));
+        },
+      ],
+    },
+    {
+      method: 'get',
+      path: '/admin/users',
+      access: 'admin:manage',
+      summary: 'Everyone who has an account, with their role',
+      handlers: [
+        async (req, res) => {
+          res.json(await listUsers(dataSource, auditContext(req)));
         },
       ],
     },

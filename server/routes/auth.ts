@@ -3,6 +3,7 @@ import type { RequestHandler } from 'express';
 import type { DataSource } from 'typeorm';
 import type { Config } from '../config';
 import { homeOf, permissionsOf } from '../../shared/auth/permissions';
+import type { Me } from '../../shared/auth/users';
 import { auditContext } from '../audit/audit';
 import { authTimeOf, mapRole, pkce, type IdentityProvider } from '../auth/oidc';
 import { provisionUser } from '../auth/provision-user';
@@ -177,7 +178,7 @@ export function authRoutes(deps: { config: Config; dataSource: DataSource; idp: 
       handlers: [
         (req, res) => {
           const auth = req.session.auth!;
-          res.json({
+          const me: Me = {
             id: auth.userId,
             displayName: auth.displayName,
             email: auth.email,
@@ -185,7 +186,8 @@ export function authRoutes(deps: { config: Config; dataSource: DataSource; idp: 
             permissions: permissionsOf(auth.role),
             home: auth.role ? homeOf[auth.role] : null,
             sessionExpiresAt: new Date(auth.signedInAt + config.session.maxHours * 3_600_000).toISOString(),
-          });
+          };
+          res.json(me);
         },
       ],
     },

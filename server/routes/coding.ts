@@ -14,9 +14,12 @@ import { readReview } from '../coding/read-review';
 import { searchCodingQueue } from '../coding/search-queue';
 
 const studyIdOf = (req: Request) => uuidParam(req, 'study');
+/** Who decides: the signed-in user (every coding route's guard admits only them), named in the audit trail. */
 const actorOf = (req: Request): CodingActor => {
-  const ctx = auditContext(req);
-  return { ...ctx, actorUserId: ctx.actorUserId!, actorName: ctx.actorName ?? 'Unknown user' };
+  const auth = req.session.auth;
+  // Reaching here without a user means a route lost its guard: refuse rather than record an unnamed actor.
+  if (!auth) throw new Error('A coding change reached its route without a signed-in user.');
+  return { ...auditContext(req), actorUserId: auth.userId, actorName: auth.displayName };
 };
 
 /** The coding queue and a study's code review. Coders review; the chief reads. Every read and change is audited. */

@@ -1,4 +1,5 @@
 import type { DataSource } from 'typeorm';
+import type { Health } from '../../shared/health';
 import { databaseAnswers } from '../db/data-source';
 import { ServiceUnavailableError } from '../http/problem';
 import type { ApiRoute } from '../http/routes';
@@ -16,7 +17,8 @@ export function healthRoutes({ dataSource }: { dataSource: DataSource }): ApiRou
           if (!(await databaseAnswers(dataSource))) {
             throw new ServiceUnavailableError('The database is not answering.', { database: 'down' });
           }
-          res.json({ status: 'ok', database: 'up', time: new Date().toISOString() });
+          const health: Health = { status: 'ok', database: 'up', time: new Date().toISOString() };
+          res.json(health);
         },
       ],
     },

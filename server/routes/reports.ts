@@ -1,33 +1,19 @@
 import express, { type Request } from 'express';
 import type { DataSource } from 'typeorm';
-import { z } from 'zod';
-import { thresholdsChoices } from '../../shared/report/thresholds-basis';
-import { stateChanges } from '../../shared/study/state-machine';
+import { previewQuerySchema, signBodySchema, transitionBodySchema, verifyBodySchema } from '../../shared/report/requests';
 import { auditContext } from '../audit/audit';
 import type { Config } from '../config';
 import type { ApiRoute } from '../http/routes';
 import { parseOrThrow, uuidParam } from '../http/validate';
 import { changeStudyState } from '../reports/change-study-state';
 import { exportReportPdf } from '../reports/export-report-pdf';
-import { ReauthenticationRequiredError } from '../reports/errors';
 import { identifyReport } from '../reports/identify-report';
 import { readReportPreview } from '../reports/read-report-preview';
+import { requireRecentSignIn } from '../reports/require-recent-sign-in';
 import { signStudy } from '../reports/sign-study';
 import { SIGNING_SLOTS, slots } from '../reports/signing-slots';
 
 const idParam = (req: Request, what = 'study') => uuidParam(req, what);
-
-const reasonSchema = z.string({ error: 'reason must be text.' }).trim().max(1000, { error: 'The reason is too long (at most 1000 characters).' }).nullable().optional();
-const versionSchema = z.number({ error: 'version is required: the study version you previewed.' }).int().min(1);
-const thresholdsChoiceSchema = z.enum(thresholdsChoices, { error: 'thresholds must be "original" (keep the amended version\'s) or "current" (those in force now).' });
-const signSchema = z.strictObject({ version: versionSchema, reason: reasonSchema, thresholds: thresholdsChoiceSchema.optional() });
-const previewQuerySchema = z.object({ thresholds: thresholdsChoiceSchema.optional() });
-const transitionSchema = z.strictObject({
-  action: z.enum(stateChanges, { error: `action must be ${stateChanges.slice(0, -1).join(', ')} or ${stateChanges.at(-1)}.` }),
-  version: versionSchema,
-  reason: reasonSchema,
-});
-const verifySchema = z.strictObject({ fingerprint: z.string({ error: 'fingerprint must be text.' }).max(200) });
 
 /** Report preview, hand-off, signing, addenda, signed PDFs and verification. */
 export function reportRoutes({ config, dataSource }: { config: Config; dataSource: DataSource }): ApiRoute[] {
@@ -54,7 +40,7 @@ export function reportRoutes({ config, dataSource }: { config: Config; dataSourc
       handlers: [
         async (req, res) => {
           const id = idParam(req);
-          const body = parseOrThrow(transitionSchema, req.body);
+          const body = parseOrThrow(transitionBodySchema, req.body);
           const auth = req.session.auth!;
           const record = await changeStudyState(dataSource, { studyId: id, action: body.action, studyVersion: body.version, reason: body.reason, role: auth.role, audit: auditContext(req) });
           res.json(record);
@@ -69,12 +55,9 @@ export function reportRoutes({ config, dataSource }: { config: Config; dataSourc
       handlers: [
         async (req, res) => {
           const id = idParam(req);
-          const body = parseOrThrow(signSchema, req.body);
+          const body = parseOrThrow(signBodySchema, req.body);
           const auth = req.session.auth!;
-          // An electronic signature confirms who signs: a sign-in older than the limit must be renewed.
-          if (auth.authenticatedAt === undefined || Date.now() - auth.authenticatedAt > config.signReauthMinutes * 60_000) {
-            throw new ReauthenticationRequiredError(config.signReauthMinutes, `/studies/${id}/report`);
-          }
+          requireRecentSignIn(auth, config.signReauthMinutes, `/studies/${id}/report`);
           const version = await signing.run(() =>
             signStudy(dataSource, {
               studyId: id,
@@ -114,7 +97,7 @@ export function reportRoutes({ config, dataSource }: { config: Config; dataSourc
       handlers: [
         express.raw({ type: 'application/pdf', limit: config.attachments.maxBytes }),
         async (req, res) => {
-          const evidence = Buffer.isBuffer(req.body) ? { pdf: req.body } : parseOrThrow(verifySchema, req.body);
+          const evidence = Buffer.isBuffer(req.body) ? { pdf: req.body } : parseOrThrow(verifyBodySchema, req.body);
           res.json(await identifyReport(dataSource, evidence, auditContext(req)));
         },
       ],

@@ -15,6 +15,7 @@ import { analyseStudy } from '../studies/analyse-study';
 import { editStudy } from '../studies/edit-study';
 import { listOperators } from '../studies/list-operators';
 import { openStudy } from '../studies/open-study';
+import { readAwaitingSignature } from '../studies/read-awaiting-signature';
 import { readStudy } from '../studies/read-study';
 import { worklistPageJson } from '../studies/worklist';
 
@@ -142,6 +143,17 @@ export function studyRoutes({ config, dataSource, storage }: { config: Config; d
         async (req, res) => {
           await removeAttachment(dataSource, storage, idOf(req), auditContext(req));
           res.status(204).end();
+        },
+      ],
+    },
+    {
+      method: 'get',
+      path: '/awaiting-signature',
+      access: 'study:read',
+      summary: 'Studies awaiting signature, oldest first: those you operated, and all of them',
+      handlers: [
+        async (req, res) => {
+          res.json(await readAwaitingSignature(dataSource, req.session.auth!.userId, auditContext(req)));
         },
       ],
     },

@@ -9,6 +9,7 @@ import {
   type ThresholdOverview,
   type ThresholdSetRequest,
   type ThresholdSetSummary,
+  type ThresholdsInForce,
 } from '../../shared/settings/threshold-ranges';
 import { recordAudit, type AuditActor } from '../audit/audit';
 import { ThresholdSet } from '../db/entities/measurement.entities';
@@ -16,15 +17,7 @@ import { InvalidRequestError } from '../errors';
 import { labSettings } from './lab-settings';
 import { localMidnight } from '../db/local-midnight';
 
-export interface ThresholdsInForce {
-  /** The lab's values where they differ from the published defaults. */
-  overrides: Partial<Thresholds>;
-  /** Every threshold the analysis uses: defaults with the overrides applied. */
-  values: Thresholds;
-  /** The set in force, or null when the published defaults are used. */
-  setId: number | null;
-  effectiveFrom: string | null;
-}
+export type { ThresholdsInForce };
 
 /**
  * The lab's thresholds in force at a moment (now by default): the newest set whose effective date

@@ -1,18 +1,11 @@
 import type { DataSource } from 'typeorm';
+import type { UserList } from '../../shared/auth/users';
 import { recordAudit } from '../audit/audit';
 import { User } from '../db/entities/user.entity';
 import type { AuditActor } from '../studies/repository';
 
-export interface UserListItem {
-  id: string;
-  displayName: string;
-  email: string;
-  role: string | null;
-  lastSignInAt: string | null;
-}
-
 /** Everyone who has an account, with their role, by name; the ids shown are recorded in the audit trail. */
-export async function listUsers(dataSource: DataSource, actor: AuditActor): Promise<{ items: UserListItem[] }> {
+export async function listUsers(dataSource: DataSource, actor: AuditActor): Promise<UserList> {
   const rows = await dataSource.manager.find(User, {
     select: { id: true, displayName: true, email: true, role: true, lastSignInAt: true },
     order: { displayName: 'ASC', id: 'ASC' },

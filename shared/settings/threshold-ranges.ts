@@ -129,3 +129,14 @@ export interface ThresholdOverview {
   /** Every set, newest effective date first. */
   history: ThresholdSetSummary[];
 }
+
+/** GET /api/settings/thresholds: the thresholds in force, as the server's analysis and the live form use them. */
+export interface ThresholdsInForce {
+  /** The lab's values where they differ from the published defaults. */
+  overrides: Partial<Thresholds>;
+  /** Every threshold the analysis uses: defaults with the overrides applied. */
+  values: Thresholds;
+  /** The set in force, or null when the published defaults are used. */
+  setId: number | null;
+  effectiveFrom: string | null;
+}

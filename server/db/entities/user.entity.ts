@@ -1,4 +1,5 @@
 import { Column, Entity, PrimaryGeneratedColumn } from 'typeorm';
+import type { Role } from '../../../shared/auth/permissions';
 import { Timestamped } from './timestamps';
 
 /** A person who signs in. `role` is null until the identity provider grants one. */
@@ -21,7 +22,7 @@ export class User extends Timestamped {
   displayName!: string;
 
   @Column('text', { nullable: true })
-  role!: string | null;
+  role!: Role | null;
 
   @Column('timestamptz', { name: 'last_sign_in_at', nullable: true })
   lastSignInAt!: Date | null;
