@@ -1,7 +1,8 @@
 import { changeText, recordChanges } from '../../shared/study/record-changes';
 import { driftOutOfRange, driftText } from '../../shared/physiology/quality';
 import { stenosisText } from '../../shared/physiology/endotype';
-import { constrictionText } from '../../shared/physiology/vasoreactivity';
+import { constrictionText, protocolShortfalls, shortfallText } from '../../shared/physiology/vasoreactivity';
+import { rightCoronaryVessels } from '../../shared/physiology/vessels';
 import {
   defaultThresholds,
   endotypeName,
@@ -616,8 +617,11 @@ function acetylcholineSection(study: ReportStudy, analysis: PhysiologyResult, t:
     `Intracoronary acetylcholine into the ${joinAnd(vessels)}${amounts.length ? `, ${amounts.length === 1 ? 'one dose' : `${amounts.length} doses`} of ${joinAnd(amounts)} µg` : ''}, each followed by angiography`,
   );
   const outcome = analysis.vasoreactivity?.result;
+  // A negative test that stopped before the protocol's last dose says how far it went.
+  const sides = new Set(doses.map((d) => (rightCoronaryVessels.has(d.vessel) ? 'right' : 'left')));
+  const short = outcome === 'negative' ? shortfallText(protocolShortfalls(doses, t), sides.size > 1) : '';
   const result = outcome
-    ? `${sentence(`Result: ${lowerFirst(vasoreactivityOutcomeLabel[outcome])}`)} Spasm is judged as constriction of ${q(t.spasmConstrictionPct, 'percent')}% or more with the usual symptoms and ischaemic ECG changes (${cite(t, 'spasmConstrictionPct')}).`
+    ? `${sentence(`Result: ${lowerFirst(vasoreactivityOutcomeLabel[outcome])}${short ? ` ${short}` : ''}`)} Spasm is judged as constriction of ${q(t.spasmConstrictionPct, 'percent')}% or more with the usual symptoms and ischaemic ECG changes (${cite(t, 'spasmConstrictionPct')}).`
     : null;
   const v = study.vasoreactivity as ReportStudy['vasoreactivity'] & Record<string, unknown>;
   const ntg = isNum(v.reversalNitroglycerinMicrograms) ? ` ${withUnit(v.reversalNitroglycerinMicrograms, 'dose')}` : '';

@@ -1,0 +1,48 @@
+import { describe, expect, it } from 'vitest';
+import { renderNarrative } from '../../../server/report-document/render';
+import type { ReportStudy } from '../../../server/report-document/view-model';
+import { demoReportStudies, viewOf } from './fixtures';
+
+const render = (s: ReportStudy, extra: Parameters<typeof viewOf>[1] = {}) => renderNarrative(viewOf(s, extra));
+const section = (text: string, heading: string) => {
+  const start = text.indexOf(`\n${heading}\n`);
+  if (start < 0) return null;
+  const rest = text.slice(start + heading.length + 2);
+  const end = rest.search(/\n\n[A-Z][A-Z :]+\n/);
+  return end < 0 ? rest : rest.slice(0, end);
+};
+
+describe('a negative acetylcholine test that stopped before the last dose says so', () => {
+  // Protocol into the left coronary: 2, 20, 100, 200 µg (ESC 2024 chronic coronary syndromes guideline,
+  // protocol figure; COVADIS). Into the right coronary: 20, 50 µg (Japanese Circulation Society 2016).
+  it('left coronary stopped at 100 µg: "negative up to 100 µg; 200 µg not given (incomplete protocol)"', () => {
+    const s = demoReportStudies()[2]; // 2, 20, 100 µg into the LAD, no response
+    expect(viewOf(s).acetylcholine!.result).toBe(
+      'Result: negative up to 100 µg; 200 µg not given (incomplete protocol). Spasm is judged as constriction of 90% or more with the usual symptoms and ischaemic ECG changes (COVADIS; ESC 2024).',
+    );
+    expect(section(render(s).text, 'ACETYLCHOLINE TESTING')).toContain('Result: negative up to 100 µg; 200 µg not given (incomplete protocol).');
+  });
+
+  it('the full left protocol up to 200 µg stays plainly "negative"', () => {
+    const s = demoReportStudies()[4]; // 2, 20, 100, 200 µg, no response
+    expect(viewOf(s).acetylcholine!.result).toMatch(/^Result: negative\. Spasm is judged/);
+  });
+
+  it('right coronary stopped at 20 µg: 50 µg not given (Japanese Circulation Society 2016)', () => {
+    const s = demoReportStudies()[2];
+    s.vasoreactivity.doses = s.vasoreactivity.doses.slice(0, 2).map((d) => ({ ...d, vessel: 'RCA' as const }));
+    expect(viewOf(s).acetylcholine!.result).toMatch(/^Result: negative up to 20 µg; 50 µg not given \(incomplete protocol\)\. /);
+  });
+
+  it('doses into both coronaries name the artery that fell short', () => {
+    const s = demoReportStudies()[4]; // left protocol complete
+    const rca = { ...s.vasoreactivity.doses[1], id: '00000000-0000-4000-8000-000000009999', vessel: 'RCA' as const, micrograms: 20 };
+    s.vasoreactivity.doses = [...s.vasoreactivity.doses, rca];
+    expect(viewOf(s).acetylcholine!.result).toMatch(/^Result: negative into the right coronary up to 20 µg; 50 µg not given \(incomplete protocol\)\. /);
+  });
+
+  it('a positive test stopped early is not qualified: the protocol stops at spasm (ESC 2024 protocol figure)', () => {
+    const s = demoReportStudies()[3]; // epicardial spasm at 100 µg
+    expect(viewOf(s).acetylcholine!.result).toMatch(/^Result: epicardial spasm\. /);
+  });
+});
