@@ -23,6 +23,7 @@ import { notUsedSentence } from '../../shared/physiology/not-used';
 import { cite } from '../../shared/physiology/thresholds';
 import { endotypeLabel, flagLabel, imrMethodLabel, nhprKindLabel, reportCaution, vasoreactivityOutcomeLabel } from '../../shared/report/labels';
 import { hasPressureIndex } from '../../shared/report/completeness';
+import { decisionText, isLesion } from '../../shared/report/decision';
 import { reportKindOf, type ReportKind } from '../../shared/report/kind';
 import type { ThresholdsBasis } from '../../shared/report/thresholds-basis';
 import type { StudySections } from '../../shared/study/schema';
@@ -529,7 +530,8 @@ function vesselSentences(
   if (row?.pullbackPattern && row.pullbackPattern !== 'not-done') {
     out.push(sentence(`Pull-back: ${lowerFirst(vocabulary.pullbackPatternLabel[row.pullbackPattern])}`));
   }
-  if (row?.decision) out.push(sentence(`Decision: ${lowerFirst(vocabulary.decisionLabel[row.decision])}`));
+  const decision = row ? decisionText(row) : null;
+  if (row && decision) out.push(sentence(isLesion(row) ? `Decision: ${lowerFirst(decision)}` : decision));
   return out;
 }
 
@@ -548,7 +550,8 @@ function lesionSummary(study: ReportStudy, analysis: PhysiologyResult, afterPci:
             ? `resting Pd/Pa ${q(r.restingPdPa, 'ratio')}`
             : `visual stenosis ${stenosisText(r.visualStenosisPct ?? 0, t)} %`;
     const where = vesselTitle(r.vessel, row?.segment);
-    const decision = row?.decision ? `; ${lowerFirst(vocabulary.decisionLabel[row.decision])}` : '';
+    const decisionWords = row ? decisionText(row) : null;
+    const decision = decisionWords ? `; ${lowerFirst(decisionWords)}` : '';
     const verdict = afterPci
       ? r.obstructive
         ? 'significant gradient remains after intervention'

@@ -46,3 +46,46 @@ describe('a negative acetylcholine test that stopped before the last dose says s
     expect(viewOf(s).acetylcholine!.result).toMatch(/^Result: epicardial spasm\. /);
   });
 });
+
+describe('the decision line of a vessel without a lesion', () => {
+  // "Defer" is said of a lesion whose revascularisation is put off (DEFER/FAME); a vessel with no visible
+  // stenosis and no pressure index was assessed for coronary function only (common practice).
+  const functionOnly = () => {
+    const s = demoReportStudies()[4];
+    const v = s.vessels[0];
+    Object.assign(v, { visualStenosisPct: 0, restPa: null, restPd: null, hyperemiaPa: null, hyperemiaPd: null, consoleFfr: null, driftPdPa: null, decision: 'defer' });
+    return s;
+  };
+
+  it('0 % stenosis, no pressure index, "defer" recorded: "No revascularisation indicated."', () => {
+    const lines = viewOf(functionOnly()).interpretation[0].sentences;
+    expect(lines).toContain('No revascularisation indicated.');
+    expect(lines.join(' ')).not.toContain('Decision: defer');
+  });
+
+  it('the same vessel with no decision recorded has no decision line', () => {
+    const s = functionOnly();
+    s.vessels[0].decision = null;
+    expect(viewOf(s).interpretation[0].sentences.join(' ')).not.toMatch(/Decision|revascularisation/);
+  });
+
+  it('a lesion keeps "Decision: defer." (with FFR 0.86: the deferred mid RCA lesion)', () => {
+    const s = demoReportStudies()[1];
+    expect(viewOf(s).interpretation[0].sentences).toContain('Decision: defer.');
+    expect(viewOf(s).lesionSummary).toContain('Right coronary (Mid RCA): not haemodynamically significant (FFR 0.86); defer.');
+  });
+
+  it('a 0 % vessel with a pressure index is judged by it and keeps "Decision: defer."', () => {
+    const s = demoReportStudies()[4]; // LAD 0 %, FFR 0.92, "defer"
+    expect(viewOf(s).interpretation[0].sentences).toContain('Decision: defer.');
+  });
+
+  it('in a lesion report, the conclusion line of a vessel without a lesion reads "no revascularisation indicated"', () => {
+    const s = functionOnly();
+    s.details.clinicalQuestion = 'intermediate-lesion';
+    s.vasoreactivity.doses = [];
+    s.vessels[0].restTransit = [];
+    s.vessels[0].hyperemiaTransit = [];
+    expect(viewOf(s).lesionSummary.join(' ')).toMatch(/not angiographically obstructive by visual estimate, not assessed physiologically \(visual stenosis 0 %\); no revascularisation indicated\./);
+  });
+});
