@@ -652,6 +652,9 @@ function paragraphs(text: string | null | undefined): string[] {
     .filter((p) => p.length > 0);
 }
 
+/** Free text that opens by saying there was no complication ("No complication.", "None: …", "No complications; …"). */
+const saysNoComplication = (text: string) => /^(none|no complications?)\b/i.test(text.trim());
+
 function complicationLines(findings: ReportStudy['findings']): string[] {
   const kinds = (findings as { complicationKinds?: readonly string[] }).complicationKinds;
   const details = paragraphs(findings.complications);
@@ -660,8 +663,10 @@ function complicationLines(findings: ReportStudy['findings']): string[] {
     const named = kinds.filter((k) => k !== 'other' || details.length === 0);
     const labels = named.map((k) => labelOf(vocab.complicationLabel, k) ?? k).map((l) => l.replace(/\s*\(describe below\)$/i, ''));
     if (kinds.includes('none')) {
-      // Details that only repeat "none" are not printed twice.
-      return ['None.', ...details.filter((d) => !/^none\.?$/i.test(d))];
+      // Details that only repeat "none" are not printed twice; details that open by saying there was no
+      // complication stand alone, without "None." before them.
+      const said = details.filter((d) => !/^none\.?$/i.test(d));
+      return said.length > 0 && saysNoComplication(said[0]) ? said : ['None.', ...said];
     }
     const listed = labels.length ? [sentence(joinAnd(labels.map((l, i) => (i === 0 ? l : lowerFirst(l)))))] : [];
     return [...listed, ...details];

@@ -89,3 +89,30 @@ describe('the decision line of a vessel without a lesion', () => {
     expect(viewOf(s).lesionSummary.join(' ')).toMatch(/not angiographically obstructive by visual estimate, not assessed physiologically \(visual stenosis 0 %\); no revascularisation indicated\./);
   });
 });
+
+describe('complications: "none" chosen and free text given (common practice: say it once)', () => {
+  const withComplications = (kinds: string[], text: string | null) => {
+    const s = demoReportStudies()[0];
+    Object.assign(s.findings, { complicationKinds: kinds, complications: text });
+    return section(render(s).text, 'COMPLICATIONS')!.trim();
+  };
+
+  it('text that opens with "No complication" is printed alone', () => {
+    const text = 'No complication. The provoked chest pain and anterior ST elevation were relieved by intracoronary nitroglycerin within 2 minutes.';
+    expect(withComplications(['none'], text)).toBe(text);
+    expect(viewOf(demoReportStudies()[3]).complications).toEqual([text]);
+  });
+
+  it('"No complications." alone is printed alone', () => {
+    expect(withComplications(['none'], 'No complications.')).toBe('No complications.');
+  });
+
+  it('text that adds something else keeps "None." before it', () => {
+    expect(withComplications(['none'], 'Radial compression band applied, removed after 2 hours.')).toBe('None.\nRadial compression band applied, removed after 2 hours.');
+  });
+
+  it('"None." chosen with no text, or text "None.", prints "None." once', () => {
+    expect(withComplications(['none'], null)).toBe('None.');
+    expect(withComplications(['none'], 'none')).toBe('None.');
+  });
+});
