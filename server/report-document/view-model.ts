@@ -492,9 +492,10 @@ function vesselSentences(
     used.add('mrr');
     used.add('mrrBorderline');
     const method = r.mrrMethod === 'bolus-thermodilution' ? ' Computed from bolus thermodilution; these cut-offs were set with continuous thermodilution.' : '';
-    out.push(
-      `MRR ${q(r.mrr, 'ratio')}: ${judged(r.mrrFlag)} ${against('<', 'mrr')}; borderline from ${q(t.mrr, 'ratio')} to ${q(t.mrrBorderline, 'ratio')}.${method}${unused}`,
-    );
+    // One bracket for both cut-offs: abnormal below the MRR cut-off, normal above the borderline's upper limit.
+    const bands = t.mrrBorderline > t.mrr ? `abnormal < ${q(t.mrr, 'ratio')}, normal > ${q(t.mrrBorderline, 'ratio')}` : `abnormal < ${q(t.mrr, 'ratio')}`;
+    const sources = [...new Set([cite(t, 'mrr'), ...(t.mrrBorderline > t.mrr ? [cite(t, 'mrrBorderline')] : [])])].join('; ');
+    out.push(`MRR ${q(r.mrr, 'ratio')}: ${judged(r.mrrFlag)} (${bands}; ${sources}).${method}${unused}`);
   }
 
   // The epicardial verdict, in the words of the report's kind.

@@ -1,4 +1,5 @@
 import { describe, expect, it } from 'vitest';
+import { thresholdSources } from '../../../shared/physiology/thresholds';
 import { renderNarrative } from '../../../server/report-document/render';
 import type { ReportStudy } from '../../../server/report-document/view-model';
 import { demoReportStudies, viewOf } from './fixtures';
@@ -114,5 +115,27 @@ describe('complications: "none" chosen and free text given (common practice: say
   it('"None." chosen with no text, or text "None.", prints "None." once', () => {
     expect(withComplications(['none'], null)).toBe('None.');
     expect(withComplications(['none'], 'none')).toBe('None.');
+  });
+});
+
+describe('the MRR line states both cut-offs once — de Vos et al., JACC Cardiovasc Interv 2023;16(4):470–481 (PMID 36858668): < 2.1 rules in, > 2.7 rules out', () => {
+  // Hand-computed from the formula (De Bruyne et al. 2021), not from a paper: Pa/Pd rest 100/95, hyperaemia
+  // 100/90 → FFR 0.90; Tmn rest 0.54 s, hyperaemia 0.25 s → CFR 2.16; MRR = (2.16 / 0.90) × (100 / 100) = 2.40.
+  const mrrLine = (extra: Parameters<typeof viewOf>[1] = {}) => {
+    const s = demoReportStudies()[4];
+    Object.assign(s.vessels[0], { restPa: 100, restPd: 95, hyperemiaPa: 100, hyperemiaPd: 90, consoleFfr: null, restTransit: [0.54, 0.54, 0.54], hyperemiaTransit: [0.25, 0.25, 0.25] });
+    return viewOf(s, extra).interpretation[0].sentences.find((x) => x.startsWith('MRR'))!;
+  };
+
+  it('"MRR 2.40: borderline (abnormal < 2.10, normal > 2.70; de Vos 2023)"', () => {
+    const line = mrrLine();
+    expect(line).toBe('MRR 2.40: borderline (abnormal < 2.10, normal > 2.70; de Vos 2023). Computed from bolus thermodilution; these cut-offs were set with continuous thermodilution.');
+    expect(line).not.toContain('cut-off <');
+  });
+
+  it('the long source of the MRR cut-offs names the journal right', () => {
+    expect(thresholdSources.mrr).toContain('de Vos et al., JACC Cardiovasc Interv 2023;16(4):470–481');
+    expect(thresholdSources.mrrBorderline).toContain('de Vos et al., JACC Cardiovasc Interv 2023;16(4):470–481');
+    expect(JSON.stringify(thresholdSources)).not.toContain('Imaging');
   });
 });
