@@ -49,7 +49,12 @@ function environment(medium: Medium, dir: string): typeof Handlebars {
     hb.registerPartial(file.replace(/\.hbs$/, ''), readFileSync(join(dir, medium, file), 'utf8'));
   }
   /** A table of cells as aligned plain text. */
-  hb.registerHelper('textTable', (table: { columns: string[]; rows: Cell[][] }) => textTable(table.columns, table.rows.map((r) => r.map(cellText))));
+  // `marks=true` (template v4 on) prints each cell's footnote mark and the table's footnotes under it.
+  hb.registerHelper('textTable', (table: { columns: string[]; rows: Cell[][]; footnotes?: string[] }, options?: { hash?: { marks?: boolean } }) => {
+    if (options?.hash?.marks !== true) return textTable(table.columns, table.rows.map((r) => r.map(cellText)));
+    const grid = textTable(table.columns, table.rows.map((r) => r.map((c) => (c.mark ? `${cellText(c)} ${c.mark}` : cellText(c)))));
+    return [grid, ...(table.footnotes ?? [])].join('\n');
+  });
   /** The acetylcholine doses as aligned plain text. */
   hb.registerHelper('doseTable', (ach: NonNullable<ReportView['acetylcholine']>) =>
     textTable(

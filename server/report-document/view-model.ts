@@ -108,6 +108,8 @@ export interface ThresholdsBasisInfo {
 
 export interface Cell {
   text: string;
+  /** A footnote mark printed after the text ("†"), explained in the table's footnotes. */
+  mark?: string;
   flag?: Flag;
   /** The flag in words, for the plain-text report and the PDF. */
   flagText?: string;
@@ -116,6 +118,8 @@ export interface Cell {
 export interface Table {
   columns: string[];
   rows: Cell[][];
+  /** Notes printed under the table, each opening with the mark it explains. */
+  footnotes?: string[];
 }
 
 export interface VesselInterpretation {
@@ -396,11 +400,20 @@ function measurementTable(study: ReportStudy, analysis: PhysiologyResult, t: Thr
   return compact(['Vessel', 'Segment', 'Visual stenosis', 'Pa / Pd at rest (mmHg)', 'Pa / Pd at hyperaemia (mmHg)', 'Mean Tmn at rest (s)', 'Mean Tmn at hyperaemia (s)', 'Wedge pressure (mmHg)'], rows);
 }
 
-function indexTable(analysis: PhysiologyResult): Table | null {
+/** The mark of a vessel whose drift check fell outside the window, in the indices table. */
+export const DRIFT_MARK = '†';
+
+function indexTable(analysis: PhysiologyResult, study: ReportStudy, t: Thresholds): Table | null {
+  const byId = new Map(study.vessels.map((v) => [v.id, v]));
+  const drifted = (id: string) => {
+    const d = byId.get(id)?.driftPdPa;
+    return isNum(d) && driftOutOfRange(d, t);
+  };
   const rows = analysis.vessels.map((r) => {
     const nhprText = r.nhpr !== undefined && r.nhprKind ? `${q(r.nhpr, 'ratio')} ${lowerFirst(nhprKindLabel[r.nhprKind])}` : null;
+    const name: Cell = drifted(r.id) ? { text: vesselShortName[r.vessel], mark: DRIFT_MARK } : { text: vesselShortName[r.vessel] };
     return [
-      { text: vesselShortName[r.vessel] },
+      name,
       r.ffr !== undefined ? flagCell(q(r.ffr, 'ratio'), r.ffrFlag) : null,
       nhprText ? flagCell(nhprText, r.nhprFlag) : null,
       r.restingPdPa !== undefined ? flagCell(q(r.restingPdPa, 'ratio'), r.restingPdPaFlag) : null,
@@ -410,7 +423,14 @@ function indexTable(analysis: PhysiologyResult): Table | null {
       r.mrr !== undefined ? flagCell(q(r.mrr, 'ratio'), r.mrrFlag) : null,
     ];
   });
-  return compact(['Vessel', 'FFR', 'Resting ratio', 'Resting Pd/Pa', 'CFR', 'IMR (U)', 'RRR', 'MRR'], rows);
+  const table = compact(['Vessel', 'FFR', 'Resting ratio', 'Resting Pd/Pa', 'CFR', 'IMR (U)', 'RRR', 'MRR'], rows);
+  const marked = table?.rows.filter((row) => row[0].mark === DRIFT_MARK).length ?? 0;
+  if (table && marked > 0) {
+    table.footnotes = [
+      `${DRIFT_MARK} Drift check outside ${q(t.driftLow, 'ratio')}–${q(t.driftHigh, 'ratio')}: pressure ratios of ${marked > 1 ? 'these vessels' : 'this vessel'} are less reliable.`,
+    ];
+  }
+  return table;
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -815,7 +835,7 @@ export function buildReportView(input: ReportInput): ReportView {
     },
     technique,
     measurements: measurementTable(study, analysis, t),
-    indices: indexTable(analysis),
+    indices: indexTable(analysis, study, t),
     interpretation,
     lesionSummary: kind === 'lesion' ? lesionSummary(study, analysis, afterPci, t) : [],
     acetylcholine,

@@ -1,5 +1,8 @@
 import { describe, expect, it } from 'vitest';
+import { defaultThresholds } from '../../../shared/physiology';
 import { thresholdSources } from '../../../shared/physiology/thresholds';
+import { renderReportPdf } from '../../../server/report-document/pdf';
+import { hasPoppler, pdfPages } from '../../support/pdf-to-png';
 import { renderNarrative } from '../../../server/report-document/render';
 import type { ReportStudy } from '../../../server/report-document/view-model';
 import { demoReportStudies, viewOf } from './fixtures';
@@ -137,5 +140,55 @@ describe('the MRR line states both cut-offs once — de Vos et al., JACC Cardiov
     expect(thresholdSources.mrr).toContain('de Vos et al., JACC Cardiovasc Interv 2023;16(4):470–481');
     expect(thresholdSources.mrrBorderline).toContain('de Vos et al., JACC Cardiovasc Interv 2023;16(4):470–481');
     expect(JSON.stringify(thresholdSources)).not.toContain('Imaging');
+  });
+});
+
+describe('a vessel whose drift check failed is marked in the indices table', () => {
+  // Pd/Pa at the guide tip after pull-back outside 0.98–1.02 means the pressures drifted (drift > 2 mmHg
+  // means repeat: Cook et al., Circ Cardiovasc Interv 2016); the 0.98–1.02 window [memory].
+  const functional = () => demoReportStudies()[5]; // LAD drift 0.99, LCx drift 1.03
+  const note = '† Drift check outside 0.98–1.02: pressure ratios of this vessel are less reliable.';
+
+  it('view: the LCx row carries "†", the LAD row none, and the table explains the mark', () => {
+    const t = viewOf(functional()).indices!;
+    expect(t.rows.map((r) => [r[0].text, r[0].mark ?? null])).toEqual([
+      ['LAD', null],
+      ['LCx', '†'],
+    ]);
+    expect(t.footnotes).toEqual([note]);
+  });
+
+  it('the window in the note is the one in force (lab setting 0.97–1.03)', () => {
+    const s = functional();
+    const lab = { ...defaultThresholds, driftLow: 0.97, driftHigh: 1.03 };
+    s.vessels[1].driftPdPa = 1.04;
+    expect(viewOf(s, { thresholds: lab }).indices!.footnotes).toEqual(['† Drift check outside 0.97–1.03: pressure ratios of this vessel are less reliable.']);
+    s.vessels[1].driftPdPa = 1.03; // inside the lab's window: no mark
+    expect(viewOf(s, { thresholds: lab }).indices!.footnotes).toBeUndefined();
+    expect(viewOf(s, { thresholds: lab }).indices!.rows.some((r) => r[0].mark)).toBe(false);
+  });
+
+  it('narrative from template v4: marked row and the note under the table, in the text and the HTML', () => {
+    const n = render(functional(), { templateVersion: 'v4' });
+    const indices = section(n.text, 'CALCULATED INDICES')!;
+    expect(indices).toMatch(/^LCx †\s+0\.92\s/m);
+    expect(indices).toMatch(/^LAD\s+0\.90\s/m);
+    expect(indices.split('\n').filter((l) => l.includes('†'))).toHaveLength(2); // the LCx row and the note
+    expect(indices).toContain(note);
+    expect(n.html).toContain('<th scope="row">LCx <sup class="mark">†</sup></th>');
+    expect(n.html).toContain(`<p class="table-note">${note}</p>`);
+  });
+
+  it('narrative of an older template version (v3) is worded as it was signed: no mark, no note', () => {
+    const n = render(functional(), { templateVersion: 'v3' });
+    expect(n.text).not.toContain('†');
+    expect(n.html).not.toContain('†');
+  });
+
+  it.skipIf(!hasPoppler('pdftotext'))('PDF: the mark beside LCx and the note under the table', async () => {
+    const pdf = await renderReportPdf(viewOf(functional()));
+    const text = pdfPages(pdf).join('\n');
+    expect(text).toMatch(/LCx\s*†/);
+    expect(text.replace(/\s+/g, ' ')).toContain(note);
   });
 });
