@@ -59,7 +59,8 @@ function environment(medium: Medium, dir: string): typeof Handlebars {
   hb.registerHelper('doseTable', (ach: NonNullable<ReportView['acetylcholine']>) =>
     textTable(
       ach.doseColumns.map((c) => c.label),
-      ach.doses.map((d) => ach.doseColumns.map((c) => d[c.key])),
+      // Plain-text columns never wrap: the no-break space that holds a dose to its unit is a plain space here.
+      ach.doses.map((d) => ach.doseColumns.map((c) => d[c.key].replace(/\u00a0/g, ' '))),
     ),
   );
   /** A row's value by column key (HTML dose table). */

@@ -191,6 +191,8 @@ export interface ReportView {
 // Small formatting helpers
 
 const q = (v: number, kind: QuantityKind) => formatQuantity(v, kind);
+/** No-break space: joins a number to its unit in table cells. */
+const NBSP = '\u00a0';
 const withUnit = (v: number, kind: QuantityKind) => formatWithUnit(v, kind);
 const isNum = (v: unknown): v is number => typeof v === 'number' && Number.isFinite(v);
 const filled = (s: unknown): s is string => typeof s === 'string' && s.trim().length > 0;
@@ -616,7 +618,8 @@ function acetylcholineSection(study: ReportStudy, analysis: PhysiologyResult, t:
     if (rhythm) vitals.push(lowerFirst(rhythm));
     if (vitals.length) notes.push(vitals.join(', '));
     return {
-      dose: isNum(d.micrograms) ? withUnit(d.micrograms, 'dose') : '—',
+      // Number and unit held together (no-break space, U+00A0) so a narrow column never splits "100 µg".
+      dose: isNum(d.micrograms) ? withUnit(d.micrograms, 'dose').replace(/ /g, NBSP) : '—',
       vessel: vesselShortName[d.vessel],
       constriction: isNum(d.constrictionPct) ? `${constrictionText(d.constrictionPct, t)} %` : '—',
       symptoms: yesNo(d.symptoms),

@@ -192,3 +192,36 @@ describe('a vessel whose drift check failed is marked in the indices table', () 
     expect(text.replace(/\s+/g, ' ')).toContain(note);
   });
 });
+
+describe('a dose and its unit stay on one line in the dose table (common practice: never split a number from its unit)', () => {
+  // The dose cell joins number and unit with a no-break space (U+00A0); Public Sans has the glyph.
+  const crowded = () => {
+    const view = viewOf(demoReportStudies()[4]);
+    // Long notes squeeze the auto-width columns of the dose table to their narrowest.
+    for (const d of view.acetylcholine!.doses) d.notes = 'constriction in LAD, Mid LAD, diffuse; HR 66 bpm, BP 120/68 mmHg, sinus rhythm; '.repeat(4);
+    return view;
+  };
+
+  it('view: "100\u00a0µg" in the dose column (acetylcholine 2, 20, 100, 200 µg: ESC 2024 protocol)', () => {
+    expect(viewOf(demoReportStudies()[4]).acetylcholine!.doses.map((d) => d.dose)).toEqual(['2\u00a0µg', '20\u00a0µg', '100\u00a0µg', '200\u00a0µg']);
+  });
+
+  it('HTML dose cells hold the no-break space; the plain-text table (which never wraps) keeps a plain space', () => {
+    const n = render(demoReportStudies()[4]);
+    expect(n.html).toContain('<td>100\u00a0µg</td>');
+    expect(section(n.text, 'ACETYLCHOLINE TESTING')).toMatch(/^100 µg\s+LAD/m);
+    expect(n.text).not.toContain('\u00a0');
+  });
+
+  it.skipIf(!hasPoppler('pdftotext'))('PDF: no "µg" alone on a line of the dose table; with a plain space it would be', async () => {
+    const lonelyUnits = async (view: ReturnType<typeof viewOf>) =>
+      pdfPages(await renderReportPdf(view))
+        .join('\n')
+        .split('\n')
+        .filter((l) => /^\s*µg\s{2,}\S/.test(l)).length; // "µg" alone in the dose column, the notes beside it
+    expect(await lonelyUnits(crowded())).toBe(0);
+    const plain = crowded();
+    for (const d of plain.acetylcholine!.doses) d.dose = d.dose.replace('\u00a0', ' ');
+    expect(await lonelyUnits(plain)).toBeGreaterThan(0);
+  });
+});
