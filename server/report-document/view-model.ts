@@ -293,7 +293,11 @@ function techniqueSentences(study: ReportStudy, t: Thresholds): string[] {
   if (isNum(s.lvedp)) baseline.push(`LVEDP ${q(s.lvedp, 'pressure')} mmHg`);
   if (baseline.length) out.push(sentence(`Baseline: ${baseline.join(', ')}`));
 
-  if (isNum(s.heparinUnits)) out.push(sentence(`Heparin ${q(s.heparinUnits, 'dose')} U`));
+  if (isNum(s.heparinUnits)) {
+    // The weight-based dose beside the total when the weight is recorded: the number only, no judgement.
+    const perKg = isNum(d.weightKg) && d.weightKg > 0 ? ` (${Math.round(s.heparinUnits / d.weightKg)} U/kg)` : '';
+    out.push(sentence(`Heparin ${q(s.heparinUnits, 'dose')} U${perKg}`));
+  }
 
   if (s.nitratesGiven === true) {
     const dose = isNum(s.nitrateDoseMicrograms) ? ` ${withUnit(s.nitrateDoseMicrograms, 'dose')}` : '';

@@ -225,3 +225,28 @@ describe('a dose and its unit stay on one line in the dose table (common practic
     expect(await lonelyUnits(plain)).toBeGreaterThan(0);
   });
 });
+
+describe('heparin: the weight-based dose beside the total (common practice to report U/kg; EAPCI 2020 gives 50–70 U/kg)', () => {
+  const technique = (units: number | null, weightKg: number | null) => {
+    const s = demoReportStudies()[4];
+    s.setup.heparinUnits = units;
+    s.details.weightKg = weightKg;
+    return viewOf(s).technique;
+  };
+
+  it('4500 U for 58 kg: "Heparin 4500 U (78 U/kg)." (4500 / 58 = 77.6)', () => {
+    expect(technique(4500, 58)).toContain('Heparin 4500 U (78 U/kg).');
+  });
+
+  it('no weight recorded: the total alone', () => {
+    expect(technique(4500, null)).toContain('Heparin 4500 U.');
+  });
+
+  it('no judgement of the dose, even outside 50–70 U/kg: 10000 U for 58 kg reads "(172 U/kg)" and nothing more', () => {
+    expect(technique(10000, 58)).toContain('Heparin 10000 U (172 U/kg).');
+  });
+
+  it('no heparin recorded: no heparin sentence', () => {
+    expect(technique(null, 58).join(' ')).not.toContain('Heparin');
+  });
+});
