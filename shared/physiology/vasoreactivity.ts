@@ -186,10 +186,16 @@ export function analyzeVasoreactivity(
         `Acetylcholine ${doseName(d)}: ${constrictionText(d.constrictionPct, t)}% constriction without symptoms or ischaemic ECG changes, at or above ${edPct}% (${cite(t, 'endothelialDysfunctionPct')}) — endothelial dysfunction, not spasm (${src}).`,
       );
       break;
-    default:
+    default: {
+      // A test that stopped before the protocol's last dose is negative only as far as it went.
+      const bothSides = new Set(doses.map((x) => rightCoronaryVessels.has(x.vessel))).size > 1;
+      const short = protocolShortfalls(doses, t)
+        .map((s) => `${bothSides ? `into the ${s.side} coronary ` : ''}up to ${cutPlain(s.highest)} µg (${cutPlain(s.last)} µg not given: incomplete protocol)`)
+        .join(' and ');
       reasons.push(
-        `Acetylcholine testing was negative: maximum constriction ${constrictionText(maxPct, t)}% (below ${edPct}%, ${cite(t, 'endothelialDysfunctionPct')}) and no dose reproduced symptoms or ischaemic ECG changes (${src}).`,
+        `Acetylcholine testing was negative${short ? ` ${short}` : ''}: maximum constriction ${constrictionText(maxPct, t)}% (below ${edPct}%, ${cite(t, 'endothelialDysfunctionPct')}) and no dose reproduced symptoms or ischaemic ECG changes (${src}).`,
       );
+    }
   }
   return { result: worst, doses: out, warnings };
 }

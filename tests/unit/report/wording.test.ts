@@ -27,9 +27,17 @@ describe('a negative acetylcholine test that stopped before the last dose says s
     expect(section(render(s).text, 'ACETYLCHOLINE TESTING')).toContain('Result: negative up to 100 µg; 200 µg not given (incomplete protocol).');
   });
 
+  it('the reason under the diagnosis says the same', () => {
+    const reasons = viewOf(demoReportStudies()[2]).endotype!.reasons;
+    expect(reasons).toContain(
+      'Acetylcholine testing was negative up to 100 µg (200 µg not given: incomplete protocol): maximum constriction 15% (below 20%, common practice; source not confirmed) and no dose reproduced symptoms or ischaemic ECG changes (COVADIS; ESC 2024).',
+    );
+  });
+
   it('the full left protocol up to 200 µg stays plainly "negative"', () => {
     const s = demoReportStudies()[4]; // 2, 20, 100, 200 µg, no response
     expect(viewOf(s).acetylcholine!.result).toMatch(/^Result: negative\. Spasm is judged/);
+    expect(viewOf(s).endotype!.reasons.join(' ')).toContain('Acetylcholine testing was negative: maximum constriction 15%');
   });
 
   it('right coronary stopped at 20 µg: 50 µg not given (Japanese Circulation Society 2016)', () => {
