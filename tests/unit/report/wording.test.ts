@@ -3,6 +3,8 @@ import { defaultThresholds } from '../../../shared/physiology';
 import { thresholdSources } from '../../../shared/physiology/thresholds';
 import { renderReportPdf } from '../../../server/report-document/pdf';
 import { hasPoppler, pdfPages } from '../../support/pdf-to-png';
+import { reportDocument } from '../../../server/report-document/document';
+import { documentStrings } from '../../../shared/report/document';
 import { renderNarrative } from '../../../server/report-document/render';
 import type { ReportStudy } from '../../../server/report-document/view-model';
 import { demoReportStudies, viewOf } from './fixtures';
@@ -185,6 +187,16 @@ describe('a vessel whose drift check failed is marked in the indices table', () 
     expect(indices).toContain(note);
     expect(n.html).toContain('<th scope="row">LCx <sup class="mark">†</sup></th>');
     expect(n.html).toContain(`<p class="table-note">${note}</p>`);
+  });
+
+  it('the live preview (structured document) from template v4 shows the same mark and note; v3 neither', () => {
+    const v4 = reportDocument(viewOf(functional(), { templateVersion: 'v4' }));
+    const strings = documentStrings(v4);
+    expect(strings).toContain('LCx †');
+    expect(strings).toContain(note);
+    const text = render(functional(), { templateVersion: 'v4' }).text;
+    for (const x of strings.filter((x) => x.includes('†'))) expect(text).toContain(x);
+    expect(documentStrings(reportDocument(viewOf(functional(), { templateVersion: 'v3' }))).join(' ')).not.toContain('†');
   });
 
   it('narrative of an older template version (v3) is worded as it was signed: no mark, no note', () => {
