@@ -1,4 +1,5 @@
 import type { ReportBlock, ReportDocument, ReportSection } from '../../shared/report/document';
+import { versionNumber } from './template-versions';
 import type { ReportView } from './view-model';
 
 /**
@@ -32,7 +33,15 @@ export function reportDocument(view: ReportView): ReportDocument {
   }
   add('technique', 'Procedure and technique', paragraphs(view.technique));
   if (view.measurements) add('measurements', 'Measurements', [{ kind: 'table', columns: view.measurements.columns, rows: view.measurements.rows }]);
-  if (view.indices) add('indices', 'Calculated indices', [{ kind: 'table', columns: view.indices.columns, rows: view.indices.rows }]);
+  if (view.indices) {
+    // From template v4 the indices table marks a vessel whose drift check failed and explains the mark below.
+    const marks = versionNumber(view.templateVersion) >= 4;
+    const rows = marks ? view.indices.rows.map((r) => r.map(({ mark, ...c }) => (mark ? { ...c, text: `${c.text} ${mark}` } : c))) : view.indices.rows;
+    add('indices', 'Calculated indices', [
+      { kind: 'table', columns: view.indices.columns, rows },
+      ...(marks ? paragraphs(view.indices.footnotes ?? []) : []),
+    ]);
+  }
   add(
     'interpretation',
     'Interpretation by vessel',

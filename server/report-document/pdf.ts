@@ -191,12 +191,13 @@ const paras = (lines: string[]): Content[] => lines.map((text) => ({ text, margi
 
 function cellContent(c: Cell, first: boolean): TableCell {
   const flagged = c.flag === 'abnormal' || c.flag === 'borderline';
-  const text = flagged ? `${c.text} ${c.flag === 'abnormal' ? '(abnormal)' : '(borderline)'}` : c.text;
+  const marked = c.mark ? `${c.text}\u00a0${c.mark}` : c.text;
+  const text = flagged ? `${marked} ${c.flag === 'abnormal' ? '(abnormal)' : '(borderline)'}` : marked;
   return { text, bold: first || flagged };
 }
 
 function table(t: Table): Content {
-  return {
+  const grid: Content = {
     table: {
       headerRows: 1,
       dontBreakRows: true,
@@ -204,8 +205,10 @@ function table(t: Table): Content {
       body: [t.columns.map((c) => ({ text: c, style: 'th' })), ...t.rows.map((r) => r.map((c, i) => cellContent(c, i === 0)))],
     },
     layout: 'report',
-    margin: [0, 2, 0, 8],
+    margin: [0, 2, 0, t.footnotes?.length ? 2 : 8],
   };
+  if (!t.footnotes?.length) return grid;
+  return { stack: [grid, ...t.footnotes.map((text, i): Content => ({ text, fontSize: 8, color: muted, margin: [0, 0, 0, i === t.footnotes!.length - 1 ? 8 : 1] }))] };
 }
 
 function doseTable(ach: NonNullable<ReportView['acetylcholine']>): Content {

@@ -49,12 +49,18 @@ function environment(medium: Medium, dir: string): typeof Handlebars {
     hb.registerPartial(file.replace(/\.hbs$/, ''), readFileSync(join(dir, medium, file), 'utf8'));
   }
   /** A table of cells as aligned plain text. */
-  hb.registerHelper('textTable', (table: { columns: string[]; rows: Cell[][] }) => textTable(table.columns, table.rows.map((r) => r.map(cellText))));
+  // `marks=true` (template v4 on) prints each cell's footnote mark and the table's footnotes under it.
+  hb.registerHelper('textTable', (table: { columns: string[]; rows: Cell[][]; footnotes?: string[] }, options?: { hash?: { marks?: boolean } }) => {
+    if (options?.hash?.marks !== true) return textTable(table.columns, table.rows.map((r) => r.map(cellText)));
+    const grid = textTable(table.columns, table.rows.map((r) => r.map((c) => (c.mark ? `${cellText(c)} ${c.mark}` : cellText(c)))));
+    return [grid, ...(table.footnotes ?? [])].join('\n');
+  });
   /** The acetylcholine doses as aligned plain text. */
   hb.registerHelper('doseTable', (ach: NonNullable<ReportView['acetylcholine']>) =>
     textTable(
       ach.doseColumns.map((c) => c.label),
-      ach.doses.map((d) => ach.doseColumns.map((c) => d[c.key])),
+      // Plain-text columns never wrap: the no-break space that holds a dose to its unit is a plain space here.
+      ach.doses.map((d) => ach.doseColumns.map((c) => d[c.key].replace(/\u00a0/g, ' '))),
     ),
   );
   /** A row's value by column key (HTML dose table). */

@@ -1,7 +1,8 @@
 import { changeText, recordChanges } from '../../shared/study/record-changes';
 import { driftOutOfRange, driftText } from '../../shared/physiology/quality';
 import { stenosisText } from '../../shared/physiology/endotype';
-import { constrictionText } from '../../shared/physiology/vasoreactivity';
+import { constrictionText, protocolShortfalls, shortfallText } from '../../shared/physiology/vasoreactivity';
+import { rightCoronaryVessels } from '../../shared/physiology/vessels';
 import {
   defaultThresholds,
   endotypeName,
@@ -22,6 +23,7 @@ import { notUsedSentence } from '../../shared/physiology/not-used';
 import { cite, cutOffRule, cutOffSymbol, type CutOffKey } from '../../shared/physiology/thresholds';
 import { endotypeLabel, flagLabel, imrMethodLabel, nhprKindLabel, reportCaution, vasoreactivityOutcomeLabel } from '../../shared/report/labels';
 import { hasPressureIndex } from '../../shared/report/completeness';
+import { decisionText, isLesion } from '../../shared/report/decision';
 import { reportKindOf, type ReportKind } from '../../shared/report/kind';
 import type { ThresholdsBasisInfo } from '../../shared/report/thresholds-basis';
 import type { StudySections } from '../../shared/study/schema';
@@ -94,6 +96,8 @@ export interface AmendedVersion {
 
 export interface Cell {
   text: string;
+  /** A footnote mark printed after the text ("†"), explained in the table's footnotes. */
+  mark?: string;
   flag?: Flag;
   /** The flag in words, for the plain-text report and the PDF. */
   flagText?: string;
@@ -102,6 +106,8 @@ export interface Cell {
 export interface Table {
   columns: string[];
   rows: Cell[][];
+  /** Notes printed under the table, each opening with the mark it explains. */
+  footnotes?: string[];
 }
 
 export interface VesselInterpretation {
@@ -173,6 +179,8 @@ export interface ReportView {
 // Small formatting helpers
 
 const q = (v: number, kind: QuantityKind) => formatQuantity(v, kind);
+/** No-break space: joins a number to its unit in table cells. */
+const NBSP = '\u00a0';
 const withUnit = (v: number, kind: QuantityKind) => formatWithUnit(v, kind);
 const isNum = (v: unknown): v is number => typeof v === 'number' && Number.isFinite(v);
 const filled = (s: unknown): s is string => typeof s === 'string' && s.trim().length > 0;
@@ -273,7 +281,11 @@ function techniqueSentences(study: ReportStudy, t: Thresholds): string[] {
   if (isNum(s.lvedp)) baseline.push(`LVEDP ${q(s.lvedp, 'pressure')} mmHg`);
   if (baseline.length) out.push(sentence(`Baseline: ${baseline.join(', ')}`));
 
-  if (isNum(s.heparinUnits)) out.push(sentence(`Heparin ${q(s.heparinUnits, 'dose')} U`));
+  if (isNum(s.heparinUnits)) {
+    // The weight-based dose beside the total when the weight is recorded: the number only, no judgement.
+    const perKg = isNum(d.weightKg) && d.weightKg > 0 ? ` (${Math.round(s.heparinUnits / d.weightKg)} U/kg)` : '';
+    out.push(sentence(`Heparin ${q(s.heparinUnits, 'dose')} U${perKg}`));
+  }
 
   if (s.nitratesGiven === true) {
     const dose = isNum(s.nitrateDoseMicrograms) ? ` ${withUnit(s.nitrateDoseMicrograms, 'dose')}` : '';
@@ -382,11 +394,20 @@ function measurementTable(study: ReportStudy, analysis: PhysiologyResult, t: Thr
   return compact(['Vessel', 'Segment', 'Visual stenosis', 'Pa / Pd at rest (mmHg)', 'Pa / Pd at hyperaemia (mmHg)', 'Mean Tmn at rest (s)', 'Mean Tmn at hyperaemia (s)', 'Wedge pressure (mmHg)'], rows);
 }
 
-function indexTable(analysis: PhysiologyResult): Table | null {
+/** The mark of a vessel whose drift check fell outside the window, in the indices table. */
+export const DRIFT_MARK = '†';
+
+function indexTable(analysis: PhysiologyResult, study: ReportStudy, t: Thresholds): Table | null {
+  const byId = new Map(study.vessels.map((v) => [v.id, v]));
+  const drifted = (id: string) => {
+    const d = byId.get(id)?.driftPdPa;
+    return isNum(d) && driftOutOfRange(d, t);
+  };
   const rows = analysis.vessels.map((r) => {
     const nhprText = r.nhpr !== undefined && r.nhprKind ? `${q(r.nhpr, 'ratio')} ${lowerFirst(nhprKindLabel[r.nhprKind])}` : null;
+    const name: Cell = drifted(r.id) ? { text: vesselShortName[r.vessel], mark: DRIFT_MARK } : { text: vesselShortName[r.vessel] };
     return [
-      { text: vesselShortName[r.vessel] },
+      name,
       r.ffr !== undefined ? flagCell(q(r.ffr, 'ratio'), r.ffrFlag) : null,
       nhprText ? flagCell(nhprText, r.nhprFlag) : null,
       r.restingPdPa !== undefined ? flagCell(q(r.restingPdPa, 'ratio'), r.restingPdPaFlag) : null,
@@ -396,7 +417,14 @@ function indexTable(analysis: PhysiologyResult): Table | null {
       r.mrr !== undefined ? flagCell(q(r.mrr, 'ratio'), r.mrrFlag) : null,
     ];
   });
-  return compact(['Vessel', 'FFR', 'Resting ratio', 'Resting Pd/Pa', 'CFR', 'IMR (U)', 'RRR', 'MRR'], rows);
+  const table = compact(['Vessel', 'FFR', 'Resting ratio', 'Resting Pd/Pa', 'CFR', 'IMR (U)', 'RRR', 'MRR'], rows);
+  const marked = table?.rows.filter((row) => row[0].mark === DRIFT_MARK).length ?? 0;
+  if (table && marked > 0) {
+    table.footnotes = [
+      `${DRIFT_MARK} Drift check outside ${q(t.driftLow, 'ratio')}–${q(t.driftHigh, 'ratio')}: pressure ratios of ${marked > 1 ? 'these vessels' : 'this vessel'} are less reliable.`,
+    ];
+  }
+  return table;
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -478,9 +506,10 @@ function vesselSentences(
     used.add('mrr');
     used.add('mrrBorderline');
     const method = r.mrrMethod === 'bolus-thermodilution' ? ' Computed from bolus thermodilution; these cut-offs were set with continuous thermodilution.' : '';
-    out.push(
-      `MRR ${q(r.mrr, 'ratio')}: ${judged(r.mrrFlag)} ${against('<', 'mrr')}; borderline from ${q(t.mrr, 'ratio')} to ${q(t.mrrBorderline, 'ratio')}.${method}${unused}`,
-    );
+    // One bracket for both cut-offs: abnormal below the MRR cut-off, normal above the borderline's upper limit.
+    const bands = t.mrrBorderline > t.mrr ? `abnormal < ${q(t.mrr, 'ratio')}, normal > ${q(t.mrrBorderline, 'ratio')}` : `abnormal < ${q(t.mrr, 'ratio')}`;
+    const sources = [...new Set([cite(t, 'mrr'), ...(t.mrrBorderline > t.mrr ? [cite(t, 'mrrBorderline')] : [])])].join('; ');
+    out.push(`MRR ${q(r.mrr, 'ratio')}: ${judged(r.mrrFlag)} (${bands}; ${sources}).${method}${unused}`);
   }
 
   // The epicardial verdict, in the words of the report's kind.
@@ -516,7 +545,8 @@ function vesselSentences(
   if (row?.pullbackPattern && row.pullbackPattern !== 'not-done') {
     out.push(sentence(`Pull-back: ${lowerFirst(vocabulary.pullbackPatternLabel[row.pullbackPattern])}`));
   }
-  if (row?.decision) out.push(sentence(`Decision: ${lowerFirst(vocabulary.decisionLabel[row.decision])}`));
+  const decision = row ? decisionText(row) : null;
+  if (row && decision) out.push(sentence(isLesion(row) ? `Decision: ${lowerFirst(decision)}` : decision));
   return out;
 }
 
@@ -535,7 +565,8 @@ function lesionSummary(study: ReportStudy, analysis: PhysiologyResult, afterPci:
             ? `resting Pd/Pa ${q(r.restingPdPa, 'ratio')}`
             : `visual stenosis ${stenosisText(r.visualStenosisPct ?? 0, t)} %`;
     const where = vesselTitle(r.vessel, row?.segment);
-    const decision = row?.decision ? `; ${lowerFirst(vocabulary.decisionLabel[row.decision])}` : '';
+    const decisionWords = row ? decisionText(row) : null;
+    const decision = decisionWords ? `; ${lowerFirst(decisionWords)}` : '';
     const verdict = afterPci
       ? r.obstructive
         ? 'significant gradient remains after intervention'
@@ -579,7 +610,8 @@ function acetylcholineSection(study: ReportStudy, analysis: PhysiologyResult, t:
     if (rhythm) vitals.push(lowerFirst(rhythm));
     if (vitals.length) notes.push(vitals.join(', '));
     return {
-      dose: isNum(d.micrograms) ? withUnit(d.micrograms, 'dose') : '—',
+      // Number and unit held together (no-break space, U+00A0) so a narrow column never splits "100 µg".
+      dose: isNum(d.micrograms) ? withUnit(d.micrograms, 'dose').replace(/ /g, NBSP) : '—',
       vessel: vesselShortName[d.vessel],
       constriction: isNum(d.constrictionPct) ? `${constrictionText(d.constrictionPct, t)} %` : '—',
       symptoms: yesNo(d.symptoms),
@@ -604,8 +636,11 @@ function acetylcholineSection(study: ReportStudy, analysis: PhysiologyResult, t:
     `Intracoronary acetylcholine into the ${joinAnd(vessels)}${amounts.length ? `, ${amounts.length === 1 ? 'one dose' : `${amounts.length} doses`} of ${joinAnd(amounts)} µg` : ''}, each followed by angiography`,
   );
   const outcome = analysis.vasoreactivity?.result;
+  // A negative test that stopped before the protocol's last dose says how far it went.
+  const sides = new Set(doses.map((d) => (rightCoronaryVessels.has(d.vessel) ? 'right' : 'left')));
+  const short = outcome === 'negative' ? shortfallText(protocolShortfalls(doses, t), sides.size > 1) : '';
   const result = outcome
-    ? `${sentence(`Result: ${lowerFirst(vasoreactivityOutcomeLabel[outcome])}`)} Spasm is judged as constriction of ${q(t.spasmConstrictionPct, 'percent')}% or more with the usual symptoms and ischaemic ECG changes (${cite(t, 'spasmConstrictionPct')}).`
+    ? `${sentence(`Result: ${lowerFirst(vasoreactivityOutcomeLabel[outcome])}${short ? ` ${short}` : ''}`)} Spasm is judged as constriction of ${q(t.spasmConstrictionPct, 'percent')}% or more with the usual symptoms and ischaemic ECG changes (${cite(t, 'spasmConstrictionPct')}).`
     : null;
   const v = study.vasoreactivity as ReportStudy['vasoreactivity'] & Record<string, unknown>;
   const ntg = isNum(v.reversalNitroglycerinMicrograms) ? ` ${withUnit(v.reversalNitroglycerinMicrograms, 'dose')}` : '';
@@ -633,6 +668,9 @@ function paragraphs(text: string | null | undefined): string[] {
     .filter((p) => p.length > 0);
 }
 
+/** Free text that opens by saying there was no complication ("No complication.", "None: …", "No complications; …"). */
+const saysNoComplication = (text: string) => /^(none|no complications?)\b/i.test(text.trim());
+
 function complicationLines(findings: ReportStudy['findings']): string[] {
   const kinds = (findings as { complicationKinds?: readonly string[] }).complicationKinds;
   const details = paragraphs(findings.complications);
@@ -641,8 +679,10 @@ function complicationLines(findings: ReportStudy['findings']): string[] {
     const named = kinds.filter((k) => k !== 'other' || details.length === 0);
     const labels = named.map((k) => labelOf(vocab.complicationLabel, k) ?? k).map((l) => l.replace(/\s*\(describe below\)$/i, ''));
     if (kinds.includes('none')) {
-      // Details that only repeat "none" are not printed twice.
-      return ['None.', ...details.filter((d) => !/^none\.?$/i.test(d))];
+      // Details that only repeat "none" are not printed twice; details that open by saying there was no
+      // complication stand alone, without "None." before them.
+      const said = details.filter((d) => !/^none\.?$/i.test(d));
+      return said.length > 0 && saysNoComplication(said[0]) ? said : ['None.', ...said];
     }
     const listed = labels.length ? [sentence(joinAnd(labels.map((l, i) => (i === 0 ? l : lowerFirst(l)))))] : [];
     return [...listed, ...details];
@@ -792,7 +832,7 @@ export function buildReportView(input: ReportInput): ReportView {
     },
     technique,
     measurements: measurementTable(study, analysis, t),
-    indices: indexTable(analysis),
+    indices: indexTable(analysis, study, t),
     interpretation,
     lesionSummary: kind === 'lesion' ? lesionSummary(study, analysis, afterPci, t) : [],
     acetylcholine,

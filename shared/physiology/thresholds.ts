@@ -129,9 +129,9 @@ export const thresholdSources: Readonly<Record<ThresholdKey, string>> = Object.f
   cfrBorderline: 'off by default (same as the CFR cut-off); a lab may raise it to 2.5 — ESC 2024 chronic coronary syndromes guideline (< 2.5); COVADIS ≤ 2.0–2.5',
   imr: 'ESC 2024; EAPCI 2020; COVADIS writes > 25',
   rrr: '[memory: CorMicA] cut-off; formula from Lee et al., JAHA 2020',
-  mrr: 'de Vos et al., JACC Cardiovasc Imaging 2023 (continuous thermodilution: < 2.1 rules in); De Bruyne et al. 2021 (formula)',
+  mrr: 'de Vos et al., JACC Cardiovasc Interv 2023;16(4):470–481 (continuous thermodilution: < 2.1 rules in); De Bruyne et al. 2021 (formula)',
   mrrBorderline:
-    'de Vos et al., JACC Cardiovasc Imaging 2023 (continuous thermodilution: > 2.7 rules out); the cut-off for bolus thermodilution is not settled (ILIAS, EHJ 2023, found 3.0)',
+    'de Vos et al., JACC Cardiovasc Interv 2023;16(4):470–481 (continuous thermodilution: > 2.7 rules out); the cut-off for bolus thermodilution is not settled (ILIAS, EHJ 2023, found 3.0)',
   ffrGreyZoneLow: 'DEFER/FAME history, Interv Cardiol Rev 2016 (grey zone 0.76–0.80, judged at two decimals)',
   driftLow:
     '[memory] 0.98–1.02 window; drift > 2 mmHg means repeat (interventional cardiology textbook; Cook et al., Circ Cardiovasc Interv 2016)',

@@ -1,4 +1,4 @@
-import { above, atOrAbove } from './compare';
+import { above, atOrAbove, below } from './compare';
 import { cutPlain } from './format';
 import { formatAgreeing } from './precision';
 import type { DoseInput, ProcedureInput } from './schema';
@@ -48,6 +48,49 @@ export function constrictionBand(pct: number, t: Pick<Thresholds, 'spasmConstric
 /** A constriction as text in the same band as the value judged: 89.6% prints "89.6", never "90". */
 export function constrictionText(pct: number, t: Pick<Thresholds, 'spasmConstrictionPct' | 'endothelialDysfunctionPct'>): string {
   return formatAgreeing(pct, 'percent', (x) => constrictionBand(x, t));
+}
+
+/** One artery whose acetylcholine doses stopped below the protocol's last dose. */
+export interface ProtocolShortfall {
+  /** Left coronary (LM, LAD, LCX and branches) or right coronary (RCA, PDA, PLB). */
+  side: 'left' | 'right';
+  /** The highest dose given into that artery (µg). */
+  highest: number;
+  /** The protocol's last dose for that artery (µg): the lab's acetylcholine maximum for it. */
+  last: number;
+}
+
+/**
+ * Each artery whose highest acetylcholine dose is below the protocol's last dose for it: 200 µg into
+ * the left coronary (ESC 2024 protocol: 2, 20, 100, 200 µg), 50 µg into the right (Japanese
+ * Circulation Society 2016: 20, 50 µg), or the lab's settings. Doses without an amount are skipped.
+ */
+export function protocolShortfalls(
+  doses: ReadonlyArray<{ vessel: DoseInput['vessel']; micrograms: number | null | undefined }>,
+  t: Pick<Thresholds, 'achMaxMicrograms' | 'achMaxMicrogramsRight'>,
+): ProtocolShortfall[] {
+  const out: ProtocolShortfall[] = [];
+  for (const side of ['left', 'right'] as const) {
+    const given = doses
+      .filter((d) => rightCoronaryVessels.has(d.vessel) === (side === 'right'))
+      .map((d) => d.micrograms)
+      .filter((m): m is number => typeof m === 'number' && Number.isFinite(m));
+    if (given.length === 0) continue;
+    const highest = Math.max(...given);
+    const last = side === 'right' ? t.achMaxMicrogramsRight : t.achMaxMicrograms;
+    if (below(highest, last, 'raw')) out.push({ side, highest, last });
+  }
+  return out;
+}
+
+/**
+ * "up to 100 µg; 200 µg not given (incomplete protocol)", one clause per artery short of its last dose;
+ * the artery is named when doses went into both. Empty when every artery reached its last dose.
+ */
+export function shortfallText(shortfalls: readonly ProtocolShortfall[], bothSides: boolean): string {
+  return shortfalls
+    .map((s) => `${bothSides ? `into the ${s.side} coronary ` : ''}up to ${cutPlain(s.highest)} µg; ${cutPlain(s.last)} µg not given (incomplete protocol)`)
+    .join('; ');
 }
 
 function doseName(d: DoseInput): string {
@@ -143,10 +186,16 @@ export function analyzeVasoreactivity(
         `Acetylcholine ${doseName(d)}: ${constrictionText(d.constrictionPct, t)}% constriction without symptoms or ischaemic ECG changes, at or above ${edPct}% (${cite(t, 'endothelialDysfunctionPct')}) — endothelial dysfunction, not spasm (${src}).`,
       );
       break;
-    default:
+    default: {
+      // A test that stopped before the protocol's last dose is negative only as far as it went.
+      const bothSides = new Set(doses.map((x) => rightCoronaryVessels.has(x.vessel))).size > 1;
+      const short = protocolShortfalls(doses, t)
+        .map((s) => `${bothSides ? `into the ${s.side} coronary ` : ''}up to ${cutPlain(s.highest)} µg (${cutPlain(s.last)} µg not given: incomplete protocol)`)
+        .join(' and ');
       reasons.push(
-        `Acetylcholine testing was negative: maximum constriction ${constrictionText(maxPct, t)}% (below ${edPct}%, ${cite(t, 'endothelialDysfunctionPct')}) and no dose reproduced symptoms or ischaemic ECG changes (${src}).`,
+        `Acetylcholine testing was negative${short ? ` ${short}` : ''}: maximum constriction ${constrictionText(maxPct, t)}% (below ${edPct}%, ${cite(t, 'endothelialDysfunctionPct')}) and no dose reproduced symptoms or ischaemic ECG changes (${src}).`,
       );
+    }
   }
   return { result: worst, doses: out, warnings };
 }

@@ -246,7 +246,8 @@ describe('findings rules', () => {
       // The RRR cut-off 2.0 is recalled (CorMicA) [memory], not confirmed from a source, and says so.
       'LAD: RRR 1.62 is below the 2.00 cut-off (cut-off source not confirmed) — reduced resistive reserve.',
       'LAD: MRR 1.67 is below the 2.10 cut-off — reduced microvascular resistance reserve; MRR here comes from bolus thermodilution, while its cut-offs were set with continuous thermodilution (de Vos 2023); the bolus cut-off is not settled.',
-      'Acetylcholine testing was negative: maximum constriction 10% (below 20%, common practice; source not confirmed) and no dose reproduced symptoms or ischaemic ECG changes (COVADIS; ESC 2024).',
+      // One dose of 100 µg into the LAD: short of the 200 µg last dose of the ESC 2024 protocol (2, 20, 100, 200 µg).
+      'Acetylcholine testing was negative up to 100 µg (200 µg not given: incomplete protocol): maximum constriction 10% (below 20%, common practice; source not confirmed) and no dose reproduced symptoms or ischaemic ECG changes (COVADIS; ESC 2024).',
       'Endotype: microvascular angina (structural microvascular dysfunction in LAD: CFR below 2.00 with IMR at or above 25) with no obstructive stenosis (COVADIS; EAPCI 2020).',
     ]);
     expect(r.vessels[0].imr).toBeCloseTo(36, 10);

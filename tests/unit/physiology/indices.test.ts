@@ -328,7 +328,7 @@ describe('RRR and MRR', () => {
   });
 
   // CFR 2.0, FFR 0.80 → CFR/FFR 2.5; MRR = 2.5 × Pa rest / Pa hyp (Pa hyp 100). Cut-offs from continuous
-  // thermodilution (de Vos et al., JACC Cardiovasc Imaging 2023): < 2.1 rules in, > 2.7 rules out, between
+  // thermodilution (de Vos et al., JACC Cardiovasc Interv 2023;16(4):470–481): < 2.1 rules in, > 2.7 rules out, between
   // is borderline (the bolus cut-off is not settled).
   it.each([
     { restPa: 83.6, mrr: 2.09, flag: 'abnormal' },

@@ -29,7 +29,8 @@ describe('the report as a structured document', () => {
       const doc = reportDocument(view);
       // The text prints thresholds as "label: value (source)" lines, without the table's column names.
       const thresholdColumns = ['Criterion', 'Value', 'Source'];
-      for (const s of documentStrings(doc).filter((x) => !thresholdColumns.includes(x))) {
+      // A dose cell holds its number to its unit with a no-break space; the plain text has a plain one.
+      for (const s of documentStrings(doc).filter((x) => !thresholdColumns.includes(x)).map((x) => x.replace(/\u00a0/g, ' '))) {
         // Table cells and labels appear padded or followed by ":" in the text; headings in capitals.
         const found = text.includes(s) || text.includes(s.toUpperCase()) || text.replace(/\n/g, ' ').includes(s);
         expect(found, `${study.accession}: "${s}"`).toBe(true);

@@ -76,7 +76,7 @@ describe('template sections', () => {
   it('technique: access, guide, anticoagulation, nitrates, hyperaemia, wire position, equalization, drift', () => {
     const t = section(render(lad).text, 'PROCEDURE AND TECHNIQUE')!;
     expect(t).toContain('Right radial access; 6 Fr guide catheter.');
-    expect(t).toContain('Heparin 5000 U.');
+    expect(t).toContain('Heparin 5000 U (60 U/kg).'); // 5000 U / 84 kg = 59.5 U/kg
     expect(t).toContain('Nitroglycerin 200 µg given before the measurements.');
     expect(t).toContain('Baseline: heart rate 68 bpm, blood pressure 132/74 mmHg, sinus rhythm, LVEDP 14 mmHg.');
     expect(t).toContain('Hyperaemia with intravenous adenosine 140 µg/kg/min.');
