@@ -141,7 +141,7 @@ async function main(): Promise<void> {
           return `    ${name.padEnd(26)} ${f(x.p50)} ${f(x.p95)}`;
         };
         console.log(`  steps (ms)                      p50     p95`);
-        for (const n of names) console.log(row(n === 'report' ? 'report (with the PDF)' : n, steps.map((s) => s.spans[n])));
+        for (const n of names) console.log(row(n === 'report' ? 'report text (no PDF)' : n, steps.map((s) => s.spans[n])));
         console.log(row('  of which the PDF step', pdfTimes));
         console.log(row('signStudy in all', steps.map((s) => s.totalMs)));
         if (steps.length === times.length) console.log(row('outside signStudy', times.map((t, i) => t - steps[i].totalMs)));

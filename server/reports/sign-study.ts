@@ -1,5 +1,6 @@
 import { randomUUID } from 'node:crypto';
 import type { SignedVersionSummary } from '../../shared/report/preview';
+import type { StudyRecord } from '../../shared/study/schema';
 import diagnosticsChannel from 'node:diagnostics_channel';
 import type { DataSource, EntityManager } from 'typeorm';
 import { checkCompleteness } from '../../shared/report/completeness';
@@ -9,7 +10,7 @@ import { auditColumns, auditParameters, type AuditActor, type AuditEntry } from 
 import { ReportVersion } from '../db/entities/report-version.entity';
 import { InvalidRequestError, RecordNotFoundError } from '../errors';
 import { ATTESTATION, prepareSignedText, renderSignedPdf, type AmendedVersion } from '../report-document';
-import { loadStudy, StaleVersionError } from '../studies/repository';
+import { StaleVersionError, studyRecordColumns, studyRecordFrom, studyRecordOf } from '../studies/repository';
 import { inPooledTransaction, namedStatement, preparedOn } from '../db/prepared';
 import type { PoolClient } from 'pg';
 import { IncompleteStudyError, TransitionRefusedError } from './errors';
@@ -87,7 +88,8 @@ export async function signStudy(dataSource: DataSource, req: SignStudyRequest): 
     // The study's row is locked first; its record and the signing context are then read from a
     // snapshot taken after the lock, so a signer who waited reads what the other writer committed.
     const [locked] = await preparedOn(client, `SELECT id FROM study WHERE id = $1 FOR UPDATE`, [req.studyId]);
-    const record = locked ? await loadStudy(client, req.studyId) : null;
+    const read = locked ? await signingRead(client, req.studyId, req.now ?? null) : null;
+    const record = read?.record ?? null;
     if (!record) throw new RecordNotFoundError('No study has this id.');
     const state = record.state;
     const addendum = state === 'amending';
@@ -99,9 +101,9 @@ export async function signStudy(dataSource: DataSource, req: SignStudyRequest): 
     }
     const completeness = checkCompleteness(record);
     if (!completeness.complete) throw new IncompleteStudyError(completeness.missing);
-    step('load');
+    step('load');  // the lock, then the record with the signing context (one statement)
 
-    const context = await signingContext(client, req.studyId, req.now ?? null);
+    const context = read!.context;
     const { previous } = context;
     const signedAt: Date = req.now ?? context.now;
     const thresholds = chooseThresholds(addendum ? previous : null, () => context.inForce, req.thresholds ?? 'original');
@@ -193,28 +195,36 @@ interface SigningContext {
 }
 
 /**
- * The previous version, the transaction's time, the thresholds in force at the signing time (`at`,
- * else the transaction's time), the lab's settings, the operator's name and the study's coding so far
- * (its review row locked), in one round trip.
+ * After the study's row is locked: its record, and beside it the previous version, the transaction's
+ * time, the thresholds in force at the signing time (`at`, else the transaction's time), the lab's
+ * settings, the operator's name and the study's coding so far (its review row locked), in one round trip.
  */
-async function signingContext(client: PoolClient, studyId: string, at: Date | null): Promise<SigningContext> {
+async function signingRead(client: PoolClient, studyId: string, at: Date | null): Promise<{ record: StudyRecord; context: SigningContext } | null> {
   // eslint-disable-next-line @typescript-eslint/no-explicit-any
   const [row] = await preparedOn<any>(client,
-    `SELECT now() AS now,
+    `SELECT ${studyRecordColumns},
+            now() AS now,
             prev.id AS prev_id, prev.version_no AS prev_version_no, prev.thresholds AS prev_thresholds, prev.threshold_set_id AS prev_set_id,
             prev.signed_at AS prev_signed_at, prev.signer_name AS prev_signer_name, prev.content_sha256 AS prev_content_sha256, prev.snapshot AS prev_snapshot,
             (SELECT effective_from FROM threshold_set WHERE id = prev.threshold_set_id) AS prev_set_effective_from,
             ts.id AS set_id, ts.effective_from AS set_effective_from, ts.values AS set_values,
             l.time_zone, l.template_version,
-            (SELECT u.display_name FROM study s JOIN app_user u ON u.id = s.operator_id WHERE s.id = $1) AS operator_name,
+            (SELECT u.display_name FROM app_user u WHERE u.id = s.operator_id) AS operator_name,
             ${codingBeforeSql('$1::uuid', '2147483647')}
-     FROM (SELECT 1) AS one
+     FROM ${studyRecordFrom}
      LEFT JOIN LATERAL (SELECT id, version_no, thresholds, threshold_set_id, signed_at, signer_name, content_sha256, snapshot FROM report_version WHERE study_id = $1 ORDER BY version_no DESC LIMIT 1) prev ON true
      LEFT JOIN LATERAL (SELECT id, effective_from, values FROM threshold_set WHERE effective_from <= COALESCE($2::timestamptz, now()) ORDER BY effective_from DESC, id DESC LIMIT 1) ts ON true
      LEFT JOIN lab_settings l ON l.id = 1
-     ${codingBeforeJoin('$1::uuid')}`,
+     ${codingBeforeJoin('$1::uuid')}
+     WHERE s.id = $1`,
     [studyId, at],
   );
+  if (!row) return null;
+  return { record: studyRecordOf(row), context: contextOf(row) };
+}
+
+// eslint-disable-next-line @typescript-eslint/no-explicit-any
+function contextOf(row: any): SigningContext {
   return {
     now: row.now,
     previous:

@@ -43,8 +43,16 @@ type Intervention = StudySections['coding']['interventions'][number];
 export async function loadStudy(db: Db, id: string): Promise<StudyRecord | null> {
   // SQL kept, as a named prepared statement: read on every save, preview and signature (one round trip).
   // eslint-disable-next-line @typescript-eslint/no-explicit-any
-  const [row] = await preparedOn<any>(db,
-    `SELECT s.id, s.accession, s.state, s.version, s.created_at, s.updated_at,
+  const [row] = await preparedOn<any>(db, `SELECT ${studyRecordColumns} FROM ${studyRecordFrom} WHERE s.id = $1`, [id]);
+  return row ? studyRecordOf(row) : null;
+}
+
+/**
+ * The select list of a study record over `studyRecordFrom` (study `s`, patient `p`), `$1` being the
+ * study's id; `studyRecordOf` reads a row of it. For a statement that reads more beside the record
+ * (the signing context) in the same round trip.
+ */
+export const studyRecordColumns = `s.id, s.accession, s.state, s.version, s.created_at, s.updated_at,
             p.mrn, p.family_name, p.given_name, to_char(p.birth_date, 'YYYY-MM-DD') AS birth_date, p.sex,
             ${selectList(detailsColumns, 's', 'details')}, ${selectList(setupColumns, 's', 'setup')}, ${selectList(findingsColumns, 's', 'findings')},
             ${selectList(vasoreactivityColumns, 's', 'vaso')}, ${selectList(codingColumns, 's', 'coding')},
@@ -66,11 +74,11 @@ export async function loadStudy(db: Db, id: string): Promise<StudyRecord | null>
        (SELECT COALESCE(json_agg(json_build_object(
                  'id', a.id, 'fileName', a.file_name, 'mediaType', a.media_type, 'sizeBytes', a.size_bytes::float8, 'sha256', a.sha256,
                  'uploadedAt', a.uploaded_at, 'uploadedBy', u.display_name) ORDER BY a.uploaded_at, a.id), '[]')
-        FROM attachment a LEFT JOIN app_user u ON u.id = a.uploaded_by WHERE a.study_id = $1) AS attachments
-     FROM study s JOIN patient p ON p.id = s.patient_id WHERE s.id = $1`,
-    [id],
-  );
-  if (!row) return null;
+        FROM attachment a LEFT JOIN app_user u ON u.id = a.uploaded_by WHERE a.study_id = $1) AS attachments`;
+export const studyRecordFrom = 'study s JOIN patient p ON p.id = s.patient_id';
+
+// eslint-disable-next-line @typescript-eslint/no-explicit-any
+export function studyRecordOf(row: any): StudyRecord {
   const parts = partsOf(row);
   return {
     id: row.id,
