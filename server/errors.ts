@@ -4,11 +4,10 @@
  * statuses and problem types.
  */
 
+import type { FieldProblem } from '../shared/http/problem';
+
 /** One field a domain error points at (a JSON pointer into the request, RFC 6901) and what is wrong there. */
-export interface FieldIssue {
-  pointer: string;
-  detail: string;
-}
+export type FieldIssue = FieldProblem;
 
 /** Nothing by this id (a study, a report version, a code line): the detail names what was looked for. */
 export class RecordNotFoundError extends Error {

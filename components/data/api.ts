@@ -1,11 +1,7 @@
+import type { Problem } from '../../shared/http/problem';
+
 /** A problem+json answer from the server, kept whole so forms can place field errors. */
-export interface ApiProblem {
-  type: string;
-  title: string;
-  status: number;
-  detail?: string;
-  errors?: { pointer: string; detail: string }[];
-}
+export type ApiProblem = Problem;
 
 export class ApiError extends Error {
   constructor(public readonly problem: ApiProblem) {

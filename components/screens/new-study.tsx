@@ -2,6 +2,7 @@ import { StyleSheet, View } from 'react-native';
 import { useRouter } from 'expo-router';
 import { FormProvider, useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
+import { pathOfPointer } from '../../shared/http/problem';
 import { createStudySchema, type CreateStudy } from '../../shared/study/schema';
 import { clinicalQuestionLabel, sexLabel } from '../../shared/study/vocabulary';
 import { ChoiceField, TextField } from '../form/fields';
@@ -30,7 +31,7 @@ export default function NewStudyPage() {
       router.replace(`/studies/${study.id}/setup`);
     } catch (error) {
       if (error instanceof ApiError && error.problem.errors) {
-        for (const e of error.problem.errors) form.setError(e.pointer.slice(1).replaceAll('/', '.') as never, { type: 'server', message: e.detail });
+        for (const e of error.problem.errors) form.setError(pathOfPointer(e.pointer).join('.') as never, { type: 'server', message: e.detail });
       } else {
         form.setError('root', { message: error instanceof Error ? error.message : 'The study could not be opened.' });
       }

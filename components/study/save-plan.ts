@@ -5,18 +5,14 @@
 import { sectionNames, studySectionsSchema, type SectionName, type StudyRecord, type StudySections } from '../../shared/study/schema';
 import { sameValue } from '../../shared/study/merge';
 
+import { pathOfPointer, pointerOf, type Problem } from '../../shared/http/problem';
+
 // ── Which fields go ─────────────────────────────────────────────────────────────────────────────
 
 /** A path inside the sections: section name, then keys and row indexes. */
 export type FieldPath = (string | number)[];
 
-const pointerOf = (path: FieldPath) => '/' + path.map((s) => String(s).replaceAll('~', '~0').replaceAll('/', '~1')).join('/');
-export const pathOfPointer = (pointer: string): FieldPath =>
-  pointer
-    .split('/')
-    .slice(1)
-    .map((p) => p.replaceAll('~1', '/').replaceAll('~0', '~'))
-    .map((p) => (/^\d+$/.test(p) ? Number(p) : p));
+export { pathOfPointer };
 /** The react-hook-form name of a field ("vessels.0.restPa"). */
 export const formNameOf = (path: FieldPath) => path.join('.');
 
@@ -134,7 +130,7 @@ export function planSave(values: StudySections, server: StudySections, heldBySer
 /** The parts of a failed request the decisions need (an ApiError has them). */
 export interface SaveFailure {
   status: number;
-  problem?: { type?: string; detail?: string; errors?: { pointer: string; detail: string }[]; current?: StudyRecord };
+  problem?: Partial<Pick<Problem, 'type' | 'detail' | 'errors'>> & { current?: StudyRecord };
 }
 
 export type StopReason = 'signed-out' | 'signed' | 'forbidden' | 'refused' | 'gone';

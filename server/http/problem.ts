@@ -2,21 +2,9 @@ import type { ErrorRequestHandler, RequestHandler } from 'express';
 import { isDatabaseUnavailable, retryAfterSeconds } from '../db/availability';
 import { httpErrorOf } from './domain-errors';
 
-/** One field-level problem, located by a JSON pointer into the request body (RFC 6901). */
-export interface FieldProblem {
-  pointer: string;
-  detail: string;
-}
+import { pointerOf, type FieldProblem, type Problem } from '../../shared/http/problem';
 
-/** RFC 9457 problem details. */
-export interface Problem {
-  type: string;
-  title: string;
-  status: number;
-  detail?: string;
-  instance?: string;
-  errors?: FieldProblem[];
-}
+export { pointerOf, type FieldProblem, type Problem };
 
 const PROBLEM_BASE = 'https://isobar.example/problems/';
 
@@ -69,11 +57,6 @@ export class UnprocessableError extends HttpError {
   constructor(detail: string, errors?: FieldProblem[]) {
     super(422, 'unprocessable', 'A field cannot be accepted', detail, errors);
   }
-}
-
-/** RFC 6901 JSON pointer for a path of keys. */
-export function pointerOf(path: readonly PropertyKey[]): string {
-  return path.map((p) => '/' + String(p).replaceAll('~', '~0').replaceAll('/', '~1')).join('');
 }
 
 type ErrorLike = { type?: string; status?: number; statusCode?: number; expose?: boolean; code?: string; name?: string; issues?: unknown; message?: string };
