@@ -302,8 +302,9 @@ describe('overdue notices', () => {
     const study = await seedStudy({ operatorId: physician, endedAt: new Date(Date.now() - 25 * H) });
     const recent = await seedStudy({ operatorId: physician, endedAt: new Date(Date.now() - 2 * H) });
     const settings = await labSettings(db);
-    const smtpPort = 20000 + Math.floor(Math.random() * 20000);
-    const smtp = await startFakeSmtp({ port: smtpPort, httpPort: 0 });
+    // A port the system chooses: a random one could already be taken by another connection.
+    const smtp = await startFakeSmtp({ port: 0, httpPort: 0 });
+    const smtpPort = smtp.port;
     const taskList = {
       'queue-overdue-notices': queueOverdueNoticesTask(db),
       'send-overdue-notice': sendOverdueNoticeTask(db, { host: '127.0.0.1', port: smtpPort, from: 'Isobar <isobar@hospital.example>', publicUrl: 'https://isobar.hospital.example' }),
