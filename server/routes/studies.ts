@@ -13,7 +13,7 @@ import type { ApiRoute } from '../http/routes';
 import { parseOrThrow, uuidParam } from '../http/validate';
 import { analyseStudy } from '../studies/analyse-study';
 import { editStudy } from '../studies/edit-study';
-import { listOperators } from '../studies/list-operators';
+import { listOperators } from '../studies/operators';
 import { openStudy } from '../studies/open-study';
 import { readAwaitingSignature } from '../studies/read-awaiting-signature';
 import { readStudy } from '../studies/read-study';
