@@ -213,9 +213,6 @@ export async function lockEditableStudy(db: EntityManager, id: string): Promise<
   return { patientId: row.patientId, version: row.version };
 }
 
-/** Who did it, for the audit row written inside the change's transaction. */
-export type { AuditActor } from '../audit/audit';
-
 /** A readable, unique accession when the hospital's system has not supplied one. */
 async function nextAccession(db: EntityManager, at: Date): Promise<string> {
   const day = at.toISOString().slice(0, 10).replaceAll('-', '');
