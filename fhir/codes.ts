@@ -1,4 +1,5 @@
 import type { Coding } from 'fhir/r4';
+import type { PatientClass } from '../shared/coding/schema';
 import type { Endotype, VasoreactivityOutcome } from '../shared/physiology/types';
 import type { VesselCode } from '../shared/physiology/schema';
 
@@ -57,7 +58,7 @@ export const interpretation = {
 export const encounterClass = {
   inpatient: { system: V3_ACT_CODE, code: 'IMP', display: 'inpatient encounter' },
   outpatient: { system: V3_ACT_CODE, code: 'AMB', display: 'ambulatory' },
-} as const satisfies Record<string, Coding>;
+} as const satisfies Record<PatientClass, Coding>;
 
 /** A concept of Isobar's CodeSystem. */
 export interface LocalConcept {

@@ -19,7 +19,10 @@ import { z } from 'zod';
 import { displayDecimals, roundForDisplay, roundHalfAway, type QuantityKind } from '../shared/physiology/precision';
 import { nhprKinds, vesselCodes, type NhprKind } from '../shared/physiology/schema';
 import { cutOffKind, cutOffRule, resolveThresholds, thresholdsSchema, type CutOffRule, type IndexCutOffKey, type Thresholds } from '../shared/physiology/thresholds';
-import type { Flag } from '../shared/physiology/types';
+import { endotypes, flags, imrMethods, vasoreactivityOutcomes, type Flag, type ImrMethod } from '../shared/physiology/types';
+import { reportVersionStatuses } from '../shared/report/version-status';
+import { patientClasses } from '../shared/coding/schema';
+import { sexes } from '../shared/study/vocabulary';
 import { vesselLongName } from '../shared/physiology/vessels';
 import { endotypeName } from '../shared/physiology/labels';
 import {
@@ -62,7 +65,7 @@ const personSchema = z.strictObject({
   identifier: identifierSchema.optional(),
 });
 
-const flagSchema = z.enum(['normal', 'abnormal', 'borderline']);
+const flagSchema = z.enum(flags);
 const finite = z.number();
 
 /**
@@ -88,7 +91,7 @@ const vesselSchema = z.object({
   imr: finite.optional(),
   imrFlag: flagSchema.optional(),
   imrUncorrected: finite.optional(),
-  imrMethod: z.enum(['pd-tmn', 'wedge', 'yong']).optional(),
+  imrMethod: z.enum(imrMethods).optional(),
   rrr: finite.optional(),
   rrrFlag: flagSchema.optional(),
   mrr: finite.optional(),
@@ -99,9 +102,9 @@ const vesselSchema = z.object({
 const analysisSchema = z.object({
   vessels: z.array(vesselSchema),
   vasoreactivity: z
-    .object({ result: z.enum(['epicardial-spasm', 'microvascular-spasm', 'endothelial-dysfunction', 'equivocal', 'negative']) })
+    .object({ result: z.enum(vasoreactivityOutcomes) })
     .optional(),
-  endotype: z.enum(['obstructive', 'microvascular-angina', 'vasospastic-angina', 'mixed', 'no-abnormality', 'inconclusive']),
+  endotype: z.enum(endotypes),
   /** Angina as recorded; without it the text names dysfunction and spasm, not angina (COVADIS needs the symptom). */
   angina: z.boolean().optional(),
 });
@@ -120,7 +123,7 @@ export const reportBundleInputSchema = z
       /** Isobar's id of the report: the same for every version of it. */
       id: z.string().min(1),
       version: z.number().int().min(1),
-      status: z.enum(['final', 'amended', 'entered-in-error']),
+      status: z.enum([...reportVersionStatuses, 'entered-in-error']),
       /** The version an amended report replaces. */
       previousVersion: z.number().int().min(1).optional(),
       signedAt: dateTime,
@@ -132,9 +135,9 @@ export const reportBundleInputSchema = z
       family: z.string().min(1),
       given: z.array(z.string().min(1)).default([]),
       birthDate: z.iso.date(),
-      sex: z.enum(['male', 'female', 'other', 'unknown']),
+      sex: z.enum(sexes),
     }),
-    encounter: z.strictObject({ identifier: identifierSchema, class: z.enum(['inpatient', 'outpatient']) }).optional(),
+    encounter: z.strictObject({ identifier: identifierSchema, class: z.enum(patientClasses) }).optional(),
     /** The order the study answers, by its accession number. */
     accession: identifierSchema.optional(),
     procedure: z.strictObject({ start: dateTime, end: dateTime.optional() }),
@@ -285,7 +288,7 @@ const nhprConcept: Record<NhprKind, { concept: LocalConceptKey; threshold: 'nhpr
   'full-cycle-minimum': { concept: 'nhprFullCycleMinimum', threshold: 'nhprFullCycleMinimum' },
 };
 
-const imrMethodConcept = { 'pd-tmn': 'imrPdTmn', wedge: 'imrWedge', yong: 'imrYong' } as const satisfies Record<string, LocalConceptKey>;
+const imrMethodConcept: Readonly<Record<ImrMethod, LocalConceptKey>> = { 'pd-tmn': 'imrPdTmn', wedge: 'imrWedge', yong: 'imrYong' };
 
 /** What one Observation says, before the fields every Observation shares. */
 interface Measured {

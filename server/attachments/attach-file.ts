@@ -1,12 +1,12 @@
+import fs from 'node:fs';
 import type { DataSource } from 'typeorm';
 import type { AttachmentSummary } from '../../shared/study/schema';
 import { Attachment } from '../db/entities/measurement.entities';
-import { recordAudit } from '../audit/audit';
-import { lockEditableStudy, type AuditActor } from '../studies/repository';
+import { recordAudit, type AuditActor } from '../audit/audit';
+import { lockEditableStudy } from '../studies/repository';
 import { cleanFileName, detectMediaTypeOfFile, nameDisagreesWith, withExtension } from './content-type';
 import { NoFileError, UnsupportedFileTypeError } from './errors';
-import type { AttachmentStorage } from './storage';
-import { headOf, type StreamedFile } from './upload';
+import type { AttachmentStorage, StreamedFile } from './storage';
 
 /** The attachment as lists show it; the route adds who uploaded it. */
 export type AttachedFile = Omit<AttachmentSummary, 'uploadedBy'>;
@@ -68,5 +68,17 @@ export async function attachFile(
     return { id: saved.id, fileName, mediaType, sizeBytes: file.size, sha256: file.sha256, uploadedAt: saved.uploadedAt.toISOString() };
   } finally {
     if (!adopted) await storage.discard(file.path).catch(() => undefined);
+  }
+}
+
+/** The first bytes of a file (enough for a type signature). */
+async function headOf(file: string, bytes = 4100): Promise<Buffer> {
+  const handle = await fs.promises.open(file, 'r');
+  try {
+    const buffer = Buffer.alloc(bytes);
+    const { bytesRead } = await handle.read(buffer, 0, bytes, 0);
+    return buffer.subarray(0, bytesRead);
+  } finally {
+    await handle.close();
   }
 }

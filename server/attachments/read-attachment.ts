@@ -1,8 +1,7 @@
 import type { DataSource } from 'typeorm';
 import { neutraliseCsv } from '../../shared/csv/neutralise';
-import { recordAudit } from '../audit/audit';
+import { recordAudit, type AuditActor } from '../audit/audit';
 import { Attachment } from '../db/entities/measurement.entities';
-import type { AuditActor } from '../studies/repository';
 import { AttachmentNotFoundError } from './errors';
 import type { AttachmentStorage } from './storage';
 

@@ -1,7 +1,7 @@
 import type { DataSource } from 'typeorm';
-import { recordAudit } from '../audit/audit';
+import { recordAudit, type AuditActor } from '../audit/audit';
 import { Attachment } from '../db/entities/measurement.entities';
-import { lockEditableStudy, type AuditActor } from '../studies/repository';
+import { lockEditableStudy } from '../studies/repository';
 import { AttachmentNotFoundError } from './errors';
 import type { AttachmentStorage } from './storage';
 

@@ -2,6 +2,13 @@ import { createHash, randomUUID } from 'node:crypto';
 import fs from 'node:fs/promises';
 import path from 'node:path';
 
+/** What the upload engine leaves on `req.file`: the bytes on disk, their size and SHA-256. */
+export interface StreamedFile {
+  path: string;
+  size: number;
+  sha256: string;
+}
+
 /** Where attachment bytes live. The disk store is local; an object store can implement the same. */
 export interface AttachmentStorage {
   put(bytes: Buffer): Promise<{ key: string; sha256: string }>;

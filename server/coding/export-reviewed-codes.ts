@@ -1,6 +1,5 @@
 import type { DataSource } from 'typeorm';
-import { recordAudit } from '../audit/audit';
-import type { AuditActor } from '../studies/repository';
+import { recordAudit, type AuditActor } from '../audit/audit';
 import { listReviewedCodes, type ExportedCode } from './queries/reviewed-codes';
 
 /** The reviewed codes of the studies coded between two days, the export recorded in the audit trail with its format and the studies it held. */

@@ -1,7 +1,6 @@
 import type { DataSource } from 'typeorm';
 import type { ReviewView } from '../../shared/coding/review';
-import { recordAudit } from '../audit/audit';
-import type { AuditActor } from '../studies/repository';
+import { recordAudit, type AuditActor } from '../audit/audit';
 import { loadReview } from './queries/review';
 
 /** A study's code review, the read recorded in the audit trail. */

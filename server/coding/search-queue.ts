@@ -1,7 +1,6 @@
 import type { DataSource } from 'typeorm';
 import type { CodingQueueQuery, QueueItem } from '../../shared/coding/review';
-import { recordAudit } from '../audit/audit';
-import type { AuditActor } from '../studies/repository';
+import { recordAudit, type AuditActor } from '../audit/audit';
 import { listQueue } from './queries/queue';
 
 /** The coding queue under the filters, the search recorded in the audit trail with the studies it showed. */

@@ -2,7 +2,9 @@ import type { Bundle } from 'fhir/r4';
 import { z } from 'zod';
 import { IDENTIFIER_SYSTEMS } from '../../fhir/codes';
 import { reportBundleInputSchema, toReportBundle, type ReportBundleInput } from '../../fhir/report-bundle';
-import { coronarySegments } from '../../shared/study/vocabulary';
+import { patientClasses } from '../../shared/coding/schema';
+import { coronarySegments, sexes } from '../../shared/study/vocabulary';
+import type { ReportVersionStatus } from '../../shared/report/version-status';
 
 /**
  * From a stored, signed report version to the FHIR transaction Bundle the EHR receives. Everything
@@ -15,7 +17,7 @@ export interface StoredReportVersion {
   id: string;
   studyId: string;
   versionNo: number;
-  status: 'final' | 'amended';
+  status: ReportVersionStatus;
   snapshot: unknown;
   analysis: unknown;
   thresholds: unknown;
@@ -45,19 +47,19 @@ const snapshotSchema = z.object({
     familyName: z.string().min(1),
     givenName: z.string().min(1),
     birthDate: z.iso.date(),
-    sex: z.enum(['male', 'female', 'other', 'unknown']),
+    sex: z.enum(sexes),
   }),
   details: z.object({
     encounter: optionalText,
     procedureStartedAt: z.iso.datetime({ offset: true, error: 'The signed record has no procedure start.' }),
     procedureEndedAt: z.iso.datetime({ offset: true }).nullable().optional().catch(null),
     operatorId: z.string().nullable().optional(),
-    patientClass: z.enum(['inpatient', 'outpatient']).nullable().optional().catch(null),
+    patientClass: z.enum(patientClasses).nullable().optional().catch(null),
     anginaPresent: z.boolean().nullable().optional().catch(null),
   }),
   vessels: z.array(z.object({ id: z.string(), segment: z.string().nullable().optional() })).optional().default([]),
   findings: z.object({ impression: optionalText }).optional(),
-  coding: z.object({ patientClass: z.enum(['inpatient', 'outpatient']).nullable().optional().catch(null) }).optional().catch(undefined),
+  coding: z.object({ patientClass: z.enum(patientClasses).nullable().optional().catch(null) }).optional().catch(undefined),
 });
 
 const analysisSchema = z.object({ vessels: z.array(z.object({ id: z.string() }).passthrough()) }).passthrough();

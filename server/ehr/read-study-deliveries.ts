@@ -1,9 +1,8 @@
 import type { DataSource } from 'typeorm';
 import type { StudyDelivery } from '../../shared/delivery/status';
-import { recordAudit } from '../audit/audit';
+import { recordAudit, type AuditActor } from '../audit/audit';
 import { Study } from '../db/entities/study.entity';
 import { RecordNotFoundError } from '../errors';
-import type { AuditActor } from '../studies/repository';
 import { listStudyDeliveries } from './queries/deliveries';
 
 /** The EHR delivery of each signed version of a study, the read recorded in the audit trail. */

@@ -1,6 +1,5 @@
 import type { DataSource } from 'typeorm';
-import { recordAudit } from '../audit/audit';
-import type { AuditActor } from '../studies/repository';
+import { recordAudit, type AuditActor } from '../audit/audit';
 import { requeueDelivery } from './queries/delivery-resend';
 
 /** Sends a signed report version to the EHR again at a user's request, recorded in the audit trail with the status it had. */

@@ -1,7 +1,6 @@
 import type { DataSource } from 'typeorm';
 import type { DeliveryListItem, DeliveryStatus } from '../../shared/delivery/status';
-import { recordAudit } from '../audit/audit';
-import type { AuditActor } from '../studies/repository';
+import { recordAudit, type AuditActor } from '../audit/audit';
 import { listDeliveriesNeedingAttention } from './queries/deliveries';
 
 /** The deliveries needing attention, the read recorded in the audit trail with the report versions it showed. */

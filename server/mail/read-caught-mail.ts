@@ -1,6 +1,5 @@
 import type { DataSource } from 'typeorm';
-import { recordAudit } from '../audit/audit';
-import type { AuditActor } from '../studies/repository';
+import { recordAudit, type AuditActor } from '../audit/audit';
 import { listCaughtMail } from './queries/caught-mail';
 
 /** What the local mail stand-in caught, newest first; the read recorded in the audit trail. */

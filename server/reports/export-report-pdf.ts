@@ -1,9 +1,8 @@
 import type { DataSource } from 'typeorm';
-import { recordAudit } from '../audit/audit';
+import { recordAudit, type AuditActor } from '../audit/audit';
 import { ReportPdf } from '../db/entities/report-version.entity';
 import { Study } from '../db/entities/study.entity';
 import { RecordNotFoundError } from '../errors';
-import type { AuditActor } from '../studies/repository';
 
 /**
  * A signed version's PDF, byte for byte as signed, with its checksum and a file name made of the

@@ -1,6 +1,5 @@
 import type { DataSource } from 'typeorm';
-import { recordAudit } from '../audit/audit';
-import type { AuditActor } from '../studies/repository';
+import { recordAudit, type AuditActor } from '../audit/audit';
 import { findSignedVersion, type Verification } from './queries/report-verification';
 
 /** Which study and version a PDF or a printed fingerprint is; the check is recorded in the audit trail. */

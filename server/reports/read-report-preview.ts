@@ -1,7 +1,6 @@
 import type { DataSource } from 'typeorm';
 import type { Role } from '../../shared/auth/permissions';
-import { recordStudyReadOnce } from '../audit/audit';
-import type { AuditActor } from '../studies/repository';
+import { recordStudyReadOnce, type AuditActor } from '../audit/audit';
 import type { ReportPreview } from '../../shared/report/preview';
 import { previewStudyReport } from './preview-report';
 import type { ThresholdsChoice } from './report-input';

@@ -2,7 +2,7 @@ import type { DataSource } from 'typeorm';
 import { analyzeStudy, type PhysiologyResult } from '../../shared/physiology';
 import { toPhysiologyInput } from '../../shared/study/to-physiology';
 import { thresholdsInForce } from '../settings/thresholds';
-import type { AuditActor } from './repository';
+import type { AuditActor } from '../audit/audit';
 import { readStudy } from './read-study';
 
 /** The authoritative indices, flags, warnings and endotype of a study's stored measurements, under the thresholds in force. */

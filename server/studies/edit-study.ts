@@ -1,8 +1,8 @@
 import type { DataSource } from 'typeorm';
 import type { PatchStudy, StudyRecord } from '../../shared/study/schema';
-import { recordAudit } from '../audit/audit';
+import { recordAudit, type AuditActor } from '../audit/audit';
 import { DuplicateRowIdError } from './errors';
-import { patchStudy, type AuditActor } from './repository';
+import { patchStudy } from './repository';
 import { PatientMismatchError, StaleVersionError } from './errors';
 
 /** pg's unique-violation code: a client reused a row id that belongs elsewhere. */

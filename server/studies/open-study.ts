@@ -1,7 +1,7 @@
 import type { DataSource } from 'typeorm';
 import type { CreateStudy, StudyRecord } from '../../shared/study/schema';
-import { recordAudit } from '../audit/audit';
-import { createStudy, loadStudy, type AuditActor } from './repository';
+import { recordAudit, type AuditActor } from '../audit/audit';
+import { createStudy, loadStudy } from './repository';
 import { PatientMismatchError } from './errors';
 
 /**

@@ -1,7 +1,6 @@
 import type { DataSource } from 'typeorm';
-import { recordAudit } from '../audit/audit';
+import { recordAudit, type AuditActor } from '../audit/audit';
 import { listAwaitingSignature } from './queries/awaiting-signature';
-import type { AuditActor } from './repository';
 
 /** Studies awaiting signature (the user's own, and all of them); the ids shown recorded in the audit trail. */
 export async function readAwaitingSignature(dataSource: DataSource, operatorId: string, actor: AuditActor): Promise<Awaited<ReturnType<typeof listAwaitingSignature>>> {

@@ -1,8 +1,8 @@
 import type { DataSource } from 'typeorm';
 import type { StudyRecord } from '../../shared/study/schema';
-import { recordAudit } from '../audit/audit';
+import { recordAudit, type AuditActor } from '../audit/audit';
 import { RecordNotFoundError } from '../errors';
-import { loadStudy, type AuditActor } from './repository';
+import { loadStudy } from './repository';
 
 /** A study read by a user, recorded in the audit trail (with the view, when it is one). */
 export async function readStudy(dataSource: DataSource, id: string, actor: AuditActor, view?: string): Promise<StudyRecord> {

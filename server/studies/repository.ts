@@ -12,12 +12,13 @@ import type {
 import { emptyDetails, emptyFindings, emptySetup } from '../../shared/study/schema';
 import type { StudyState } from '../../shared/study/vocabulary';
 import { isEditable } from '../../shared/study/state-machine';
-import { RecordNotFoundError, UnacceptableValueError } from '../errors';
+import { RecordNotFoundError } from '../errors';
 import { PatientMismatchError, PatientSharedError, StaleVersionError, StudyLockedError } from './errors';
 import { recordAudit, type AuditActor } from '../audit/audit';
 import { codingColumns, detailsColumns, findingsColumns, readSection, selectList, setupColumns, studyValues, vasoreactivityColumns } from './columns';
 import { replaceInterventions } from '../coding/study-interventions';
 import { lockStudy } from './lock-study';
+import { checkOperator } from './operators';
 import { preparedOn } from '../db/prepared';
 import {
   AcetylcholineDose as DoseRow,
@@ -26,7 +27,6 @@ import {
 } from '../db/entities/measurement.entities';
 import { Patient } from '../db/entities/patient.entity';
 import { Study } from '../db/entities/study.entity';
-import { User } from '../db/entities/user.entity';
 
 /** Also exported from here for callers that import it with `loadStudy`. */
 export { StaleVersionError } from './errors';
@@ -213,24 +213,11 @@ export async function lockEditableStudy(db: EntityManager, id: string): Promise<
   return { patientId: row.patientId, version: row.version };
 }
 
-/** Who did it, for the audit row written inside the change's transaction. */
-export type { AuditActor } from '../audit/audit';
-
 /** A readable, unique accession when the hospital's system has not supplied one. */
 async function nextAccession(db: EntityManager, at: Date): Promise<string> {
   const day = at.toISOString().slice(0, 10).replaceAll('-', '');
   const n = (await db.count(Study, { where: { accession: Like(`ISB-${day}-%`) } })) + 1;
   return `ISB-${day}-${String(n).padStart(4, '0')}-${Math.random().toString(36).slice(2, 6).toUpperCase()}`;
-}
-
-/** The operator must be a physician on file: an id of nobody, or of another role, is refused. */
-async function checkOperator(db: EntityManager, operatorId: string | null | undefined): Promise<void> {
-  if (!operatorId) return;
-  const row = await db.findOne(User, { where: { id: operatorId }, select: { id: true, role: true } });
-  if (row?.role === 'physician') return;
-  throw new UnacceptableValueError('The operator must be a physician.', [
-    { pointer: '/details/operatorId', detail: row ? 'Operator: this person is not a physician. Choose a physician from the list.' : 'Operator: nobody has this id. Choose a physician from the list.' },
-  ]);
 }
 
 export async function createStudy(dataSource: DataSource, input: CreateStudy, createdBy: string | null, actor?: AuditActor): Promise<string> {

@@ -3,7 +3,7 @@ import type { UnsignedList, UnsignedStudy } from '../../shared/turnaround/unsign
 import { waitingSince } from '../../shared/turnaround/overdue';
 import type { WorklistItem } from '../../shared/study/worklist';
 import { summaryJson, summarySelect } from '../studies/worklist';
-import type { TurnaroundSettings } from './settings';
+import type { TurnaroundSettings } from '../../shared/settings/lab-settings';
 import { StudyTurnaround } from '../db/entities/turnaround.entities';
 
 /**

@@ -4,7 +4,7 @@ import type { DataSource } from 'typeorm';
 import { csvExportOptions } from '../../shared/csv/neutralise';
 import type { TurnaroundQuery } from '../../shared/turnaround/query';
 import { intervalColumns, rangeCondition } from './figures';
-import type { TurnaroundSettings } from './settings';
+import type { TurnaroundSettings } from '../../shared/settings/lab-settings';
 
 const columns = [
   'accession',

@@ -14,7 +14,7 @@ import {
   type TurnaroundFigures,
 } from '../../shared/turnaround/figures';
 import type { TurnaroundQuery } from '../../shared/turnaround/query';
-import type { TurnaroundSettings } from './settings';
+import type { TurnaroundSettings } from '../../shared/settings/lab-settings';
 import { localMidnight } from '../db/local-midnight';
 
 

@@ -1,8 +1,7 @@
 import type { DataSource } from 'typeorm';
 import type { UserList } from '../../shared/auth/users';
-import { recordAudit } from '../audit/audit';
+import { recordAudit, type AuditActor } from '../audit/audit';
 import { User } from '../db/entities/user.entity';
-import type { AuditActor } from '../studies/repository';
 
 /** Everyone who has an account, with their role, by name; the ids shown are recorded in the audit trail. */
 export async function listUsers(dataSource: DataSource, actor: AuditActor): Promise<UserList> {

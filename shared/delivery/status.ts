@@ -1,3 +1,5 @@
+import type { ReportVersionStatus } from '../report/version-status';
+
 /**
  * Delivery of signed reports to the EHR, as the server stores it and the screens show it.
  * Pure types and labels: used by the server, the API client and the screens.
@@ -37,7 +39,7 @@ export interface EhrResourceId {
 export interface StudyDelivery {
   reportVersionId: string;
   versionNo: number;
-  reportStatus: 'final' | 'amended';
+  reportStatus: ReportVersionStatus;
   status: DeliveryStatus;
   attempts: number;
   lastError: string | null;

@@ -1,13 +1,15 @@
 import type { NhprKind, VesselCode } from './schema';
 
-export type Flag = 'normal' | 'abnormal' | 'borderline';
+export const flags = ['normal', 'abnormal', 'borderline'] as const;
+export type Flag = (typeof flags)[number];
 
 export interface PhysiologyWarning {
   code: string;
   message: string;
 }
 
-export type ImrMethod = 'pd-tmn' | 'wedge' | 'yong';
+export const imrMethods = ['pd-tmn', 'wedge', 'yong'] as const;
+export type ImrMethod = (typeof imrMethods)[number];
 
 export interface VesselResult {
   id: string;
@@ -57,12 +59,14 @@ export interface VesselResult {
   warnings: PhysiologyWarning[];
 }
 
-export type VasoreactivityOutcome =
-  | 'epicardial-spasm'
-  | 'microvascular-spasm'
-  | 'endothelial-dysfunction'
-  | 'equivocal'
-  | 'negative';
+export const vasoreactivityOutcomes = [
+  'epicardial-spasm',
+  'microvascular-spasm',
+  'endothelial-dysfunction',
+  'equivocal',
+  'negative',
+] as const;
+export type VasoreactivityOutcome = (typeof vasoreactivityOutcomes)[number];
 
 /** The contract's vasoreactivity result: exactly the study's outcome. */
 export interface VasoreactivityResult {
@@ -76,13 +80,15 @@ export interface DoseResult {
   result: VasoreactivityOutcome;
 }
 
-export type Endotype =
-  | 'obstructive'
-  | 'microvascular-angina'
-  | 'vasospastic-angina'
-  | 'mixed'
-  | 'no-abnormality'
-  | 'inconclusive';
+export const endotypes = [
+  'obstructive',
+  'microvascular-angina',
+  'vasospastic-angina',
+  'mixed',
+  'no-abnormality',
+  'inconclusive',
+] as const;
+export type Endotype = (typeof endotypes)[number];
 
 export interface Findings {
   /** Any vessel obstructive: judged by its pressure index, else by ≥ 50% visual stenosis (COVADIS). */

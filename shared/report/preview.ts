@@ -2,13 +2,14 @@ import type { StudyAction } from '../study/state-machine';
 import type { CompletenessResult } from './completeness';
 import type { ReportDocument } from './document';
 import type { ThresholdsBasisInfo, ThresholdsChoice } from './thresholds-basis';
+import type { ReportVersionStatus } from './version-status';
 
 /** A signed version as the report's page lists it. */
 export interface SignedVersionSummary {
   id: string;
   studyId: string;
   versionNo: number;
-  status: 'final' | 'amended';
+  status: ReportVersionStatus;
   /** ISO instant. */
   signedAt: string;
   signerName: string;

@@ -73,6 +73,12 @@ export interface LabSettings {
   templateVersion: string;
 }
 
+/**
+ * What the turnaround figures need of the lab's settings: the IANA time zone weeks and day ranges are
+ * counted in, and the signature target after which an unsigned study is overdue.
+ */
+export type TurnaroundSettings = Pick<LabSettings, 'timeZone' | 'signatureTargetHours'>;
+
 /** What the admin screen reads: the stored values (null = configuration), what applies, and the configuration. */
 export interface LabSettingsView {
   stored: LabSettingsForm & { templateVersion: string };

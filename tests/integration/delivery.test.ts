@@ -20,6 +20,7 @@ import { startFakeSmtp } from '../../server/fakes/smtp';
 import { sendDeliveryFailureNoticeTask } from '../../server/mail/send-delivery-failure-notice';
 import { openTestDatabase } from '../support/app';
 import { createStudy } from '../support/factories';
+import type { ReportVersionStatus } from '../../shared/report/version-status';
 
 // Everything here is invented: patients, people, accession numbers and the "PDF" (any bytes with their SHA-256).
 
@@ -90,7 +91,7 @@ async function signedStudy(snapshotChanges: (s: Record<string, any>) => void = (
 
 const pdfOf = (studyId: string, version: number) => Buffer.from(`%PDF-1.7\n% invented report ${studyId} v${version}\n%%EOF\n`);
 
-async function insertVersion(studyId: string, versionNo: number, status: 'final' | 'amended', supersedesId: string | null, snapshot: unknown, vesselId: string): Promise<string> {
+async function insertVersion(studyId: string, versionNo: number, status: ReportVersionStatus, supersedesId: string | null, snapshot: unknown, vesselId: string): Promise<string> {
   // Hand-computed case (FFR formula): hyperaemic Pd/Pa 72/90 = 0.80; resting Pd/Pa 95/100 = 0.95; CFR 0.90/0.30 = 3.0.
   const analysis = analyzeStudy({
     vessels: [{ id: vesselId, vessel: 'LAD', rest: { pa: 100, pd: 95, tmn: [0.9, 0.9, 0.9] }, hyperemia: { pa: 90, pd: 72, tmn: [0.3, 0.3, 0.3] } }],

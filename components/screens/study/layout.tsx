@@ -20,6 +20,7 @@ import { ReportPane, useHasRoomForReportPane, useReportPaneHidden } from '../../
 import { clearDraft, takeDraft, toStableJson } from '../../study/draft-store';
 import { useMeQuery, useSignOut } from '../../data/me-query';
 import { studyStateLabel } from '../../../shared/study/vocabulary';
+import { isEditable } from '../../../shared/study/state-machine';
 import { sectionsOf, useAutosave } from '../../study/use-autosave';
 import { color, radius, space, touchTarget } from '../../theme';
 
@@ -63,7 +64,8 @@ function StudyEditor({ study, userId, canWrite, home }: { study: StudyRecord; us
   const paneAvailable = wide && roomForPane && !onReportSection;
   const showPane = paneAvailable && !paneHidden;
   const signOut = useSignOut();
-  const signed = study.state === 'signed' || study.state === 'amended';
+  // Signed (first or amended) and not being amended: read only.
+  const signed = !isEditable(study.state);
   const locked = signed || !canWrite;
   const readOnlyReason = signed ? 'Signed — read only; changes are made as an addendum' : !canWrite ? 'Read only — your role may view this study but not change it' : null;
   // Unsent edits kept on this device win over the server copy at load. Sections the draft did not

@@ -2,6 +2,7 @@ import { Column, Entity, JoinColumn, ManyToOne, OneToOne, PrimaryColumn, Primary
 import type { ThresholdsBasis } from '../../../shared/report/thresholds-basis';
 import { Study } from './study.entity';
 import { User } from './user.entity';
+import type { ReportVersionStatus } from '../../../shared/report/version-status';
 
 /**
  * One signed report version: what was signed, exactly as it was signed. Never updated or deleted (a
@@ -18,7 +19,7 @@ export class ReportVersion {
   @Column('integer', { name: 'version_no' }) versionNo!: number;
   /** The study record's version the report was built from (what the signer previewed). */
   @Column('integer', { name: 'study_version' }) studyVersion!: number;
-  @Column('text') status!: 'final' | 'amended';
+  @Column('text') status!: ReportVersionStatus;
   @Column('uuid', { name: 'supersedes_id', nullable: true }) supersedesId!: string | null;
   @Column('text', { nullable: true }) reason!: string | null;
   @Column('text', { name: 'narrative_html' }) narrativeHtml!: string;

@@ -2,13 +2,14 @@ import { createHash } from 'node:crypto';
 import type { DataSource } from 'typeorm';
 import { ReportPdf, ReportVersion } from '../../db/entities/report-version.entity';
 import { Study } from '../../db/entities/study.entity';
+import type { ReportVersionStatus } from '../../../shared/report/version-status';
 
 export interface Verification {
   found: boolean;
   studyId?: string;
   accession?: string;
   versionNo?: number;
-  status?: 'final' | 'amended';
+  status?: ReportVersionStatus;
   signedAt?: string;
   signerName?: string;
   /** The newest version of the same study, when this one has been superseded. */

@@ -4,16 +4,9 @@ import { pipeline } from 'node:stream/promises';
 import { Transform } from 'node:stream';
 import multer, { type StorageEngine } from 'multer';
 import type { Request, RequestHandler } from 'express';
-import type { AttachmentStorage } from './storage';
-import { HttpError } from '../http/problem';
+import type { AttachmentStorage, StreamedFile } from '../attachments/storage';
+import { HttpError } from './problem';
 import { retryAfterSeconds } from '../db/availability';
-
-/** What the upload engine leaves on `req.file`: the bytes on disk, their size and SHA-256. */
-export interface StreamedFile {
-  path: string;
-  size: number;
-  sha256: string;
-}
 
 /**
  * multer storage that streams the upload to the store's incoming folder while hashing it: memory
@@ -85,16 +78,4 @@ export function acceptUpload(storage: AttachmentStorage, maxBytes: number, maxCo
       next(new HttpError(400, 'bad-upload', 'The upload could not be read', 'Send one file in the form field "file".'));
     });
   };
-}
-
-/** The first bytes of a file (enough for a type signature). */
-export async function headOf(file: string, bytes = 4100): Promise<Buffer> {
-  const handle = await fs.promises.open(file, 'r');
-  try {
-    const buffer = Buffer.alloc(bytes);
-    const { bytesRead } = await handle.read(buffer, 0, bytes, 0);
-    return buffer.subarray(0, bytesRead);
-  } finally {
-    await handle.close();
-  }
 }
