@@ -12,7 +12,7 @@ import { ErrorState, LoadingState } from '../ui/async-states';
 import { Button } from '../ui/button';
 import { Text } from '../ui/text';
 import { space } from '../theme';
-import { applyFieldErrors } from './apply-problem';
+import { applyFieldErrors } from '../form/apply-field-errors';
 
 const fields = ['timeZone', 'signatureTargetHours', 'ehrBaseUrl', 'mailFrom'] as const;
 
@@ -47,7 +47,7 @@ function LabSettingsForm({ view, onReload }: { view: LabSettingsView; onReload: 
       setMessage({ tone: 'ok', text: 'Saved. Deliveries, notices and turnaround use the new settings from now on.' });
     } catch (error) {
       if (error instanceof ApiError && error.status === 409) return setMessage({ tone: 'error', text: error.message, stale: true });
-      const rest = applyFieldErrors(error, '/settings', fields, (n, e) => form.setError(n as keyof LabSettingsForm, e));
+      const rest = applyFieldErrors(error, (n, e) => form.setError(n as keyof LabSettingsForm, e), { prefix: '/settings', fields });
       setMessage({ tone: 'error', text: rest.length ? rest.join(' ') : 'Correct the marked fields.' });
     }
   });

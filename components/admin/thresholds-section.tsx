@@ -13,7 +13,7 @@ import { ErrorState, LoadingState } from '../ui/async-states';
 import { Button } from '../ui/button';
 import { Text } from '../ui/text';
 import { color, radius, space } from '../theme';
-import { applyFieldErrors } from './apply-problem';
+import { applyFieldErrors } from '../form/apply-field-errors';
 
 const formSchema = z.object({
   values: thresholdValuesSchema.required(),
@@ -67,7 +67,7 @@ function ThresholdsForm({ rows, inForce, scheduled, history }: { rows: Threshold
       const when = formatDateTime(res.set.effectiveFrom);
       setSummary({ tone: 'ok', lines: [`Saved: ${Object.keys(changed).length} change${Object.keys(changed).length === 1 ? '' : 's'}, in force from ${when} for studies signed from then on.`] });
     } catch (error) {
-      const rest = applyFieldErrors(error, '/values', thresholdKeys, (n, e) => form.setError(n as never, e), 'values.');
+      const rest = applyFieldErrors(error, (n, e) => form.setError(n as never, e), { prefix: '/values', fields: thresholdKeys, formPrefix: 'values.' });
       const other = rest.filter(Boolean);
       if (error && typeof error === 'object' && 'problem' in error) {
         const ef = (error as { problem: { errors?: { pointer: string; detail: string }[] } }).problem.errors?.find((e) => e.pointer === '/effectiveFrom');

@@ -7,6 +7,7 @@ import { Button } from '../ui/button';
 import { Text } from '../ui/text';
 import { formatDateTime, patientName } from '../format';
 import { ApiError } from '../data/api';
+import { applyFieldErrors } from '../form/apply-field-errors';
 import { useMeQuery } from '../data/me-query';
 import { useAddCode, useCodingReview, useCompleteReview, useDecideCode } from '../data/coding-query';
 import { can } from '../../shared/auth/permissions';
@@ -25,11 +26,8 @@ type Problems = Partial<Record<'code' | 'units' | 'modifiers' | 'reason' | 'form
 const problemsOf = (error: unknown): Problems => {
   if (!(error instanceof ApiError)) return { form: error instanceof Error ? error.message : 'The change could not be saved.' };
   const out: Problems = {};
-  for (const e of error.problem.errors ?? []) {
-    const field = e.pointer.replace(/^\//, '') as keyof Problems;
-    if (['code', 'units', 'modifiers', 'reason'].includes(field)) out[field] = out[field] ?? e.detail;
-  }
-  if (!Object.keys(out).length) out.form = error.message;
+  const rest = applyFieldErrors(error, (name, e) => (out[name as keyof Problems] = out[name as keyof Problems] ?? e.message), { fields: ['code', 'units', 'modifiers', 'reason'] });
+  if (!Object.keys(out).length) out.form = rest.join(' ') || error.message;
   return out;
 };
 

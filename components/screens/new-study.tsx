@@ -2,9 +2,9 @@ import { StyleSheet, View } from 'react-native';
 import { useRouter } from 'expo-router';
 import { FormProvider, useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
-import { pathOfPointer } from '../../shared/http/problem';
 import { createStudySchema, type CreateStudy } from '../../shared/study/schema';
 import { clinicalQuestionLabel, sexLabel } from '../../shared/study/vocabulary';
+import { applyFieldErrors } from '../form/apply-field-errors';
 import { ChoiceField, TextField } from '../form/fields';
 import { optionsOf } from '../form/options';
 import { FieldRow, SectionCard } from '../study/section-card';
@@ -30,11 +30,8 @@ export default function NewStudyPage() {
       const study = await create.mutateAsync(values);
       router.replace(`/studies/${study.id}/setup`);
     } catch (error) {
-      if (error instanceof ApiError && error.problem.errors) {
-        for (const e of error.problem.errors) form.setError(pathOfPointer(e.pointer).join('.') as never, { type: 'server', message: e.detail });
-      } else {
-        form.setError('root', { message: error instanceof Error ? error.message : 'The study could not be opened.' });
-      }
+      const rest = error instanceof ApiError ? applyFieldErrors(error, (name, e) => form.setError(name as never, e)) : ['The study could not be opened.'];
+      if (rest.length) form.setError('root', { message: rest.join(' ') });
     }
   });
   return (

@@ -5,7 +5,7 @@
 import { sectionNames, studySectionsSchema, type SectionName, type StudyRecord, type StudySections } from '../../shared/study/schema';
 import { sameValue } from '../../shared/study/merge';
 
-import { pathOfPointer, pointerOf, type Problem } from '../../shared/http/problem';
+import { pathOfPointer, pointerOf, problemSlugOf, type Problem } from '../../shared/http/problem';
 
 // ── Which fields go ─────────────────────────────────────────────────────────────────────────────
 
@@ -145,11 +145,10 @@ export type SaveDecision =
   /** Sending again cannot help: the person must act. */
   | { kind: 'stop'; reason: StopReason; message: string };
 
-const problemSlug = (type?: string) => type?.split('/').pop();
 
 export function decideOnSaveError(failure: SaveFailure): SaveDecision {
   const { status, problem } = failure;
-  const slug = problemSlug(problem?.type);
+  const slug = problemSlugOf(problem?.type);
   if (status === 409 && slug === 'stale-version' && problem?.current) return { kind: 'stale', current: problem.current };
   if ((status === 400 || status === 409 || status === 422) && problem?.errors?.length) return { kind: 'fields', errors: problem.errors };
   if (status === 401) return { kind: 'stop', reason: 'signed-out', message: 'Your session has ended. Your edits are kept on this device: sign in again to send them.' };

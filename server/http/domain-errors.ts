@@ -7,10 +7,11 @@ import { IncompleteStudyError, ReauthenticationRequiredError, TransitionRefusedE
 import { StaleSettingsError } from '../settings/lab-settings';
 import { DuplicateRowIdError } from '../studies/errors';
 import { PatientMismatchError, PatientSharedError, StaleVersionError, StudyLockedError } from '../studies/errors';
+import type { ProblemSlug } from '../../shared/http/problem';
 import type { TransitionRefusal } from '../../shared/study/state-machine';
 import { BadRequestError, HttpError, NotFoundError, ServiceUnavailableError, UnprocessableError } from './problem';
 
-const refusalText: Record<TransitionRefusal, [number, string, string]> = {
+const refusalText: Record<TransitionRefusal, [number, ProblemSlug, string]> = {
   'wrong-state': [409, 'wrong-state', 'The study is not in a state that allows this'],
   'not-permitted': [403, 'forbidden', 'Your role may not do this'],
   'reason-required': [422, 'reason-required', 'A reason is required'],

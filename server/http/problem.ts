@@ -2,7 +2,7 @@ import type { ErrorRequestHandler, RequestHandler } from 'express';
 import { isDatabaseUnavailable, retryAfterSeconds } from '../db/availability';
 import { httpErrorOf } from './domain-errors';
 
-import { pointerOf, type FieldProblem, type Problem } from '../../shared/http/problem';
+import { pointerOf, type FieldProblem, type Problem, type ProblemSlug } from '../../shared/http/problem';
 
 export { pointerOf, type FieldProblem, type Problem };
 
@@ -12,7 +12,7 @@ const PROBLEM_BASE = 'https://isobar.example/problems/';
 export class HttpError extends Error {
   constructor(
     public readonly status: number,
-    public readonly slug: string,
+    public readonly slug: ProblemSlug,
     public readonly title: string,
     detail?: string,
     public readonly errors?: FieldProblem[],

@@ -3,6 +3,22 @@
  * pointers (RFC 6901) that place a field's problem in the request body.
  */
 
+/** The last part of every problem type the server answers with (`…/problems/<slug>`). */
+export const problemSlugs = [
+  'bad-request', 'bad-upload', 'cross-site-request', 'delivery-in-progress', 'duplicate-row-id', 'file-too-large', 'forbidden', 'internal', 'no-file',
+  'not-current-set', 'not-found', 'patient-mismatch', 'patient-shared', 'payload-too-large', 'reason-required',
+  'reauthentication-required', 'review-completed', 'review-incomplete', 'service-unavailable', 'stale-settings', 'stale-version',
+  'study-incomplete', 'study-signed', 'suggestions-superseded', 'too-many-sign-in-attempts', 'unauthorized', 'unprocessable',
+  'unsupported-encoding', 'unsupported-file-type', 'uploads-busy', 'wrong-state',
+] as const;
+export type ProblemSlug = (typeof problemSlugs)[number];
+
+/** The slug of a problem's type, when it is one of ours. */
+export function problemSlugOf(type: string | undefined): ProblemSlug | undefined {
+  const slug = type?.split('/').pop();
+  return (problemSlugs as readonly string[]).includes(slug ?? '') ? (slug as ProblemSlug) : undefined;
+}
+
 /** One field-level problem, located by a JSON pointer into the request body. */
 export interface FieldProblem {
   pointer: string;

@@ -2,6 +2,7 @@ import { useState } from 'react';
 import { StyleSheet, TextInput, View } from 'react-native';
 import { Link, useLocalSearchParams } from 'expo-router';
 import { useReportAction, useReportPreview } from '../../data/report-query';
+import { problemSlugOf } from '../../../shared/http/problem';
 import type { ThresholdsChoice } from '../../../shared/report/thresholds-basis';
 import { missingSummary } from '../../../shared/report/completeness';
 import { RadioChips } from '../../ui/radio-chips';
@@ -109,7 +110,7 @@ export default function ReportSection() {
         {error ? (
           <Text tone="abnormal" role="alert" testID="report-action-error">
             ▲ {error.message}
-            {error.problem.type.endsWith('/reauthentication-required') ? (
+            {problemSlugOf(error.problem.type) === 'reauthentication-required' ? (
               // A full page load (target _self): the provider confirms who signs, then brings the physician back here.
               <Link href={`/api/auth/sign-in?reauth=1&returnTo=${encodeURIComponent(`/studies/${id}/report`)}` as '/'} target="_self">
                 <Text tone="brand"> Sign in again</Text>

@@ -16,10 +16,10 @@ describe('a problem document', () => {
   });
 
   it('keeps any error\'s fixed members and field problems above its extensions', () => {
-    const error = new HttpError(409, 'conflict', 'Changed by someone else', 'Reload and try again.', [{ pointer: '/version', detail: 'stale' }], { current: { version: 3 }, status: 500, errors: [] });
+    const error = new HttpError(409, 'stale-version', 'Changed by someone else', 'Reload and try again.', [{ pointer: '/version', detail: 'stale' }], { current: { version: 3 }, status: 500, errors: [] });
     expect(toProblem(error)).toEqual({
       current: { version: 3 },
-      type: 'https://isobar.example/problems/conflict',
+      type: 'https://isobar.example/problems/stale-version',
       title: 'Changed by someone else',
       status: 409,
       detail: 'Reload and try again.',
