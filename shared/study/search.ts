@@ -39,5 +39,6 @@ export function parseSearch(text: string): ParsedSearch {
     // A family name written with spaces ("van der Berg").
     if (words.length > 1) names.push({ family: words.join(' ') });
   }
-  return { id, partialId: /^[A-Z0-9-]{3,}$/.test(id) && /\d/.test(id), names };
+  // Digits or a hyphen make the text a possible part of an MRN or accession ("MRN-FBBE", "7731").
+  return { id, partialId: /^[A-Z0-9-]{3,}$/.test(id) && /[\d-]/.test(id), names };
 }

@@ -25,6 +25,8 @@ describe('parseSearch', () => {
     ['0234', '0234', true],
     ['02', '02', false],
     ['Aster', 'ASTER', false],
+    // An MRN's letters-only prefix, hyphen included, is still an MRN (a random test MRN found it).
+    ['MRN-FBBE', 'MRN-FBBE', true],
   ])('reads %s as the identifier %s (part of an MRN: %s)', (text, id, partial) => {
     expect(parseSearch(text)).toMatchObject({ id, partialId: partial });
   });
