@@ -5,8 +5,8 @@ import type { TurnaroundQuery } from '../../shared/turnaround/query';
 import type { UnsignedList } from '../../shared/turnaround/unsigned';
 import { recordAudit, type AuditActor } from '../audit/audit';
 import { labSettings } from '../settings/lab-settings';
-import { awaitingSignature } from './awaiting-signature';
-import { writeTurnaroundCsv } from './export';
+import { awaitingSignature } from './queries/awaiting-signature';
+import { writeTurnaroundCsv } from './queries/turnaround-csv';
 import { turnaroundFigures } from './figures';
 
 /** The figures of a range in the lab's zone; the request is recorded by the statement that counts the range. */
