@@ -4,7 +4,7 @@ import type { TurnaroundFigures } from '../../shared/turnaround/figures';
 import type { TurnaroundQuery } from '../../shared/turnaround/query';
 import type { UnsignedList } from '../../shared/turnaround/unsigned';
 import { recordAudit, type AuditActor } from '../audit/audit';
-import { labSettings } from '../settings/lab-settings';
+import { labSettings } from '../settings/queries/lab-settings';
 import { awaitingSignature } from './queries/awaiting-signature';
 import { writeTurnaroundCsv } from './queries/turnaround-csv';
 import { turnaroundFigures } from './figures';

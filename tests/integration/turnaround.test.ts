@@ -7,7 +7,7 @@ import type { TurnaroundFigures } from '../../shared/turnaround/figures';
 import { startFakeSmtp } from '../../server/fakes/smtp';
 import { turnaroundFigures } from '../../server/turnaround/figures';
 import { overdueCronItems, queueOverdueNotices, queueOverdueNoticesTask, sendOverdueNoticeTask } from '../../server/turnaround/overdue-notices';
-import { labSettings } from '../../server/settings/lab-settings';
+import { labSettings } from '../../server/settings/queries/lab-settings';
 import { createDataSource } from '../../server/db/data-source';
 import { openTestDatabase } from '../support/app';
 import { turnaroundSeeder } from '../support/turnaround';
