@@ -6,7 +6,7 @@ import { auditBundleWriter, toFhirAuditEvent, type AuditEventContext } from '../
 import { csvExportOptions } from '../../shared/csv/neutralise';
 import { filtersUsed, labelOfAction, type AuditExportFormat, type AuditFilters } from '../../shared/audit/trail';
 import { recordAudit, type AuditActor } from './audit';
-import { auditRowBatches, targetOf, type AuditTrailRow } from './audit-trail';
+import { auditRowBatches, targetOf, type AuditTrailRow } from './queries/audit-trail';
 
 /** A FHIR Bundle holds at most this many events; its `next` link continues from there. */
 export const FHIR_EXPORT_PAGE = 10_000;
