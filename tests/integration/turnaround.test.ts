@@ -5,7 +5,7 @@ import { Logger, parseCronItems, runOnce } from 'graphile-worker';
 import type { PhysiologyInput } from '../../shared/physiology';
 import type { TurnaroundFigures } from '../../shared/turnaround/figures';
 import { startFakeSmtp } from '../../server/fakes/smtp';
-import { turnaroundFigures } from '../../server/turnaround/figures';
+import { turnaroundFigures } from '../../server/turnaround/queries/figures';
 import { overdueCronItems, queueOverdueNotices, queueOverdueNoticesTask, sendOverdueNoticeTask } from '../../server/turnaround/overdue-notices';
 import { labSettings } from '../../server/settings/queries/lab-settings';
 import { createDataSource } from '../../server/db/data-source';

@@ -3,7 +3,7 @@ import type { Writable } from 'node:stream';
 import type { DataSource } from 'typeorm';
 import { csvExportOptions } from '../../../shared/csv/neutralise';
 import type { TurnaroundQuery } from '../../../shared/turnaround/query';
-import { intervalColumns, rangeCondition } from '../figures';
+import { intervalColumns, rangeCondition } from './figures';
 import type { TurnaroundSettings } from '../../../shared/settings/lab-settings';
 
 const columns = [
