@@ -7,7 +7,8 @@ import type { DataSource } from 'typeorm';
 import { auditTrailQuerySchema, type AuditTrailPage } from '../shared/audit/trail';
 import { createDataSource } from '../server/db/data-source';
 import { prepareDatabase } from '../server/cli/prepare-database';
-import { decodeAuditCursor, pageQuery, prepareSearch, readAuditTrail } from '../server/audit/audit-trail';
+import { decodeAuditCursor, pageQuery, prepareSearch } from '../server/audit/queries/audit-trail';
+import { readAuditTrail } from '../server/audit/audit-trail';
 import { signIn, startStack } from '../tests/support/stack';
 import { summary, timeRequests } from './bench-timing';
 

@@ -7,8 +7,8 @@ import os from 'node:os';
 import type { DataSource } from 'typeorm';
 import { createDataSource } from '../server/db/data-source';
 import { prepareDatabase } from '../server/cli/prepare-database';
-import { figuresQueries, figuresSettings, turnaroundFigures } from '../server/turnaround/figures';
-import { labSettings } from '../server/settings/lab-settings';
+import { figuresQueries, figuresSettings, turnaroundFigures } from '../server/turnaround/queries/figures';
+import { labSettings } from '../server/settings/queries/lab-settings';
 import { signIn, startStack, usernameOf } from '../tests/support/stack';
 import { summary, timeRequests } from './bench-timing';
 

@@ -1,12 +1,12 @@
 import { once } from 'node:events';
-import type { Response } from 'express';
+import type { Writable } from 'node:stream';
 import type { DataSource } from 'typeorm';
 import { stringify } from 'csv-stringify/sync';
 import { auditBundleWriter, toFhirAuditEvent, type AuditEventContext } from '../../fhir/audit-event';
 import { csvExportOptions } from '../../shared/csv/neutralise';
 import { filtersUsed, labelOfAction, type AuditExportFormat, type AuditFilters } from '../../shared/audit/trail';
 import { recordAudit, type AuditActor } from './audit';
-import { auditRowBatches, targetOf, type AuditTrailRow } from './audit-trail';
+import { auditRowBatches, targetOf, type AuditTrailRow } from './queries/audit-trail';
 
 /** A FHIR Bundle holds at most this many events; its `next` link continues from there. */
 export const FHIR_EXPORT_PAGE = 10_000;
@@ -61,12 +61,12 @@ export function toAuditRecord(r: AuditTrailRow) {
 }
 
 /** Writes, waiting while the client is slow to read; false once the client has gone. */
-async function write(res: Response, chunk: string): Promise<boolean> {
-  if (res.destroyed) return false;
-  if (!res.write(chunk)) {
-    await Promise.race([once(res, 'drain'), once(res, 'close')]);
+async function write(out: Writable, chunk: string): Promise<boolean> {
+  if (out.destroyed) return false;
+  if (!out.write(chunk)) {
+    await Promise.race([once(out, 'drain'), once(out, 'close')]);
   }
-  return !res.destroyed;
+  return !out.destroyed;
 }
 
 export interface ExportRequest {
@@ -79,12 +79,13 @@ export interface ExportRequest {
   selfUrl: string;
   nextUrl: (cursor: string) => string;
   fhir: AuditEventContext;
-  /** Download (Content-Disposition: attachment) or an API answer. */
-  download: boolean;
 }
 
-/** Exports the filtered audit trail (see `streamAuditExport`), recording first who exported it, in which format and with which filters. */
-export async function exportAuditTrail(db: DataSource, res: Response, req: ExportRequest, actor: AuditActor): Promise<void> {
+/**
+ * Exports the filtered audit trail into `out` (see `streamAuditExport`), recording first who
+ * exported it, in which format and with which filters. `start` runs before the first byte (headers).
+ */
+export async function exportAuditTrail(db: DataSource, req: ExportRequest, actor: AuditActor, out: Writable, start: () => void): Promise<void> {
   await recordAudit(db, {
     ...actor,
     action: 'export',
@@ -92,51 +93,43 @@ export async function exportAuditTrail(db: DataSource, res: Response, req: Expor
     outcome: 'success',
     detail: { format: req.format, filters: filtersUsed(req.filters), ...(req.cursor ? { continued: true } : {}) },
   });
-  await streamAuditExport(db, res, req);
+  await streamAuditExport(db, req, out, start);
 }
 
 /**
  * Streams the filtered audit trail as CSV (every row) or as a FHIR searchset Bundle (up to
  * FHIR_EXPORT_PAGE events, then a `next` link), one keyset batch at a time: memory stays at one
- * batch whatever the size. The first batch is read before any header is sent, so a bad cursor or
- * a database outage still gets a proper error answer.
+ * batch whatever the size. The first batch is read before `start` runs (headers), so a bad cursor
+ * or a database outage still gets a proper error answer.
  */
-export async function streamAuditExport(db: DataSource, res: Response, req: ExportRequest): Promise<void> {
+export async function streamAuditExport(db: DataSource, req: ExportRequest, out: Writable, start: () => void): Promise<void> {
   const batches = auditRowBatches(db, req.filters, { cursor: req.cursor, batchSize: BATCH, max: req.format === 'fhir' ? Math.min(req.count ?? FHIR_EXPORT_PAGE, FHIR_EXPORT_PAGE) : undefined });
   let step = await batches.next();
-  const stamp = new Date().toISOString().slice(0, 10);
-  if (req.format === 'csv') {
-    res.type('text/csv; charset=utf-8');
-    if (req.download) res.attachment(`audit-trail-${stamp}.csv`);
-  } else {
-    res.type('application/fhir+json; charset=utf-8');
-    if (req.download) res.attachment(`audit-trail-${stamp}.json`);
-  }
-  res.setHeader('Cache-Control', 'no-store');
+  start();
   try {
     if (req.format === 'csv') {
       let header = true;
-      if (step.done) await write(res, auditRowsToCsv([], true));
+      if (step.done) await write(out, auditRowsToCsv([], true));
       while (!step.done) {
-        if (!(await write(res, auditRowsToCsv(step.value, header)))) return;
+        if (!(await write(out, auditRowsToCsv(step.value, header)))) return;
         header = false;
         step = await batches.next();
       }
     } else {
       const bundle = auditBundleWriter({ id: `audit-trail-${Date.now()}`, timestamp: new Date(), selfUrl: req.selfUrl });
-      if (!(await write(res, bundle.open()))) return;
+      if (!(await write(out, bundle.open()))) return;
       while (!step.done) {
         const text = step.value.map((r) => bundle.entry(toFhirAuditEvent(toAuditRecord(r), req.fhir))).join('');
-        if (!(await write(res, text))) return;
+        if (!(await write(out, text))) return;
         step = await batches.next();
       }
       const next = step.value.nextCursor;
-      await write(res, bundle.close(next ? req.nextUrl(next) : null));
+      await write(out, bundle.close(next ? req.nextUrl(next) : null));
     }
-    res.end();
+    out.end();
   } catch (error) {
     // The answer has begun: all that is left is to cut it, so the client sees an incomplete download.
-    res.destroy(error as Error);
+    out.destroy(error as Error);
   } finally {
     await batches.return({ nextCursor: null });
   }

@@ -6,7 +6,7 @@ import type { StudySections } from '../../shared/study/schema';
 import { randomUUID } from 'node:crypto';
 import type { EntityManager } from 'typeorm';
 import { auditColumns, auditParameters, type AuditEntry } from '../audit/audit';
-import { labSettings } from '../settings/lab-settings';
+import { labSettings } from '../settings/queries/lab-settings';
 import { lockStudy } from '../studies/lock-study';
 
 export interface StoredSuggestions {

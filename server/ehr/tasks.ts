@@ -4,7 +4,7 @@ import { z } from 'zod';
 import type { Config } from '../config';
 import { deliverReport, type DeliverDeps } from './deliver-report';
 import { EhrClient } from './ehr-client';
-import { defaultsFrom, labSettings, type ConfiguredDefaults } from '../settings/lab-settings';
+import { defaultsFrom, labSettings, type ConfiguredDefaults } from '../settings/queries/lab-settings';
 
 /**
  * The job queue's tasks for EHR delivery. `deliver-report` (payload `{ reportVersionId }`) sends one

@@ -4,7 +4,7 @@ import type { Task } from 'graphile-worker';
 import { z } from 'zod';
 import { ReportDelivery } from '../db/entities/report-delivery.entity';
 import { User } from '../db/entities/user.entity';
-import { labSettings } from '../settings/lab-settings';
+import { labSettings } from '../settings/queries/lab-settings';
 
 const payloadSchema = z.object({ reportVersionId: z.uuid() });
 

@@ -3,7 +3,7 @@ import type { DataSource } from 'typeorm';
 import type { Task } from 'graphile-worker';
 import { z } from 'zod';
 import { ReportVersion } from '../db/entities/report-version.entity';
-import { labSettings } from '../settings/lab-settings';
+import { labSettings } from '../settings/queries/lab-settings';
 
 export interface MailSettings {
   host: string;

@@ -9,8 +9,8 @@ import { ThresholdSet } from '../db/entities/measurement.entities';
 import { User } from '../db/entities/user.entity';
 import type { AmendedVersion, ReportInput, ReportStudy } from '../report-document';
 import type { ThresholdsBasisInfo } from '../../shared/report/thresholds-basis';
-import { labSettings } from '../settings/lab-settings';
-import { thresholdsInForce, type ThresholdsInForce } from '../settings/thresholds';
+import { labSettings } from '../settings/queries/lab-settings';
+import { thresholdsInForce, type ThresholdsInForce } from '../settings/queries/thresholds';
 
 /** The parts of a study record a report is built from (and that a signed version keeps). */
 function reportStudyOf(record: StudyRecord): ReportStudy {

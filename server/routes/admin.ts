@@ -5,8 +5,9 @@ import { auditContext } from '../audit/audit';
 import { defaultRoleMap, type Config } from '../config';
 import type { ApiRoute } from '../http/routes';
 import { parseOrThrow } from '../http/validate';
-import { activateTemplateVersion, defaultsFrom, updateLabSettings } from '../settings/lab-settings';
-import { readLabSettings, readRoleMapping, readTemplate, readTemplateChoice, readThresholds, templateChoice } from '../settings/read-settings';
+import { activateTemplateVersion, updateLabSettings } from '../settings/lab-settings';
+import { defaultsFrom, templateChoice } from '../settings/queries/lab-settings';
+import { readLabSettings, readRoleMapping, readTemplate, readTemplateChoice, readThresholds } from '../settings/read-settings';
 import { createThresholdSet } from '../settings/thresholds';
 import { listUsers } from '../users/list-users';
 

@@ -23,7 +23,6 @@ export function auditRoutes({ dataSource, config }: { dataSource: DataSource; co
     };
     await exportAuditTrail(
       dataSource,
-      res,
       {
         filters,
         format: query.format,
@@ -32,9 +31,20 @@ export function auditRoutes({ dataSource, config }: { dataSource: DataSource; co
         selfUrl: url(query.cursor),
         nextUrl: (cursor) => url(cursor),
         fhir: { patientIdSystem: config.ehr.identifierSystems.patient },
-        download,
       },
       auditContext(req),
+      res,
+      () => {
+        const stamp = new Date().toISOString().slice(0, 10);
+        if (query.format === 'csv') {
+          res.type('text/csv; charset=utf-8');
+          if (download) res.attachment(`audit-trail-${stamp}.csv`);
+        } else {
+          res.type('application/fhir+json; charset=utf-8');
+          if (download) res.attachment(`audit-trail-${stamp}.json`);
+        }
+        res.setHeader('Cache-Control', 'no-store');
+      },
     );
   };
   return [

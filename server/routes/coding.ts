@@ -8,7 +8,6 @@ import type { CodingActor } from '../coding/actor';
 import { addCode } from '../coding/add-code';
 import { completeReview } from '../coding/complete-review';
 import { decideCode } from '../coding/decide-code';
-import { codesToCsv } from '../coding/queries/reviewed-codes';
 import { exportReviewedCodes } from '../coding/export-reviewed-codes';
 import { readReview } from '../coding/read-review';
 import { searchCodingQueue } from '../coding/search-queue';
@@ -95,12 +94,10 @@ export function codingRoutes({ dataSource }: { dataSource: DataSource }): ApiRou
       handlers: [
         async (req, res) => {
           const { from, to, format } = parseOrThrow(codeExportQuerySchema, req.query, 'The export query');
-          const rows = await exportReviewedCodes(dataSource, { from, to, format }, auditContext(req));
-          if (format === 'json') {
-            res.json({ from, to, items: rows });
-            return;
-          }
-          res.type('text/csv; charset=utf-8').attachment(`codes-${from}-${to}.csv`).send(codesToCsv(rows));
+          await exportReviewedCodes(dataSource, { from, to, format }, auditContext(req), res, () => {
+            if (format === 'json') res.type('application/json; charset=utf-8');
+            else res.type('text/csv; charset=utf-8').attachment(`codes-${from}-${to}.csv`);
+          });
         },
       ],
     },

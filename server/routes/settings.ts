@@ -1,6 +1,6 @@
 import type { DataSource } from 'typeorm';
 import type { ApiRoute } from '../http/routes';
-import { thresholdsInForce } from '../settings/thresholds';
+import { thresholdsInForce } from '../settings/queries/thresholds';
 
 /** The lab's settings that screens need to show the same judgements as the server. */
 export function settingsRoutes({ dataSource }: { dataSource: DataSource }): ApiRoute[] {

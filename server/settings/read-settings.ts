@@ -3,9 +3,9 @@ import { roleLabel, type Role } from '../../shared/auth/permissions';
 import type { RoleMapping } from '../../shared/settings/admin';
 import { recordAudit, type AuditActor } from '../audit/audit';
 import { RecordNotFoundError } from '../errors';
-import { listTemplateVersions, readTemplateVersion } from '../report-document/template-versions';
-import { labSettings, labSettingsView, type ConfiguredDefaults } from './lab-settings';
-import { thresholdOverview } from './thresholds';
+import { readTemplateVersion } from '../report-document/template-versions';
+import { labSettingsView, templateChoice, type ConfiguredDefaults } from './queries/lab-settings';
+import { thresholdOverview } from './queries/thresholds';
 
 // Reading the lab's settings is audited too: the trail answers who looked at what, not only who changed it.
 const auditRead = (dataSource: DataSource, actor: AuditActor, entityId: string, detail?: Record<string, unknown>) =>
@@ -36,11 +36,6 @@ export async function readLabSettings(dataSource: DataSource, defaults: Configur
   const view = await labSettingsView(dataSource, defaults);
   await auditRead(dataSource, actor, 'lab-settings');
   return view;
-}
-
-/** The shipped template versions and the one new signatures use. */
-export async function templateChoice(dataSource: DataSource, defaults: ConfiguredDefaults) {
-  return { active: (await labSettings(dataSource, defaults)).templateVersion, versions: listTemplateVersions() };
 }
 
 export async function readTemplateChoice(dataSource: DataSource, defaults: ConfiguredDefaults, actor: AuditActor) {

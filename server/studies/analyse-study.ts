@@ -1,7 +1,7 @@
 import type { DataSource } from 'typeorm';
 import { analyzeStudy, type PhysiologyResult } from '../../shared/physiology';
 import { toPhysiologyInput } from '../../shared/study/to-physiology';
-import { thresholdsInForce } from '../settings/thresholds';
+import { thresholdsInForce } from '../settings/queries/thresholds';
 import type { AuditActor } from '../audit/audit';
 import { readStudy } from './read-study';
 

@@ -15,7 +15,12 @@ const isUniqueViolation = (e: unknown) => (e as { code?: string })?.code === '23
  */
 export async function editStudy(dataSource: DataSource, id: string, patch: PatchStudy, actor: AuditActor): Promise<StudyRecord> {
   try {
-    return (await patchStudy(dataSource, id, patch, actor)).record;
+    // The edit and its audit row commit together.
+    return await dataSource.transaction(async (db) => {
+      const { changed, record } = await patchStudy(db, id, patch);
+      await recordAudit(db, { ...actor, action: 'update', entityType: 'study', entityId: id, outcome: 'success', detail: { sections: changed, fromVersion: patch.version } });
+      return record;
+    });
   } catch (error) {
     if (error instanceof StaleVersionError) {
       await recordAudit(dataSource, { ...actor, action: 'update', entityType: 'study', entityId: id, outcome: 'failure', detail: { reason: 'stale-version', fromVersion: patch.version, current: error.current.version } });

@@ -12,7 +12,12 @@ import { PatientMismatchError } from './errors';
 export async function openStudy(dataSource: DataSource, input: CreateStudy, createdBy: string | null, actor: AuditActor): Promise<StudyRecord> {
   let id: string;
   try {
-    id = await createStudy(dataSource, input, createdBy, actor);
+    // The study and its audit row commit together.
+    id = await dataSource.transaction(async (db) => {
+      const created = await createStudy(db, input, createdBy);
+      await recordAudit(db, { ...actor, action: 'create', entityType: 'study', entityId: created, outcome: 'success', detail: { mrn: input.patient.mrn } });
+      return created;
+    });
   } catch (error) {
     if (error instanceof PatientMismatchError) {
       await recordAudit(dataSource, { ...actor, action: 'create', entityType: 'study', outcome: 'failure', detail: { reason: 'patient-mismatch', mrn: error.mrn, differs: error.fields } });

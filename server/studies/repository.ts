@@ -1,5 +1,5 @@
 import type { PoolClient } from 'pg';
-import { Like, Not, type DataSource, type EntityManager } from 'typeorm';
+import { DataSource, Like, Not, type EntityManager } from 'typeorm';
 import type {
   AcetylcholineDose,
   AttachmentSummary,
@@ -14,7 +14,6 @@ import type { StudyState } from '../../shared/study/vocabulary';
 import { isEditable } from '../../shared/study/state-machine';
 import { RecordNotFoundError } from '../errors';
 import { PatientMismatchError, PatientSharedError, StaleVersionError, StudyLockedError } from './errors';
-import { recordAudit, type AuditActor } from '../audit/audit';
 import { codingColumns, detailsColumns, findingsColumns, readSection, selectList, setupColumns, studyValues, vasoreactivityColumns } from './columns';
 import { replaceInterventions } from '../coding/study-interventions';
 import { lockStudy } from './lock-study';
@@ -220,15 +219,20 @@ async function nextAccession(db: EntityManager, at: Date): Promise<string> {
   return `ISB-${day}-${String(n).padStart(4, '0')}-${Math.random().toString(36).slice(2, 6).toUpperCase()}`;
 }
 
-export async function createStudy(dataSource: DataSource, input: CreateStudy, createdBy: string | null, actor?: AuditActor): Promise<string> {
-  return dataSource.transaction(async (db) => {
+/** Runs `work` in the caller's transaction (an EntityManager), or in a new one (a DataSource). */
+function inTransaction<T>(db: DataSource | EntityManager, work: (db: EntityManager) => Promise<T>): Promise<T> {
+  return db instanceof DataSource ? db.transaction(work) : work(db);
+}
+
+/** Creates a study (and its patient, unless the MRN is on file) in one transaction, the caller's when given one; returns its id. */
+export async function createStudy(dataSource: DataSource | EntityManager, input: CreateStudy, createdBy: string | null): Promise<string> {
+  return inTransaction(dataSource, async (db) => {
     await checkOperator(db, input.details?.operatorId);
     const { patientId } = await resolvePatient(db, input.patient, null, null);
     const details = { ...emptyDetails(), ...input.details };
     const accession = await nextAccession(db, new Date());
     const { identifiers } = await db.insert(Study, { ...studyValues(db, detailsColumns, details), accession, patientId, createdBy });
     const id = (identifiers[0] as Pick<Study, 'id'>).id;
-    if (actor) await recordAudit(db, { ...actor, action: 'create', entityType: 'study', entityId: id, outcome: 'success', detail: { mrn: input.patient.mrn } });
     return id;
   });
 }
@@ -260,12 +264,12 @@ export async function writeSections(db: EntityManager, id: string, sections: Wri
 }
 
 /**
- * Replaces the sections the patch carries, in one transaction: the row is locked, the version and
- * the state checked, the sections written, the audit row added, and the result read back — all
- * before commit, so the version returned is exactly the one written.
+ * Replaces the sections the patch carries, in one transaction (the caller's when given one): the
+ * row is locked, the version and the state checked, the sections written, and the result read back
+ * — all before commit, so the version returned is exactly the one written.
  */
-export async function patchStudy(dataSource: DataSource, id: string, patch: PatchStudy, actor?: AuditActor): Promise<{ changed: string[]; record: StudyRecord }> {
-  return dataSource.transaction(async (db) => {
+export async function patchStudy(dataSource: DataSource | EntityManager, id: string, patch: PatchStudy): Promise<{ changed: string[]; record: StudyRecord }> {
+  return inTransaction(dataSource, async (db) => {
     const current = await lockEditableStudy(db, id);
     if (current.version !== patch.version) throw new StaleVersionError((await loadStudy(db, id))!);
     await checkOperator(db, patch.details?.operatorId);
@@ -279,7 +283,6 @@ export async function patchStudy(dataSource: DataSource, id: string, patch: Patc
     await writeSections(db, id, patch, { patientId, bumpVersion: true });
     await removeIfUnused(db, leftBehind);
     const changed = Object.keys(patch).filter((k) => k !== 'version');
-    if (actor) await recordAudit(db, { ...actor, action: 'update', entityType: 'study', entityId: id, outcome: 'success', detail: { sections: changed, fromVersion: patch.version } });
     return { changed, record: (await loadStudy(db, id))! };
   });
 }

@@ -4,7 +4,7 @@ import { Not, type DataSource } from 'typeorm';
 import { z } from 'zod';
 import { addJob } from '../jobs/queue';
 import type { TurnaroundSettings } from '../../shared/settings/lab-settings';
-import { labSettings } from '../settings/lab-settings';
+import { labSettings } from '../settings/queries/lab-settings';
 import { OverdueNotice } from '../db/entities/turnaround.entities';
 import { User } from '../db/entities/user.entity';
 

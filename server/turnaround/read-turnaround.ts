@@ -4,10 +4,10 @@ import type { TurnaroundFigures } from '../../shared/turnaround/figures';
 import type { TurnaroundQuery } from '../../shared/turnaround/query';
 import type { UnsignedList } from '../../shared/turnaround/unsigned';
 import { recordAudit, type AuditActor } from '../audit/audit';
-import { labSettings } from '../settings/lab-settings';
-import { awaitingSignature } from './awaiting-signature';
-import { writeTurnaroundCsv } from './export';
-import { turnaroundFigures } from './figures';
+import { labSettings } from '../settings/queries/lab-settings';
+import { awaitingSignature } from './queries/awaiting-signature';
+import { writeTurnaroundCsv } from './queries/turnaround-csv';
+import { turnaroundFigures } from './queries/figures';
 
 /** The figures of a range in the lab's zone; the request is recorded by the statement that counts the range. */
 export async function readTurnaroundFigures(dataSource: DataSource, query: TurnaroundQuery, actor: AuditActor): Promise<TurnaroundFigures> {

@@ -2,7 +2,7 @@ import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { DataSource } from 'typeorm';
 import { defaultThresholds } from '../../shared/physiology/thresholds';
-import { thresholdsInForce } from '../../server/settings/thresholds';
+import { thresholdsInForce } from '../../server/settings/queries/thresholds';
 import { launchBrowser, screenshotPath, signInInBrowser, viewports, visible } from '../support/browser';
 import { openTestDatabase } from '../support/app';
 import { signIn, startStack, usernameOf, type TestStack } from '../support/stack';

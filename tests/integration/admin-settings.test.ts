@@ -9,8 +9,8 @@ import { emptyFindings, emptyVessel, type StudyRecord } from '../../shared/study
 import { createDeliveryTasks } from '../../server/ehr/tasks';
 import { startFakeSmtp } from '../../server/fakes/smtp';
 import { sendReportNoticeTask } from '../../server/mail/send-report-notice';
-import { defaultsFrom, labSettings } from '../../server/settings/lab-settings';
-import { thresholdsInForce } from '../../server/settings/thresholds';
+import { defaultsFrom, labSettings } from '../../server/settings/queries/lab-settings';
+import { thresholdsInForce } from '../../server/settings/queries/thresholds';
 import { openTestDatabase } from '../support/app';
 import { signIn, startStack, usernameOf, type TestStack } from '../support/stack';
 

@@ -2,7 +2,7 @@ import { afterAll, beforeAll, expect, it } from 'vitest';
 import { EhrClient } from '../../server/ehr/ehr-client';
 import { deliveryJobKey } from '../../server/ehr/enqueue-delivery';
 import { createDeliveryTasks } from '../../server/ehr/tasks';
-import { defaultsFrom } from '../../server/settings/lab-settings';
+import { defaultsFrom } from '../../server/settings/queries/lab-settings';
 import { EHR_WRITE_SCOPES } from '../../server/fakes/ehr';
 import { startWorker } from '../../server/jobs/worker';
 import { createLogger } from '../../server/log';

@@ -2,7 +2,7 @@ import type { EntityManager } from 'typeorm';
 import type { CodingQueueQuery, QueueItem, ReviewStatus } from '../../../shared/coding/review';
 import { CodingReview } from '../../db/entities/coding.entities';
 import { localMidnight } from '../../db/local-midnight';
-import { labSettings } from '../../settings/lab-settings';
+import { labSettings } from '../../settings/queries/lab-settings';
 
 /**
  * The coding queue: studies whose review is open (or in the status asked for), oldest first by when

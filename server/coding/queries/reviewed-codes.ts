@@ -3,7 +3,7 @@ import type { EntityManager } from 'typeorm';
 import { csvExportOptions } from '../../../shared/csv/neutralise';
 import type { Decision } from '../../../shared/coding/review';
 import { loadLines } from './review';
-import { labSettings } from '../../settings/lab-settings';
+import { labSettings } from '../../settings/queries/lab-settings';
 import { localMidnight } from '../../db/local-midnight';
 import { CodingReview } from '../../db/entities/coding.entities';
 

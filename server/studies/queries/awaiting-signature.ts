@@ -2,7 +2,7 @@ import type { DataSource } from 'typeorm';
 import type { AwaitingList, AwaitingSignature } from '../../../shared/study/awaiting-signature';
 import type { WorklistItem } from '../../../shared/study/worklist';
 import { waitingSince } from '../../../shared/turnaround/overdue';
-import { labSettings } from '../../settings/lab-settings';
+import { labSettings } from '../../settings/queries/lab-settings';
 import { summaryJson, summarySelect } from '../worklist';
 
 /** At most this many rows per list; `total` says how many there are. */

@@ -1,10 +1,10 @@
 import { stringify } from 'csv-stringify';
 import type { Writable } from 'node:stream';
 import type { DataSource } from 'typeorm';
-import { csvExportOptions } from '../../shared/csv/neutralise';
-import type { TurnaroundQuery } from '../../shared/turnaround/query';
+import { csvExportOptions } from '../../../shared/csv/neutralise';
+import type { TurnaroundQuery } from '../../../shared/turnaround/query';
 import { intervalColumns, rangeCondition } from './figures';
-import type { TurnaroundSettings } from '../../shared/settings/lab-settings';
+import type { TurnaroundSettings } from '../../../shared/settings/lab-settings';
 
 const columns = [
   'accession',

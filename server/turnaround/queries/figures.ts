@@ -1,8 +1,8 @@
 import type pg from 'pg';
 import type { DataSource, QueryRunner } from 'typeorm';
-import { auditColumns, auditParameters, type AuditEntry } from '../audit/audit';
-import { slots, type Slots } from '../reports/signing-slots';
-import type { Endotype } from '../../shared/physiology/types';
+import { auditColumns, auditParameters, type AuditEntry } from '../../audit/audit';
+import { slots, type Slots } from '../../reports/signing-slots';
+import type { Endotype } from '../../../shared/physiology/types';
 import {
   driftBins,
   intervalKeys,
@@ -12,10 +12,10 @@ import {
   type QualityFigures,
   type StartBasis,
   type TurnaroundFigures,
-} from '../../shared/turnaround/figures';
-import type { TurnaroundQuery } from '../../shared/turnaround/query';
-import type { TurnaroundSettings } from '../../shared/settings/lab-settings';
-import { localMidnight } from '../db/local-midnight';
+} from '../../../shared/turnaround/figures';
+import type { TurnaroundQuery } from '../../../shared/turnaround/query';
+import type { TurnaroundSettings } from '../../../shared/settings/lab-settings';
+import { localMidnight } from '../../db/local-midnight';
 
 
 /**

@@ -1,10 +1,10 @@
 import type { DataSource } from 'typeorm';
-import type { UnsignedList, UnsignedStudy } from '../../shared/turnaround/unsigned';
-import { waitingSince } from '../../shared/turnaround/overdue';
-import type { WorklistItem } from '../../shared/study/worklist';
-import { summaryJson, summarySelect } from '../studies/worklist';
-import type { TurnaroundSettings } from '../../shared/settings/lab-settings';
-import { StudyTurnaround } from '../db/entities/turnaround.entities';
+import type { UnsignedList, UnsignedStudy } from '../../../shared/turnaround/unsigned';
+import { waitingSince } from '../../../shared/turnaround/overdue';
+import type { WorklistItem } from '../../../shared/study/worklist';
+import { summaryJson, summarySelect } from '../../studies/worklist';
+import type { TurnaroundSettings } from '../../../shared/settings/lab-settings';
+import { StudyTurnaround } from '../../db/entities/turnaround.entities';
 
 /**
  * Unsigned studies, longest waiting first, with their age against the signature target. A study
