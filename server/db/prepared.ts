@@ -33,7 +33,7 @@ export async function preparedQuery<R extends QueryResultRow = Record<string, ne
   values: unknown[],
   { prepare = true }: { prepare?: boolean } = {},
 ): Promise<R[]> {
-  const { rows } = await poolOf(dataSource).query<R>(prepare ? { name: nameOf(text), text, values } : { text, values });
+  const { rows } = await poolOf(dataSource).query<R>(prepare ? namedStatement(text, values) : { text, values });
   return rows;
 }
 
@@ -45,7 +45,7 @@ export const namedStatement = (text: string, values: unknown[]): QueryConfig => 
  * statements see and hold what the transaction did), else the pool. A statement sent through it goes
  * out at once, before the caller's next line runs.
  */
-export async function connectionOf(db: DataSource | EntityManager | PoolClient): Promise<Pick<PoolClient, 'query'>> {
+async function connectionOf(db: DataSource | EntityManager | PoolClient): Promise<Pick<PoolClient, 'query'>> {
   if (isPoolClient(db)) return db;
   if (db instanceof EntityManager) {
     const runner = db.queryRunner;

@@ -11,7 +11,8 @@ export interface QueuedJob {
  * What follows a signature, queued inside the signing transaction (see `storeSignature` in
  * sign-study.ts): the referrer's notice and the EHR delivery (with its "queued" delivery row) exist
  * exactly when the version commits, never after a second call that could be lost. The code
- * suggestions are not a job: they are made and stored in the transaction itself (`storeSuggestions`).
+ * suggestions are not a job: they are planned and written by the signature's own statement
+ * (`planSuggestions` and `suggestionWrites` of server/coding/store-suggestions.ts).
  */
 export function jobsOnReportSigned(reportVersionId: string): QueuedJob[] {
   return [

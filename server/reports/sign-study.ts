@@ -56,9 +56,10 @@ export const summariseVersion = (v: Omit<ReportVersion, 'pdfFile'>, pdfSha256: s
 
 /**
  * Each signature publishes `{ spans, totalMs }` here when someone listens (Node's diagnostics_channel),
- * the milliseconds of its steps: `begin` (opening the transaction), `load` (locking the study's row
- * and reading its record), `context` (the previous version, the transaction's time, the thresholds in
- * force, the lab's settings and the operator's name, in one statement), `analysis` (the physiology
+ * the milliseconds of its steps: `begin` (opening the transaction), `load` (locking the study's row,
+ * then reading its record with the signing context — the previous version, the transaction's time, the
+ * thresholds in force, the lab's settings, the operator's name, the coding so far — in one statement,
+ * and the checks), `context` (choosing the thresholds), `analysis` (the physiology
  * analysis for the report), `report` (view, narrative, canonical content and its SHA-256), `codes` (the
  * code suggestions and what they change), `pdf` (the PDF and its SHA-256, while PostgreSQL writes the
  * rest: the PDF alone is timed by `pdfRenderedChannel`), `store` (waiting for that statement after the
@@ -170,7 +171,7 @@ export async function signStudy(dataSource: DataSource, req: SignStudyRequest): 
     step('pdf');
     await stored;
     step('store');
-    await client.query(namedStatement(`INSERT INTO report_pdf (report_version_id, pdf, pdf_sha256) VALUES ($1::uuid, $2::bytea, $3)`, [version.id, pdf, pdfSha256]));
+    await preparedOn(client, `INSERT INTO report_pdf (report_version_id, pdf, pdf_sha256) VALUES ($1::uuid, $2::bytea, $3)`, [version.id, pdf, pdfSha256]);
     step('store-pdf');
     return summariseVersion(version, pdfSha256);
   });
