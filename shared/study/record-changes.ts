@@ -1,5 +1,5 @@
 import { fieldLabel, valueText } from './field-labels';
-import { sameValue, type PathStep } from './merge';
+import { isObject, isRowList, sameValue, type PathStep } from './merge';
 
 /** One field that differs between two versions of a study record. */
 export interface RecordChange {
@@ -14,8 +14,7 @@ export interface RecordChange {
 /** The parts of a record a person records; identifiers, versions, times of saving and attachments are not compared. */
 const recordedSections = ['patient', 'details', 'setup', 'vessels', 'vasoreactivity', 'findings'] as const;
 
-const isObject = (v: unknown): v is Record<string, unknown> => typeof v === 'object' && v !== null && !Array.isArray(v);
-const isRowList = (v: unknown): v is Array<Record<string, unknown> & { id: string }> => Array.isArray(v) && v.length > 0 && v.every((r) => isObject(r) && typeof r.id === 'string');
+type Row = Record<string, unknown> & { id: string };
 
 /**
  * What changed from `before` to `after`, field by field, in the order of the record: rows of a list
@@ -33,9 +32,10 @@ function walk(a: unknown, b: unknown, path: PathStep[], row: Record<string, unkn
     for (const k of new Set([...Object.keys(a), ...Object.keys(b)])) walk(a[k], b[k], [...path, k], row, out);
     return;
   }
-  if ((isRowList(a) || (Array.isArray(a) && a.length === 0)) && (isRowList(b) || (Array.isArray(b) && b.length === 0)) && (isRowList(a) || isRowList(b))) {
-    const rowsA = new Map((a as Array<Record<string, unknown> & { id: string }>).map((r) => [r.id, r]));
-    const rowsB = new Map((b as Array<Record<string, unknown> & { id: string }>).map((r) => [r.id, r]));
+  // Two lists of rows (both empty was the same value above).
+  if (isRowList(a) && isRowList(b)) {
+    const rowsA = new Map((a as Row[]).map((r) => [r.id, r]));
+    const rowsB = new Map((b as Row[]).map((r) => [r.id, r]));
     for (const [id, r] of rowsA) if (!rowsB.has(id)) out.push({ path: [...path, { id }], row: r, before: r, after: undefined });
     for (const [id, r] of rowsB) {
       const old = rowsA.get(id);
