@@ -2,6 +2,7 @@ import { analyzeStudy, defaultThresholds, type Thresholds } from '../../../share
 import { emptyDetails, emptyFindings, emptySetup, type StudySections } from '../../../shared/study/schema';
 import { toPhysiologyInput } from '../../../shared/study/to-physiology';
 import { demoPatients, demoStudies, type DemoStudy } from '../../../server/demo/scenario';
+import { renderNarrative } from '../../../server/report-document/render';
 import { buildReportView, type ReportInput, type ReportStudy } from '../../../server/report-document/view-model';
 
 /** Stable invented row ids, so views built from the same study are identical. */
@@ -60,4 +61,16 @@ export function viewOf(study: ReportStudy, extra: Partial<ReportInput> = {}) {
     hospital: { name: 'Saltmarsh Bay Regional Hospital', lab: 'Cardiac Catheterization Laboratory, level 3' },
     ...extra,
   });
+}
+
+/** The narrative of a study with the default thresholds (`viewOf`), text and HTML. */
+export const render = (s: ReportStudy, extra: Parameters<typeof viewOf>[1] = {}) => renderNarrative(viewOf(s, extra));
+
+/** One section of the plain-text narrative: the lines under `heading` up to the next heading; null when absent. */
+export function section(text: string, heading: string): string | null {
+  const start = text.indexOf(`\n${heading}\n`);
+  if (start < 0) return null;
+  const rest = text.slice(start + heading.length + 2);
+  const end = rest.search(/\n\n[A-Z][A-Z :]+\n/);
+  return end < 0 ? rest : rest.slice(0, end);
 }

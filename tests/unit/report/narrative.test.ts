@@ -3,17 +3,9 @@ import { defaultThresholds } from '../../../shared/physiology';
 import { findingsSchema, emptySetup, emptyVessel } from '../../../shared/study/schema';
 import { htmlDocument, renderNarrative } from '../../../server/report-document/render';
 import { REPORT_TEMPLATE_VERSION } from '../../../server/report-document/template-version';
-import { buildReportView, reportKindOf, type ReportStudy } from '../../../server/report-document/view-model';
-import { analysisOf, demoReportStudies, viewOf } from './fixtures';
+import { buildReportView, reportKindOf } from '../../../server/report-document/view-model';
+import { analysisOf, demoReportStudies, render, section, viewOf } from './fixtures';
 
-const render = (s: ReportStudy, extra: Parameters<typeof viewOf>[1] = {}) => renderNarrative(viewOf(s, extra));
-const section = (text: string, heading: string) => {
-  const start = text.indexOf(`\n${heading}\n`);
-  if (start < 0) return null;
-  const rest = text.slice(start + heading.length + 2);
-  const end = rest.search(/\n\n[A-Z][A-Z :]+\n/);
-  return end < 0 ? rest : rest.slice(0, end);
-};
 
 /** Signs of a sentence or cell left empty by missing data. */
 function expectNoHoles(text: string, html: string) {

@@ -5,18 +5,8 @@ import { renderReportPdf } from '../../../server/report-document/pdf';
 import { hasPoppler, pdfPages } from '../../support/pdf-to-png';
 import { reportDocument } from '../../../server/report-document/document';
 import { documentStrings } from '../../../shared/report/document';
-import { renderNarrative } from '../../../server/report-document/render';
-import type { ReportStudy } from '../../../server/report-document/view-model';
-import { demoReportStudies, viewOf } from './fixtures';
+import { demoReportStudies, render, section, viewOf } from './fixtures';
 
-const render = (s: ReportStudy, extra: Parameters<typeof viewOf>[1] = {}) => renderNarrative(viewOf(s, extra));
-const section = (text: string, heading: string) => {
-  const start = text.indexOf(`\n${heading}\n`);
-  if (start < 0) return null;
-  const rest = text.slice(start + heading.length + 2);
-  const end = rest.search(/\n\n[A-Z][A-Z :]+\n/);
-  return end < 0 ? rest : rest.slice(0, end);
-};
 
 describe('a negative acetylcholine test that stopped before the last dose says so', () => {
   // Protocol into the left coronary: 2, 20, 100, 200 µg (ESC 2024 chronic coronary syndromes guideline,
