@@ -18,7 +18,7 @@ export function reportDocument(view: ReportView): ReportDocument {
   const a = view.amendment;
   if (a) {
     add('amendment', `Amended report${view.signature ? ` — version ${view.signature.reportVersion}` : ''}`, [
-      { kind: 'paragraph', text: `Supersedes version ${a.supersedesVersion}, signed ${a.supersededSignedAt} by ${a.supersededBy} (fingerprint ${a.supersededFingerprint}).`, strong: true },
+      { kind: 'paragraph', text: a.supersedes, strong: true },
       !!a.reason && { kind: 'paragraph', text: `Reason: ${a.reason}` },
       a.changes.length > 0 && { kind: 'subheading', text: 'Changed' },
       a.changes.length > 0 && { kind: 'list', items: a.changes },

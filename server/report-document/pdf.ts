@@ -272,7 +272,7 @@ function footer(view: ReportView, page: number, pages: number): Content {
 function amendmentBanner(a: NonNullable<ReportView['amendment']>, version: number | null): Content {
   const lines: Content[] = [
     { text: `AMENDED REPORT${version ? ` — version ${version}` : ''}`, bold: true },
-    { text: `Supersedes version ${a.supersedesVersion}, signed ${a.supersededSignedAt} by ${a.supersededBy} (fingerprint ${a.supersededFingerprint}).` },
+    { text: a.supersedes },
   ];
   if (a.reason) lines.push({ text: `Reason: ${a.reason}` });
   if (a.changes.length) lines.push({ text: 'Changed:', margin: [0, 2, 0, 0] }, { ul: a.changes });

@@ -153,10 +153,8 @@ export interface ReportView {
   caution: string;
   /** An addendum says which version it supersedes, why, and what it changes; null for a first version. */
   amendment: null | {
-    supersedesVersion: number;
-    supersededSignedAt: string;
-    supersededBy: string;
-    supersededFingerprint: string;
+    /** "Supersedes version 1, signed … by … (fingerprint …)." */
+    supersedes: string;
     /** The reason the signer gave (null in a preview, before it is given). */
     reason: string | null;
     /** Each changed field as a person reads it ("Procedure › Access site: right radial → right femoral"). */
@@ -807,10 +805,7 @@ export function buildReportView(input: ReportInput): ReportView {
   const signature = signatureView(input.signature ?? null, tz);
   const amendment: ReportView['amendment'] = input.amends
     ? {
-        supersedesVersion: input.amends.versionNo,
-        supersededSignedAt: formatDateTime(input.amends.signedAt, tz),
-        supersededBy: input.amends.signedBy,
-        supersededFingerprint: shortFingerprint(input.amends.fingerprint),
+        supersedes: `Supersedes version ${input.amends.versionNo}, signed ${formatDateTime(input.amends.signedAt, tz)} by ${input.amends.signedBy} (fingerprint ${shortFingerprint(input.amends.fingerprint)}).`,
         reason: signature?.amendmentReason ?? null,
         changes: recordChanges(input.amends.record, study as unknown as Record<string, unknown>).map(changeText),
       }
