@@ -11,7 +11,7 @@ import { ReportVersion } from '../db/entities/report-version.entity';
 import { InvalidRequestError, RecordNotFoundError } from '../errors';
 import { ATTESTATION, prepareSignedText, renderSignedPdf, type AmendedVersion } from '../report-document';
 import { StaleVersionError, studyRecordColumns, studyRecordFrom, studyRecordOf } from '../studies/repository';
-import { inPooledTransaction, namedStatement, preparedOn } from '../db/prepared';
+import { inPooledTransaction, namedStatement, preparedOn, sqlLiteral } from '../db/prepared';
 import type { PoolClient } from 'pg';
 import { IncompleteStudyError, TransitionRefusedError } from './errors';
 import { jobsOnReportSigned } from './on-report-signed';
@@ -56,14 +56,14 @@ export const summariseVersion = (v: Omit<ReportVersion, 'pdfFile'>, pdfSha256: s
 
 /**
  * Each signature publishes `{ spans, totalMs }` here when someone listens (Node's diagnostics_channel),
- * the milliseconds of its steps: `begin` (opening the transaction), `load` (locking the study's row,
- * then reading its record with the signing context — the previous version, the transaction's time, the
+ * the milliseconds of its steps: `load` (opening the transaction and locking the study's row in one
+ * round trip, then reading its record with the signing context — the previous version, the transaction's time, the
  * thresholds in force, the lab's settings, the operator's name, the coding so far — in one statement,
  * and the checks), `context` (choosing the thresholds), `analysis` (the physiology
  * analysis for the report), `report` (view, narrative, canonical content and its SHA-256), `codes` (the
  * code suggestions and what they change), `pdf` (the PDF and its SHA-256, while PostgreSQL writes the
  * rest: the PDF alone is timed by `pdfRenderedChannel`), `store` (waiting for that statement after the
- * PDF), `store-pdf` (the PDF's row) and `commit`.
+ * PDF) and `store-pdf+commit` (the PDF's row and COMMIT, one round trip).
  */
 export const signStepsChannel = diagnosticsChannel.channel('isobar:sign-steps');
 
@@ -84,11 +84,11 @@ export async function signStudy(dataSource: DataSource, req: SignStudyRequest): 
     spans[name] = t - mark;
     mark = t;
   };
-  const summary = await inPooledTransaction(dataSource, async (client) => {
-    step('begin');
-    // The study's row is locked first; its record and the signing context are then read from a
-    // snapshot taken after the lock, so a signer who waited reads what the other writer committed.
-    const [locked] = await preparedOn(client, `SELECT id FROM study WHERE id = $1 FOR UPDATE`, [req.studyId]);
+  // The study's row is locked first (with BEGIN, one round trip); its record and the signing context
+  // are then read from a snapshot taken after the lock, so a signer who waited reads what the other
+  // writer committed.
+  const lockStudy = `SELECT id FROM study WHERE id = ${sqlLiteral(req.studyId)}::uuid FOR UPDATE`;
+  const summary = await inPooledTransaction(dataSource, lockStudy, async ({ client, opened: [locked], commitWith }) => {
     const read = locked ? await signingRead(client, req.studyId, req.now ?? null) : null;
     const record = read?.record ?? null;
     if (!record) throw new RecordNotFoundError('No study has this id.');
@@ -171,14 +171,12 @@ export async function signStudy(dataSource: DataSource, req: SignStudyRequest): 
     step('pdf');
     await stored;
     step('store');
-    await preparedOn(client, `INSERT INTO report_pdf (report_version_id, pdf, pdf_sha256) VALUES ($1::uuid, $2::bytea, $3)`, [version.id, pdf, pdfSha256]);
-    step('store-pdf');
+    // The PDF's row and COMMIT in one round trip (the deferred check that a version has its PDF runs at COMMIT).
+    await commitWith(`INSERT INTO report_pdf (report_version_id, pdf, pdf_sha256) VALUES (${sqlLiteral(version.id)}::uuid, ${sqlLiteral(pdf)}, ${sqlLiteral(pdfSha256)})`);
+    step('store-pdf+commit');
     return summariseVersion(version, pdfSha256);
   });
-  if (timed) {
-    step('commit');
-    signStepsChannel.publish({ spans, totalMs: performance.now() - began });
-  }
+  if (timed) signStepsChannel.publish({ spans, totalMs: performance.now() - began });
   return summary;
 }
 
