@@ -70,6 +70,9 @@ export function createApp({
 }: AppDeps): Express {
   const app = express();
   app.disable('x-powered-by');
+  // API answers are never cached (Cache-Control: no-store), so hashing every body into an ETag is
+  // wasted work; the web build's files get theirs from the static file server, which makes its own.
+  app.set('etag', false);
   app.use(requestLogger(logger));
   // Forwarded addresses only from a configured proxy: otherwise anyone could set X-Forwarded-For.
   app.set('trust proxy', config.trustProxy.length ? config.trustProxy : false);

@@ -26,6 +26,8 @@ describe('GET /api/health', () => {
     const res = await request(app).get('/api/health').expect(200);
     expect(res.body).toMatchObject({ status: 'ok', database: 'up' });
     expect(res.headers['cache-control']).toBe('no-store');
+    // Never cached, so no ETag is computed for it (common practice: validators serve caches).
+    expect(res.headers.etag).toBeUndefined();
   });
 
   it('answers 503 problem+json once the database stops answering', async () => {
