@@ -1,6 +1,7 @@
 import { createHash } from 'node:crypto';
 import pg, { type Pool, type PoolClient, type QueryConfig, type QueryResultRow } from 'pg';
 import { EntityManager, type DataSource } from 'typeorm';
+import { uuidPattern } from '../../shared/uuid';
 
 /** The pg pool TypeORM already holds, so hot paths need no second pool. */
 export function poolOf(dataSource: DataSource): Pool {
@@ -64,12 +65,14 @@ export async function preparedOn<R extends QueryResultRow = Record<string, never
 const isPoolClient = (db: unknown): db is PoolClient => db instanceof pg.Client;
 
 /**
- * A value written into a statement's text, for the statements `inPooledTransaction` sends together
- * with BEGIN or COMMIT in one round trip (a text query of two statements takes no parameters): text
- * through the driver's `escapeLiteral`, bytes as a hex `bytea` literal.
+ * A UUID written into a statement's text as a `uuid` literal, for the statement `inPooledTransaction`
+ * sends with BEGIN (a text query of two statements takes no parameters). Only a well-formed UUID is
+ * accepted — nothing else is ever written into SQL text — so the literal needs no escaping and, should
+ * the statement fail and PostgreSQL log its text, holds no patient data.
  */
-export function sqlLiteral(value: string | Buffer): string {
-  return Buffer.isBuffer(value) ? `'\\x${value.toString('hex')}'::bytea` : pg.escapeLiteral(value);
+export function uuidLiteral(id: string): string {
+  if (!uuidPattern.test(id)) throw new TypeError('uuidLiteral: not a UUID');
+  return `'${id}'::uuid`;
 }
 
 /** A transaction on a pooled connection of its own (see `inPooledTransaction`). */
@@ -77,21 +80,16 @@ export interface PooledTransaction {
   client: PoolClient;
   /** The rows of the opening statement, which went out with BEGIN. */
   opened: QueryResultRow[];
-  /**
-   * Sends `statement` and COMMIT in one round trip (values written with `sqlLiteral`); when the
-   * statement fails, nothing is committed and the error is thrown. The last call of a transaction.
-   */
-  commitWith(statement: string): Promise<void>;
 }
 
 /**
  * Runs `work` in a transaction on a pooled connection of its own, without the ORM's query runner, for
- * the signature (benchmarked: scripts/bench-sign.ts). `opening` (values written with `sqlLiteral`) is
- * sent with BEGIN as one round trip and its rows handed to `work`; COMMIT follows `work`, unless `work`
- * committed with its own last statement (`commitWith`). ROLLBACK on any error. While the connection is
- * held, an error the connection itself raises (the server ended the session, the network dropped it)
- * is caught here and closes the connection instead of reaching the process as an unhandled event; the
- * statement waiting on it fails and the caller's error handling answers.
+ * the signature (benchmarked: scripts/bench-sign.ts). `opening` (its values written with
+ * `uuidLiteral`) is sent with BEGIN as one round trip and its rows handed to `work`; COMMIT follows
+ * `work`, ROLLBACK any error. While the connection is held, an error the connection itself raises (the
+ * server ended the session, the network dropped it) is caught here and closes the connection instead of
+ * reaching the process as an unhandled event; the statement waiting on it fails and the caller's error
+ * handling answers.
  */
 export async function inPooledTransaction<T>(dataSource: DataSource, opening: string, work: (tx: PooledTransaction) => Promise<T>): Promise<T> {
   const client = await poolOf(dataSource).connect();
@@ -100,23 +98,14 @@ export async function inPooledTransaction<T>(dataSource: DataSource, opening: st
     broken = error;
   };
   client.on('error', onConnectionError);
-  let committed = false;
   try {
     // Two statements in one text answer one result each: BEGIN's, then the opening statement's.
     const results = (await client.query(`BEGIN; ${opening}`)) as unknown as pg.QueryResult[];
-    const result = await work({
-      client,
-      opened: results[1].rows,
-      async commitWith(statement: string) {
-        await client.query(`${statement}; COMMIT`);
-        committed = true;
-      },
-    });
-    if (!committed) await client.query('COMMIT');
+    const result = await work({ client, opened: results[1].rows });
+    await client.query('COMMIT');
     return result;
   } catch (error) {
     if (!broken) {
-      // A failed statement leaves the transaction aborted (its COMMIT, if sent, was not run).
       await client.query('ROLLBACK').catch((rollbackError: Error) => {
         broken = rollbackError;
       });

@@ -11,7 +11,7 @@ import { ReportVersion } from '../db/entities/report-version.entity';
 import { InvalidRequestError, RecordNotFoundError } from '../errors';
 import { ATTESTATION, prepareSignedText, renderSignedPdf, type AmendedVersion } from '../report-document';
 import { StaleVersionError, studyRecordColumns, studyRecordFrom, studyRecordOf } from '../studies/repository';
-import { inPooledTransaction, namedStatement, preparedOn, sqlLiteral } from '../db/prepared';
+import { inPooledTransaction, namedStatement, preparedOn, uuidLiteral } from '../db/prepared';
 import type { PoolClient } from 'pg';
 import { IncompleteStudyError, TransitionRefusedError } from './errors';
 import { jobsOnReportSigned } from './on-report-signed';
@@ -63,7 +63,7 @@ export const summariseVersion = (v: Omit<ReportVersion, 'pdfFile'>, pdfSha256: s
  * analysis for the report), `report` (view, narrative, canonical content and its SHA-256), `codes` (the
  * code suggestions and what they change), `pdf` (the PDF and its SHA-256, while PostgreSQL writes the
  * rest: the PDF alone is timed by `pdfRenderedChannel`), `store` (waiting for that statement after the
- * PDF) and `store-pdf+commit` (the PDF's row and COMMIT, one round trip).
+ * PDF), `store-pdf` (the PDF's row) and `commit`.
  */
 export const signStepsChannel = diagnosticsChannel.channel('isobar:sign-steps');
 
@@ -87,8 +87,8 @@ export async function signStudy(dataSource: DataSource, req: SignStudyRequest): 
   // The study's row is locked first (with BEGIN, one round trip); its record and the signing context
   // are then read from a snapshot taken after the lock, so a signer who waited reads what the other
   // writer committed.
-  const lockStudy = `SELECT id FROM study WHERE id = ${sqlLiteral(req.studyId)}::uuid FOR UPDATE`;
-  const summary = await inPooledTransaction(dataSource, lockStudy, async ({ client, opened: [locked], commitWith }) => {
+  const lockStudy = `SELECT id FROM study WHERE id = ${uuidLiteral(req.studyId)} FOR UPDATE`;
+  const summary = await inPooledTransaction(dataSource, lockStudy, async ({ client, opened: [locked] }) => {
     const read = locked ? await signingRead(client, req.studyId, req.now ?? null) : null;
     const record = read?.record ?? null;
     if (!record) throw new RecordNotFoundError('No study has this id.');
@@ -102,7 +102,7 @@ export async function signStudy(dataSource: DataSource, req: SignStudyRequest): 
     }
     const completeness = checkCompleteness(record);
     if (!completeness.complete) throw new IncompleteStudyError(completeness.missing);
-    step('load');  // the lock, then the record with the signing context (one statement)
+    step('load');  // BEGIN with the lock (one round trip), the record with the signing context (one statement), the checks
 
     const context = read!.context;
     const { previous } = context;
@@ -171,12 +171,15 @@ export async function signStudy(dataSource: DataSource, req: SignStudyRequest): 
     step('pdf');
     await stored;
     step('store');
-    // The PDF's row and COMMIT in one round trip (the deferred check that a version has its PDF runs at COMMIT).
-    await commitWith(`INSERT INTO report_pdf (report_version_id, pdf, pdf_sha256) VALUES (${sqlLiteral(version.id)}::uuid, ${sqlLiteral(pdf)}, ${sqlLiteral(pdfSha256)})`);
-    step('store-pdf+commit');
+    // The PDF as a parameter, never in the statement's text: PostgreSQL logs the text of a failed statement.
+    await preparedOn(client, `INSERT INTO report_pdf (report_version_id, pdf, pdf_sha256) VALUES ($1::uuid, $2::bytea, $3)`, [version.id, pdf, pdfSha256]);
+    step('store-pdf');
     return summariseVersion(version, pdfSha256);
   });
-  if (timed) signStepsChannel.publish({ spans, totalMs: performance.now() - began });
+  if (timed) {
+    step('commit'); // the deferred check that a version has its PDF runs here
+    signStepsChannel.publish({ spans, totalMs: performance.now() - began });
+  }
   return summary;
 }
 
