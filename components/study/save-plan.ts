@@ -3,7 +3,7 @@
  * fields that cannot be saved), what an error answer means, and whether a failed save is tried again.
  */
 import { sectionNames, studySectionsSchema, type SectionName, type StudyRecord, type StudySections } from '../../shared/study/schema';
-import { sameValue } from '../../shared/study/merge';
+import { isObject, sameValue } from '../../shared/study/merge';
 
 import { pathOfPointer, pointerOf, problemSlugOf, type Problem } from '../../shared/http/problem';
 
@@ -16,7 +16,6 @@ export { pathOfPointer };
 /** The react-hook-form name of a field ("vessels.0.restPa"). */
 export const formNameOf = (path: FieldPath) => path.join('.');
 
-const isObject = (v: unknown): v is Record<string, unknown> => typeof v === 'object' && v !== null && !Array.isArray(v);
 const isRow = (v: unknown): v is Record<string, unknown> & { id: string } => isObject(v) && typeof v.id === 'string';
 const isRowList = (v: unknown): v is unknown[] => Array.isArray(v) && v.length > 0 && v.every(isRow);
 

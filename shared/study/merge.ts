@@ -32,7 +32,7 @@ export interface MergeResult<T> {
 
 export const isObject = (v: unknown): v is Record<string, unknown> => typeof v === 'object' && v !== null && !Array.isArray(v);
 /** A list whose items are rows with an `id` (an empty list counts). */
-export const isRowList = (v: unknown): v is { id: string }[] => Array.isArray(v) && v.every((r) => isObject(r) && typeof r.id === 'string');
+export const isRowList = (v: unknown): v is Array<Record<string, unknown> & { id: string }> => Array.isArray(v) && v.every((r) => isObject(r) && typeof r.id === 'string');
 
 /** Equality of plain data that tells NaN (text in a number box) from null, and ignores key order. */
 export function sameValue(a: unknown, b: unknown): boolean {

@@ -14,8 +14,6 @@ export interface RecordChange {
 /** The parts of a record a person records; identifiers, versions, times of saving and attachments are not compared. */
 const recordedSections = ['patient', 'details', 'setup', 'vessels', 'vasoreactivity', 'findings'] as const;
 
-type Row = Record<string, unknown> & { id: string };
-
 /**
  * What changed from `before` to `after`, field by field, in the order of the record: rows of a list
  * (vessels, acetylcholine doses) matched by their id, a row added or removed as one change.
@@ -34,8 +32,8 @@ function walk(a: unknown, b: unknown, path: PathStep[], row: Record<string, unkn
   }
   // Two lists of rows (both empty was the same value above).
   if (isRowList(a) && isRowList(b)) {
-    const rowsA = new Map((a as Row[]).map((r) => [r.id, r]));
-    const rowsB = new Map((b as Row[]).map((r) => [r.id, r]));
+    const rowsA = new Map(a.map((r) => [r.id, r]));
+    const rowsB = new Map(b.map((r) => [r.id, r]));
     for (const [id, r] of rowsA) if (!rowsB.has(id)) out.push({ path: [...path, { id }], row: r, before: r, after: undefined });
     for (const [id, r] of rowsB) {
       const old = rowsA.get(id);

@@ -6,7 +6,6 @@ import { REPORT_TEMPLATE_VERSION } from '../../../server/report-document/templat
 import { buildReportView, reportKindOf } from '../../../server/report-document/view-model';
 import { analysisOf, demoReportStudies, render, section, viewOf } from './fixtures';
 
-
 /** Signs of a sentence or cell left empty by missing data. */
 function expectNoHoles(text: string, html: string) {
   const prose = text.replace(/ {2,}/g, ' '); // table padding is not a hole

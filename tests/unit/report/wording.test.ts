@@ -7,7 +7,6 @@ import { reportDocument } from '../../../server/report-document/document';
 import { documentStrings } from '../../../shared/report/document';
 import { demoReportStudies, render, section, viewOf } from './fixtures';
 
-
 describe('a negative acetylcholine test that stopped before the last dose says so', () => {
   // Protocol into the left coronary: 2, 20, 100, 200 µg (ESC 2024 chronic coronary syndromes guideline,
   // protocol figure; COVADIS). Into the right coronary: 20, 50 µg (Japanese Circulation Society 2016).

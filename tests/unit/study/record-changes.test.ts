@@ -38,6 +38,16 @@ describe('recordChanges', () => {
     expect(recordChanges(added, record()).map(changeText)).toEqual(['Vessels › RCA: removed']);
   });
 
+  it('says a row was added to an empty list, or the last row removed, as one change', () => {
+    const dosed = record({ vasoreactivity: { doses: [{ id: 'd1', vessel: 'LAD', micrograms: 2, constrictionPct: 10 }] } });
+    const added = recordChanges(record(), dosed).map(changeText);
+    expect(added).toHaveLength(1);
+    expect(added[0]).toMatch(/: added$/);
+    const removed = recordChanges(dosed, record()).map(changeText);
+    expect(removed).toHaveLength(1);
+    expect(removed[0]).toMatch(/: removed$/);
+  });
+
   it('quotes free text without its full stop', () => {
     const changes = recordChanges(record(), record({ findings: { complications: 'Band removed after 2 hours.', complicationKinds: ['none'] } }));
     expect(changes.map(changeText)).toEqual(['Findings › Complications: None, changed to Band removed after 2 hours']);
