@@ -56,11 +56,13 @@ function post(url: string, body: string, headers: Record<string, string>): Promi
       res.setEncoding('utf8');
       res.on('data', (chunk: string) => (text += chunk));
       res.on('end', () => {
+        let parsed: unknown = text; // an answer that is not JSON (a proxy's error page) is kept as text
         try {
-          resolve({ status: res.statusCode ?? 0, body: JSON.parse(text) });
-        } catch (error) {
-          reject(error);
+          parsed = JSON.parse(text);
+        } catch {
+          /* kept as text */
         }
+        resolve({ status: res.statusCode ?? 0, body: parsed });
       });
       res.on('error', reject);
     });
