@@ -2,6 +2,7 @@ import { createServer } from 'node:http';
 import { loadConfig, ConfigError } from './config';
 import { createDataSource } from './db/data-source';
 import { createApp } from './app';
+import { closePdfThreads, warmPdfThreads } from './report-document/pdf-threads';
 import { createLogger, safeError } from './log';
 import { startWorker } from './jobs/worker';
 import { cronItems, taskList } from './jobs/tasks';
@@ -20,6 +21,8 @@ async function main(): Promise<void> {
   // Background work (notices, code suggestions, EHR delivery) runs beside the server, from the queue in
   // PostgreSQL; its schema was migrated by the owner role (npm start runs that first).
   const worker = config.jobWorker ? await startWorker(taskList(dataSource, config), { databaseUrl: config.databaseUrl, logger, cronItems }) : null;
+  // The threads that render signed PDFs, started with their fonts loaded before the first signature.
+  await warmPdfThreads();
   const server = createServer(createApp({ config, dataSource, logger }));
   server.requestTimeout = 60_000;
   await new Promise<void>((resolve, reject) => {
@@ -36,6 +39,7 @@ async function main(): Promise<void> {
     server.close();
     server.closeAllConnections();
     await worker?.stop().catch(() => undefined);
+    await closePdfThreads().catch(() => undefined);
     await dataSource.destroy().catch(() => undefined);
     process.exit(0);
   };

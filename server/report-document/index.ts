@@ -72,12 +72,20 @@ export function previewReport(input: Omit<ReportInput, 'signature'>): { view: Re
 /** A signed report before its PDF is rendered. */
 export type SignedReportText = Omit<PreparedReport, 'pdf' | 'pdfSha256'>;
 
+/** The signed view and the content its fingerprint covers: all a signed version's PDF needs. */
+export interface SignedView {
+  view: ReportView;
+  content: SignedContent;
+  /** SHA-256 (hex) of the canonical signed content. */
+  fingerprint: string;
+}
+
 /**
- * Everything a signed version stores but its PDF, built from the same input as the preview: the
- * content and its fingerprint, then the signed view and narrative that print it. Pure; the same
- * input gives identical output.
+ * The first half of `prepareSignedText`, built from the same input as the preview: the content and its
+ * fingerprint, then the signed view that prints it. Enough to render the PDF while the narrative is
+ * rendered beside it (`signedNarrative`).
  */
-export function prepareSignedText(input: Omit<ReportInput, 'signature'>, sign: SignRequest): SignedReportText {
+export function prepareSignedView(input: Omit<ReportInput, 'signature'>, sign: SignRequest): SignedView {
   // The view as previewed; the signed view differs only by its signature block (see signatureView).
   const unsigned = buildReportView({ ...input, signature: null });
   const content: SignedContent = {
@@ -105,8 +113,22 @@ export function prepareSignedText(input: Omit<ReportInput, 'signature'>, sign: S
     signature: signatureView(signature, input.timeZone ?? 'UTC'),
     amendment: unsigned.amendment ? { ...unsigned.amendment, reason: sign.amendmentReason?.trim() || null } : null,
   };
+  return { view, content, fingerprint: fp };
+}
+
+/** The signed view's narrative (text and HTML) and the HTML as a standalone page. */
+export function signedNarrative(view: ReportView): { narrative: Narrative; htmlDocument: string } {
   const narrative = renderNarrative(view);
-  return { view, narrative, htmlDocument: htmlDocument(view, narrative.html), content, fingerprint: fp };
+  return { narrative, htmlDocument: htmlDocument(view, narrative.html) };
+}
+
+/**
+ * Everything a signed version stores but its PDF: `prepareSignedView`, then `signedNarrative`. Pure;
+ * the same input gives identical output.
+ */
+export function prepareSignedText(input: Omit<ReportInput, 'signature'>, sign: SignRequest): SignedReportText {
+  const signed = prepareSignedView(input, sign);
+  return { ...signed, ...signedNarrative(signed.view) };
 }
 
 /** The signed view's PDF and its SHA-256. The same view gives byte-identical bytes. */

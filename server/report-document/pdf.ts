@@ -141,7 +141,8 @@ function withSharedLayouts(font: FontkitFont): FontkitFont {
 }
 
 let ready = false;
-function setUp(): void {
+/** Parses the report fonts once per thread (each render calls it; a rendering thread calls it when it starts). */
+export function setUp(): void {
   if (ready) return;
   const require = createRequire(import.meta.url);
   // The fontkit that pdfkit itself loads (pdfmake → pdfkit → fontkit), so the format reaches it.

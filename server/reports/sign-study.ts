@@ -9,7 +9,8 @@ import { checkTransition } from '../../shared/study/state-machine';
 import { auditColumns, auditParameters, type AuditActor, type AuditEntry } from '../audit/audit';
 import { ReportVersion } from '../db/entities/report-version.entity';
 import { InvalidRequestError, RecordNotFoundError } from '../errors';
-import { ATTESTATION, prepareSignedText, renderSignedPdf, type AmendedVersion } from '../report-document';
+import { ATTESTATION, prepareSignedView, sha256Hex, signedNarrative, type AmendedVersion } from '../report-document';
+import { renderPdfInThread } from '../report-document/pdf-threads';
 import { StaleVersionError, studyRecordColumns, studyRecordFrom, studyRecordOf } from '../studies/repository';
 import { inPooledTransaction, namedStatement, preparedOn, uuidLiteral } from '../db/prepared';
 import type { PoolClient } from 'pg';
@@ -60,10 +61,11 @@ export const summariseVersion = (v: Omit<ReportVersion, 'pdfFile'>, pdfSha256: s
  * round trip, then reading its record with the signing context — the previous version, the transaction's time, the
  * thresholds in force, the lab's settings, the operator's name, the coding so far — in one statement,
  * and the checks), `context` (choosing the thresholds), `analysis` (the physiology
- * analysis for the report), `report` (view, narrative, canonical content and its SHA-256), `codes` (the
- * code suggestions and what they change), `pdf` (the PDF and its SHA-256, while PostgreSQL writes the
- * rest: the PDF alone is timed by `pdfRenderedChannel`), `store` (waiting for that statement after the
- * PDF), `store-pdf` (the PDF's row) and `commit`.
+ * analysis for the report), `report` (view, canonical content and its SHA-256, then — the PDF rendering
+ * in a thread meanwhile — the narrative), `codes` (the code suggestions and what they change, and the
+ * storing statement sent), `pdf` (waiting for the thread's PDF, and its SHA-256: the render alone is
+ * timed by `pdfRenderedChannel`), `store` (waiting for that statement after the PDF), `store-pdf` (the
+ * PDF's row) and `commit`.
  */
 export const signStepsChannel = diagnosticsChannel.channel('isobar:sign-steps');
 
@@ -112,13 +114,18 @@ export async function signStudy(dataSource: DataSource, req: SignStudyRequest): 
     const input = { ...reportInputOf(record, req.hospital, thresholds, context.settings, context.operatorName), amends: addendum ? (previous?.amended ?? null) : null };
     step('analysis');
     const versionNo = (previous?.versionNo ?? 0) + 1;
-    const text = prepareSignedText(input, {
+    const signed = prepareSignedView(input, {
       signer: { id: req.signer.userId, name: req.signer.displayName },
       signedAt: signedAt.toISOString(),
       reportVersion: versionNo,
       amends: previous?.versionNo ?? null,
       amendmentReason: addendum ? (req.reason ?? null) : null,
     });
+    // The PDF renders in a thread from here on; the narrative, the code suggestions and the statement
+    // that stores the version are made beside it, and PostgreSQL writes that statement meanwhile.
+    const rendering = renderPdfInThread(signed.view);
+    rendering.catch(() => undefined); // awaited below, where a failure is thrown
+    const text = { ...signed, ...signedNarrative(signed.view) };
     step('report');
     const version: StoredVersion = {
       id: randomUUID(),
@@ -150,7 +157,7 @@ export async function signStudy(dataSource: DataSource, req: SignStudyRequest): 
     );
     step('codes');
     // The version and everything that follows from it are sent now, on the transaction's connection,
-    // and written by PostgreSQL while this process renders the PDF; the PDF's row comes after.
+    // and written by PostgreSQL while the thread renders the PDF; the PDF's row comes after.
     const stored = storeSignature(client, version, addendum ? 'amended' : 'signed', coding, {
       ...req.audit,
       action: addendum ? 'sign-addendum' : 'sign',
@@ -167,7 +174,8 @@ export async function signStudy(dataSource: DataSource, req: SignStudyRequest): 
       },
     });
     stored.catch(() => undefined); // awaited below, where a failure is thrown
-    const { pdf, pdfSha256 } = await renderSignedPdf(text);
+    const pdf = await rendering;
+    const pdfSha256 = sha256Hex(pdf);
     step('pdf');
     await stored;
     step('store');
@@ -271,7 +279,7 @@ async function storeSignature(connection: Pick<PoolClient, 'query'>, v: StoredVe
     .map((j) => `ROW(${p(j.name)}, ${p(JSON.stringify(j.payload), '::json')}, NULL, NULL, ${p(j.options.maxAttempts, '::smallint')}, ${p(j.options.jobKey)}, NULL, NULL)::graphile_worker.job_spec`)
     .join(', ');
   // Sent on the transaction's connection before this function returns its promise, so PostgreSQL
-  // writes it while the caller renders the PDF.
+  // writes it while the PDF renders.
   const { rows: [row] } = await connection.query(namedStatement(
     `WITH version AS (
        INSERT INTO report_version (id, study_id, version_no, study_version, status, supersedes_id, reason, narrative_html, narrative_text, snapshot, analysis, thresholds,

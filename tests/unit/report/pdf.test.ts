@@ -4,6 +4,7 @@ import { createHash } from 'node:crypto';
 import { describe, expect, it } from 'vitest';
 import { defaultThresholds } from '../../../shared/physiology';
 import { buildReportView, canonicalContent, fingerprint, fingerprintInPdf, PAGE, prepareSignedReport, previewReport, renderNarrative, renderReportPdf, sha256Hex, type SignedContent } from '../../../server/report-document';
+import { closePdfThreads, renderPdfInThread } from '../../../server/report-document/pdf-threads';
 import { pdfInfo, pdfPages, pdfToPng, pngSize } from '../../support/pdf-to-png';
 import { analysisOf, demoReportStudies, viewOf } from './fixtures';
 
@@ -82,6 +83,23 @@ describe('the report PDF', () => {
       process.stdout.write(sha256Hex(await renderReportPdf(viewOf(s, { signature: JSON.parse(process.argv[1]) }))));`;
     const fresh = execFileSync(process.execPath, ['--import', 'tsx', '--input-type=module', '-e', script, JSON.stringify(signature)], { encoding: 'utf8' });
     expect(fresh).toBe(shared);
+  });
+
+  it('gives the same bytes rendered in a rendering thread (as a signature renders it) as in this thread', async () => {
+    try {
+      for (const [i, s] of demoReportStudies().slice(0, 3).entries()) {
+        const signed = { ...signature, reportVersion: i + 1 };
+        const inThread = await renderPdfInThread(viewOf(s, { signature: signed }));
+        expect(sha256Hex(inThread)).toBe(sha256Hex(await renderReportPdf(viewOf(s, { signature: signed }))));
+        expect(pdfPages(inThread)[0]).toContain(s.accession);
+      }
+      // A render that fails in the thread fails that signature only; the next one renders.
+      const broken = viewOf(demoReportStudies()[0], { signature });
+      await expect(renderPdfInThread({ ...broken, signature: { ...broken.signature!, signedAtIso: 'not a time' } })).rejects.toThrow(/not a valid time/);
+      expect(pdfPages(await renderPdfInThread(viewOf(demoReportStudies()[0], { signature })))[0]).toContain(demoReportStudies()[0].accession);
+    } finally {
+      await closePdfThreads();
+    }
   });
 
   it('a preview says it is not signed', async () => {
