@@ -82,6 +82,9 @@ export interface PooledTransaction {
   opened: QueryResultRow[];
 }
 
+/** How long a transaction of `inPooledTransaction` may sit idle before PostgreSQL ends it. */
+export const IDLE_IN_TRANSACTION_LIMIT = '60s';
+
 /**
  * Runs `work` in a transaction on a pooled connection of its own, without the ORM's query runner, for
  * the signature (benchmarked: scripts/bench-sign.ts). `opening` (its values written with
@@ -99,9 +102,11 @@ export async function inPooledTransaction<T>(dataSource: DataSource, opening: st
   };
   client.on('error', onConnectionError);
   try {
-    // Two statements in one text answer one result each: BEGIN's, then the opening statement's.
-    const results = (await client.query(`BEGIN; ${opening}`)) as unknown as pg.QueryResult[];
-    const result = await work({ client, opened: results[1].rows });
+    // The statements of one text answer one result each: BEGIN's, the SET's, then the opening
+    // statement's. Should the caller stall with the transaction open (a render that never ends), the
+    // database ends it after a minute and its locks go with it.
+    const results = (await client.query(`BEGIN; SET LOCAL idle_in_transaction_session_timeout = '${IDLE_IN_TRANSACTION_LIMIT}'; ${opening}`)) as unknown as pg.QueryResult[];
+    const result = await work({ client, opened: results[2].rows });
     await client.query('COMMIT');
     return result;
   } catch (error) {

@@ -174,7 +174,12 @@ export async function signStudy(dataSource: DataSource, req: SignStudyRequest): 
       },
     });
     stored.catch(() => undefined); // awaited below, where a failure is thrown
-    const pdf = await rendering;
+    // A render that failed or timed out fails the signature; its statement settles first, so the
+    // ROLLBACK is never queued behind it on the connection.
+    const pdf = await rendering.catch(async (error: unknown) => {
+      await stored.catch(() => undefined);
+      throw error;
+    });
     const pdfSha256 = sha256Hex(pdf);
     step('pdf');
     await stored;

@@ -37,13 +37,22 @@ describe('inPooledTransaction', () => {
       // Three round trips: BEGIN with the opening statement, the work's statement, COMMIT.
       const texts = sent.mock.calls.map(([q]) => (typeof q === 'string' ? q : (q as { text: string }).text));
       expect(texts).toHaveLength(3);
-      expect(texts[0]).toMatch(/^BEGIN; SELECT '/);
+      expect(texts[0]).toMatch(/^BEGIN; SET LOCAL idle_in_transaction_session_timeout = '60s'; SELECT '/);
       expect(texts[1]).toMatch(/^INSERT INTO audit_event/);
       expect(texts[2]).toBe('COMMIT');
     } finally {
       sent.mockRestore();
     }
     expect(await auditRowsWith(marker)).toBe(1);
+  });
+
+  it('ends a transaction left idle for longer than its limit (its locks go with it)', async () => {
+    await inPooledTransaction(db, 'SELECT 1', async ({ client }) => {
+      const [{ idle_in_transaction_session_timeout: limit }] = (await client.query('SHOW idle_in_transaction_session_timeout')).rows;
+      expect(limit).toBe('1min');
+    });
+    // Only inside: a connection back in the pool has the server's default again.
+    expect((await db.query('SHOW idle_in_transaction_session_timeout'))[0].idle_in_transaction_session_timeout).toBe('0');
   });
 
   it('commits nothing when the work fails, and leaves its connection usable', async () => {

@@ -93,6 +93,8 @@ describe('the report PDF', () => {
         expect(sha256Hex(inThread)).toBe(sha256Hex(await renderReportPdf(viewOf(s, { signature: signed }))));
         expect(pdfPages(inThread)[0]).toContain(s.accession);
       }
+      // A render still running at its time limit is stopped (its thread replaced) and says so; the next renders.
+      await expect(renderPdfInThread(viewOf(demoReportStudies()[0], { signature }), 1)).rejects.toThrow(/was not rendered within/);
       // A render that fails in the thread fails that signature only; the next one renders.
       const broken = viewOf(demoReportStudies()[0], { signature });
       await expect(renderPdfInThread({ ...broken, signature: { ...broken.signature!, signedAtIso: 'not a time' } })).rejects.toThrow(/not a valid time/);
