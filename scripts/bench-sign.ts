@@ -2,7 +2,7 @@
 // another, then 200 more 20 at a time. Prints p50/p95 of the whole request and of the PDF step inside
 // it (timed by the renderer itself, see pdfRenderedChannel), and signatures per second. After the
 // sequential run it prints where a signature's time goes: the steps of signStudy (signStepsChannel;
-// `report` includes the PDF step), the PDF step alone, and the rest of the request outside signStudy
+// `pdf` is the wait for the rendering thread, whose render alone is the PDF step), and the rest of the request outside signStudy
 // (the client — Node's http on a kept-open connection —, HTTP, session, origin and access checks,
 // body parsing, the answer).
 // Run: bash scripts/bench-sign.sh (makes the database and sets DATABASE_URL).

@@ -81,9 +81,8 @@ export interface SignedView {
 }
 
 /**
- * The first half of `prepareSignedText`, built from the same input as the preview: the content and its
- * fingerprint, then the signed view that prints it. Enough to render the PDF while the narrative is
- * rendered beside it (`signedNarrative`).
+ * Built from the same input as the preview: the content and its fingerprint, then the signed view that
+ * prints it. Enough to render the PDF while the narrative is rendered beside it (`signedNarrative`).
  */
 export function prepareSignedView(input: Omit<ReportInput, 'signature'>, sign: SignRequest): SignedView {
   // The view as previewed; the signed view differs only by its signature block (see signatureView).
@@ -131,14 +130,12 @@ export function prepareSignedText(input: Omit<ReportInput, 'signature'>, sign: S
   return { ...signed, ...signedNarrative(signed.view) };
 }
 
-/** The signed view's PDF and its SHA-256. The same view gives byte-identical bytes. */
-export async function renderSignedPdf(text: SignedReportText): Promise<{ pdf: Buffer; pdfSha256: string }> {
-  const pdf = await renderReportPdf(text.view);
-  return { pdf, pdfSha256: sha256Hex(pdf) };
-}
-
-/** Everything a signed version stores: `prepareSignedText`, then `renderSignedPdf`. */
+/**
+ * Everything a signed version stores, its PDF rendered in this thread (for tools and tests; a signature
+ * renders the same bytes in a rendering thread, see pdf-threads.ts).
+ */
 export async function prepareSignedReport(input: Omit<ReportInput, 'signature'>, sign: SignRequest): Promise<PreparedReport> {
   const text = prepareSignedText(input, sign);
-  return { ...text, ...(await renderSignedPdf(text)) };
+  const pdf = await renderReportPdf(text.view);
+  return { ...text, pdf, pdfSha256: sha256Hex(pdf) };
 }

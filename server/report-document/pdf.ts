@@ -413,7 +413,8 @@ export interface PdfOptions {
 /**
  * Each rendered report publishes `{ durationMs, cpuMs, bytes }` here (Node's diagnostics_channel: free
  * when nobody listens), so a benchmark or a metrics exporter can time the PDF step inside a signature.
- * `cpuMs` is the process's CPU time meanwhile: the render's own when nothing else runs beside it.
+ * `cpuMs` is the process's CPU time meanwhile: the render's own when nothing else runs beside it (null
+ * for a render in a rendering thread, see pdf-threads.ts, which publishes it on this thread).
  */
 export const pdfRenderedChannel = diagnosticsChannel.channel('isobar:report-pdf-rendered');
 

@@ -1,9 +1,9 @@
 /**
  * How many signatures run their transaction at once in this process. A signature holds a database
- * connection and the study's row lock while it renders the PDF, and rendering is CPU work on the one
- * event loop: more at once would not finish sooner, only hold more connections, and twenty physicians
- * signing together could leave other requests waiting for the pool. Further signers wait here, in
- * memory and without a connection, in the order they came.
+ * connection and the study's row lock while its PDF renders, and rendering is CPU work for the few
+ * rendering threads (server/report-document/pdf-threads.ts): more at once would not finish sooner, only
+ * hold more connections, and twenty physicians signing together could leave other requests waiting for
+ * the pool. Further signers wait here, in memory and without a connection, in the order they came.
  */
 export const SIGNING_SLOTS = 2;
 
