@@ -11,6 +11,7 @@
 import diagnosticsChannel from 'node:diagnostics_channel';
 import { writeFileSync } from 'node:fs';
 import http from 'node:http';
+import { monitorEventLoopDelay } from 'node:perf_hooks';
 import { Session } from 'node:inspector/promises';
 import os from 'node:os';
 import { createDataSource } from '../server/db/data-source';
@@ -145,14 +146,19 @@ async function main(): Promise<void> {
       signCpu.length = 0;
       steps.length = 0;
       const times: number[] = [];
+      // How late the event loop runs its callbacks meanwhile: what any other request waits for.
+      const loopDelay = monitorEventLoopDelay({ resolution: 1 });
+      loopDelay.enable();
       const t = performance.now();
       await pool(batch, atOnce, async (s) => void times.push(await sign(s)));
+      loopDelay.disable();
       const seconds = (performance.now() - t) / 1000;
       const whole = summary(times);
       const pdf = summary(pdfTimes);
       console.log(`${label.padEnd(30)} ${f(whole.p50)} ${f(whole.p95)} ${f(whole.max)}  | ${f(pdf.p50)} ${f(pdf.p95)} ${f(pdf.max)}  | ${(batch.length / seconds).toFixed(1).padStart(6)}   ${(whole.p50 / pdf.p50).toFixed(2)} / ${(whole.p95 / pdf.p95).toFixed(2)}`);
       const server = summary(serverTimes);
       console.log(`${'  (server: received → answered)'.padEnd(30)} ${f(server.p50)} ${f(server.p95)} ${f(server.max)}  |                           |          ${(server.p50 / pdf.p50).toFixed(2)} / ${(server.p95 / pdf.p95).toFixed(2)}`);
+      console.log(`${'  (event loop delay)'.padEnd(30)} ${f(loopDelay.percentile(50) / 1e6)} ${f(loopDelay.percentile(99) / 1e6)} ${f(loopDelay.max / 1e6)}  (p50, p99, max: how long any other request's callback waited)`);
       if (atOnce === 1) {
         // CPU time of this process per signature (client, server and the PDF thread; PostgreSQL
         // apart) — less sensitive than the clock to other programs sharing the machine. A PDF rendered
