@@ -1,6 +1,7 @@
 import type { DataSource } from 'typeorm';
 import type { Role } from '../../shared/auth/permissions';
 import { checkCompleteness } from '../../shared/report/completeness';
+import { writtenValueMismatches } from '../../shared/report/written-values';
 import { availableActions } from '../../shared/study/state-machine';
 import { ReportVersion } from '../db/entities/report-version.entity';
 import { RecordNotFoundError } from '../errors';
@@ -51,6 +52,7 @@ export async function previewStudyReport(
     text: narrative.text,
     document: reportDocument(view),
     completeness: checkCompleteness(record),
+    writtenValues: writtenValueMismatches(record.findings, input.analysis),
     versions: versions.map((v) => summariseVersion(v, v.pdfFile?.pdfSha256 ?? '')),
     actions: availableActions(record.state, role),
     thresholds: { ...input.thresholdsBasis, choice: thresholdChoice },

@@ -3,6 +3,7 @@ import type { CompletenessResult } from './completeness';
 import type { ReportDocument } from './document';
 import type { ThresholdsBasisInfo, ThresholdsChoice } from './thresholds-basis';
 import type { ReportVersionStatus } from './version-status';
+import type { WrittenValueMismatch } from './written-values';
 
 /** A signed version as the report's page lists it. */
 export interface SignedVersionSummary {
@@ -31,6 +32,8 @@ export interface ReportPreview {
   /** The same narrative as structured data, for a preview laid out as text (never as markup). */
   document: ReportDocument;
   completeness: CompletenessResult;
+  /** Values typed in the impression or plan that differ from what was measured (a caution; signing is not refused). */
+  writtenValues: WrittenValueMismatch[];
   versions: SignedVersionSummary[];
   actions: StudyAction[];
   /** The thresholds that judge this preview, and for an open addendum the choice between the amended version's and those in force now. */

@@ -26,7 +26,7 @@ afterAll(async () => {
   await db?.destroy();
 });
 
-async function newStudy(complete: boolean): Promise<StudyRecord> {
+async function newStudy(complete: boolean, impression = 'Significant LAD lesion.'): Promise<StudyRecord> {
   const api = () => request(stack.url);
   const created = await api()
     .post('/api/studies')
@@ -44,7 +44,7 @@ async function newStudy(complete: boolean): Promise<StudyRecord> {
       version: created.body.version,
       details: { ...created.body.details, indication: 'Intermediate LAD lesion', clinicalQuestion: 'intermediate-lesion', operatorId: operators.body.items[0].id },
       vessels: [{ ...emptyVessel(randomUUID(), 'LAD'), restPa: 100, restPd: 95, hyperemiaPa: 90, hyperemiaPd: 72, driftPdPa: 1.0, decision: 'pci' }],
-      findings: { ...emptyFindings(), complicationKinds: ['none'], impression: 'Significant LAD lesion.', plan: 'Stent.' },
+      findings: { ...emptyFindings(), complicationKinds: ['none'], impression, plan: 'Stent.' },
     })
     .expect(200);
   return res.body;
@@ -64,6 +64,24 @@ describe('the report and signature screen', () => {
       await page.screenshot({ path: screenshotPath('report-incomplete-phone') });
     } finally {
       await context.close();
+    }
+  });
+
+  it('cautions, without refusing, when the impression gives an FFR the study did not measure', async () => {
+    const study = await newStudy(true, 'Significant LAD lesion, FFR 0.86.');
+    for (const [name, viewport] of [['phone', viewports.phone], ['desktop', viewports.desktop]] as const) {
+      const context = await browser.context.browser()!.newContext({ viewport });
+      const page = await context.newPage();
+      try {
+        await signInInBrowser(page, stack, usernameOf('physician'));
+        await page.goto(`${stack.url}/studies/${study.id}/report`);
+        await visible(page, 'report-written-values').waitFor();
+        await expect(visible(page, 'report-written-value-0').innerText()).resolves.toContain('“FFR 0.86”, but the measured FFR is LAD 0.80');
+        expect(await visible(page, 'report-action-sign').getAttribute('aria-disabled')).not.toBe('true');
+        await page.screenshot({ path: screenshotPath(`report-written-values-${name}`) });
+      } finally {
+        await context.close();
+      }
     }
   });
 

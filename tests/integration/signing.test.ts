@@ -142,6 +142,17 @@ describe('report preview and signing', () => {
     expect(res.body.current.findings.plan).toBe('Changed plan.');
   });
 
+  it('the preview cautions when the impression gives a value the study did not measure, and signing stays possible', async () => {
+    const study = await completeStudy(); // FFR 72/90 = 0.80
+    const saved = await send('patch', `/api/studies/${study.id}`, staff)
+      .send({ version: study.version, findings: { ...study.findings, impression: 'Significant LAD lesion, FFR 0.86.' } })
+      .expect(200);
+    const preview = await api().get(`/api/studies/${study.id}/report`).set('Cookie', physician).expect(200);
+    expect(preview.body.writtenValues).toEqual([expect.objectContaining({ field: 'impression', index: 'FFR', written: 'FFR 0.86', measured: ['LAD 0.80'] })]);
+    expect(preview.body.completeness.complete).toBe(true);
+    await send('post', `/api/studies/${study.id}/sign`, physician).send({ version: saved.body.version }).expect(201);
+  });
+
   it('two physicians signing at once make exactly one version; the other gets 409', async () => {
     const study = await completeStudy();
     const second = (await signIn(stack, usernameOf('physician'))).cookie;

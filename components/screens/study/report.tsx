@@ -57,6 +57,18 @@ export default function ReportSection() {
             ))}
           </View>
         )}
+        {p.writtenValues?.length ? (
+          <View style={styles.check} role="alert" testID="report-written-values">
+            <Text weight="semibold">Check the impression and plan against the measurements</Text>
+            {p.writtenValues.map((w, i) => (
+              <Link key={`${w.field}-${i}`} href={`/studies/${id}/findings` as '/'}>
+                <Text variant="caption" testID={`report-written-value-${i}`}>
+                  ▲ {w.message}
+                </Text>
+              </Link>
+            ))}
+          </View>
+        ) : null}
         {p.state === 'amending' && p.thresholds?.choice && p.thresholds.choice.differences.length > 0 ? (
           <View style={styles.choice} testID="report-thresholds-choice">
             <Text weight="semibold" nativeID="report-thresholds-label">
@@ -148,5 +160,6 @@ const styles = StyleSheet.create({
   missing: { gap: space.xs, backgroundColor: color.abnormalSoft, borderRadius: radius.md, padding: space.md },
   actions: { flexDirection: 'row', flexWrap: 'wrap', gap: space.sm },
   choice: { gap: space.xs, backgroundColor: color.accentSoft, borderRadius: radius.md, padding: space.md },
+  check: { gap: space.xs, backgroundColor: color.borderlineSoft, borderRadius: radius.md, padding: space.md },
   reason: { borderWidth: 1, borderColor: color.inkFaint, borderRadius: radius.md, padding: space.sm, fontFamily: font.regular, fontSize: type.body.fontSize },
 });
