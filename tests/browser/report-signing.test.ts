@@ -76,7 +76,7 @@ describe('the report and signature screen', () => {
         await signInInBrowser(page, stack, usernameOf('physician'));
         await page.goto(`${stack.url}/studies/${study.id}/report`);
         await visible(page, 'report-written-values').waitFor();
-        await expect(visible(page, 'report-written-value-0').innerText()).resolves.toContain('“FFR 0.86”, but the measured FFR is LAD 0.80');
+        await expect(visible(page, 'report-written-value-0').innerText()).resolves.toContain('“FFR 0.86”, but this study measured FFR LAD 0.80');
         expect(await visible(page, 'report-action-sign').getAttribute('aria-disabled')).not.toBe('true');
         await page.screenshot({ path: screenshotPath(`report-written-values-${name}`) });
       } finally {

@@ -59,7 +59,9 @@ export default function ReportSection() {
         )}
         {p.writtenValues?.length ? (
           <View style={styles.check} role="alert" testID="report-written-values">
-            <Text weight="semibold">Check the impression and plan against the measurements</Text>
+            <Text weight="semibold">
+              {p.writtenValues.length === 1 ? '1 value' : `${p.writtenValues.length} values`} to check in the impression and plan
+            </Text>
             {p.writtenValues.map((w, i) => (
               <Link key={`${w.field}-${i}`} href={`/studies/${id}/findings` as '/'}>
                 <Text variant="caption" testID={`report-written-value-${i}`}>
