@@ -85,6 +85,15 @@ describe('the report PDF', () => {
     expect(fresh).toBe(shared);
   });
 
+  it('leaves the view it renders as it was (the layout engine rewrites the lists it is given in place)', async () => {
+    for (const s of demoReportStudies()) {
+      const view = viewOf(s, { signature });
+      const before = JSON.stringify(view);
+      await renderReportPdf(view);
+      expect(JSON.stringify(view)).toBe(before);
+    }
+  });
+
   it('gives the same bytes rendered in a rendering thread (as a signature renders it) as in this thread', async () => {
     try {
       for (const [i, s] of demoReportStudies().slice(0, 3).entries()) {
