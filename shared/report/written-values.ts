@@ -1,5 +1,6 @@
 import type { PhysiologyResult, VesselResult } from '../physiology/types';
-import type { VesselCode } from '../physiology/schema';
+import { vesselCodes, type VesselCode } from '../physiology/schema';
+import { vesselLongName, vesselShortName } from '../physiology/vessels';
 import { vesselName } from '../physiology/format';
 import { displayDecimals, formatQuantity, roundForDisplay, roundHalfAway, type QuantityKind } from '../physiology/precision';
 
@@ -44,24 +45,31 @@ const indexValue: Record<WrittenIndex, (v: VesselResult) => number | undefined> 
   MRR: (v) => v.mrr,
 };
 
-/** How a report's text names each vessel (common practice abbreviations and words). */
-const vesselWords: ReadonlyArray<[VesselCode, string]> = [
-  ['LM', String.raw`LM|LMCA|left main`],
-  ['LAD', String.raw`LAD|left anterior descending`],
-  ['LCX', String.raw`LCx|Cx|LCX|circumflex`],
-  ['RCA', String.raw`RCA|right coronary(?: artery)?`],
-  ['RAMUS', String.raw`ramus(?: intermedius)?|RI`],
-  ['DIAGONAL', String.raw`D[1-3]|diagonal`],
-  ['OBTUSE_MARGINAL', String.raw`OM[1-3]?|obtuse marginal`],
-  ['PDA', String.raw`PDA|posterior descending`],
-  ['PLB', String.raw`PLB|PLV|posterolateral(?: branch)?`],
-  ['GRAFT', String.raw`graft|SVG|LIMA|RIMA`],
-];
-const VESSEL = vesselWords.map(([, w]) => `(?:${w})`).join('|');
-const vesselOf = (word: string): VesselCode | null => {
-  for (const [code, w] of vesselWords) if (new RegExp(`^(?:${w})$`, 'i').test(word.trim())) return code;
-  return null;
+/**
+ * How a text names each vessel: the names the report itself prints (`vesselShortName`,
+ * `vesselLongName`) and the abbreviations and shorter words of the trade beside them (common practice).
+ */
+const moreVesselWords: Readonly<Record<VesselCode, readonly string[]>> = {
+  LM: ['LMCA'],
+  LAD: [],
+  LCX: ['Cx'],
+  RCA: ['right coronary artery'],
+  RAMUS: ['RI'],
+  DIAGONAL: ['D1', 'D2', 'D3'],
+  OBTUSE_MARGINAL: ['OM1', 'OM2', 'OM3', 'obtuse marginal'],
+  PDA: [],
+  PLB: ['PLV', 'posterolateral'],
+  GRAFT: ['SVG', 'LIMA', 'RIMA'],
 };
+const escapeRegExp = (s: string) => s.replace(/[.*+?^${}()|[\]\\]/g, '\\$&');
+/** Each vessel's words as one alternation, longest first (so "Diagonal branch" is quoted whole). */
+const vesselWords = vesselCodes.map((code) => {
+  const words = [vesselShortName[code], vesselLongName[code], ...moreVesselWords[code]].sort((x, y) => y.length - x.length);
+  const alternation = words.map(escapeRegExp).join('|');
+  return { code, alternation, exactly: new RegExp(`^(?:${alternation})$`, 'i') };
+});
+const VESSEL = vesselWords.map((w) => `(?:${w.alternation})`).join('|');
+const vesselOf = (word: string): VesselCode | null => vesselWords.find((w) => w.exactly.test(word.trim()))?.code ?? null;
 
 const NUMBER = String.raw`(?:\d+(?:[.,]\d+)?|[.,]\d+)`;
 const indexName = /\b(FFR|CFR|IMR|RRR|MRR)s?\b/gi;
