@@ -188,6 +188,8 @@ const muted = '#5b6675';
 const rule = '#c9d0d8';
 
 const sectionTitle = (text: string): Content => ({ text, style: 'h2' });
+/** A bulleted list of the view's lines. pdfmake rewrites a list's items in place, so it gets a copy: the view stays as it was. */
+const bullets = (items: readonly string[], margin?: [number, number, number, number]): Content => ({ ul: [...items], ...(margin ? { margin } : {}) });
 const paras = (lines: string[]): Content[] => lines.map((text) => ({ text, margin: [0, 0, 0, 3] }));
 
 function cellContent(c: Cell, first: boolean): TableCell {
@@ -276,7 +278,7 @@ function amendmentBanner(a: NonNullable<ReportView['amendment']>, version: numbe
     { text: a.supersedes },
   ];
   if (a.reason) lines.push({ text: `Reason: ${a.reason}` });
-  if (a.changes.length) lines.push({ text: 'Changed:', margin: [0, 2, 0, 0] }, { ul: [...a.changes] });
+  if (a.changes.length) lines.push({ text: 'Changed:', margin: [0, 2, 0, 0] }, bullets(a.changes));
   return { table: { widths: ['*'], body: [[{ stack: lines, margin: [4, 3, 4, 3] }]] }, layout: { hLineWidth: () => 1, vLineWidth: () => 1, hLineColor: () => '#8a5a00', vLineColor: () => '#8a5a00' }, margin: [0, 0, 0, 8] };
 }
 
@@ -307,7 +309,7 @@ function reportDocument(view: ReportView, createdAt: Date): TDocumentDefinitions
   if (view.indices) content.push(sectionTitle('Calculated indices'), table(view.indices));
   if (view.interpretation.length) {
     content.push(sectionTitle('Interpretation by vessel'));
-    for (const v of view.interpretation) content.push({ text: v.vessel, style: 'h3' }, { ul: [...v.sentences], margin: [0, 0, 0, 4] });
+    for (const v of view.interpretation) content.push({ text: v.vessel, style: 'h3' }, bullets(v.sentences, [0, 0, 0, 4]));
   }
   const ach = view.acetylcholine;
   if (ach) {
@@ -318,10 +320,10 @@ function reportDocument(view: ReportView, createdAt: Date): TDocumentDefinitions
   if (view.endotype) {
     content.push(sectionTitle('Diagnosis: coronary function'), { text: view.endotype.label, bold: true });
     if (view.endotype.headline) content.push({ text: view.endotype.headline });
-    if (view.endotype.reasons.length) content.push({ text: 'Reasons', style: 'h3' }, { ul: [...view.endotype.reasons] });
+    if (view.endotype.reasons.length) content.push({ text: 'Reasons', style: 'h3' }, bullets(view.endotype.reasons));
   }
   if (view.lesionSummary.length) content.push(sectionTitle('Conclusion'), ...paras(view.lesionSummary));
-  if (view.quality.length) content.push(sectionTitle('Measurement quality'), { ul: [...view.quality] });
+  if (view.quality.length) content.push(sectionTitle('Measurement quality'), bullets(view.quality));
   content.push(sectionTitle('Complications'), ...paras(view.complications));
   if (view.impression.length) content.push(sectionTitle('Impression'), ...paras(view.impression));
   if (view.plan.length) content.push(sectionTitle('Recommendations and plan'), ...paras(view.plan));
