@@ -8,19 +8,14 @@ export interface RenderedInThread {
   durationMs: number;
 }
 
-export type PdfTask = { view: ReportView } | { warm: true };
-
-/**
- * Renders one report in a rendering thread (see pdf-threads.ts); the bytes are copied back (about
- * 26 KB). `{ warm: true }` only loads this module and the fonts, so the first signature does not wait for them.
- */
-export async function renderPdfTask(task: PdfTask): Promise<RenderedInThread | null> {
-  if (!('view' in task)) {
-    setUp();
-    return null;
-  }
-  const { view } = task;
+/** Renders one report in a rendering thread (see pdf-threads.ts); the bytes are copied back (about 26 KB). */
+export async function renderPdfTask({ view }: { view: ReportView }): Promise<RenderedInThread> {
   const began = performance.now();
   const pdf = await renderReportPdf(view);
   return { pdf, durationMs: performance.now() - began };
+}
+
+/** Loads this module and the fonts in a rendering thread, so the first signature does not wait for them. */
+export function warmPdfTask(): void {
+  setUp();
 }

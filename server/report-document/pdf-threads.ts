@@ -3,7 +3,7 @@ import { Piscina } from 'piscina';
 import { ServiceNotAnsweringError } from '../errors';
 import { defaultLogger, safeError } from '../log';
 import { pdfRenderedChannel } from './pdf';
-import type { PdfTask, RenderedInThread } from './pdf-thread-task';
+import type { RenderedInThread } from './pdf-thread-task';
 import type { ReportView } from './view-model';
 
 /**
@@ -12,13 +12,13 @@ import type { ReportView } from './view-model';
  * other work, which runs beside it. One thread per core beyond the first (which the event loop and
  * PostgreSQL share), at most two; the signing slots bound how many renders wait.
  */
-let pool: Piscina<PdfTask, RenderedInThread | null> | null = null;
+let pool: Piscina | null = null;
 const threadCount = Math.max(1, Math.min(2, availableParallelism() - 1));
 
 /** A render takes tens of milliseconds; one still running after this is stopped, its thread replaced. */
 export const PDF_RENDER_TIMEOUT_MS = 20_000;
 
-function threads(): Piscina<PdfTask, RenderedInThread | null> {
+function threads(): Piscina {
   if (!pool) {
     pool = new Piscina({ filename: new URL('./pdf-thread.mjs', import.meta.url).href, minThreads: threadCount, maxThreads: threadCount });
     // A thread that fails outside a task (one that cannot start, say) is reported here; unheard, the
@@ -35,7 +35,7 @@ function threads(): Piscina<PdfTask, RenderedInThread | null> {
  * measurable apart from the process's in this Node version).
  */
 export async function renderPdfInThread(view: ReportView, timeoutMs = PDF_RENDER_TIMEOUT_MS): Promise<Buffer> {
-  let rendered: RenderedInThread | null;
+  let rendered: RenderedInThread;
   try {
     rendered = await threads().run({ view }, { signal: AbortSignal.timeout(timeoutMs) });
   } catch (error) {
@@ -44,7 +44,6 @@ export async function renderPdfInThread(view: ReportView, timeoutMs = PDF_RENDER
     }
     throw error;
   }
-  if (!rendered) throw new Error('The PDF thread answered without a PDF.');
   const bytes = Buffer.from(rendered.pdf.buffer, rendered.pdf.byteOffset, rendered.pdf.byteLength);
   if (pdfRenderedChannel.hasSubscribers) pdfRenderedChannel.publish({ durationMs: rendered.durationMs, cpuMs: null, bytes: bytes.length });
   return bytes;
@@ -52,7 +51,7 @@ export async function renderPdfInThread(view: ReportView, timeoutMs = PDF_RENDER
 
 /** Starts the rendering threads and loads their fonts, so the first signature does not wait for them. */
 export async function warmPdfThreads(): Promise<void> {
-  await Promise.all(Array.from({ length: threadCount }, () => threads().run({ warm: true })));
+  await Promise.all(Array.from({ length: threadCount }, () => threads().run(null, { name: 'warm' })));
 }
 
 /** Ends the rendering threads (at shutdown; the next render starts them again). */
